@@ -1,0 +1,52 @@
+import cookieParser from 'cookie-parser';
+import express, { type Express } from 'express';
+import helmet from 'helmet';
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { pinoHttp } from 'pino-http';
+import { env } from './env';
+import { logger } from './lib/logger';
+import { loadUser } from './middleware/auth';
+import { apiNotFound, errorHandler } from './middleware/error';
+import { adminRouter } from './routes/admin';
+import { authRouter } from './routes/auth';
+import { healthRouter } from './routes/health';
+import { projectsRouter } from './routes/projects';
+
+export interface AppOptions {
+  /** The built client (`dist/`) to serve beside the API; omitted in API-only tests and `npm run dev`. */
+  clientDir?: string;
+}
+
+/** Builds the Express app; `listen` happens elsewhere (server/index.ts, server/start.ts, tests). */
+export function createApp(options: AppOptions = {}): Express {
+  const app = express();
+  app.set('trust proxy', env().TRUST_PROXY);
+  app.disable('x-powered-by');
+  // No upgrade-insecure-requests: the local product is served over plain http on 127.0.0.1.
+  app.use(helmet({ contentSecurityPolicy: { directives: { upgradeInsecureRequests: null } } }));
+  app.use(pinoHttp({ logger, autoLogging: { ignore: (req) => req.url === '/api/health' } }));
+  app.use(express.json({ limit: '1mb' }));
+  app.use(cookieParser());
+
+  const api = express.Router();
+  api.use(loadUser);
+  api.use('/health', healthRouter);
+  api.use('/auth', authRouter);
+  api.use('/projects', projectsRouter);
+  api.use('/admin', adminRouter);
+  api.use(apiNotFound);
+  app.use('/api', api);
+
+  const clientDir = options.clientDir && path.resolve(options.clientDir);
+  if (clientDir && existsSync(path.join(clientDir, 'index.html'))) {
+    app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
+    // Client-side routes: every other GET gets the app shell.
+    app.get('/{*splat}', (_req, res) => {
+      res.set('Cache-Control', 'no-cache').sendFile(path.join(clientDir, 'index.html'));
+    });
+  }
+
+  app.use(errorHandler);
+  return app;
+}

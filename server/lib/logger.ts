@@ -1,0 +1,4 @@
+import pino from 'pino';
+import { env } from '../env';
+
+export const logger = pino({ level: env().LOG_LEVEL, redact: ['req.headers.cookie', 'res.headers["set-cookie"]'] });

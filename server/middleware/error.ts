@@ -1,0 +1,47 @@
+import type { NextFunction, Request, Response } from 'express';
+import { ZodError } from 'zod';
+import { HttpError } from '../lib/http-error';
+import { logger } from '../lib/logger';
+
+interface ErrorBody {
+  error: { message: string; issues: { path: string; message: string }[] };
+}
+
+const body = (message: string, issues: ErrorBody['error']['issues'] = []): ErrorBody => ({ error: { message, issues } });
+
+/** The one error middleware: a message a person can act on, never a stack trace. */
+export function errorHandler(err: unknown, req: Request, res: Response, _next: NextFunction) {
+  if (err instanceof ZodError) {
+    const issues = err.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
+    const first = issues[0];
+    const message = issues.length === 1 && first
+      ? first.message
+      : `${issues.length} fields need attention: ${issues.map((i) => (i.path ? `${i.path}: ${i.message}` : i.message)).join('; ')}`;
+    res.status(400).json(body(message, issues));
+    return;
+  }
+  if (err instanceof HttpError) {
+    res.status(err.status).json(body(err.message, err.issues));
+    return;
+  }
+  const e = err as { type?: string; status?: number; statusCode?: number };
+  if (e?.type === 'entity.parse.failed') {
+    res.status(400).json(body('The request body is not valid JSON.'));
+    return;
+  }
+  if (e?.type === 'entity.too.large') {
+    res.status(413).json(body('The request is too large.'));
+    return;
+  }
+  const status = e?.status ?? e?.statusCode;
+  if (typeof status === 'number' && status >= 400 && status < 500) {
+    res.status(status).json(body('The request could not be handled.'));
+    return;
+  }
+  logger.error({ err, url: req.originalUrl }, 'unhandled error');
+  res.status(500).json(body('Something went wrong on the server. Try again; if it keeps happening, tell your administrator.'));
+}
+
+export function apiNotFound(req: Request, res: Response) {
+  res.status(404).json(body(`There is no API route ${req.method} ${req.path}.`));
+}

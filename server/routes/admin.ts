@@ -1,0 +1,172 @@
+import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import { Router } from 'express';
+import { z } from 'zod';
+import { projectInputSchema, projectPatchSchema } from '../../shared/schemas/project';
+import { inviteUserInputSchema, membershipInputSchema, updateUserInputSchema } from '../../shared/schemas/user';
+import { roleLabels } from '../../shared/roles';
+import { db } from '../db/client';
+import { caughtMail, memberships, outbox, projects, users } from '../db/schema';
+import { requireAdmin, requireUser } from '../middleware/auth';
+import { appUrl } from '../lib/app-url';
+import { audit } from '../lib/audit';
+import { badRequest, conflict, notFound } from '../lib/http-error';
+import { enqueueMail, kickMailDelivery } from '../lib/mail';
+import { issueToken } from '../lib/one-time-token';
+import { revokeAllSessions } from '../lib/session';
+
+export const adminRouter = Router();
+adminRouter.use(requireAdmin);
+
+const userIdParams = z.object({ userId: z.uuid({ message: 'That user id is not valid.' }) });
+const projectIdParams = z.object({ projectId: z.uuid({ message: 'That project id is not valid.' }) });
+const memberParams = projectIdParams.extend(userIdParams.shape);
+
+const publicUser = { id: users.id, email: users.email, name: users.name, isAdmin: users.isAdmin, active: users.active, invited: sql<boolean>`${users.passwordHash} is null` };
+
+adminRouter.get('/users', async (_req, res) => {
+  const list = await db.select(publicUser).from(users).orderBy(asc(users.name));
+  const roles = await db
+    .select({ userId: memberships.userId, projectId: memberships.projectId, projectName: projects.name, role: memberships.role })
+    .from(memberships)
+    .innerJoin(projects, eq(projects.id, memberships.projectId));
+  res.json(list.map((u) => ({ ...u, memberships: roles.filter((r) => r.userId === u.id) })));
+});
+
+/** Invites a person: the account exists at once, and they choose their password from the e-mailed link. */
+adminRouter.post('/users', async (req, res) => {
+  const me = requireUser(req);
+  const input = inviteUserInputSchema.parse(req.body);
+  const created = await db.transaction(async (tx) => {
+    const [existing] = await tx.select({ id: users.id }).from(users).where(eq(users.email, input.email)).limit(1);
+    if (existing) throw conflict('A user with that e-mail address already exists.');
+    const [user] = await tx.insert(users).values({ email: input.email, name: input.name, isAdmin: input.isAdmin }).returning(publicUser);
+    for (const m of input.memberships) {
+      const [p] = await tx.select({ id: projects.id }).from(projects).where(eq(projects.id, m.projectId)).limit(1);
+      if (!p) throw badRequest('One of the chosen projects does not exist.');
+      await tx.insert(memberships).values({ userId: user.id, projectId: m.projectId, role: m.role });
+    }
+    const token = await issueToken(tx, user.id, 'invitation');
+    await enqueueMail(tx, {
+      kind: 'invitation',
+      to: [user.email],
+      subject: 'You are invited to Kerfwise',
+      text: `Hello ${user.name},\n\n${me.name} has invited you to Kerfwise, where the cutter crews, planner, buyer and site manager of a TBM drive keep track of disc cutters and stops.\n\nChoose your password here (the link works once, for 7 days):\n\n${appUrl(req)}/set-password?token=${token}\n`,
+    });
+    await audit(tx, { userId: me.id, entity: 'user', entityId: user.id, action: 'invite', after: { ...input } });
+    return user;
+  });
+  kickMailDelivery();
+  res.status(201).json(created);
+});
+
+adminRouter.patch('/users/:userId', async (req, res) => {
+  const me = requireUser(req);
+  const { userId } = userIdParams.parse(req.params);
+  const input = updateUserInputSchema.parse(req.body);
+  if (userId === me.id && (input.active === false || input.isAdmin === false)) {
+    throw badRequest('You cannot deactivate yourself or remove your own administrator rights; ask another administrator.');
+  }
+  const updated = await db.transaction(async (tx) => {
+    const [before] = await tx.select(publicUser).from(users).where(eq(users.id, userId)).limit(1);
+    if (!before) throw notFound('That user');
+    const [after] = await tx.update(users).set({ ...input, updatedAt: sql`now()` }).where(eq(users.id, userId)).returning(publicUser);
+    if (input.active === false) await revokeAllSessions(tx, userId);
+    await audit(tx, { userId: me.id, entity: 'user', entityId: userId, action: 'update', before, after });
+    return after;
+  });
+  res.json(updated);
+});
+
+adminRouter.get('/projects', async (_req, res) => {
+  const rows = await db
+    .select({ project: projects, members: sql<number>`(select count(*)::int from memberships m where m.project_id = ${projects.id})` })
+    .from(projects)
+    .orderBy(asc(projects.name));
+  res.json(rows.map((r) => ({ ...r.project, memberCount: r.members })));
+});
+
+adminRouter.post('/projects', async (req, res) => {
+  const me = requireUser(req);
+  const input = projectInputSchema.parse(req.body);
+  const project = await db.transaction(async (tx) => {
+    const [dup] = await tx.select({ id: projects.id }).from(projects).where(eq(projects.name, input.name)).limit(1);
+    if (dup) throw conflict('A project with that name already exists.');
+    const [p] = await tx.insert(projects).values(input).returning();
+    await audit(tx, { userId: me.id, projectId: p.id, entity: 'project', entityId: p.id, action: 'create', after: p });
+    return p;
+  });
+  res.status(201).json(project);
+});
+
+adminRouter.patch('/projects/:projectId', async (req, res) => {
+  const me = requireUser(req);
+  const { projectId } = projectIdParams.parse(req.params);
+  const input = projectPatchSchema.parse(req.body);
+  const project = await db.transaction(async (tx) => {
+    const [before] = await tx.select().from(projects).where(eq(projects.id, projectId)).limit(1);
+    if (!before) throw notFound('That project');
+    const [after] = await tx.update(projects).set({ ...input, updatedAt: sql`now()` }).where(eq(projects.id, projectId)).returning();
+    await audit(tx, { userId: me.id, projectId, entity: 'project', entityId: projectId, action: 'update', before, after });
+    return after;
+  });
+  res.json(project);
+});
+
+adminRouter.get('/projects/:projectId/members', async (req, res) => {
+  const { projectId } = projectIdParams.parse(req.params);
+  const rows = await db
+    .select({ userId: users.id, name: users.name, email: users.email, active: users.active, role: memberships.role })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.projectId, projectId))
+    .orderBy(asc(users.name));
+  res.json(rows);
+});
+
+/** Adds a person to a project or changes their role there. */
+adminRouter.put('/projects/:projectId/members/:userId', async (req, res) => {
+  const me = requireUser(req);
+  const { projectId, userId } = memberParams.parse(req.params);
+  const { role } = membershipInputSchema.parse(req.body);
+  const saved = await db.transaction(async (tx) => {
+    const [p] = await tx.select({ id: projects.id }).from(projects).where(eq(projects.id, projectId)).limit(1);
+    const [u] = await tx.select({ id: users.id }).from(users).where(eq(users.id, userId)).limit(1);
+    if (!p) throw notFound('That project');
+    if (!u) throw notFound('That user');
+    const [before] = await tx.select().from(memberships).where(and(eq(memberships.projectId, projectId), eq(memberships.userId, userId))).limit(1);
+    const [after] = await tx
+      .insert(memberships)
+      .values({ projectId, userId, role })
+      .onConflictDoUpdate({ target: [memberships.userId, memberships.projectId], set: { role } })
+      .returning();
+    await audit(tx, { userId: me.id, projectId, entity: 'membership', entityId: after.id, action: before ? 'update' : 'create', before: before ?? null, after });
+    return after;
+  });
+  res.json({ ...saved, roleLabel: roleLabels[saved.role] });
+});
+
+adminRouter.delete('/projects/:projectId/members/:userId', async (req, res) => {
+  const me = requireUser(req);
+  const { projectId, userId } = memberParams.parse(req.params);
+  await db.transaction(async (tx) => {
+    const [before] = await tx
+      .delete(memberships)
+      .where(and(eq(memberships.projectId, projectId), eq(memberships.userId, userId)))
+      .returning();
+    if (!before) throw notFound('That membership');
+    await audit(tx, { userId: me.id, projectId, entity: 'membership', entityId: before.id, action: 'delete', before });
+  });
+  res.status(204).end();
+});
+
+/** Mail caught by the local fake SMTP server, newest first, with the outbox's state beside it. */
+adminRouter.get('/mail', async (_req, res) => {
+  const caught = await db.select().from(caughtMail).orderBy(desc(caughtMail.id)).limit(200);
+  const [queue] = await db
+    .select({
+      waiting: sql<number>`count(*) filter (where ${outbox.sentAt} is null)::int`,
+      failing: sql<number>`count(*) filter (where ${outbox.sentAt} is null and ${outbox.attempts} > 0)::int`,
+    })
+    .from(outbox);
+  res.json({ caught, outbox: queue });
+});

@@ -1,0 +1,24 @@
+/** Project roles and what each may do. The server enforces these on every route; the client only hides. */
+export const projectRoles = ['fitter', 'planner', 'buyer', 'site_manager'] as const;
+export type ProjectRole = (typeof projectRoles)[number];
+
+export const roleLabels: Record<ProjectRole, string> = {
+  fitter: 'Fitter',
+  planner: 'Maintenance planner',
+  buyer: 'Spare-parts buyer',
+  site_manager: 'Site manager',
+};
+
+/**
+ * One table of permissions, extended by every feature. A route asks for a permission, never for
+ * a role, so that adding a role or widening access is a change here only (DEVELOPERS.md, decision 6).
+ */
+export const permissions = {
+  'project.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+} as const satisfies Record<string, readonly ProjectRole[]>;
+
+export type Permission = keyof typeof permissions;
+
+export function roleCan(role: ProjectRole, permission: Permission): boolean {
+  return (permissions[permission] as readonly ProjectRole[]).includes(role);
+}

@@ -1,0 +1,29 @@
+import { z } from 'zod';
+
+const isTimeZone = (tz: string) => {
+  try {
+    new Intl.DateTimeFormat('en', { timeZone: tz });
+    return true;
+  } catch {
+    return false;
+  }
+};
+
+export const driveDirections = ['increasing', 'decreasing'] as const;
+
+export const projectInputSchema = z.object({
+  name: z.string().trim().min(2, 'Give the drive a name of at least 2 characters.').max(120),
+  machineDescription: z.string().trim().max(500).default(''),
+  excavatedDiameterM: z.coerce
+    .number({ message: 'Enter the excavated diameter in metres.' })
+    .min(1, 'The excavated diameter must be at least 1 m.')
+    .max(20, 'The excavated diameter must be at most 20 m.'),
+  startChainageM: z.coerce.number({ message: 'Enter the start chainage in metres.' }).finite(),
+  driveDirection: z.enum(driveDirections, { message: 'Choose whether chainage increases or decreases as the machine advances.' }),
+  siteTimeZone: z.string().refine(isTimeZone, 'Choose a time zone from the list, like Europe/Zurich.'),
+  units: z.literal('metric', { message: 'Only metric units are supported.' }).default('metric'),
+});
+export type ProjectInput = z.infer<typeof projectInputSchema>;
+
+export const projectPatchSchema = projectInputSchema.partial();
+export type ProjectPatch = z.infer<typeof projectPatchSchema>;

@@ -1,0 +1,26 @@
+import { createBrowserRouter, Navigate } from 'react-router';
+import { AppShell } from '../components/layout/app-shell';
+import { paths } from '../config/paths';
+import { RouteError } from './route-error';
+
+/** Routes are split per feature (`lazy`), so the first load stays small. */
+export const router = createBrowserRouter([
+  { path: paths.signIn, lazy: async () => ({ Component: (await import('../features/auth/routes/sign-in')).SignInRoute }) },
+  { path: paths.requestReset, lazy: async () => ({ Component: (await import('../features/auth/routes/request-reset')).RequestResetRoute }) },
+  { path: paths.setPassword, lazy: async () => ({ Component: (await import('../features/auth/routes/set-password')).SetPasswordRoute }) },
+  {
+    path: '/',
+    Component: AppShell,
+    errorElement: <RouteError />,
+    children: [
+      { index: true, lazy: async () => ({ Component: (await import('../features/projects/routes/project-picker')).ProjectPickerRoute }) },
+      { path: paths.account, lazy: async () => ({ Component: (await import('../features/auth/routes/account')).AccountRoute }) },
+      { path: 'projects/:projectId', lazy: async () => ({ Component: (await import('../features/projects/routes/project-home')).ProjectHomeRoute }) },
+      { path: 'admin', element: <Navigate to={paths.admin.users} replace /> },
+      { path: paths.admin.users, lazy: async () => ({ Component: (await import('../features/admin/routes/users')).AdminUsersRoute }) },
+      { path: paths.admin.projects, lazy: async () => ({ Component: (await import('../features/admin/routes/projects')).AdminProjectsRoute }) },
+      { path: paths.admin.mail, lazy: async () => ({ Component: (await import('../features/admin/routes/mail')).AdminMailRoute }) },
+      { path: '*', element: <RouteError /> },
+    ],
+  },
+]);

@@ -1,0 +1,54 @@
+import { queryOptions } from '@tanstack/react-query';
+import type { ProjectRole } from '../../../shared/roles';
+import type { ProjectInput } from '../../../shared/schemas/project';
+import type { InviteUserInput, UpdateUserInput } from '../../../shared/schemas/user';
+import { api, apiGet } from '../../lib/api-client';
+
+export interface AdminUser {
+  id: string;
+  email: string;
+  name: string;
+  isAdmin: boolean;
+  active: boolean;
+  invited: boolean;
+  memberships: { projectId: string; projectName: string; role: ProjectRole }[];
+}
+
+export interface AdminProject {
+  id: string;
+  name: string;
+  machineDescription: string;
+  excavatedDiameterM: number;
+  startChainageM: number;
+  driveDirection: 'increasing' | 'decreasing';
+  siteTimeZone: string;
+  memberCount: number;
+}
+
+export interface CaughtMail {
+  id: number;
+  receivedAt: string;
+  fromAddress: string;
+  toAddresses: string[];
+  subject: string;
+  textBody: string;
+}
+
+export const adminQueries = {
+  all: ['admin'] as const,
+  users: () => queryOptions({ queryKey: [...adminQueries.all, 'users'], queryFn: () => apiGet<AdminUser[]>('/api/admin/users') }),
+  projects: () => queryOptions({ queryKey: [...adminQueries.all, 'projects'], queryFn: () => apiGet<AdminProject[]>('/api/admin/projects') }),
+  mail: () =>
+    queryOptions({
+      queryKey: [...adminQueries.all, 'mail'],
+      queryFn: () => apiGet<{ caught: CaughtMail[]; outbox: { waiting: number; failing: number } }>('/api/admin/mail'),
+      refetchInterval: 5000,
+    }),
+};
+
+export const inviteUser = (input: InviteUserInput) => api<AdminUser>('POST', '/api/admin/users', input);
+export const updateUser = (userId: string, input: UpdateUserInput) => api<AdminUser>('PATCH', `/api/admin/users/${userId}`, input);
+export const createProject = (input: ProjectInput) => api<AdminProject>('POST', '/api/admin/projects', input);
+export const setMembership = (projectId: string, userId: string, role: ProjectRole) =>
+  api('PUT', `/api/admin/projects/${projectId}/members/${userId}`, { role });
+export const removeMembership = (projectId: string, userId: string) => api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);

@@ -1,0 +1,46 @@
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { changePasswordInputSchema, type ChangePasswordInput } from '../../../../shared/schemas/auth';
+import { roleLabels } from '../../../../shared/roles';
+import { Alert } from '../../../components/ui/alert';
+import { Button } from '../../../components/ui/button';
+import { TextField } from '../../../components/ui/field';
+import { Page, Panel } from '../../../components/ui/page';
+import { ApiError } from '../../../lib/api-client';
+import { changePassword } from '../api';
+import { useMe } from '../use-me';
+
+export function AccountRoute() {
+  const me = useMe();
+  const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
+  const { register, handleSubmit, formState, reset } = useForm<ChangePasswordInput>({ resolver: zodResolver(changePasswordInputSchema) });
+  const onSubmit = handleSubmit(async (input) => {
+    setMessage(null);
+    try {
+      await changePassword(input);
+      reset();
+      setMessage({ tone: 'success', text: 'Password changed. You were signed out everywhere else.' });
+    } catch (err) {
+      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The change failed. Try again.' });
+    }
+  });
+  return (
+    <Page title="Your account">
+      <Panel title={me.user.name}>
+        <p>{me.user.email}{me.user.isAdmin && ' · administrator'}</p>
+        <ul className="mt-2 list-disc pl-6">
+          {me.memberships.map((m) => <li key={m.projectId}>{m.projectName}: {roleLabels[m.role]}</li>)}
+        </ul>
+      </Panel>
+      <Panel title="Change password">
+        <form onSubmit={onSubmit} className="max-w-md space-y-4" noValidate>
+          {message && <Alert tone={message.tone}>{message.text}</Alert>}
+          <TextField label="Current password" type="password" autoComplete="current-password" {...register('currentPassword')} error={formState.errors.currentPassword?.message} />
+          <TextField label="New password" type="password" autoComplete="new-password" {...register('newPassword')} error={formState.errors.newPassword?.message} />
+          <Button type="submit" disabled={formState.isSubmitting}>Change password</Button>
+        </form>
+      </Panel>
+    </Page>
+  );
+}

@@ -1,0 +1,50 @@
+import { count } from 'drizzle-orm';
+import { drizzle } from 'drizzle-orm/node-postgres';
+import pg from 'pg';
+import { afterAll, describe, expect, it } from 'vitest';
+import { runMigrations } from '../../server/db/migrate';
+import * as schema from '../../server/db/schema';
+import { seedDemo } from '../../server/db/seed-demo';
+import { uniq } from '../support/fixtures';
+
+/** A separate, empty database on the test server, so the demo load can be counted exactly. */
+const dbName = uniq('kw_empty').replace('-', '_');
+const baseUrl = new URL(process.env.DATABASE_URL!);
+const adminClient = new pg.Client({ connectionString: process.env.DATABASE_URL });
+const emptyUrl = Object.assign(new URL(baseUrl), { pathname: `/${dbName}` }).toString();
+let pool: pg.Pool | undefined;
+
+afterAll(async () => {
+  await pool?.end();
+  await adminClient.query(`drop database if exists ${dbName} with (force)`);
+  await adminClient.end();
+});
+
+describe('database', () => {
+  it('migrations apply to an empty database, and again without change', async () => {
+    await adminClient.connect();
+    await adminClient.query(`create database ${dbName}`);
+    await runMigrations(emptyUrl);
+    await runMigrations(emptyUrl);
+    pool = new pg.Pool({ connectionString: emptyUrl });
+    const tables = await pool.query(`select table_name from information_schema.tables where table_schema = 'public' order by 1`);
+    const names = tables.rows.map((r) => r.table_name);
+    for (const t of ['users', 'projects', 'memberships', 'sessions', 'audit_log', 'outbox']) expect(names).toContain(t);
+  });
+
+  it('the demo load is idempotent: a second load neither duplicates nor wipes', async () => {
+    const db = drizzle(pool!, { schema, casing: 'snake_case' });
+    const counts = async () => ({
+      users: (await db.select({ n: count() }).from(schema.users))[0].n,
+      projects: (await db.select({ n: count() }).from(schema.projects))[0].n,
+      memberships: (await db.select({ n: count() }).from(schema.memberships))[0].n,
+    });
+    const first = await seedDemo(db);
+    expect(first.created).toBe(true);
+    const afterFirst = await counts();
+    expect(afterFirst).toEqual({ users: 5, projects: 1, memberships: 4 });
+    const second = await seedDemo(db);
+    expect(second).toEqual({ projectId: first.projectId, created: false });
+    expect(await counts()).toEqual(afterFirst);
+  });
+});

@@ -1,0 +1,25 @@
+/** Headless Chromium from Debian's package, driven by playwright-core; and the app served from dist/. */
+import type { Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { chromium, type Browser } from 'playwright-core';
+import { createApp } from '../../server/app';
+import { ensureClientBuilt } from '../../server/devenv/client-build';
+
+export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+
+export function launchBrowser(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: CHROMIUM,
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
+      '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+}
+
+/** Builds the client if stale and serves it with the API on a free port. */
+export async function serveApp(): Promise<{ url: string; close: () => Promise<void> }> {
+  ensureClientBuilt('.');
+  const server: Server = createApp({ clientDir: 'dist' }).listen(0, '127.0.0.1');
+  await new Promise<void>((resolve) => server.once('listening', resolve));
+  const { port } = server.address() as AddressInfo;
+  return { url: `http://127.0.0.1:${port}`, close: () => new Promise((resolve) => server.close(() => resolve())) };
+}

@@ -1,0 +1,25 @@
+/// <reference types="vitest/config" />
+import { defineConfig } from 'vite';
+import react from '@vitejs/plugin-react';
+import tailwindcss from '@tailwindcss/vite';
+
+const apiPort = Number(process.env.PORT ?? 3000);
+
+export default defineConfig({
+  plugins: [react(), tailwindcss()],
+  server: {
+    host: '127.0.0.1',
+    port: 5173,
+    proxy: { '/api': `http://127.0.0.1:${apiPort}` },
+  },
+  build: { outDir: 'dist', emptyOutDir: true, chunkSizeWarningLimit: 700 },
+  test: {
+    include: ['tests/**/*.test.ts'],
+    globalSetup: ['tests/support/global-setup.ts'],
+    setupFiles: ['tests/support/setup-env.ts'],
+    reporters: ['default', './tests/support/totals-reporter.ts'],
+    testTimeout: 30_000,
+    hookTimeout: 120_000,
+    pool: 'forks',
+  },
+});
