@@ -1,0 +1,202 @@
+/**
+ * Rolled distance of disc cutters (DOMAIN.md §1): per cutterhead revolution a disc at track
+ * radius r rolls 2·π·r (the helix of pitch p is longer by a negligible amount). Revolutions come
+ * from the advance log when measured, otherwise from advance / penetration.
+ */
+import { splitChainageBySection, type GeologySection } from './geology';
+
+/** One stroke (or ring) of the advance log. */
+export interface Stroke {
+  id: string;
+  ringNumber: number;
+  chainageStartM: number;
+  chainageEndM: number;
+  /** Measured cutterhead revolutions over the stroke, null when the log has none. */
+  revolutions: number | null;
+  penetrationMmPerRev: number | null;
+  /** ISO 8601 with an offset or Z. */
+  startTime: string;
+  endTime: string;
+}
+
+export interface CutterheadPosition {
+  id: string;
+  trackRadiusMm: number;
+  /**
+   * 2 for twin centre discs on one hub. Not a multiplier: each disc on the hub rolls the whole
+   * track, and every rolled distance here is per disc.
+   */
+  discsPerPosition: 1 | 2;
+}
+
+export type StrokeErrorReason =
+  | 'invalid_chainage'
+  | 'invalid_time'
+  | 'invalid_revolutions'
+  /** Neither measured revolutions nor a positive penetration: the rolled distance is unknown, not zero. */
+  | 'no_revolutions';
+
+export interface StrokeError {
+  strokeId: string;
+  ringNumber: number;
+  reason: StrokeErrorReason;
+}
+
+export type StrokeRevolutions =
+  | { revolutions: number; source: 'measured' | 'penetration' }
+  | { error: StrokeErrorReason };
+
+/** Distance per disc of one position in one ground type over one stroke, in km. */
+export interface StrokeRolledKm {
+  strokeId: string;
+  positionId: string;
+  /** Null for unknown ground (outside every geology section). */
+  groundTypeId: string | null;
+  rolledKm: number;
+}
+
+/**
+ * The time a serial (one cutter) spent at a position. A change is made between strokes; for a
+ * change made after stroke S, use S.endTime. A stroke counts in the period when
+ * fromTime ≤ its startTime < toTime.
+ */
+export interface FittedPeriod {
+  id: string;
+  positionId: string;
+  /** ISO 8601 with an offset or Z. */
+  fromTime: string;
+  /** Null while the cutter is still fitted. */
+  toTime: string | null;
+}
+
+/** Distance per disc rolled in one ground type during a fitted period, in km. */
+export interface PeriodRolledKm {
+  periodId: string;
+  groundTypeId: string | null;
+  rolledKm: number;
+}
+
+const isoWithOffset = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:\d{2})$/;
+
+/** Milliseconds since the epoch of an ISO 8601 time that names its offset; null otherwise (a bare local time is ambiguous). */
+function isoTimeMs(iso: string): number | null {
+  const ms = isoWithOffset.test(iso) ? Date.parse(iso) : NaN;
+  return Number.isNaN(ms) ? null : ms;
+}
+
+function requireTimeMs(iso: string, what: string): number {
+  const ms = isoTimeMs(iso);
+  if (ms === null) throw new RangeError(`${what}: not an ISO 8601 time with offset: ${iso}`);
+  return ms;
+}
+
+/** Distance rolled per cutterhead revolution by a disc at track radius `trackRadiusM` (m), in m: 2·π·r. */
+export function rolledMPerRevolution(trackRadiusM: number): number {
+  return 2 * Math.PI * trackRadiusM;
+}
+
+/** Distance rolled by a disc at track radius `trackRadiusM` (m) over `revolutions` cutterhead revolutions, in km. */
+export function rolledKm(trackRadiusM: number, revolutions: number): number {
+  return (rolledMPerRevolution(trackRadiusM) * revolutions) / 1000;
+}
+
+/** Metres rolled by a disc at track radius `trackRadiusM` (m) per metre of advance at penetration `penetrationMmPerRev` (mm/rev). */
+export function rolledMPerAdvanceM(trackRadiusM: number, penetrationMmPerRev: number): number {
+  return (rolledMPerRevolution(trackRadiusM) * 1000) / penetrationMmPerRev;
+}
+
+/** Cutterhead revolutions over a stroke: the measured count when logged, else advance (mm) / penetration (mm/rev). */
+export function strokeRevolutions(stroke: Stroke): StrokeRevolutions {
+  if (!Number.isFinite(stroke.chainageStartM) || !Number.isFinite(stroke.chainageEndM)) return { error: 'invalid_chainage' };
+  if (stroke.revolutions !== null) {
+    if (!Number.isFinite(stroke.revolutions) || stroke.revolutions < 0) return { error: 'invalid_revolutions' };
+    return { revolutions: stroke.revolutions, source: 'measured' };
+  }
+  const p = stroke.penetrationMmPerRev;
+  if (p === null || !Number.isFinite(p) || p <= 0) return { error: 'no_revolutions' };
+  const advanceMm = Math.abs(stroke.chainageEndM - stroke.chainageStartM) * 1000;
+  return { revolutions: advanceMm / p, source: 'penetration' };
+}
+
+/**
+ * Distance rolled per disc (km) by every position over every stroke, split by ground type. A stroke
+ * crossing section boundaries shares its revolutions among the pieces in proportion to the advance
+ * in each (revolutions spread evenly along the advance); a stroke without advance puts them all in
+ * the ground at its chainage. Strokes that cannot be computed are listed in `errors` and give no rows.
+ */
+export function rolledKmByStroke(
+  strokes: readonly Stroke[],
+  positions: readonly CutterheadPosition[],
+  sections: readonly GeologySection[],
+): { rows: StrokeRolledKm[]; errors: StrokeError[] } {
+  for (const p of positions) {
+    if (!(Number.isFinite(p.trackRadiusMm) && p.trackRadiusMm > 0)) throw new RangeError(`Position ${p.id}: track radius must be > 0 mm`);
+  }
+  const rows: StrokeRolledKm[] = [];
+  const errors: StrokeError[] = [];
+  for (const stroke of strokes) {
+    const revs = strokeRevolutions(stroke);
+    const startMs = isoTimeMs(stroke.startTime);
+    const endMs = isoTimeMs(stroke.endTime);
+    if ('error' in revs || startMs === null || endMs === null || endMs < startMs) {
+      errors.push({ strokeId: stroke.id, ringNumber: stroke.ringNumber, reason: 'error' in revs ? revs.error : 'invalid_time' });
+      continue;
+    }
+    const pieces = splitChainageBySection(sections, stroke.chainageStartM, stroke.chainageEndM);
+    const advanceM = Math.abs(stroke.chainageEndM - stroke.chainageStartM);
+    const revsByGround = new Map<string | null, number>();
+    for (const piece of pieces) {
+      const share = advanceM > 0 ? piece.lengthM / advanceM : 1;
+      revsByGround.set(piece.groundTypeId, (revsByGround.get(piece.groundTypeId) ?? 0) + revs.revolutions * share);
+    }
+    for (const position of positions) {
+      for (const [groundTypeId, groundRevs] of revsByGround) {
+        rows.push({ strokeId: stroke.id, positionId: position.id, groundTypeId, rolledKm: rolledKm(position.trackRadiusMm / 1000, groundRevs) });
+      }
+    }
+  }
+  return { rows, errors };
+}
+
+/**
+ * Rolled km per disc in each ground type for each fitted period: `previous` totals plus the rows of
+ * `strokes` that fall in each period at the row's position. For a full recompute pass every stroke
+ * and no previous totals; when strokes are only appended, pass the new strokes, their rows and the
+ * stored totals, and the result equals the full recompute.
+ */
+export function sumRolledKmByPeriod(
+  periods: readonly FittedPeriod[],
+  strokes: readonly Stroke[],
+  rows: readonly StrokeRolledKm[],
+  previous: readonly PeriodRolledKm[] = [],
+): PeriodRolledKm[] {
+  const totals = new Map<string, Map<string | null, number>>();
+  const add = (periodId: string, groundTypeId: string | null, km: number) => {
+    const byGround = totals.get(periodId) ?? new Map<string | null, number>();
+    byGround.set(groundTypeId, (byGround.get(groundTypeId) ?? 0) + km);
+    totals.set(periodId, byGround);
+  };
+  for (const t of previous) add(t.periodId, t.groundTypeId, t.rolledKm);
+
+  const windowsByPosition = new Map<string, { id: string; fromMs: number; toMs: number }[]>();
+  for (const p of periods) {
+    const window = {
+      id: p.id,
+      fromMs: requireTimeMs(p.fromTime, `Period ${p.id}`),
+      toMs: p.toTime === null ? Infinity : requireTimeMs(p.toTime, `Period ${p.id}`),
+    };
+    windowsByPosition.set(p.positionId, [...(windowsByPosition.get(p.positionId) ?? []), window]);
+  }
+  const startMsByStroke = new Map(strokes.map((s) => [s.id, requireTimeMs(s.startTime, `Stroke ${s.id}`)]));
+
+  for (const row of rows) {
+    const startMs = startMsByStroke.get(row.strokeId);
+    if (startMs === undefined) throw new Error(`Row of stroke ${row.strokeId}, which is not among the strokes given`);
+    for (const w of windowsByPosition.get(row.positionId) ?? []) {
+      if (w.fromMs <= startMs && startMs < w.toMs) add(w.id, row.groundTypeId, row.rolledKm);
+    }
+  }
+  return [...totals].flatMap(([periodId, byGround]) =>
+    [...byGround].map(([groundTypeId, km]) => ({ periodId, groundTypeId, rolledKm: km })),
+  );
+}
