@@ -10,8 +10,12 @@ import { loadUser } from './middleware/auth';
 import { apiNotFound, errorHandler } from './middleware/error';
 import { adminRouter } from './routes/admin';
 import { authRouter } from './routes/auth';
+import { cuttersRouter } from './routes/cutters';
 import { healthRouter } from './routes/health';
+import { photosRouter } from './routes/photos';
+import { positionsRouter } from './routes/positions';
 import { projectsRouter } from './routes/projects';
+import { roundsRouter } from './routes/rounds';
 
 export interface AppOptions {
   /** The built client (`dist/`) to serve beside the API; omitted in API-only tests and `npm run dev`. */
@@ -34,6 +38,10 @@ export function createApp(options: AppOptions = {}): Express {
   api.use('/health', healthRouter);
   api.use('/auth', authRouter);
   api.use('/projects', projectsRouter);
+  api.use('/projects/:projectId/positions', positionsRouter);
+  api.use('/projects/:projectId/cutters', cuttersRouter);
+  api.use('/projects/:projectId/rounds', roundsRouter);
+  api.use('/projects/:projectId/photos', photosRouter);
   api.use('/admin', adminRouter);
   api.use(apiNotFound);
   app.use('/api', api);

@@ -15,6 +15,15 @@ export const roleLabels: Record<ProjectRole, string> = {
  */
 export const permissions = {
   'project.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+  /** Cutterhead layout. */
+  'layout.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+  'layout.edit': ['planner'],
+  /** Cutters by serial: receive into store, workshop rebuilds, scrapping. */
+  'cutters.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+  'cutters.edit': ['fitter', 'planner'],
+  /** Inspection rounds at the face, and their photos. */
+  'rounds.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+  'rounds.record': ['fitter', 'planner'],
 } as const satisfies Record<string, readonly ProjectRole[]>;
 
 export type Permission = keyof typeof permissions;

@@ -2,6 +2,7 @@ import { sql } from 'drizzle-orm';
 import {
   bigserial, boolean, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core';
+import { cutterStatuses, positionClasses } from '../../shared/cutters';
 import { projectRoles } from '../../shared/roles';
 
 const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow();
@@ -34,6 +35,8 @@ export const projects = pgTable('projects', {
   driveDirection: driveDirectionEnum().notNull().default('increasing'),
   siteTimeZone: text().notNull(),
   units: text().notNull().default('metric'),
+  /** Length of one ring (m), to turn chainage into ring numbers. */
+  ringLengthM: doublePrecision().notNull().default(1.5),
   createdAt: createdAt(),
   updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
 }, (t) => [uniqueIndex('projects_name_key').on(t.name)]);
@@ -116,3 +119,130 @@ export const caughtMail = pgTable('caught_mail', {
   textBody: text().notNull(),
   htmlBody: text(),
 }, (t) => [index('caught_mail_received_idx').on(t.receivedAt)]);
+
+export const positionClassEnum = pgEnum('position_class', positionClasses);
+export const cutterStatusEnum = pgEnum('cutter_status', cutterStatuses);
+export const entryActionEnum = pgEnum('entry_action', ['none', 'changed']);
+
+/** The places on the cutterhead where a disc cutter is mounted. */
+export const positions = pgTable('positions', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  number: integer().notNull(),
+  trackRadiusMm: doublePrecision().notNull(),
+  positionClass: positionClassEnum().notNull(),
+  discSizeIn: doublePrecision().notNull(),
+  /** Tilt of a gauge disc from the tunnel axis, degrees; null elsewhere. */
+  tiltDeg: doublePrecision(),
+  wearLimitMm: doublePrecision().notNull(),
+  /** Centre positions often carry two discs on one hub. */
+  twinDisc: boolean().notNull().default(false),
+  /** Angle on the cutterhead picture, degrees; null = laid out evenly. */
+  angleDeg: doublePrecision(),
+  createdAt: createdAt(),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [uniqueIndex('positions_project_number_key').on(t.projectId, t.number)]);
+
+/** Every disc cutter assembly, by serial number. */
+export const cutters = pgTable('cutters', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  serial: text().notNull(),
+  discSizeIn: doublePrecision().notNull(),
+  status: cutterStatusEnum().notNull().default('in_store'),
+  rebuildCount: integer().notNull().default(0),
+  notes: text().notNull().default(''),
+  createdAt: createdAt(),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [uniqueIndex('cutters_project_serial_key').on(t.projectId, t.serial), index('cutters_status_idx').on(t.projectId, t.status)]);
+
+/**
+ * A fitted period: serial S sat on position P from … to …. The partial unique indexes make it
+ * impossible to fit one serial in two places, or two serials on one position, at once.
+ */
+export const fittings = pgTable('fittings', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  cutterId: uuid().notNull().references(() => cutters.id),
+  positionId: uuid().notNull().references(() => positions.id),
+  fittedAt: timestamp({ withTimezone: true }).notNull(),
+  fittedChainageM: doublePrecision().notNull(),
+  fittedRing: integer(),
+  removedAt: timestamp({ withTimezone: true }),
+  removedChainageM: doublePrecision(),
+  removedRing: integer(),
+  removalReason: text(),
+  removalConditions: text().array(),
+}, (t) => [
+  uniqueIndex('fittings_one_place_per_cutter').on(t.cutterId).where(sql`removed_at is null`),
+  uniqueIndex('fittings_one_cutter_per_position').on(t.positionId).where(sql`removed_at is null`),
+  index('fittings_position_idx').on(t.positionId, t.fittedAt),
+]);
+
+/** The life of a serial: received, fitted, removed, rebuilt, returned to store, scrapped. */
+export const cutterEvents = pgTable('cutter_events', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  cutterId: uuid().notNull().references(() => cutters.id, { onDelete: 'cascade' }),
+  at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  kind: text().notNull(),
+  positionId: uuid().references(() => positions.id),
+  details: jsonb().notNull().default({}),
+  userId: uuid().references(() => users.id, { onDelete: 'set null' }),
+}, (t) => [index('cutter_events_cutter_idx').on(t.cutterId, t.at)]);
+
+/** An inspection round during a stop: where the machine stands, who walked the positions. */
+export const inspectionRounds = pgTable('inspection_rounds', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  startedAt: timestamp({ withTimezone: true }).notNull(),
+  chainageM: doublePrecision().notNull(),
+  ringNumber: integer(),
+  crew: text().notNull().default(''),
+  notes: text().notNull().default(''),
+  closedAt: timestamp({ withTimezone: true }),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+}, (t) => [index('inspection_rounds_project_idx').on(t.projectId, t.startedAt)]);
+
+/** What the fitter recorded for one position in one round. `clientKey` makes resubmission harmless. */
+export const inspectionEntries = pgTable('inspection_entries', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  roundId: uuid().notNull().references(() => inspectionRounds.id, { onDelete: 'cascade' }),
+  positionId: uuid().notNull().references(() => positions.id),
+  clientKey: uuid().notNull(),
+  /** The fitted period that was measured (the disc on the position when the fitter came). */
+  fittingId: uuid().references(() => fittings.id),
+  /** Radial ring wear, mm, one decimal; null = not measured. */
+  wearMm: doublePrecision(),
+  conditions: text().array().notNull().default(sql`'{}'::text[]`),
+  action: entryActionEnum().notNull().default('none'),
+  removedCutterId: uuid().references(() => cutters.id),
+  fittedCutterId: uuid().references(() => cutters.id),
+  changeReason: text(),
+  note: text().notNull().default(''),
+  /** The fitter confirmed a lower wear than last time as a correction (audited). */
+  remeasured: boolean().notNull().default(false),
+  recordedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  recordedBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [
+  uniqueIndex('inspection_entries_client_key').on(t.projectId, t.clientKey),
+  uniqueIndex('inspection_entries_round_position').on(t.roundId, t.positionId),
+  index('inspection_entries_fitting_idx').on(t.fittingId),
+]);
+
+/** Photos of a disc, stored outside the web root under generated names. */
+export const photos = pgTable('photos', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  entryId: uuid().notNull().references(() => inspectionEntries.id, { onDelete: 'cascade' }),
+  clientKey: uuid().notNull(),
+  storedName: text().notNull(),
+  mimeType: text().notNull(),
+  sizeBytes: integer().notNull(),
+  originalName: text().notNull().default(''),
+  uploadedBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('photos_client_key').on(t.projectId, t.clientKey), index('photos_entry_idx').on(t.entryId)]);

@@ -24,7 +24,12 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
     res.status(err.status).json(body(err.message, err.issues));
     return;
   }
-  const e = err as { type?: string; status?: number; statusCode?: number };
+  const e = err as { type?: string; status?: number; statusCode?: number; code?: string; cause?: { code?: string } };
+  // A unique index refused a row saved at the same moment by someone else (e.g. a serial fitted twice).
+  if (e?.code === '23505' || e?.cause?.code === '23505') {
+    res.status(409).json(body('That conflicts with a record saved at the same moment. Reload and try again.'));
+    return;
+  }
   if (e?.type === 'entity.parse.failed') {
     res.status(400).json(body('The request body is not valid JSON.'));
     return;

@@ -21,6 +21,11 @@ export const projectInputSchema = z.object({
   startChainageM: z.coerce.number({ message: 'Enter the start chainage in metres.' }).finite(),
   driveDirection: z.enum(driveDirections, { message: 'Choose whether chainage increases or decreases as the machine advances.' }),
   siteTimeZone: z.string().refine(isTimeZone, 'Choose a time zone from the list, like Europe/Zurich.'),
+  ringLengthM: z.coerce
+    .number({ message: 'Enter the ring length in metres.' })
+    .min(0.3, 'The ring length must be at least 0.3 m.')
+    .max(5, 'The ring length must be at most 5 m.')
+    .default(1.5),
   units: z.literal('metric', { message: 'Only metric units are supported.' }).default('metric'),
 });
 export type ProjectInput = z.infer<typeof projectInputSchema>;

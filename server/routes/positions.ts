@@ -1,0 +1,185 @@
+import { and, asc, eq, sql } from 'drizzle-orm';
+import { Router } from 'express';
+import { parse } from 'csv-parse/sync';
+import { layoutCsvInputSchema, layoutInputSchema, positionInputSchema, type PositionInput } from '../../shared/schemas/cutterhead';
+import { db } from '../db/client';
+import { cutters, fittings, inspectionEntries, photos, positions, projects } from '../db/schema';
+import { requireProject, requireUser } from '../middleware/auth';
+import { audit } from '../lib/audit';
+import { badRequest, notFound } from '../lib/http-error';
+import { idParam } from '../lib/params';
+
+export const positionsRouter = Router({ mergeParams: true });
+
+/** Positions with the serial on each now and the last wear measured on that disc. */
+export async function listPositions(projectId: string) {
+  const rows = await db.execute<{
+    id: string; number: number; track_radius_mm: number; position_class: string; disc_size_in: number; tilt_deg: number | null;
+    wear_limit_mm: number; twin_disc: boolean; angle_deg: number | null; fitting_id: string | null; serial: string | null;
+    cutter_id: string | null; fitted_at: Date | null; fitted_chainage_m: number | null; last_wear_mm: number | null; last_measured_at: Date | null;
+    last_conditions: string[] | null;
+  }>(sql`
+    select p.id, p.number, p.track_radius_mm, p.position_class, p.disc_size_in, p.tilt_deg, p.wear_limit_mm, p.twin_disc, p.angle_deg,
+           f.id as fitting_id, c.serial, c.id as cutter_id, f.fitted_at, f.fitted_chainage_m,
+           w.wear_mm as last_wear_mm, w.recorded_at as last_measured_at, w.conditions as last_conditions
+    from positions p
+    left join fittings f on f.position_id = p.id and f.removed_at is null
+    left join cutters c on c.id = f.cutter_id
+    left join lateral (
+      select e.wear_mm, e.recorded_at, e.conditions from inspection_entries e
+      join inspection_rounds r on r.id = e.round_id
+      where e.fitting_id = f.id and e.wear_mm is not null and e.action = 'none'
+      order by r.started_at desc, e.recorded_at desc limit 1
+    ) w on true
+    where p.project_id = ${projectId}
+    order by p.number`);
+  return rows.rows.map((r) => ({
+    id: r.id,
+    number: r.number,
+    trackRadiusMm: r.track_radius_mm,
+    positionClass: r.position_class,
+    discSizeIn: r.disc_size_in,
+    tiltDeg: r.tilt_deg,
+    wearLimitMm: r.wear_limit_mm,
+    twinDisc: r.twin_disc,
+    angleDeg: r.angle_deg,
+    current: r.fitting_id
+      ? { fittingId: r.fitting_id, cutterId: r.cutter_id, serial: r.serial, fittedAt: r.fitted_at, fittedChainageM: r.fitted_chainage_m }
+      : null,
+    lastWearMm: r.last_wear_mm,
+    lastMeasuredAt: r.last_measured_at,
+    lastConditions: r.last_conditions ?? [],
+  }));
+}
+
+positionsRouter.get('/', requireProject('layout.read'), async (req, res) => {
+  res.json(await listPositions(idParam(req.params, 'projectId', 'That project')));
+});
+
+/** Checks a whole layout against the drive: unique numbers, radii inside the bore. Returns issues by row. */
+function layoutIssues(list: PositionInput[], excavatedDiameterM: number, rowLabel: (i: number) => string) {
+  const issues: { path: string; message: string }[] = [];
+  const maxRadiusMm = (excavatedDiameterM * 1000) / 2;
+  const seen = new Map<number, number>();
+  list.forEach((p, i) => {
+    const first = seen.get(p.number);
+    if (first !== undefined) issues.push({ path: `${rowLabel(i)}.number`, message: `Position ${p.number} appears twice (also ${rowLabel(first)}).` });
+    else seen.set(p.number, i);
+    if (p.trackRadiusMm > maxRadiusMm) {
+      issues.push({ path: `${rowLabel(i)}.trackRadiusMm`, message: `Track radius ${p.trackRadiusMm} mm is beyond the excavated radius (${maxRadiusMm} mm).` });
+    }
+  });
+  return issues;
+}
+
+/** Saves the layout (create or update by position number) in one transaction; wear-limit changes are audited. */
+async function saveLayout(projectId: string, userId: string, list: PositionInput[], rowLabel: (i: number) => string) {
+  const [project] = await db.select().from(projects).where(eq(projects.id, projectId));
+  const issues = layoutIssues(list, project.excavatedDiameterM, rowLabel);
+  if (issues.length > 0) throw badRequest(`The layout has ${issues.length} problem(s); nothing was saved.`, issues);
+  return db.transaction(async (tx) => {
+    const existing = await tx.select().from(positions).where(eq(positions.projectId, projectId));
+    const byNumber = new Map(existing.map((p) => [p.number, p]));
+    let created = 0;
+    let updated = 0;
+    for (const p of list) {
+      const before = byNumber.get(p.number);
+      if (!before) {
+        const [row] = await tx.insert(positions).values({ ...p, projectId }).returning();
+        await audit(tx, { userId, projectId, entity: 'position', entityId: row.id, action: 'create', after: row });
+        created++;
+        continue;
+      }
+      const changed = (Object.keys(p) as (keyof PositionInput)[]).some((k) => p[k] !== before[k]);
+      if (!changed) continue;
+      const [after] = await tx.update(positions).set({ ...p, updatedAt: sql`now()` }).where(eq(positions.id, before.id)).returning();
+      await audit(tx, {
+        userId, projectId, entity: 'position', entityId: before.id,
+        action: before.wearLimitMm !== p.wearLimitMm ? 'change_wear_limit' : 'update', before, after,
+      });
+      updated++;
+    }
+    return { created, updated, unchanged: list.length - created - updated };
+  });
+}
+
+positionsRouter.put('/', requireProject('layout.edit'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const { positions: list } = layoutInputSchema.parse(req.body);
+  res.json(await saveLayout(projectId, requireUser(req).id, list, (i) => `positions.${i}`));
+});
+
+/** CSV columns: number, track_radius_mm, class, disc_size_in, tilt_deg, wear_limit_mm, twin_disc, angle_deg. */
+const csvColumns: Record<string, keyof PositionInput> = {
+  number: 'number', position: 'number', track_radius_mm: 'trackRadiusMm', radius_mm: 'trackRadiusMm', class: 'positionClass',
+  disc_size_in: 'discSizeIn', disc_size: 'discSizeIn', tilt_deg: 'tiltDeg', wear_limit_mm: 'wearLimitMm', limit_mm: 'wearLimitMm',
+  twin_disc: 'twinDisc', twin: 'twinDisc', angle_deg: 'angleDeg',
+};
+
+positionsRouter.post('/import', requireProject('layout.edit'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const { csv } = layoutCsvInputSchema.parse(req.body);
+  let records: Record<string, string>[];
+  try {
+    records = parse(csv.replace(/^\uFEFF/, ''), { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[^a-z0-9]+/g, '_')), skip_empty_lines: true, trim: true, delimiter: [',', ';', '\t'] });
+  } catch (err) {
+    throw badRequest(`The file is not readable as CSV: ${(err as Error).message}`);
+  }
+  if (records.length === 0) throw badRequest('The file has a header but no positions.');
+  const unknown = Object.keys(records[0]).filter((h) => !(h in csvColumns));
+  if (unknown.length > 0) throw badRequest(`Unknown column(s): ${unknown.join(', ')}. Use: number, track_radius_mm, class, disc_size_in, tilt_deg, wear_limit_mm, twin_disc, angle_deg.`);
+  const issues: { path: string; message: string }[] = [];
+  const list: PositionInput[] = [];
+  records.forEach((rec, i) => {
+    const input: Record<string, unknown> = {};
+    for (const [h, v] of Object.entries(rec)) {
+      const field = csvColumns[h];
+      input[field] = v === '' ? (field === 'tiltDeg' || field === 'angleDeg' ? null : undefined)
+        : field === 'twinDisc' ? /^(1|yes|true|y)$/i.test(v)
+        : field === 'positionClass' ? v.toLowerCase() : v;
+    }
+    const parsed = positionInputSchema.safeParse(input);
+    if (parsed.success) list.push(parsed.data);
+    else for (const iss of parsed.error.issues) issues.push({ path: `row ${i + 2}.${iss.path.join('.')}`, message: iss.message });
+  });
+  if (issues.length > 0) throw badRequest(`${issues.length} problem(s) in the file; nothing was imported.`, issues);
+  res.json(await saveLayout(projectId, requireUser(req).id, list, (i) => `row ${i + 2}`));
+});
+
+/** One position: the serial on it now, every fitted period, every measurement, and photos. */
+positionsRouter.get('/:positionId', requireProject('layout.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const positionId = idParam(req.params, 'positionId', 'That position');
+  const [position] = await db.select().from(positions).where(and(eq(positions.id, positionId), eq(positions.projectId, projectId)));
+  if (!position) throw notFound('That position');
+  const periods = await db
+    .select({ fitting: fittings, serial: cutters.serial })
+    .from(fittings)
+    .innerJoin(cutters, eq(cutters.id, fittings.cutterId))
+    .where(eq(fittings.positionId, positionId))
+    .orderBy(asc(fittings.fittedAt));
+  const measurements = await db.execute(sql`
+    select e.id, e.wear_mm as "wearMm", e.conditions, e.action, e.note, e.remeasured, e.recorded_at as "recordedAt",
+           r.started_at as "roundAt", r.chainage_m as "chainageM", r.ring_number as "ringNumber", e.fitting_id as "fittingId",
+           c.serial, rc.serial as "removedSerial", fc.serial as "fittedSerial", e.change_reason as "changeReason"
+    from inspection_entries e
+    join inspection_rounds r on r.id = e.round_id
+    left join fittings f on f.id = e.fitting_id
+    left join cutters c on c.id = f.cutter_id
+    left join cutters rc on rc.id = e.removed_cutter_id
+    left join cutters fc on fc.id = e.fitted_cutter_id
+    where e.position_id = ${positionId}
+    order by r.started_at, e.recorded_at`);
+  const photoRows = await db
+    .select({ id: photos.id, entryId: photos.entryId, createdAt: photos.createdAt, mimeType: photos.mimeType })
+    .from(photos)
+    .innerJoin(inspectionEntries, eq(inspectionEntries.id, photos.entryId))
+    .where(eq(inspectionEntries.positionId, positionId))
+    .orderBy(asc(photos.createdAt));
+  res.json({
+    position,
+    periods: periods.map((p) => ({ ...p.fitting, serial: p.serial })),
+    measurements: measurements.rows,
+    photos: photoRows,
+  });
+});

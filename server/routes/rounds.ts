@@ -1,0 +1,101 @@
+import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import { Router } from 'express';
+import { entryInputSchema, startRoundInputSchema } from '../../shared/schemas/inspection';
+import { db } from '../db/client';
+import { inspectionEntries, inspectionRounds, photos } from '../db/schema';
+import { requireProject, requireUser } from '../middleware/auth';
+import { audit } from '../lib/audit';
+import { conflict, notFound } from '../lib/http-error';
+import { idParam } from '../lib/params';
+import { entryFlags, recordEntry, startRound } from '../services/inspections';
+import { listPositions } from './positions';
+
+export const roundsRouter = Router({ mergeParams: true });
+
+roundsRouter.get('/', requireProject('rounds.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const rows = await db
+    .select({
+      round: inspectionRounds,
+      entries: sql<number>`(select count(*)::int from inspection_entries e where e.round_id = ${inspectionRounds.id})`,
+      changes: sql<number>`(select count(*)::int from inspection_entries e where e.round_id = ${inspectionRounds.id} and e.action = 'changed')`,
+    })
+    .from(inspectionRounds)
+    .where(eq(inspectionRounds.projectId, projectId))
+    .orderBy(desc(inspectionRounds.startedAt));
+  res.json(rows.map((r) => ({ ...r.round, entryCount: r.entries, changeCount: r.changes })));
+});
+
+roundsRouter.post('/', requireProject('rounds.record'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const input = startRoundInputSchema.parse(req.body);
+  const round = await db.transaction((tx) => startRound(tx, projectId, requireUser(req).id, input));
+  res.status(201).json(round);
+});
+
+/** The round with every position, what was recorded for each, and the walking order of the last round. */
+roundsRouter.get('/:roundId', requireProject('rounds.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const roundId = idParam(req.params, 'roundId', 'That inspection round');
+  const [round] = await db.select().from(inspectionRounds).where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId)));
+  if (!round) throw notFound('That inspection round');
+  const positionList = await listPositions(projectId);
+  const limits = new Map(positionList.map((p) => [p.id, p.wearLimitMm]));
+  const entries = await db.select().from(inspectionEntries).where(eq(inspectionEntries.roundId, roundId)).orderBy(asc(inspectionEntries.recordedAt));
+  const photoRows = await db.select({ id: photos.id, entryId: photos.entryId }).from(photos).innerJoin(inspectionEntries, eq(inspectionEntries.id, photos.entryId)).where(eq(inspectionEntries.roundId, roundId));
+  const [previous] = await db
+    .select({ id: inspectionRounds.id })
+    .from(inspectionRounds)
+    .where(and(eq(inspectionRounds.projectId, projectId), sql`${inspectionRounds.startedAt} < ${round.startedAt}`))
+    .orderBy(desc(inspectionRounds.startedAt))
+    .limit(1);
+  const lastOrder = previous
+    ? (await db.select({ positionId: inspectionEntries.positionId }).from(inspectionEntries).where(eq(inspectionEntries.roundId, previous.id)).orderBy(asc(inspectionEntries.recordedAt))).map((r) => r.positionId)
+    : [];
+  res.json({
+    round,
+    positions: positionList,
+    entries: entries.map((e) => ({ ...e, ...entryFlags(e, limits.get(e.positionId) ?? Infinity), photoIds: photoRows.filter((p) => p.entryId === e.id).map((p) => p.id) })),
+    lastRoundOrder: lastOrder,
+  });
+});
+
+/** One position's entry. Idempotent on clientKey: a queued entry sent again answers 200 and stores nothing new. */
+roundsRouter.post('/:roundId/entries', requireProject('rounds.record'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const roundId = idParam(req.params, 'roundId', 'That inspection round');
+  const input = entryInputSchema.parse(req.body);
+  const result = await db.transaction((tx) => recordEntry(tx, projectId, roundId, requireUser(req).id, input));
+  res.status(result.replayed ? 200 : 201).json(result);
+});
+
+roundsRouter.post('/:roundId/close', requireProject('rounds.record'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const roundId = idParam(req.params, 'roundId', 'That inspection round');
+  const me = requireUser(req);
+  const round = await db.transaction(async (tx) => {
+    const [before] = await tx.select().from(inspectionRounds).where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId))).for('update');
+    if (!before) throw notFound('That inspection round');
+    if (before.closedAt) throw conflict('This round is already closed.');
+    const [after] = await tx.update(inspectionRounds).set({ closedAt: sql`now()` }).where(eq(inspectionRounds.id, roundId)).returning();
+    await audit(tx, { userId: me.id, projectId, entity: 'inspection_round', entityId: roundId, action: 'close', before, after });
+    return after;
+  });
+  res.json(round);
+});
+
+/** Who changed what on the entries of a round (the audit trail of edits after the fact). */
+roundsRouter.get('/:roundId/history', requireProject('rounds.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const roundId = idParam(req.params, 'roundId', 'That inspection round');
+  const rows = await db.execute(sql`
+    select a.at, a.action, a.before, a.after, u.name as "userName", p.number as "positionNumber"
+    from audit_log a
+    join inspection_entries e on e.id::text = a.entity_id
+    join positions p on p.id = e.position_id
+    left join users u on u.id = a.user_id
+    where a.project_id = ${projectId} and a.entity = 'inspection_entry' and e.round_id = ${roundId}
+    order by a.at`);
+  res.json(rows.rows);
+});
+

@@ -1,0 +1,36 @@
+import { z } from 'zod';
+import { cutterStatuses, discConditionKeys } from '../cutters';
+
+export const serialSchema = z
+  .string({ message: 'Enter the serial number.' })
+  .trim()
+  .min(1, 'Enter the serial number.')
+  .max(40, 'A serial number has at most 40 characters.')
+  .regex(/^[A-Za-z0-9][A-Za-z0-9./_-]*$/, 'A serial number uses letters, digits and . / _ - only.');
+
+export const receiveCutterInputSchema = z.object({
+  serial: serialSchema,
+  discSizeIn: z.coerce.number().min(10).max(24),
+  notes: z.string().max(500).default(''),
+});
+export type ReceiveCutterInput = z.infer<typeof receiveCutterInputSchema>;
+
+export const cutterListQuerySchema = z.object({
+  status: z.enum(cutterStatuses).optional(),
+  q: z.string().max(40).optional(),
+});
+
+/** Workshop outcome for a removed cutter: rebuilt (what was renewed) and back in store, or scrapped. */
+export const workshopInputSchema = z.discriminatedUnion('outcome', [
+  z.object({
+    outcome: z.literal('rebuilt'),
+    newRing: z.boolean().default(true),
+    newBearings: z.boolean().default(false),
+    newSeals: z.boolean().default(false),
+    note: z.string().max(500).default(''),
+  }),
+  z.object({ outcome: z.literal('scrapped'), reason: z.string().trim().min(1, 'Say why the cutter is scrapped.').max(500) }),
+]);
+export type WorkshopInput = z.infer<typeof workshopInputSchema>;
+
+export const conditionsSchema = z.array(z.enum(discConditionKeys, { message: 'Unknown condition.' })).max(discConditionKeys.length);

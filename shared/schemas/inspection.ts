@@ -1,0 +1,41 @@
+import { z } from 'zod';
+import { conditionsSchema, serialSchema } from './cutter';
+
+export const startRoundInputSchema = z.object({
+  startedAt: z.iso.datetime({ offset: true, message: 'Give the date and time of the round.' }),
+  chainageM: z.coerce.number({ message: 'Give the chainage where the machine stands, in metres.' }).refine(Number.isFinite),
+  ringNumber: z.coerce.number().int().min(0).nullable().default(null),
+  crew: z.string().trim().max(300).default(''),
+  notes: z.string().max(2000).default(''),
+});
+export type StartRoundInput = z.infer<typeof startRoundInputSchema>;
+
+/** The cutter put on the position: one from the store, or a new serial entered on the spot. */
+const fittedSchema = z.object({ serial: serialSchema, isNew: z.boolean().default(false) });
+
+/** One position in a round. Sent again with the same clientKey it is stored once. */
+export const entryInputSchema = z
+  .object({
+    clientKey: z.uuid({ message: 'clientKey must be a UUID.' }),
+    positionId: z.uuid({ message: 'Choose a position.' }),
+    wearMm: z
+      .number({ message: 'Wear must be a number of millimetres.' })
+      .min(0, 'Wear cannot be negative.')
+      .max(100, 'Wear above 100 mm is not possible; check the value.')
+      .refine((v) => Math.abs(v * 10 - Math.round(v * 10)) < 1e-6, 'Give wear to one decimal, like 12.5.')
+      .nullable(),
+    conditions: conditionsSchema.default([]),
+    action: z.enum(['none', 'changed']).default('none'),
+    /** The serial taken off; defaults to the one Kerfwise has on the position. */
+    removedSerial: serialSchema.nullable().default(null),
+    fitted: fittedSchema.nullable().default(null),
+    changeReason: z.string().trim().max(300).nullable().default(null),
+    note: z.string().max(2000).default(''),
+    /** Confirms a wear lower than the last measurement of the same disc as a correction. */
+    remeasured: z.boolean().default(false),
+    /** When the fitter entered it (offline entries arrive later). */
+    recordedAt: z.iso.datetime({ offset: true }).optional(),
+  })
+  .refine((e) => e.action !== 'changed' || e.fitted !== null, { path: ['fitted'], message: 'A change needs the serial of the cutter put on.' })
+  .refine((e) => e.action !== 'changed' || (e.changeReason ?? '') !== '', { path: ['changeReason'], message: 'Give the reason for the change.' });
+export type EntryInput = z.infer<typeof entryInputSchema>;
