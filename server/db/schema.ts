@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import {
-  bigserial, boolean, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid,
+  bigserial, boolean, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core';
 import { cutterStatuses, positionClasses } from '../../shared/cutters';
 import { projectRoles } from '../../shared/roles';
@@ -246,3 +246,14 @@ export const photos = pgTable('photos', {
   uploadedBy: uuid().references(() => users.id, { onDelete: 'set null' }),
   createdAt: createdAt(),
 }, (t) => [uniqueIndex('photos_client_key').on(t.projectId, t.clientKey), index('photos_entry_idx').on(t.entryId)]);
+
+/**
+ * Every submission of a position entry, by the client's idempotency key. A resent submission finds
+ * its row here and changes nothing; an edit is a new submission of the same entry.
+ */
+export const entrySubmissions = pgTable('entry_submissions', {
+  clientKey: uuid().notNull(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  entryId: uuid().notNull().references(() => inspectionEntries.id, { onDelete: 'cascade' }),
+  createdAt: createdAt(),
+}, (t) => [primaryKey({ columns: [t.projectId, t.clientKey] }), index('entry_submissions_entry_idx').on(t.entryId)]);

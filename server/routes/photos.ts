@@ -4,7 +4,7 @@ import { fileTypeFromBuffer } from 'file-type';
 import multer from 'multer';
 import { z } from 'zod';
 import { db } from '../db/client';
-import { inspectionEntries, photos } from '../db/schema';
+import { entrySubmissions, photos } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, HttpError, notFound } from '../lib/http-error';
@@ -44,7 +44,10 @@ photosRouter.post('/', requireProject('rounds.record'), receivePhoto, async (req
     return;
   }
   if (!req.file) throw badRequest('No photo was attached. Send it in the field "photo".');
-  const [entry] = await db.select({ id: inspectionEntries.id }).from(inspectionEntries).where(and(eq(inspectionEntries.projectId, projectId), eq(inspectionEntries.clientKey, fields.entryClientKey)));
+  const [entry] = await db
+    .select({ id: entrySubmissions.entryId })
+    .from(entrySubmissions)
+    .where(and(eq(entrySubmissions.projectId, projectId), eq(entrySubmissions.clientKey, fields.entryClientKey)));
   if (!entry) throw notFound('The position entry for this photo');
   const detected = await fileTypeFromBuffer(req.file.buffer);
   const extension = detected && allowed.get(detected.mime);
@@ -75,5 +78,6 @@ photosRouter.get('/:photoId', requireProject('rounds.read'), async (req, res) =>
   const [photo] = await db.select().from(photos).where(and(eq(photos.id, photoId), eq(photos.projectId, projectId)));
   if (!photo) throw notFound('That photo');
   res.set({ 'Content-Type': photo.mimeType, 'Cache-Control': 'private, max-age=86400', 'X-Content-Type-Options': 'nosniff' });
-  res.sendFile(storagePath('photos', photo.storedName));
+  // The storage folder may sit under a dot-folder (.data/ by default).
+  res.sendFile(storagePath('photos', photo.storedName), { dotfiles: 'allow' });
 });

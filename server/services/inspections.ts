@@ -7,7 +7,7 @@ import { and, desc, eq, isNull, ne, sql } from 'drizzle-orm';
 import { conditionNeedsChange, type DiscCondition } from '../../shared/cutters';
 import type { EntryInput, StartRoundInput } from '../../shared/schemas/inspection';
 import type { DbOrTx } from '../db/client';
-import { cutterEvents, cutters, fittings, inspectionEntries, inspectionRounds, positions } from '../db/schema';
+import { cutterEvents, cutters, entrySubmissions, fittings, inspectionEntries, inspectionRounds, positions } from '../db/schema';
 import { audit } from '../lib/audit';
 import { conflict, HttpError, notFound } from '../lib/http-error';
 
@@ -38,7 +38,12 @@ export function entryFlags(entry: Pick<Entry, 'wearMm' | 'conditions' | 'action'
  * was stored before — a queued entry sent twice is stored once.
  */
 export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string, userId: string | null, input: EntryInput) {
-  const [replay] = await tx.select().from(inspectionEntries).where(and(eq(inspectionEntries.projectId, projectId), eq(inspectionEntries.clientKey, input.clientKey)));
+  const [replay] = await tx
+    .select({ entry: inspectionEntries })
+    .from(entrySubmissions)
+    .innerJoin(inspectionEntries, eq(inspectionEntries.id, entrySubmissions.entryId))
+    .where(and(eq(entrySubmissions.projectId, projectId), eq(entrySubmissions.clientKey, input.clientKey)))
+    .then((rows) => rows.map((r) => r.entry));
   if (replay) {
     const [pos] = await tx.select().from(positions).where(eq(positions.id, replay.positionId));
     return { entry: replay, replayed: true, ...entryFlags(replay, pos.wearLimitMm) };
@@ -123,6 +128,7 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
       .returning();
     await audit(tx, { userId, projectId, entity: 'inspection_entry', entityId: entry.id, action: 'create', after: entry });
   }
+  await tx.insert(entrySubmissions).values({ projectId, clientKey: input.clientKey, entryId: entry.id });
   return { entry, replayed: false, ...entryFlags(entry, position.wearLimitMm) };
 }
 

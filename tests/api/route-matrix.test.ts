@@ -7,7 +7,12 @@ import type { Express } from 'express';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { projectRoles, type ProjectRole } from '../../shared/roles';
 import { createApp } from '../../server/app';
+import { randomUUID } from 'node:crypto';
+import { db } from '../../server/db/client';
+import { entrySubmissions, inspectionEntries, inspectionRounds, photos } from '../../server/db/schema';
+import { storeFile } from '../../server/lib/storage';
 import { addMember, makeProject, makeUser, signedInAgent } from '../support/fixtures';
+import { makeCutterhead } from '../support/drive-fixtures';
 import { routeTable, type RouteCase, type RouteContext } from './route-table';
 
 const app: Express = createApp();
@@ -34,7 +39,15 @@ beforeAll(async () => {
   const foreign = await makeProject();
   foreignProjectId = foreign.id;
   const other = await makeUser();
-  ctx = { projectId: project.id, otherUserId: other.id };
+  const drive = await makeCutterhead(project.id, 3);
+  const [round] = await db.insert(inspectionRounds).values({ projectId: project.id, startedAt: new Date('2026-11-19T06:00:00Z'), chainageM: 650 }).returning();
+  const [entry] = await db.insert(inspectionEntries).values({ projectId: project.id, roundId: round.id, positionId: drive.positions[1].id, clientKey: randomUUID(), wearMm: 3 }).returning();
+  await db.insert(entrySubmissions).values({ projectId: project.id, clientKey: entry.clientKey, entryId: entry.id });
+  const storedName = await storeFile('photos', 'png', Buffer.from('89504e470d0a1a0a', 'hex'));
+  const [photo] = await db.insert(photos).values({ projectId: project.id, entryId: entry.id, clientKey: randomUUID(), storedName, mimeType: 'image/png', sizeBytes: 8 }).returning();
+  ctx = {
+    projectId: project.id, otherUserId: other.id, positionId: drive.positions[0].id, cutterId: drive.store[0].id, roundId: round.id, photoId: photo.id,
+  };
   agents.set('anonymous', request.agent(app));
   agents.set('admin', await signedInAgent(app, (await makeUser({ isAdmin: true })).email));
   const outsider = await makeUser();
@@ -47,12 +60,14 @@ beforeAll(async () => {
   }
 });
 
-const fill = (path: string, c: RouteContext) => path.replace(':projectId', c.projectId).replace(':otherUserId', c.otherUserId);
+const fill = (path: string, c: RouteContext) =>
+  path.replace(/:(projectId|otherUserId|positionId|cutterId|roundId|photoId)/g, (_, k: keyof RouteContext) => c[k]);
 
 describe.each(routeTable)('$method $path', (route) => {
   it.each(callers)('%s', async (caller) => {
     const agent = agents.get(caller)!;
-    const res = await agent[route.method](fill(route.path, ctx)).send(route.body?.(ctx) as object);
+    const c = { ...ctx, ...(await route.prepare?.(ctx)) };
+    const res = await agent[route.method](fill(route.path, c)).send(route.body?.(c) as object);
     expect(res.status, JSON.stringify(res.body)).toBe(expectedStatus(route, caller));
   });
 

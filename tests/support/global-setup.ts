@@ -17,9 +17,11 @@ export default async function setup(project: TestProject) {
   delete process.env.SMTP_URL;
   if (process.env.TEST_DATABASE_URL) process.env.DATABASE_URL = process.env.TEST_DATABASE_URL;
   else delete process.env.DATABASE_URL;
+  // KERFWISE_TEST_PG_PORT gives a run its own cluster, so two runs on one machine do not collide.
+  const port = Number(process.env.KERFWISE_TEST_PG_PORT ?? 54330);
   const stack = await bringUpLocalStack({
-    dataDir: '.data/pg-test',
-    pgPort: 54330,
+    dataDir: port === 54330 ? '.data/pg-test' : `.data/pg-test-${port}`,
+    pgPort: port,
     database: 'kerfwise_test',
     fast: true,
     freshDatabase: true,
