@@ -257,3 +257,73 @@ export const entrySubmissions = pgTable('entry_submissions', {
   entryId: uuid().notNull().references(() => inspectionEntries.id, { onDelete: 'cascade' }),
   createdAt: createdAt(),
 }, (t) => [primaryKey({ columns: [t.projectId, t.clientKey] }), index('entry_submissions_entry_idx').on(t.entryId)]);
+
+/** Ground types of the drive, with the abrasivity that drives the wear prior. */
+export const groundTypes = pgTable('ground_types', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  description: text().notNull().default(''),
+  ucsMpa: doublePrecision(),
+  /** Cerchar Abrasivity Index. */
+  cai: doublePrecision(),
+  quartzPct: doublePrecision(),
+  notes: text().notNull().default(''),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('ground_types_project_name_key').on(t.projectId, t.name)]);
+
+/** The geology long section: ground, water head and whether a stop is allowed, along chainage. */
+export const geologySections = pgTable('geology_sections', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  chainageFromM: doublePrecision().notNull(),
+  chainageToM: doublePrecision().notNull(),
+  groundTypeId: uuid().notNull().references(() => groundTypes.id),
+  /** Groundwater head above the tunnel axis, m. */
+  waterHeadM: doublePrecision().notNull().default(0),
+  stopAllowed: boolean().notNull().default(true),
+  stopReason: text().notNull().default(''),
+}, (t) => [index('geology_sections_project_idx').on(t.projectId, t.chainageFromM)]);
+
+/** The advance log: one row per ring or stroke, as exported by the machine's data system. */
+export const strokes = pgTable('strokes', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  ringNumber: integer().notNull(),
+  startTime: timestamp({ withTimezone: true }).notNull(),
+  endTime: timestamp({ withTimezone: true }).notNull(),
+  chainageStartM: doublePrecision().notNull(),
+  chainageEndM: doublePrecision().notNull(),
+  revolutions: doublePrecision(),
+  penetrationMmPerRev: doublePrecision(),
+  rpm: doublePrecision(),
+  thrustKn: doublePrecision(),
+  torqueKnm: doublePrecision(),
+  extra: jsonb().notNull().default({}),
+}, (t) => [uniqueIndex('strokes_project_ring_key').on(t.projectId, t.ringNumber), index('strokes_project_time_idx').on(t.projectId, t.startTime)]);
+
+/** The column mapping a planner chose once per project and kind of import. */
+export const importMappings = pgTable('import_mappings', {
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  kind: text().notNull(),
+  mapping: jsonb().notNull(),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [primaryKey({ columns: [t.projectId, t.kind] })]);
+
+/**
+ * Distance rolled per disc during each fitted period, per ground type ('unknown' outside every
+ * section), kept up to date on import, layout and geology changes (see services/rolled-distance.ts).
+ */
+export const fittingRolledKm = pgTable('fitting_rolled_km', {
+  fittingId: uuid().notNull().references(() => fittings.id, { onDelete: 'cascade' }),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  groundKey: text().notNull(),
+  rolledKm: doublePrecision().notNull(),
+}, (t) => [primaryKey({ columns: [t.fittingId, t.groundKey] }), index('fitting_rolled_km_project_idx').on(t.projectId)]);
+
+/** Up to which ring the rolled distances include, so new strokes add without a full recompute. */
+export const rolledDistanceState = pgTable('rolled_distance_state', {
+  projectId: uuid().primaryKey().references(() => projects.id, { onDelete: 'cascade' }),
+  throughRing: integer().notNull(),
+  computedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+});

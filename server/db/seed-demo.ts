@@ -1,5 +1,6 @@
 /**
- * The demo drive: an invented hard-rock headrace tunnel, its machine and one user per role.
+ * The demo drive: an invented hard-rock headrace tunnel, its machine, one user per role, and six
+ * months of simulated history (demo/simulate-drive.ts).
  * Loading is idempotent — what exists is left as it is (a second start neither duplicates nor
  * wipes anything), what is missing is added. Everything here is invented for the demo.
  */
@@ -7,7 +8,8 @@ import { eq } from 'drizzle-orm';
 import type { ProjectRole } from '../../shared/roles';
 import { hashPassword } from '../lib/password';
 import type { Db } from './client';
-import { memberships, projects, users } from './schema';
+import { loadDemoDrive } from './demo/load-drive';
+import { memberships, positions, projects, users } from './schema';
 
 export const DEMO_PASSWORD = process.env.DEMO_PASSWORD ?? 'cutterhead-demo';
 
@@ -39,16 +41,21 @@ export async function seedDemo(db: Db): Promise<{ projectId: string; created: bo
       created = true;
     }
     const passwordHash = await hashPassword(DEMO_PASSWORD);
+    let fitterId: string | null = null;
     for (const u of demoUsers) {
       const [user] = await tx
         .insert(users)
         .values({ email: u.email, name: u.name, isAdmin: u.isAdmin, passwordHash })
         .onConflictDoUpdate({ target: users.email, set: { email: u.email } })
         .returning({ id: users.id });
+      if (u.role === 'fitter') fitterId = user.id;
       if (u.role) {
         await tx.insert(memberships).values({ userId: user.id, projectId: project.id, role: u.role }).onConflictDoNothing();
       }
     }
+    // The drive's history goes in once, into a project without a cutterhead yet.
+    const [anyPosition] = await tx.select({ id: positions.id }).from(positions).where(eq(positions.projectId, project.id)).limit(1);
+    if (!anyPosition) await loadDemoDrive(tx, project.id, fitterId);
     return { projectId: project.id, created };
   });
 }

@@ -162,7 +162,7 @@ function sampleLines(text: string, isWholeFile: boolean): string[] {
     }
   }
   if (lines.length < SAMPLE_LINES && start < text.length && (isWholeFile || lines.length === 0)) lines.push(text.slice(start));
-  return lines.filter((line) => line.trim() !== '');
+  return lines.filter((line) => /[^,;\t"\s]/.test(line));
 }
 
 /** Fields of one line split at `delimiter` outside double quotes, quotes removed. */
@@ -373,6 +373,7 @@ function planColumns<F extends string>(
     if (first === undefined) firstIndex.set(key, i);
     else log.error({ row: 1, column: header, message: `Two columns are named '${header}' (columns ${first + 1} and ${i + 1}). Rename or remove one.` });
   });
+  if (log.errorCount > errorsBefore) return null;
 
   const columns = new Map<F, number>();
   const used = new Set<number>();
@@ -427,8 +428,11 @@ interface TableSpec<F extends string, Row> {
   schema: z.ZodType<Row>;
   /** Checks of one valid row that need the options or earlier rows, in file order. */
   checkRow(row: Row, line: number, report: RowReport<F>): void;
-  /** Checks between all rows without errors, once the file is read. */
-  finish(rows: readonly CsvLineRow<Row>[], report: RowReport<F>): void;
+  /**
+   * Checks between all rows without errors, once the file is read. `allRowsValid` is false when
+   * some rows were left out for errors of their own: gaps are then not worth a warning.
+   */
+  finish(rows: readonly CsvLineRow<Row>[], report: RowReport<F>, allRowsValid: boolean): void;
 }
 
 interface Span<Row> {
@@ -504,7 +508,7 @@ function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLogField, 
       ringLines.set(row.ringNumber, line);
       previous = { line, data: row };
     },
-    finish(rows, report) {
+    finish(rows, report, allRowsValid) {
       const byChainage = rows.map(({ line, data }) => ({ line, row: data, from: Math.min(data.chainageStartM, data.chainageEndM), to: Math.max(data.chainageStartM, data.chainageEndM) }));
       sweepSpans(
         byChainage,
@@ -512,6 +516,7 @@ function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLogField, 
         (later, earlier, from, to) =>
           report.error(later.line, 'chainageStartM', `This stroke overlaps ring ${earlier.row.ringNumber} (line ${earlier.line}) over chainage ${m(from)}–${m(to)} m. Each stretch of tunnel belongs to one stroke.`),
         (before, after) => {
+          if (!allRowsValid) return;
           const [first, second] = before.line < after.line ? [before, after] : [after, before];
           report.warning(second.line, 'chainageStartM', `No stroke covers chainage ${m(before.to)}–${m(after.from)} m (between lines ${first.line} and ${second.line}); the rolled distance over that stretch will be missing.`);
         },
@@ -534,7 +539,7 @@ function geologyTable(): TableSpec<GeologySectionField, GeologySectionRow> {
     requiredColumns: geologySectionRequiredColumns,
     schema: geologySectionRowSchema,
     checkRow: () => undefined,
-    finish(rows, report) {
+    finish(rows, report, allRowsValid) {
       const spans = rows.map(({ line, data }) => ({ line, row: data, from: data.chainageFromM, to: data.chainageToM }));
       sweepSpans(
         spans,
@@ -542,6 +547,7 @@ function geologyTable(): TableSpec<GeologySectionField, GeologySectionRow> {
         (later, earlier, from, to) =>
           report.error(later.line, 'chainageFromM', `This section overlaps the section on line ${earlier.line} (${earlier.row.groundTypeName}, ${m(earlier.from)}–${m(earlier.to)} m) over chainage ${m(from)}–${m(to)} m. Sections must not overlap.`),
         (before, after) =>
+          allRowsValid &&
           report.warning(after.line, 'chainageFromM', `No section covers chainage ${m(before.to)}–${m(after.from)} m (between the sections on lines ${before.line} and ${after.line}); that stretch will count as unknown ground.`),
       );
     },
@@ -587,13 +593,11 @@ async function* utf8Text(sample: Buffer, rest: AsyncGenerator<Buffer>): AsyncGen
   }
 }
 
-function parserIssue(err: CsvError, line: number, headers: string[] | undefined): CsvIssue {
+function syntaxIssue(err: CsvError, line: number, headers: string[] | undefined): CsvIssue {
   const column = typeof err.column === 'number' && headers ? (headers[err.column] ?? '') : '';
   switch (err.code) {
     case 'CSV_QUOTE_NOT_CLOSED':
       return { row: line, column, message: 'A double quote (") opens a value on this line and is never closed, so the rest of the file would read as one value. Close the quote or remove it.' };
-    case 'CSV_INVALID_CLOSING_QUOTE':
-      return { row: line, column, message: 'A quoted value is followed by other characters before the next separator. Put the whole value in quotes and write a quote inside it as "".' };
     case 'CSV_MAX_RECORD_SIZE':
       return { row: line, column, message: `This row is longer than ${MAX_RECORD_CHARS / 1024} KB; check its separators and quotes.` };
     default:
@@ -608,8 +612,10 @@ interface TimeFormatUse {
   column: string;
 }
 
+const rowsCount = (count: number) => (count === 1 ? '1 row' : `${count} rows`);
+
 function describeLines(lines: number[], count: number): string {
-  const shown = lines.join(', ');
+  const shown = `line${count === 1 ? '' : 's'} ${lines.join(', ')}`;
   return count > lines.length ? `${shown} and ${count - lines.length} more` : shown;
 }
 
@@ -667,7 +673,7 @@ async function readCsv<F extends string, Row>(
       if (cell.timeFormat) {
         const use = timeFormats.get(cell.timeFormat) ?? { count: 0, lines: [], column: columnName(info.field) };
         timeFormats.set(cell.timeFormat, use);
-        if (use.lines.at(-1) !== line && use.count < Number.MAX_SAFE_INTEGER) {
+        if (use.lines.at(-1) !== line) {
           if (use.lines.length < 10) use.lines.push(line);
           use.count += 1;
         }
@@ -706,6 +712,9 @@ async function readCsv<F extends string, Row>(
     detected.delimiter = format.delimiter;
     detected.decimalComma = format.decimalComma;
 
+    // A CSV syntax error refuses the file at the line it starts on. Reported through on_skip, not
+    // as a stream error, so the records before it still arrive and the line count stays right.
+    let syntaxError: CsvError | undefined;
     const parser = parse({
       delimiter: format.delimiter,
       info: true,
@@ -713,54 +722,56 @@ async function readCsv<F extends string, Row>(
       relax_quotes: true,
       skip_empty_lines: true,
       max_record_size: MAX_RECORD_CHARS,
+      skip_records_with_error: true,
+      on_skip: (err) => {
+        syntaxError ??= err;
+      },
     });
-    // Errors of either stage end the iteration below; nothing to do in the callback.
+    // A refusal while reading ends the iteration below with that error; nothing to do in the callback.
     pipeline(Readable.from(utf8Text(sample, bytes)), parser, () => undefined);
-    try {
-      for await (const { record, info } of parser as AsyncIterable<{ record: string[]; info: Info }>) {
-        const line = previousEndLine + 1 + (info.empty_lines - previousEmptyLines);
-        previousEndLine = info.lines;
-        previousEmptyLines = info.empty_lines;
-        if (record.every((cell) => cell.trim() === '')) continue;
-        if (plan === undefined) {
-          plan = planColumns(record, table, options.mapping ?? {}, log);
-          if (plan === null) break;
-          detected.mapping = Object.fromEntries([...plan.columns].map(([field, i]) => [field, plan!.headers[i]])) as ColumnMapping<F>;
-          continue;
-        }
-        progress.rowsParsed += 1;
-        if (progress.rowsParsed > maxRows) {
-          throw new FileRefused(fileIssue(`The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`));
-        }
-        readRow(record, line, plan);
+    for await (const { record, info } of parser as AsyncIterable<{ record: string[]; info: Info }>) {
+      if (syntaxError && info.records > Number(syntaxError.records)) break;
+      const line = previousEndLine + 1 + (info.empty_lines - previousEmptyLines);
+      previousEndLine = info.lines;
+      previousEmptyLines = info.empty_lines;
+      if (record.every((cell) => cell.trim() === '')) continue;
+      if (!plan) {
+        plan = planColumns(record, table, options.mapping ?? {}, log);
+        if (!plan) break;
+        detected.mapping = Object.fromEntries([...plan.columns].map(([field, i]) => [field, plan!.headers[i]])) as ColumnMapping<F>;
+        continue;
       }
-    } catch (err) {
-      if (!(err instanceof CsvError)) throw err;
-      const emptyLines = typeof err.empty_lines === 'number' ? err.empty_lines : previousEmptyLines;
-      log.error(parserIssue(err, previousEndLine + 1 + (emptyLines - previousEmptyLines), plan?.headers));
-      refused = true;
+      progress.rowsParsed += 1;
+      if (progress.rowsParsed > maxRows) {
+        throw new FileRefused(fileIssue(`The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`));
+      }
+      readRow(record, line, plan);
+    }
+    if (syntaxError && plan !== null) {
+      const emptyLines = Number(syntaxError.empty_lines ?? previousEmptyLines);
+      throw new FileRefused(syntaxIssue(syntaxError, previousEndLine + 1 + (emptyLines - previousEmptyLines), plan?.headers));
     }
   } catch (err) {
     if (!(err instanceof FileRefused)) throw err;
     log.error(err.issue);
     refused = true;
   } finally {
-    await bytes.return(undefined);
-    // Stop reading at once when the file was refused part way.
+    // Stops reading at once when the file was refused part way (harmless once it has ended).
     source.destroy();
+    await bytes.return(undefined);
   }
   reportProgress();
 
   if (!refused && plan) {
     if (progress.rowsParsed === 0) log.error(fileIssue('The file has column names but no data rows.'));
-    table.finish(rows, report);
+    table.finish(rows, report, log.errorCount === 0);
     const [a, b] = [...timeFormats.entries()];
     if (a && b) {
       const [[majorFormat, major], [minorFormat, minor]] = a[1].count >= b[1].count ? [a, b] : [b, a];
       log.error({
         row: minor.lines[0],
         column: minor.column,
-        message: `Dates in two formats: ${major.count} rows use ${TIME_FORMAT_NAMES[majorFormat]}, ${minor.count} use ${TIME_FORMAT_NAMES[minorFormat]} (lines ${describeLines(minor.lines, minor.count)}). Write every date the same way.`,
+        message: `Dates in two formats: ${rowsCount(major.count)} use ${TIME_FORMAT_NAMES[majorFormat]}, ${rowsCount(minor.count)} ${TIME_FORMAT_NAMES[minorFormat]} (${describeLines(minor.lines, minor.count)}). Write every date the same way.`,
       });
     }
   } else if (!refused && plan === undefined) {

@@ -8,6 +8,7 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { invalidateRolledDistance } from '../services/rolled-distance';
 
 export const positionsRouter = Router({ mergeParams: true });
 
@@ -93,6 +94,8 @@ async function saveLayout(projectId: string, userId: string, list: PositionInput
       const changed = (Object.keys(p) as (keyof PositionInput)[]).some((k) => p[k] !== before[k]);
       if (!changed) continue;
       const [after] = await tx.update(positions).set({ ...p, updatedAt: sql`now()` }).where(eq(positions.id, before.id)).returning();
+      // A new radius changes every distance the position's discs have rolled.
+      if (before.trackRadiusMm !== p.trackRadiusMm) await invalidateRolledDistance(tx, projectId);
       await audit(tx, {
         userId, projectId, entity: 'position', entityId: before.id,
         action: before.wearLimitMm !== p.wearLimitMm ? 'change_wear_limit' : 'update', before, after,

@@ -7,7 +7,8 @@ import { and, desc, eq, isNull, ne, sql } from 'drizzle-orm';
 import { conditionNeedsChange, type DiscCondition } from '../../shared/cutters';
 import type { EntryInput, StartRoundInput } from '../../shared/schemas/inspection';
 import type { DbOrTx } from '../db/client';
-import { cutterEvents, cutters, entrySubmissions, fittings, inspectionEntries, inspectionRounds, positions } from '../db/schema';
+import { cutterEvents, cutters, entrySubmissions, fittings, inspectionEntries, inspectionRounds, positions, strokes } from '../db/schema';
+import { invalidateRolledDistance } from './rolled-distance';
 import { audit } from '../lib/audit';
 import { conflict, HttpError, notFound } from '../lib/http-error';
 
@@ -168,6 +169,9 @@ async function changeCutter(tx: DbOrTx, { projectId, userId, round, position, cu
   }
 
   const at = round.startedAt;
+  // A change recorded back in time re-divides strokes already counted: recompute the drive next time.
+  const [later] = await tx.select({ id: strokes.id }).from(strokes).where(and(eq(strokes.projectId, projectId), sql`${strokes.startTime} > ${at}`)).limit(1);
+  if (later) await invalidateRolledDistance(tx, projectId);
   let removedCutterId: string | null = null;
   if (current) {
     removedCutterId = current.fitting.cutterId;

@@ -38,11 +38,21 @@ describe('database', () => {
       users: (await db.select({ n: count() }).from(schema.users))[0].n,
       projects: (await db.select({ n: count() }).from(schema.projects))[0].n,
       memberships: (await db.select({ n: count() }).from(schema.memberships))[0].n,
+      positions: (await db.select({ n: count() }).from(schema.positions))[0].n,
+      cutters: (await db.select({ n: count() }).from(schema.cutters))[0].n,
+      strokes: (await db.select({ n: count() }).from(schema.strokes))[0].n,
+      entries: (await db.select({ n: count() }).from(schema.inspectionEntries))[0].n,
+      rolled: (await db.select({ n: count() }).from(schema.fittingRolledKm))[0].n,
     });
     const first = await seedDemo(db);
     expect(first.created).toBe(true);
     const afterFirst = await counts();
-    expect(afterFirst).toEqual({ users: 5, projects: 1, memberships: 4 });
+    expect(afterFirst).toMatchObject({ users: 5, projects: 1, memberships: 4, positions: 46 });
+    // Months of history: a few hundred serials, thousands of strokes and measurements.
+    expect(afterFirst.cutters).toBeGreaterThan(200);
+    expect(afterFirst.strokes).toBeGreaterThan(2000);
+    expect(afterFirst.entries).toBeGreaterThan(2500);
+    expect(afterFirst.rolled).toBeGreaterThan(500);
     const second = await seedDemo(db);
     expect(second).toEqual({ projectId: first.projectId, created: false });
     expect(await counts()).toEqual(afterFirst);

@@ -1,0 +1,98 @@
+/**
+ * Keeps `fitting_rolled_km` — the distance each disc has rolled in each ground type during each
+ * fitted period — up to date. New strokes appended after the last computed ring are added to the
+ * stored totals; anything that changes the past (a layout radius, the geology, a replaced stroke,
+ * a change recorded back in time) drops the state, and the next refresh recomputes the drive.
+ */
+import { and, asc, eq, gt, sql } from 'drizzle-orm';
+import type { GeologySection } from '../../shared/domain/geology';
+import { rolledKmByStroke, sumRolledKmByPeriod, type FittedPeriod, type PeriodRolledKm, type Stroke } from '../../shared/domain/rolled-distance';
+import type { DbOrTx } from '../db/client';
+import { fittingRolledKm, fittings, geologySections, positions, rolledDistanceState, strokes } from '../db/schema';
+
+export const UNKNOWN_GROUND = 'unknown';
+
+/** Forget the incremental state: the next refresh recomputes the whole drive. */
+export async function invalidateRolledDistance(tx: DbOrTx, projectId: string): Promise<void> {
+  await tx.delete(rolledDistanceState).where(eq(rolledDistanceState.projectId, projectId));
+}
+
+export interface RefreshResult {
+  mode: 'full' | 'incremental' | 'none';
+  strokes: number;
+  errors: { ringNumber: number; reason: string }[];
+}
+
+const toStroke = (s: typeof strokes.$inferSelect): Stroke => ({
+  id: String(s.id),
+  ringNumber: s.ringNumber,
+  chainageStartM: s.chainageStartM,
+  chainageEndM: s.chainageEndM,
+  revolutions: s.revolutions,
+  penetrationMmPerRev: s.penetrationMmPerRev,
+  startTime: s.startTime.toISOString(),
+  endTime: s.endTime.toISOString(),
+});
+
+/** Brings the rolled distances of a project up to date, incrementally when only new strokes came in. */
+export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Promise<RefreshResult> {
+  const [state] = await tx.select().from(rolledDistanceState).where(eq(rolledDistanceState.projectId, projectId)).for('update');
+  const full = !state;
+  const strokeRows = await tx
+    .select()
+    .from(strokes)
+    .where(and(eq(strokes.projectId, projectId), full ? undefined : gt(strokes.ringNumber, state.throughRing)))
+    .orderBy(asc(strokes.ringNumber));
+  if (!full && strokeRows.length === 0) return { mode: 'none', strokes: 0, errors: [] };
+
+  const positionRows = await tx.select().from(positions).where(eq(positions.projectId, projectId));
+  const sectionRows = await tx.select().from(geologySections).where(eq(geologySections.projectId, projectId));
+  const fittingRows = await tx.select().from(fittings).where(eq(fittings.projectId, projectId));
+
+  const sections: GeologySection[] = sectionRows.map((s) => ({
+    chainageFromM: s.chainageFromM, chainageToM: s.chainageToM, groundTypeId: s.groundTypeId, waterHeadM: s.waterHeadM, stopAllowed: s.stopAllowed, stopReason: s.stopReason,
+  }));
+  const domainStrokes = strokeRows.map(toStroke);
+  const { rows, errors } = rolledKmByStroke(
+    domainStrokes,
+    positionRows.map((p) => ({ id: p.id, trackRadiusMm: p.trackRadiusMm, discsPerPosition: p.twinDisc ? 2 : 1 })),
+    sections,
+  );
+  const periods: FittedPeriod[] = fittingRows.map((f) => ({ id: f.id, positionId: f.positionId, fromTime: f.fittedAt.toISOString(), toTime: f.removedAt?.toISOString() ?? null }));
+  const totals = sumRolledKmByPeriod(periods, domainStrokes, rows);
+
+  if (full) await tx.delete(fittingRolledKm).where(eq(fittingRolledKm.projectId, projectId));
+  await writeTotals(tx, projectId, totals, full ? 'replace' : 'add');
+
+  const throughRing = Math.max(state?.throughRing ?? -1, ...strokeRows.map((s) => s.ringNumber));
+  await tx
+    .insert(rolledDistanceState)
+    .values({ projectId, throughRing })
+    .onConflictDoUpdate({ target: rolledDistanceState.projectId, set: { throughRing, computedAt: sql`now()` } });
+  const ringOf = new Map(domainStrokes.map((s) => [s.id, s.ringNumber]));
+  return { mode: full ? 'full' : 'incremental', strokes: strokeRows.length, errors: errors.map((e) => ({ ringNumber: ringOf.get(e.strokeId) ?? e.ringNumber, reason: e.reason })) };
+}
+
+async function writeTotals(tx: DbOrTx, projectId: string, totals: PeriodRolledKm[], how: 'replace' | 'add') {
+  const values = totals.map((t) => ({ fittingId: t.periodId, projectId, groundKey: t.groundTypeId ?? UNKNOWN_GROUND, rolledKm: t.rolledKm }));
+  for (let i = 0; i < values.length; i += 2000) {
+    const chunk = values.slice(i, i + 2000);
+    await tx
+      .insert(fittingRolledKm)
+      .values(chunk)
+      .onConflictDoUpdate({
+        target: [fittingRolledKm.fittingId, fittingRolledKm.groundKey],
+        set: { rolledKm: how === 'add' ? sql`${fittingRolledKm.rolledKm} + excluded.rolled_km` : sql`excluded.rolled_km` },
+      });
+  }
+}
+
+/** How far the disc now on a position has rolled in each ground type since it was fitted (km). */
+export async function rolledSinceFitted(tx: DbOrTx, projectId: string, positionId: string): Promise<Record<string, number>> {
+  const rows = await tx
+    .select({ groundKey: fittingRolledKm.groundKey, rolledKm: fittingRolledKm.rolledKm })
+    .from(fittingRolledKm)
+    .innerJoin(fittings, eq(fittings.id, fittingRolledKm.fittingId))
+    .where(and(eq(fittings.projectId, projectId), eq(fittings.positionId, positionId), sql`${fittings.removedAt} is null`));
+  return Object.fromEntries(rows.map((r) => [r.groundKey, r.rolledKm]));
+}
