@@ -11,11 +11,14 @@ import { apiNotFound, errorHandler } from './middleware/error';
 import { adminRouter } from './routes/admin';
 import { authRouter } from './routes/auth';
 import { cuttersRouter } from './routes/cutters';
+import { forecastRouter, wearFitRouter } from './routes/forecast';
+import { geologyRouter, groundTypesRouter } from './routes/geology';
 import { healthRouter } from './routes/health';
 import { photosRouter } from './routes/photos';
 import { positionsRouter } from './routes/positions';
 import { projectsRouter } from './routes/projects';
 import { roundsRouter } from './routes/rounds';
+import { strokesRouter } from './routes/strokes';
 
 export interface AppOptions {
   /** The built client (`dist/`) to serve beside the API; omitted in API-only tests and `npm run dev`. */
@@ -42,6 +45,11 @@ export function createApp(options: AppOptions = {}): Express {
   api.use('/projects/:projectId/cutters', cuttersRouter);
   api.use('/projects/:projectId/rounds', roundsRouter);
   api.use('/projects/:projectId/photos', photosRouter);
+  api.use('/projects/:projectId/ground-types', groundTypesRouter);
+  api.use('/projects/:projectId/geology', geologyRouter);
+  api.use('/projects/:projectId/strokes', strokesRouter);
+  api.use('/projects/:projectId/wear-fit', wearFitRouter);
+  api.use('/projects/:projectId/forecast', forecastRouter);
   api.use('/admin', adminRouter);
   api.use(apiNotFound);
   app.use('/api', api);

@@ -24,6 +24,12 @@ export const permissions = {
   /** Inspection rounds at the face, and their photos. */
   'rounds.read': ['fitter', 'planner', 'buyer', 'site_manager'],
   'rounds.record': ['fitter', 'planner'],
+  /** Drive data: advance log, ground types, geology long section. */
+  'drive.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+  'drive.edit': ['planner'],
+  /** Wear fits and change-out forecasts. */
+  'forecast.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+  'forecast.edit': ['planner'],
 } as const satisfies Record<string, readonly ProjectRole[]>;
 
 export type Permission = keyof typeof permissions;

@@ -327,3 +327,34 @@ export const rolledDistanceState = pgTable('rolled_distance_state', {
   throughRing: integer().notNull(),
   computedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
 });
+
+/**
+ * Distance rolled per disc by the measured disc from its fitting up to the inspection, per ground
+ * type: the exposure of each observation in the wear fit. Kept with the fitted-period totals.
+ */
+export const entryRolledKm = pgTable('entry_rolled_km', {
+  entryId: uuid().notNull().references(() => inspectionEntries.id, { onDelete: 'cascade' }),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  groundKey: text().notNull(),
+  rolledKm: doublePrecision().notNull(),
+}, (t) => [primaryKey({ columns: [t.entryId, t.groundKey] }), index('entry_rolled_km_project_idx').on(t.projectId)]);
+
+/** The planner's settings for wear fits and forecasts, one row per project (defaults until saved). */
+export const forecastSettings = pgTable('forecast_settings', {
+  projectId: uuid().primaryKey().references(() => projects.id, { onDelete: 'cascade' }),
+  /** Wear multiplier per position class relative to face discs (face = 1). */
+  classFactors: jsonb().$type<{ centre: number; face: number; gauge: number }>().notNull(),
+  /** Scales the Gehring prior to the site. */
+  gehringSiteFactor: doublePrecision().notNull(),
+  /** Weight of the prior, as an equivalent number of inspections. */
+  priorStrength: doublePrecision().notNull(),
+  /** Constant-section tip width of the rings, mm. */
+  tipWidthMm: doublePrecision().notNull(),
+  /** The shield's overcut margin on the diameter, mm: gauge wear beyond it squeezes the shield. */
+  overcutMarginMm: doublePrecision().notNull(),
+  /** Strokes per ground type that set the expected penetration and advance per day. */
+  windowStrokes: integer().notNull(),
+  /** Planner overrides per ground type id. */
+  overrides: jsonb().$type<Record<string, { penetrationMmPerRev?: number; advanceMPerDay?: number }>>().notNull(),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+});

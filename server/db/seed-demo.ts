@@ -56,6 +56,6 @@ export async function seedDemo(db: Db): Promise<{ projectId: string; created: bo
     // The drive's history goes in once, into a project without a cutterhead yet.
     const [anyPosition] = await tx.select({ id: positions.id }).from(positions).where(eq(positions.projectId, project.id)).limit(1);
     if (!anyPosition) await loadDemoDrive(tx, project.id, fitterId);
-    return { projectId: project.id, created };
+    return { projectId: project.id, created: created || !anyPosition };
   });
 }

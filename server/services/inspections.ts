@@ -8,7 +8,7 @@ import { conditionNeedsChange, type DiscCondition } from '../../shared/cutters';
 import type { EntryInput, StartRoundInput } from '../../shared/schemas/inspection';
 import type { DbOrTx } from '../db/client';
 import { cutterEvents, cutters, entrySubmissions, fittings, inspectionEntries, inspectionRounds, positions, strokes } from '../db/schema';
-import { invalidateRolledDistance } from './rolled-distance';
+import { invalidateRolledDistance, recordEntryExposure } from './rolled-distance';
 import { audit } from '../lib/audit';
 import { conflict, HttpError, notFound } from '../lib/http-error';
 
@@ -130,6 +130,7 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
     await audit(tx, { userId, projectId, entity: 'inspection_entry', entityId: entry.id, action: 'create', after: entry });
   }
   await tx.insert(entrySubmissions).values({ projectId, clientKey: input.clientKey, entryId: entry.id });
+  if (!prior && entry.fittingId) await recordEntryExposure(tx, projectId, entry.id, entry.fittingId, round.startedAt);
   return { entry, replayed: false, ...entryFlags(entry, position.wearLimitMm) };
 }
 

@@ -1,6 +1,7 @@
 /**
  * Keeps `fitting_rolled_km` — the distance each disc has rolled in each ground type during each
- * fitted period — up to date. New strokes appended after the last computed ring are added to the
+ * fitted period — and `entry_rolled_km` — the same from the fitting up to each inspection, the
+ * exposure of that measurement — up to date. New strokes appended after the last computed ring are added to the
  * stored totals; anything that changes the past (a layout radius, the geology, a replaced stroke,
  * a change recorded back in time) drops the state, and the next refresh recomputes the drive.
  */
@@ -8,7 +9,7 @@ import { and, asc, eq, gt, sql } from 'drizzle-orm';
 import type { GeologySection } from '../../shared/domain/geology';
 import { rolledKmByStroke, sumRolledKmByPeriod, type FittedPeriod, type PeriodRolledKm, type Stroke } from '../../shared/domain/rolled-distance';
 import type { DbOrTx } from '../db/client';
-import { fittingRolledKm, fittings, geologySections, positions, rolledDistanceState, strokes } from '../db/schema';
+import { entryRolledKm, fittingRolledKm, fittings, geologySections, inspectionEntries, inspectionRounds, positions, rolledDistanceState, strokes } from '../db/schema';
 
 export const UNKNOWN_GROUND = 'unknown';
 
@@ -59,10 +60,26 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     sections,
   );
   const periods: FittedPeriod[] = fittingRows.map((f) => ({ id: f.id, positionId: f.positionId, fromTime: f.fittedAt.toISOString(), toTime: f.removedAt?.toISOString() ?? null }));
+  // An inspection's exposure is a window too: from its disc's fitting to the round.
+  const fittingById = new Map(fittingRows.map((f) => [f.id, f]));
+  const entryRows = await tx
+    .select({ id: inspectionEntries.id, fittingId: inspectionEntries.fittingId, at: inspectionRounds.startedAt })
+    .from(inspectionEntries)
+    .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
+    .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
+  const entryWindows: FittedPeriod[] = entryRows.flatMap((e) => {
+    const f = fittingById.get(e.fittingId!);
+    return f ? [{ id: e.id, positionId: f.positionId, fromTime: f.fittedAt.toISOString(), toTime: e.at.toISOString() }] : [];
+  });
   const totals = sumRolledKmByPeriod(periods, domainStrokes, rows);
+  const entryTotals = sumRolledKmByPeriod(entryWindows, domainStrokes, rows);
 
-  if (full) await tx.delete(fittingRolledKm).where(eq(fittingRolledKm.projectId, projectId));
+  if (full) {
+    await tx.delete(fittingRolledKm).where(eq(fittingRolledKm.projectId, projectId));
+    await tx.delete(entryRolledKm).where(eq(entryRolledKm.projectId, projectId));
+  }
   await writeTotals(tx, projectId, totals, full ? 'replace' : 'add');
+  await writeEntryTotals(tx, projectId, entryTotals.filter((t) => t.rolledKm > 0));
 
   const throughRing = Math.max(state?.throughRing ?? -1, ...strokeRows.map((s) => s.ringNumber));
   await tx
@@ -85,6 +102,34 @@ async function writeTotals(tx: DbOrTx, projectId: string, totals: PeriodRolledKm
         set: { rolledKm: how === 'add' ? sql`${fittingRolledKm.rolledKm} + excluded.rolled_km` : sql`excluded.rolled_km` },
       });
   }
+}
+
+async function writeEntryTotals(tx: DbOrTx, projectId: string, totals: PeriodRolledKm[]) {
+  const values = totals.map((t) => ({ entryId: t.periodId, projectId, groundKey: t.groundTypeId ?? UNKNOWN_GROUND, rolledKm: t.rolledKm }));
+  for (let i = 0; i < values.length; i += 2000) {
+    await tx
+      .insert(entryRolledKm)
+      .values(values.slice(i, i + 2000))
+      .onConflictDoUpdate({ target: [entryRolledKm.entryId, entryRolledKm.groundKey], set: { rolledKm: sql`${entryRolledKm.rolledKm} + excluded.rolled_km` } });
+  }
+}
+
+/**
+ * A new measurement's exposure: the fitted period's totals so far, when they are current and no
+ * stroke lies after the round; otherwise the drive is recomputed at the next refresh.
+ */
+export async function recordEntryExposure(tx: DbOrTx, projectId: string, entryId: string, fittingId: string, at: Date): Promise<void> {
+  const [state] = await tx.select().from(rolledDistanceState).where(eq(rolledDistanceState.projectId, projectId));
+  if (!state) return;
+  const [later] = await tx.select({ id: strokes.id }).from(strokes).where(and(eq(strokes.projectId, projectId), sql`${strokes.startTime} > ${at}`)).limit(1);
+  if (later) {
+    await invalidateRolledDistance(tx, projectId);
+    return;
+  }
+  await tx.delete(entryRolledKm).where(eq(entryRolledKm.entryId, entryId));
+  await tx.execute(sql`
+    insert into entry_rolled_km (entry_id, project_id, ground_key, rolled_km)
+    select ${entryId}, project_id, ground_key, rolled_km from fitting_rolled_km where fitting_id = ${fittingId} and rolled_km > 0`);
 }
 
 /** How far the disc now on a position has rolled in each ground type since it was fitted (km). */

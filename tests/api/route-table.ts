@@ -72,6 +72,21 @@ export const routeTable: RouteCase[] = [
   // Permitted callers get past the guard to the upload check (no file sent → 400).
   { method: 'post', path: '/api/projects/:projectId/photos', roles: ['fitter', 'planner'], okStatus: 400 },
   { method: 'get', path: '/api/projects/:projectId/photos/:photoId', roles: everyone },
+  // Drive data
+  { method: 'get', path: '/api/projects/:projectId/ground-types', roles: everyone },
+  { method: 'post', path: '/api/projects/:projectId/ground-types', roles: ['planner'], body: () => ({ name: uniq('Granite'), cai: 3.9 }), okStatus: 201 },
+  { method: 'get', path: '/api/projects/:projectId/geology', roles: everyone },
+  { method: 'put', path: '/api/projects/:projectId/geology', roles: ['planner'], body: () => ({ sections: [] }) },
+  { method: 'get', path: '/api/projects/:projectId/strokes', roles: everyone },
+  { method: 'get', path: '/api/projects/:projectId/strokes/daily', roles: everyone },
+  { method: 'get', path: '/api/projects/:projectId/strokes/export.csv', roles: everyone },
+  // Wear fits and forecasts
+  { method: 'get', path: '/api/projects/:projectId/wear-fit', roles: everyone },
+  { method: 'get', path: '/api/projects/:projectId/forecast', roles: everyone },
+  { method: 'get', path: '/api/projects/:projectId/forecast/settings', roles: everyone },
+  { method: 'put', path: '/api/projects/:projectId/forecast/settings', roles: ['planner'], body: () => ({
+    classFactors: { centre: 0.8, face: 1, gauge: 1.5 }, gehringSiteFactor: 1, priorStrength: 5, tipWidthMm: 19, overcutMarginMm: 20, windowStrokes: 30, overrides: {},
+  }) },
 ];
 
 async function workshopCutter(projectId: string) {

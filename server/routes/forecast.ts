@@ -1,0 +1,77 @@
+import { sql } from 'drizzle-orm';
+import { Router } from 'express';
+import { forecastQuerySchema, forecastSettingsInputSchema } from '../../shared/schemas/forecast';
+import { db } from '../db/client';
+import { forecastSettings } from '../db/schema';
+import { requireProject, requireUser } from '../middleware/auth';
+import { audit } from '../lib/audit';
+import { idParam } from '../lib/params';
+import { computeForecast, computeWearFit, loadForecastSettings } from '../services/forecast';
+import { refreshRolledDistance } from '../services/rolled-distance';
+
+export const wearFitRouter = Router({ mergeParams: true });
+export const forecastRouter = Router({ mergeParams: true });
+
+/** Fitted wear rates per ground type, where each comes from, the measurements behind them, and sudden failures. */
+wearFitRouter.get('/', requireProject('forecast.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const report = await db.transaction(async (tx) => {
+    await refreshRolledDistance(tx, projectId);
+    return computeWearFit(tx, projectId, await loadForecastSettings(tx, projectId));
+  });
+  const name = new Map(report.grounds.map((g) => [g.id, g.name]));
+  // Chart points: inspections whose disc rolled in one ground only, per ground.
+  const points = report.observations
+    .map((o) => ({ entries: Object.entries(o.rolledKmByGround), o }))
+    .filter((x) => x.entries.length === 1)
+    .slice(0, 4000)
+    .map(({ entries: [[groundTypeId, rolledKm]], o }) => ({ groundTypeId, rolledKm, wearMm: o.wearMm, positionClass: o.positionClass }));
+  res.json({
+    grounds: report.grounds.map((g) => ({ ...g, rate: report.fit.rates.find((r) => r.groundTypeId === g.id) ?? null })),
+    residualSdMm: report.fit.residualSdMm,
+    residualDof: report.fit.residualDof,
+    classFactors: report.fit.classFactors,
+    observationCount: report.observations.length,
+    failures: report.failures.map((f) => ({ ...f, groundName: name.get(f.groundTypeId) ?? f.groundTypeId })),
+    abnormalEvents: report.abnormalEvents,
+    points,
+    ringDiameterMm: report.ringDiameterMm,
+  });
+});
+
+/** Every position's change-out forecast, most urgent (cautious P90) first; `positionId` adds how it was made. */
+forecastRouter.get('/', requireProject('forecast.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const { positionId } = forecastQuerySchema.parse(req.query);
+  const result = await db.transaction((tx) => computeForecast(tx, projectId, new Date()));
+  res.json({
+    now: result.now,
+    currentChainageM: result.currentChainageM,
+    currentRingNumber: result.currentRingNumber,
+    problems: result.problems,
+    rates: result.rates,
+    driveRates: result.driveRates,
+    positions: result.positions.map(({ explanation, ...p }) => (p.position.positionId === positionId ? { ...p, explanation } : p)),
+  });
+});
+
+forecastRouter.get('/settings', requireProject('forecast.read'), async (req, res) => {
+  res.json(await loadForecastSettings(db, idParam(req.params, 'projectId', 'That project')));
+});
+
+forecastRouter.put('/settings', requireProject('forecast.edit'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const me = requireUser(req);
+  const input = forecastSettingsInputSchema.parse(req.body);
+  const saved = await db.transaction(async (tx) => {
+    const before = await loadForecastSettings(tx, projectId);
+    const [after] = await tx
+      .insert(forecastSettings)
+      .values({ projectId, ...input })
+      .onConflictDoUpdate({ target: forecastSettings.projectId, set: { ...input, updatedAt: sql`now()` } })
+      .returning();
+    await audit(tx, { userId: me.id, projectId, entity: 'forecast_settings', entityId: projectId, action: 'update', before, after });
+    return after;
+  });
+  res.json(saved);
+});

@@ -1,0 +1,70 @@
+import { and, asc, count, desc, eq, gte, lte, sql, type SQL } from 'drizzle-orm';
+import { Router } from 'express';
+import { stringify } from 'csv-stringify';
+import { strokeListQuerySchema } from '../../shared/schemas/geology';
+import { db } from '../db/client';
+import { projects, strokes } from '../db/schema';
+import { requireProject } from '../middleware/auth';
+import { idParam } from '../lib/params';
+
+export const strokesRouter = Router({ mergeParams: true });
+
+const sortable = {
+  ringNumber: strokes.ringNumber, startTime: strokes.startTime, chainageStartM: strokes.chainageStartM, penetrationMmPerRev: strokes.penetrationMmPerRev,
+  revolutions: strokes.revolutions, thrustKn: strokes.thrustKn, torqueKnm: strokes.torqueKnm, rpm: strokes.rpm,
+};
+
+async function siteTimeZone(projectId: string) {
+  const [p] = await db.select({ tz: projects.siteTimeZone }).from(projects).where(eq(projects.id, projectId));
+  return p.tz;
+}
+
+function filters(projectId: string, q: ReturnType<typeof strokeListQuerySchema.parse>, tz: string): SQL | undefined {
+  return and(
+    eq(strokes.projectId, projectId),
+    q.ringFrom !== undefined ? gte(strokes.ringNumber, q.ringFrom) : undefined,
+    q.ringTo !== undefined ? lte(strokes.ringNumber, q.ringTo) : undefined,
+    // Dates are the site's calendar days.
+    q.from ? sql`${strokes.startTime} >= (${q.from}::date::timestamp at time zone ${tz})` : undefined,
+    q.to ? sql`${strokes.startTime} < ((${q.to}::date + 1)::timestamp at time zone ${tz})` : undefined,
+  );
+}
+
+/** One page of the advance log, sorted and filtered in PostgreSQL (50,000 rows stay fast). */
+strokesRouter.get('/', requireProject('drive.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const q = strokeListQuerySchema.parse(req.query);
+  const where = filters(projectId, q, await siteTimeZone(projectId));
+  const column = sortable[q.sort];
+  const [rows, [{ total }]] = await Promise.all([
+    db.select().from(strokes).where(where).orderBy(q.dir === 'asc' ? asc(column) : desc(column), asc(strokes.ringNumber)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+    db.select({ total: count() }).from(strokes).where(where),
+  ]);
+  res.json({ rows, total, page: q.page, pageSize: q.pageSize });
+});
+
+/** The filtered log as CSV, streamed. */
+strokesRouter.get('/export.csv', requireProject('drive.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const q = strokeListQuerySchema.parse(req.query);
+  const rows = await db.select().from(strokes).where(filters(projectId, q, await siteTimeZone(projectId))).orderBy(asc(strokes.ringNumber));
+  res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': 'attachment; filename="advance-log.csv"' });
+  const csv = stringify({ header: true, columns: ['ring', 'start_time', 'end_time', 'chainage_start_m', 'chainage_end_m', 'revolutions', 'penetration_mm_per_rev', 'rpm', 'thrust_kn', 'torque_knm'] });
+  csv.pipe(res);
+  for (const r of rows) {
+    csv.write([r.ringNumber, r.startTime.toISOString(), r.endTime.toISOString(), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm]);
+  }
+  csv.end();
+});
+
+/** Metres advanced per calendar day in the site's time zone (for the small chart). */
+strokesRouter.get('/daily', requireProject('drive.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const tz = await siteTimeZone(projectId);
+  const rows = await db.execute<{ day: string; advance_m: number; strokes: number }>(sql`
+    select to_char((end_time at time zone ${tz})::date, 'YYYY-MM-DD') as day,
+           sum(abs(chainage_end_m - chainage_start_m))::float8 as advance_m, count(*)::int as strokes
+    from strokes where project_id = ${projectId}
+    group by 1 order by 1`);
+  res.json(rows.rows.map((r) => ({ day: r.day, advanceM: r.advance_m, strokes: r.strokes })));
+});

@@ -1,0 +1,224 @@
+/**
+ * Wear fit and change-out forecast of a project, from the database: reads the layout, geology,
+ * advance log, inspections and their exposures, and hands them to the pure functions in
+ * shared/domain (wear-fit.ts, forecast.ts). Computed on request, so a forecast always reflects the
+ * latest inspections, imports and geology (DEVELOPERS.md, decision 12).
+ */
+import { and, asc, eq, sql } from 'drizzle-orm';
+import { discConditions, type PositionClass } from '../../shared/cutters';
+import { cautiousRates, relativeScatter } from '../../shared/domain/cautious-rates';
+import { classifyCai } from '../../shared/domain/cerchar';
+import { estimateDriveRates, forecastChangeOut, modelledWearSinceMm, type ChangeOutForecast, type WearRateSet } from '../../shared/domain/forecast';
+import { gehringPriorRateMmPerKm } from '../../shared/domain/gehring-prior';
+import { findSectionAt } from '../../shared/domain/geology';
+import { fitWearRates, suddenFailureRatesPer1000Km, type NormalWearObservation, type WearFit } from '../../shared/domain/wear-fit';
+import type { DbOrTx } from '../db/client';
+import {
+  fittingRolledKm, forecastSettings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, projects, strokes,
+} from '../db/schema';
+import { refreshRolledDistance, UNKNOWN_GROUND } from './rolled-distance';
+
+export const defaultForecastSettings = {
+  // Common practice, no source: centre discs roll slowly and wear a little less per km, gauge discs more.
+  classFactors: { centre: 0.8, face: 1, gauge: 1.5 },
+  gehringSiteFactor: 1,
+  priorStrength: 5,
+  tipWidthMm: 19, // DOMAIN.md §4: about 19 mm on 17″ rings (common practice)
+  overcutMarginMm: 20,
+  windowStrokes: 30,
+  overrides: {} as Record<string, { penetrationMmPerRev?: number; advanceMPerDay?: number }>,
+};
+export type ForecastSettings = typeof defaultForecastSettings;
+
+/** Settings of the cautious rates (shared/domain/cautious-rates.ts; DEVELOPERS.md, decision 13). */
+export const cautiousRateOptions = { probability: 0.9, minPredictedMm: 5, priorMargin: 0.5 };
+const abnormalKeys = new Set<string>(discConditions.filter((c) => c.abnormal).map((c) => c.key));
+
+export async function loadForecastSettings(tx: DbOrTx, projectId: string): Promise<ForecastSettings> {
+  const [row] = await tx.select().from(forecastSettings).where(eq(forecastSettings.projectId, projectId));
+  return row ? { ...defaultForecastSettings, ...row } : defaultForecastSettings;
+}
+
+export interface WearFitReport {
+  fit: WearFit;
+  grounds: { id: string; name: string; cai: number | null; caiClass: ReturnType<typeof classifyCai> | null; priorMmPerKm: number | null }[];
+  failures: ReturnType<typeof suddenFailureRatesPer1000Km>;
+  abnormalEvents: { entryId: string; at: Date; positionNumber: number; conditions: string[]; chainageM: number }[];
+  observations: { wearMm: number; positionClass: PositionClass; rolledKmByGround: Record<string, number> }[];
+  ringDiameterMm: number;
+}
+
+/** The wear fit of a project: site observations, Gehring priors per ground, sudden-failure rates. */
+export async function computeWearFit(tx: DbOrTx, projectId: string, settings: ForecastSettings): Promise<WearFitReport> {
+  const grounds = await tx.select().from(groundTypes).where(eq(groundTypes.projectId, projectId)).orderBy(asc(groundTypes.name));
+  const positionRows = await tx.select().from(positions).where(eq(positions.projectId, projectId));
+  const sizes = positionRows.map((p) => p.discSizeIn);
+  const commonSize = sizes.sort((a, b) => sizes.filter((s) => s === b).length - sizes.filter((s) => s === a).length)[0] ?? 17;
+  const ringDiameterMm = commonSize * 25.4;
+  const priors: Record<string, number> = {};
+  for (const g of grounds) {
+    if (g.cai != null) priors[g.id] = gehringPriorRateMmPerKm({ cai: g.cai, ringDiameterMm, tipWidthMm: settings.tipWidthMm, siteFactor: settings.gehringSiteFactor });
+  }
+
+  const rows = await tx
+    .select({
+      entryId: inspectionEntries.id, wearMm: inspectionEntries.wearMm, conditions: inspectionEntries.conditions, positionClass: positions.positionClass,
+      positionNumber: positions.number, at: inspectionRounds.startedAt, chainageM: inspectionRounds.chainageM,
+      exposure: sql<Record<string, number> | null>`(select jsonb_object_agg(k.ground_key, k.rolled_km) from entry_rolled_km k where k.entry_id = ${inspectionEntries.id})`,
+    })
+    .from(inspectionEntries)
+    .innerJoin(positions, eq(positions.id, inspectionEntries.positionId))
+    .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
+    .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
+
+  const observations: NormalWearObservation[] = [];
+  const abnormalEvents: WearFitReport['abnormalEvents'] = [];
+  const eventsByGround: Record<string, number> = {};
+  for (const r of rows) {
+    const exposure = Object.fromEntries(Object.entries(r.exposure ?? {}).filter(([k, km]) => k !== UNKNOWN_GROUND && km > 0));
+    if (r.conditions.some((c) => abnormalKeys.has(c))) {
+      abnormalEvents.push({ entryId: r.entryId, at: r.at, positionNumber: r.positionNumber, conditions: r.conditions, chainageM: r.chainageM });
+      // Attributed to the ground the disc rolled most in since fitting (documented choice).
+      const main = Object.entries(exposure).sort((a, b) => b[1] - a[1])[0]?.[0];
+      if (main) eventsByGround[main] = (eventsByGround[main] ?? 0) + 1;
+      continue;
+    }
+    if (r.wearMm == null || Object.keys(exposure).length === 0) continue;
+    observations.push({ wearMm: r.wearMm, positionClass: r.positionClass, rolledKmByGround: exposure });
+  }
+  const fit = fitWearRates(observations, {
+    classFactors: settings.classFactors,
+    prior: Object.keys(priors).length > 0 ? { rateMmPerKmByGround: priors, strengthObservations: settings.priorStrength } : undefined,
+  });
+
+  // Total km rolled per ground by every disc, for the failure rates.
+  const totals = await tx
+    .select({ groundKey: fittingRolledKm.groundKey, km: sql<number>`sum(${fittingRolledKm.rolledKm})::float8` })
+    .from(fittingRolledKm)
+    .where(eq(fittingRolledKm.projectId, projectId))
+    .groupBy(fittingRolledKm.groundKey);
+  const kmByGround = Object.fromEntries(totals.filter((t) => t.groundKey !== UNKNOWN_GROUND).map((t) => [t.groundKey, t.km]));
+  return {
+    fit,
+    grounds: grounds.map((g) => ({ id: g.id, name: g.name, cai: g.cai, caiClass: g.cai == null ? null : classifyCai(g.cai), priorMmPerKm: priors[g.id] ?? null })),
+    failures: suddenFailureRatesPer1000Km(kmByGround, eventsByGround),
+    abnormalEvents,
+    observations,
+    ringDiameterMm,
+  };
+}
+
+/** P50 and cautious P90 rates per ground for the forecast, with the disc scatter they rest on. */
+export function forecastRates(report: WearFitReport): WearRateSet & { relativeScatter: number | null } {
+  const { fit, observations } = report;
+  const rate = new Map(fit.rates.map((r) => [r.groundTypeId, r.rateMmPerKm]));
+  const scatter = relativeScatter(
+    observations.map((o) => ({
+      measuredMm: o.wearMm,
+      predictedMm: fit.classFactors[o.positionClass] * Object.entries(o.rolledKmByGround).reduce((sum, [g, km]) => sum + (rate.get(g) ?? 0) * km, 0),
+    })),
+    cautiousRateOptions.minPredictedMm,
+  );
+  return { byGround: cautiousRates(fit, scatter, cautiousRateOptions), classFactors: { ...fit.classFactors }, relativeScatter: scatter };
+}
+
+export interface PositionForecast extends ChangeOutForecast {
+  serial: string | null;
+  lastMeasuredAt: Date | null;
+}
+
+export interface ProjectForecast {
+  now: Date;
+  currentChainageM: number | null;
+  currentRingNumber: number | null;
+  rates: WearRateSet & { relativeScatter: number | null };
+  driveRates: ReturnType<typeof estimateDriveRates>;
+  positions: PositionForecast[];
+  problems: string[];
+}
+
+/** The change-out forecast of every position, walking the geology ahead of the machine. */
+export async function computeForecast(tx: DbOrTx, projectId: string, now: Date): Promise<ProjectForecast & { wearFit: WearFitReport; settings: ForecastSettings }> {
+  await refreshRolledDistance(tx, projectId);
+  const settings = await loadForecastSettings(tx, projectId);
+  const wearFit = await computeWearFit(tx, projectId, settings);
+  const rates = forecastRates(wearFit);
+  const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
+  const sectionRows = await tx.select().from(geologySections).where(eq(geologySections.projectId, projectId));
+  const strokeRows = await tx
+    .select({ ringNumber: strokes.ringNumber, endTime: strokes.endTime, from: strokes.chainageStartM, to: strokes.chainageEndM, revolutions: strokes.revolutions, penetration: strokes.penetrationMmPerRev })
+    .from(strokes)
+    .where(eq(strokes.projectId, projectId))
+    .orderBy(asc(strokes.ringNumber));
+  const problems: string[] = [];
+  const last = strokeRows.at(-1);
+  const domainSections = sectionRows.map((s) => ({ ...s, stopReason: s.stopReason || null }));
+  const driveRates = estimateDriveRates(
+    strokeRows.map((s) => ({
+      endedAt: s.endTime, fromChainageM: s.from, toChainageM: s.to, cutterheadRevolutions: s.revolutions, penetrationMmPerRev: s.penetration,
+      groundTypeId: findSectionAt(domainSections, (s.from + s.to) / 2)?.groundTypeId ?? null,
+    })),
+    settings.overrides,
+    settings.windowStrokes,
+  );
+  const base = { now, currentChainageM: last?.to ?? null, currentRingNumber: last?.ringNumber ?? null, rates, driveRates, wearFit, settings };
+  if (!last) return { ...base, positions: [], problems: ['No advance log yet: import the machine’s strokes to forecast.'] };
+  if (Object.keys(rates.byGround).length === 0) return { ...base, positions: [], problems: ['No wear rate yet: give the ground types a CAI or record inspections.'] };
+
+  const current = await tx.execute<{
+    position_id: string; number: number; position_class: PositionClass; track_radius_mm: number; twin_disc: boolean; wear_limit_mm: number; tilt_deg: number | null;
+    fitting_id: string | null; serial: string | null; fitted_chainage_m: number | null; last_entry_id: string | null; last_wear_mm: number | null;
+    last_chainage_m: number | null; last_at: Date | null;
+  }>(sql`
+    select p.id as position_id, p.number, p.position_class, p.track_radius_mm, p.twin_disc, p.wear_limit_mm, p.tilt_deg,
+           f.id as fitting_id, c.serial, f.fitted_chainage_m, w.id as last_entry_id, w.wear_mm as last_wear_mm, w.chainage_m as last_chainage_m, w.started_at as last_at
+    from positions p
+    left join fittings f on f.position_id = p.id and f.removed_at is null
+    left join cutters c on c.id = f.cutter_id
+    left join lateral (
+      select e.id, e.wear_mm, r.chainage_m, r.started_at from inspection_entries e join inspection_rounds r on r.id = e.round_id
+      where e.fitting_id = f.id and e.wear_mm is not null and e.action = 'none'
+      order by r.started_at desc, e.recorded_at desc limit 1
+    ) w on true
+    where p.project_id = ${projectId} order by p.number`);
+  const kmRows = await tx.execute<{ key: string; ground_key: string; km: number }>(sql`
+    select fitting_id::text as key, ground_key, rolled_km as km from fitting_rolled_km where project_id = ${projectId}
+    union all
+    select entry_id::text, ground_key, rolled_km from entry_rolled_km where project_id = ${projectId}`);
+  const km = new Map<string, Record<string, number>>();
+  for (const r of kmRows.rows) km.set(r.key, { ...km.get(r.key), [r.ground_key]: r.km });
+
+  const geology = sectionRows.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId }));
+  const result: PositionForecast[] = [];
+  for (const p of current.rows) {
+    if (!p.fitting_id) {
+      problems.push(`Position ${p.number} has no cutter fitted.`);
+      continue;
+    }
+    const sinceFit = km.get(p.fitting_id) ?? {};
+    const atEntry = p.last_entry_id ? km.get(p.last_entry_id) ?? {} : {};
+    const since = Object.entries(sinceFit).map(([g, total]) => ({ groundTypeId: g === UNKNOWN_GROUND ? null : g, rolledKm: Math.max(0, total - (atEntry[g] ?? 0)) }));
+    const modelled = modelledWearSinceMm(since, rates, p.position_class);
+    const forecast = forecastChangeOut({
+      position: {
+        positionId: p.position_id, positionNumber: p.number, positionClass: p.position_class, trackRadiusMm: p.track_radius_mm,
+        discsPerPosition: p.twin_disc ? 2 : 1, allowableWearMm: p.wear_limit_mm, gaugeTiltDeg: p.position_class === 'gauge' ? p.tilt_deg ?? 0 : null,
+      },
+      wearNow: { lastMeasuredWearMm: p.last_wear_mm ?? 0, measuredAtChainageM: p.last_chainage_m ?? p.fitted_chainage_m ?? last.to, modelledSinceMm: modelled.wearMm },
+      currentChainageM: last.to,
+      currentRingNumber: last.ringNumber,
+      ringLengthM: project.ringLengthM,
+      driveDirection: project.driveDirection,
+      geology,
+      rates,
+      penetrationMmPerRevByGround: driveRates.penetrationMmPerRevByGround,
+      advanceMPerDayByGround: driveRates.advanceMPerDayByGround,
+      overcutMarginMm: settings.overcutMarginMm,
+      now,
+    });
+    result.push({ ...forecast, serial: p.serial, lastMeasuredAt: p.last_at });
+  }
+  result.sort((a, b) => a.p90.remainingM - b.p90.remainingM || a.position.positionNumber - b.position.positionNumber);
+  return { ...base, positions: result, problems };
+}
+
