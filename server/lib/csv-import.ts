@@ -22,16 +22,22 @@
  *   optional, offset "Z"/"+01:00"/"+0100" optional) or day first "DD.MM.YYYY HH:mm[:ss]" (day,
  *   month and hour may have one digit). Without an offset the time is local to the project's time
  *   zone; a local time skipped by a clock change is an error; one repeated by a clock change
- *   takes the reading @date-fns/tz gives (standard time). A file mixing the two formats is an
+ *   takes the later (standard-time) reading. A file mixing the two formats is an
  *   error. Times come out in ISO 8601 with the project's offset, to the second.
  * - Blank lines and lines of separators only are skipped.
+ * - Advance log, between rows: ring numbers are unique in the file; rows are in order (each ring
+ *   number above the previous row's, its chainage start not behind the previous row's in the
+ *   drive direction, its start time not earlier). Strokes are half-open intervals of chainage
+ *   [lower, higher) and of time [start, end): two strokes overlapping by more than 1 mm of
+ *   chainage, or by any time at all, are an error (touching is fine); a chainage gap of more
+ *   than 1 mm is a warning.
+ * - Geology: sections [from, to) must not overlap at all; a gap between them is a warning.
  * - Checks between rows use only the rows without errors of their own; after fixing those, an
  *   upload may show further errors.
  */
 import { Readable, pipeline } from 'node:stream';
 import { CsvError, parse, type Info } from 'csv-parse';
-import { TZDate } from '@date-fns/tz';
-import { formatISO } from 'date-fns';
+import { tzOffset } from '@date-fns/tz';
 import type { z } from 'zod';
 import {
   advanceLogFields,
@@ -243,6 +249,27 @@ function readNumber(raw: string, label: string, decimalComma: boolean): Cell {
   return { ok: false, message: `${label} must be a number; '${raw}' is not one.` };
 }
 
+const offsetMs = (timeZone: string, instantMs: number) => tzOffset(timeZone, new Date(instantMs)) * 60_000;
+
+/**
+ * The instant (ms) at which clocks in `timeZone` show `wallMs` (that wall time written as if UTC);
+ * null when a clock change skips it. A wall time shown twice gives the later, standard-time instant.
+ */
+function localToInstantMs(wallMs: number, timeZone: string): number | null {
+  const guessMs = wallMs - offsetMs(timeZone, wallMs);
+  const instantMs = wallMs - offsetMs(timeZone, guessMs);
+  return instantMs + offsetMs(timeZone, instantMs) === wallMs ? instantMs : null;
+}
+
+/** ISO 8601 to the second with the offset `timeZone` has at that instant, e.g. 2026-03-14T06:00:00+01:00. */
+function isoInZone(instantMs: number, timeZone: string): string {
+  const offsetMin = offsetMs(timeZone, instantMs) / 60_000;
+  const wall = new Date(instantMs + offsetMin * 60_000).toISOString().slice(0, 19);
+  const abs = Math.abs(offsetMin);
+  const pad = (n: number) => String(n).padStart(2, '0');
+  return `${wall}${offsetMin < 0 ? '-' : '+'}${pad(Math.floor(abs / 60))}:${pad(abs % 60)}`;
+}
+
 function readTime(raw: string, label: string, timeZone: string): Cell {
   let parts: number[];
   let offset: string | undefined;
@@ -279,16 +306,16 @@ function readTime(raw: string, label: string, timeZone: string): Cell {
     if (Math.abs(offsetMin) > 14 * 60) return { ok: false, message: `${label}: '${raw}' has a UTC offset beyond ±14:00.` };
     instantMs = calendar.getTime() - offsetMin * 60_000;
   } else {
-    const local = new TZDate(year, month - 1, day, hour, minute, second, ms, timeZone);
-    if (local.getDate() !== day || local.getHours() !== hour || local.getMinutes() !== minute) {
+    const local = localToInstantMs(calendar.getTime(), timeZone);
+    if (local === null) {
       return {
         ok: false,
         message: `${label}: '${raw}' does not exist in ${timeZone} (the clocks jump forward over it). Give the time with its UTC offset, like 2026-03-29T02:30+01:00.`,
       };
     }
-    instantMs = local.getTime();
+    instantMs = local;
   }
-  return { ok: true, value: formatISO(new TZDate(instantMs, timeZone)), timeFormat };
+  return { ok: true, value: isoInZone(instantMs, timeZone), timeFormat };
 }
 
 function readCell(info: CsvFieldInfo<string>, raw: string, decimalComma: boolean, timeZone: string | undefined): Cell {
@@ -546,9 +573,10 @@ function geologyTable(): TableSpec<GeologySectionField, GeologySectionRow> {
         0,
         (later, earlier, from, to) =>
           report.error(later.line, 'chainageFromM', `This section overlaps the section on line ${earlier.line} (${earlier.row.groundTypeName}, ${m(earlier.from)}–${m(earlier.to)} m) over chainage ${m(from)}–${m(to)} m. Sections must not overlap.`),
-        (before, after) =>
-          allRowsValid &&
-          report.warning(after.line, 'chainageFromM', `No section covers chainage ${m(before.to)}–${m(after.from)} m (between the sections on lines ${before.line} and ${after.line}); that stretch will count as unknown ground.`),
+        (before, after) => {
+          if (!allRowsValid) return;
+          report.warning(after.line, 'chainageFromM', `No section covers chainage ${m(before.to)}–${m(after.from)} m (between the sections on lines ${before.line} and ${after.line}); that stretch will count as unknown ground.`);
+        },
       );
     },
   };
@@ -562,7 +590,8 @@ async function* limitedBytes(source: Readable, maxBytes: number, progress: CsvPr
     const bytes = Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk);
     progress.bytesRead += bytes.length;
     if (progress.bytesRead > maxBytes) {
-      throw new FileRefused(fileIssue(`The file is larger than ${Math.round(maxBytes / MB)} MB. Split it into smaller files (for example one per month) and import them one after another.`));
+      const limit = maxBytes >= MB ? `${Math.round(maxBytes / MB)} MB` : `${maxBytes} bytes`;
+      throw new FileRefused(fileIssue(`The file is larger than ${limit}. Split it into smaller files (for example one per month) and import them one after another.`));
     }
     report();
     yield bytes;
@@ -784,8 +813,8 @@ async function readCsv<F extends string, Row>(
 }
 
 /** Reads and checks an advance log (one row per ring or stroke) from a CSV byte stream; chainage in m, times in the project's time zone. */
-export function readAdvanceLogCsv(source: Readable, options: AdvanceLogReadOptions): Promise<CsvImportResult<AdvanceLogRow, AdvanceLogField>> {
-  // Throws RangeError for a time zone the runtime does not know: a caller's mistake, not the file's.
+export async function readAdvanceLogCsv(source: Readable, options: AdvanceLogReadOptions): Promise<CsvImportResult<AdvanceLogRow, AdvanceLogField>> {
+  // Rejects with a RangeError for a time zone the runtime does not know: the caller's mistake, not the file's.
   new Intl.DateTimeFormat('en', { timeZone: options.timeZone });
   return readCsv(source, options, advanceLogTable(options.direction), options.timeZone);
 }

@@ -70,7 +70,7 @@ const whenValid =
 const isoWithOffset = (what: string) =>
   z.iso.datetime({ offset: true, error: `${what} is missing or is not a date and time with its UTC offset.` });
 
-const optionalAtLeastZero = (what: string) =>
+const nullableAtLeastZero = (what: string) =>
   z.number().min(0, `${what} cannot be negative; leave the cell empty when it was not recorded.`).nullable();
 
 export const advanceLogRowSchema = z
@@ -85,14 +85,14 @@ export const advanceLogRowSchema = z
     chainageStartM: z.number({ error: 'The chainage at the start of the stroke is empty; every row needs one.' }),
     chainageEndM: z.number({ error: 'The chainage at the end of the stroke is empty; every row needs one.' }),
     /** Measured cutterhead revolutions over the stroke; null when only penetration is logged. */
-    revolutions: optionalAtLeastZero('Cutterhead revolutions'),
+    revolutions: nullableAtLeastZero('Cutterhead revolutions'),
     penetrationMmPerRev: z
       .number()
       .positive('Penetration must be greater than 0 mm/rev; leave the cell empty when it was not recorded.')
       .nullable(),
-    rpm: optionalAtLeastZero('Cutterhead speed'),
-    thrustKn: optionalAtLeastZero('Thrust'),
-    torqueKnm: optionalAtLeastZero('Torque'),
+    rpm: nullableAtLeastZero('Cutterhead speed'),
+    thrustKn: nullableAtLeastZero('Thrust'),
+    torqueKnm: nullableAtLeastZero('Torque'),
     /** Columns of the file that map to no field, by header, as text. */
     extra: z.record(z.string(), z.string()),
   })
@@ -144,15 +144,25 @@ export const geologySectionRowSchema = z
     chainageFromM: z.number({ error: 'Chainage from is empty; every section needs one.' }),
     /** Greater than chainageFromM whatever the drive direction (see shared/domain/geology.ts). */
     chainageToM: z.number({ error: 'Chainage to is empty; every section needs one.' }),
-    groundTypeName: z.string({ error: 'The ground type is empty; name the ground of this section.' }).min(1),
-    waterHeadM: z.number().min(0, 'The water head above the tunnel axis cannot be negative; leave it empty when unknown.').nullable(),
+    // Limits as in shared/schemas/geology.ts, so rows that pass here also pass the section input.
+    groundTypeName: z.string({ error: 'The ground type is empty; name the ground of this section.' }).min(1).max(80, 'Keep the ground type name to 80 characters.'),
+    waterHeadM: z
+      .number()
+      .min(0, 'The water head above the tunnel axis cannot be negative; leave it empty when unknown.')
+      .max(500, 'The water head above the tunnel axis must be at most 500 m.')
+      .nullable(),
     stopAllowed: z.boolean({ error: 'Say whether a stop is allowed in this section: yes or no.' }),
-    stopReason: z.string().nullable(),
+    stopReason: z.string().max(300, 'Keep the stop reason to 300 characters.').nullable(),
   })
   .refine((row) => row.chainageToM > row.chainageFromM, {
     path: ['chainageToM'],
     message: 'Chainage to must be greater than chainage from: give the lower chainage as "from", whatever the drive direction.',
     when: whenValid('chainageFromM', 'chainageToM'),
+  })
+  .refine((row) => row.stopAllowed || row.stopReason !== null, {
+    path: ['stopReason'],
+    message: 'Say why no stop is allowed in this section (for example: fault zone).',
+    when: whenValid('stopAllowed', 'stopReason'),
   });
 export type GeologySectionRow = z.infer<typeof geologySectionRowSchema>;
 
