@@ -365,7 +365,9 @@ class IssueLog {
   error(issue: CsvIssue): void {
     this.errorCount += 1;
     this.linesWithErrors.add(issue.row);
-    if (this.errors.length < this.maxErrors) this.errors.push(issue);
+    // A refusal of the whole file (row 0) is always kept, ahead of any row errors.
+    if (issue.row === 0) this.errors.unshift(issue);
+    else if (this.errors.length < this.maxErrors) this.errors.push(issue);
   }
 
   warning(issue: CsvIssue): void {

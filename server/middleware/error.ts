@@ -1,13 +1,13 @@
 import type { NextFunction, Request, Response } from 'express';
 import { ZodError } from 'zod';
-import { HttpError } from '../lib/http-error';
+import { HttpError, type Issue } from '../lib/http-error';
 import { logger } from '../lib/logger';
 
 interface ErrorBody {
-  error: { message: string; issues: { path: string; message: string }[] };
+  error: { message: string; issues: Issue[] } & Record<string, unknown>;
 }
 
-const body = (message: string, issues: ErrorBody['error']['issues'] = []): ErrorBody => ({ error: { message, issues } });
+const body = (message: string, issues: Issue[] = [], details: Record<string, unknown> = {}): ErrorBody => ({ error: { ...details, message, issues } });
 
 /** The one error middleware: a message a person can act on, never a stack trace. */
 export function errorHandler(err: unknown, req: Request, res: Response, _next: NextFunction) {
@@ -21,7 +21,7 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
     return;
   }
   if (err instanceof HttpError) {
-    res.status(err.status).json(body(err.message, err.issues));
+    res.status(err.status).json(body(err.message, err.issues, err.details));
     return;
   }
   const e = err as { type?: string; status?: number; statusCode?: number; code?: string; cause?: { code?: string } };

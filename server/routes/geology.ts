@@ -8,7 +8,9 @@ import { geologySections, groundTypes, strokes } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
+import { readGeologyCsv } from '../lib/csv-import';
 import { idParam } from '../lib/params';
+import { csvRefusal, uploadStream } from './strokes';
 import { invalidateRolledDistance, refreshRolledDistance } from '../services/rolled-distance';
 
 export const groundTypesRouter = Router({ mergeParams: true });
@@ -96,4 +98,45 @@ geologyRouter.put('/', requireProject('drive.edit'), async (req, res) => {
     await refreshRolledDistance(tx, projectId);
   });
   res.json({ saved: sections.length, warnings: check.warnings });
+});
+
+/**
+ * Imports the long section from a CSV sent as the raw body and replaces the stored one, all or
+ * nothing. Ground types are found by name; names not yet known become new ground types (listed
+ * in the warnings so the planner adds their CAI).
+ */
+geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const me = requireUser(req);
+  if (req.is('application/json') || req.is('multipart/form-data')) throw badRequest('Send the CSV file itself as the request body (Content-Type text/csv).');
+  const upload = uploadStream(req);
+  const result = await readGeologyCsv(upload.body);
+  await upload.drain();
+  if (!result.ok) throw csvRefusal(result.errors, result.errorCount, result.detected);
+  const outcome = await db.transaction(async (tx) => {
+    const known = await tx.select().from(groundTypes).where(eq(groundTypes.projectId, projectId));
+    const byName = new Map(known.map((g) => [g.name.toLowerCase(), g.id]));
+    const created: string[] = [];
+    for (const r of result.rows) {
+      const key = r.data.groundTypeName.trim().toLowerCase();
+      if (byName.has(key)) continue;
+      const [g] = await tx.insert(groundTypes).values({ projectId, name: r.data.groundTypeName.trim() }).returning();
+      byName.set(key, g.id);
+      created.push(g.name);
+    }
+    const before = await tx.delete(geologySections).where(eq(geologySections.projectId, projectId)).returning();
+    const after = await tx.insert(geologySections).values(result.rows.map((r) => ({
+      projectId, chainageFromM: r.data.chainageFromM, chainageToM: r.data.chainageToM, groundTypeId: byName.get(r.data.groundTypeName.trim().toLowerCase())!,
+      waterHeadM: r.data.waterHeadM ?? 0, stopAllowed: r.data.stopAllowed, stopReason: r.data.stopReason ?? '',
+    }))).returning();
+    await audit(tx, { userId: me.id, projectId, entity: 'geology', entityId: projectId, action: 'import', before, after });
+    await invalidateRolledDistance(tx, projectId);
+    await refreshRolledDistance(tx, projectId);
+    return { saved: after.length, createdGroundTypes: created };
+  });
+  const warnings = [
+    ...result.warnings,
+    ...outcome.createdGroundTypes.map((name) => ({ row: 0, column: 'Ground type', message: `New ground type "${name}" was created; add its CAI so wear can be forecast before site data exists.` })),
+  ];
+  res.status(201).json({ saved: outcome.saved, warnings, detected: result.detected });
 });
