@@ -79,7 +79,7 @@ adminRouter.patch('/users/:userId', async (req, res) => {
 
 adminRouter.get('/projects', async (_req, res) => {
   const rows = await db
-    .select({ project: projects, members: sql<number>`(select count(*)::int from memberships m where m.project_id = ${projects.id})` })
+    .select({ project: projects, members: sql<number>`(select count(*)::int from memberships m where m.project_id = projects.id)` })
     .from(projects)
     .orderBy(asc(projects.name));
   res.json(rows.map((r) => ({ ...r.project, memberCount: r.members })));

@@ -7,7 +7,6 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { idParam } from '../lib/params';
 import { computeForecast, computeWearFit, loadForecastSettings } from '../services/forecast';
-import { refreshRolledDistance } from '../services/rolled-distance';
 
 export const wearFitRouter = Router({ mergeParams: true });
 export const forecastRouter = Router({ mergeParams: true });
@@ -15,10 +14,7 @@ export const forecastRouter = Router({ mergeParams: true });
 /** Fitted wear rates per ground type, where each comes from, the measurements behind them, and sudden failures. */
 wearFitRouter.get('/', requireProject('forecast.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
-  const report = await db.transaction(async (tx) => {
-    await refreshRolledDistance(tx, projectId);
-    return computeWearFit(tx, projectId, await loadForecastSettings(tx, projectId));
-  });
+  const report = await db.transaction((tx) => computeWearFit(tx, projectId));
   const name = new Map(report.grounds.map((g) => [g.id, g.name]));
   // Chart points: inspections whose disc rolled in one ground only, per ground.
   const points = report.observations

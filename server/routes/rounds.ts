@@ -17,8 +17,8 @@ roundsRouter.get('/', requireProject('rounds.read'), async (req, res) => {
   const rows = await db
     .select({
       round: inspectionRounds,
-      entries: sql<number>`(select count(*)::int from inspection_entries e where e.round_id = ${inspectionRounds.id})`,
-      changes: sql<number>`(select count(*)::int from inspection_entries e where e.round_id = ${inspectionRounds.id} and e.action = 'changed')`,
+      entries: sql<number>`(select count(*)::int from inspection_entries e where e.round_id = inspection_rounds.id)`,
+      changes: sql<number>`(select count(*)::int from inspection_entries e where e.round_id = inspection_rounds.id and e.action = 'changed')`,
     })
     .from(inspectionRounds)
     .where(eq(inspectionRounds.projectId, projectId))

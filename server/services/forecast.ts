@@ -1,8 +1,9 @@
 /**
- * Wear fit and change-out forecast of a project, from the database: reads the layout, geology,
- * advance log, inspections and their exposures, and hands them to the pure functions in
- * shared/domain (wear-fit.ts, forecast.ts). Computed on request, so a forecast always reflects the
- * latest inspections, imports and geology (DEVELOPERS.md, decision 12).
+ * Wear fit and change-out forecast of a project. `loadForecastData` reads everything from the
+ * database (layout, geology, advance log, inspections with their exposures, fitted periods);
+ * `buildWearFit` and `buildForecast` compute from that with the pure functions in shared/domain.
+ * Computed on request, so a forecast always reflects the latest inspections, imports and geology
+ * (DEVELOPERS.md, decision 12). The split lets the benchmark time reading and computing apart.
  */
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { discConditions, type PositionClass } from '../../shared/cutters';
@@ -13,9 +14,7 @@ import { gehringPriorRateMmPerKm } from '../../shared/domain/gehring-prior';
 import { findSectionAt } from '../../shared/domain/geology';
 import { fitWearRates, suddenFailureRatesPer1000Km, type NormalWearObservation, type WearFit } from '../../shared/domain/wear-fit';
 import type { DbOrTx } from '../db/client';
-import {
-  fittingRolledKm, forecastSettings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, projects, strokes,
-} from '../db/schema';
+import { fittingRolledKm, forecastSettings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, projects, strokes } from '../db/schema';
 import { refreshRolledDistance, UNKNOWN_GROUND } from './rolled-distance';
 
 export const defaultForecastSettings = {
@@ -32,6 +31,7 @@ export type ForecastSettings = typeof defaultForecastSettings;
 
 /** Settings of the cautious rates (shared/domain/cautious-rates.ts; DEVELOPERS.md, decision 13). */
 export const cautiousRateOptions = { probability: 0.9, minPredictedMm: 5, priorMargin: 0.5 };
+
 const abnormalKeys = new Set<string>(discConditions.filter((c) => c.abnormal).map((c) => c.key));
 
 export async function loadForecastSettings(tx: DbOrTx, projectId: string): Promise<ForecastSettings> {
@@ -39,28 +39,18 @@ export async function loadForecastSettings(tx: DbOrTx, projectId: string): Promi
   return row ? { ...defaultForecastSettings, ...row } : defaultForecastSettings;
 }
 
-export interface WearFitReport {
-  fit: WearFit;
-  grounds: { id: string; name: string; cai: number | null; caiClass: ReturnType<typeof classifyCai> | null; priorMmPerKm: number | null }[];
-  failures: ReturnType<typeof suddenFailureRatesPer1000Km>;
-  abnormalEvents: { entryId: string; at: Date; positionNumber: number; conditions: string[]; chainageM: number }[];
-  observations: { wearMm: number; positionClass: PositionClass; rolledKmByGround: Record<string, number> }[];
-  ringDiameterMm: number;
-}
-
-/** The wear fit of a project: site observations, Gehring priors per ground, sudden-failure rates. */
-export async function computeWearFit(tx: DbOrTx, projectId: string, settings: ForecastSettings): Promise<WearFitReport> {
+/** Everything the wear fit and the forecast read, as plain data. */
+export async function loadForecastData(tx: DbOrTx, projectId: string) {
+  const settings = await loadForecastSettings(tx, projectId);
+  const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
   const grounds = await tx.select().from(groundTypes).where(eq(groundTypes.projectId, projectId)).orderBy(asc(groundTypes.name));
-  const positionRows = await tx.select().from(positions).where(eq(positions.projectId, projectId));
-  const sizes = positionRows.map((p) => p.discSizeIn);
-  const commonSize = sizes.sort((a, b) => sizes.filter((s) => s === b).length - sizes.filter((s) => s === a).length)[0] ?? 17;
-  const ringDiameterMm = commonSize * 25.4;
-  const priors: Record<string, number> = {};
-  for (const g of grounds) {
-    if (g.cai != null) priors[g.id] = gehringPriorRateMmPerKm({ cai: g.cai, ringDiameterMm, tipWidthMm: settings.tipWidthMm, siteFactor: settings.gehringSiteFactor });
-  }
-
-  const rows = await tx
+  const sections = await tx.select().from(geologySections).where(eq(geologySections.projectId, projectId));
+  const strokeRows = await tx
+    .select({ ringNumber: strokes.ringNumber, endTime: strokes.endTime, from: strokes.chainageStartM, to: strokes.chainageEndM, revolutions: strokes.revolutions, penetration: strokes.penetrationMmPerRev })
+    .from(strokes)
+    .where(eq(strokes.projectId, projectId))
+    .orderBy(asc(strokes.ringNumber));
+  const inspections = await tx
     .select({
       entryId: inspectionEntries.id, wearMm: inspectionEntries.wearMm, conditions: inspectionEntries.conditions, positionClass: positions.positionClass,
       positionNumber: positions.number, at: inspectionRounds.startedAt, chainageM: inspectionRounds.chainageM,
@@ -70,15 +60,66 @@ export async function computeWearFit(tx: DbOrTx, projectId: string, settings: Fo
     .innerJoin(positions, eq(positions.id, inspectionEntries.positionId))
     .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
     .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
+  const kmByGroundTotal = await tx
+    .select({ groundKey: fittingRolledKm.groundKey, km: sql<number>`sum(${fittingRolledKm.rolledKm})::float8` })
+    .from(fittingRolledKm)
+    .where(eq(fittingRolledKm.projectId, projectId))
+    .groupBy(fittingRolledKm.groundKey);
+  const current = await tx.execute<{
+    position_id: string; number: number; position_class: PositionClass; track_radius_mm: number; twin_disc: boolean; wear_limit_mm: number; tilt_deg: number | null;
+    disc_size_in: number; fitting_id: string | null; serial: string | null; fitted_chainage_m: number | null; last_entry_id: string | null; last_wear_mm: number | null;
+    last_chainage_m: number | null; last_at: Date | null;
+  }>(sql`
+    select p.id as position_id, p.number, p.position_class, p.track_radius_mm, p.twin_disc, p.wear_limit_mm, p.tilt_deg, p.disc_size_in,
+           f.id as fitting_id, c.serial, f.fitted_chainage_m, w.id as last_entry_id, w.wear_mm as last_wear_mm, w.chainage_m as last_chainage_m, w.started_at as last_at
+    from positions p
+    left join fittings f on f.position_id = p.id and f.removed_at is null
+    left join cutters c on c.id = f.cutter_id
+    left join lateral (
+      select e.id, e.wear_mm, r.chainage_m, r.started_at from inspection_entries e join inspection_rounds r on r.id = e.round_id
+      where e.fitting_id = f.id and e.wear_mm is not null and e.action = 'none'
+      order by r.started_at desc, e.recorded_at desc limit 1
+    ) w on true
+    where p.project_id = ${projectId} order by p.number`);
+  const rolled = await tx.execute<{ key: string; ground_key: string; km: number }>(sql`
+    select f.fitting_id::text as key, f.ground_key, f.rolled_km as km from fitting_rolled_km f
+      join fittings x on x.id = f.fitting_id where f.project_id = ${projectId} and x.removed_at is null
+    union all
+    select k.entry_id::text, k.ground_key, k.rolled_km from entry_rolled_km k
+      join (select distinct on (e.position_id) e.id from inspection_entries e join inspection_rounds r on r.id = e.round_id
+            where e.project_id = ${projectId} and e.wear_mm is not null and e.action = 'none'
+            order by e.position_id, r.started_at desc, e.recorded_at desc) latest on latest.id = k.entry_id`);
+  return { settings, project, grounds, sections, strokes: strokeRows, inspections, kmByGroundTotal, positions: current.rows, rolled: rolled.rows };
+}
+export type ForecastData = Awaited<ReturnType<typeof loadForecastData>>;
 
+export interface WearFitReport {
+  fit: WearFit;
+  grounds: { id: string; name: string; cai: number | null; caiClass: ReturnType<typeof classifyCai> | null; priorMmPerKm: number | null }[];
+  failures: ReturnType<typeof suddenFailureRatesPer1000Km>;
+  abnormalEvents: { entryId: string; at: Date; positionNumber: number; conditions: string[]; chainageM: number }[];
+  observations: NormalWearObservation[];
+  ringDiameterMm: number;
+}
+
+/** The wear fit: site observations (normal wear), Gehring priors per ground, sudden-failure rates. */
+export function buildWearFit(data: ForecastData): WearFitReport {
+  const { settings, grounds } = data;
+  const sizes = data.positions.map((p) => p.disc_size_in);
+  const commonSize = [...sizes].sort((a, b) => sizes.filter((s) => s === b).length - sizes.filter((s) => s === a).length)[0] ?? 17;
+  const ringDiameterMm = commonSize * 25.4;
+  const priors: Record<string, number> = {};
+  for (const g of grounds) {
+    if (g.cai != null) priors[g.id] = gehringPriorRateMmPerKm({ cai: g.cai, ringDiameterMm, tipWidthMm: settings.tipWidthMm, siteFactor: settings.gehringSiteFactor });
+  }
   const observations: NormalWearObservation[] = [];
   const abnormalEvents: WearFitReport['abnormalEvents'] = [];
   const eventsByGround: Record<string, number> = {};
-  for (const r of rows) {
+  for (const r of data.inspections) {
     const exposure = Object.fromEntries(Object.entries(r.exposure ?? {}).filter(([k, km]) => k !== UNKNOWN_GROUND && km > 0));
     if (r.conditions.some((c) => abnormalKeys.has(c))) {
       abnormalEvents.push({ entryId: r.entryId, at: r.at, positionNumber: r.positionNumber, conditions: r.conditions, chainageM: r.chainageM });
-      // Attributed to the ground the disc rolled most in since fitting (documented choice).
+      // Counted in the ground the disc rolled most in since it was fitted (DEVELOPERS.md, decision 13).
       const main = Object.entries(exposure).sort((a, b) => b[1] - a[1])[0]?.[0];
       if (main) eventsByGround[main] = (eventsByGround[main] ?? 0) + 1;
       continue;
@@ -90,14 +131,7 @@ export async function computeWearFit(tx: DbOrTx, projectId: string, settings: Fo
     classFactors: settings.classFactors,
     prior: Object.keys(priors).length > 0 ? { rateMmPerKmByGround: priors, strengthObservations: settings.priorStrength } : undefined,
   });
-
-  // Total km rolled per ground by every disc, for the failure rates.
-  const totals = await tx
-    .select({ groundKey: fittingRolledKm.groundKey, km: sql<number>`sum(${fittingRolledKm.rolledKm})::float8` })
-    .from(fittingRolledKm)
-    .where(eq(fittingRolledKm.projectId, projectId))
-    .groupBy(fittingRolledKm.groundKey);
-  const kmByGround = Object.fromEntries(totals.filter((t) => t.groundKey !== UNKNOWN_GROUND).map((t) => [t.groundKey, t.km]));
+  const kmByGround = Object.fromEntries(data.kmByGroundTotal.filter((t) => t.groundKey !== UNKNOWN_GROUND).map((t) => [t.groundKey, t.km]));
   return {
     fit,
     grounds: grounds.map((g) => ({ id: g.id, name: g.name, cai: g.cai, caiClass: g.cai == null ? null : classifyCai(g.cai), priorMmPerKm: priors[g.id] ?? null })),
@@ -135,62 +169,35 @@ export interface ProjectForecast {
   driveRates: ReturnType<typeof estimateDriveRates>;
   positions: PositionForecast[];
   problems: string[];
+  wearFit: WearFitReport;
 }
 
 /** The change-out forecast of every position, walking the geology ahead of the machine. */
-export async function computeForecast(tx: DbOrTx, projectId: string, now: Date): Promise<ProjectForecast & { wearFit: WearFitReport; settings: ForecastSettings }> {
-  await refreshRolledDistance(tx, projectId);
-  const settings = await loadForecastSettings(tx, projectId);
-  const wearFit = await computeWearFit(tx, projectId, settings);
+export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
+  const { settings, project } = data;
+  const wearFit = buildWearFit(data);
   const rates = forecastRates(wearFit);
-  const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
-  const sectionRows = await tx.select().from(geologySections).where(eq(geologySections.projectId, projectId));
-  const strokeRows = await tx
-    .select({ ringNumber: strokes.ringNumber, endTime: strokes.endTime, from: strokes.chainageStartM, to: strokes.chainageEndM, revolutions: strokes.revolutions, penetration: strokes.penetrationMmPerRev })
-    .from(strokes)
-    .where(eq(strokes.projectId, projectId))
-    .orderBy(asc(strokes.ringNumber));
-  const problems: string[] = [];
-  const last = strokeRows.at(-1);
-  const domainSections = sectionRows.map((s) => ({ ...s, stopReason: s.stopReason || null }));
+  const domainSections = data.sections.map((s) => ({ ...s, stopReason: s.stopReason || null }));
   const driveRates = estimateDriveRates(
-    strokeRows.map((s) => ({
+    data.strokes.map((s) => ({
       endedAt: s.endTime, fromChainageM: s.from, toChainageM: s.to, cutterheadRevolutions: s.revolutions, penetrationMmPerRev: s.penetration,
       groundTypeId: findSectionAt(domainSections, (s.from + s.to) / 2)?.groundTypeId ?? null,
     })),
     settings.overrides,
     settings.windowStrokes,
   );
-  const base = { now, currentChainageM: last?.to ?? null, currentRingNumber: last?.ringNumber ?? null, rates, driveRates, wearFit, settings };
+  const last = data.strokes.at(-1);
+  const problems: string[] = [];
+  const base = { now, currentChainageM: last?.to ?? null, currentRingNumber: last?.ringNumber ?? null, rates, driveRates, wearFit };
   if (!last) return { ...base, positions: [], problems: ['No advance log yet: import the machine’s strokes to forecast.'] };
   if (Object.keys(rates.byGround).length === 0) return { ...base, positions: [], problems: ['No wear rate yet: give the ground types a CAI or record inspections.'] };
+  if (Object.keys(driveRates.penetrationMmPerRevByGround).length === 0) return { ...base, positions: [], problems: ['No penetration known yet: the advance log has no strokes in mapped ground.'] };
 
-  const current = await tx.execute<{
-    position_id: string; number: number; position_class: PositionClass; track_radius_mm: number; twin_disc: boolean; wear_limit_mm: number; tilt_deg: number | null;
-    fitting_id: string | null; serial: string | null; fitted_chainage_m: number | null; last_entry_id: string | null; last_wear_mm: number | null;
-    last_chainage_m: number | null; last_at: Date | null;
-  }>(sql`
-    select p.id as position_id, p.number, p.position_class, p.track_radius_mm, p.twin_disc, p.wear_limit_mm, p.tilt_deg,
-           f.id as fitting_id, c.serial, f.fitted_chainage_m, w.id as last_entry_id, w.wear_mm as last_wear_mm, w.chainage_m as last_chainage_m, w.started_at as last_at
-    from positions p
-    left join fittings f on f.position_id = p.id and f.removed_at is null
-    left join cutters c on c.id = f.cutter_id
-    left join lateral (
-      select e.id, e.wear_mm, r.chainage_m, r.started_at from inspection_entries e join inspection_rounds r on r.id = e.round_id
-      where e.fitting_id = f.id and e.wear_mm is not null and e.action = 'none'
-      order by r.started_at desc, e.recorded_at desc limit 1
-    ) w on true
-    where p.project_id = ${projectId} order by p.number`);
-  const kmRows = await tx.execute<{ key: string; ground_key: string; km: number }>(sql`
-    select fitting_id::text as key, ground_key, rolled_km as km from fitting_rolled_km where project_id = ${projectId}
-    union all
-    select entry_id::text, ground_key, rolled_km from entry_rolled_km where project_id = ${projectId}`);
   const km = new Map<string, Record<string, number>>();
-  for (const r of kmRows.rows) km.set(r.key, { ...km.get(r.key), [r.ground_key]: r.km });
-
-  const geology = sectionRows.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId }));
+  for (const r of data.rolled) km.set(r.key, { ...km.get(r.key), [r.ground_key]: r.km });
+  const geology = data.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId }));
   const result: PositionForecast[] = [];
-  for (const p of current.rows) {
+  for (const p of data.positions) {
     if (!p.fitting_id) {
       problems.push(`Position ${p.number} has no cutter fitted.`);
       continue;
@@ -222,3 +229,14 @@ export async function computeForecast(tx: DbOrTx, projectId: string, now: Date):
   return { ...base, positions: result, problems };
 }
 
+/** Brings rolled distances up to date, reads, and computes the forecast. */
+export async function computeForecast(tx: DbOrTx, projectId: string, now: Date): Promise<ProjectForecast> {
+  await refreshRolledDistance(tx, projectId);
+  return buildForecast(await loadForecastData(tx, projectId), now);
+}
+
+/** Brings rolled distances up to date, reads, and computes the wear fit. */
+export async function computeWearFit(tx: DbOrTx, projectId: string): Promise<WearFitReport> {
+  await refreshRolledDistance(tx, projectId);
+  return buildWearFit(await loadForecastData(tx, projectId));
+}

@@ -172,28 +172,54 @@ export function sumRolledKmByPeriod(
 ): PeriodRolledKm[] {
   const totals = new Map<string, Map<string | null, number>>();
   const add = (periodId: string, groundTypeId: string | null, km: number) => {
-    const byGround = totals.get(periodId) ?? new Map<string | null, number>();
+    let byGround = totals.get(periodId);
+    if (!byGround) totals.set(periodId, (byGround = new Map()));
     byGround.set(groundTypeId, (byGround.get(groundTypeId) ?? 0) + km);
-    totals.set(periodId, byGround);
   };
   for (const t of previous) add(t.periodId, t.groundTypeId, t.rolledKm);
 
-  const windowsByPosition = new Map<string, { id: string; fromMs: number; toMs: number }[]>();
-  for (const p of periods) {
-    const window = {
-      id: p.id,
-      fromMs: requireTimeMs(p.fromTime, `Period ${p.id}`),
-      toMs: p.toTime === null ? Infinity : requireTimeMs(p.toTime, `Period ${p.id}`),
-    };
-    windowsByPosition.set(p.positionId, [...(windowsByPosition.get(p.positionId) ?? []), window]);
-  }
   const startMsByStroke = new Map(strokes.map((s) => [s.id, requireTimeMs(s.startTime, `Stroke ${s.id}`)]));
-
+  // Per position and ground: the rows' stroke start times in order and the running sum of their km,
+  // so a period's total is a difference of two running sums found by binary search (many periods,
+  // e.g. one per inspection, stay cheap).
+  const series = new Map<string, { times: number[]; cumKm: number[]; groundTypeId: string | null }[]>();
+  const byKey = new Map<string, { ms: number; km: number }[]>();
   for (const row of rows) {
     const startMs = startMsByStroke.get(row.strokeId);
     if (startMs === undefined) throw new Error(`Row of stroke ${row.strokeId}, which is not among the strokes given`);
-    for (const w of windowsByPosition.get(row.positionId) ?? []) {
-      if (w.fromMs <= startMs && startMs < w.toMs) add(w.id, row.groundTypeId, row.rolledKm);
+    const key = `${row.positionId}\u0000${row.groundTypeId ?? ''}`;
+    let list = byKey.get(key);
+    if (!list) {
+      byKey.set(key, (list = []));
+      const forPosition = series.get(row.positionId) ?? [];
+      series.set(row.positionId, forPosition);
+    }
+    list.push({ ms: startMs, km: row.rolledKm });
+  }
+  for (const [key, list] of byKey) {
+    const [positionId, ground] = key.split('\u0000');
+    list.sort((a, b) => a.ms - b.ms);
+    const cumKm = [0];
+    for (const item of list) cumKm.push(cumKm[cumKm.length - 1] + item.km);
+    series.get(positionId)!.push({ times: list.map((i) => i.ms), cumKm, groundTypeId: ground === '' ? null : ground });
+  }
+  /** Number of entries of the sorted `times` that are < `ms`. */
+  const countBefore = (times: number[], ms: number) => {
+    let lo = 0;
+    let hi = times.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (times[mid] < ms) lo = mid + 1;
+      else hi = mid;
+    }
+    return lo;
+  };
+  for (const p of periods) {
+    const fromMs = requireTimeMs(p.fromTime, `Period ${p.id}`);
+    const toMs = p.toTime === null ? Infinity : requireTimeMs(p.toTime, `Period ${p.id}`);
+    for (const s of series.get(p.positionId) ?? []) {
+      const km = s.cumKm[countBefore(s.times, toMs)] - s.cumKm[countBefore(s.times, fromMs)];
+      if (km !== 0) add(p.id, s.groundTypeId, km);
     }
   }
   return [...totals].flatMap(([periodId, byGround]) =>

@@ -129,6 +129,15 @@ describe('inspection entries', () => {
     expect(asNew.status, JSON.stringify(asNew.body)).toBe(201);
   });
 
+  it('the rounds list counts each round’s entries and changes', async () => {
+    const list = await fitter.get(`/api/projects/${projectId}/rounds`);
+    const first = list.body.find((r: { id: string }) => r.id === roundId);
+    const stored = await db.select().from(inspectionEntries).where(eq(inspectionEntries.roundId, roundId));
+    expect(first.entryCount).toBe(stored.length);
+    expect(first.changeCount).toBe(stored.filter((e) => e.action === 'changed').length);
+    expect(first.changeCount).toBeGreaterThan(0);
+  });
+
   it('editing an entry after the fact keeps the previous values in the audit log', async () => {
     const pos = drive.positions[1];
     const r = await newRound(fitter, '2026-11-16T08:00:00Z', 640);

@@ -1,7 +1,7 @@
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { Suspense, useState } from 'react';
 import { Link, Navigate, NavLink, Outlet, useLocation, useMatch, useNavigate } from 'react-router';
-import { roleLabels } from '../../../shared/roles';
+import { roleCan, roleLabels } from '../../../shared/roles';
 import { paths } from '../../config/paths';
 import { authQueries, signOut } from '../../features/auth/api';
 import { Logo } from './logo';
@@ -51,7 +51,17 @@ export function AppShell() {
             Menu
           </button>
           <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:ml-auto md:flex md:w-auto md:flex-row md:items-center`}>
-            {projectId && membership && <NavLink end to={paths.project(projectId)} className={navLink}>Overview</NavLink>}
+            {projectId && membership && (
+              <>
+                <NavLink end to={paths.project(projectId)} className={navLink}>Overview</NavLink>
+                <NavLink to={paths.cutterhead(projectId)} className={navLink}>Cutterhead</NavLink>
+                {roleCan(membership.role, 'forecast.read') && <NavLink to={paths.forecast(projectId)} className={navLink}>Forecast</NavLink>}
+                {roleCan(membership.role, 'forecast.read') && <NavLink to={paths.wearFits(projectId)} className={navLink}>Wear rates</NavLink>}
+                {roleCan(membership.role, 'rounds.read') && <NavLink to={paths.rounds(projectId)} className={navLink}>Rounds</NavLink>}
+                <NavLink to={paths.cutters(projectId)} className={navLink}>Cutters</NavLink>
+                <NavLink to={paths.layout(projectId)} className={navLink}>Layout</NavLink>
+              </>
+            )}
             {me.memberships.length > 1 && <NavLink end to={paths.home} className={navLink}>Projects</NavLink>}
             {me.user.isAdmin && <NavLink to={paths.admin.users} className={navLink}>Administration</NavLink>}
             <NavLink to={paths.account} className={navLink}>{me.user.name}</NavLink>

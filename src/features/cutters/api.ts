@@ -1,0 +1,72 @@
+import { queryOptions } from '@tanstack/react-query';
+import type { CutterStatus } from '../../../shared/cutters';
+import type { ReceiveCutterInput, WorkshopInput } from '../../../shared/schemas/cutter';
+import { api, apiGet } from '../../lib/api-client';
+
+export interface Cutter {
+  id: string;
+  serial: string;
+  discSizeIn: number;
+  status: CutterStatus;
+  rebuildCount: number;
+  notes: string;
+  createdAt: string;
+  updatedAt: string;
+}
+
+/** A row of the store list: the serial, its state and, when fitted, where and since when. */
+export interface CutterListItem extends Cutter {
+  positionNumber: number | null;
+  fittedAt: string | null;
+}
+
+export interface CutterLife {
+  cutter: Cutter;
+  periods: {
+    id: string;
+    positionId: string;
+    positionNumber: number;
+    fittedAt: string;
+    fittedChainageM: number;
+    fittedRing: number | null;
+    removedAt: string | null;
+    removedChainageM: number | null;
+    removedRing: number | null;
+    removalReason: string | null;
+  }[];
+  events: {
+    id: number;
+    at: string;
+    kind: string;
+    positionId: string | null;
+    positionNumber: number | null;
+    details: Record<string, unknown>;
+  }[];
+}
+
+export interface CutterFilters {
+  status?: CutterStatus;
+  q?: string;
+}
+
+const base = (projectId: string) => `/api/projects/${projectId}/cutters`;
+
+export function getCutters(projectId: string, filters: CutterFilters) {
+  const params = new URLSearchParams();
+  if (filters.status) params.set('status', filters.status);
+  if (filters.q) params.set('q', filters.q);
+  const query = params.toString();
+  return apiGet<CutterListItem[]>(query ? `${base(projectId)}?${query}` : base(projectId));
+}
+export const getCutter = (projectId: string, cutterId: string) => apiGet<CutterLife>(`${base(projectId)}/${cutterId}`);
+export const receiveCutter = (projectId: string, input: ReceiveCutterInput) => api<Cutter>('POST', base(projectId), input);
+export const recordWorkshop = (projectId: string, cutterId: string, input: WorkshopInput) =>
+  api<Cutter>('POST', `${base(projectId)}/${cutterId}/workshop`, input);
+
+export const cutterQueries = {
+  all: (projectId: string) => ['projects', projectId, 'cutters'] as const,
+  list: (projectId: string, filters: CutterFilters) =>
+    queryOptions({ queryKey: [...cutterQueries.all(projectId), 'list', filters], queryFn: () => getCutters(projectId, filters) }),
+  detail: (projectId: string, cutterId: string) =>
+    queryOptions({ queryKey: [...cutterQueries.all(projectId), 'detail', cutterId], queryFn: () => getCutter(projectId, cutterId) }),
+};

@@ -1,0 +1,23 @@
+/** Display formats shared by the field screens: chainage as km+m, dates in the site's time zone. */
+
+/** Chainage in metres as `km+mmm.m` (e.g. 1234.5 → "1+234.5"). */
+export function formatChainage(chainageM: number | null | undefined): string {
+  if (chainageM == null) return '—';
+  const km = Math.floor(Math.abs(chainageM) / 1000);
+  const rest = (Math.abs(chainageM) - km * 1000).toFixed(1).padStart(5, '0');
+  return `${chainageM < 0 ? '-' : ''}${km}+${rest}`;
+}
+
+/** A date (ISO text or Date) as YYYY-MM-DD in `timeZone`. */
+export function formatDate(at: string | Date | null | undefined, timeZone: string): string {
+  if (at == null) return '—';
+  return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date(at));
+}
+
+/** A date and time as YYYY-MM-DD HH:mm in `timeZone`. */
+export function formatDateTime(at: string | Date | null | undefined, timeZone: string): string {
+  if (at == null) return '—';
+  const d = new Date(at);
+  const time = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(d);
+  return `${formatDate(d, timeZone)} ${time}`;
+}

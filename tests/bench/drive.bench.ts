@@ -1,0 +1,74 @@
+/**
+ * Drive-data and forecast benchmark on the synthetic 10 km drive (issue 4 and 5 targets):
+ * full rolled-distance recompute; the full forecast (fit + all positions) against the time to read
+ * its rows from PostgreSQL.
+ */
+import { eq, sql } from 'drizzle-orm';
+import { db } from '../../server/db/client';
+import { cutters, entrySubmissions, fittings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, projects, strokes } from '../../server/db/schema';
+import { buildForecast, loadForecastData } from '../../server/services/forecast';
+import { invalidateRolledDistance, refreshRolledDistance } from '../../server/services/rolled-distance';
+import { BENCH_RINGS, benchGeology, benchGroundTypes, benchLayout, benchStrokes } from './generate-drive';
+
+const START_M = 0;
+const START_MS = Date.UTC(2026, 0, 5, 6);
+
+const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+async function timeIt<T>(runs: number, fn: () => Promise<T> | T): Promise<{ ms: number; last: T }> {
+  const times: number[] = [];
+  let last!: T;
+  for (let i = 0; i < runs; i++) {
+    const t = performance.now();
+    last = await fn();
+    times.push(performance.now() - t);
+  }
+  return { ms: median(times), last };
+}
+
+/** Loads the synthetic drive: layout, geology, strokes, a fitted cutter per position and rounds every ~250 m. */
+export async function loadBenchDrive(): Promise<string> {
+  const [project] = await db.insert(projects).values({ name: `Bench drive ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' }).returning();
+  const projectId = project.id;
+  const grounds = await db.insert(groundTypes).values(benchGroundTypes.map((g) => ({ ...g, projectId }))).returning();
+  await db.insert(geologySections).values(benchGeology(START_M).map((s) => ({ projectId, chainageFromM: s.fromM, chainageToM: s.toM, groundTypeId: grounds[s.ground].id, stopAllowed: s.stopAllowed, stopReason: s.stopAllowed ? '' : 'bench no-stop' })));
+  const layout = await db.insert(positions).values(benchLayout().map((p) => ({ ...p, projectId }))).returning();
+  const rows = benchStrokes(1, BENCH_RINGS, START_M, START_MS);
+  for (let i = 0; i < rows.length; i += 1000) await db.insert(strokes).values(rows.slice(i, i + 1000).map((r) => ({ ...r, projectId })));
+  const serials = await db.insert(cutters).values(layout.map((p) => ({ projectId, serial: `B-${p.number}`, discSizeIn: 19, status: 'fitted' as const }))).returning();
+  const fitted = await db.insert(fittings).values(layout.map((p, i) => ({ projectId, positionId: p.id, cutterId: serials[i].id, fittedAt: new Date(START_MS - 3600_000), fittedChainageM: START_M }))).returning();
+  // ~37 rounds × 80 positions ≈ 3,000 inspections; wear grows with chainage, just enough to fit.
+  for (let r = 1; r <= 37; r++) {
+    const stroke = rows[Math.min(rows.length - 1, r * 180)];
+    const [round] = await db.insert(inspectionRounds).values({ projectId, startedAt: new Date(stroke.endTime.getTime() + 60_000), chainageM: stroke.chainageEndM, ringNumber: stroke.ringNumber }).returning();
+    const entries = layout.map((p, i) => ({
+      projectId, roundId: round.id, positionId: p.id, clientKey: randomUUIDLike(r, i), fittingId: fitted[i].id,
+      wearMm: Math.round(((p.trackRadiusMm / 4500) * r * 0.6 + 0.1) * 10) / 10, conditions: ['even_wear'],
+    }));
+    const saved = await db.insert(inspectionEntries).values(entries).returning({ id: inspectionEntries.id, clientKey: inspectionEntries.clientKey });
+    await db.insert(entrySubmissions).values(saved.map((e) => ({ projectId, clientKey: e.clientKey, entryId: e.id })));
+  }
+  return projectId;
+}
+
+const randomUUIDLike = (r: number, i: number) => `00000000-0000-4000-8000-${String(r * 1000 + i).padStart(12, '0')}`;
+
+export async function benchDrive(): Promise<string[]> {
+  const out: string[] = [];
+  const projectId = await loadBenchDrive();
+  const [{ n: strokeCount }] = await db.select({ n: sql<number>`count(*)::int` }).from(strokes).where(eq(strokes.projectId, projectId));
+  const [{ n: entryCount }] = await db.select({ n: sql<number>`count(*)::int` }).from(inspectionEntries).where(eq(inspectionEntries.projectId, projectId));
+  out.push(`Synthetic drive: ${strokeCount} strokes, 80 positions, 40 geology sections, ${entryCount} inspections`);
+
+  const recompute = await timeIt(3, () => db.transaction(async (tx) => {
+    await invalidateRolledDistance(tx, projectId);
+    return refreshRolledDistance(tx, projectId);
+  }));
+  out.push(`Rolled distance, full recompute of the drive: ${recompute.ms.toFixed(0)} ms (median of 3)`);
+
+  const read = await timeIt(5, () => db.transaction((tx) => loadForecastData(tx, projectId)));
+  const compute = await timeIt(5, () => buildForecast(read.last, new Date(START_MS + 400 * 86400_000)));
+  out.push(`Forecast, read its rows from PostgreSQL: ${read.ms.toFixed(0)} ms (median of 5)`);
+  out.push(`Forecast, compute (fit + ${compute.last.positions.length} positions): ${compute.ms.toFixed(0)} ms (median of 5) — target ≤ 150 ms`);
+  out.push(`Forecast, compute / read: ${(compute.ms / read.ms).toFixed(2)}× — target ≤ 2×`);
+  return out;
+}
