@@ -70,5 +70,11 @@ it('the planner reads the change-out forecast of the demo drive, how one was mad
   expect((await rateRows.locator('td:first-child').allTextContents()).sort()).toEqual(grounds.map((g) => g.name).sort());
   expect(await rateRows.filter({ hasText: 'Prior only' }).count()).toBeGreaterThanOrEqual(1);
   expect(await rateRows.filter({ hasText: /Blended, [\d.]+ % site/ }).count()).toBeGreaterThanOrEqual(1);
+
+  // The cutterhead picture coloured by metres left: the most urgent position reads "under 100 m left".
+  await page.goto(`${app.url}/projects/${projectId}/cutterhead`);
+  await page.getByRole('button', { name: 'Metres left (P90)' }).click();
+  const urgent = page.getByRole('link', { name: new RegExp(`^Position ${number}: .*under 100 m left`) });
+  await expect.poll(() => urgent.count(), { timeout: 20_000 }).toBe(1);
   await page.close();
 }, 120_000);

@@ -73,9 +73,23 @@ export const saveLayout = (projectId: string, input: LayoutInput) => api<LayoutS
 export const importLayoutCsv = (projectId: string, csv: string) => api<LayoutSaved>('POST', `${base(projectId)}/import`, { csv });
 export const photoUrl = (projectId: string, photoId: string) => `/api/projects/${projectId}/photos/${photoId}`;
 
+/** What the picture's forecast view needs of GET /forecast: metres left per position (cautious P90). */
+export interface RemainingMetres {
+  positionId: string;
+  remainingM: number;
+  status: 'reaches_limit' | 'over_limit' | 'beyond_known_ground';
+}
+
+export async function getRemainingMetres(projectId: string): Promise<RemainingMetres[]> {
+  const f = await apiGet<{ positions: { position: { positionId: string }; p90: { remainingM: number; status: RemainingMetres['status'] } }[] }>(`/api/projects/${projectId}/forecast`);
+  return f.positions.map((p) => ({ positionId: p.position.positionId, remainingM: p.p90.remainingM, status: p.p90.status }));
+}
+
 export const positionQueries = {
   all: (projectId: string) => ['projects', projectId, 'positions'] as const,
   list: (projectId: string) => queryOptions({ queryKey: positionQueries.all(projectId), queryFn: () => getPositions(projectId) }),
+  remaining: (projectId: string) =>
+    queryOptions({ queryKey: [...positionQueries.all(projectId), 'remaining'], queryFn: () => getRemainingMetres(projectId), staleTime: 5_000 }),
   detail: (projectId: string, positionId: string) =>
     queryOptions({ queryKey: [...positionQueries.all(projectId), positionId], queryFn: () => getPosition(projectId, positionId) }),
 };

@@ -74,6 +74,31 @@ function Hatch({ id, scale }: { id: string; scale: number }) {
   );
 }
 
+/**
+ * The forecast view on the same ramp: fewer metres left before the cautious (P90) change-out is
+ * darker; a position over its limit keeps the ring and "!" mark.
+ */
+const remainingSteps = [
+  { atLeastM: 1000, label: '1,000 m or more left' },
+  { atLeastM: 300, label: '300–1,000 m left' },
+  { atLeastM: 100, label: '100–300 m left' },
+  { atLeastM: 0, label: 'under 100 m left' },
+] as const;
+
+export function remainingBand(r: { remainingM: number; status: string } | undefined): WearBand {
+  if (!r) return { kind: 'unmeasured', label: 'No forecast' };
+  if (r.status === 'over_limit') return { kind: 'over', label: 'Over the limit' };
+  const i = remainingSteps.findIndex((s) => r.remainingM >= s.atLeastM);
+  const step = ramp[Math.max(0, i)];
+  return { kind: 'measured', label: remainingSteps[Math.max(0, i)].label, fill: step.fill, text: step.text };
+}
+
+export const remainingLegend: WearBand[] = [
+  ...remainingSteps.map((s, i) => ({ kind: 'measured' as const, label: s.label, fill: ramp[i].fill, text: ramp[i].text })),
+  { kind: 'over', label: 'Over the limit' },
+  { kind: 'unmeasured', label: 'No forecast' },
+];
+
 const legend: WearBand[] = [
   ...ramp.map((r) => ({ kind: 'measured' as const, label: `${r.label} of the limit`, fill: r.fill, text: r.text })),
   { kind: 'over', label: 'Over the limit' },
@@ -82,11 +107,11 @@ const legend: WearBand[] = [
 ];
 
 /** The key to the picture, in words beside each mark. */
-export function WearLegend() {
+export function WearLegend({ items = legend }: { items?: WearBand[] }) {
   const hatchId = `legend-hatch-${useId().replace(/[^a-zA-Z0-9]/g, '')}`;
   return (
     <ul className="grid gap-x-4 gap-y-1 text-caption sm:grid-cols-2" aria-label="Key to the cutterhead picture">
-      {legend.map((band) => (
+      {items.map((band) => (
         <li key={band.label} className="flex items-center gap-2">
           <svg viewBox="-16 -16 32 32" className="size-7 shrink-0" aria-hidden="true">
             <defs><Hatch id={hatchId} scale={4} /></defs>
@@ -104,6 +129,8 @@ interface CutterheadPictureProps {
   /** Excavated diameter of the drive (m): the outer circle of the picture. */
   excavatedDiameterM: number;
   positions: PositionSummary[];
+  /** Colours by something else than wear now (e.g. the forecast); wear now when absent. */
+  bandOf?: (p: PositionSummary) => WearBand;
 }
 
 /**
@@ -111,7 +138,7 @@ interface CutterheadPictureProps {
  * laid out evenly — see head-geometry.ts), coloured by wear as a fraction of its limit, its
  * number on the disc. Each disc is a link (click, or Tab then Enter) to the position's page.
  */
-export function CutterheadPicture({ projectId, excavatedDiameterM, positions }: CutterheadPictureProps) {
+export function CutterheadPicture({ projectId, excavatedDiameterM, positions, bandOf = wearBand }: CutterheadPictureProps) {
   const navigate = useNavigate();
   const hatchId = `head-hatch-${useId().replace(/[^a-zA-Z0-9]/g, '')}`;
   const headRadiusMm = (excavatedDiameterM * 1000) / 2;
@@ -121,9 +148,9 @@ export function CutterheadPicture({ projectId, excavatedDiameterM, positions }: 
     const sizes = discRadiiMm(points, headRadiusMm);
     return positions.map((p, i) => {
       const size = sizes[i];
-      return { p, ...points[i], angleDeg: angles[i], size, band: wearBand(p) };
+      return { p, ...points[i], angleDeg: angles[i], size, band: bandOf(p) };
     });
-  }, [positions, headRadiusMm]);
+  }, [positions, headRadiusMm, bandOf]);
 
   const pad = headRadiusMm * 0.1;
   const extent = headRadiusMm + pad;

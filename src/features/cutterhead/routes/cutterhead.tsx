@@ -1,4 +1,5 @@
-import { useSuspenseQuery } from '@tanstack/react-query';
+import { useQuery, useSuspenseQuery } from '@tanstack/react-query';
+import { useCallback, useState } from 'react';
 import { createColumnHelper } from '@tanstack/react-table';
 import { Link, useParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
@@ -10,7 +11,7 @@ import { paths } from '../../../config/paths';
 import { formatDate } from '../../../lib/format';
 import { projectQueries } from '../../projects/api';
 import { positionQueries, type PositionSummary } from '../api';
-import { CutterheadPicture, WearLegend, wearBand } from '../components/cutterhead-picture';
+import { CutterheadPicture, remainingBand, remainingLegend, WearLegend, wearBand } from '../components/cutterhead-picture';
 
 const col = createColumnHelper<PositionSummary>();
 const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
@@ -19,6 +20,12 @@ export function CutterheadRoute() {
   const { projectId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
   const { data: positions } = useSuspenseQuery(positionQueries.list(projectId));
+  const [view, setView] = useState<'wear' | 'forecast'>('wear');
+  const remaining = useQuery({ ...positionQueries.remaining(projectId), enabled: view === 'forecast' });
+  const forecastBandOf = useCallback(
+    (p: PositionSummary) => remainingBand(remaining.data?.find((r) => r.positionId === p.id)),
+    [remaining.data],
+  );
 
   const columns = [
     col.accessor('number', {
@@ -64,8 +71,23 @@ export function CutterheadRoute() {
         <>
           <Panel>
             <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_18rem] lg:items-start">
-              <CutterheadPicture projectId={projectId} excavatedDiameterM={project.excavatedDiameterM} positions={positions} />
+              <CutterheadPicture projectId={projectId} excavatedDiameterM={project.excavatedDiameterM} positions={positions} bandOf={view === 'forecast' ? forecastBandOf : wearBand} />
               <div className="space-y-3">
+                <div role="group" aria-label="Colour the discs by" className="flex flex-wrap gap-2">
+                  {(['wear', 'forecast'] as const).map((v) => (
+                    <button
+                      key={v}
+                      type="button"
+                      aria-pressed={view === v}
+                      onClick={() => setView(v)}
+                      className={`min-h-touch rounded-md border-2 px-3 font-semibold ${view === v ? 'border-ember-600 bg-ember-50' : 'border-basalt-300 bg-white'}`}
+                    >
+                      {v === 'wear' ? 'Wear now' : 'Metres left (P90)'}
+                    </button>
+                  ))}
+                </div>
+                {view === 'forecast' && remaining.isPending && <p className="text-caption">Forecasting…</p>}
+                {view === 'forecast' && remaining.error && <Alert tone="error">{remaining.error.message}</Alert>}
                 <p className="font-semibold">
                   {positions.length} positions · {over === 0 ? 'none over the limit' : `${over} over the limit`}
                 </p>
@@ -73,7 +95,7 @@ export function CutterheadRoute() {
                   Seen from the face, {project.excavatedDiameterM.toFixed(2)} m bore. Angles clockwise from the top; positions
                   without an angle are laid out evenly. Select a disc to open its position.
                 </p>
-                <WearLegend />
+                <WearLegend items={view === 'forecast' ? remainingLegend : undefined} />
               </div>
             </div>
           </Panel>
