@@ -28,6 +28,25 @@ export function strokeDifferences(stored: StoredStroke, row: AdvanceLogRow): str
   return diffs;
 }
 
+/**
+ * Inserts many strokes in one statement: one array per column, unnested by PostgreSQL. Much
+ * cheaper than building a row-by-row INSERT for tens of thousands of rows.
+ */
+async function insertStrokes(tx: DbOrTx, projectId: string, rows: AdvanceLogRow[]): Promise<void> {
+  for (let i = 0; i < rows.length; i += 20_000) {
+    const chunk = rows.slice(i, i + 20_000);
+    // sql.param keeps each array one parameter (node-postgres sends it as an array literal).
+    const col = <T>(f: (r: AdvanceLogRow) => T) => sql.param(chunk.map(f));
+    await tx.execute(sql`
+      insert into strokes (project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra)
+      select ${projectId}::uuid, * from unnest(
+        ${col((r) => r.ringNumber)}::int[], ${col((r) => r.startTime)}::timestamptz[], ${col((r) => r.endTime)}::timestamptz[],
+        ${col((r) => r.chainageStartM)}::float8[], ${col((r) => r.chainageEndM)}::float8[], ${col((r) => r.revolutions)}::float8[],
+        ${col((r) => r.penetrationMmPerRev)}::float8[], ${col((r) => r.rpm)}::float8[], ${col((r) => r.thrustKn)}::float8[],
+        ${col((r) => r.torqueKnm)}::float8[], ${col((r) => JSON.stringify(r.extra))}::jsonb[])`);
+  }
+}
+
 export interface ImportOutcome {
   inserted: number;
   unchanged: number;
@@ -89,9 +108,7 @@ export async function importAdvanceLog(
     ringNumber: r.ringNumber, startTime: new Date(r.startTime), endTime: new Date(r.endTime), chainageStartM: r.chainageStartM, chainageEndM: r.chainageEndM,
     revolutions: r.revolutions, penetrationMmPerRev: r.penetrationMmPerRev, rpm: r.rpm, thrustKn: r.thrustKn, torqueKnm: r.torqueKnm, extra: r.extra,
   });
-  for (let i = 0; i < fresh.length; i += 1000) {
-    await tx.insert(strokes).values(fresh.slice(i, i + 1000).map((r) => ({ projectId, ...values(r.data) })));
-  }
+  await insertStrokes(tx, projectId, fresh.map((r) => r.data));
   for (const c of conflicts) {
     await tx.update(strokes).set(values(c.data)).where(eq(strokes.id, c.stored.id));
   }

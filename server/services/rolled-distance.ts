@@ -7,7 +7,7 @@
  */
 import { and, asc, eq, gt, sql } from 'drizzle-orm';
 import type { GeologySection } from '../../shared/domain/geology';
-import { rolledKmByStroke, sumRolledKmByPeriod, type FittedPeriod, type PeriodRolledKm, type Stroke } from '../../shared/domain/rolled-distance';
+import { revolutionsByGround, sumRolledKmForPeriods, type PeriodRolledKm, type RadiusPeriod, type Stroke } from '../../shared/domain/rolled-distance';
 import type { DbOrTx } from '../db/client';
 import { entryRolledKm, fittingRolledKm, fittings, geologySections, inspectionEntries, inspectionRounds, positions, rolledDistanceState, strokes } from '../db/schema';
 
@@ -54,12 +54,11 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     chainageFromM: s.chainageFromM, chainageToM: s.chainageToM, groundTypeId: s.groundTypeId, waterHeadM: s.waterHeadM, stopAllowed: s.stopAllowed, stopReason: s.stopReason,
   }));
   const domainStrokes = strokeRows.map(toStroke);
-  const { rows, errors } = rolledKmByStroke(
-    domainStrokes,
-    positionRows.map((p) => ({ id: p.id, trackRadiusMm: p.trackRadiusMm, discsPerPosition: p.twinDisc ? 2 : 1 })),
-    sections,
-  );
-  const periods: FittedPeriod[] = fittingRows.map((f) => ({ id: f.id, positionId: f.positionId, fromTime: f.fittedAt.toISOString(), toTime: f.removedAt?.toISOString() ?? null }));
+  const { pieces, errors } = revolutionsByGround(domainStrokes, sections);
+  const radius = new Map(positionRows.map((p) => [p.id, p.trackRadiusMm]));
+  const periods: RadiusPeriod[] = fittingRows.map((f) => ({
+    id: f.id, positionId: f.positionId, trackRadiusMm: radius.get(f.positionId)!, fromTime: f.fittedAt.toISOString(), toTime: f.removedAt?.toISOString() ?? null,
+  }));
   // An inspection's exposure is a window too: from its disc's fitting to the round.
   const fittingById = new Map(fittingRows.map((f) => [f.id, f]));
   const entryRows = await tx
@@ -67,12 +66,12 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     .from(inspectionEntries)
     .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
     .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
-  const entryWindows: FittedPeriod[] = entryRows.flatMap((e) => {
+  const entryWindows: RadiusPeriod[] = entryRows.flatMap((e) => {
     const f = fittingById.get(e.fittingId!);
-    return f ? [{ id: e.id, positionId: f.positionId, fromTime: f.fittedAt.toISOString(), toTime: e.at.toISOString() }] : [];
+    return f ? [{ id: e.id, positionId: f.positionId, trackRadiusMm: radius.get(f.positionId)!, fromTime: f.fittedAt.toISOString(), toTime: e.at.toISOString() }] : [];
   });
-  const totals = sumRolledKmByPeriod(periods, domainStrokes, rows);
-  const entryTotals = sumRolledKmByPeriod(entryWindows, domainStrokes, rows);
+  const totals = sumRolledKmForPeriods(periods, pieces);
+  const entryTotals = sumRolledKmForPeriods(entryWindows, pieces);
 
   if (full) {
     await tx.delete(fittingRolledKm).where(eq(fittingRolledKm.projectId, projectId));

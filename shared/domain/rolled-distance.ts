@@ -132,7 +132,35 @@ export function rolledKmByStroke(
   for (const p of positions) {
     if (!(Number.isFinite(p.trackRadiusMm) && p.trackRadiusMm > 0)) throw new RangeError(`Position ${p.id}: track radius must be > 0 mm`);
   }
+  const { pieces, errors } = revolutionsByGround(strokes, sections);
   const rows: StrokeRolledKm[] = [];
+  for (const piece of pieces) {
+    for (const position of positions) {
+      rows.push({ strokeId: piece.strokeId, positionId: position.id, groundTypeId: piece.groundTypeId, rolledKm: rolledKm(position.trackRadiusMm / 1000, piece.revolutions) });
+    }
+  }
+  return { rows, errors };
+}
+
+/** Cutterhead revolutions of one stroke spent in one ground type. */
+export interface StrokeGroundRevolutions {
+  strokeId: string;
+  /** Start of the stroke, ms since the epoch. */
+  startMs: number;
+  groundTypeId: string | null;
+  revolutions: number;
+}
+
+/**
+ * The revolutions of every stroke split by ground type (in proportion to the advance in each
+ * section; all in the ground at its chainage when the stroke has no advance). Every disc of the
+ * cutterhead turns with them, so this is computed once for all positions.
+ */
+export function revolutionsByGround(
+  strokes: readonly Stroke[],
+  sections: readonly GeologySection[],
+): { pieces: StrokeGroundRevolutions[]; errors: StrokeError[] } {
+  const pieces: StrokeGroundRevolutions[] = [];
   const errors: StrokeError[] = [];
   for (const stroke of strokes) {
     const revs = strokeRevolutions(stroke);
@@ -142,20 +170,69 @@ export function rolledKmByStroke(
       errors.push({ strokeId: stroke.id, ringNumber: stroke.ringNumber, reason: 'error' in revs ? revs.error : 'invalid_time' });
       continue;
     }
-    const pieces = splitChainageBySection(sections, stroke.chainageStartM, stroke.chainageEndM);
     const advanceM = Math.abs(stroke.chainageEndM - stroke.chainageStartM);
     const revsByGround = new Map<string | null, number>();
-    for (const piece of pieces) {
+    for (const piece of splitChainageBySection(sections, stroke.chainageStartM, stroke.chainageEndM)) {
       const share = advanceM > 0 ? piece.lengthM / advanceM : 1;
       revsByGround.set(piece.groundTypeId, (revsByGround.get(piece.groundTypeId) ?? 0) + revs.revolutions * share);
     }
-    for (const position of positions) {
-      for (const [groundTypeId, groundRevs] of revsByGround) {
-        rows.push({ strokeId: stroke.id, positionId: position.id, groundTypeId, rolledKm: rolledKm(position.trackRadiusMm / 1000, groundRevs) });
-      }
+    for (const [groundTypeId, revolutions] of revsByGround) pieces.push({ strokeId: stroke.id, startMs, groundTypeId, revolutions });
+  }
+  return { pieces, errors };
+}
+
+/** A fitted period (or any time window) at a position of known track radius. */
+export interface RadiusPeriod extends FittedPeriod {
+  trackRadiusMm: number;
+}
+
+/**
+ * Rolled km per disc in each ground type for each period, from per-ground revolutions — the same
+ * totals as `sumRolledKmByPeriod(periods, strokes, rolledKmByStroke(...).rows)`, but without a row
+ * per stroke and position: running sums of revolutions per ground over time are shared by all
+ * positions, and each period is the difference of two of them (binary search), scaled by 2·π·r.
+ * `previous` totals are added, as in sumRolledKmByPeriod.
+ */
+export function sumRolledKmForPeriods(
+  periods: readonly RadiusPeriod[],
+  pieces: readonly StrokeGroundRevolutions[],
+  previous: readonly PeriodRolledKm[] = [],
+): PeriodRolledKm[] {
+  const byGround = new Map<string | null, { times: number[]; cum: number[] }>();
+  const sorted = [...pieces].sort((a, b) => a.startMs - b.startMs);
+  for (const piece of sorted) {
+    let series = byGround.get(piece.groundTypeId);
+    if (!series) byGround.set(piece.groundTypeId, (series = { times: [], cum: [0] }));
+    series.times.push(piece.startMs);
+    series.cum.push(series.cum[series.cum.length - 1] + piece.revolutions);
+  }
+  const countBefore = (times: number[], ms: number) => {
+    let lo = 0;
+    let hi = times.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (times[mid] < ms) lo = mid + 1;
+      else hi = mid;
+    }
+    return lo;
+  };
+  const totals = new Map<string, Map<string | null, number>>();
+  const add = (periodId: string, groundTypeId: string | null, km: number) => {
+    let forPeriod = totals.get(periodId);
+    if (!forPeriod) totals.set(periodId, (forPeriod = new Map()));
+    forPeriod.set(groundTypeId, (forPeriod.get(groundTypeId) ?? 0) + km);
+  };
+  for (const t of previous) add(t.periodId, t.groundTypeId, t.rolledKm);
+  for (const p of periods) {
+    if (!(Number.isFinite(p.trackRadiusMm) && p.trackRadiusMm > 0)) throw new RangeError(`Period ${p.id}: track radius must be > 0 mm`);
+    const fromMs = requireTimeMs(p.fromTime, `Period ${p.id}`);
+    const toMs = p.toTime === null ? Infinity : requireTimeMs(p.toTime, `Period ${p.id}`);
+    for (const [groundTypeId, s] of byGround) {
+      const revolutions = s.cum[countBefore(s.times, toMs)] - s.cum[countBefore(s.times, fromMs)];
+      if (revolutions !== 0) add(p.id, groundTypeId, rolledKm(p.trackRadiusMm / 1000, revolutions));
     }
   }
-  return { rows, errors };
+  return [...totals].flatMap(([periodId, forPeriod]) => [...forPeriod].map(([groundTypeId, km]) => ({ periodId, groundTypeId, rolledKm: km })));
 }
 
 /**

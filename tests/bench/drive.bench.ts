@@ -72,3 +72,61 @@ export async function benchDrive(): Promise<string[]> {
   out.push(`Forecast, compute / read: ${(compute.ms / read.ms).toFixed(2)}× — target ≤ 2×`);
   return out;
 }
+
+/**
+ * Import of 10,000 advance-log rows end to end through the HTTP API (sign-in, upload, parse,
+ * validate, insert, rolled distance), against PostgreSQL's own COPY of the same rows.
+ */
+export async function benchImport(): Promise<string[]> {
+  const { createApp } = await import('../../server/app');
+  const { hashPassword } = await import('../../server/lib/password');
+  const { memberships, users } = await import('../../server/db/schema');
+  const { pool } = await import('../../server/db/client');
+  const { from: copyFrom } = await import('pg-copy-streams');
+  const { pipeline } = await import('node:stream/promises');
+  const { Readable } = await import('node:stream');
+  const { strokesCsv } = await import('./generate-drive');
+
+  const out: string[] = [];
+  const rows = benchStrokes(1, 10_000, START_M, START_MS);
+  const csv = strokesCsv(rows);
+
+  const [project] = await db.insert(projects).values({ name: `Bench import ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' }).returning();
+  const grounds = await db.insert(groundTypes).values(benchGroundTypes.map((g) => ({ ...g, projectId: project.id }))).returning();
+  await db.insert(geologySections).values(benchGeology(START_M).map((s) => ({ projectId: project.id, chainageFromM: s.fromM, chainageToM: s.toM, groundTypeId: grounds[s.ground].id, stopAllowed: true })));
+  await db.insert(positions).values(benchLayout().map((p) => ({ ...p, projectId: project.id })));
+  const email = `bench-${Date.now()}@kerfwise.test`;
+  const [user] = await db.insert(users).values({ email, name: 'Bench planner', passwordHash: await hashPassword('bench password 1') }).returning();
+  await db.insert(memberships).values({ projectId: project.id, userId: user.id, role: 'planner' });
+
+  const server = createApp().listen(0, '127.0.0.1');
+  await new Promise((r) => server.once('listening', r));
+  const base = `http://127.0.0.1:${(server.address() as { port: number }).port}`;
+  try {
+    const signIn = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: 'bench password 1' }) });
+    const cookie = (signIn.headers.get('set-cookie') ?? '').split(';')[0];
+    const t = performance.now();
+    const res = await fetch(`${base}/api/projects/${project.id}/strokes/import`, { method: 'POST', headers: { 'content-type': 'text/csv', cookie }, body: csv });
+    const apiMs = performance.now() - t;
+    const body = (await res.json()) as { inserted?: number; error?: { message: string } };
+    if (res.status !== 201) throw new Error(`import failed: ${res.status} ${JSON.stringify(body).slice(0, 300)}`);
+
+    // The same rows through COPY into a scratch table of the same shape, defaults and indexes.
+    const client = await pool.connect();
+    let copyMs: number;
+    try {
+      await client.query('create temp table strokes_copy (like strokes including all)');
+      const lines = rows.map((r) => [project.id, r.ringNumber, r.startTime.toISOString(), r.endTime.toISOString(), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm, '{}'].join('\t')).join('\n') + '\n';
+      const c = performance.now();
+      await pipeline(Readable.from([lines]), client.query(copyFrom('copy strokes_copy (project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra) from stdin')));
+      copyMs = performance.now() - c;
+    } finally {
+      client.release();
+    }
+    out.push(`Advance-log import of 10,000 rows through the API: ${apiMs.toFixed(0)} ms end to end (${body.inserted} inserted) — target ≤ 3,000 ms`);
+    out.push(`PostgreSQL COPY of the same 10,000 rows: ${copyMs.toFixed(0)} ms; API / COPY = ${(apiMs / copyMs).toFixed(1)}× — target ≤ 5×`);
+  } finally {
+    server.close();
+  }
+  return out;
+}

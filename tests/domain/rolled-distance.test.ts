@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { GeologySection } from '../../shared/domain/geology';
 import {
-  rolledKm, rolledKmByStroke, rolledMPerAdvanceM, rolledMPerRevolution, strokeRevolutions, sumRolledKmByPeriod,
+  revolutionsByGround, rolledKm, rolledKmByStroke, rolledMPerAdvanceM, rolledMPerRevolution, strokeRevolutions, sumRolledKmByPeriod, sumRolledKmForPeriods,
   type CutterheadPosition, type FittedPeriod, type PeriodRolledKm, type Stroke,
 } from '../../shared/domain/rolled-distance';
 
@@ -182,6 +182,18 @@ describe('sumRolledKmByPeriod', () => {
     // P4 did not exist in the stored totals; P2 did (s3) and grew.
     expect(asRecord(stored)['P4|granite']).toBeUndefined();
     expect(asRecord(stored)['P2|granite']).toBeLessThan(actual['P2|granite']);
+  });
+
+  it('the shared-revolutions path (used by the server) gives the same totals, also incrementally', () => {
+    const radius: Record<string, number> = { A: 3000, B: 1500 };
+    const withRadius = periods.map((p) => ({ ...p, trackRadiusMm: radius[p.positionId] }));
+    const expected = asRecord(full());
+    const actual = asRecord(sumRolledKmForPeriods(withRadius, revolutionsByGround(strokes, sections).pieces));
+    expect(Object.keys(actual).sort()).toEqual(Object.keys(expected).sort());
+    for (const key of Object.keys(expected)) expect(actual[key]).toBeCloseTo(expected[key], 12);
+    const stored = sumRolledKmForPeriods(withRadius, revolutionsByGround(strokes.slice(0, 3), sections).pieces);
+    const updated = asRecord(sumRolledKmForPeriods(withRadius, revolutionsByGround(strokes.slice(3), sections).pieces, stored));
+    for (const key of Object.keys(expected)) expect(updated[key]).toBeCloseTo(expected[key], 12);
   });
 
   it('rejects rows whose stroke is missing and periods with an unreadable time', () => {
