@@ -30,6 +30,11 @@ export const permissions = {
   /** Wear fits and change-out forecasts. */
   'forecast.read': ['fitter', 'planner', 'buyer', 'site_manager'],
   'forecast.edit': ['planner'],
+  /** Intervention stops: the plan, the stops and their work packs. */
+  'stops.read': ['fitter', 'planner', 'buyer', 'site_manager'],
+  'stops.plan': ['planner'],
+  /** Starting and finishing a stop at the face. */
+  'stops.run': ['fitter', 'planner'],
 } as const satisfies Record<string, readonly ProjectRole[]>;
 
 export type Permission = keyof typeof permissions;

@@ -358,3 +358,83 @@ export const forecastSettings = pgTable('forecast_settings', {
   overrides: jsonb().$type<Record<string, { penetrationMmPerRev?: number; advanceMPerDay?: number }>>().notNull(),
   updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
 });
+
+export const stopStatusEnum = pgEnum('stop_status', ['proposed', 'scheduled', 'in_progress', 'done', 'cancelled']);
+
+/** Crews of a project and the addresses their stop reminders go to. */
+export const crews = pgTable('crews', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('crews_project_name_key').on(t.projectId, t.name)]);
+
+export const crewMembers = pgTable('crew_members', {
+  id: uuid().primaryKey().defaultRandom(),
+  crewId: uuid().notNull().references(() => crews.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  email: text().notNull(),
+  /** When the crew member is also a Kerfwise user, their notification choices apply. */
+  userId: uuid().references(() => users.id, { onDelete: 'set null' }),
+}, (t) => [uniqueIndex('crew_members_crew_email_key').on(t.crewId, t.email)]);
+
+/** An intervention stop for cutter work: proposed → scheduled → in progress → done, or cancelled. */
+export const stops = pgTable('stops', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  status: stopStatusEnum().notNull().default('proposed'),
+  /** 'planner' (from the plan screen) or 'job' (the nightly forecast). */
+  source: text().notNull(),
+  chainageM: doublePrecision().notNull(),
+  ringNumber: integer(),
+  compressedAir: boolean().notNull().default(false),
+  /** Indicative working pressure from the water head (ρ·g·h), bar; null when no head is known. */
+  workingPressureBar: doublePrecision(),
+  plannedStart: timestamp({ withTimezone: true }),
+  expectedHours: doublePrecision(),
+  crewId: uuid().references(() => crews.id, { onDelete: 'set null' }),
+  publishedAt: timestamp({ withTimezone: true }),
+  actualStart: timestamp({ withTimezone: true }),
+  actualEnd: timestamp({ withTimezone: true }),
+  roundId: uuid().references(() => inspectionRounds.id, { onDelete: 'set null' }),
+  cancelReason: text(),
+  notes: text().notNull().default(''),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('stops_project_idx').on(t.projectId, t.status)]);
+
+/** The positions a stop changes, with the wear expected when the machine gets there. */
+export const stopPositions = pgTable('stop_positions', {
+  stopId: uuid().notNull().references(() => stops.id, { onDelete: 'cascade' }),
+  positionId: uuid().notNull().references(() => positions.id, { onDelete: 'cascade' }),
+  expectedWearMm: doublePrecision(),
+}, (t) => [primaryKey({ columns: [t.stopId, t.positionId] })]);
+
+/** Reminders already sent for a stop (e.g. '24h', '2h'), so none goes out twice. */
+export const stopReminders = pgTable('stop_reminders', {
+  stopId: uuid().notNull().references(() => stops.id, { onDelete: 'cascade' }),
+  kind: text().notNull(),
+  sentAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+}, (t) => [primaryKey({ columns: [t.stopId, t.kind] })]);
+
+/** Every run of a scheduled job: when, how it ended, and why it failed. */
+export const jobRuns = pgTable('job_runs', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  job: text().notNull(),
+  /** 'schedule', 'catch-up' (at start-up) or 'admin'. */
+  trigger: text().notNull(),
+  startedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  finishedAt: timestamp({ withTimezone: true }),
+  /** 'running', 'ok', 'failed', or 'skipped' (another instance held the lock). */
+  outcome: text().notNull().default('running'),
+  summary: text(),
+  error: text(),
+  triggeredBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+}, (t) => [index('job_runs_job_idx').on(t.job, t.startedAt)]);
+
+/** Which notifications a user turned off (everything is on until turned off). */
+export const notificationOptOuts = pgTable('notification_opt_outs', {
+  userId: uuid().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  kind: text().notNull(),
+}, (t) => [primaryKey({ columns: [t.userId, t.kind] })]);
