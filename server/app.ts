@@ -10,6 +10,7 @@ import { loadUser } from './middleware/auth';
 import { apiNotFound, errorHandler } from './middleware/error';
 import { adminRouter } from './routes/admin';
 import { authRouter } from './routes/auth';
+import { crewsRouter } from './routes/crews';
 import { cuttersRouter } from './routes/cutters';
 import { forecastRouter, wearFitRouter } from './routes/forecast';
 import { geologyRouter, groundTypesRouter } from './routes/geology';
@@ -50,6 +51,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use('/projects/:projectId/strokes', strokesRouter);
   api.use('/projects/:projectId/wear-fit', wearFitRouter);
   api.use('/projects/:projectId/forecast', forecastRouter);
+  api.use('/projects/:projectId/crews', crewsRouter);
   api.use('/admin', adminRouter);
   api.use(apiNotFound);
   app.use('/api', api);

@@ -26,6 +26,10 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
   }
   const e = err as { type?: string; status?: number; statusCode?: number; code?: string; cause?: { code?: string } };
   // A unique index refused a row saved at the same moment by someone else (e.g. a serial fitted twice).
+  if (e?.code === '23503' || e?.cause?.code === '23503') {
+    res.status(409).json(body('That refers to a record that does not exist (any more). Reload and try again.'));
+    return;
+  }
   if (e?.code === '23505' || e?.cause?.code === '23505') {
     res.status(409).json(body('That conflicts with a record saved at the same moment. Reload and try again.'));
     return;

@@ -87,6 +87,9 @@ export const routeTable: RouteCase[] = [
   { method: 'put', path: '/api/projects/:projectId/forecast/settings', roles: ['planner'], body: () => ({
     classFactors: { centre: 0.8, face: 1, gauge: 1.5 }, gehringSiteFactor: 1, priorStrength: 5, tipWidthMm: 19, overcutMarginMm: 20, windowStrokes: 30, overrides: {},
   }) },
+  // Crews: every member reads them; only the administrator keeps them (and may without being a member).
+  { method: 'get', path: '/api/projects/:projectId/crews', roles: everyone },
+  { method: 'post', path: '/api/projects/:projectId/crews', admin: true, body: () => ({ name: uniq('Crew'), members: [{ name: 'Ola Berg', email: `${uniq('crew')}@kerfwise.test` }] }), okStatus: 201 },
 ];
 
 async function workshopCutter(projectId: string) {

@@ -6,7 +6,7 @@ import { randomUUID } from 'node:crypto';
 import { refreshRolledDistance } from '../../services/rolled-distance';
 import type { DbOrTx } from '../client';
 import {
-  cutterEvents, cutters, entrySubmissions, fittings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, strokes,
+  crewMembers, crews, cutterEvents, cutters, entrySubmissions, fittings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, strokes,
 } from '../schema';
 import { demoGroundTypes, demoSections, simulateDrive } from './simulate-drive';
 
@@ -60,6 +60,15 @@ export async function loadDemoDrive(tx: DbOrTx, projectId: string, fitterId: str
   })));
   await insertChunked(entries, (chunk) => tx.insert(inspectionEntries).values(chunk));
   await insertChunked(entries, (chunk) => tx.insert(entrySubmissions).values(chunk.map((e) => ({ projectId, clientKey: e.clientKey, entryId: e.id }))));
+
+  // Three crews on the shifts of the simulation; crew A's lead is the demo fitter.
+  const crewRows = await tx.insert(crews).values(['Crew A', 'Crew B', 'Crew C'].map((name) => ({ projectId, name }))).returning();
+  await tx.insert(crewMembers).values([
+    { crewId: crewRows[0].id, name: 'Tomas Vella', email: 'fitter@kerfwise.test', userId: fitterId },
+    { crewId: crewRows[0].id, name: 'Jonah Pell', email: 'crew-a@kerfwise.test' },
+    { crewId: crewRows[1].id, name: 'Ada Okafor', email: 'crew-b@kerfwise.test' },
+    { crewId: crewRows[2].id, name: 'Lars Lindqvist', email: 'crew-c@kerfwise.test' },
+  ]);
 
   await refreshRolledDistance(tx, projectId);
 }
