@@ -15,6 +15,8 @@ export const paths = {
   round: (projectId: string, roundId: string) => `/projects/${projectId}/rounds/${roundId}`,
   forecast: (projectId: string) => `/projects/${projectId}/forecast`,
   wearFits: (projectId: string) => `/projects/${projectId}/wear-fits`,
+  advanceLog: (projectId: string) => `/projects/${projectId}/advance-log`,
+  geology: (projectId: string) => `/projects/${projectId}/geology`,
   admin: {
     users: '/admin/users',
     projects: '/admin/projects',

@@ -50,7 +50,7 @@ export function AppShell() {
           >
             Menu
           </button>
-          <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:ml-auto md:flex md:w-auto md:flex-row md:items-center`}>
+          <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:ml-auto md:flex md:w-auto md:flex-row md:flex-wrap md:items-center`}>
             {projectId && membership && (
               <>
                 <NavLink end to={paths.project(projectId)} className={navLink}>Overview</NavLink>
@@ -59,6 +59,8 @@ export function AppShell() {
                 {roleCan(membership.role, 'forecast.read') && <NavLink to={paths.wearFits(projectId)} className={navLink}>Wear rates</NavLink>}
                 {roleCan(membership.role, 'rounds.read') && <NavLink to={paths.rounds(projectId)} className={navLink}>Rounds</NavLink>}
                 <NavLink to={paths.cutters(projectId)} className={navLink}>Cutters</NavLink>
+                {roleCan(membership.role, 'drive.read') && <NavLink to={paths.advanceLog(projectId)} className={navLink}>Advance log</NavLink>}
+                {roleCan(membership.role, 'drive.read') && <NavLink to={paths.geology(projectId)} className={navLink}>Geology</NavLink>}
                 <NavLink to={paths.layout(projectId)} className={navLink}>Layout</NavLink>
               </>
             )}

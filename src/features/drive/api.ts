@@ -1,0 +1,152 @@
+import { keepPreviousData, queryOptions } from '@tanstack/react-query';
+import type { CercharClassification } from '../../../shared/domain/cerchar';
+import type { GeologyGapWarning } from '../../../shared/domain/geology';
+import type { AdvanceLogField, CsvFieldInfo } from '../../../shared/schemas/advance-log';
+import type { GroundTypeInput, SectionInput, StrokeListQuery } from '../../../shared/schemas/geology';
+import { api, apiGet, ApiError } from '../../lib/api-client';
+
+/** One ring or stroke of the advance log as GET /strokes sends it. */
+export interface Stroke {
+  id: number;
+  ringNumber: number;
+  startTime: string;
+  endTime: string;
+  chainageStartM: number;
+  chainageEndM: number;
+  revolutions: number | null;
+  penetrationMmPerRev: number | null;
+  rpm: number | null;
+  thrustKn: number | null;
+  torqueKnm: number | null;
+}
+
+export interface StrokePage {
+  rows: Stroke[];
+  total: number;
+  page: number;
+  pageSize: number;
+}
+
+/** Metres advanced on one calendar day of the site. */
+export interface DailyAdvance {
+  day: string;
+  advanceM: number;
+  strokes: number;
+}
+
+export interface AdvanceLogMapping {
+  /** Field → header, remembered from the last import; null before the first. */
+  mapping: Partial<Record<AdvanceLogField, string>> | null;
+  fields: CsvFieldInfo<AdvanceLogField>[];
+}
+
+export interface GroundType {
+  id: string;
+  name: string;
+  description: string;
+  ucsMpa: number | null;
+  cai: number | null;
+  caiClass: CercharClassification | null;
+  quartzPct: number | null;
+  notes: string;
+}
+
+export interface GeologySection extends SectionInput {
+  id: string;
+}
+
+export interface Geology {
+  sections: GeologySection[];
+  warnings: GeologyGapWarning[];
+  currentChainageM: number | null;
+}
+
+/** Filters of the advance-log list (the paging and sorting come with them in StrokeListQuery). */
+export type StrokeFilters = Pick<StrokeListQuery, 'ringFrom' | 'ringTo' | 'from' | 'to'>;
+
+const base = (projectId: string) => `/api/projects/${projectId}`;
+
+/** Query text of a list request: empty values left out. */
+function strokeQueryString(query: Partial<StrokeListQuery>): string {
+  const params = new URLSearchParams();
+  for (const [key, value] of Object.entries(query)) if (value !== undefined && value !== '') params.set(key, String(value));
+  return params.toString();
+}
+
+export const strokesExportUrl = (projectId: string, filters: StrokeFilters) => `${base(projectId)}/strokes/export.csv?${strokeQueryString(filters)}`;
+export const advanceLogImportUrl = (projectId: string) => `${base(projectId)}/strokes/import`;
+export const geologyImportUrl = (projectId: string) => `${base(projectId)}/geology/import`;
+
+export const getStrokes = (projectId: string, query: StrokeListQuery) => apiGet<StrokePage>(`${base(projectId)}/strokes?${strokeQueryString(query)}`);
+export const getDailyAdvance = (projectId: string) => apiGet<DailyAdvance[]>(`${base(projectId)}/strokes/daily`);
+export const getAdvanceLogMapping = (projectId: string) => apiGet<AdvanceLogMapping>(`${base(projectId)}/strokes/mapping`);
+export const getGroundTypes = (projectId: string) => apiGet<GroundType[]>(`${base(projectId)}/ground-types`);
+export const getGeology = (projectId: string) => apiGet<Geology>(`${base(projectId)}/geology`);
+export const createGroundType = (projectId: string, input: GroundTypeInput) => api<GroundType>('POST', `${base(projectId)}/ground-types`, input);
+export const updateGroundType = (projectId: string, id: string, input: GroundTypeInput) => api<GroundType>('PATCH', `${base(projectId)}/ground-types/${id}`, input);
+export const deleteGroundType = (projectId: string, id: string) => api<void>('DELETE', `${base(projectId)}/ground-types/${id}`);
+export const saveLongSection = (projectId: string, sections: SectionInput[]) =>
+  api<{ saved: number; warnings: GeologyGapWarning[] }>('PUT', `${base(projectId)}/geology`, { sections });
+
+export const driveQueries = {
+  all: (projectId: string) => ['projects', projectId, 'drive'] as const,
+  strokes: (projectId: string, query: StrokeListQuery) =>
+    queryOptions({
+      queryKey: [...driveQueries.all(projectId), 'strokes', query],
+      queryFn: () => getStrokes(projectId, query),
+      // The old page stays on screen while the next one loads, so the table does not jump.
+      placeholderData: keepPreviousData,
+    }),
+  daily: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
+  mapping: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
+  groundTypes: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'ground-types'], queryFn: () => getGroundTypes(projectId) }),
+  geology: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'geology'], queryFn: () => getGeology(projectId) }),
+};
+
+/** A problem the server found in an uploaded file; row 0 is the file as a whole. */
+export interface ImportIssue {
+  path: string;
+  message: string;
+  row?: number;
+  column?: string;
+}
+
+/** The server's answer to an upload: the body of a success, or of a refusal (`error`). */
+export type UploadAnswer =
+  | { ok: true; status: number; body: Record<string, unknown> }
+  | { ok: false; status: number; message: string; issues: ImportIssue[]; errorCount: number };
+
+/**
+ * Sends a file as the raw request body (text/csv) with XMLHttpRequest, whose upload events give
+ * the progress that fetch cannot. `onProgress` receives the share sent (0–1); `onSent` fires when
+ * the last byte is out and the server starts checking.
+ */
+export function uploadCsv(url: string, file: File, onProgress: (fraction: number) => void, onSent: () => void): { answer: Promise<UploadAnswer>; abort: () => void } {
+  const xhr = new XMLHttpRequest();
+  const answer = new Promise<UploadAnswer>((resolve, reject) => {
+    xhr.open('POST', url);
+    xhr.setRequestHeader('Content-Type', 'text/csv');
+    xhr.responseType = 'json';
+    xhr.upload.onprogress = (e) => {
+      if (e.lengthComputable) onProgress(e.loaded / e.total);
+    };
+    xhr.upload.onload = onSent;
+    xhr.onload = () => {
+      const body = xhr.response as Record<string, unknown> | null;
+      if (xhr.status >= 200 && xhr.status < 300) return resolve({ ok: true, status: xhr.status, body: body ?? {} });
+      const error = (body?.error ?? {}) as { message?: string; issues?: ImportIssue[]; errorCount?: number; conflictCount?: number };
+      const issues = error.issues ?? [];
+      resolve({
+        ok: false,
+        status: xhr.status,
+        message: error.message ?? `The server answered ${xhr.status}.`,
+        issues,
+        errorCount: error.errorCount ?? error.conflictCount ?? issues.length,
+      });
+    };
+    xhr.onerror = () => reject(new ApiError(0, 'No connection to the Kerfwise server. Check the network and try again.'));
+    xhr.onabort = () => reject(new ApiError(0, 'The upload was cancelled; nothing was imported.'));
+    xhr.send(file);
+  });
+  return { answer, abort: () => xhr.abort() };
+}

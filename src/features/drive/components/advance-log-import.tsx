@@ -1,0 +1,52 @@
+import { useSuspenseQuery } from '@tanstack/react-query';
+import { useState } from 'react';
+import { advanceLogImportUrl, driveQueries } from '../api';
+import { ColumnMapping, proposeMapping, readHeader, type MappingChoice } from './column-mapping';
+import { CsvUpload } from './csv-upload';
+
+const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?? 0).toLocaleString('en-GB');
+
+/** The planner's import of the machine's advance log, with the column mapping as an optional step. */
+export function AdvanceLogImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
+  const { data: known } = useSuspenseQuery(driveQueries.mapping(projectId));
+  const [headers, setHeaders] = useState<string[] | null>(null);
+  const [choice, setChoice] = useState<MappingChoice>({});
+
+  const onFile = async (file: File | null) => {
+    setHeaders(null);
+    if (!file) return;
+    const read = await readHeader(file);
+    setHeaders(read);
+    setChoice(proposeMapping(read, known.fields, known.mapping));
+  };
+
+  // The choice is always sent once the header is read, so a mapping remembered from a file with
+  // other column names does not apply to this one.
+  const url = (replace: boolean) => {
+    const params = new URLSearchParams({ replace: String(replace) });
+    if (headers) params.set('mapping', JSON.stringify(choice));
+    return `${advanceLogImportUrl(projectId)}?${params}`;
+  };
+
+  return (
+    <CsvUpload
+      title="Import the advance log"
+      url={url}
+      onFile={onFile}
+      step={headers && headers.length > 1 && (
+        <ColumnMapping headers={headers} fields={known.fields} stored={known.mapping} choice={choice} onChange={setChoice} />
+      )}
+      successTitle={(name, body) =>
+        `${name} imported: ${count(body, 'inserted')} new, ${count(body, 'unchanged')} already stored and unchanged, ${count(body, 'replaced')} replaced.`}
+      replaceLabel="Replace these rings"
+      onImported={onImported}
+    >
+      <p>
+        The CSV file from the machine’s data system: one row per ring or stroke with its number, start and end time, chainage at start and
+        end, and cutterhead revolutions or penetration; speed, thrust and torque when logged. Comma, semicolon or tab between columns and
+        decimal commas are recognised. Times without a UTC offset are read in the site’s time zone.
+      </p>
+      <p>Rings already stored with the same values are skipped, so importing a file twice adds nothing.</p>
+    </CsvUpload>
+  );
+}

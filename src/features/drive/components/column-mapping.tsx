@@ -1,0 +1,125 @@
+import Papa from 'papaparse';
+import { useId } from 'react';
+import { advanceLogRequiredColumns, type AdvanceLogField, type CsvFieldInfo } from '../../../../shared/schemas/advance-log';
+
+export type MappingChoice = Partial<Record<AdvanceLogField, string>>;
+
+/** The column names on the first line of a file, read in the browser (the file is not sent for this). */
+export async function readHeader(file: File): Promise<string[]> {
+  const text = (await file.slice(0, 64 * 1024).text()).replace(/^\uFEFF/, '');
+  const parsed = Papa.parse<string[]>(text, { preview: 1, delimitersToGuess: [',', ';', '\t'] });
+  return (parsed.data[0] ?? []).map((h) => h.trim()).filter((h) => h !== '');
+}
+
+/**
+ * Header names compared as the server's importer compares them (server/lib/csv-import.ts):
+ * lower case, bracketed text and a trailing unit dropped, letters and digits only.
+ */
+function normalizeHeader(header: string): string {
+  let name = header.toLowerCase().replace(/[([{][^)\]}]*[)\]}]/g, ' ').trim();
+  const unit = /^(.*\S)\s+(mm\/rev|mm\/u|kn·m|kn\.m|kn-m|knm|kn|rpm|1\/min|mm|m)$/.exec(name);
+  if (unit) name = unit[1];
+  return name.replace(/[^a-z0-9]/g, '');
+}
+
+/**
+ * The column proposed for each field: the one remembered from the last import when the file has
+ * it, else the first unused column whose name Kerfwise recognises.
+ */
+export function proposeMapping(headers: string[], fields: readonly CsvFieldInfo<AdvanceLogField>[], stored: MappingChoice | null): MappingChoice {
+  const used = new Set<string>();
+  const choice: MappingChoice = {};
+  for (const { field } of fields) {
+    const remembered = stored?.[field] && headers.find((h) => h.toLowerCase() === stored[field]!.toLowerCase());
+    if (remembered) {
+      choice[field] = remembered;
+      used.add(remembered);
+    }
+  }
+  for (const { field, synonyms } of fields) {
+    if (choice[field]) continue;
+    const names = new Set(synonyms.map(normalizeHeader));
+    const found = headers.find((h) => !used.has(h) && names.has(normalizeHeader(h)));
+    if (found) {
+      choice[field] = found;
+      used.add(found);
+    }
+  }
+  return choice;
+}
+
+/** Required fields no column was chosen for, in words ("End time", "Cutterhead revolutions or Penetration (mm/rev)"). */
+function missingFields(choice: MappingChoice, fields: readonly CsvFieldInfo<AdvanceLogField>[]): string[] {
+  const label = (f: AdvanceLogField) => fields.find((i) => i.field === f)?.label ?? f;
+  return advanceLogRequiredColumns.filter((group) => !group.some((f) => choice[f])).map((group) => group.map(label).join(' or '));
+}
+
+const requiredAlone = new Set(advanceLogRequiredColumns.filter((g) => g.length === 1).map((g) => g[0]));
+
+/**
+ * Which column of the chosen file fills each field of the advance log. Folded away when every
+ * needed field was found; open when one is missing.
+ */
+export function ColumnMapping({ headers, fields, stored, choice, onChange }: {
+  headers: string[];
+  fields: readonly CsvFieldInfo<AdvanceLogField>[];
+  stored: MappingChoice | null;
+  choice: MappingChoice;
+  onChange: (choice: MappingChoice) => void;
+}) {
+  const id = useId();
+  const missing = missingFields(choice, fields);
+  const found = fields.filter((f) => choice[f.field]).length;
+  const chosen = Object.values(choice).filter(Boolean);
+  const twice = [...new Set(chosen.filter((h, i) => chosen.indexOf(h) !== i))];
+  return (
+    <details open={missing.length > 0} className="rounded-md border border-basalt-200 bg-basalt-50">
+      <summary className="flex min-h-touch cursor-pointer items-center px-3 font-semibold">
+        Columns: {found} of {fields.length} fields found in the first line of the file{missing.length > 0 ? ` — ${missing.length} needed field${missing.length === 1 ? '' : 's'} missing` : ''}. Check or change
+      </summary>
+      <div className="space-y-3 px-3 pb-3">
+        <p className="text-caption text-basalt-700">
+          Choose, for each field, the column of your file that holds it. Kerfwise remembers the choice for the next import of this drive.
+          Columns not chosen are kept with each ring as extra data.
+        </p>
+        {missing.length > 0 && (
+          <p role="status" className="font-semibold text-caution-700">Choose a column for {missing.join('; ')}: the file cannot be imported without it.</p>
+        )}
+        {twice.length > 0 && <p role="status" className="font-semibold text-caution-700">Chosen for two fields: {twice.map((h) => `‘${h}’`).join(', ')}.</p>}
+        <div className="overflow-x-auto">
+          <table className="min-w-full text-left">
+            <thead className="bg-basalt-100 text-caption">
+              <tr>
+                <th scope="col" className="px-2 py-2">Field</th>
+                <th scope="col" className="px-2 py-2">Column of this file</th>
+                <th scope="col" className="px-2 py-2">Last import</th>
+              </tr>
+            </thead>
+            <tbody>
+              {fields.map((f) => (
+                <tr key={f.field} className="border-t border-basalt-200">
+                  <td className="px-2 py-1">
+                    <label htmlFor={`${id}-${f.field}`} className="font-semibold">{f.label}</label>
+                    {requiredAlone.has(f.field) && <span className="ml-2 text-caption text-basalt-600">needed</span>}
+                  </td>
+                  <td className="px-2 py-1">
+                    <select
+                      id={`${id}-${f.field}`}
+                      className="block min-h-touch w-full min-w-48 rounded-md border-2 border-basalt-300 bg-white px-2"
+                      value={choice[f.field] ?? ''}
+                      onChange={(e) => onChange({ ...choice, [f.field]: e.target.value || undefined })}
+                    >
+                      <option value="">Not in this file</option>
+                      {headers.map((h) => <option key={h} value={h}>{h}</option>)}
+                    </select>
+                  </td>
+                  <td className="px-2 py-1 text-caption text-basalt-600">{stored?.[f.field] ?? '—'}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      </div>
+    </details>
+  );
+}
