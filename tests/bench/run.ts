@@ -1,0 +1,29 @@
+/**
+ * `npm run bench`: speed figures of Kerfwise on this machine, printed (never asserted in tests).
+ * Starts its own PostgreSQL cluster (.data/pg-bench, port 54350) with a fresh database.
+ */
+import { randomUUID } from 'node:crypto';
+import { bringUpLocalStack } from '../../server/devenv/local-stack';
+
+const stack = await bringUpLocalStack({ dataDir: '.data/pg-bench', pgPort: 54350, database: 'kerfwise_bench', fast: true, freshDatabase: true });
+process.env.DATABASE_URL = stack.databaseUrl;
+process.env.SMTP_URL = stack.smtpUrl;
+process.env.SESSION_SECRET = randomUUID() + randomUUID();
+process.env.LOG_LEVEL = 'warn';
+
+const lines: string[] = [];
+const print = (line: string) => {
+  lines.push(line);
+  console.log(line);
+};
+try {
+  const { benchDrive, benchImport } = await import('./drive.bench');
+  for (const l of await benchImport()) print(l);
+  for (const l of await benchDrive()) print(l);
+  const { benchStopPlanner } = await import('./stop-planner.bench');
+  for (const l of await benchStopPlanner()) print(l);
+} finally {
+  const { pool } = await import('../../server/db/client');
+  await pool.end();
+  await stack.stop();
+}
