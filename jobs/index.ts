@@ -1,32 +1,52 @@
 /**
- * The scheduled work of Kerfwise (node-cron). Each job is safe to run on several server instances
- * at once; later jobs (forecast refresh, reminders, digests) add themselves to `schedule`.
+ * The scheduled work of Kerfwise (node-cron). Every job runs through the job runner
+ * (server/services/job-runner.ts): one instance at a time across servers, every run recorded,
+ * a missed run caught up once at start-up, and an administrator can run a job now.
  */
 import cron, { type ScheduledTask } from 'node-cron';
 import { deliverPendingMail } from '../server/lib/mail';
-import { logger } from '../server/lib/logger';
+import { catchUpMissedRuns, runJob, type JobDefinition } from '../server/services/job-runner';
+import { refreshForecastsJob } from './refresh-forecasts';
+import { stopRemindersJob } from './stop-reminders';
 
-interface ScheduledJob {
-  name: string;
-  /** A cron expression, evaluated in the server's time zone. */
-  cron: string;
-  run: () => Promise<unknown>;
-}
+const MINUTE = 60_000;
 
-export const schedule: ScheduledJob[] = [
-  // The outbox is also kicked right after every commit that queues mail; this pass retries failures.
-  { name: 'deliver-mail', cron: '* * * * *', run: () => deliverPendingMail() },
+export const jobs: JobDefinition[] = [
+  {
+    name: 'deliver-mail',
+    label: 'Send waiting e-mail (retries after a mail-server outage)',
+    cron: '* * * * *',
+    periodMs: 5 * MINUTE,
+    run: async () => {
+      const { sent, failed } = await deliverPendingMail();
+      return `${sent} sent, ${failed} failed (will retry).`;
+    },
+  },
+  {
+    name: 'refresh-forecasts',
+    label: 'Nightly forecast refresh; propose stops for positions due soon',
+    cron: '30 2 * * *',
+    periodMs: 24 * 60 * MINUTE,
+    run: (ctx) => refreshForecastsJob(ctx),
+  },
+  {
+    name: 'stop-reminders',
+    label: 'Remind crews 24 h and 2 h before a published stop',
+    cron: '*/5 * * * *',
+    periodMs: 10 * MINUTE,
+    run: stopRemindersJob,
+  },
 ];
 
+export function findJob(name: string): JobDefinition | undefined {
+  return jobs.find((j) => j.name === name);
+}
+
+/** Schedules every job and catches up missed runs (in the background). Returns a stop function. */
 export function startJobs(): () => void {
-  const tasks: ScheduledTask[] = schedule.map((job) =>
-    cron.schedule(job.cron, async () => {
-      try {
-        await job.run();
-      } catch (err) {
-        logger.error({ err, job: job.name }, 'scheduled job failed');
-      }
-    }, { name: job.name, noOverlap: true }),
+  const tasks: ScheduledTask[] = jobs.map((job) =>
+    cron.schedule(job.cron, () => void runJob(job, 'schedule'), { name: job.name, noOverlap: true }),
   );
+  void catchUpMissedRuns(jobs);
   return () => tasks.forEach((t) => t.stop());
 }

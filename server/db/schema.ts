@@ -37,6 +37,11 @@ export const projects = pgTable('projects', {
   units: text().notNull().default('metric'),
   /** Length of one ring (m), to turn chainage into ring numbers. */
   ringLengthM: doublePrecision().notNull().default(1.5),
+  /**
+   * Site rule: a stop where the groundwater head above the axis exceeds this (m) is worked under
+   * compressed air. Set by the site; the default suits a drained hard-rock drive (no source).
+   */
+  compressedAirAboveHeadM: doublePrecision().notNull().default(30),
   createdAt: createdAt(),
   updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
 }, (t) => [uniqueIndex('projects_name_key').on(t.name)]);

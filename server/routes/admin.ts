@@ -5,7 +5,8 @@ import { projectInputSchema, projectPatchSchema } from '../../shared/schemas/pro
 import { inviteUserInputSchema, membershipInputSchema, updateUserInputSchema } from '../../shared/schemas/user';
 import { roleLabels } from '../../shared/roles';
 import { db } from '../db/client';
-import { caughtMail, memberships, outbox, projects, users } from '../db/schema';
+import { caughtMail, jobRuns, memberships, outbox, projects, users } from '../db/schema';
+import { runJob } from '../services/job-runner';
 import { requireAdmin, requireUser } from '../middleware/auth';
 import { appUrl } from '../lib/app-url';
 import { audit } from '../lib/audit';
@@ -169,4 +170,21 @@ adminRouter.get('/mail', async (_req, res) => {
     })
     .from(outbox);
   res.json({ caught, outbox: queue });
+});
+
+/** The scheduled jobs with their last runs (newest first). */
+adminRouter.get('/jobs', async (_req, res) => {
+  const { jobs } = await import('../../jobs/index');
+  const runs = await db.select().from(jobRuns).orderBy(desc(jobRuns.startedAt)).limit(300);
+  res.json(jobs.map((j) => ({ name: j.name, label: j.label, cron: j.cron, runs: runs.filter((r) => r.job === j.name).slice(0, 20) })));
+});
+
+/** Runs a job now (under the same lock as the schedule) and answers with the recorded run. */
+adminRouter.post('/jobs/:name/run', async (req, res) => {
+  const me = requireUser(req);
+  const { name } = z.object({ name: z.string().max(60) }).parse(req.params);
+  const { findJob } = await import('../../jobs/index');
+  const job = findJob(name);
+  if (!job) throw notFound('That job');
+  res.json(await runJob(job, 'admin', { userId: me.id }));
 });

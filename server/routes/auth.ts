@@ -4,7 +4,9 @@ import {
   changePasswordInputSchema, passwordResetRequestSchema, setPasswordInputSchema, signInInputSchema,
 } from '../../shared/schemas/auth';
 import { db } from '../db/client';
-import { memberships, projects, signInAttempts, users } from '../db/schema';
+import { memberships, notificationOptOuts, projects, signInAttempts, users } from '../db/schema';
+import { notificationKeys, notificationKinds } from '../../shared/notifications';
+import { z } from 'zod';
 import { requireSignedIn, requireUser } from '../middleware/auth';
 import { appUrl } from '../lib/app-url';
 import { audit } from '../lib/audit';
@@ -122,4 +124,23 @@ authRouter.post('/change-password', requireSignedIn, async (req, res) => {
     await startSession(tx, req, res, me.id);
   });
   res.status(204).end();
+});
+
+/** The notifications this user may get (by their roles) and whether each is on. */
+authRouter.get('/notifications', requireSignedIn, async (req, res) => {
+  const me = requireUser(req);
+  const roles = new Set((await db.select({ role: memberships.role }).from(memberships).where(eq(memberships.userId, me.id))).map((r) => r.role as string));
+  const off = new Set((await db.select().from(notificationOptOuts).where(eq(notificationOptOuts.userId, me.id))).map((r) => r.kind));
+  res.json(notificationKinds.filter((k) => k.roles.some((r) => roles.has(r))).map((k) => ({ kind: k.key, label: k.label, enabled: !off.has(k.key) })));
+});
+
+authRouter.put('/notifications', requireSignedIn, async (req, res) => {
+  const me = requireUser(req);
+  const input = z.object({ kind: z.enum(notificationKeys, { message: 'Unknown notification.' }), enabled: z.boolean() }).parse(req.body);
+  await db.transaction(async (tx) => {
+    if (input.enabled) await tx.delete(notificationOptOuts).where(and(eq(notificationOptOuts.userId, me.id), eq(notificationOptOuts.kind, input.kind)));
+    else await tx.insert(notificationOptOuts).values({ userId: me.id, kind: input.kind }).onConflictDoNothing();
+    await audit(tx, { userId: me.id, entity: 'notification', entityId: me.id, action: input.enabled ? 'turn_on' : 'turn_off', after: input });
+  });
+  res.json(input);
 });

@@ -26,6 +26,11 @@ export const projectInputSchema = z.object({
     .min(0.3, 'The ring length must be at least 0.3 m.')
     .max(5, 'The ring length must be at most 5 m.')
     .default(1.5),
+  compressedAirAboveHeadM: z.coerce
+    .number({ message: 'Enter the water head above which stops need compressed air, in metres.' })
+    .min(0, 'The head cannot be negative.')
+    .max(300)
+    .default(30),
   units: z.literal('metric', { message: 'Only metric units are supported.' }).default('metric'),
 });
 export type ProjectInput = z.infer<typeof projectInputSchema>;

@@ -5,6 +5,7 @@
 import { randomUUID } from 'node:crypto';
 import type { ProjectRole } from '../../shared/roles';
 import { uniq } from '../support/fixtures';
+import { ensureStopSection, stopIn } from '../support/stops-fixtures';
 
 export interface RouteContext {
   projectId: string;
@@ -14,6 +15,9 @@ export interface RouteContext {
   cutterId: string;
   roundId: string;
   photoId: string;
+  /** A proposed stop, and a crew with a member (tests/support/stops-fixtures.ts). */
+  stopId: string;
+  crewId: string;
 }
 
 export interface RouteCase {
@@ -34,6 +38,8 @@ export interface RouteCase {
 }
 
 const everyone = ['fitter', 'planner', 'buyer', 'site_manager'] as const;
+/** Each proposed stop of the matrix at its own chainage (an open stop at the same chainage is refused). */
+let matrixStops = 0;
 
 export const routeTable: RouteCase[] = [
   { method: 'get', path: '/api/auth/me', signedIn: true },
@@ -49,6 +55,10 @@ export const routeTable: RouteCase[] = [
   { method: 'get', path: '/api/admin/projects/:projectId/members', admin: true },
   { method: 'put', path: '/api/admin/projects/:projectId/members/:otherUserId', admin: true, body: () => ({ role: 'buyer' }) },
   { method: 'get', path: '/api/admin/mail', admin: true },
+  { method: 'get', path: '/api/admin/jobs', admin: true },
+  { method: 'post', path: '/api/admin/jobs/deliver-mail/run', admin: true },
+  { method: 'get', path: '/api/auth/notifications', signedIn: true },
+  { method: 'put', path: '/api/auth/notifications', signedIn: true, body: () => ({ kind: 'stop_reminder', enabled: true }) },
 
   // Cutterhead layout
   { method: 'get', path: '/api/projects/:projectId/positions', roles: everyone },
@@ -90,6 +100,22 @@ export const routeTable: RouteCase[] = [
   // Crews: every member reads them; only the administrator keeps them (and may without being a member).
   { method: 'get', path: '/api/projects/:projectId/crews', roles: everyone },
   { method: 'post', path: '/api/projects/:projectId/crews', admin: true, body: () => ({ name: uniq('Crew'), members: [{ name: 'Ola Berg', email: `${uniq('crew')}@kerfwise.test` }] }), okStatus: 201 },
+  // Intervention stops: everyone reads; the planner plans, schedules, publishes and cancels; fitters and planners run them.
+  { method: 'get', path: '/api/projects/:projectId/stops/plan', roles: everyone },
+  { method: 'get', path: '/api/projects/:projectId/stops', roles: everyone },
+  { method: 'post', path: '/api/projects/:projectId/stops', roles: ['planner'], body: (c) => ({ chainageM: 1000 + (matrixStops++) * 1.5, positions: [{ positionId: c.positionId, expectedWearMm: 20 }] }), okStatus: 201,
+    prepare: async ({ projectId }) => {
+      await ensureStopSection(projectId);
+      return {};
+    } },
+  { method: 'get', path: '/api/projects/:projectId/stops/:stopId', roles: everyone },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/schedule', roles: ['planner'], body: (c) => ({ plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 12, crewId: c.crewId, compressedAir: false }),
+    prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'proposed') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/publish', roles: ['planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'scheduled') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/start', roles: ['fitter', 'planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'scheduled') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/complete', roles: ['fitter', 'planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'in_progress') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/cancel', roles: ['planner'], body: () => ({ reason: 'Matrix: plan changed' }),
+    prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'proposed') }) },
 ];
 
 async function workshopCutter(projectId: string) {

@@ -1,0 +1,1 @@
+ALTER TABLE "projects" ADD COLUMN "compressed_air_above_head_m" double precision DEFAULT 30 NOT NULL;
