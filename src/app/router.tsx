@@ -30,6 +30,7 @@ export const router = createBrowserRouter([
       { path: 'admin', element: <Navigate to={paths.admin.users} replace /> },
       { path: paths.admin.users, lazy: async () => ({ Component: (await import('../features/admin/routes/users')).AdminUsersRoute }) },
       { path: paths.admin.projects, lazy: async () => ({ Component: (await import('../features/admin/routes/projects')).AdminProjectsRoute }) },
+      { path: paths.admin.jobs, lazy: async () => ({ Component: (await import('../features/admin/routes/jobs')).AdminJobsRoute }) },
       { path: paths.admin.mail, lazy: async () => ({ Component: (await import('../features/admin/routes/mail')).AdminMailRoute }) },
       { path: '*', element: <RouteError /> },
     ],

@@ -21,5 +21,6 @@ export const paths = {
     users: '/admin/users',
     projects: '/admin/projects',
     mail: '/admin/mail',
+    jobs: '/admin/jobs',
   },
 } as const;

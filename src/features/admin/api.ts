@@ -34,10 +34,29 @@ export interface CaughtMail {
   textBody: string;
 }
 
+export interface JobRunRow {
+  id: number;
+  job: string;
+  trigger: string;
+  startedAt: string;
+  finishedAt: string | null;
+  outcome: string;
+  summary: string | null;
+  error: string | null;
+}
+
+export interface JobInfo {
+  name: string;
+  label: string;
+  cron: string;
+  runs: JobRunRow[];
+}
+
 export const adminQueries = {
   all: ['admin'] as const,
   users: () => queryOptions({ queryKey: [...adminQueries.all, 'users'], queryFn: () => apiGet<AdminUser[]>('/api/admin/users') }),
   projects: () => queryOptions({ queryKey: [...adminQueries.all, 'projects'], queryFn: () => apiGet<AdminProject[]>('/api/admin/projects') }),
+  jobs: () => queryOptions({ queryKey: [...adminQueries.all, 'jobs'], queryFn: () => apiGet<JobInfo[]>('/api/admin/jobs'), refetchInterval: 10_000 }),
   mail: () =>
     queryOptions({
       queryKey: [...adminQueries.all, 'mail'],
@@ -52,3 +71,4 @@ export const createProject = (input: ProjectInput) => api<AdminProject>('POST', 
 export const setMembership = (projectId: string, userId: string, role: ProjectRole) =>
   api('PUT', `/api/admin/projects/${projectId}/members/${userId}`, { role });
 export const removeMembership = (projectId: string, userId: string) => api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);
+export const runJobNow = (name: string) => api<JobRunRow>('POST', `/api/admin/jobs/${name}/run`);

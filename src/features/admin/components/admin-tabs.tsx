@@ -10,6 +10,7 @@ export function AdminTabs() {
       <NavLink to={paths.admin.users} className={tab}>Users</NavLink>
       <NavLink to={paths.admin.projects} className={tab}>Projects</NavLink>
       <NavLink to={paths.admin.mail} className={tab}>Mail</NavLink>
+      <NavLink to={paths.admin.jobs} className={tab}>Jobs</NavLink>
     </nav>
   );
 }

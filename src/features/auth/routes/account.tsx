@@ -9,6 +9,7 @@ import { TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { changePassword } from '../api';
+import { NotificationChoices } from '../components/notification-choices';
 import { useMe } from '../use-me';
 
 export function AccountRoute() {
@@ -32,6 +33,9 @@ export function AccountRoute() {
         <ul className="mt-2 list-disc pl-6">
           {me.memberships.map((m) => <li key={m.projectId}>{m.projectName}: {roleLabels[m.role]}</li>)}
         </ul>
+      </Panel>
+      <Panel title="E-mail notifications">
+        <NotificationChoices />
       </Panel>
       <Panel title="Change password">
         <form onSubmit={onSubmit} className="max-w-md space-y-4" noValidate>
