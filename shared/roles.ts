@@ -35,6 +35,12 @@ export const permissions = {
   'stops.plan': ['planner'],
   /** Starting and finishing a stop at the face. */
   'stops.run': ['fitter', 'planner'],
+  /** Parts catalogue, stock, orders, workshop loop and demand. */
+  'parts.read': ['planner', 'buyer', 'site_manager'],
+  'parts.edit': ['buyer'],
+  /** Downtime events, causes and the site manager's reports (downtime and cutter cost). */
+  'downtime.read': ['planner', 'buyer', 'site_manager'],
+  'downtime.edit': ['site_manager', 'planner'],
 } as const satisfies Record<string, readonly ProjectRole[]>;
 
 export type Permission = keyof typeof permissions;

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import {
-  bigserial, boolean, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid,
+  bigserial, boolean, date, doublePrecision, index, integer, jsonb, numeric, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core';
 import { cutterStatuses, positionClasses } from '../../shared/cutters';
 import { projectRoles } from '../../shared/roles';
@@ -443,3 +443,107 @@ export const notificationOptOuts = pgTable('notification_opt_outs', {
   userId: uuid().notNull().references(() => users.id, { onDelete: 'cascade' }),
   kind: text().notNull(),
 }, (t) => [primaryKey({ columns: [t.userId, t.kind] })]);
+
+export const partKinds = ['ring', 'bearing-kit', 'seal-kit', 'cutter-assembly', 'hub', 'small-part'] as const;
+export const partKindEnum = pgEnum('part_kind', partKinds);
+
+/** The parts catalogue of a drive. */
+export const parts = pgTable('parts', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  code: text().notNull(),
+  name: text().notNull(),
+  kind: partKindEnum().notNull(),
+  discSizeIn: doublePrecision(),
+  unitCost: numeric({ precision: 12, scale: 2 }).notNull(),
+  currency: text().notNull().default('EUR'),
+  supplier: text().notNull().default(''),
+  leadTimeMeanDays: doublePrecision().notNull(),
+  leadTimeSdDays: doublePrecision().notNull().default(0),
+  minOrderQty: integer().notNull().default(1),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('parts_project_code_key').on(t.projectId, t.code)]);
+
+/** Every change of stock on hand: counts (adjustments), receipts, issues to the workshop. */
+export const stockMovements = pgTable('stock_movements', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  partId: uuid().notNull().references(() => parts.id, { onDelete: 'cascade' }),
+  at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  /** Signed quantity. */
+  qty: integer().notNull(),
+  /** 'count', 'receipt', 'issue', 'rebuild', 'scrap'. */
+  kind: text().notNull(),
+  note: text().notNull().default(''),
+  purchaseOrderLineId: uuid(),
+  userId: uuid().references(() => users.id, { onDelete: 'set null' }),
+}, (t) => [index('stock_movements_part_idx').on(t.partId, t.at)]);
+
+export const purchaseOrders = pgTable('purchase_orders', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  number: text().notNull(),
+  supplier: text().notNull().default(''),
+  orderedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  note: text().notNull().default(''),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+}, (t) => [uniqueIndex('purchase_orders_project_number_key').on(t.projectId, t.number)]);
+
+export const purchaseOrderLines = pgTable('purchase_order_lines', {
+  id: uuid().primaryKey().defaultRandom(),
+  purchaseOrderId: uuid().notNull().references(() => purchaseOrders.id, { onDelete: 'cascade' }),
+  partId: uuid().notNull().references(() => parts.id),
+  qtyOrdered: integer().notNull(),
+  qtyReceived: integer().notNull().default(0),
+  dueDate: date().notNull(),
+}, (t) => [index('purchase_order_lines_po_idx').on(t.purchaseOrderId)]);
+
+/**
+ * The workshop loop of a drive: what a removed cutter needs to come back, by its worst condition
+ * (bill of materials per condition, or 'scrap'), the turnaround and the most rebuilds allowed.
+ */
+export const workshopSettings = pgTable('workshop_settings', {
+  projectId: uuid().primaryKey().references(() => projects.id, { onDelete: 'cascade' }),
+  turnaroundDays: doublePrecision().notNull(),
+  maxRebuilds: integer().notNull(),
+  /** condition key → [{ partId, qty }] or 'scrap'; per cutter assembly part. */
+  boms: jsonb().$type<Record<string, Record<string, { partId: string; qty: number }[] | 'scrap'>>>().notNull(),
+  serviceLevel: doublePrecision().notNull().default(0.95),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+});
+
+/** The drive's list of downtime causes (editable); `cutterWork` marks inspection/change time. */
+export const downtimeCauses = pgTable('downtime_causes', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  name: text().notNull(),
+  cutterWork: boolean().notNull().default(false),
+  sortOrder: integer().notNull().default(0),
+  active: boolean().notNull().default(true),
+}, (t) => [uniqueIndex('downtime_causes_project_name_key').on(t.projectId, t.name)]);
+
+/** A standstill of the machine with its cause; entered by hand or proposed from gaps in the log. */
+export const downtimeEvents = pgTable('downtime_events', {
+  id: uuid().primaryKey().defaultRandom(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  startAt: timestamp({ withTimezone: true }).notNull(),
+  endAt: timestamp({ withTimezone: true }).notNull(),
+  causeId: uuid().references(() => downtimeCauses.id),
+  note: text().notNull().default(''),
+  stopId: uuid().references(() => stops.id, { onDelete: 'set null' }),
+  /** 'manual' or 'gap' (proposed from the advance log, cause still to give). */
+  source: text().notNull().default('manual'),
+  createdBy: uuid().references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+}, (t) => [index('downtime_events_project_idx').on(t.projectId, t.startAt)]);
+
+/** Site settings for the site manager's reports: shift pattern and labour rate. */
+export const siteSettings = pgTable('site_settings', {
+  projectId: uuid().primaryKey().references(() => projects.id, { onDelete: 'cascade' }),
+  /** Shift starts in site-local time, e.g. [{ name: 'Day', start: '06:00' }, { name: 'Night', start: '18:00' }]. */
+  shifts: jsonb().$type<{ name: string; start: string }[]>().notNull(),
+  labourRatePerHour: numeric({ precision: 10, scale: 2 }).notNull(),
+  /** Gaps between strokes longer than this (minutes) are proposed as downtime. */
+  gapMinutes: integer().notNull().default(90),
+  updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+});
