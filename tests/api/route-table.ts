@@ -5,7 +5,6 @@
 import { randomUUID } from 'node:crypto';
 import type { ProjectRole } from '../../shared/roles';
 import { uniq } from '../support/fixtures';
-import { ensureStopSection, stopIn } from '../support/stops-fixtures';
 
 export interface RouteContext {
   projectId: string;
@@ -15,9 +14,6 @@ export interface RouteContext {
   cutterId: string;
   roundId: string;
   photoId: string;
-  /** A proposed stop, and a crew with a member (tests/support/stops-fixtures.ts). */
-  stopId: string;
-  crewId: string;
 }
 
 export interface RouteCase {
@@ -38,8 +34,6 @@ export interface RouteCase {
 }
 
 const everyone = ['fitter', 'planner', 'buyer', 'site_manager'] as const;
-/** Each proposed stop of the matrix at its own chainage (an open stop at the same chainage is refused). */
-let matrixStops = 0;
 
 export const routeTable: RouteCase[] = [
   { method: 'get', path: '/api/auth/me', signedIn: true },
@@ -100,22 +94,6 @@ export const routeTable: RouteCase[] = [
   // Crews: every member reads them; only the administrator keeps them (and may without being a member).
   { method: 'get', path: '/api/projects/:projectId/crews', roles: everyone },
   { method: 'post', path: '/api/projects/:projectId/crews', admin: true, body: () => ({ name: uniq('Crew'), members: [{ name: 'Ola Berg', email: `${uniq('crew')}@kerfwise.test` }] }), okStatus: 201 },
-  // Intervention stops: everyone reads; the planner plans, schedules, publishes and cancels; fitters and planners run them.
-  { method: 'get', path: '/api/projects/:projectId/stops/plan', roles: everyone },
-  { method: 'get', path: '/api/projects/:projectId/stops', roles: everyone },
-  { method: 'post', path: '/api/projects/:projectId/stops', roles: ['planner'], body: (c) => ({ chainageM: 1000 + (matrixStops++) * 1.5, positions: [{ positionId: c.positionId, expectedWearMm: 20 }] }), okStatus: 201,
-    prepare: async ({ projectId }) => {
-      await ensureStopSection(projectId);
-      return {};
-    } },
-  { method: 'get', path: '/api/projects/:projectId/stops/:stopId', roles: everyone },
-  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/schedule', roles: ['planner'], body: (c) => ({ plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 12, crewId: c.crewId, compressedAir: false }),
-    prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'proposed') }) },
-  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/publish', roles: ['planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'scheduled') }) },
-  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/start', roles: ['fitter', 'planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'scheduled') }) },
-  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/complete', roles: ['fitter', 'planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'in_progress') }) },
-  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/cancel', roles: ['planner'], body: () => ({ reason: 'Matrix: plan changed' }),
-    prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'proposed') }) },
 ];
 
 async function workshopCutter(projectId: string) {
