@@ -4,7 +4,7 @@
  * set: a real deployment has its own server (DEVELOPERS.md, decision 3).
  */
 import { execFileSync, spawnSync } from 'node:child_process';
-import { chmodSync, chownSync, existsSync, mkdirSync, readdirSync, writeFileSync } from 'node:fs';
+import { chmodSync, chownSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
 
@@ -106,10 +106,16 @@ export async function startLocalPostgres(opts: LocalPostgresOptions): Promise<Lo
   let startedHere = false;
   if (!ready()) {
     log(`Starting PostgreSQL on 127.0.0.1:${opts.port} …`);
-    runPg(path.join(bin, 'pg_ctl'), ['-D', dataDir, '-l', path.join(sockDir, "server.log"), '-w', '-t', '60', 'start']);
+    const started = runPg(path.join(bin, 'pg_ctl'), ['-D', dataDir, '-l', path.join(sockDir, 'server.log'), '-w', '-t', '60', 'start'], { allowFail: true });
+    if (started.status !== 0) {
+      const log = existsSync(path.join(sockDir, 'server.log')) ? readFileSync(path.join(sockDir, 'server.log'), 'utf8') : '';
+      throw new Error(/Address already in use/.test(log)
+        ? `Port ${opts.port} on 127.0.0.1 is taken by another PostgreSQL (another Kerfwise checkout still running?). Stop it, or set DATABASE_URL.`
+        : `PostgreSQL did not start; see ${path.join(sockDir, 'server.log')}.\n${started.output}`);
+    }
     startedHere = true;
     for (let i = 0; i < 100 && !ready(); i++) await new Promise((r) => setTimeout(r, 100));
-    if (!ready()) throw new Error(`PostgreSQL did not become ready; see ${path.join(sockDir, "server.log")}`);
+    if (!ready()) throw new Error(`PostgreSQL did not become ready; see ${path.join(sockDir, 'server.log')}`);
   } else {
     log(`PostgreSQL already running on 127.0.0.1:${opts.port}; using it.`);
   }
