@@ -8,6 +8,7 @@ import { format } from 'date-fns';
 import { and, asc, eq, gt, isNotNull, sql } from 'drizzle-orm';
 import { COMPRESSED_AIR_CAUTION } from '../shared/domain/compressed-air';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../shared/cautions';
+import { formatChainage } from '../shared/format';
 import { db } from '../server/db/client';
 import { crewMembers, crews, positions, projects, stopPositions, stopReminders, stops } from '../server/db/schema';
 import { enqueueMail, kickMailDelivery, optedOut } from '../server/lib/mail';
@@ -50,8 +51,7 @@ export async function stopRemindersJob({ now }: JobContext): Promise<string> {
         .where(eq(stopPositions.stopId, stop.id))
         .orderBy(asc(positions.number));
       const local = format(new TZDate(stop.plannedStart!, project.siteTimeZone), "EEEE d MMMM yyyy, HH:mm");
-      const km = Math.floor(stop.chainageM / 1000);
-      const chainage = `${km}+${(stop.chainageM - km * 1000).toFixed(1).padStart(5, '0')}`;
+      const chainage = formatChainage(stop.chainageM);
       const lines = [
         `${project.name}: cutter stop at chainage ${chainage}${stop.ringNumber ? ` (ring ${stop.ringNumber})` : ''}`,
         `Starts: ${local} (${project.siteTimeZone}), about ${stop.expectedHours ?? '?'} h. Crew: ${crew?.name ?? '—'}.`,

@@ -84,6 +84,18 @@ function isoTimeMs(iso: string): number | null {
   return Number.isNaN(ms) ? null : ms;
 }
 
+/** Number of entries of the ascending `times` that are < `ms` (binary search). */
+function countBefore(times: readonly number[], ms: number): number {
+  let lo = 0;
+  let hi = times.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (times[mid] < ms) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
 function requireTimeMs(iso: string, what: string): number {
   const ms = isoTimeMs(iso);
   if (ms === null) throw new RangeError(`${what}: not an ISO 8601 time with offset: ${iso}`);
@@ -206,16 +218,6 @@ export function sumRolledKmForPeriods(
     series.times.push(piece.startMs);
     series.cum.push(series.cum[series.cum.length - 1] + piece.revolutions);
   }
-  const countBefore = (times: number[], ms: number) => {
-    let lo = 0;
-    let hi = times.length;
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1;
-      if (times[mid] < ms) lo = mid + 1;
-      else hi = mid;
-    }
-    return lo;
-  };
   const totals = new Map<string, Map<string | null, number>>();
   const add = (periodId: string, groundTypeId: string | null, km: number) => {
     let forPeriod = totals.get(periodId);
@@ -280,17 +282,6 @@ export function sumRolledKmByPeriod(
     for (const item of list) cumKm.push(cumKm[cumKm.length - 1] + item.km);
     series.get(positionId)!.push({ times: list.map((i) => i.ms), cumKm, groundTypeId: ground === '' ? null : ground });
   }
-  /** Number of entries of the sorted `times` that are < `ms`. */
-  const countBefore = (times: number[], ms: number) => {
-    let lo = 0;
-    let hi = times.length;
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1;
-      if (times[mid] < ms) lo = mid + 1;
-      else hi = mid;
-    }
-    return lo;
-  };
   for (const p of periods) {
     const fromMs = requireTimeMs(p.fromTime, `Period ${p.id}`);
     const toMs = p.toTime === null ? Infinity : requireTimeMs(p.toTime, `Period ${p.id}`);

@@ -1,12 +1,6 @@
 /** Display formats shared by the field screens: chainage as km+m, dates in the site's time zone. */
 
-/** Chainage in metres as `km+mmm.m` (e.g. 1234.5 → "1+234.5"). */
-export function formatChainage(chainageM: number | null | undefined): string {
-  if (chainageM == null) return '—';
-  const km = Math.floor(Math.abs(chainageM) / 1000);
-  const rest = (Math.abs(chainageM) - km * 1000).toFixed(1).padStart(5, '0');
-  return `${chainageM < 0 ? '-' : ''}${km}+${rest}`;
-}
+export { formatChainage } from '../../shared/format';
 
 /** A date (ISO text or Date) as YYYY-MM-DD in `timeZone`. */
 export function formatDate(at: string | Date | null | undefined, timeZone: string): string {

@@ -1,12 +1,7 @@
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 
-/** Chainage in metres as km+metres, e.g. 1234.5 → "1+234.5". */
-export function formatChainage(chainageM: number): string {
-  const km = Math.floor(Math.abs(chainageM) / 1000);
-  const rest = (Math.abs(chainageM) - km * 1000).toFixed(1).padStart(5, '0');
-  return `${chainageM < 0 ? '-' : ''}${km}+${rest}`;
-}
+export { formatChainage } from '../../../shared/format';
 
 /** A moment shown in the site's time zone, e.g. "4 Mar 2025 07:40". */
 export const formatSiteTime = (iso: string, timeZone: string) => format(new TZDate(iso, timeZone), 'd MMM yyyy HH:mm');
