@@ -150,6 +150,8 @@ export type StopPlanResult =
       savingH: number;
       /** Search states expanded, a measure of the work done. */
       statesExpanded: number;
+      /** False when the exact search hit `maxStates` and the plan is the best found, not proven cheapest. */
+      provenOptimal: boolean;
     }
   | { feasible: false; problems: InfeasiblePosition[] };
 
@@ -364,9 +366,14 @@ interface Label {
  * Plans the intervention stops over the horizon: the cheapest plan (hours of stops + changes +
  * ring life thrown away), the hand plan for comparison and the saving in hours, or the
  * positions that no plan can keep within their limit. `quickPassStates` tunes the first pass
- * (0 skips it); the result is the same, only the time changes.
+ * (0 skips it); the result is the same, only the time changes. `maxStates` caps the exact pass
+ * (a server must answer in time): past it the best plan found so far is returned, marked
+ * `provenOptimal: false`; it is never worse than the hand plan.
  */
-export function planStops(input: StopPlanInput, { quickPassStates = QUICK_PASS_STATES }: { quickPassStates?: number } = {}): StopPlanResult {
+export function planStops(
+  input: StopPlanInput,
+  { quickPassStates = QUICK_PASS_STATES, maxStates = Infinity }: { quickPassStates?: number; maxStates?: number } = {},
+): StopPlanResult {
   validate(input);
   const prep = prepare(input);
   const n = input.positions.length;
@@ -442,7 +449,7 @@ export function planStops(input: StopPlanInput, { quickPassStates = QUICK_PASS_S
   const startReach = Int32Array.from(input.positions, (p, i) => lastReachable(prep, i, p.limitMm - p.wearNowMm));
   const startBudgetMm = Float64Array.from(input.positions, (p) => p.limitMm - p.wearNowMm);
   const firstLim = startReach.reduce((a, r) => Math.min(a, r), done);
-  if (firstLim === done) return { feasible: true, optimised: pricePlan(input, prep, []), hand, savingH: 0, statesExpanded: 0 };
+  if (firstLim === done) return { feasible: true, optimised: pricePlan(input, prep, []), hand, savingH: 0, statesExpanded: 0, provenOptimal: true };
   // State hashes: Σ (reach + 1)·c_i over two sets of odd 32-bit multipliers, updated per change.
   const hashA = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x9e3779b1) | 1);
   const hashB = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x85ebca77) | 1);
@@ -480,6 +487,7 @@ export function planStops(input: StopPlanInput, { quickPassStates = QUICK_PASS_S
   };
 
   let statesExpanded = 0;
+  let stoppedEarly = false;
   // One pass over the places in order; `beamWidth` caps the states expanded per place (Infinity:
   // exact). Returns the best plan costing less than `boundH`, if any.
   const search = (beamWidth: number, boundH: number) => {
@@ -505,6 +513,10 @@ export function planStops(input: StopPlanInput, { quickPassStates = QUICK_PASS_S
     }
 
     for (let q = 0; q < m; q++) {
+      if (beamWidth === Infinity && statesExpanded > maxStates) {
+        stoppedEarly = true;
+        break;
+      }
       const entries = [...buckets[q].values()].flat().filter((l) => l.costH + stopsAfterH[q] + l.ownH < bestH - tolH);
       buckets[q].clear();
       const filled = new Map(entries.map((e) => [e, fill(e)]));
@@ -589,7 +601,8 @@ export function planStops(input: StopPlanInput, { quickPassStates = QUICK_PASS_S
 
   const quick = search(quickPassStates, hand.cost.totalH);
   const best = search(Infinity, quick.bestH).best ?? quick.best;
-  if (best === null) return { feasible: true, optimised: hand, hand, savingH: 0, statesExpanded };
+  const provenOptimal = !stoppedEarly;
+  if (best === null) return { feasible: true, optimised: hand, hand, savingH: 0, statesExpanded, provenOptimal };
   const plan: { idx: number; changed: number[] }[] = [];
   let changedUpTo = best.changedUpTo;
   for (let l: Label | null = best.last; l !== null; l = l.parent) {
@@ -598,5 +611,5 @@ export function planStops(input: StopPlanInput, { quickPassStates = QUICK_PASS_S
     changedUpTo = l.changedUpTo;
   }
   const optimised = pricePlan(input, prep, plan);
-  return { feasible: true, optimised, hand, savingH: hand.cost.totalH - optimised.cost.totalH, statesExpanded };
+  return { feasible: true, optimised, hand, savingH: hand.cost.totalH - optimised.cost.totalH, statesExpanded, provenOptimal };
 }

@@ -24,7 +24,7 @@ const GROUND_AHEAD = [
 ];
 const CLASS_FACTOR = { centre: 1.2, face: 1, gauge: 1.6 } as const;
 
-function benchInput(): StopPlanInput {
+function benchInput(wearFactor = 1): StopPlanInput {
   const positions: PlannerPosition[] = Array.from({ length: 80 }, (_, k) => {
     // 4 twin centre positions, 64 face positions, 12 gauge positions on a 10 m cutterhead.
     const positionClass = k < 4 ? 'centre' : k < 68 ? 'face' : 'gauge';
@@ -37,7 +37,7 @@ function benchInput(): StopPlanInput {
       limitMm,
       // Spread of wear now without a random generator: a fixed permutation of 0…79.
       wearNowMm: (((k * 37) % 80) / 80) * 0.85 * limitMm,
-      wearStretches: GROUND_AHEAD.map((g) => ({ fromAheadM: g.fromAheadM, wearMmPerM: g.mmPerKm * CLASS_FACTOR[positionClass] * rolledKmPerM })),
+      wearStretches: GROUND_AHEAD.map((g) => ({ fromAheadM: g.fromAheadM, wearMmPerM: wearFactor * g.mmPerKm * CLASS_FACTOR[positionClass] * rolledKmPerM })),
     };
   });
   // Every ring is an allowed place; 500–800 m ahead lies under high groundwater (compressed air).
@@ -57,6 +57,9 @@ function benchInput(): StopPlanInput {
     wastedRingLifeHPerMm: 0.03,
   };
 }
+
+/** The bench instance with its wear rates scaled (×3 makes a hard case), for tests of the search budget. */
+export const benchInputForTests = (wearFactor: number) => benchInput(wearFactor);
 
 /** Runs the planner a few times on the bench instance; returns the lines to print. */
 export async function benchStopPlanner(): Promise<string[]> {

@@ -385,3 +385,19 @@ describe('planStops: against an exhaustive search over all subsets of stop place
     expect(repeated).toBeGreaterThan(100);
   });
 });
+
+describe('search budget', () => {
+  it('past maxStates answers the best plan found, marked not proven, never worse than the hand plan', async () => {
+    // An instance where the exact search expands many states: the benchmark's drive-sized case.
+    const { benchInputForTests } = await import('../bench/stop-planner.bench');
+    const input = benchInputForTests(2);
+    const capped = planStops(input, { maxStates: 50 });
+    const exact = planStops(input);
+    expect(capped.feasible && exact.feasible).toBe(true);
+    if (!capped.feasible || !exact.feasible) return;
+    expect(exact.provenOptimal).toBe(true);
+    expect(capped.provenOptimal).toBe(false);
+    expect(capped.optimised.cost.totalH).toBeLessThanOrEqual(capped.hand.cost.totalH + 1e-9);
+    expect(capped.optimised.cost.totalH).toBeGreaterThanOrEqual(exact.optimised.cost.totalH - 1e-9);
+  }, 120_000);
+});
