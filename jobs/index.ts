@@ -6,6 +6,8 @@
 import cron, { type ScheduledTask } from 'node-cron';
 import { deliverPendingMail } from '../server/lib/mail';
 import { catchUpMissedRuns, runJob, type JobDefinition } from '../server/services/job-runner';
+import { downtimeDigestJob } from './downtime-digest';
+import { partsDigestJob } from './parts-digest';
 import { refreshForecastsJob } from './refresh-forecasts';
 import { stopRemindersJob } from './stop-reminders';
 
@@ -35,6 +37,20 @@ export const jobs: JobDefinition[] = [
     cron: '*/5 * * * *',
     periodMs: 10 * MINUTE,
     run: stopRemindersJob,
+  },
+  {
+    name: 'downtime-digest',
+    label: 'Weekly downtime summary to the site managers (last week, by cause)',
+    cron: '0 7 * * 1',
+    periodMs: 7 * 24 * 60 * MINUTE,
+    run: (ctx) => downtimeDigestJob(ctx),
+  },
+  {
+    name: 'parts-digest',
+    label: 'Weekly parts order suggestions to the buyers',
+    cron: '0 6 * * 1',
+    periodMs: 7 * 24 * 60 * MINUTE,
+    run: (ctx) => partsDigestJob(ctx),
   },
 ];
 

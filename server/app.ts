@@ -12,13 +12,16 @@ import { adminRouter } from './routes/admin';
 import { authRouter } from './routes/auth';
 import { crewsRouter } from './routes/crews';
 import { cuttersRouter } from './routes/cutters';
+import { downtimeRouter } from './routes/downtime';
 import { forecastRouter, wearFitRouter } from './routes/forecast';
 import { geologyRouter, groundTypesRouter } from './routes/geology';
 import { healthRouter } from './routes/health';
+import { partsRouter } from './routes/parts';
 import { photosRouter } from './routes/photos';
 import { positionsRouter } from './routes/positions';
 import { projectsRouter } from './routes/projects';
 import { roundsRouter } from './routes/rounds';
+import { stopsRouter } from './routes/stops';
 import { strokesRouter } from './routes/strokes';
 
 export interface AppOptions {
@@ -52,6 +55,9 @@ export function createApp(options: AppOptions = {}): Express {
   api.use('/projects/:projectId/wear-fit', wearFitRouter);
   api.use('/projects/:projectId/forecast', forecastRouter);
   api.use('/projects/:projectId/crews', crewsRouter);
+  api.use('/projects/:projectId/stops', stopsRouter);
+  api.use('/projects/:projectId/downtime', downtimeRouter);
+  api.use('/projects/:projectId/parts', partsRouter);
   api.use('/admin', adminRouter);
   api.use(apiNotFound);
   app.use('/api', api);

@@ -8,7 +8,9 @@ import { eq } from 'drizzle-orm';
 import type { ProjectRole } from '../../shared/roles';
 import { hashPassword } from '../lib/password';
 import type { Db } from './client';
+import { loadDemoDowntime } from './demo/load-downtime';
 import { loadDemoDrive } from './demo/load-drive';
+import { loadDemoParts } from './demo/load-parts';
 import { memberships, positions, projects, users } from './schema';
 
 export const DEMO_PASSWORD = process.env.DEMO_PASSWORD ?? 'cutterhead-demo';
@@ -55,7 +57,11 @@ export async function seedDemo(db: Db): Promise<{ projectId: string; created: bo
     }
     // The drive's history goes in once, into a project without a cutterhead yet.
     const [anyPosition] = await tx.select({ id: positions.id }).from(positions).where(eq(positions.projectId, project.id)).limit(1);
-    if (!anyPosition) await loadDemoDrive(tx, project.id, fitterId);
+    if (!anyPosition) {
+      await loadDemoDrive(tx, project.id, fitterId);
+      await loadDemoParts(tx, project.id);
+      await loadDemoDowntime(tx, project.id);
+    }
     return { projectId: project.id, created: created || !anyPosition };
   });
 }

@@ -17,6 +17,13 @@ export const paths = {
   wearFits: (projectId: string) => `/projects/${projectId}/wear-fits`,
   advanceLog: (projectId: string) => `/projects/${projectId}/advance-log`,
   geology: (projectId: string) => `/projects/${projectId}/geology`,
+  parts: (projectId: string) => `/projects/${projectId}/parts`,
+  downtime: (projectId: string) => `/projects/${projectId}/downtime`,
+  downtimeReport: (projectId: string) => `/projects/${projectId}/downtime/report`,
+  cutterCost: (projectId: string) => `/projects/${projectId}/downtime/cost`,
+  stops: (projectId: string) => `/projects/${projectId}/stops`,
+  stopPlan: (projectId: string) => `/projects/${projectId}/stops/plan`,
+  stop: (projectId: string, stopId: string) => `/projects/${projectId}/stops/${stopId}`,
   admin: {
     users: '/admin/users',
     projects: '/admin/projects',

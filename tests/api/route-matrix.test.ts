@@ -13,6 +13,7 @@ import { entrySubmissions, inspectionEntries, inspectionRounds, photos } from '.
 import { storeFile } from '../../server/lib/storage';
 import { addMember, makeProject, makeUser, signedInAgent } from '../support/fixtures';
 import { makeCutterhead } from '../support/drive-fixtures';
+import { stopContext } from '../support/stops-fixtures';
 import { routeTable, type RouteCase, type RouteContext } from './route-table';
 
 const app: Express = createApp();
@@ -47,6 +48,7 @@ beforeAll(async () => {
   const [photo] = await db.insert(photos).values({ projectId: project.id, entryId: entry.id, clientKey: randomUUID(), storedName, mimeType: 'image/png', sizeBytes: 8 }).returning();
   ctx = {
     projectId: project.id, otherUserId: other.id, positionId: drive.positions[0].id, cutterId: drive.store[0].id, roundId: round.id, photoId: photo.id,
+    ...(await stopContext(project.id)),
   };
   agents.set('anonymous', request.agent(app));
   agents.set('admin', await signedInAgent(app, (await makeUser({ isAdmin: true })).email));
@@ -61,7 +63,7 @@ beforeAll(async () => {
 });
 
 const fill = (path: string, c: RouteContext) =>
-  path.replace(/:(projectId|otherUserId|positionId|cutterId|roundId|photoId)/g, (_, k: keyof RouteContext) => c[k]);
+  path.replace(/:(projectId|otherUserId|positionId|cutterId|roundId|photoId|stopId)/g, (_, k: keyof RouteContext) => c[k]);
 
 describe.each(routeTable)('$method $path', (route) => {
   it.each(callers)('%s', async (caller) => {

@@ -5,6 +5,7 @@
 import { randomUUID } from 'node:crypto';
 import type { ProjectRole } from '../../shared/roles';
 import { uniq } from '../support/fixtures';
+import { ensureStopSection, stopIn } from '../support/stops-fixtures';
 
 export interface RouteContext {
   projectId: string;
@@ -14,6 +15,9 @@ export interface RouteContext {
   cutterId: string;
   roundId: string;
   photoId: string;
+  /** A proposed stop, and a crew with a member (tests/support/stops-fixtures.ts). */
+  stopId: string;
+  crewId: string;
 }
 
 export interface RouteCase {
@@ -34,6 +38,8 @@ export interface RouteCase {
 }
 
 const everyone = ['fitter', 'planner', 'buyer', 'site_manager'] as const;
+/** Each proposed stop of the matrix at its own chainage (an open stop at the same chainage is refused). */
+let matrixStops = 0;
 
 export const routeTable: RouteCase[] = [
   { method: 'get', path: '/api/auth/me', signedIn: true },
@@ -94,7 +100,64 @@ export const routeTable: RouteCase[] = [
   // Crews: every member reads them; only the administrator keeps them (and may without being a member).
   { method: 'get', path: '/api/projects/:projectId/crews', roles: everyone },
   { method: 'post', path: '/api/projects/:projectId/crews', admin: true, body: () => ({ name: uniq('Crew'), members: [{ name: 'Ola Berg', email: `${uniq('crew')}@kerfwise.test` }] }), okStatus: 201 },
+  // Intervention stops: everyone reads; the planner plans, schedules, publishes and cancels; fitters and planners run them.
+  { method: 'get', path: '/api/projects/:projectId/stops/plan', roles: everyone },
+  { method: 'get', path: '/api/projects/:projectId/stops', roles: everyone },
+  { method: 'post', path: '/api/projects/:projectId/stops', roles: ['planner'], body: (c) => ({ chainageM: 1000 + (matrixStops++) * 1.5, positions: [{ positionId: c.positionId, expectedWearMm: 20 }] }), okStatus: 201,
+    prepare: async ({ projectId }) => {
+      await ensureStopSection(projectId);
+      return {};
+    } },
+  { method: 'get', path: '/api/projects/:projectId/stops/:stopId', roles: everyone },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/schedule', roles: ['planner'], body: (c) => ({ plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 12, crewId: c.crewId, compressedAir: false }),
+    prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'proposed') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/publish', roles: ['planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'scheduled') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/start', roles: ['fitter', 'planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'scheduled') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/complete', roles: ['fitter', 'planner'], prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'in_progress') }) },
+  { method: 'post', path: '/api/projects/:projectId/stops/:stopId/cancel', roles: ['planner'], body: () => ({ reason: 'Matrix: plan changed' }),
+    prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'proposed') }) },
+  // Downtime: planners, buyers and site managers read; site managers and planners keep events, causes and settings.
+  // Routes naming one cause or event get a well-formed id that names none: permitted callers pass the guard and get 404.
+  { method: 'get', path: '/api/projects/:projectId/downtime/causes', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'post', path: '/api/projects/:projectId/downtime/causes', roles: ['site_manager', 'planner'], body: () => ({ name: uniq('Cause'), cutterWork: false }), okStatus: 201 },
+  { method: 'patch', path: '/api/projects/:projectId/downtime/causes/00000000-0000-4000-8000-000000000000', roles: ['site_manager', 'planner'], body: () => ({ active: false }), okStatus: 404 },
+  { method: 'get', path: '/api/projects/:projectId/downtime/settings', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'put', path: '/api/projects/:projectId/downtime/settings', roles: ['site_manager', 'planner'], body: () => ({ shifts: [{ name: 'Day', start: '06:00' }, { name: 'Night', start: '18:00' }], labourRatePerHour: 90, gapMinutes: 90 }) },
+  { method: 'get', path: '/api/projects/:projectId/downtime/events', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'get', path: '/api/projects/:projectId/downtime/events?format=csv', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'post', path: '/api/projects/:projectId/downtime/events', roles: ['site_manager', 'planner'], okStatus: 201, body: () => {
+    const startMs = Date.UTC(2027, 0, 1) + (matrixEvents++) * 3_600_000;
+    return { startAt: new Date(startMs).toISOString(), endAt: new Date(startMs + 1_800_000).toISOString() };
+  } },
+  { method: 'put', path: '/api/projects/:projectId/downtime/events/00000000-0000-4000-8000-000000000000', roles: ['site_manager', 'planner'], body: () => ({ startAt: '2027-02-01T08:00:00Z', endAt: '2027-02-01T09:00:00Z' }), okStatus: 404 },
+  { method: 'delete', path: '/api/projects/:projectId/downtime/events/00000000-0000-4000-8000-000000000000', roles: ['site_manager', 'planner'], okStatus: 404 },
+  { method: 'post', path: '/api/projects/:projectId/downtime/propose-from-gaps', roles: ['site_manager', 'planner'] },
+  { method: 'get', path: '/api/projects/:projectId/downtime/report', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'get', path: '/api/projects/:projectId/downtime/report?format=csv&table=shift', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'get', path: '/api/projects/:projectId/downtime/cost', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'get', path: '/api/projects/:projectId/downtime/cost?format=csv&table=ground', roles: ['planner', 'buyer', 'site_manager'] },
+  // Parts: planners, buyers and site managers read; the buyer keeps the catalogue, stock, orders and workshop loop.
+  // Rows naming a part, order or line read the ids their `prepare` made (partsIds, below) when the path is filled.
+  { method: 'get', path: '/api/projects/:projectId/parts', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'post', path: '/api/projects/:projectId/parts', roles: ['buyer'], okStatus: 201, body: () => ({ code: uniq('P'), name: 'Matrix seal kit', kind: 'seal-kit', unitCost: 95, leadTimeMeanDays: 21 }) },
+  { method: 'put', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}`; }, roles: ['buyer'], prepare: partsRecords,
+    body: () => ({ code: uniq('P'), name: 'Matrix ring', kind: 'ring', discSizeIn: 17, unitCost: 400, leadTimeMeanDays: 28 }) },
+  { method: 'delete', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}`; }, roles: ['buyer'], okStatus: 204, prepare: partsRecords },
+  { method: 'post', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}/count`; }, roles: ['buyer'], prepare: partsRecords, body: () => ({ countedQty: 5 }) },
+  { method: 'get', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}/movements`; }, roles: ['planner', 'buyer', 'site_manager'], prepare: partsRecords },
+  { method: 'get', path: '/api/projects/:projectId/parts/workshop', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'put', path: '/api/projects/:projectId/parts/workshop', roles: ['buyer'], body: () => ({ turnaroundDays: 14, maxRebuilds: 3, serviceLevel: 0.95, boms: {} }) },
+  { method: 'get', path: '/api/projects/:projectId/parts/demand?weeks=4', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'get', path: '/api/projects/:projectId/parts/demand/suggestions.csv', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'get', path: '/api/projects/:projectId/parts/orders', roles: ['planner', 'buyer', 'site_manager'] },
+  { method: 'post', path: '/api/projects/:projectId/parts/orders', roles: ['buyer'], okStatus: 201, prepare: partsRecords,
+    body: () => ({ number: uniq('PO'), lines: [{ partId: partsIds.partId, qtyOrdered: 5, dueDate: '2027-03-01' }] }) },
+  { method: 'get', get path() { return `/api/projects/:projectId/parts/orders/${partsIds.orderId}`; }, roles: ['planner', 'buyer', 'site_manager'], prepare: partsRecords },
+  { method: 'post', get path() { return `/api/projects/:projectId/parts/orders/${partsIds.orderId}/lines/${partsIds.lineId}/receive`; }, roles: ['buyer'], prepare: partsRecords, body: () => ({ qty: 1 }) },
 ];
+
+/** Each downtime event of the matrix in its own hour (events may not overlap); read only when a row's body is made. */
+let matrixEvents = 0;
 
 async function workshopCutter(projectId: string) {
   const { db } = await import('../../server/db/client');
@@ -108,4 +171,20 @@ async function openRound(projectId: string) {
   const { inspectionRounds } = await import('../../server/db/schema');
   const [r] = await db.insert(inspectionRounds).values({ projectId, startedAt: new Date('2026-11-21T06:00:00Z'), chainageM: 710 }).returning();
   return r.id;
+}
+
+/** The part, order and line the parts rows name; the matrix fills only the context's keys, so these are read by `path`. */
+const partsIds = { partId: ':partId', orderId: ':orderId', lineId: ':lineId' };
+
+/** A fresh part with an order line of 10 for one call (fresh, so a delete or receipt never finds it used up). */
+async function partsRecords({ projectId }: RouteContext): Promise<Partial<RouteContext>> {
+  const { db } = await import('../../server/db/client');
+  const { parts, purchaseOrderLines, purchaseOrders } = await import('../../server/db/schema');
+  const [part] = await db.insert(parts).values({ projectId, code: uniq('M'), name: 'Matrix part', kind: 'small-part', unitCost: '1.00', leadTimeMeanDays: 7 }).returning();
+  const [order] = await db.insert(purchaseOrders).values({ projectId, number: uniq('PO') }).returning();
+  const [line] = await db.insert(purchaseOrderLines).values({ purchaseOrderId: order.id, partId: part.id, qtyOrdered: 10, dueDate: '2027-03-01' }).returning();
+  // The delete row needs a part without an order line: the order is on a second part.
+  const [spare] = await db.insert(parts).values({ projectId, code: uniq('M'), name: 'Matrix part, unordered', kind: 'small-part', unitCost: '1.00', leadTimeMeanDays: 7 }).returning();
+  Object.assign(partsIds, { partId: spare.id, orderId: order.id, lineId: line.id });
+  return {};
 }

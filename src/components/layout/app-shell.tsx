@@ -58,9 +58,12 @@ export function AppShell() {
                 {roleCan(membership.role, 'forecast.read') && <NavLink to={paths.forecast(projectId)} className={navLink}>Forecast</NavLink>}
                 {roleCan(membership.role, 'forecast.read') && <NavLink to={paths.wearFits(projectId)} className={navLink}>Wear rates</NavLink>}
                 {roleCan(membership.role, 'rounds.read') && <NavLink to={paths.rounds(projectId)} className={navLink}>Rounds</NavLink>}
+                {roleCan(membership.role, 'stops.read') && <NavLink to={paths.stops(projectId)} className={navLink}>Stops</NavLink>}
                 <NavLink to={paths.cutters(projectId)} className={navLink}>Cutters</NavLink>
                 {roleCan(membership.role, 'drive.read') && <NavLink to={paths.advanceLog(projectId)} className={navLink}>Advance log</NavLink>}
                 {roleCan(membership.role, 'drive.read') && <NavLink to={paths.geology(projectId)} className={navLink}>Geology</NavLink>}
+                {roleCan(membership.role, 'parts.read') && <NavLink to={paths.parts(projectId)} className={navLink}>Parts</NavLink>}
+                {roleCan(membership.role, 'downtime.read') && <NavLink to={paths.downtime(projectId)} className={navLink}>Downtime</NavLink>}
                 <NavLink to={paths.layout(projectId)} className={navLink}>Layout</NavLink>
               </>
             )}

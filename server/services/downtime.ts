@@ -1,0 +1,368 @@
+/**
+ * Downtime for the site manager: the drive's causes (defaults seeded on first use), site settings,
+ * gap proposals from the advance log, and the reports (downtime by cause × week and × shift,
+ * utilisation, cutter-work share, metres per day, Pareto; cutter cost per m and per m³). Shared by
+ * the downtime routes, the weekly digest job and the demo loader. All times in the site's zone.
+ */
+import { TZDate } from '@date-fns/tz';
+import { addDays, addWeeks, format, getISOWeek, getISOWeekYear, startOfISOWeek } from 'date-fns';
+import { and, asc, eq, gt, gte, lt, max, sql } from 'drizzle-orm';
+import { cutterCostBy, faceAreaM2, type CutterCostEntry } from '../../shared/domain/cutter-cost';
+import {
+  cutterWorkShare, downtimeHoursByCauseAndShift, downtimeHoursByCauseAndWeek, metresPerDay, proposeDowntimeFromGaps, utilisation, type DowntimeEvent,
+} from '../../shared/domain/downtime';
+import {
+  NO_CAUSE_LABEL, type CutterCostReport, type DowntimeCause, type DowntimeReport, type ProposeFromGapsResult, type ReportPeriod, type SiteSettings,
+} from '../../shared/schemas/downtime';
+import type { DbOrTx } from '../db/client';
+import {
+  downtimeCauses, downtimeEvents, geologySections, groundTypes, parts, projects, siteSettings, strokes,
+} from '../db/schema';
+import { audit } from '../lib/audit';
+
+type Project = typeof projects.$inferSelect;
+
+/**
+ * The causes a drive starts with. Cutter inspection and cutter change are cutter work. A
+ * compressed-air stop is counted as cutter work too: in Kerfwise an intervention under compressed
+ * air is made to reach the discs, and its lock-in, lock-out and waiting time is part of what cutter
+ * work costs. A site that also uses compressed air for other work records that under the matching
+ * cause (machine breakdown, other) or clears the flag.
+ */
+export const DEFAULT_CAUSES: readonly { name: string; cutterWork: boolean }[] = [
+  { name: 'Cutter inspection', cutterWork: true },
+  { name: 'Cutter change', cutterWork: true },
+  { name: 'Compressed-air stop', cutterWork: true },
+  { name: 'Machine breakdown', cutterWork: false },
+  { name: 'Lining supply', cutterWork: false },
+  { name: 'Muck removal', cutterWork: false },
+  { name: 'Survey', cutterWork: false },
+  { name: 'Waiting', cutterWork: false },
+  { name: 'Other', cutterWork: false },
+];
+
+/** Settings until the site manager saves its own: two 12-hour shifts; 90 min is the schema's default gap. */
+export const DEFAULT_SITE_SETTINGS = {
+  shifts: [{ name: 'Day', start: '06:00' }, { name: 'Night', start: '18:00' }],
+  labourRatePerHour: 0,
+  gapMinutes: 90,
+};
+
+/** Seeds the default causes into a drive that has none (idempotent, also under a race). */
+export async function ensureDefaultCauses(tx: DbOrTx, projectId: string, userId: string | null): Promise<void> {
+  const [any] = await tx.select({ id: downtimeCauses.id }).from(downtimeCauses).where(eq(downtimeCauses.projectId, projectId)).limit(1);
+  if (any) return;
+  const rows = await tx
+    .insert(downtimeCauses)
+    .values(DEFAULT_CAUSES.map((c, i) => ({ projectId, name: c.name, cutterWork: c.cutterWork, sortOrder: (i + 1) * 10 })))
+    .onConflictDoNothing()
+    .returning();
+  for (const row of rows) await audit(tx, { userId, projectId, entity: 'downtime_cause', entityId: row.id, action: 'create', after: row });
+}
+
+export async function listCauses(tx: DbOrTx, projectId: string): Promise<DowntimeCause[]> {
+  return tx
+    .select({ id: downtimeCauses.id, name: downtimeCauses.name, cutterWork: downtimeCauses.cutterWork, sortOrder: downtimeCauses.sortOrder, active: downtimeCauses.active })
+    .from(downtimeCauses)
+    .where(eq(downtimeCauses.projectId, projectId))
+    .orderBy(asc(downtimeCauses.sortOrder), asc(downtimeCauses.name));
+}
+
+export async function readSiteSettings(tx: DbOrTx, projectId: string): Promise<SiteSettings> {
+  const [row] = await tx.select().from(siteSettings).where(eq(siteSettings.projectId, projectId));
+  if (!row) return { ...DEFAULT_SITE_SETTINGS, saved: false };
+  return { shifts: row.shifts, labourRatePerHour: Number(row.labourRatePerHour), gapMinutes: row.gapMinutes, saved: true };
+}
+
+/** Serialises downtime writes of one drive, so two overlapping events cannot both pass the overlap check. */
+export async function lockDowntime(tx: DbOrTx, projectId: string): Promise<void> {
+  await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`kerfwise-downtime:${projectId}`}))`);
+}
+
+interface Interval {
+  start: Date;
+  end: Date;
+}
+
+/** The parts of `gap` not covered by `covered` (sorted by start). */
+function uncoveredParts(gap: Interval, covered: readonly Interval[]): Interval[] {
+  const pieces: Interval[] = [];
+  let cursor = gap.start.getTime();
+  for (const c of covered) {
+    if (c.start.getTime() >= gap.end.getTime()) break;
+    if (c.end.getTime() <= cursor) continue;
+    if (c.start.getTime() > cursor) pieces.push({ start: new Date(cursor), end: c.start });
+    cursor = Math.max(cursor, c.end.getTime());
+  }
+  if (cursor < gap.end.getTime()) pieces.push({ start: new Date(cursor), end: gap.end });
+  return pieces;
+}
+
+/**
+ * Creates a 'gap' event (cause still to give) for every standstill between strokes longer than the
+ * site's gap setting, less whatever existing events already cover; what remains must itself be
+ * longer than the setting. Running it again creates nothing new.
+ */
+export async function proposeGapEvents(tx: DbOrTx, projectId: string, userId: string | null): Promise<ProposeFromGapsResult> {
+  await lockDowntime(tx, projectId);
+  const { gapMinutes } = await readSiteSettings(tx, projectId);
+  const boring = await tx.select({ start: strokes.startTime, end: strokes.endTime }).from(strokes).where(eq(strokes.projectId, projectId));
+  const covered = await tx
+    .select({ start: downtimeEvents.startAt, end: downtimeEvents.endAt })
+    .from(downtimeEvents)
+    .where(eq(downtimeEvents.projectId, projectId))
+    .orderBy(asc(downtimeEvents.startAt));
+  const pieces = proposeDowntimeFromGaps(boring, gapMinutes)
+    .flatMap((gap) => uncoveredParts(gap, covered))
+    .filter((p) => p.end.getTime() - p.start.getTime() > gapMinutes * 60_000);
+  if (pieces.length === 0) return { created: 0, hours: 0, gapMinutes };
+  const rows = await tx
+    .insert(downtimeEvents)
+    .values(pieces.map((p) => ({ projectId, startAt: p.start, endAt: p.end, source: 'gap', createdBy: userId, note: 'Standstill between strokes in the advance log' })))
+    .returning();
+  for (const row of rows) await audit(tx, { userId, projectId, entity: 'downtime_event', entityId: row.id, action: 'create', after: row });
+  const hours = pieces.reduce((s, p) => s + (p.end.getTime() - p.start.getTime()) / 3_600_000, 0);
+  return { created: rows.length, hours, gapMinutes };
+}
+
+// Periods -------------------------------------------------------------------------------------
+
+/** A period of site calendar days with the instants it spans. */
+export interface Period {
+  from: string;
+  to: string;
+  start: Date;
+  end: Date;
+  timeZone: string;
+}
+
+/** Local 00:00 of a site calendar day (YYYY-MM-DD). */
+function localMidnight(day: string, timeZone: string): TZDate {
+  const [y, m, d] = day.split('-').map(Number);
+  return new TZDate(y, m - 1, d, 0, 0, timeZone);
+}
+
+/** The site calendar day (YYYY-MM-DD) of an instant. */
+export function siteDay(at: Date, timeZone: string): string {
+  return format(new TZDate(at, timeZone), 'yyyy-MM-dd');
+}
+
+/** ISO week ('2026-W13') of an instant in the site's zone. */
+export function siteIsoWeek(at: Date, timeZone: string): string {
+  const local = new TZDate(at, timeZone);
+  return `${getISOWeekYear(local)}-W${String(getISOWeek(local)).padStart(2, '0')}`;
+}
+
+/** The period of days `from`–`to` (both included) in the site's zone. */
+export function periodOfDays(from: string, to: string, timeZone: string): Period {
+  return { from, to, timeZone, start: new Date(+localMidnight(from, timeZone)), end: new Date(+addDays(localMidnight(to, timeZone), 1)) };
+}
+
+/** The whole ISO week before the one that contains `now`, in the site's zone. */
+export function previousIsoWeek(now: Date, timeZone: string): Period & { isoWeek: string } {
+  const end = startOfISOWeek(new TZDate(now, timeZone));
+  const start = addWeeks(end, -1);
+  return { from: siteDay(start, timeZone), to: siteDay(addDays(end, -1), timeZone), start: new Date(+start), end: new Date(+end), timeZone, isoWeek: siteIsoWeek(start, timeZone) };
+}
+
+/**
+ * The period asked for; without `to`, the last day with strokes or downtime (today without data,
+ * never before `from`); without `from`, the Monday seven weeks before `to`'s week (eight ISO weeks).
+ */
+export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: string; to?: string }, now: Date): Promise<Period> {
+  const tz = project.siteTimeZone;
+  let to = q.to;
+  if (!to) {
+    // One query at a time: `tx` may be a transaction's single connection.
+    const [s] = await tx.select({ at: max(strokes.endTime) }).from(strokes).where(eq(strokes.projectId, project.id));
+    const [e] = await tx.select({ at: max(downtimeEvents.endAt) }).from(downtimeEvents).where(eq(downtimeEvents.projectId, project.id));
+    const latest = [s?.at, e?.at].flatMap((d) => (d ? [new Date(d)] : [])).sort((a, b) => b.getTime() - a.getTime())[0];
+    // An event ending exactly at midnight belongs to the day before.
+    to = siteDay(latest ? new Date(latest.getTime() - 1) : now, tz);
+    if (q.from && q.from > to) to = q.from;
+  }
+  const from = q.from ?? siteDay(addWeeks(startOfISOWeek(localMidnight(to, tz)), -7), tz);
+  return periodOfDays(from, to, tz);
+}
+
+function periodFields(p: Period): ReportPeriod {
+  return { from: p.from, to: p.to, timeZone: p.timeZone, startAt: p.start.toISOString(), endAt: p.end.toISOString(), hours: (p.end.getTime() - p.start.getTime()) / 3_600_000 };
+}
+
+/** Every ISO week touching the period, in order. */
+function weeksOf(p: Period): string[] {
+  const weeks: string[] = [];
+  for (let monday = startOfISOWeek(new TZDate(p.start, p.timeZone)); monday.getTime() < p.end.getTime(); monday = addWeeks(monday, 1)) {
+    weeks.push(siteIsoWeek(monday, p.timeZone));
+  }
+  return weeks;
+}
+
+/** Events overlapping the period, clipped to it, each with its cause's label and cutter-work flag. */
+async function eventsIn(tx: DbOrTx, projectId: string, p: Period) {
+  const rows = await tx
+    .select({ id: downtimeEvents.id, start: downtimeEvents.startAt, end: downtimeEvents.endAt, cause: downtimeCauses.name, cutterWork: downtimeCauses.cutterWork })
+    .from(downtimeEvents)
+    .leftJoin(downtimeCauses, eq(downtimeCauses.id, downtimeEvents.causeId))
+    .where(and(eq(downtimeEvents.projectId, projectId), lt(downtimeEvents.startAt, p.end), gt(downtimeEvents.endAt, p.start)));
+  return rows.map((r) => ({
+    id: r.id,
+    cause: r.cause ?? NO_CAUSE_LABEL,
+    cutterWork: r.cutterWork ?? false,
+    explained: r.cause != null,
+    start: new Date(Math.max(r.start.getTime(), p.start.getTime())),
+    end: new Date(Math.min(r.end.getTime(), p.end.getTime())),
+  }));
+}
+
+const eventHours = (e: DowntimeEvent) => (e.end.getTime() - e.start.getTime()) / 3_600_000;
+
+/** Downtime by cause × ISO week and × shift, utilisation, cutter-work share, metres per day and the Pareto of causes. */
+export async function buildDowntimeReport(tx: DbOrTx, project: Project, p: Period): Promise<DowntimeReport> {
+  const tz = p.timeZone;
+  const events = await eventsIn(tx, project.id, p);
+  const settings = await readSiteSettings(tx, project.id);
+  const bored = await tx
+    .select({ start: strokes.startTime, end: strokes.endTime, fromM: strokes.chainageStartM, toM: strokes.chainageEndM })
+    .from(strokes)
+    .where(and(eq(strokes.projectId, project.id), lt(strokes.startTime, p.end), gt(strokes.endTime, p.start)));
+  const flag = new Map(events.map((e) => [e.cause, e.cutterWork]));
+  const totals = new Map<string, number>();
+  for (const e of events) totals.set(e.cause, (totals.get(e.cause) ?? 0) + eventHours(e));
+  const downtimeHours = [...totals.values()].reduce((s, h) => s + h, 0);
+  let running = 0;
+  const pareto = [...totals]
+    .sort(([a, x], [b, y]) => y - x || a.localeCompare(b))
+    .map(([cause, hours]) => {
+      running += hours;
+      return { cause, cutterWork: flag.get(cause) ?? false, hours, share: hours / downtimeHours, cumulativeShare: running / downtimeHours };
+    });
+  // Advance counts in the period where its stroke ended (as the advance log's daily totals do).
+  const advanceM = bored
+    .filter((s) => s.end.getTime() >= p.start.getTime() && s.end.getTime() < p.end.getTime())
+    .reduce((sum, s) => sum + Math.abs(s.toM - s.fromM), 0);
+  const periodHours = (p.end.getTime() - p.start.getTime()) / 3_600_000;
+  const used = utilisation(bored, p.start, p.end);
+  const unexplained = events.filter((e) => !e.explained);
+  return {
+    ...periodFields(p),
+    weeks: weeksOf(p),
+    shifts: settings.shifts.map((s) => s.name),
+    byWeek: downtimeHoursByCauseAndWeek(events, tz).map((r) => ({ ...r, cutterWork: flag.get(r.cause) ?? false })),
+    byShift: downtimeHoursByCauseAndShift(events, settings.shifts.map((s) => ({ name: s.name, startLocal: s.start })), tz)
+      .map((r) => ({ ...r, cutterWork: flag.get(r.cause) ?? false })),
+    pareto,
+    downtimeHours,
+    unexplainedHours: unexplained.reduce((s, e) => s + eventHours(e), 0),
+    unexplainedEvents: unexplained.length,
+    boringHours: used * periodHours,
+    utilisation: used,
+    cutterWorkShare: cutterWorkShare(events, [...flag].filter(([, cutter]) => cutter).map(([cause]) => cause)),
+    advanceM,
+    metresPerDay: metresPerDay(advanceM, p.start, p.end),
+  };
+}
+
+// Cutter cost -----------------------------------------------------------------------------------
+
+export const PARTS_RULE =
+  'A rebuild uses one ring (when a new ring was fitted), one bearing kit and one seal kit (when new bearings or seals were fitted); ' +
+  'a scrapped cutter uses one cutter assembly. Each is priced at the unit cost of the catalogue part of that kind for the cutter’s ' +
+  'disc size (a part without a size fits every size; the lowest code first). Parts count in the week and ground of the removal that ' +
+  'sent the cutter to the workshop; labour is cutter-work downtime × the labour rate, in the ground where the machine stood.';
+
+const UNKNOWN_GROUND = 'Unknown ground';
+
+/** Chainage reached by the last stroke started at or before each time; null before the first stroke. */
+async function chainagesAt(tx: DbOrTx, projectId: string, times: Date[]): Promise<(number | null)[]> {
+  if (times.length === 0) return [];
+  const list = `{${times.map((t) => t.toISOString()).join(',')}}`;
+  const { rows } = await tx.execute<{ chainage_m: number | null }>(sql`
+    select (select s.chainage_end_m from strokes s where s.project_id = ${projectId} and s.start_time <= t.at order by s.start_time desc limit 1) as chainage_m
+    from unnest(${list}::timestamptz[]) with ordinality as t(at, n) order by t.n`);
+  return rows.map((r) => r.chainage_m);
+}
+
+/** Cutter cost (parts and labour) per metre and per m³ by week and by ground type, rings per 1,000 m³. */
+export async function buildCutterCost(tx: DbOrTx, project: Project, p: Period): Promise<CutterCostReport> {
+  const tz = p.timeZone;
+  const sections = await tx
+    .select({ fromM: geologySections.chainageFromM, toM: geologySections.chainageToM, ground: groundTypes.name })
+    .from(geologySections)
+    .innerJoin(groundTypes, eq(groundTypes.id, geologySections.groundTypeId))
+    .where(eq(geologySections.projectId, project.id));
+  const [first] = await tx.select({ m: strokes.chainageStartM }).from(strokes).where(eq(strokes.projectId, project.id)).orderBy(asc(strokes.startTime)).limit(1);
+  const groundAt = (m: number | null) => {
+    const at = m ?? first?.m ?? project.startChainageM;
+    return sections.find((s) => at >= s.fromM && at < s.toM)?.ground ?? UNKNOWN_GROUND;
+  };
+  const entries: CutterCostEntry[] = [];
+  const zero = { advanceM: 0, partsCost: 0, labourHours: 0, ringsUsed: 0 };
+
+  // Advance: each stroke ended in the period, in the ground at its middle.
+  const bored = await tx
+    .select({ end: strokes.endTime, fromM: strokes.chainageStartM, toM: strokes.chainageEndM })
+    .from(strokes)
+    .where(and(eq(strokes.projectId, project.id), gte(strokes.endTime, p.start), lt(strokes.endTime, p.end)));
+  for (const s of bored) entries.push({ ...zero, week: siteIsoWeek(s.end, tz), groundType: groundAt((s.fromM + s.toM) / 2), advanceM: Math.abs(s.toM - s.fromM) });
+
+  // Labour: cutter-work downtime, split at local Mondays, in the ground where the machine stood.
+  const cutterWork = (await eventsIn(tx, project.id, p)).filter((e) => e.cutterWork);
+  const standing = await chainagesAt(tx, project.id, cutterWork.map((e) => e.start));
+  const labour = downtimeHoursByCauseAndWeek(cutterWork.map((e, i) => ({ ...e, cause: groundAt(standing[i]) })), tz);
+  for (const l of labour) entries.push({ ...zero, week: l.isoWeek, groundType: l.cause, labourHours: l.hours });
+
+  // Parts: workshop outcomes, charged to the removal that sent the cutter there.
+  const catalogue = await tx.select().from(parts).where(eq(parts.projectId, project.id)).orderBy(asc(parts.code));
+  const partFor = (kind: string, discSizeIn: number) =>
+    catalogue.find((x) => x.kind === kind && x.discSizeIn === discSizeIn) ?? catalogue.find((x) => x.kind === kind && x.discSizeIn == null);
+  const { rows: outcomes } = await tx.execute<{ kind: string; details: Record<string, unknown>; at: Date; disc_size_in: number; removed_at: Date | null; removed_chainage_m: number | null }>(sql`
+    select e.kind, e.details, e.at, c.disc_size_in, r.at as removed_at, (r.details->>'chainageM')::float8 as removed_chainage_m
+    from cutter_events e
+    join cutters c on c.id = e.cutter_id
+    left join lateral (
+      select r.at, r.details from cutter_events r
+      where r.cutter_id = e.cutter_id and r.kind = 'removed' and r.at <= e.at
+      order by r.at desc limit 1) r on true
+    where e.project_id = ${project.id} and e.kind in ('rebuilt', 'scrapped')
+      and coalesce(r.at, e.at) >= ${p.start.toISOString()}::timestamptz and coalesce(r.at, e.at) < ${p.end.toISOString()}::timestamptz`);
+  const missingChainage = outcomes.filter((o) => o.removed_chainage_m == null);
+  const machineAt = await chainagesAt(tx, project.id, missingChainage.map((o) => new Date(o.removed_at ?? o.at)));
+  let unpricedParts = 0;
+  for (const o of outcomes) {
+    const needs = o.kind === 'scrapped'
+      ? ['cutter-assembly']
+      : [o.details.newRing !== false && 'ring', o.details.newBearings === true && 'bearing-kit', o.details.newSeals === true && 'seal-kit'].filter((k): k is string => !!k);
+    let partsCost = 0;
+    for (const kind of needs) {
+      const part = partFor(kind, o.disc_size_in);
+      if (part) partsCost += Number(part.unitCost);
+      else unpricedParts++;
+    }
+    const chainage = o.removed_chainage_m ?? machineAt[missingChainage.indexOf(o)];
+    entries.push({
+      ...zero,
+      week: siteIsoWeek(new Date(o.removed_at ?? o.at), tz),
+      groundType: groundAt(chainage),
+      partsCost,
+      // A rebuild with a new ring, or a scrapped assembly, uses up one ring.
+      ringsUsed: o.kind === 'scrapped' || needs.includes('ring') ? 1 : 0,
+    });
+  }
+
+  const { labourRatePerHour } = await readSiteSettings(tx, project.id);
+  const d = project.excavatedDiameterM;
+  const [total] = cutterCostBy([{ ...zero, week: 'Total', groundType: '' }, ...entries.map((e) => ({ ...e, week: 'Total' }))], 'week', d, labourRatePerHour);
+  return {
+    ...periodFields(p),
+    diameterM: d,
+    faceAreaM2: faceAreaM2(d),
+    labourRatePerHour,
+    currency: catalogue[0]?.currency ?? null,
+    partsRule: PARTS_RULE,
+    unpricedParts,
+    byWeek: cutterCostBy(entries, 'week', d, labourRatePerHour),
+    byGround: cutterCostBy(entries, 'groundType', d, labourRatePerHour),
+    total,
+  };
+}

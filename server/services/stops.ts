@@ -1,0 +1,451 @@
+/**
+ * Intervention stops: the plan (where to stop and what to change, from the forecast and the long
+ * section), and the work pack of a stop (what to change, which serials to take from the store, the
+ * parts kit, the crew, the cautions). The pure optimiser is shared/domain/stop-planner.ts.
+ */
+import { TZDate } from '@date-fns/tz';
+import { format } from 'date-fns';
+import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
+import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
+import { COMPRESSED_AIR_CAUTION, needsCompressedAir, workingPressureFromHead } from '../../shared/domain/compressed-air';
+import { forecastChangeOut, type DriveDirection, type PositionClass } from '../../shared/domain/forecast';
+import { planStops, type StopPlan, type StopPlanCost, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
+import type { StopPlanQuery, StopStatus } from '../../shared/schemas/stop';
+import type { DbOrTx } from '../db/client';
+import { crewMembers, crews, cutters, fittings, geologySections, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
+import { notFound } from '../lib/http-error';
+import { computeForecast, type ProjectForecast } from './forecast';
+
+/**
+ * The plan's assumptions. Common practice, no source; site-adjustable (every one can be overridden
+ * per request): plan 2 km ahead; a stop costs 6 h in free air and 14 h in compressed air (locking
+ * in and out, slower work); changing one cutter takes 1.5 h at the centre (twin hubs), 1.0 h on
+ * the face and 1.25 h at the gauge; each mm of allowable wear thrown away by an early change is
+ * charged 0.2 h of boring time (the price of ring life turned into hours).
+ */
+/** States the exact stop search may expand in one request (about 2–3 s on the project's machine). */
+export const PLANNER_MAX_STATES = 20_000;
+
+export const defaultStopPlanSettings = {
+  horizonM: 2000,
+  freeAirStopH: 6,
+  compressedAirStopH: 14,
+  changeHByClass: { centre: 1.5, face: 1.0, gauge: 1.25 } as Record<PositionClass, number>,
+  wastedRingLifeHPerMm: 0.2,
+};
+
+export type StopPlanSettings = typeof defaultStopPlanSettings & {
+  /** A stop under more groundwater head than this (m above the axis) is worked in compressed air. */
+  compressedAirAboveHeadM: number;
+};
+
+/** The long section as the planner reads it, and how chainage turns into rings. */
+export interface DriveGeology {
+  sections: { chainageFromM: number; chainageToM: number; groundTypeId: string | null; waterHeadM: number; stopAllowed: boolean; stopReason: string }[];
+  ringLengthM: number;
+  direction: DriveDirection;
+}
+
+/** Chainage tolerance, m: absorbs rounding when a stop is matched to a section boundary or a plan place. */
+const EPS_M = 1e-6;
+
+/**
+ * Whether a stop may be made at `chainageM`, and the water head there (m). On a boundary between
+ * two sections both must allow a stop, and the higher head counts (cautious).
+ */
+export function stopPlaceAt(sections: DriveGeology['sections'], chainageM: number): { allowed: boolean; waterHeadM: number | null; reason: string | null } {
+  const touching = sections.filter((s) => s.chainageFromM - EPS_M <= chainageM && chainageM <= s.chainageToM + EPS_M);
+  if (touching.length === 0) return { allowed: false, waterHeadM: null, reason: 'it lies outside the geology long section' };
+  const waterHeadM = Math.max(...touching.map((s) => s.waterHeadM));
+  const refusing = touching.find((s) => !s.stopAllowed);
+  if (refusing) return { allowed: false, waterHeadM, reason: refusing.stopReason || 'the long section allows no stop there' };
+  return { allowed: true, waterHeadM, reason: null };
+}
+
+/** Indicative working pressure (bar) from the water head; null where there is no head above the axis. */
+const pressureBar = (waterHeadM: number | null) => (waterHeadM != null && waterHeadM > 0 ? workingPressureFromHead(waterHeadM).pressureBar : null);
+
+/**
+ * Metres of known ground ahead of the machine: how far the forecast can walk. The planner's
+ * horizon is cut there, as no stop place or wear rate is known beyond.
+ */
+function knownGroundAheadM(geology: DriveGeology, currentChainageM: number): number {
+  const sign = geology.direction === 'increasing' ? 1 : -1;
+  return Math.max(0, ...geology.sections.map((s) => Math.max((s.chainageFromM - currentChainageM) * sign, (s.chainageToM - currentChainageM) * sign)));
+}
+
+/**
+ * Cautious (P90) wear growth per metre ahead of one position over the whole known ground. The
+ * forecast's own explanation stops at the position's limit point; a ring fitted later wears on
+ * through the ground beyond, so the same forecast walk is repeated with the limit lifted.
+ */
+function p90WearStretches(position: ProjectForecast['positions'][number], forecast: ProjectForecast, geology: DriveGeology): WearStretch[] {
+  const walk = forecastChangeOut({
+    position: { ...position.position, allowableWearMm: Infinity },
+    wearNow: position.explanation.wearNow,
+    currentChainageM: forecast.currentChainageM!,
+    currentRingNumber: forecast.currentRingNumber!,
+    ringLengthM: geology.ringLengthM,
+    driveDirection: geology.direction,
+    geology: geology.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
+    rates: forecast.rates,
+    penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
+    advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
+    overcutMarginMm: 0,
+    now: forecast.now,
+  });
+  let fromAheadM = 0;
+  return walk.explanation.sections.map((s) => {
+    const stretch = { fromAheadM, wearMmPerM: s.wearMmPerM.p90 };
+    fromAheadM += s.lengthM;
+    return stretch;
+  });
+}
+
+/**
+ * The stop planner's input from a project's forecast (P90 wear now, limits, P90 wear growth per
+ * metre ahead), its long section (a candidate place at every ring boundary ahead, within the
+ * horizon and the known ground, where a stop is allowed; compressed air above the site's water
+ * head) and the cost settings. Needs a forecast with a known machine position.
+ */
+export function buildStopPlanInput(forecast: ProjectForecast, geology: DriveGeology, settings: StopPlanSettings): StopPlanInput {
+  const currentChainageM = forecast.currentChainageM;
+  if (currentChainageM == null || forecast.currentRingNumber == null) throw new RangeError('the machine position is not known: no advance log');
+  const sign = geology.direction === 'increasing' ? 1 : -1;
+  const horizonM = Math.min(settings.horizonM, knownGroundAheadM(geology, currentChainageM));
+  const stopPlaces: StopPlanInput['stopPlaces'] = [];
+  for (let k = 0; k * geology.ringLengthM <= horizonM + EPS_M; k++) {
+    const chainageM = currentChainageM + sign * k * geology.ringLengthM;
+    const place = stopPlaceAt(geology.sections, chainageM);
+    if (place.allowed) stopPlaces.push({ chainageM, compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: settings.compressedAirAboveHeadM }) });
+  }
+  return {
+    currentChainageM,
+    direction: geology.direction,
+    horizonM,
+    positions: forecast.positions.map((p) => ({
+      positionId: p.position.positionId,
+      positionClass: p.position.positionClass,
+      wearNowMm: p.explanation.wearNowMm.p90,
+      limitMm: p.position.allowableWearMm,
+      wearStretches: p90WearStretches(p, forecast, geology),
+    })),
+    stopPlaces,
+    freeAirStopH: settings.freeAirStopH,
+    compressedAirStopH: settings.compressedAirStopH,
+    changeHByClass: settings.changeHByClass,
+    wastedRingLifeHPerMm: settings.wastedRingLifeHPerMm,
+  };
+}
+
+export interface PlanStopView {
+  chainageM: number;
+  aheadM: number;
+  ringNumber: number;
+  compressedAir: boolean;
+  waterHeadM: number | null;
+  workingPressureBar: number | null;
+  stopH: number;
+  changeH: number;
+  wastedRingLifeH: number;
+  changes: { positionId: string; positionNumber: number; positionClass: PositionClass; limitMm: number; wearAtChangeMm: number; unusedWearMm: number }[];
+  /** An open stop already at this chainage (proposed from the plan before, or by the nightly job). */
+  existingStopId: string | null;
+}
+
+export interface PlanView {
+  cost: StopPlanCost;
+  stops: PlanStopView[];
+}
+
+export interface ProjectStopPlan {
+  now: Date;
+  currentChainageM: number | null;
+  currentRingNumber: number | null;
+  settings: StopPlanSettings;
+  /** Where the plan ends: the horizon, or the end of the known ground if that comes first. */
+  horizonEndChainageM: number | null;
+  candidatePlaceCount: number;
+  /** Why there is no plan, or what limits it. */
+  problems: string[];
+  /** Positions no plan can keep within their limit. */
+  infeasible: { positionId: string; positionNumber: number; dueChainageM: number; reason: string }[];
+  optimised: PlanView | null;
+  hand: PlanView | null;
+  /** Hand plan hours less optimised plan hours. */
+  savingH: number | null;
+  cautions: string[];
+}
+
+/** The cautions of work in the cutterhead, and of compressed air when it is needed. */
+export const stopCautions = (compressedAir: boolean) => (compressedAir ? [CUTTERHEAD_ENTRY_CAUTION, COMPRESSED_AIR_CAUTION] : [CUTTERHEAD_ENTRY_CAUTION]);
+
+const openStatuses: StopStatus[] = ['proposed', 'scheduled', 'in_progress'];
+
+/** The project's settings with the request's overrides. */
+function planSettings(project: { compressedAirAboveHeadM: number }, overrides: StopPlanQuery): StopPlanSettings {
+  const d = defaultStopPlanSettings;
+  return {
+    horizonM: overrides.horizonM ?? d.horizonM,
+    freeAirStopH: overrides.freeAirStopH ?? d.freeAirStopH,
+    compressedAirStopH: overrides.compressedAirStopH ?? d.compressedAirStopH,
+    changeHByClass: {
+      centre: overrides.changeHCentre ?? d.changeHByClass.centre,
+      face: overrides.changeHFace ?? d.changeHByClass.face,
+      gauge: overrides.changeHGauge ?? d.changeHByClass.gauge,
+    },
+    wastedRingLifeHPerMm: overrides.wastedRingLifeHPerMm ?? d.wastedRingLifeHPerMm,
+    compressedAirAboveHeadM: overrides.compressedAirAboveHeadM ?? project.compressedAirAboveHeadM,
+  };
+}
+
+async function loadDriveGeology(tx: DbOrTx, project: typeof projects.$inferSelect): Promise<DriveGeology> {
+  const sections = await tx.select().from(geologySections).where(eq(geologySections.projectId, project.id)).orderBy(asc(geologySections.chainageFromM));
+  return { sections, ringLengthM: project.ringLengthM, direction: project.driveDirection };
+}
+
+/**
+ * The optimised stop plan of a project against the hand plan, each stop with its chainage, ring,
+ * compressed-air flag and indicative working pressure, the positions changed there with their
+ * expected (P90) wear, and the cautions.
+ */
+export async function planForProject(tx: DbOrTx, projectId: string, now: Date, overrides: StopPlanQuery = {}): Promise<ProjectStopPlan> {
+  const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
+  if (!project) throw notFound('That project');
+  const settings = planSettings(project, overrides);
+  const forecast = await computeForecast(tx, projectId, now);
+  const geology = await loadDriveGeology(tx, project);
+  const empty: ProjectStopPlan = {
+    now, currentChainageM: forecast.currentChainageM, currentRingNumber: forecast.currentRingNumber, settings, horizonEndChainageM: null,
+    candidatePlaceCount: 0, problems: [...forecast.problems], infeasible: [], optimised: null, hand: null, savingH: null, cautions: [CUTTERHEAD_ENTRY_CAUTION],
+  };
+  if (forecast.currentChainageM == null || forecast.positions.length === 0) return empty;
+  const knownM = knownGroundAheadM(geology, forecast.currentChainageM);
+  if (knownM <= 0) return { ...empty, problems: [...empty.problems, 'No geology is known ahead of the machine: import the long section to plan stops.'] };
+  const fullInput = buildStopPlanInput(forecast, geology, settings);
+  const problems0: string[] = [];
+  const byId = new Map(forecast.positions.map((p) => [p.position.positionId, p.position]));
+  // The exact search can grow fast on abrasive ground; a request must answer in seconds, so the
+  // server caps it (DEVELOPERS.md, decision 24) and says when the plan is not proven cheapest.
+  const first = planStops(fullInput, { maxStates: PLANNER_MAX_STATES });
+  const infeasible = first.feasible
+    ? []
+    : first.problems
+      .map((p) => ({ positionId: p.positionId, positionNumber: byId.get(p.positionId)!.positionNumber, dueChainageM: p.dueChainageM, reason: p.reason }))
+      .sort((a, b) => a.positionNumber - b.positionNumber);
+  // When no plan covers the horizon, plan up to the first point no plan can pass: the crews still
+  // need the stops before it, and the problem is shown beside them.
+  const reachM = first.feasible ? fullInput.horizonM : Math.min(...first.problems.map((p) => p.dueAheadM)) - 1e-3;
+  const input = first.feasible ? fullInput : { ...fullInput, horizonM: reachM };
+  const result = first.feasible ? first : reachM > 0 ? planStops(input, { maxStates: PLANNER_MAX_STATES }) : first;
+  if (result.feasible && !result.provenOptimal) {
+    problems0.push(`The search stopped after ${PLANNER_MAX_STATES.toLocaleString('en')} states: this is the best plan found, not proven the cheapest. A shorter horizon gives an exact answer.`);
+  }
+  const sign = geology.direction === 'increasing' ? 1 : -1;
+  const horizonEndChainageM = forecast.currentChainageM + sign * Math.max(0, input.horizonM);
+  const problems = [...empty.problems, ...problems0];
+  if (knownM < settings.horizonM) problems.push(`The long section ends ${knownM.toFixed(0)} m ahead of the machine: the plan stops there, short of the ${settings.horizonM} m horizon.`);
+  if (infeasible.length > 0) {
+    problems.push(
+      `No plan keeps position${infeasible.length === 1 ? '' : 's'} ${infeasible.map((p) => p.positionNumber).join(', ')} within the cautious wear limit ` +
+      `past ${chainageText(horizonEndChainageM)} (why, below). ` +
+      (result.feasible ? 'The plan stops short of that point; decide with the site how to pass it.' : 'Decide with the site how to pass it.'),
+    );
+  }
+  const candidatePlaceCount = input.stopPlaces.filter((p) => (p.chainageM - forecast.currentChainageM!) * sign <= input.horizonM).length;
+  const base = { ...empty, horizonEndChainageM, candidatePlaceCount, problems, infeasible };
+  if (!result.feasible) return base;
+
+  const open = await tx.select({ id: stops.id, chainageM: stops.chainageM }).from(stops).where(and(eq(stops.projectId, projectId), inArray(stops.status, openStatuses)));
+  const view = (plan: StopPlan): PlanView => ({
+    cost: plan.cost,
+    stops: plan.stops.map((s) => {
+      const { waterHeadM } = stopPlaceAt(geology.sections, s.chainageM);
+      return {
+        chainageM: s.chainageM,
+        aheadM: s.aheadM,
+        ringNumber: forecast.currentRingNumber! + Math.round(s.aheadM / geology.ringLengthM),
+        compressedAir: s.compressedAir,
+        waterHeadM,
+        workingPressureBar: pressureBar(waterHeadM),
+        stopH: s.stopH,
+        changeH: s.changeH,
+        wastedRingLifeH: s.wastedRingLifeH,
+        changes: s.changes
+          .map((c) => {
+            const p = byId.get(c.positionId)!;
+            return { positionId: c.positionId, positionNumber: p.positionNumber, positionClass: p.positionClass, limitMm: p.allowableWearMm, wearAtChangeMm: c.wearAtChangeMm, unusedWearMm: c.unusedWearMm };
+          })
+          .sort((a, b) => a.positionNumber - b.positionNumber),
+        existingStopId: open.find((o) => Math.abs(o.chainageM - s.chainageM) < EPS_M)?.id ?? null,
+      };
+    }),
+  });
+  const optimised = view(result.optimised);
+  const hand = view(result.hand);
+  return {
+    ...base,
+    optimised,
+    hand,
+    savingH: result.savingH,
+    cautions: stopCautions([...optimised.stops, ...hand.stops].some((s) => s.compressedAir)),
+  };
+}
+
+/** Where the machine stands: the end of the last stroke, and its ring; null before the first stroke. */
+export async function machinePosition(tx: DbOrTx, projectId: string): Promise<{ chainageM: number; ringNumber: number } | null> {
+  const [last] = await tx
+    .select({ chainageM: strokes.chainageEndM, ringNumber: strokes.ringNumber })
+    .from(strokes)
+    .where(eq(strokes.projectId, projectId))
+    .orderBy(desc(strokes.ringNumber))
+    .limit(1);
+  return last ?? null;
+}
+
+/** Where a new stop at `chainageM` stands: whether the ground allows it, its ring, water head and pressure. */
+export async function describeStopPlace(tx: DbOrTx, project: typeof projects.$inferSelect, chainageM: number) {
+  const geology = await loadDriveGeology(tx, project);
+  const place = stopPlaceAt(geology.sections, chainageM);
+  const machine = await machinePosition(tx, project.id);
+  const aheadM = machine ? (chainageM - machine.chainageM) * (geology.direction === 'increasing' ? 1 : -1) : null;
+  return {
+    ...place,
+    machine,
+    aheadM,
+    // The stop lies in the ring during whose stroke the machine reaches it (as in the forecast).
+    ringNumber: machine && aheadM != null && aheadM >= 0 ? machine.ringNumber + Math.ceil(aheadM / project.ringLengthM - 1e-9) : null,
+    workingPressureBar: pressureBar(place.waterHeadM),
+  };
+}
+
+/**
+ * Spares packed with every stop's kit besides one cutter assembly per change, per disc size.
+ * Common practice, no source; adjust to the site's failure history: a ring, a seal kit and a
+ * bearing kit are the parts most often found damaged when a disc is taken off.
+ */
+export const kitSpares = [
+  { item: 'spare ring', perChanges: 10 },
+  { item: 'spare seal kit', perChanges: 10 },
+  { item: 'spare bearing kit', perChanges: 20 },
+] as const;
+
+const inches = (sizeIn: number) => `${sizeIn}″`;
+
+/** The parts kit for `changesBySize` changes per disc size (in): assemblies one per change, spares per `kitSpares`. */
+export function partsKit(changesBySize: Map<number, number>): { item: string; quantity: number; basis: string }[] {
+  return [...changesBySize.entries()].sort((a, b) => a[0] - b[0]).flatMap(([sizeIn, n]) => [
+    { item: `${inches(sizeIn)} disc cutter assembly`, quantity: n, basis: 'one per position changed' },
+    ...kitSpares.map((s) => ({ item: `${inches(sizeIn)} ${s.item}`, quantity: Math.ceil(n / s.perChanges), basis: `one per ${s.perChanges} changes, rounded up` })),
+  ]);
+}
+
+const hoursBetween = (from: Date | null, to: Date | null) => (from && to ? (to.getTime() - from.getTime()) / 3_600_000 : null);
+
+/**
+ * The work pack of a stop: the positions to change with their expected wear and the serial on each
+ * now, the serials to take from the store (for an open stop: cutters in store of the matching disc
+ * size, as many as positions, fewest rebuilds first, then the longest in store), any shortage, the
+ * parts kit, the crew, the linked inspection round and the cautions.
+ */
+export async function loadWorkPack(tx: DbOrTx, projectId: string, stopId: string) {
+  const [stop] = await tx.select().from(stops).where(and(eq(stops.id, stopId), eq(stops.projectId, projectId)));
+  if (!stop) throw notFound('That stop');
+  const changes = await tx
+    .select({
+      positionId: positions.id, number: positions.number, positionClass: positions.positionClass, trackRadiusMm: positions.trackRadiusMm,
+      discSizeIn: positions.discSizeIn, twinDisc: positions.twinDisc, wearLimitMm: positions.wearLimitMm, expectedWearMm: stopPositions.expectedWearMm,
+      fittedSerial: cutters.serial,
+    })
+    .from(stopPositions)
+    .innerJoin(positions, eq(positions.id, stopPositions.positionId))
+    .leftJoin(fittings, and(eq(fittings.positionId, positions.id), isNull(fittings.removedAt)))
+    .leftJoin(cutters, eq(cutters.id, fittings.cutterId))
+    .where(eq(stopPositions.stopId, stopId))
+    .orderBy(asc(positions.number));
+
+  const bySize = new Map<number, number>();
+  for (const c of changes) bySize.set(c.discSizeIn, (bySize.get(c.discSizeIn) ?? 0) + 1);
+  const isOpen = openStatuses.includes(stop.status);
+  const inStore = isOpen && bySize.size > 0
+    ? await tx
+      .select({ cutterId: cutters.id, serial: cutters.serial, discSizeIn: cutters.discSizeIn, rebuildCount: cutters.rebuildCount })
+      .from(cutters)
+      .where(and(eq(cutters.projectId, projectId), eq(cutters.status, 'in_store'), inArray(cutters.discSizeIn, [...bySize.keys()])))
+      .orderBy(asc(cutters.rebuildCount), asc(cutters.createdAt), asc(cutters.serial))
+    : [];
+  const storeSerials = [...bySize.entries()].flatMap(([size, n]) => inStore.filter((c) => c.discSizeIn === size).slice(0, n));
+  const shortages = isOpen
+    ? [...bySize.entries()].map(([discSizeIn, needed]) => ({ discSizeIn, needed, inStore: inStore.filter((c) => c.discSizeIn === discSizeIn).length })).filter((s) => s.inStore < s.needed)
+    : [];
+
+  const [crew] = stop.crewId ? await tx.select({ id: crews.id, name: crews.name }).from(crews).where(eq(crews.id, stop.crewId)) : [];
+  const members = crew
+    ? await tx.select({ name: crewMembers.name, email: crewMembers.email, userId: crewMembers.userId }).from(crewMembers).where(eq(crewMembers.crewId, crew.id)).orderBy(asc(crewMembers.name))
+    : [];
+  const [round] = stop.roundId
+    ? await tx.select({ id: inspectionRounds.id, startedAt: inspectionRounds.startedAt, chainageM: inspectionRounds.chainageM, ringNumber: inspectionRounds.ringNumber }).from(inspectionRounds).where(eq(inspectionRounds.id, stop.roundId))
+    : [];
+
+  return {
+    stop: { ...stop, actualHours: hoursBetween(stop.actualStart, stop.actualEnd) },
+    positions: changes,
+    storeSerials,
+    shortages,
+    partsKit: partsKit(bySize),
+    crew: crew ? { ...crew, members } : null,
+    round: round ?? null,
+    cautions: stopCautions(stop.compressedAir),
+  };
+}
+export type WorkPack = Awaited<ReturnType<typeof loadWorkPack>>;
+
+/** The stops of a project in drive order, with crew, position count and planned against actual hours. */
+export async function listStops(tx: DbOrTx, projectId: string, status?: StopStatus) {
+  const [project] = await tx.select({ direction: projects.driveDirection }).from(projects).where(eq(projects.id, projectId));
+  const rows = await tx
+    .select({
+      stop: stops,
+      crewName: crews.name,
+      positionCount: sql<number>`(select count(*)::int from stop_positions sp where sp.stop_id = ${stops.id})`,
+    })
+    .from(stops)
+    .leftJoin(crews, eq(crews.id, stops.crewId))
+    .where(and(eq(stops.projectId, projectId), status ? eq(stops.status, status) : undefined))
+    .orderBy(project?.direction === 'decreasing' ? desc(stops.chainageM) : asc(stops.chainageM), asc(stops.createdAt));
+  return rows.map((r) => ({ ...r.stop, crewName: r.crewName, positionCount: r.positionCount, actualHours: hoursBetween(r.stop.actualStart, r.stop.actualEnd) }));
+}
+
+/** Chainage as km+metres, e.g. 5012.5 → "5+012.5". */
+export function chainageText(chainageM: number): string {
+  const km = Math.floor(Math.abs(chainageM) / 1000);
+  return `${chainageM < 0 ? '-' : ''}${km}+${(Math.abs(chainageM) - km * 1000).toFixed(1).padStart(5, '0')}`;
+}
+
+/** A moment in the site's time zone, e.g. "Mon 14 Dec 2026 06:00". */
+export const siteTimeText = (at: Date, timeZone: string) => format(new TZDate(at, timeZone), 'EEE d MMM yyyy HH:mm');
+
+/** The work pack as plain text for e-mail: when, where, air, positions, serials, kit, crew, link and cautions. */
+export function workPackText(pack: WorkPack, project: { name: string; siteTimeZone: string }, stopUrl: string): string {
+  const { stop } = pack;
+  const pressure = stop.workingPressureBar != null ? ` (indicative working pressure ${stop.workingPressureBar.toFixed(2)} bar)` : '';
+  const lines = [
+    `${project.name}: cutter stop at chainage ${chainageText(stop.chainageM)}${stop.ringNumber != null ? `, ring ${stop.ringNumber}` : ''}`,
+    stop.plannedStart ? `Planned start: ${siteTimeText(stop.plannedStart, project.siteTimeZone)} (${project.siteTimeZone}), about ${stop.expectedHours ?? '?'} h.` : 'Not scheduled yet.',
+    `Crew: ${pack.crew ? `${pack.crew.name} (${pack.crew.members.map((m) => m.name).join(', ') || 'no members'})` : 'none yet'}.`,
+    stop.compressedAir ? `Worked in COMPRESSED AIR${pressure}.` : 'Worked in free air.',
+    '',
+    `Positions to change (${pack.positions.length}):`,
+    ...pack.positions.map((p) => `  - position ${p.number} (${p.positionClass}${p.twinDisc ? ', twin' : ''}), ${p.fittedSerial ?? 'no serial'} off` +
+      (p.expectedWearMm != null ? `, expected wear ${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm` : '')),
+    '',
+    `From the store: ${pack.storeSerials.map((c) => c.serial).join(', ') || 'none'}.`,
+    ...pack.shortages.map((s) => `SHORT: ${s.needed} ${inches(s.discSizeIn)} cutters needed, ${s.inStore} in store.`),
+    `Parts kit: ${pack.partsKit.map((k) => `${k.quantity} × ${k.item}`).join('; ')}.`,
+    '',
+    `Work pack: ${stopUrl}`,
+    '',
+    ...pack.cautions.flatMap((c) => [c, '']),
+  ];
+  return `${lines.join('\n').trimEnd()}\n`;
+}

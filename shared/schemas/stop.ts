@@ -1,0 +1,89 @@
+import { z } from 'zod';
+
+/** A stop's life: proposed → scheduled → in progress → done, or cancelled from any open state. */
+export const stopStatuses = ['proposed', 'scheduled', 'in_progress', 'done', 'cancelled'] as const;
+export type StopStatus = (typeof stopStatuses)[number];
+
+export const stopStatusLabels: Record<StopStatus, string> = {
+  proposed: 'Proposed',
+  scheduled: 'Scheduled',
+  in_progress: 'In progress',
+  done: 'Done',
+  cancelled: 'Cancelled',
+};
+
+/** The states each action may start from; the server refuses every other with a 409, the client hides it. */
+export const stopActionFrom = {
+  schedule: ['proposed', 'scheduled'],
+  publish: ['scheduled'],
+  start: ['scheduled'],
+  complete: ['in_progress'],
+  cancel: ['proposed', 'scheduled', 'in_progress'],
+} as const satisfies Record<string, readonly StopStatus[]>;
+export type StopAction = keyof typeof stopActionFrom;
+
+export const canStop = (action: StopAction, status: StopStatus) => (stopActionFrom[action] as readonly StopStatus[]).includes(status);
+
+const hours = (label: string, max: number) =>
+  z.coerce.number({ message: `${label} must be a number of hours.` }).min(0, `${label} cannot be negative.`).max(max, `${label} must be at most ${max} h.`);
+
+/** Overrides of the plan's assumptions (query string of GET /stops/plan); anything left out takes the default. */
+export const stopPlanQuerySchema = z.object({
+  horizonM: z.coerce.number({ message: 'The horizon must be a number of metres.' }).gt(0, 'The horizon must be more than 0 m.').max(20_000, 'Plan at most 20 km ahead.').optional(),
+  freeAirStopH: hours('Hours per free-air stop', 500).optional(),
+  compressedAirStopH: hours('Hours per compressed-air stop', 500).optional(),
+  changeHCentre: hours('Hours per centre cutter change', 50).optional(),
+  changeHFace: hours('Hours per face cutter change', 50).optional(),
+  changeHGauge: hours('Hours per gauge cutter change', 50).optional(),
+  wastedRingLifeHPerMm: hours('Hours per mm of ring life thrown away', 50).optional(),
+  compressedAirAboveHeadM: z.coerce.number({ message: 'The compressed-air head must be a number of metres.' }).min(0, 'The head cannot be negative.').max(300).optional(),
+});
+export type StopPlanQuery = z.infer<typeof stopPlanQuerySchema>;
+
+const expectedHoursSchema = z.number({ message: 'Expected hours must be a number.' }).gt(0, 'Expected hours must be more than 0.').max(500, 'A stop of more than 500 h is not plausible; check the value.');
+
+/** A proposed stop, taken from a stop of the plan. */
+export const createStopInputSchema = z.object({
+  chainageM: z.number({ message: 'Give the chainage of the stop, in metres.' }).refine(Number.isFinite, 'Give the chainage of the stop, in metres.'),
+  compressedAir: z.boolean().default(false),
+  expectedHours: expectedHoursSchema.nullable().default(null),
+  positions: z
+    .array(z.object({
+      positionId: z.uuid({ message: 'Each position must be given by its id.' }),
+      expectedWearMm: z.number().min(0, 'Expected wear cannot be negative.').max(100, 'Expected wear above 100 mm is not possible.').nullable().default(null),
+    }))
+    .min(1, 'A stop needs at least one position to change.')
+    .max(300)
+    .refine((p) => new Set(p.map((x) => x.positionId)).size === p.length, 'The same position is listed twice.'),
+  notes: z.string().max(2000).default(''),
+});
+export type CreateStopInput = z.infer<typeof createStopInputSchema>;
+
+export const scheduleStopInputSchema = z.object({
+  plannedStart: z.iso.datetime({ offset: true, message: 'Give the planned start as a date and time.' }),
+  expectedHours: expectedHoursSchema,
+  crewId: z.uuid({ message: 'Choose a crew.' }),
+  compressedAir: z.boolean({ message: 'Say whether the stop is worked in free air or compressed air.' }),
+});
+export type ScheduleStopInput = z.infer<typeof scheduleStopInputSchema>;
+
+export const startStopInputSchema = z.object({
+  /** When work began; now when left out. */
+  actualStart: z.iso.datetime({ offset: true, message: 'Give the actual start as a date and time.' }).optional(),
+});
+export type StartStopInput = z.infer<typeof startStopInputSchema>;
+
+export const completeStopInputSchema = z.object({
+  /** When work ended; now when left out. */
+  actualEnd: z.iso.datetime({ offset: true, message: 'Give the actual end as a date and time.' }).optional(),
+  /** The inspection round done during the stop. */
+  roundId: z.uuid({ message: 'Choose an inspection round of this drive.' }).nullable().default(null),
+});
+export type CompleteStopInput = z.infer<typeof completeStopInputSchema>;
+
+export const cancelStopInputSchema = z.object({
+  reason: z.string({ message: 'Give the reason for cancelling.' }).trim().min(3, 'Give the reason for cancelling.').max(500),
+});
+export type CancelStopInput = z.infer<typeof cancelStopInputSchema>;
+
+export const stopListQuerySchema = z.object({ status: z.enum(stopStatuses, { message: 'Unknown stop status.' }).optional() });

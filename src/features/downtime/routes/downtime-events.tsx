@@ -1,0 +1,161 @@
+import { useQuery, useQueryClient, useSuspenseQueries } from '@tanstack/react-query';
+import { createColumnHelper } from '@tanstack/react-table';
+import { useState, type FormEvent } from 'react';
+import { useParams, useSearchParams } from 'react-router';
+import { roleCan } from '../../../../shared/roles';
+import { NO_CAUSE_LABEL, type DowntimeCause, type DowntimeEventRow } from '../../../../shared/schemas/downtime';
+import { Alert } from '../../../components/ui/alert';
+import { Button } from '../../../components/ui/button';
+import { DataTable } from '../../../components/ui/data-table';
+import { SelectField, TextField } from '../../../components/ui/field';
+import { Page, Panel } from '../../../components/ui/page';
+import { ApiError } from '../../../lib/api-client';
+import { formatChainage, formatDateTime } from '../../../lib/format';
+import { projectQueries } from '../../projects/api';
+import { downtimeQueries, proposeFromGaps } from '../api';
+import { CausesPanel } from '../components/causes-panel';
+import { DowntimeTabs } from '../components/downtime-tabs';
+import { EventForm } from '../components/event-form';
+import { SiteSettingsPanel } from '../components/site-settings-panel';
+
+const col = createColumnHelper<DowntimeEventRow>();
+const UNEXPLAINED = 'unexplained';
+
+interface EventFilterValues {
+  from: string;
+  to: string;
+  /** A cause id, UNEXPLAINED, or '' for all. */
+  cause: string;
+}
+
+/** The filters in the address: site days (events overlapping them), a cause, or "no cause yet". */
+function useEventFilters() {
+  const [params, setParams] = useSearchParams();
+  const cause = params.get('unexplained') === 'true' ? UNEXPLAINED : params.get('causeId') ?? '';
+  const query = {
+    from: params.get('from') ?? undefined,
+    to: params.get('to') ?? undefined,
+    causeId: cause && cause !== UNEXPLAINED ? cause : undefined,
+    unexplained: cause === UNEXPLAINED ? ('true' as const) : undefined,
+  };
+  const apply = (next: EventFilterValues) => {
+    const p = new URLSearchParams();
+    if (next.from) p.set('from', next.from);
+    if (next.to) p.set('to', next.to);
+    if (next.cause === UNEXPLAINED) p.set('unexplained', 'true');
+    else if (next.cause) p.set('causeId', next.cause);
+    setParams(p);
+  };
+  return { query, cause, apply };
+}
+
+/** Period and cause of the list; the period starts as the one the server used (the last eight ISO weeks with data). */
+function EventFilters({ shown, causes, onApply }: { shown: EventFilterValues; causes: DowntimeCause[]; onApply: (v: EventFilterValues) => void }) {
+  const [draft, setDraft] = useState(shown);
+  const submit = (e: FormEvent) => {
+    e.preventDefault();
+    onApply(draft);
+  };
+  return (
+    <form onSubmit={submit} className="mb-4 flex flex-wrap items-end gap-3" aria-label="Filter events">
+      <TextField label="From" type="date" value={draft.from} max={draft.to} onChange={(e) => setDraft({ ...draft, from: e.target.value })} />
+      <TextField label="To (included)" type="date" value={draft.to} min={draft.from} onChange={(e) => setDraft({ ...draft, to: e.target.value })} />
+      <SelectField label="Cause" value={draft.cause} onChange={(e) => setDraft({ ...draft, cause: e.target.value })}>
+        <option value="">All causes</option>
+        <option value={UNEXPLAINED}>{NO_CAUSE_LABEL}</option>
+        {causes.map((c) => <option key={c.id} value={c.id}>{c.name}</option>)}
+      </SelectField>
+      <Button type="submit" variant="secondary" disabled={!draft.from || !draft.to || draft.from > draft.to}>Show</Button>
+    </form>
+  );
+}
+
+/** Downtime events with filters; editors add and edit them, propose standstills from the log, and keep causes and settings. */
+export function DowntimeEventsRoute() {
+  const { projectId = '' } = useParams();
+  const queryClient = useQueryClient();
+  const { query, cause, apply } = useEventFilters();
+  const [{ data: project }, { data: list }, { data: causes }, { data: settings }] = useSuspenseQueries({
+    queries: [projectQueries.detail(projectId), downtimeQueries.events(projectId, query), downtimeQueries.causes(projectId), downtimeQueries.settings(projectId)],
+  });
+  const canEdit = roleCan(project.role, 'downtime.edit');
+  const { data: stops = [] } = useQuery({ ...downtimeQueries.stops(projectId), enabled: canEdit });
+  const tz = project.siteTimeZone;
+  const [editing, setEditing] = useState<DowntimeEventRow | 'new' | null>(null);
+  const [message, setMessage] = useState<{ tone: 'success' | 'error' | 'info'; text: string } | null>(null);
+  const { events } = list;
+  const [proposing, setProposing] = useState(false);
+
+  const propose = async () => {
+    setMessage(null);
+    setProposing(true);
+    try {
+      const r = await proposeFromGaps(projectId);
+      await queryClient.invalidateQueries({ queryKey: downtimeQueries.all(projectId) });
+      setMessage(r.created === 0
+        ? { tone: 'info', text: `Every standstill longer than ${r.gapMinutes} minutes between strokes already has an event.` }
+        : { tone: 'success', text: `${r.created} standstill(s), ${r.hours.toFixed(1)} h in all, proposed from gaps of more than ${r.gapMinutes} minutes between strokes. Give each a cause.` });
+    } catch (err) {
+      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Proposing failed. Try again.' });
+    } finally {
+      setProposing(false);
+    }
+  };
+  const columns = [
+    col.accessor((e) => formatDateTime(e.startAt, tz), { id: 'start', header: 'Start', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((e) => formatDateTime(e.endAt, tz), { id: 'end', header: 'End', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((e) => Math.round(e.hours * 100) / 100, { id: 'hours', header: 'Hours' }),
+    col.accessor((e) => e.causeName ?? NO_CAUSE_LABEL, {
+      id: 'cause',
+      header: 'Cause',
+      cell: ({ row, getValue }) => (row.original.causeId ? getValue() : <span className="inline-block rounded bg-caution-100 px-2 font-semibold text-caution-700">{getValue()}</span>),
+    }),
+    col.accessor((e) => (e.cutterWork ? 'yes' : 'no'), { id: 'cutterWork', header: 'Cutter work' }),
+    col.accessor((e) => (e.source === 'gap' ? 'from the log' : 'entered'), { id: 'source', header: 'Source' }),
+    col.accessor((e) => (e.stopChainageM == null ? '' : formatChainage(e.stopChainageM)), { id: 'stop', header: 'Stop at' }),
+    col.accessor('note', { header: 'Note' }),
+    ...(canEdit
+      ? [col.display({
+        id: 'actions',
+        header: '',
+        cell: ({ row }) => (
+          <Button variant="secondary" aria-label={`Edit the event from ${formatDateTime(row.original.startAt, tz)}`} onClick={() => { setMessage(null); setEditing(row.original); }}>Edit</Button>
+        ),
+      })]
+      : []),
+  ];
+  const totalHours = events.reduce((s, e) => s + e.hours, 0);
+  const unexplained = events.filter((e) => !e.causeId).length;
+
+  return (
+    <Page title="Downtime" actions={canEdit && (
+      <>
+        <Button variant="secondary" disabled={proposing} onClick={propose}>{proposing ? 'Looking for gaps…' : 'Propose from gaps'}</Button>
+        <Button onClick={() => { setMessage(null); setEditing('new'); }}>Add a downtime event</Button>
+      </>
+    )}>
+      <DowntimeTabs projectId={projectId} />
+      {message && <Alert tone={message.tone}>{message.text}</Alert>}
+      {canEdit && editing !== null && (
+        <EventForm
+          key={editing === 'new' ? 'new' : editing.id}
+          projectId={projectId}
+          timeZone={tz}
+          causes={causes}
+          stops={stops}
+          editing={editing === 'new' ? null : editing}
+          onDone={(text) => { setEditing(null); if (text) setMessage({ tone: 'success', text }); }}
+        />
+      )}
+      <Panel title="Events">
+        <EventFilters key={`${list.from}/${list.to}/${cause}`} shown={{ from: list.from, to: list.to, cause }} causes={causes} onApply={apply} />
+        <p className="mb-3 text-basalt-700" role="status">
+          {events.length} event(s), {totalHours.toFixed(1)} h{unexplained > 0 ? `; ${unexplained} without a cause yet` : ''}, from {list.from} to {list.to}. Times in site time ({tz}).
+        </p>
+        <DataTable data={events} columns={columns} exportName="kerfwise-downtime-events" emptyText="No downtime events match." />
+      </Panel>
+      <CausesPanel projectId={projectId} causes={causes} canEdit={canEdit} />
+      <SiteSettingsPanel key={JSON.stringify(settings)} projectId={projectId} settings={settings} canEdit={canEdit} timeZone={tz} />
+    </Page>
+  );
+}

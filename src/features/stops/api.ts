@@ -1,0 +1,149 @@
+import { queryOptions } from '@tanstack/react-query';
+import type { PositionClass } from '../../../shared/cutters';
+import type { StopPlanCost } from '../../../shared/domain/stop-planner';
+import type { CancelStopInput, CompleteStopInput, CreateStopInput, ScheduleStopInput, StartStopInput, StopPlanQuery, StopStatus } from '../../../shared/schemas/stop';
+import { api, apiGet } from '../../lib/api-client';
+
+/** The plan's assumptions as the server used them (defaults with any overrides). */
+export interface StopPlanSettings {
+  horizonM: number;
+  freeAirStopH: number;
+  compressedAirStopH: number;
+  changeHByClass: Record<PositionClass, number>;
+  wastedRingLifeHPerMm: number;
+  compressedAirAboveHeadM: number;
+}
+
+export interface PlanChange {
+  positionId: string;
+  positionNumber: number;
+  positionClass: PositionClass;
+  limitMm: number;
+  wearAtChangeMm: number;
+  unusedWearMm: number;
+}
+
+export interface PlanStop {
+  chainageM: number;
+  aheadM: number;
+  ringNumber: number;
+  compressedAir: boolean;
+  waterHeadM: number | null;
+  workingPressureBar: number | null;
+  stopH: number;
+  changeH: number;
+  wastedRingLifeH: number;
+  changes: PlanChange[];
+  existingStopId: string | null;
+}
+
+export interface PlanView {
+  cost: StopPlanCost;
+  stops: PlanStop[];
+}
+
+/** GET /stops/plan. */
+export interface StopPlan {
+  now: string;
+  currentChainageM: number | null;
+  currentRingNumber: number | null;
+  settings: StopPlanSettings;
+  horizonEndChainageM: number | null;
+  candidatePlaceCount: number;
+  problems: string[];
+  infeasible: { positionId: string; positionNumber: number; dueChainageM: number; reason: string }[];
+  optimised: PlanView | null;
+  hand: PlanView | null;
+  savingH: number | null;
+  cautions: string[];
+}
+
+export interface Stop {
+  id: string;
+  projectId: string;
+  status: StopStatus;
+  source: string;
+  chainageM: number;
+  ringNumber: number | null;
+  compressedAir: boolean;
+  workingPressureBar: number | null;
+  plannedStart: string | null;
+  expectedHours: number | null;
+  crewId: string | null;
+  publishedAt: string | null;
+  actualStart: string | null;
+  actualEnd: string | null;
+  actualHours: number | null;
+  roundId: string | null;
+  cancelReason: string | null;
+  notes: string;
+  createdAt: string;
+}
+
+/** A row of GET /stops. */
+export interface StopListItem extends Stop {
+  crewName: string | null;
+  positionCount: number;
+}
+
+/** GET /stops/:stopId and the answer of every change to a stop. */
+export interface WorkPack {
+  stop: Stop;
+  positions: {
+    positionId: string; number: number; positionClass: PositionClass; trackRadiusMm: number; discSizeIn: number; twinDisc: boolean; wearLimitMm: number;
+    expectedWearMm: number | null; fittedSerial: string | null;
+  }[];
+  storeSerials: { cutterId: string; serial: string; discSizeIn: number; rebuildCount: number }[];
+  shortages: { discSizeIn: number; needed: number; inStore: number }[];
+  partsKit: { item: string; quantity: number; basis: string }[];
+  crew: { id: string; name: string; members: { name: string; email: string }[] } | null;
+  round: { id: string; startedAt: string; chainageM: number; ringNumber: number | null } | null;
+  cautions: string[];
+}
+
+export interface Crew {
+  id: string;
+  name: string;
+  members: { id: string; name: string; email: string }[];
+}
+
+export interface RoundOption {
+  id: string;
+  startedAt: string;
+  chainageM: number;
+  ringNumber: number | null;
+  crew: string;
+}
+
+const base = (projectId: string) => `/api/projects/${projectId}/stops`;
+
+const queryString = (q: Record<string, string | number | undefined>) => {
+  const entries = Object.entries(q).filter((e): e is [string, string | number] => e[1] !== undefined);
+  return entries.length === 0 ? '' : `?${new URLSearchParams(entries.map(([k, v]) => [k, String(v)])).toString()}`;
+};
+
+export const getStopPlan = (projectId: string, overrides: StopPlanQuery) => apiGet<StopPlan>(`${base(projectId)}/plan${queryString(overrides)}`);
+export const getStops = (projectId: string, status?: StopStatus) => apiGet<StopListItem[]>(`${base(projectId)}${queryString({ status })}`);
+export const getWorkPack = (projectId: string, stopId: string) => apiGet<WorkPack>(`${base(projectId)}/${stopId}`);
+
+export const proposeStop = (projectId: string, input: CreateStopInput) => api<WorkPack>('POST', base(projectId), input);
+export const scheduleStop = (projectId: string, stopId: string, input: ScheduleStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/schedule`, input);
+export const publishStop = (projectId: string, stopId: string) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/publish`);
+export const startStop = (projectId: string, stopId: string, input: StartStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/start`, input);
+export const completeStop = (projectId: string, stopId: string, input: CompleteStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/complete`, input);
+export const cancelStop = (projectId: string, stopId: string, input: CancelStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/cancel`, input);
+
+export const stopQueries = {
+  all: (projectId: string) => ['projects', projectId, 'stops'] as const,
+  // The plan follows the forecast, which moves with every inspection and stroke: refetch on each visit.
+  plan: (projectId: string, overrides: StopPlanQuery) =>
+    queryOptions({ queryKey: [...stopQueries.all(projectId), 'plan', overrides], queryFn: () => getStopPlan(projectId, overrides), staleTime: 1_000 }),
+  list: (projectId: string, status?: StopStatus) =>
+    queryOptions({ queryKey: [...stopQueries.all(projectId), 'list', status ?? 'all'], queryFn: () => getStops(projectId, status) }),
+  detail: (projectId: string, stopId: string) =>
+    queryOptions({ queryKey: [...stopQueries.all(projectId), 'detail', stopId], queryFn: () => getWorkPack(projectId, stopId) }),
+  crews: (projectId: string) =>
+    queryOptions({ queryKey: [...stopQueries.all(projectId), 'crews'], queryFn: () => apiGet<Crew[]>(`/api/projects/${projectId}/crews`) }),
+  rounds: (projectId: string) =>
+    queryOptions({ queryKey: [...stopQueries.all(projectId), 'rounds'], queryFn: () => apiGet<RoundOption[]>(`/api/projects/${projectId}/rounds`) }),
+};

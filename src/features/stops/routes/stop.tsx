@@ -1,0 +1,340 @@
+import { useQueryClient, useSuspenseQueries } from '@tanstack/react-query';
+import { useState, type FormEvent, type ReactNode } from 'react';
+import { Link, useParams } from 'react-router';
+import { positionClassLabels } from '../../../../shared/cutters';
+import { roleCan } from '../../../../shared/roles';
+import { cancelStopInputSchema, canStop, scheduleStopInputSchema, stopStatusLabels, type ScheduleStopInput } from '../../../../shared/schemas/stop';
+import { Alert } from '../../../components/ui/alert';
+import { Button } from '../../../components/ui/button';
+import { SelectField, TextField } from '../../../components/ui/field';
+import { Page, Panel } from '../../../components/ui/page';
+import { paths } from '../../../config/paths';
+import { ApiError } from '../../../lib/api-client';
+import { formatChainage, formatDateTime } from '../../../lib/format';
+import { projectQueries } from '../../projects/api';
+import { cancelStop, completeStop, publishStop, scheduleStop, startStop, stopQueries, type Crew, type RoundOption, type WorkPack } from '../api';
+import { AirBadge } from '../components/air-badge';
+import { StopCautions } from '../components/cautions';
+import { hoursText, siteLocalToIso, siteLocalValue } from '../format';
+import '../work-pack-print.css';
+
+const linkClass = 'inline-flex min-h-touch items-center font-semibold text-ember-700 underline underline-offset-2';
+
+/** Runs a change to the stop, puts the answer (the new work pack) in the cache and keeps the outcome to show. */
+function useStopAction(projectId: string, stopId: string) {
+  const queryClient = useQueryClient();
+  const [busy, setBusy] = useState(false);
+  const [error, setError] = useState<string | null>(null);
+  const [done, setDone] = useState<string | null>(null);
+  const run = async (change: () => Promise<WorkPack>, message: string) => {
+    setBusy(true);
+    setError(null);
+    setDone(null);
+    try {
+      queryClient.setQueryData(stopQueries.detail(projectId, stopId).queryKey, await change());
+      await queryClient.invalidateQueries({ queryKey: stopQueries.all(projectId) });
+      setDone(message);
+    } catch (err) {
+      setError(err instanceof ApiError ? err.message : 'That did not work. Try again.');
+    } finally {
+      setBusy(false);
+    }
+  };
+  return { busy, error, done, run };
+}
+type StopChanger = ReturnType<typeof useStopAction>;
+
+/** A stop, its work pack (printable on one or two A4 pages) and what the planner and the fitters do with it. */
+export function StopRoute() {
+  const { projectId = '', stopId = '' } = useParams();
+  const [{ data: project }, { data: pack }, { data: crews }, { data: rounds }] = useSuspenseQueries({
+    queries: [projectQueries.detail(projectId), stopQueries.detail(projectId, stopId), stopQueries.crews(projectId), stopQueries.rounds(projectId)],
+  });
+  const action = useStopAction(projectId, stopId);
+  const { stop } = pack;
+  const canPlan = roleCan(project.role, 'stops.plan');
+  const canRun = roleCan(project.role, 'stops.run');
+
+  return (
+    <Page
+      title={`Stop at ${formatChainage(stop.chainageM)}`}
+      actions={
+        <div className="no-print flex flex-wrap gap-2">
+          <Button variant="secondary" onClick={() => window.print()}>Print work pack</Button>
+          <Link className={linkClass} to={paths.stops(projectId)}>All stops</Link>
+        </div>
+      }
+    >
+      <div className="no-print space-y-2" aria-live="polite">
+        {action.error && <Alert tone="error">{action.error}</Alert>}
+        {action.done && <Alert tone="success">{action.done}</Alert>}
+      </div>
+
+      <WorkPackView pack={pack} projectName={project.name} timeZone={project.siteTimeZone} />
+
+      <div className="no-print space-y-6">
+        {canPlan && canStop('schedule', stop.status) && <ScheduleForm pack={pack} crews={crews} timeZone={project.siteTimeZone} action={action} projectId={projectId} />}
+        {canPlan && stop.status === 'scheduled' && (
+          <Panel title="Publish">
+            {stop.publishedAt ? (
+              <p>Published {formatDateTime(stop.publishedAt, project.siteTimeZone)}: the crew has the work pack. Change the schedule to publish again.</p>
+            ) : (
+              <div className="space-y-3">
+                <p>Every member of {pack.crew?.name ?? 'the crew'} gets the work pack and the cautions by e-mail, and reminders before the start.</p>
+                <Button onClick={() => action.run(() => publishStop(projectId, stopId), 'Published: the crew is told by e-mail.')} disabled={action.busy}>
+                  Publish to the crew
+                </Button>
+              </div>
+            )}
+          </Panel>
+        )}
+        {canRun && canStop('start', stop.status) && (
+          <Panel title="At the face">
+            <Button onClick={() => action.run(() => startStop(projectId, stopId, {}), 'Started: the stop is in progress.')} disabled={action.busy}>Start the stop now</Button>
+          </Panel>
+        )}
+        {canRun && canStop('complete', stop.status) && <CompleteForm rounds={rounds} timeZone={project.siteTimeZone} action={action} projectId={projectId} stopId={stopId} />}
+        {canPlan && canStop('cancel', stop.status) && <CancelForm action={action} projectId={projectId} stopId={stopId} />}
+      </div>
+    </Page>
+  );
+}
+
+function Fact({ label, children }: { label: string; children: ReactNode }) {
+  return (
+    <div>
+      <dt className="text-caption text-basalt-600">{label}</dt>
+      <dd className="font-semibold">{children}</dd>
+    </div>
+  );
+}
+
+function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; projectName: string; timeZone: string }) {
+  const { stop } = pack;
+  const th = 'px-2 py-1 font-semibold';
+  const td = 'px-2 py-1';
+  return (
+    <article aria-label="Work pack" className="work-pack space-y-4 rounded-lg border border-basalt-200 bg-white p-4 shadow-sm">
+      <header>
+        <p className="text-caption text-basalt-600">{projectName} · work pack</p>
+        <h2>Cutter stop at {formatChainage(stop.chainageM)}{stop.ringNumber != null && `, ring ${stop.ringNumber}`}</h2>
+      </header>
+      <dl className="grid grid-cols-2 gap-3 md:grid-cols-3 print:grid-cols-3">
+        <Fact label="Status">{stopStatusLabels[stop.status]}{stop.publishedAt && ' · published'}</Fact>
+        <Fact label="Air"><AirBadge compressedAir={stop.compressedAir} workingPressureBar={stop.workingPressureBar} /></Fact>
+        <Fact label={`Planned start (${timeZone})`}>{stop.plannedStart ? formatDateTime(stop.plannedStart, timeZone) : 'Not scheduled'}</Fact>
+        <Fact label="Expected duration">{hoursText(stop.expectedHours)}</Fact>
+        <Fact label="Crew">{pack.crew ? `${pack.crew.name} (${pack.crew.members.map((m) => m.name).join(', ') || 'no members'})` : 'None yet'}</Fact>
+        {(stop.actualStart || stop.actualEnd) && (
+          <Fact label="Actual">
+            {formatDateTime(stop.actualStart, timeZone)} – {stop.actualEnd ? formatDateTime(stop.actualEnd, timeZone) : 'in progress'}
+            {stop.actualHours != null && ` (${hoursText(stop.actualHours)})`}
+          </Fact>
+        )}
+        {pack.round && <Fact label="Inspection round">{formatDateTime(pack.round.startedAt, timeZone)} at {formatChainage(pack.round.chainageM)}</Fact>}
+        {stop.cancelReason && <Fact label="Cancelled because">{stop.cancelReason}</Fact>}
+      </dl>
+
+      <StopCautions cautions={pack.cautions} />
+
+      <section aria-labelledby="wp-positions">
+        <h3 id="wp-positions" className="font-semibold">Positions to change ({pack.positions.length})</h3>
+        <div className="overflow-x-auto">
+          <table className="min-w-full text-left">
+            <thead className="bg-basalt-100">
+              <tr>
+                <th scope="col" className={th}>Position</th>
+                <th scope="col" className={th}>Class</th>
+                <th scope="col" className={`${th} text-right`}>Track radius</th>
+                <th scope="col" className={th}>Disc</th>
+                <th scope="col" className={th}>Serial off</th>
+                <th scope="col" className={`${th} text-right`}>Expected wear</th>
+                <th scope="col" className={th}>Serial on</th>
+              </tr>
+            </thead>
+            <tbody>
+              {pack.positions.map((p) => (
+                <tr key={p.positionId} className="border-t border-basalt-100">
+                  <td className={`${td} font-semibold`}>{p.number}</td>
+                  <td className={td}>{positionClassLabels[p.positionClass]}{p.twinDisc && ', twin'}</td>
+                  <td className={`${td} text-right`}>{p.trackRadiusMm.toFixed(0)} mm</td>
+                  <td className={td}>{p.discSizeIn}″</td>
+                  <td className={td}>{p.fittedSerial ?? '—'}</td>
+                  <td className={`${td} text-right`}>{p.expectedWearMm == null ? '—' : `${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm`}</td>
+                  <td className={`${td} min-w-32`}><span className="block h-6 border-b-2 border-dotted border-basalt-400" aria-label="To be written in" /></td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+        <p className="text-caption text-basalt-600">Expected wear is the cautious (P90) forecast at this chainage.</p>
+      </section>
+
+      <div className="grid gap-4 md:grid-cols-2 print:grid-cols-2">
+        <section aria-labelledby="wp-store">
+          <h3 id="wp-store" className="font-semibold">Take from the store ({pack.storeSerials.length})</h3>
+          {pack.shortages.map((s) => (
+            <Alert key={s.discSizeIn} tone="caution" title={`Short of ${s.discSizeIn}″ cutters: ${s.needed} needed, ${s.inStore} in store.`} />
+          ))}
+          {pack.storeSerials.length > 0 ? (
+            <table className="min-w-full text-left">
+              <thead className="bg-basalt-100">
+                <tr><th scope="col" className={th}>Serial</th><th scope="col" className={th}>Disc</th><th scope="col" className={`${th} text-right`}>Rebuilds</th></tr>
+              </thead>
+              <tbody>
+                {pack.storeSerials.map((c) => (
+                  <tr key={c.cutterId} className="border-t border-basalt-100"><td className={td}>{c.serial}</td><td className={td}>{c.discSizeIn}″</td><td className={`${td} text-right`}>{c.rebuildCount}</td></tr>
+                ))}
+              </tbody>
+            </table>
+          ) : (
+            <p>{stop.status === 'done' || stop.status === 'cancelled' ? 'The stop is closed.' : 'No matching cutter in store.'}</p>
+          )}
+          <p className="text-caption text-basalt-600">Fewest rebuilds first, then the longest in store.</p>
+        </section>
+        <section aria-labelledby="wp-kit">
+          <h3 id="wp-kit" className="font-semibold">Parts kit</h3>
+          <table className="min-w-full text-left">
+            <thead className="bg-basalt-100">
+              <tr><th scope="col" className={th}>Item</th><th scope="col" className={`${th} text-right`}>Qty</th><th scope="col" className={th}>Basis</th></tr>
+            </thead>
+            <tbody>
+              {pack.partsKit.map((k) => (
+                <tr key={k.item} className="border-t border-basalt-100"><td className={td}>{k.item}</td><td className={`${td} text-right font-semibold`}>{k.quantity}</td><td className={`${td} text-caption`}>{k.basis}</td></tr>
+              ))}
+            </tbody>
+          </table>
+          <p className="text-caption text-basalt-600">Spares per number of changes are common practice (no published source); adjust to the site’s history.</p>
+        </section>
+      </div>
+
+      {pack.crew && pack.crew.members.length > 0 && (
+        <section aria-labelledby="wp-crew">
+          <h3 id="wp-crew" className="font-semibold">Crew: {pack.crew.name}</h3>
+          <ul className="grid gap-x-4 md:grid-cols-2 print:grid-cols-2">
+            {pack.crew.members.map((m) => <li key={m.email}>{m.name} · {m.email}</li>)}
+          </ul>
+        </section>
+      )}
+    </article>
+  );
+}
+
+type ScheduleField = 'plannedStart' | 'expectedHours' | 'crewId' | 'compressedAir';
+
+function ScheduleForm({ pack, crews, timeZone, action, projectId }: { pack: WorkPack; crews: Crew[]; timeZone: string; action: StopChanger; projectId: string }) {
+  const { stop } = pack;
+  const [values, setValues] = useState(() => ({
+    plannedStart: stop.plannedStart ? siteLocalValue(stop.plannedStart, timeZone) : '',
+    expectedHours: stop.expectedHours == null ? '' : String(stop.expectedHours),
+    crewId: stop.crewId ?? '',
+    compressedAir: stop.compressedAir,
+  }));
+  const [errors, setErrors] = useState<Partial<Record<ScheduleField, string>>>({});
+  const onSubmit = (e: FormEvent) => {
+    e.preventDefault();
+    const parsed = scheduleStopInputSchema.safeParse({
+      plannedStart: siteLocalToIso(values.plannedStart, timeZone) ?? '',
+      expectedHours: values.expectedHours.trim() === '' ? undefined : Number(values.expectedHours.replace(',', '.')),
+      crewId: values.crewId,
+      compressedAir: values.compressedAir,
+    });
+    if (!parsed.success) {
+      setErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])));
+      return;
+    }
+    setErrors({});
+    const input: ScheduleStopInput = parsed.data;
+    void action.run(() => scheduleStop(projectId, stop.id, input), 'Scheduled. Publish it to tell the crew.');
+  };
+  const airOption = (compressed: boolean, label: string) => (
+    <label className="flex min-h-touch items-center gap-2 rounded-md border-2 border-basalt-300 px-3 has-[:checked]:border-ember-500">
+      <input type="radio" name="air" checked={values.compressedAir === compressed} onChange={() => setValues((v) => ({ ...v, compressedAir: compressed }))} />
+      {label}
+    </label>
+  );
+  return (
+    <Panel title={stop.status === 'scheduled' ? 'Change the schedule' : 'Schedule'}>
+      <form onSubmit={onSubmit} noValidate className="grid gap-4 md:grid-cols-2">
+        <TextField
+          label={`Planned start (site time, ${timeZone})`}
+          type="datetime-local"
+          value={values.plannedStart}
+          error={errors.plannedStart}
+          onChange={(e) => setValues((v) => ({ ...v, plannedStart: e.target.value }))}
+        />
+        <TextField
+          label="Expected duration (h)"
+          inputMode="decimal"
+          value={values.expectedHours}
+          error={errors.expectedHours}
+          hint="From the plan: stop hours plus change hours."
+          onChange={(e) => setValues((v) => ({ ...v, expectedHours: e.target.value }))}
+        />
+        <SelectField label="Crew" value={values.crewId} error={errors.crewId} onChange={(e) => setValues((v) => ({ ...v, crewId: e.target.value }))}>
+          <option value="">Choose a crew…</option>
+          {crews.map((c) => <option key={c.id} value={c.id}>{c.name} ({c.members.length} member{c.members.length === 1 ? '' : 's'})</option>)}
+        </SelectField>
+        <fieldset className="space-y-1">
+          <legend className="font-semibold">Air</legend>
+          <div className="flex flex-wrap gap-2">
+            {airOption(false, 'Free air')}
+            {airOption(true, 'Compressed air')}
+          </div>
+          {values.compressedAir && stop.workingPressureBar != null && (
+            <p className="text-caption text-basalt-600">Indicative working pressure from the water head: {stop.workingPressureBar.toFixed(2)} bar.</p>
+          )}
+        </fieldset>
+        <div className="md:col-span-2">
+          <Button type="submit" disabled={action.busy}>{stop.status === 'scheduled' ? 'Save the schedule' : 'Schedule the stop'}</Button>
+        </div>
+      </form>
+    </Panel>
+  );
+}
+
+function CompleteForm({ rounds, timeZone, action, projectId, stopId }: { rounds: RoundOption[]; timeZone: string; action: StopChanger; projectId: string; stopId: string }) {
+  const [roundId, setRoundId] = useState('');
+  return (
+    <Panel title="Finish">
+      <div className="grid gap-4 md:grid-cols-2">
+        <SelectField label="Inspection round done during the stop" value={roundId} onChange={(e) => setRoundId(e.target.value)} hint="Optional.">
+          <option value="">No round</option>
+          {rounds.map((r) => (
+            <option key={r.id} value={r.id}>{formatDateTime(r.startedAt, timeZone)} · {formatChainage(r.chainageM)}{r.crew && ` · ${r.crew}`}</option>
+          ))}
+        </SelectField>
+        <div className="flex items-end">
+          <Button onClick={() => action.run(() => completeStop(projectId, stopId, { roundId: roundId || null }), 'Done: the stop is complete.')} disabled={action.busy}>
+            Complete the stop now
+          </Button>
+        </div>
+      </div>
+    </Panel>
+  );
+}
+
+function CancelForm({ action, projectId, stopId }: { action: StopChanger; projectId: string; stopId: string }) {
+  const [reason, setReason] = useState('');
+  const [error, setError] = useState<string | undefined>();
+  const onSubmit = (e: FormEvent) => {
+    e.preventDefault();
+    const parsed = cancelStopInputSchema.safeParse({ reason });
+    if (!parsed.success) {
+      setError(parsed.error.issues[0].message);
+      return;
+    }
+    setError(undefined);
+    void action.run(() => cancelStop(projectId, stopId, parsed.data), 'Cancelled.');
+  };
+  return (
+    <Panel title="Cancel the stop">
+      <form onSubmit={onSubmit} noValidate className="grid gap-4 md:grid-cols-2">
+        <TextField label="Reason" value={reason} error={error} onChange={(e) => setReason(e.target.value)} hint="The crew is told if the stop was published." />
+        <div className="flex items-end">
+          <Button type="submit" variant="danger" disabled={action.busy}>Cancel the stop</Button>
+        </div>
+      </form>
+    </Panel>
+  );
+}

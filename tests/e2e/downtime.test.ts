@@ -1,0 +1,69 @@
+/**
+ * The site manager at tablet size opens Downtime, then the report, and reads the weekly downtime
+ * table: the cutter change split at the local Monday (tests/support/downtime-fixtures.ts).
+ */
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, expect, it } from 'vitest';
+import { launchBrowser, serveApp } from '../support/browser';
+import { makeSpringDowntimeDrive } from '../support/downtime-fixtures';
+import { addMember, makeUser, PASSWORD } from '../support/fixtures';
+
+let browser: Browser;
+let app: Awaited<ReturnType<typeof serveApp>>;
+
+beforeAll(async () => {
+  app = await serveApp();
+  browser = await launchBrowser();
+}, 120_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await app?.close();
+});
+
+/** The table inside the panel headed `title` (the innermost block holding that heading). */
+const panelTable = (page: Page, title: string) =>
+  page.locator('div', { has: page.getByRole('heading', { name: title, exact: true }) }).last().getByRole('table');
+
+/** The cells of the row whose first cell is `first`, by column header. */
+async function rowByHeader(page: Page, title: string, first: string): Promise<Record<string, string>> {
+  const table = panelTable(page, title);
+  const headers = (await table.locator('thead th').allTextContents()).map((h) => h.replace(/[▲▼]/g, '').trim());
+  const cells = await table.locator('tbody tr').filter({ has: page.locator('td:first-child', { hasText: first }) }).first().locator('td').allTextContents();
+  return Object.fromEntries(headers.map((h, i) => [h, cells[i]]));
+}
+
+it('the site manager opens the weekly downtime table', async () => {
+  const project = await makeSpringDowntimeDrive();
+  const manager = await makeUser();
+  await addMember(project.id, manager.id, 'site_manager');
+
+  const page = await browser.newPage({ viewport: { width: 768, height: 1024 } });
+  await page.goto(`${app.url}/sign-in`);
+  await page.getByLabel('E-mail').fill(manager.email);
+  await page.getByLabel('Password').fill(PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL(new RegExp(`/projects/${project.id}$`));
+
+  const menu = page.getByRole('button', { name: 'Menu' });
+  if (await menu.isVisible()) await menu.click();
+  await page.getByRole('link', { name: 'Downtime', exact: true }).click();
+  await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Downtime');
+  // The two events of the fixture, in site time.
+  expect(await page.getByRole('status').filter({ hasText: /event\(s\)/ }).textContent()).toBe('2 event(s), 23.0 h, from 2026-02-02 to 2026-03-29. Times in site time (Europe/Zurich).');
+
+  await page.getByRole('navigation', { name: 'Downtime' }).getByRole('link', { name: 'Report' }).click();
+  await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Downtime report');
+  // Without a period the report shows the eight ISO weeks up to the last day with data (Sun 2026-03-29).
+  expect(await page.getByLabel('From').inputValue()).toBe('2026-02-02');
+  expect(await page.getByLabel('To (included)').inputValue()).toBe('2026-03-29');
+
+  // derived (fixture): the cutter change runs Sun 16:00 → Mon 04:00 CET: 8 h in 2026-W12, 4 h in 2026-W13.
+  const change = await rowByHeader(page, 'Hours by cause and week', 'Cutter change');
+  expect(change).toMatchObject({ 'Cutter work': 'yes', '2026-W11': '0', '2026-W12': '8.0', '2026-W13': '4.0', 'Total (h)': '12.0' });
+  const all = await rowByHeader(page, 'Hours by cause and week', 'All causes');
+  expect(all).toMatchObject({ '2026-W12': '8.0', '2026-W13': '15.0', 'Total (h)': '23.0' });
+  // The spring night of the breakdown is 11 real hours on the night shift.
+  expect(await rowByHeader(page, 'Hours by cause and shift', 'Machine breakdown')).toMatchObject({ Day: '0', Night: '11.0' });
+  expect(await page.getByRole('img', { name: /Pareto chart of downtime causes/ }).count()).toBe(1);
+});

@@ -1,0 +1,119 @@
+/**
+ * The stop plan of the demo drive in headless Chromium: the planner proposes the first stop of the
+ * optimised plan, schedules it for Crew A and publishes it; the fitter opens its work pack from the
+ * list of stops. The work pack prints on at most two A4 pages; the crew's 24 h reminder arrives in the
+ * caught mail, which the administrator reads in the app.
+ */
+import { and, eq, sql } from 'drizzle-orm';
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, expect, it } from 'vitest';
+import { db } from '../../server/db/client';
+import { outbox, stops } from '../../server/db/schema';
+import { deliverPendingMail } from '../../server/lib/mail';
+import { stopRemindersJob } from '../../jobs/stop-reminders';
+import { DEMO_PASSWORD, seedDemo } from '../../server/db/seed-demo';
+import { launchBrowser, serveApp } from '../support/browser';
+
+let browser: Browser;
+let app: Awaited<ReturnType<typeof serveApp>>;
+let projectId: string;
+
+beforeAll(async () => {
+  // The demo drive (idempotent; other files may load it too).
+  ({ projectId } = await seedDemo(db));
+  app = await serveApp();
+  browser = await launchBrowser();
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await app?.close();
+});
+
+async function signIn(email: string): Promise<Page> {
+  const page = await browser.newPage({ viewport: { width: 768, height: 1024 } });
+  await page.goto(`${app.url}/sign-in`);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
+  return page;
+}
+
+const heading = (page: Page) => page.getByRole('heading', { level: 1 }).textContent();
+
+it('the planner proposes, schedules and publishes the first stop of the plan; the fitter opens its work pack', async () => {
+  const planner = await signIn('planner@kerfwise.test');
+  await planner.goto(`${app.url}/projects/${projectId}/stops`);
+  await expect.poll(() => heading(planner), { timeout: 20_000 }).toBe('Stops');
+  await planner.getByRole('link', { name: 'Plan stops' }).click();
+  // The plan walks the forecast of every position over the next 2 km: give it time.
+  await expect.poll(() => heading(planner), { timeout: 60_000 }).toBe('Stop plan');
+  await expect.poll(() => planner.getByRole('table', { name: 'Cost of the two plans, in hours' }).count(), { timeout: 60_000 }).toBe(1);
+  expect(await planner.getByText(/The optimised plan saves [\d.]+ h/).count()).toBe(1);
+  expect(await planner.getByRole('note').filter({ hasText: 'Entering the cutterhead' }).count()).toBe(1);
+
+  const first = planner.getByRole('listitem', { name: /^Stop 1 at / });
+  const label = (await first.getAttribute('aria-label'))!;
+  const chainage = /at (\d+\+\d{3}\.\d)$/.exec(label)![1];
+  await first.getByRole('button', { name: 'Propose this stop' }).click();
+  await expect.poll(() => heading(planner), { timeout: 20_000 }).toBe(`Stop at ${chainage}`);
+  const workPack = planner.getByRole('article', { name: 'Work pack' });
+  const positionsShown = await workPack.getByRole('region', { name: /Positions to change/ }).locator('tbody > tr').count();
+  expect(positionsShown).toBeGreaterThan(0);
+
+  // Schedule it for Crew A, three days ahead at 06:00 site time, in the air the plan chose.
+  const day = new Date(Date.now() + 3 * 86400_000).toISOString().slice(0, 10);
+  await planner.getByLabel(/Planned start \(site time/).fill(`${day}T06:00`);
+  await planner.getByLabel('Crew').selectOption({ label: 'Crew A (2 members)' });
+  await planner.getByRole('button', { name: 'Schedule the stop' }).click();
+  await expect.poll(() => planner.getByRole('status').filter({ hasText: 'Scheduled. Publish it to tell the crew.' }).count(), { timeout: 15_000 }).toBe(1);
+  expect(await workPack.getByText('Crew A (Jonah Pell, Tomas Vella)').count()).toBe(1);
+
+  await planner.getByRole('button', { name: 'Publish to the crew' }).click();
+  await expect.poll(() => planner.getByRole('status').filter({ hasText: 'Published' }).count(), { timeout: 15_000 }).toBe(1);
+  const stopId = /\/stops\/([0-9a-f-]{36})$/.exec(planner.url())![1];
+  // Both members of Crew A have the work pack waiting in the outbox (or already sent).
+  const mails = await db.select().from(outbox).where(and(eq(outbox.kind, 'stop_published'), sql`${outbox.textBody} like ${`%/stops/${stopId}%`}`));
+  expect(mails.flatMap((m) => m.toAddresses).sort()).toEqual(['crew-a@kerfwise.test', 'fitter@kerfwise.test']);
+
+  // On paper: A4, one or two pages, without the navigation or the forms.
+  const pdf = await planner.pdf({ format: 'A4', preferCSSPageSize: true });
+  const pages = (pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g) ?? []).length;
+  expect(pages).toBeGreaterThanOrEqual(1);
+  expect(pages).toBeLessThanOrEqual(2);
+  await planner.emulateMedia({ media: 'print' });
+  expect(await planner.getByRole('navigation', { name: 'Main' }).isVisible()).toBe(false);
+  expect(await planner.getByRole('button', { name: 'Print work pack' }).isVisible()).toBe(false);
+  expect(await workPack.isVisible()).toBe(true);
+  await planner.close();
+
+  // The day before the stop, the reminder job (injected clock: 23 h ahead) reminds the crew; the
+  // administrator reads the caught mail in the app.
+  const [scheduled] = await db.select().from(stops).where(eq(stops.id, stopId));
+  await stopRemindersJob({ now: new Date(scheduled.plannedStart!.getTime() - 23 * 3600_000) });
+  await deliverPendingMail();
+  const admin = await signIn('admin@kerfwise.test');
+  await admin.goto(`${app.url}/admin/mail`);
+  const reminder = admin.getByRole('button', { name: new RegExp(`Reminder \\(24 hours\\): cutter stop at ${chainage.replace('+', '\\+')}.*crew-a@kerfwise\\.test`) }).first();
+  await expect.poll(() => reminder.count(), { timeout: 20_000 }).toBeGreaterThan(0);
+  await reminder.click();
+  expect(await admin.getByText(/does not compute decompression schedules|Entering the cutterhead/).first().isVisible()).toBe(true);
+  await admin.close();
+
+  // The fitter finds the stop in the list and opens its work pack.
+  const fitter = await signIn('fitter@kerfwise.test');
+  await fitter.goto(`${app.url}/projects/${projectId}/stops`);
+  await expect.poll(() => heading(fitter), { timeout: 20_000 }).toBe('Stops');
+  await fitter.getByRole('link', { name: `Stop at ${chainage}` }).click();
+  await expect.poll(() => heading(fitter), { timeout: 20_000 }).toBe(`Stop at ${chainage}`);
+  const pack = fitter.getByRole('article', { name: 'Work pack' });
+  expect(await pack.getByRole('region', { name: /Positions to change/ }).locator('tbody > tr').count()).toBe(positionsShown);
+  expect(await pack.getByText('Scheduled · published').count()).toBe(1);
+  expect(await pack.getByRole('region', { name: /Take from the store/ }).locator('tbody > tr').count()).toBeGreaterThan(0);
+  expect(await pack.getByRole('note').filter({ hasText: 'Entering the cutterhead' }).count()).toBe(1);
+  // The fitter runs the stop but does not plan it.
+  expect(await fitter.getByRole('button', { name: 'Start the stop now' }).count()).toBe(1);
+  expect(await fitter.getByRole('button', { name: /Schedule|Publish|Cancel the stop/ }).count()).toBe(0);
+  await fitter.close();
+}, 180_000);
