@@ -23,8 +23,8 @@ import { computeForecast, type ProjectForecast } from './forecast';
  * the face and 1.25 h at the gauge; each mm of allowable wear thrown away by an early change is
  * charged 0.2 h of boring time (the price of ring life turned into hours).
  */
-/** States the exact stop search may expand in one request (about 2–3 s on the project's machine). */
-export const PLANNER_MAX_STATES = 20_000;
+/** States the exact stop search may expand in one request (about 1–2 s on the project’s 2-core machine). */
+export const PLANNER_MAX_STATES = 3_000;
 
 export const defaultStopPlanSettings = {
   horizonM: 2000,

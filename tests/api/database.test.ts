@@ -27,12 +27,14 @@ describe('database', () => {
     await runMigrations(emptyUrl);
     await runMigrations(emptyUrl);
     pool = new pg.Pool({ connectionString: emptyUrl });
+    // The database is dropped (with force) after the file; a connection cut then is expected.
+    pool.on('error', () => {});
     const tables = await pool.query(`select table_name from information_schema.tables where table_schema = 'public' order by 1`);
     const names = tables.rows.map((r) => r.table_name);
     for (const t of ['users', 'projects', 'memberships', 'sessions', 'audit_log', 'outbox']) expect(names).toContain(t);
   });
 
-  it('the demo load is idempotent: a second load neither duplicates nor wipes', async () => {
+  it('the demo load is idempotent: a second load neither duplicates nor wipes', { timeout: 180_000 }, async () => {
     const db = drizzle(pool!, { schema, casing: 'snake_case' });
     const counts = async () => ({
       users: (await db.select({ n: count() }).from(schema.users))[0].n,
