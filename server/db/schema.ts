@@ -111,6 +111,12 @@ export const outbox = pgTable('outbox', {
   attempts: integer().notNull().default(0),
   nextAttemptAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
   sentAt: timestamp({ withTimezone: true }),
+  /**
+   * Set (and committed) before a message is handed to the SMTP server, cleared after. A row left
+   * claimed but not sent means a crash mid-send: delivery is uncertain, so it is never resent
+   * automatically — an administrator decides (DEVELOPERS.md, decision 8).
+   */
+  claimedAt: timestamp({ withTimezone: true }),
   lastError: text(),
 }, (t) => [index('outbox_pending_idx').on(t.nextAttemptAt).where(sql`sent_at is null`)]);
 

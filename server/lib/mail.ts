@@ -50,8 +50,12 @@ export interface DeliveryOptions {
 export const retryDelayMinutes = (attempts: number) => Math.min(60, 2 ** Math.max(0, attempts - 1));
 
 /**
- * Sends due outbox messages one at a time. Each row is locked while it is sent (SKIP LOCKED), so
- * several server instances never send the same row; a failure is recorded and retried with back-off.
+ * Sends due outbox messages one at a time. Each message is first claimed in its own committed
+ * transaction (SKIP LOCKED, so several instances never take the same row), then handed to the SMTP
+ * server, then marked sent. A refusal or an unreachable server clears the claim and schedules a
+ * retry with back-off; a crash between the hand-over and the mark leaves the claim in place, and
+ * such a message is never resent on its own (it may have gone out): the administrator sees it and
+ * decides. So an outage loses nothing and a crash never sends twice.
  */
 export async function deliverPendingMail(options: DeliveryOptions = {}): Promise<{ sent: number; failed: number }> {
   const { limit = 50, kind } = options;
@@ -60,38 +64,52 @@ export async function deliverPendingMail(options: DeliveryOptions = {}): Promise
   let sent = 0;
   let failed = 0;
   for (let i = 0; i < limit; i++) {
-    const outcome = await db.transaction(async (tx) => {
-      const [row] = await tx
-        .select()
+    const row = await db.transaction(async (tx) => {
+      const [due] = await tx
+        .select({ id: outbox.id })
         .from(outbox)
-        .where(and(isNull(outbox.sentAt), lte(outbox.nextAttemptAt, now), kind ? eq(outbox.kind, kind) : undefined))
+        .where(and(isNull(outbox.sentAt), isNull(outbox.claimedAt), lte(outbox.nextAttemptAt, now), kind ? eq(outbox.kind, kind) : undefined))
         .orderBy(asc(outbox.id))
         .limit(1)
         .for('update', { skipLocked: true });
-      if (!row) return 'none' as const;
-      try {
-        await via.sendMail({ to: row.toAddresses, subject: row.subject, text: row.textBody, html: row.htmlBody ?? undefined });
-        await tx.update(outbox).set({ sentAt: sql`now()`, attempts: row.attempts + 1, lastError: null }).where(sql`${outbox.id} = ${row.id}`);
-        return 'sent' as const;
-      } catch (err) {
-        const attempts = row.attempts + 1;
-        await tx
-          .update(outbox)
-          .set({
-            attempts,
-            lastError: err instanceof Error ? err.message : String(err),
-            nextAttemptAt: sql`${now} + make_interval(mins => ${retryDelayMinutes(attempts)})`,
-          })
-          .where(sql`${outbox.id} = ${row.id}`);
-        logger.warn({ outboxId: row.id, attempts, err: String(err) }, 'mail delivery failed; will retry');
-        return 'failed' as const;
-      }
+      if (!due) return undefined;
+      const [claimed] = await tx
+        .update(outbox)
+        .set({ claimedAt: sql`now()`, attempts: sql`${outbox.attempts} + 1` })
+        .where(eq(outbox.id, due.id))
+        .returning();
+      return claimed;
     });
-    if (outcome === 'none') break;
-    if (outcome === 'sent') sent++;
-    else failed++;
+    if (!row) break;
+    try {
+      await via.sendMail({ to: row.toAddresses, subject: row.subject, text: row.textBody, html: row.htmlBody ?? undefined });
+    } catch (err) {
+      await db
+        .update(outbox)
+        .set({ claimedAt: null, lastError: err instanceof Error ? err.message : String(err), nextAttemptAt: sql`${now} + make_interval(mins => ${retryDelayMinutes(row.attempts)})` })
+        .where(eq(outbox.id, row.id));
+      logger.warn({ outboxId: row.id, attempts: row.attempts, err: String(err) }, 'mail delivery failed; will retry');
+      failed++;
+      continue;
+    }
+    await db.update(outbox).set({ sentAt: sql`now()`, claimedAt: null, lastError: null }).where(eq(outbox.id, row.id));
+    sent++;
   }
   return { sent, failed };
+}
+
+/** Claims older than this are a crash mid-send: shown to the administrator as uncertain. */
+export const UNCERTAIN_AFTER_MINUTES = 10;
+
+/** Puts a message whose delivery is uncertain back in the queue, on an administrator's decision. */
+export async function releaseUncertainMail(id: number): Promise<boolean> {
+  const rows = await db
+    .update(outbox)
+    .set({ claimedAt: null, nextAttemptAt: sql`now()` })
+    // Only a stale claim: a message being sent right now is not touched.
+    .where(and(eq(outbox.id, id), isNull(outbox.sentAt), sql`${outbox.claimedAt} < now() - make_interval(mins => ${UNCERTAIN_AFTER_MINUTES})`))
+    .returning({ id: outbox.id });
+  return rows.length > 0;
 }
 
 /** Starts a delivery pass in the background (after a commit that queued mail). */

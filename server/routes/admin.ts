@@ -11,7 +11,7 @@ import { requireAdmin, requireUser } from '../middleware/auth';
 import { appUrl } from '../lib/app-url';
 import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
-import { enqueueMail, kickMailDelivery } from '../lib/mail';
+import { enqueueMail, kickMailDelivery, releaseUncertainMail, UNCERTAIN_AFTER_MINUTES } from '../lib/mail';
 import { issueToken } from '../lib/one-time-token';
 import { revokeAllSessions } from '../lib/session';
 
@@ -165,11 +165,27 @@ adminRouter.get('/mail', async (_req, res) => {
   const caught = await db.select().from(caughtMail).orderBy(desc(caughtMail.id)).limit(200);
   const [queue] = await db
     .select({
-      waiting: sql<number>`count(*) filter (where ${outbox.sentAt} is null)::int`,
-      failing: sql<number>`count(*) filter (where ${outbox.sentAt} is null and ${outbox.attempts} > 0)::int`,
+      waiting: sql<number>`count(*) filter (where ${outbox.sentAt} is null and ${outbox.claimedAt} is null)::int`,
+      failing: sql<number>`count(*) filter (where ${outbox.sentAt} is null and ${outbox.claimedAt} is null and ${outbox.attempts} > 0)::int`,
     })
     .from(outbox);
-  res.json({ caught, outbox: queue });
+  // Claimed long ago and never marked sent: a crash mid-send; it may or may not have gone out.
+  const uncertain = await db
+    .select({ id: outbox.id, subject: outbox.subject, toAddresses: outbox.toAddresses, claimedAt: outbox.claimedAt })
+    .from(outbox)
+    .where(sql`${outbox.sentAt} is null and ${outbox.claimedAt} < now() - make_interval(mins => ${UNCERTAIN_AFTER_MINUTES})`)
+    .orderBy(asc(outbox.id));
+  res.json({ caught, outbox: queue, uncertain });
+});
+
+/** Sends a message of uncertain delivery again, on the administrator's decision. */
+adminRouter.post('/outbox/:outboxId/release', async (req, res) => {
+  const me = requireUser(req);
+  const { outboxId } = z.object({ outboxId: z.coerce.number().int().positive({ message: 'That message id is not valid.' }) }).parse(req.params);
+  if (!(await releaseUncertainMail(outboxId))) throw notFound('That message of uncertain delivery');
+  await audit(db, { userId: me.id, entity: 'outbox', entityId: String(outboxId), action: 'release' });
+  kickMailDelivery();
+  res.status(202).json({ released: outboxId });
 });
 
 /** The scheduled jobs with their last runs (newest first). */

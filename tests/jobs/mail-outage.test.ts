@@ -42,6 +42,33 @@ describe('mail outbox during an SMTP outage', () => {
     expect(caught[0].subject).toBe('Stop reminder during outage');
   });
 
+  it('never resends a message whose sending was cut by a crash; the administrator decides', async () => {
+    const kind = uniq('crash-test');
+    const to = `${uniq('crew')}@kerfwise.test`;
+    await db.transaction((tx) => enqueueMail(tx, { kind, to: [to], subject: 'Sent when the server died?', text: 'hello' }));
+    // A crash after the hand-over to SMTP and before the mark: the claim stays, 20 minutes ago.
+    await db.update(outbox).set({ claimedAt: new Date(Date.now() - 20 * 60_000), attempts: 1 }).where(eq(outbox.kind, kind));
+    second ??= await startFakeSmtp({ databaseUrl: process.env.DATABASE_URL! });
+    const up = nodemailer.createTransport(second.url);
+    expect(await deliverPendingMail({ transport: up, kind })).toEqual({ sent: 0, failed: 0 });
+
+    // The administrator sees it as uncertain and sends it again.
+    const { createApp } = await import('../../server/app');
+    const { makeUser, signedInAgent } = await import('../support/fixtures');
+    const admin = await signedInAgent(createApp(), (await makeUser({ isAdmin: true })).email);
+    const [row] = await db.select().from(outbox).where(eq(outbox.kind, kind));
+    const mail = await admin.get('/api/admin/mail');
+    expect(mail.body.uncertain.map((m: { id: number }) => m.id)).toContain(row.id);
+    expect((await admin.post(`/api/admin/outbox/${row.id}/release`)).status).toBe(202);
+    expect((await admin.post(`/api/admin/outbox/${row.id}/release`)).status).toBe(404);
+    // Released, it goes out once (the release starts a delivery pass; this one may find nothing left).
+    await deliverPendingMail({ transport: up, kind });
+    await expect.poll(async () => (await db.select().from(outbox).where(eq(outbox.kind, kind)))[0].sentAt, { timeout: 10_000 }).not.toBeNull();
+    const [after] = await db.select().from(outbox).where(eq(outbox.kind, kind));
+    expect(after.claimedAt).toBeNull();
+    expect(after.attempts).toBe(2);
+  });
+
   it('backs off 1, 2, 4 … minutes, at most an hour', () => {
     expect([1, 2, 3, 4, 7, 20].map(retryDelayMinutes)).toEqual([1, 2, 4, 8, 60, 60]);
   });

@@ -60,7 +60,7 @@ export const adminQueries = {
   mail: () =>
     queryOptions({
       queryKey: [...adminQueries.all, 'mail'],
-      queryFn: () => apiGet<{ caught: CaughtMail[]; outbox: { waiting: number; failing: number } }>('/api/admin/mail'),
+      queryFn: () => apiGet<{ caught: CaughtMail[]; outbox: { waiting: number; failing: number }; uncertain: { id: number; subject: string; toAddresses: string[]; claimedAt: string }[] }>('/api/admin/mail'),
       refetchInterval: 5000,
     }),
 };
@@ -72,3 +72,4 @@ export const setMembership = (projectId: string, userId: string, role: ProjectRo
   api('PUT', `/api/admin/projects/${projectId}/members/${userId}`, { role });
 export const removeMembership = (projectId: string, userId: string) => api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);
 export const runJobNow = (name: string) => api<JobRunRow>('POST', `/api/admin/jobs/${name}/run`);
+export const releaseUncertainMail = (id: number) => api('POST', `/api/admin/outbox/${id}/release`);

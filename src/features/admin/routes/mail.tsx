@@ -1,20 +1,36 @@
-import { useSuspenseQuery } from '@tanstack/react-query';
+import { useMutation, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { Alert } from '../../../components/ui/alert';
 import { Page } from '../../../components/ui/page';
-import { adminQueries } from '../api';
+import { Button } from '../../../components/ui/button';
+import { adminQueries, releaseUncertainMail } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
 
 /** Mail caught by the local mail catcher (development, demo): what the crews would have received. */
 export function AdminMailRoute() {
   const { data } = useSuspenseQuery(adminQueries.mail());
   const [openId, setOpenId] = useState<number | null>(null);
+  const queryClient = useQueryClient();
+  const release = useMutation({ mutationFn: releaseUncertainMail, onSuccess: () => queryClient.invalidateQueries({ queryKey: adminQueries.all }) });
   return (
     <Page title="Administration">
       <AdminTabs />
       <Alert tone={data.outbox.failing > 0 ? 'caution' : 'info'}>
         {data.outbox.waiting === 0 ? 'Every queued message has been handed to the mail server.' : `${data.outbox.waiting} message(s) waiting to be sent${data.outbox.failing ? `, ${data.outbox.failing} after a failed attempt (retried automatically)` : ''}.`}
       </Alert>
+      {data.uncertain.length > 0 && (
+        <Alert tone="caution" title="Delivery uncertain">
+          <p>Sending these was interrupted (the server stopped mid-send). They may or may not have arrived; Kerfwise does not resend them on its own, so nobody gets a message twice. Ask a recipient, then send again if needed.</p>
+          <ul className="mt-2 space-y-2">
+            {data.uncertain.map((m) => (
+              <li key={m.id} className="flex flex-wrap items-center gap-3">
+                <span className="flex-1"><strong>{m.subject}</strong> to {m.toAddresses.join(', ')}</span>
+                <Button variant="secondary" disabled={release.isPending} onClick={() => release.mutate(m.id)}>Send again</Button>
+              </li>
+            ))}
+          </ul>
+        </Alert>
+      )}
       {data.caught.length === 0 ? (
         <p>No caught mail. When Kerfwise runs with a real mail server (SMTP_URL), messages go there instead.</p>
       ) : (
