@@ -3,7 +3,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import { db } from '../../server/db/client';
 import { DEMO_PASSWORD, seedDemo } from '../../server/db/seed-demo';
 import { formatChainage } from '../../src/lib/format';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 
 let browser: Browser;
 let app: Awaited<ReturnType<typeof serveApp>>;
@@ -22,12 +22,7 @@ afterAll(async () => {
 });
 
 it('the planner reads the change-out forecast of the demo drive, how one was made, and the wear rates behind it', async () => {
-  const page = await browser.newPage({ viewport: { width: 768, height: 1024 } });
-  await page.goto(`${app.url}/sign-in`);
-  await page.getByLabel('E-mail').fill('planner@kerfwise.test');
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
+  const page = await signInThroughForm(browser, app.url, 'planner@kerfwise.test', DEMO_PASSWORD);
 
   await page.goto(`${app.url}/projects/${projectId}/forecast`);
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Change-out forecast');

@@ -12,7 +12,7 @@ import { outbox, stops } from '../../server/db/schema';
 import { deliverPendingMail } from '../../server/lib/mail';
 import { stopRemindersJob } from '../../jobs/stop-reminders';
 import { DEMO_PASSWORD, seedDemo } from '../../server/db/seed-demo';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 
 let browser: Browser;
 let app: Awaited<ReturnType<typeof serveApp>>;
@@ -30,15 +30,7 @@ afterAll(async () => {
   await app?.close();
 });
 
-async function signIn(email: string): Promise<Page> {
-  const page = await browser.newPage({ viewport: { width: 768, height: 1024 } });
-  await page.goto(`${app.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
-  return page;
-}
+const signIn = (email: string): Promise<Page> => signInThroughForm(browser, app.url, email, DEMO_PASSWORD);
 
 const heading = (page: Page) => page.getByRole('heading', { level: 1 }).textContent();
 

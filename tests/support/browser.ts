@@ -23,3 +23,14 @@ export async function serveApp(): Promise<{ url: string; close: () => Promise<vo
   const { port } = server.address() as AddressInfo;
   return { url: `http://127.0.0.1:${port}`, close: () => new Promise((resolve) => server.close(() => resolve())) };
 }
+
+/** A new page at tablet size, signed in through the sign-in form (as a person would). */
+export async function signInThroughForm(browser: Browser, appUrl: string, email: string, password: string, viewport = { width: 768, height: 1024 }) {
+  const page = await browser.newPage({ viewport });
+  await page.goto(`${appUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
+  return page;
+}
