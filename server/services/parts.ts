@@ -30,7 +30,7 @@ import { reorderPointUnits, safetyStockUnits, serviceLevelZ, suggestOrder } from
 import {
   projectParts, weekIndexOf, type CutterRebuildSpec, type ExpectedChange, type ExpectedFailure, type OpenOrder, type PartWeek, type RebuildInProgress, type RebuildOutcome,
 } from '../../shared/domain/parts-projection';
-import type { WorkshopSettingsInput } from '../../shared/schemas/parts';
+import type { DemandSource, OrderSuggestion, WorkshopSettingsInput } from '../../shared/schemas/parts';
 import type { DbOrTx } from '../db/client';
 import { geologySections, parts, positions, projects, purchaseOrderLines, purchaseOrders, stockMovements, stopPositions, stops, workshopSettings } from '../db/schema';
 import { computeForecast } from './forecast';
@@ -160,13 +160,8 @@ export function weightedRolledKm(segments: readonly AdvanceSegment[], trackRadiu
 }
 
 /** One source of a part's demand in a week: a stop, the forecast (positions due without a stop), or sudden failures. */
-export interface DemandSourceView {
-  kind: 'stop' | 'forecast' | 'failures';
-  stopId: string | null;
-  qty: number;
-}
 
-export type DemandWeek = Omit<PartWeek, 'demandSources'> & { sources: DemandSourceView[] };
+export type DemandWeek = Omit<PartWeek, 'demandSources'> & { sources: DemandSource[] };
 
 export interface DemandStop {
   id: string;
@@ -181,39 +176,6 @@ export interface DemandStop {
   label: string;
 }
 
-export interface OrderSuggestion {
-  partId: string;
-  code: string;
-  name: string;
-  kind: string;
-  supplier: string;
-  currency: string;
-  unitCost: number;
-  minOrderQty: number;
-  onHand: number;
-  onOrder: number;
-  leadTimeWeeks: number;
-  leadTimeSdWeeks: number;
-  meanWeeklyDemand: number;
-  weeklyDemandSd: number;
-  safetyStock: number;
-  reorderPoint: number;
-  /** Whole weeks the order must bridge (lead time rounded up, at least 1). */
-  leadTimeWindowWeeks: number;
-  leadTimeDemand: number;
-  /** Receipts and rebuilt cutters back within the lead-time window. */
-  dueWithinLeadTime: number;
-  inventoryPosition: number;
-  orderQty: number;
-  orderNow: boolean;
-  orderValue: number;
-  /** On hand ÷ mean weekly demand; null when nothing is demanded in the horizon. */
-  weeksOfCover: number | null;
-  firstShortageWeek: number | null;
-  firstShortageDate: string | null;
-  /** The demand within the lead-time window by source: what makes the order necessary. */
-  sources: DemandSourceView[];
-}
 
 export interface PartsDemand {
   now: Date;
@@ -433,7 +395,7 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
   };
 }
 
-function addSources(into: DemandSourceView[], from: readonly DemandSourceView[]) {
+function addSources(into: DemandSource[], from: readonly DemandSource[]) {
   for (const s of from) {
     const same = into.find((x) => x.kind === s.kind && x.stopId === s.stopId);
     if (same) same.qty += s.qty;
@@ -462,7 +424,7 @@ function suggestionFor(part: CataloguePart, rows: DemandWeek[], z: number): Orde
   const dueWithinLeadTime = inWindow.reduce((s, r) => s + r.receipts + r.rebuildReturns, 0);
   const s = suggestOrder({ onHandUnits: part.onHand, onOrderUnits: dueWithinLeadTime, projectedDemandUnits: leadTimeDemand, safetyStockUnits: safetyStock, minOrderUnits: part.minOrderQty });
   const shortage = rows.find((r) => r.projectedStock < -1e-9);
-  const sources: DemandSourceView[] = [];
+  const sources: DemandSource[] = [];
   for (const r of inWindow) addSources(sources, r.sources);
   return {
     partId: part.id, code: part.code, name: part.name, kind: part.kind, supplier: part.supplier, currency: part.currency, unitCost: part.unitCost, minOrderQty: part.minOrderQty,
@@ -474,7 +436,7 @@ function suggestionFor(part: CataloguePart, rows: DemandWeek[], z: number): Orde
 }
 
 /** Words for where a suggestion's demand comes from, e.g. "Stop at 0+350.0 …: 4; forecast without a stop: 1.3". */
-export function sourcesText(sources: readonly DemandSourceView[], stopsById: ReadonlyMap<string, DemandStop>): string {
+export function sourcesText(sources: readonly DemandSource[], stopsById: ReadonlyMap<string, DemandStop>): string {
   const qty = (q: number) => (Number.isInteger(q) ? String(q) : q.toFixed(1));
   return sources
     .map((s) => `${s.kind === 'stop' ? stopsById.get(s.stopId!)?.label ?? 'a stop' : s.kind === 'forecast' ? 'positions due without a stop' : 'sudden failures'}: ${qty(s.qty)}`)

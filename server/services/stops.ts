@@ -9,8 +9,8 @@ import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
 import { COMPRESSED_AIR_CAUTION, needsCompressedAir, workingPressureFromHead } from '../../shared/domain/compressed-air';
 import { forecastChangeOut, type DriveDirection, type PositionClass } from '../../shared/domain/forecast';
-import { planStops, type StopPlan, type StopPlanCost, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
-import type { StopPlanQuery, StopStatus } from '../../shared/schemas/stop';
+import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
+import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
 import type { DbOrTx } from '../db/client';
 import { crewMembers, crews, cutters, fittings, geologySections, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
 import { notFound } from '../lib/http-error';
@@ -34,10 +34,6 @@ export const defaultStopPlanSettings = {
   wastedRingLifeHPerMm: 0.2,
 };
 
-export type StopPlanSettings = typeof defaultStopPlanSettings & {
-  /** A stop under more groundwater head than this (m above the axis) is worked in compressed air. */
-  compressedAirAboveHeadM: number;
-};
 
 /** The long section as the planner reads it, and how chainage turns into rings. */
 export interface DriveGeology {
@@ -138,44 +134,8 @@ export function buildStopPlanInput(forecast: ProjectForecast, geology: DriveGeol
   };
 }
 
-export interface PlanStopView {
-  chainageM: number;
-  aheadM: number;
-  ringNumber: number;
-  compressedAir: boolean;
-  waterHeadM: number | null;
-  workingPressureBar: number | null;
-  stopH: number;
-  changeH: number;
-  wastedRingLifeH: number;
-  changes: { positionId: string; positionNumber: number; positionClass: PositionClass; limitMm: number; wearAtChangeMm: number; unusedWearMm: number }[];
-  /** An open stop already at this chainage (proposed from the plan before, or by the nightly job). */
-  existingStopId: string | null;
-}
 
-export interface PlanView {
-  cost: StopPlanCost;
-  stops: PlanStopView[];
-}
-
-export interface ProjectStopPlan {
-  now: Date;
-  currentChainageM: number | null;
-  currentRingNumber: number | null;
-  settings: StopPlanSettings;
-  /** Where the plan ends: the horizon, or the end of the known ground if that comes first. */
-  horizonEndChainageM: number | null;
-  candidatePlaceCount: number;
-  /** Why there is no plan, or what limits it. */
-  problems: string[];
-  /** Positions no plan can keep within their limit. */
-  infeasible: { positionId: string; positionNumber: number; dueChainageM: number; reason: string }[];
-  optimised: PlanView | null;
-  hand: PlanView | null;
-  /** Hand plan hours less optimised plan hours. */
-  savingH: number | null;
-  cautions: string[];
-}
+export type ProjectStopPlan = StopPlanView<Date>;
 
 /** The cautions of work in the cutterhead, and of compressed air when it is needed. */
 export const stopCautions = (compressedAir: boolean) => (compressedAir ? [CUTTERHEAD_ENTRY_CAUTION, COMPRESSED_AIR_CAUTION] : [CUTTERHEAD_ENTRY_CAUTION]);

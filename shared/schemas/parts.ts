@@ -106,3 +106,47 @@ export const demandQuerySchema = z.object({
   serviceLevel: z.coerce.number({ message: 'The service level must be a number.' }).min(0.5, 'The service level is at least 0.5.').max(0.999, 'The service level is at most 0.999.').optional(),
 });
 export type DemandQuery = z.infer<typeof demandQuerySchema>;
+
+// ----- what the demand API answers (server/services/parts.ts builds it; the client reads it) -----
+
+/** Where a week's demand comes from: a stop, a due position on no stop, or sudden failures. */
+export interface DemandSource {
+  kind: 'stop' | 'forecast' | 'failures';
+  stopId: string | null;
+  qty: number;
+}
+
+/** An order suggestion for one part (DOMAIN.md §6, worked in weeks). */
+export interface OrderSuggestion {
+  partId: string;
+  code: string;
+  name: string;
+  kind: PartKind;
+  supplier: string;
+  currency: string;
+  unitCost: number;
+  minOrderQty: number;
+  onHand: number;
+  onOrder: number;
+  leadTimeWeeks: number;
+  leadTimeSdWeeks: number;
+  meanWeeklyDemand: number;
+  weeklyDemandSd: number;
+  safetyStock: number;
+  reorderPoint: number;
+  /** Whole weeks the order must bridge (lead time rounded up, at least 1). */
+  leadTimeWindowWeeks: number;
+  leadTimeDemand: number;
+  /** Receipts and rebuilt cutters back within the lead-time window. */
+  dueWithinLeadTime: number;
+  inventoryPosition: number;
+  orderQty: number;
+  orderNow: boolean;
+  orderValue: number;
+  /** On hand ÷ mean weekly demand; null when nothing is demanded in the horizon. */
+  weeksOfCover: number | null;
+  firstShortageWeek: number | null;
+  firstShortageDate: string | null;
+  /** The demand within the lead-time window by source: what makes the order necessary. */
+  sources: DemandSource[];
+}

@@ -1,4 +1,6 @@
 import { z } from 'zod';
+import type { PositionClass } from '../cutters';
+import type { StopPlanCost } from '../domain/stop-planner';
 
 /** A stop's life: proposed → scheduled → in progress → done, or cancelled from any open state. */
 export const stopStatuses = ['proposed', 'scheduled', 'in_progress', 'done', 'cancelled'] as const;
@@ -87,3 +89,65 @@ export const cancelStopInputSchema = z.object({
 export type CancelStopInput = z.infer<typeof cancelStopInputSchema>;
 
 export const stopListQuerySchema = z.object({ status: z.enum(stopStatuses, { message: 'Unknown stop status.' }).optional() });
+
+// ----- what GET /stops/plan answers (server/services/stops.ts builds it; the client reads it) -----
+
+/** The plan's assumptions as the server used them (defaults with any overrides). */
+export interface StopPlanSettings {
+  horizonM: number;
+  freeAirStopH: number;
+  compressedAirStopH: number;
+  changeHByClass: Record<PositionClass, number>;
+  wastedRingLifeHPerMm: number;
+  /** A stop under more groundwater head than this (m above the axis) is worked in compressed air. */
+  compressedAirAboveHeadM: number;
+}
+
+export interface PlanChange {
+  positionId: string;
+  positionNumber: number;
+  positionClass: PositionClass;
+  limitMm: number;
+  wearAtChangeMm: number;
+  unusedWearMm: number;
+}
+
+export interface PlanStop {
+  chainageM: number;
+  aheadM: number;
+  ringNumber: number;
+  compressedAir: boolean;
+  waterHeadM: number | null;
+  workingPressureBar: number | null;
+  stopH: number;
+  changeH: number;
+  wastedRingLifeH: number;
+  changes: PlanChange[];
+  /** An open stop already at this chainage (proposed from the plan before, or by the nightly job). */
+  existingStopId: string | null;
+}
+
+export interface PlanView {
+  cost: StopPlanCost;
+  stops: PlanStop[];
+}
+
+/** The plan; `TDate` is Date on the server and the ISO text the client receives. */
+export interface StopPlanView<TDate = string> {
+  now: TDate;
+  currentChainageM: number | null;
+  currentRingNumber: number | null;
+  settings: StopPlanSettings;
+  /** Where the plan ends: the horizon, or the end of the known ground if that comes first. */
+  horizonEndChainageM: number | null;
+  candidatePlaceCount: number;
+  /** Why there is no plan, or what limits it. */
+  problems: string[];
+  /** Positions no plan can keep within their limit. */
+  infeasible: { positionId: string; positionNumber: number; dueChainageM: number; reason: string }[];
+  optimised: PlanView | null;
+  hand: PlanView | null;
+  /** Hand plan hours less optimised plan hours. */
+  savingH: number | null;
+  cautions: string[];
+}

@@ -1,3 +1,4 @@
+import type { DemandSource, OrderSuggestion } from '../../../shared/schemas/parts';
 import { queryOptions } from '@tanstack/react-query';
 import type { PartKind } from '../../../shared/domain/parts-projection';
 import type { PartInput, PurchaseOrderInput, ReceiveLineInput, StockCountInput, WorkshopSettingsInput } from '../../../shared/schemas/parts';
@@ -29,12 +30,6 @@ export interface PartListItem extends CataloguePart {
   firstShortageDate: string | null;
 }
 
-export interface DemandSource {
-  kind: 'stop' | 'forecast' | 'failures';
-  stopId: string | null;
-  qty: number;
-}
-
 export interface DemandWeek {
   partId: string;
   week: number;
@@ -56,36 +51,6 @@ export interface DemandStop {
   dateBasis: 'planned' | 'p90';
   positionNumbers: number[];
   label: string;
-}
-
-export interface OrderSuggestion {
-  partId: string;
-  code: string;
-  name: string;
-  kind: PartKind;
-  supplier: string;
-  currency: string;
-  unitCost: number;
-  minOrderQty: number;
-  onHand: number;
-  onOrder: number;
-  leadTimeWeeks: number;
-  leadTimeSdWeeks: number;
-  meanWeeklyDemand: number;
-  weeklyDemandSd: number;
-  safetyStock: number;
-  reorderPoint: number;
-  leadTimeWindowWeeks: number;
-  leadTimeDemand: number;
-  dueWithinLeadTime: number;
-  inventoryPosition: number;
-  orderQty: number;
-  orderNow: boolean;
-  orderValue: number;
-  weeksOfCover: number | null;
-  firstShortageWeek: number | null;
-  firstShortageDate: string | null;
-  sources: DemandSource[];
 }
 
 /** GET /parts/demand. */

@@ -1,4 +1,5 @@
-import type { DemandSource, DemandStop } from './api';
+import type { DemandSource } from '../../../shared/schemas/parts';
+import type { DemandStop } from './api';
 
 /** Whole units as they are; expected (fractional) units with one decimal. */
 export const units = (v: number) => (Math.abs(v - Math.round(v)) < 1e-9 ? String(Math.round(v)) : v.toFixed(1));

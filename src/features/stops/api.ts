@@ -1,62 +1,13 @@
 import { queryOptions } from '@tanstack/react-query';
 import type { PositionClass } from '../../../shared/cutters';
-import type { StopPlanCost } from '../../../shared/domain/stop-planner';
-import type { CancelStopInput, CompleteStopInput, CreateStopInput, ScheduleStopInput, StartStopInput, StopPlanQuery, StopStatus } from '../../../shared/schemas/stop';
+import type {
+  CancelStopInput, CompleteStopInput, CreateStopInput, ScheduleStopInput, StartStopInput, StopPlanQuery, StopPlanView, StopStatus,
+} from '../../../shared/schemas/stop';
+export type { PlanChange, PlanStop, PlanView, StopPlanSettings } from '../../../shared/schemas/stop';
 import { api, apiGet } from '../../lib/api-client';
 
-/** The plan's assumptions as the server used them (defaults with any overrides). */
-export interface StopPlanSettings {
-  horizonM: number;
-  freeAirStopH: number;
-  compressedAirStopH: number;
-  changeHByClass: Record<PositionClass, number>;
-  wastedRingLifeHPerMm: number;
-  compressedAirAboveHeadM: number;
-}
-
-export interface PlanChange {
-  positionId: string;
-  positionNumber: number;
-  positionClass: PositionClass;
-  limitMm: number;
-  wearAtChangeMm: number;
-  unusedWearMm: number;
-}
-
-export interface PlanStop {
-  chainageM: number;
-  aheadM: number;
-  ringNumber: number;
-  compressedAir: boolean;
-  waterHeadM: number | null;
-  workingPressureBar: number | null;
-  stopH: number;
-  changeH: number;
-  wastedRingLifeH: number;
-  changes: PlanChange[];
-  existingStopId: string | null;
-}
-
-export interface PlanView {
-  cost: StopPlanCost;
-  stops: PlanStop[];
-}
-
 /** GET /stops/plan. */
-export interface StopPlan {
-  now: string;
-  currentChainageM: number | null;
-  currentRingNumber: number | null;
-  settings: StopPlanSettings;
-  horizonEndChainageM: number | null;
-  candidatePlaceCount: number;
-  problems: string[];
-  infeasible: { positionId: string; positionNumber: number; dueChainageM: number; reason: string }[];
-  optimised: PlanView | null;
-  hand: PlanView | null;
-  savingH: number | null;
-  cautions: string[];
-}
+export type StopPlan = StopPlanView;
 
 export interface Stop {
   id: string;

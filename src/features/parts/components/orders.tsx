@@ -7,7 +7,8 @@ import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { formatDate } from '../../../lib/format';
-import { createOrder, partQueries, receiveLine, type CataloguePart, type OrderLine, type OrderSuggestion, type PurchaseOrder } from '../api';
+import { createOrder, partQueries, receiveLine, type CataloguePart, type OrderLine, type PurchaseOrder } from '../api';
+import type { OrderSuggestion } from '../../../../shared/schemas/parts';
 
 const cellInput = 'block min-h-touch w-24 rounded-md border-2 border-basalt-300 bg-white px-2 aria-[invalid=true]:border-alarm-500';
 

@@ -2,7 +2,8 @@ import { createColumnHelper } from '@tanstack/react-table';
 import { partKindLabels } from '../../../../shared/schemas/parts';
 import { DataTable } from '../../../components/ui/data-table';
 import { Panel } from '../../../components/ui/page';
-import type { CataloguePart, OrderSuggestion, PartsDemand } from '../api';
+import type { OrderSuggestion } from '../../../../shared/schemas/parts';
+import type { CataloguePart, PartsDemand } from '../api';
 import { money, sourceLabel, sourcesText, units } from '../format';
 
 /** "Order now" in words and colour, so the flag reads without colour too. */
