@@ -4,7 +4,7 @@
  */
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 import { makeSpringDowntimeDrive } from '../support/downtime-fixtures';
 import { addMember, makeUser, PASSWORD } from '../support/fixtures';
 
@@ -38,11 +38,7 @@ it('the site manager opens the weekly downtime table', async () => {
   const manager = await makeUser();
   await addMember(project.id, manager.id, 'site_manager');
 
-  const page = await browser.newPage({ viewport: { width: 768, height: 1024 } });
-  await page.goto(`${app.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(manager.email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
+  const page = await signInThroughForm(browser, app.url, manager.email, PASSWORD);
   await page.waitForURL(new RegExp(`/projects/${project.id}$`));
 
   const menu = page.getByRole('button', { name: 'Menu' });

@@ -12,7 +12,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import { db } from '../../server/db/client';
 import { projects } from '../../server/db/schema';
 import { formatChainage } from '../../src/lib/format';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 import { addMember, makeProject, makeUser, PASSWORD } from '../support/fixtures';
 
 const goodLog = path.resolve('tests/fixtures/good-csv/advance-log-comma-iso.csv');
@@ -50,11 +50,7 @@ it('a planner imports an advance log (a bad file first) and a long section, page
   const rows = Papa.parse<Record<string, string>>(readFileSync(goodLog, 'utf8'), { header: true, skipEmptyLines: true }).data;
   expect(rows.length).toBe(12); // the fixture: rings 101–112, one remark spanning two lines
 
-  const page = await browser.newPage({ viewport: { width: 768, height: 1024 } });
-  await page.goto(`${app.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(user.email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
+  const page = await signInThroughForm(browser, app.url, user.email, PASSWORD);
   await page.waitForURL(new RegExp(`/projects/${project.id}$`));
   await page.getByRole('link', { name: 'Advance log' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Advance log');

@@ -5,7 +5,7 @@ import { addMember, makeProject, makeUser, PASSWORD } from '../support/fixtures'
 import { makeCutterhead } from '../support/drive-fixtures';
 import { makeSmallCatalogue } from '../support/parts-fixtures';
 import { insertStop } from '../support/stops-fixtures';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 
 let browser: Browser;
 let app: Awaited<ReturnType<typeof serveApp>>;
@@ -29,11 +29,8 @@ it('the buyer sees an order suggestion caused by a scheduled stop and exports it
   const buyer = await makeUser();
   await addMember(project.id, buyer.id, 'buyer');
 
-  const page = await browser.newPage({ viewport: { width: 768, height: 1024 }, acceptDownloads: true });
-  await page.goto(`${app.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(buyer.email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
+  // Downloads are accepted by default in a new page.
+  const page = await signInThroughForm(browser, app.url, buyer.email, PASSWORD);
   await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
 
   await page.goto(`${app.url}/projects/${project.id}`);
