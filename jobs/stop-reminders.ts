@@ -8,7 +8,7 @@ import { format } from 'date-fns';
 import { and, asc, eq, gt, isNotNull, sql } from 'drizzle-orm';
 import { COMPRESSED_AIR_CAUTION } from '../shared/domain/compressed-air';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../shared/cautions';
-import { formatChainage } from '../shared/format';
+import { formatChainage } from '../shared/domain/chainage';
 import { db } from '../server/db/client';
 import { crewMembers, crews, positions, projects, stopPositions, stopReminders, stops } from '../server/db/schema';
 import { enqueueMail, kickMailDelivery, optedOut } from '../server/lib/mail';

@@ -27,7 +27,8 @@
 import { gaugeBoreCheck, type GaugeBoreCheck } from './gauge-bore';
 
 export type PositionClass = 'centre' | 'face' | 'gauge';
-export type DriveDirection = 'increasing' | 'decreasing';
+export type { DriveDirection } from './chainage';
+import type { DriveDirection } from './chainage';
 export type Quantile = 'p50' | 'p90';
 
 /** Wear rates of one ground type, mm of radial ring wear per km rolled, for a face disc. */

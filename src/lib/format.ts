@@ -1,6 +1,6 @@
 /** Display formats shared by the field screens: chainage as km+m, dates in the site's time zone. */
 
-export { formatChainage } from '../../shared/format';
+export { formatChainage } from '../../shared/domain/chainage';
 
 /** A date (ISO text or Date) as YYYY-MM-DD in `timeZone`. */
 export function formatDate(at: string | Date | null | undefined, timeZone: string): string {

@@ -1,7 +1,7 @@
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 
-export { formatChainage } from '../../../shared/format';
+export { formatChainage } from '../../../shared/domain/chainage';
 
 /** A moment shown in the site's time zone, e.g. "4 Mar 2025 07:40". */
 export const formatSiteTime = (iso: string, timeZone: string) => format(new TZDate(iso, timeZone), 'd MMM yyyy HH:mm');

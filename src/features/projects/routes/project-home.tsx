@@ -1,7 +1,7 @@
 import { useSuspenseQuery } from '@tanstack/react-query';
 import { useParams } from 'react-router';
 import { roleLabels } from '../../../../shared/roles';
-import { formatChainage } from '../../../../shared/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
 import { Page, Panel } from '../../../components/ui/page';
 import { projectQueries } from '../api';
 

@@ -1,0 +1,102 @@
+/**
+ * Site time, in one place. Every date a person reads or types is in the site's IANA time zone
+ * (the project's `siteTimeZone`), whatever zone the server or the browser runs in; instants
+ * cross the wire as ISO 8601 strings. Built on @date-fns/tz (TZDate), never on offset arithmetic
+ * of our own.
+ */
+import { TZDate, tzOffset } from '@date-fns/tz';
+import { addDays, addWeeks, format, getISOWeek, getISOWeekYear, startOfISOWeek } from 'date-fns';
+
+type Instant = string | number | Date;
+
+const toDate = (at: Instant) => (at instanceof Date ? at : new Date(at));
+
+/** The site calendar day (YYYY-MM-DD) of an instant. */
+export function siteDay(at: Instant, timeZone: string): string {
+  return format(new TZDate(toDate(at).getTime(), timeZone), 'yyyy-MM-dd');
+}
+
+/** ISO week ('2026-W13') of an instant in the site's zone. */
+export function siteIsoWeek(at: Instant, timeZone: string): string {
+  const local = new TZDate(toDate(at).getTime(), timeZone);
+  return `${getISOWeekYear(local)}-W${String(getISOWeek(local)).padStart(2, '0')}`;
+}
+
+/** The instant of local 00:00 of a site calendar day (YYYY-MM-DD). */
+export function siteMidnight(day: string, timeZone: string): Date {
+  const [y, m, d] = day.split('-').map(Number);
+  return new Date(new TZDate(y, m - 1, d, 0, 0, timeZone).getTime());
+}
+
+/** The site calendar day `days` after `day` (negative: before). */
+export function addSiteDays(day: string, days: number, timeZone: string): string {
+  const [y, m, d] = day.split('-').map(Number);
+  return siteDay(addDays(new TZDate(y, m - 1, d, 12, 0, timeZone), days), timeZone);
+}
+
+/** The instant the ISO week containing `at` starts (Monday 00:00 site time), plus `weeks` whole weeks. */
+export function siteWeekStart(at: Instant, timeZone: string, weeks = 0): Date {
+  return new Date(addWeeks(startOfISOWeek(new TZDate(toDate(at).getTime(), timeZone)), weeks).getTime());
+}
+
+/**
+ * The instant at which clocks in `timeZone` show the given wall time; null when that wall time
+ * does not exist there (skipped by a spring daylight-saving change) or is not a calendar date.
+ * An autumn wall time that happens twice resolves to the later one (standard time), as TZDate does.
+ */
+export function siteWallTimeToInstant(
+  wall: { year: number; month: number; day: number; hour?: number; minute?: number; second?: number },
+  timeZone: string,
+): Date | null {
+  const { year, month, day, hour = 0, minute = 0, second = 0 } = wall;
+  const local = new TZDate(year, month - 1, day, hour, minute, second, timeZone);
+  if (Number.isNaN(local.getTime())) return null;
+  const back = [local.getFullYear(), local.getMonth() + 1, local.getDate(), local.getHours(), local.getMinutes(), local.getSeconds()];
+  const asked = [year, month, day, hour, minute, second];
+  return back.every((v, i) => v === asked[i]) ? new Date(local.getTime()) : null;
+}
+
+/** The site's UTC offset at an instant, in minutes (east positive). */
+export function siteOffsetMinutes(at: Instant, timeZone: string): number {
+  return tzOffset(timeZone, toDate(at));
+}
+
+/** ISO 8601 to the second with the site's offset then, e.g. 2026-03-14T06:00:00+01:00. */
+export function isoWithSiteOffset(at: Instant, timeZone: string): string {
+  return format(new TZDate(toDate(at).getTime(), timeZone), "yyyy-MM-dd'T'HH:mm:ssXXX");
+}
+
+/** A date as YYYY-MM-DD in the site's zone; '—' when unknown. */
+export function formatSiteDate(at: Instant | null | undefined, timeZone: string): string {
+  if (at == null) return '—';
+  return siteDay(at, timeZone);
+}
+
+/**
+ * A date and time as YYYY-MM-DD HH:mm in the site's zone; with `withZone`, the zone is named
+ * after it ("2026-03-14 06:30 Europe/Zurich") — for mail, exports and screens seen from elsewhere.
+ */
+export function formatSiteDateTime(at: Instant | null | undefined, timeZone: string, options: { withZone?: boolean } = {}): string {
+  if (at == null) return '—';
+  const text = format(new TZDate(toDate(at).getTime(), timeZone), 'yyyy-MM-dd HH:mm');
+  return options.withZone ? `${text} ${timeZone}` : text;
+}
+
+/** An instant as the value of a datetime-local input (YYYY-MM-DDTHH:mm) in the site's zone. */
+export function toSiteInput(at: Instant, timeZone: string): string {
+  return format(new TZDate(toDate(at).getTime(), timeZone), "yyyy-MM-dd'T'HH:mm");
+}
+
+/**
+ * A datetime-local value (YYYY-MM-DDTHH:mm[:ss]) read as site time, as an ISO instant (UTC, "Z");
+ * null when it is not a date and time. A wall time skipped by the spring change comes out an
+ * hour later, as a wall clock would show it.
+ */
+export function fromSiteInput(value: string, timeZone: string): string | null {
+  const m = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})(?::(\d{2}))?$/.exec(value);
+  if (!m) return null;
+  const [y, mo, d, h, mi, s] = m.slice(1).map((v) => Number(v ?? 0));
+  const at = new TZDate(y, mo - 1, d, h, mi, s, timeZone);
+  if (Number.isNaN(at.getTime()) || at.getMonth() !== mo - 1 || at.getDate() !== d) return null;
+  return new Date(at.getTime()).toISOString();
+}
