@@ -1,6 +1,7 @@
 /**
  * `npm start`: the whole product on one port, on a bare machine. Starts (or reuses) a PostgreSQL
- * cluster in `.data/pg` and a local mail catcher unless DATABASE_URL / SMTP_URL name real ones,
+ * cluster in `.data/pg` (installing Debian's postgresql package first when it is missing and we
+ * are root, else stopping with the apt-get command to run) and a local mail catcher unless DATABASE_URL / SMTP_URL name real ones,
  * migrates, loads the demo drive once, builds the client when stale, serves client and API, and
  * runs the scheduled jobs. Ctrl-C stops everything it started.
  */

@@ -1,12 +1,14 @@
 /**
  * Brings up what `npm start`, `npm run dev` and `npm test` need on a bare machine: a PostgreSQL
- * cluster inside the project and a fake SMTP server — each only when DATABASE_URL / SMTP_URL do
- * not name a real one — then applies the migrations.
+ * cluster inside the project (installing Debian's postgresql package first when it is missing and
+ * we are root) and a fake SMTP server — each only when DATABASE_URL / SMTP_URL do not name a real
+ * one — then applies the migrations.
  */
 import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { runMigrations } from '../db/migrate';
+import { ensureDebianPackages } from './debian-packages';
 import { startFakeSmtp } from './fake-smtp';
 import { startLocalPostgres } from './postgres';
 
@@ -40,6 +42,9 @@ export async function bringUpLocalStack(opts: LocalStackOptions): Promise<LocalS
     if (databaseUrl) {
       log('Using the PostgreSQL server named by DATABASE_URL.');
     } else {
+      // A bare Debian machine: install the server package when root, else stop with the command.
+      // Without a log of its own (the test set-up) the installer still prints why it waits.
+      ensureDebianPackages(['postgresql'], { host: opts.log ? { log: opts.log } : {}, alternative: 'Or set DATABASE_URL to an existing PostgreSQL server.' });
       const pg = await startLocalPostgres({ dataDir: opts.dataDir, port: opts.pgPort, database: opts.database, fast: opts.fast, freshDatabase: opts.freshDatabase, log });
       stops.push(pg.stop);
       databaseUrl = pg.url;

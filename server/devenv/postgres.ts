@@ -7,6 +7,7 @@ import { execFileSync, spawnSync } from 'node:child_process';
 import { chmodSync, chownSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
+import { aptGetCommand } from './debian-packages';
 
 export interface LocalPostgres {
   url: string;
@@ -37,8 +38,8 @@ export function findPgBin(): string {
     : [];
   if (versions.length === 0) {
     throw new Error(
-      'PostgreSQL server binaries not found under /usr/lib/postgresql. Install them with ' +
-        '"apt-get install -y postgresql", or set DATABASE_URL to an existing server.',
+      'PostgreSQL server binaries not found under /usr/lib/postgresql. Install them (as root) with ' +
+        `"${aptGetCommand(['postgresql'])}", or set DATABASE_URL to an existing server.`,
     );
   }
   return path.join(root, versions[0], 'bin');

@@ -4,10 +4,16 @@ import type { AddressInfo } from 'node:net';
 import { chromium, type Browser } from 'playwright-core';
 import { createApp } from '../../server/app';
 import { ensureClientBuilt } from '../../server/devenv/client-build';
+import { chromiumPath, ensureDebianPackages } from '../../server/devenv/debian-packages';
 
-export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+export const CHROMIUM = chromiumPath();
 
+/**
+ * Launches Debian's Chromium. Missing, it fails the file's set-up loudly with the apt-get command
+ * (the global set-up installs it when run as root; a worker never installs anything itself).
+ */
 export function launchBrowser(): Promise<Browser> {
+  ensureDebianPackages(['chromium'], { host: { isRoot: () => false } });
   return chromium.launch({
     executablePath: CHROMIUM,
     args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
