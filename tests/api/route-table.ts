@@ -4,7 +4,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { ProjectRole } from '../../shared/roles';
-import { uniq } from '../support/fixtures';
+import { PASSWORD, uniq } from '../support/fixtures';
 import { ensureStopSection, stopIn } from '../support/stops-fixtures';
 
 export interface RouteContext {
@@ -18,6 +18,17 @@ export interface RouteContext {
   /** A proposed stop, and a crew with a member (tests/support/stops-fixtures.ts). */
   stopId: string;
   crewId: string;
+  /** The client key of a recorded position entry (a photo names its entry by it). */
+  entryClientKey: string;
+  /** Ids a row's `prepare` makes fresh for one call; the matrix's defaults name nothing. */
+  memberUserId: string;
+  groundTypeId: string;
+  causeId: string;
+  eventId: string;
+  partId: string;
+  orderId: string;
+  lineId: string;
+  outboxId: string;
 }
 
 export interface RouteCase {
@@ -31,7 +42,11 @@ export interface RouteCase {
   signedIn?: boolean;
   /** A valid body, made fresh for each call. */
   body?: (ctx: RouteContext) => unknown;
-  /** The status a permitted caller gets (default 200). */
+  /** A CSV file sent as the raw body (Content-Type text/csv), for the import routes. */
+  csv?: (ctx: RouteContext) => string;
+  /** A photo upload (multipart): a 1×1 PNG for the entry named by `entryClientKey`. */
+  photo?: boolean;
+  /** The status a permitted caller gets (default 200); always a 2xx — a permitted call must succeed. */
   okStatus?: number;
   /** Makes what one call needs (e.g. a fresh round to close) and overrides path parameters. */
   prepare?: (ctx: RouteContext) => Promise<Partial<RouteContext>>;
@@ -44,7 +59,8 @@ let matrixStops = 0;
 export const routeTable: RouteCase[] = [
   { method: 'get', path: '/api/auth/me', signedIn: true },
   { method: 'get', path: '/api/projects', signedIn: true },
-  { method: 'post', path: '/api/auth/change-password', signedIn: true, body: () => ({ currentPassword: 'wrong on purpose', newPassword: 'long enough new one' }), okStatus: 400 },
+  // The fixture password again as the new one: the change runs (sessions renewed) and later sign-ins still work.
+  { method: 'post', path: '/api/auth/change-password', signedIn: true, body: () => ({ currentPassword: PASSWORD, newPassword: PASSWORD }), okStatus: 204 },
   { method: 'get', path: '/api/projects/:projectId', roles: everyone },
   { method: 'get', path: '/api/admin/users', admin: true },
   { method: 'post', path: '/api/admin/users', admin: true, body: () => ({ email: `${uniq('matrix')}@kerfwise.test`, name: 'Matrix Invitee' }), okStatus: 201 },
@@ -54,10 +70,10 @@ export const routeTable: RouteCase[] = [
   { method: 'patch', path: '/api/admin/projects/:projectId', admin: true, body: () => ({ machineDescription: uniq('machine') }) },
   { method: 'get', path: '/api/admin/projects/:projectId/members', admin: true },
   { method: 'put', path: '/api/admin/projects/:projectId/members/:otherUserId', admin: true, body: () => ({ role: 'buyer' }) },
+  { method: 'delete', path: '/api/admin/projects/:projectId/members/:memberUserId', admin: true, okStatus: 204, prepare: freshMember },
   { method: 'get', path: '/api/admin/mail', admin: true },
   { method: 'get', path: '/api/admin/jobs', admin: true },
-  // No message is uncertain here: a permitted caller gets past the guard to the 404.
-  { method: 'post', path: '/api/admin/outbox/999999999/release', admin: true, okStatus: 404 },
+  { method: 'post', path: '/api/admin/outbox/:outboxId/release', admin: true, okStatus: 202, prepare: uncertainMail },
   { method: 'post', path: '/api/admin/jobs/deliver-mail/run', admin: true },
   { method: 'get', path: '/api/auth/notifications', signedIn: true },
   { method: 'put', path: '/api/auth/notifications', signedIn: true, body: () => ({ kind: 'stop_reminder', enabled: true }) },
@@ -81,17 +97,19 @@ export const routeTable: RouteCase[] = [
   { method: 'post', path: '/api/projects/:projectId/rounds/:roundId/entries', roles: ['fitter', 'planner'], body: (c) => ({ clientKey: randomUUID(), positionId: c.positionId, wearMm: 5.0 }), okStatus: 201 },
   { method: 'post', path: '/api/projects/:projectId/rounds/:roundId/close', roles: ['fitter', 'planner'],
     prepare: async ({ projectId }) => ({ roundId: await openRound(projectId) }) },
-  // Permitted callers get past the guard to the upload check (no file sent → 400).
-  { method: 'post', path: '/api/projects/:projectId/photos', roles: ['fitter', 'planner'], okStatus: 400 },
+  { method: 'post', path: '/api/projects/:projectId/photos', roles: ['fitter', 'planner'], photo: true, okStatus: 201 },
   { method: 'get', path: '/api/projects/:projectId/photos/:photoId', roles: everyone },
   // Drive data
   { method: 'get', path: '/api/projects/:projectId/ground-types', roles: everyone },
   { method: 'post', path: '/api/projects/:projectId/ground-types', roles: ['planner'], body: () => ({ name: uniq('Granite'), cai: 3.9 }), okStatus: 201 },
+  { method: 'patch', path: '/api/projects/:projectId/ground-types/:groundTypeId', roles: ['planner'], body: () => ({ cai: 2.5 }), prepare: freshGroundType },
+  { method: 'delete', path: '/api/projects/:projectId/ground-types/:groundTypeId', roles: ['planner'], okStatus: 204, prepare: freshGroundType },
   { method: 'get', path: '/api/projects/:projectId/geology', roles: everyone },
   { method: 'put', path: '/api/projects/:projectId/geology', roles: ['planner'], body: () => ({ sections: [] }) },
   { method: 'get', path: '/api/projects/:projectId/strokes', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes/daily', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes/export.csv', roles: everyone },
+  { method: 'get', path: '/api/projects/:projectId/strokes/mapping', roles: everyone },
   // Wear fits and forecasts
   { method: 'get', path: '/api/projects/:projectId/wear-fit', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/forecast', roles: everyone },
@@ -102,6 +120,7 @@ export const routeTable: RouteCase[] = [
   // Crews: every member reads them; only the administrator keeps them (and may without being a member).
   { method: 'get', path: '/api/projects/:projectId/crews', roles: everyone },
   { method: 'post', path: '/api/projects/:projectId/crews', admin: true, body: () => ({ name: uniq('Crew'), members: [{ name: 'Ola Berg', email: `${uniq('crew')}@kerfwise.test` }] }), okStatus: 201 },
+  { method: 'put', path: '/api/projects/:projectId/crews/:crewId', admin: true, body: () => ({ name: uniq('Crew'), members: [{ name: 'Ola Berg', email: `${uniq('crew')}@kerfwise.test` }] }) },
   // Intervention stops: everyone reads; the planner plans, schedules, publishes and cancels; fitters and planners run them.
   { method: 'get', path: '/api/projects/:projectId/stops/plan', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/stops', roles: everyone },
@@ -119,10 +138,9 @@ export const routeTable: RouteCase[] = [
   { method: 'post', path: '/api/projects/:projectId/stops/:stopId/cancel', roles: ['planner'], body: () => ({ reason: 'Matrix: plan changed' }),
     prepare: async ({ projectId, crewId }) => ({ stopId: await stopIn(projectId, crewId, 'proposed') }) },
   // Downtime: planners, buyers and site managers read; site managers and planners keep events, causes and settings.
-  // Routes naming one cause or event get a well-formed id that names none: permitted callers pass the guard and get 404.
   { method: 'get', path: '/api/projects/:projectId/downtime/causes', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'post', path: '/api/projects/:projectId/downtime/causes', roles: ['site_manager', 'planner'], body: () => ({ name: uniq('Cause'), cutterWork: false }), okStatus: 201 },
-  { method: 'patch', path: '/api/projects/:projectId/downtime/causes/00000000-0000-4000-8000-000000000000', roles: ['site_manager', 'planner'], body: () => ({ active: false }), okStatus: 404 },
+  { method: 'patch', path: '/api/projects/:projectId/downtime/causes/:causeId', roles: ['site_manager', 'planner'], body: () => ({ active: false }), prepare: freshCause },
   { method: 'get', path: '/api/projects/:projectId/downtime/settings', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'put', path: '/api/projects/:projectId/downtime/settings', roles: ['site_manager', 'planner'], body: () => ({ shifts: [{ name: 'Day', start: '06:00' }, { name: 'Night', start: '18:00' }], labourRatePerHour: 90, gapMinutes: 90 }) },
   { method: 'get', path: '/api/projects/:projectId/downtime/events', roles: ['planner', 'buyer', 'site_manager'] },
@@ -131,31 +149,42 @@ export const routeTable: RouteCase[] = [
     const startMs = Date.UTC(2027, 0, 1) + (matrixEvents++) * 3_600_000;
     return { startAt: new Date(startMs).toISOString(), endAt: new Date(startMs + 1_800_000).toISOString() };
   } },
-  { method: 'put', path: '/api/projects/:projectId/downtime/events/00000000-0000-4000-8000-000000000000', roles: ['site_manager', 'planner'], body: () => ({ startAt: '2027-02-01T08:00:00Z', endAt: '2027-02-01T09:00:00Z' }), okStatus: 404 },
-  { method: 'delete', path: '/api/projects/:projectId/downtime/events/00000000-0000-4000-8000-000000000000', roles: ['site_manager', 'planner'], okStatus: 404 },
+  // The edit moves the event 15 minutes within its own hour, so it never meets another matrix event.
+  { method: 'put', path: '/api/projects/:projectId/downtime/events/:eventId', roles: ['site_manager', 'planner'], prepare: freshEvent, body: () => {
+    const startMs = Date.UTC(2027, 0, 1) + (matrixEvents - 1) * 3_600_000 + 900_000;
+    return { startAt: new Date(startMs).toISOString(), endAt: new Date(startMs + 1_800_000).toISOString() };
+  } },
+  { method: 'delete', path: '/api/projects/:projectId/downtime/events/:eventId', roles: ['site_manager', 'planner'], okStatus: 204, prepare: freshEvent },
   { method: 'post', path: '/api/projects/:projectId/downtime/propose-from-gaps', roles: ['site_manager', 'planner'] },
   { method: 'get', path: '/api/projects/:projectId/downtime/report', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'get', path: '/api/projects/:projectId/downtime/report?format=csv&table=shift', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'get', path: '/api/projects/:projectId/downtime/cost', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'get', path: '/api/projects/:projectId/downtime/cost?format=csv&table=ground', roles: ['planner', 'buyer', 'site_manager'] },
   // Parts: planners, buyers and site managers read; the buyer keeps the catalogue, stock, orders and workshop loop.
-  // Rows naming a part, order or line read the ids their `prepare` made (partsIds, below) when the path is filled.
+  // Rows naming a part, order or line use the ids their `prepare` made for that call.
   { method: 'get', path: '/api/projects/:projectId/parts', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'post', path: '/api/projects/:projectId/parts', roles: ['buyer'], okStatus: 201, body: () => ({ code: uniq('P'), name: 'Matrix seal kit', kind: 'seal-kit', unitCost: 95, leadTimeMeanDays: 21 }) },
-  { method: 'put', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}`; }, roles: ['buyer'], prepare: partsRecords,
+  { method: 'put', path: '/api/projects/:projectId/parts/:partId', roles: ['buyer'], prepare: partsRecords,
     body: () => ({ code: uniq('P'), name: 'Matrix ring', kind: 'ring', discSizeIn: 17, unitCost: 400, leadTimeMeanDays: 28 }) },
-  { method: 'delete', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}`; }, roles: ['buyer'], okStatus: 204, prepare: partsRecords },
-  { method: 'post', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}/count`; }, roles: ['buyer'], prepare: partsRecords, body: () => ({ countedQty: 5 }) },
-  { method: 'get', get path() { return `/api/projects/:projectId/parts/${partsIds.partId}/movements`; }, roles: ['planner', 'buyer', 'site_manager'], prepare: partsRecords },
+  { method: 'delete', path: '/api/projects/:projectId/parts/:partId', roles: ['buyer'], okStatus: 204, prepare: partsRecords },
+  { method: 'post', path: '/api/projects/:projectId/parts/:partId/count', roles: ['buyer'], prepare: partsRecords, body: () => ({ countedQty: 5 }) },
+  { method: 'get', path: '/api/projects/:projectId/parts/:partId/movements', roles: ['planner', 'buyer', 'site_manager'], prepare: partsRecords },
   { method: 'get', path: '/api/projects/:projectId/parts/workshop', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'put', path: '/api/projects/:projectId/parts/workshop', roles: ['buyer'], body: () => ({ turnaroundDays: 14, maxRebuilds: 3, serviceLevel: 0.95, boms: {} }) },
   { method: 'get', path: '/api/projects/:projectId/parts/demand?weeks=4', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'get', path: '/api/projects/:projectId/parts/demand/suggestions.csv', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'get', path: '/api/projects/:projectId/parts/orders', roles: ['planner', 'buyer', 'site_manager'] },
   { method: 'post', path: '/api/projects/:projectId/parts/orders', roles: ['buyer'], okStatus: 201, prepare: partsRecords,
-    body: () => ({ number: uniq('PO'), lines: [{ partId: partsIds.partId, qtyOrdered: 5, dueDate: '2027-03-01' }] }) },
-  { method: 'get', get path() { return `/api/projects/:projectId/parts/orders/${partsIds.orderId}`; }, roles: ['planner', 'buyer', 'site_manager'], prepare: partsRecords },
-  { method: 'post', get path() { return `/api/projects/:projectId/parts/orders/${partsIds.orderId}/lines/${partsIds.lineId}/receive`; }, roles: ['buyer'], prepare: partsRecords, body: () => ({ qty: 1 }) },
+    body: (c) => ({ number: uniq('PO'), lines: [{ partId: c.partId, qtyOrdered: 5, dueDate: '2027-03-01' }] }) },
+  { method: 'get', path: '/api/projects/:projectId/parts/orders/:orderId', roles: ['planner', 'buyer', 'site_manager'], prepare: partsRecords },
+  { method: 'post', path: '/api/projects/:projectId/parts/orders/:orderId/lines/:lineId/receive', roles: ['buyer'], prepare: partsRecords, body: () => ({ qty: 1 }) },
+  // Imports last: they replace the long section and add strokes, which the rows above do not expect.
+  // Invented files in the layout of tests/fixtures/good-csv; only the planner may import, so each runs once.
+  { method: 'post', path: '/api/projects/:projectId/geology/import', roles: ['planner'], okStatus: 201,
+    csv: () => 'Chainage from (m),Chainage to (m),Ground type,Water head above axis (m),Stop allowed,Stop reason\n0,600,Matrix marl,12,yes,\n600,3000,Matrix sandstone,20,yes,\n' },
+  { method: 'post', path: '/api/projects/:projectId/strokes/import', roles: ['planner'], okStatus: 201,
+    csv: () => 'Ring,Start time,End time,Chainage start (m),Chainage end (m),Cutterhead revolutions,Penetration (mm/rev)\n'
+      + '1,2026-03-14T06:00:00+01:00,2026-03-14T06:37:00+01:00,0.0,1.5,190,7.9\n2,2026-03-14T07:00:00+01:00,2026-03-14T07:34:00+01:00,1.5,3.0,179,8.4\n' },
 ];
 
 /** Each downtime event of the matrix in its own hour (events may not overlap); read only when a row's body is made. */
@@ -175,9 +204,6 @@ async function openRound(projectId: string) {
   return r.id;
 }
 
-/** The part, order and line the parts rows name; the matrix fills only the context's keys, so these are read by `path`. */
-const partsIds = { partId: ':partId', orderId: ':orderId', lineId: ':lineId' };
-
 /** A fresh part with an order line of 10 for one call (fresh, so a delete or receipt never finds it used up). */
 async function partsRecords({ projectId }: RouteContext): Promise<Partial<RouteContext>> {
   const { db } = await import('../../server/db/client');
@@ -187,6 +213,47 @@ async function partsRecords({ projectId }: RouteContext): Promise<Partial<RouteC
   const [line] = await db.insert(purchaseOrderLines).values({ purchaseOrderId: order.id, partId: part.id, qtyOrdered: 10, dueDate: '2027-03-01' }).returning();
   // The delete row needs a part without an order line: the order is on a second part.
   const [spare] = await db.insert(parts).values({ projectId, code: uniq('M'), name: 'Matrix part, unordered', kind: 'small-part', unitCost: '1.00', leadTimeMeanDays: 7 }).returning();
-  Object.assign(partsIds, { partId: spare.id, orderId: order.id, lineId: line.id });
-  return {};
+  return { partId: spare.id, orderId: order.id, lineId: line.id };
+}
+
+/** A user who is a member (fitter) of the project, for the row that removes a membership. */
+async function freshMember({ projectId }: RouteContext): Promise<Partial<RouteContext>> {
+  const { addMember, makeUser } = await import('../support/fixtures');
+  const user = await makeUser();
+  await addMember(projectId, user.id, 'fitter');
+  return { memberUserId: user.id };
+}
+
+/** A ground type no section uses (a used one may not be deleted). */
+async function freshGroundType({ projectId }: RouteContext): Promise<Partial<RouteContext>> {
+  const { db } = await import('../../server/db/client');
+  const { groundTypes } = await import('../../server/db/schema');
+  const [g] = await db.insert(groundTypes).values({ projectId, name: uniq('Matrix ground'), cai: 3 }).returning();
+  return { groundTypeId: g.id };
+}
+
+async function freshCause({ projectId }: RouteContext): Promise<Partial<RouteContext>> {
+  const { db } = await import('../../server/db/client');
+  const { downtimeCauses } = await import('../../server/db/schema');
+  const [c] = await db.insert(downtimeCauses).values({ projectId, name: uniq('Matrix cause') }).returning();
+  return { causeId: c.id };
+}
+
+/** A half-hour event in an hour of its own (events may not overlap). */
+async function freshEvent({ projectId }: RouteContext): Promise<Partial<RouteContext>> {
+  const { db } = await import('../../server/db/client');
+  const { downtimeEvents } = await import('../../server/db/schema');
+  const startMs = Date.UTC(2027, 0, 1) + (matrixEvents++) * 3_600_000;
+  const [e] = await db.insert(downtimeEvents).values({ projectId, startAt: new Date(startMs), endAt: new Date(startMs + 1_800_000) }).returning();
+  return { eventId: e.id };
+}
+
+/** A message claimed 20 minutes ago and never marked sent: delivery uncertain (decision 8). */
+async function uncertainMail(): Promise<Partial<RouteContext>> {
+  const { db } = await import('../../server/db/client');
+  const { outbox } = await import('../../server/db/schema');
+  const [m] = await db.insert(outbox).values({
+    kind: 'matrix', toAddresses: [`${uniq('matrix')}@kerfwise.test`], subject: 'Matrix: uncertain delivery', textBody: 'Matrix.', claimedAt: new Date(Date.now() - 20 * 60_000),
+  }).returning();
+  return { outboxId: String(m.id) };
 }
