@@ -114,7 +114,12 @@ export function ensureDebianPackages(wanted: readonly DebianPackage[], opts: { h
   }
   const still = missing.filter((p) => !host.isPresent(p));
   if (still.length > 0) {
-    throw new MissingPackagesError(`apt-get installed ${still.join(', ')} but ${still.map((p) => packages[p].what).join(' and ')} still cannot be found.`, still);
+    const overrides = [process.env.PG_BIN && `PG_BIN=${process.env.PG_BIN}`, process.env.CHROMIUM_PATH && `CHROMIUM_PATH=${process.env.CHROMIUM_PATH}`].filter(Boolean);
+    throw new MissingPackagesError(
+      `apt-get installed ${still.join(', ')} but ${still.map((p) => packages[p].what).join(' and ')} still cannot be found` +
+        `${overrides.length ? ` (the environment sets ${overrides.join(', ')}; unset it to use Debian's)` : ''}.`,
+      still,
+    );
   }
   host.log(`Installed ${missing.join(', ')} in ${Math.round((Date.now() - started) / 1000)} s.`);
 }
