@@ -1,13 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import {
-  COMPRESSED_AIR_CAUTION, DEFAULT_COMPRESSED_AIR_THRESHOLD, FRESH_WATER_DENSITY_KG_PER_M3, STANDARD_GRAVITY_M_PER_S2,
-  needsCompressedAir, workingPressureFromHead,
-} from '../../shared/domain/compressed-air';
+import { COMPRESSED_AIR_CAUTION, needsCompressedAir, workingPressureFromHead } from '../../shared/domain/compressed-air';
 
 describe('workingPressureFromHead (DOMAIN.md §7: p = ρ·g·h)', () => {
   it('uses standard gravity and fresh water by default', () => {
-    expect(STANDARD_GRAVITY_M_PER_S2).toBe(9.80665); // 3rd CGPM (1901), ISO 80000-3
-    expect(FRESH_WATER_DENSITY_KG_PER_M3).toBe(1000); // fresh water, common practice, no source
+    // derived: standard gravity g_n = 9.80665 m/s² (3rd CGPM 1901, ISO 80000-3) × 1000 kg/m³
+    // (fresh water, common practice, no source) × 1 m = 9806.65 Pa = 9.80665 kPa.
+    expect(workingPressureFromHead(1).pressureKPa).toBeCloseTo(9.80665, 12);
+    for (const headM of [0.3, 7, 41.25]) {
+      expect(workingPressureFromHead(headM).pressureKPa).toBeCloseTo(workingPressureFromHead(headM, 1000).pressureKPa, 12);
+    }
   });
 
   it('gives 0.980665 bar (98.0665 kPa) for 10 m of fresh water', () => {
@@ -38,8 +39,9 @@ describe('workingPressureFromHead (DOMAIN.md §7: p = ρ·g·h)', () => {
 
 describe('needsCompressedAir', () => {
   it('by default asks for air wherever groundwater stands above the axis', () => {
-    expect(DEFAULT_COMPRESSED_AIR_THRESHOLD).toEqual({ headAboveAxisM: 0 }); // common practice, no source
+    // Default threshold: any head above the axis (common practice, no source).
     expect(needsCompressedAir(0.5)).toBe(true);
+    expect(needsCompressedAir(0.01)).toBe(true);
     expect(needsCompressedAir(0)).toBe(false);
     expect(needsCompressedAir(-2)).toBe(false);
   });
