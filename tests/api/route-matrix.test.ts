@@ -8,6 +8,8 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { projectRoles, type ProjectRole } from '../../shared/roles';
 import { createApp } from '../../server/app';
 import { randomUUID } from 'node:crypto';
+import { readdirSync, readFileSync } from 'node:fs';
+import path from 'node:path';
 import { db } from '../../server/db/client';
 import { entrySubmissions, inspectionEntries, inspectionRounds, photos } from '../../server/db/schema';
 import { storeFile } from '../../server/lib/storage';
@@ -52,6 +54,7 @@ beforeAll(async () => {
     ...(await stopContext(project.id)),
     // Made fresh by the rows that use them (route-table.ts, `prepare`); these name nothing.
     memberUserId: nothing, groundTypeId: nothing, causeId: nothing, eventId: nothing, partId: nothing, orderId: nothing, lineId: nothing, outboxId: '999999999',
+    jobName: 'deliver-mail',
   };
   agents.set('anonymous', request.agent(app));
   agents.set('admin', await signedInAgent(app, (await makeUser({ isAdmin: true })).email));
@@ -118,4 +121,30 @@ it('the project list shows only the caller’s drives', async () => {
   const res = await agents.get('outsider')!.get('/api/projects');
   expect(res.status).toBe(200);
   expect(res.body.map((p: { id: string }) => p.id)).toEqual([foreignProjectId]);
+});
+
+/** Routes anyone may call (signing in, resetting a password, health); tests/api/auth.test.ts covers them. */
+const publicRoutes = ['post /api/auth/sign-in', 'post /api/auth/sign-out', 'post /api/auth/password-reset', 'post /api/auth/set-password', 'get /api/health'];
+
+it('the route table names every route the server registers, and only those', () => {
+  // Read from the source (Express 5 keeps no path strings): the mounts in server/app.ts and each
+  // router's `xRouter.get('/path', …)` lines in server/routes/*.ts.
+  const norm = (p: string) => p.replace(/\?.*$/, '').replace(/:[A-Za-z]+/g, ':id').replace(/(.)\/$/, '$1');
+  const app = readFileSync('server/app.ts', 'utf8');
+  const mounts = new Map<string, string>();
+  for (const [, prefix, router] of app.matchAll(/api\.use\('([^']+)',\s*(\w+Router)\)/g)) mounts.set(router, `/api${prefix}`);
+  const registered = new Set<string>();
+  for (const file of readdirSync('server/routes').filter((f) => f.endsWith('.ts'))) {
+    const source = readFileSync(path.join('server/routes', file), 'utf8');
+    for (const [, router, method, sub] of source.matchAll(/^(\w+Router)\.(get|post|put|patch|delete)\('([^']*)'/gm)) {
+      const prefix = mounts.get(router);
+      if (prefix === undefined) throw new Error(`${router} in ${file} is not mounted in server/app.ts`);
+      registered.add(`${method} ${norm(prefix + sub)}`);
+    }
+  }
+  expect(registered.size).toBeGreaterThan(90); // a parse that finds nothing must not pass
+  const inTable = new Set(routeTable.map((r) => `${r.method} ${norm(r.path)}`));
+  const missing = [...registered].filter((r) => !inTable.has(r) && !publicRoutes.includes(r));
+  const unknown = [...inTable].filter((r) => !registered.has(r));
+  expect({ missing, unknown }).toEqual({ missing: [], unknown: [] });
 });

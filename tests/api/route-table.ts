@@ -29,6 +29,8 @@ export interface RouteContext {
   orderId: string;
   lineId: string;
   outboxId: string;
+  /** A scheduled job's name (jobs/index.ts). */
+  jobName: string;
 }
 
 export interface RouteCase {
@@ -74,7 +76,7 @@ export const routeTable: RouteCase[] = [
   { method: 'get', path: '/api/admin/mail', admin: true },
   { method: 'get', path: '/api/admin/jobs', admin: true },
   { method: 'post', path: '/api/admin/outbox/:outboxId/release', admin: true, okStatus: 202, prepare: uncertainMail },
-  { method: 'post', path: '/api/admin/jobs/deliver-mail/run', admin: true },
+  { method: 'post', path: '/api/admin/jobs/:jobName/run', admin: true },
   { method: 'get', path: '/api/auth/notifications', signedIn: true },
   { method: 'put', path: '/api/auth/notifications', signedIn: true, body: () => ({ kind: 'stop_reminder', enabled: true }) },
 

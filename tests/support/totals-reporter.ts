@@ -1,4 +1,4 @@
-import type { Reporter, TestModule, TestSpecification } from 'vitest/node';
+import type { Reporter, TestCase, TestModule, TestSpecification, TestSuite } from 'vitest/node';
 
 /** Totals of one run; a failed module never reads as passed or skipped. */
 export interface Totals {
@@ -8,26 +8,34 @@ export interface Totals {
 }
 
 /**
- * Counts the tests of a run. A module that failed — it did not load, or a beforeAll/afterAll hook
- * threw — counts every test of it that did not pass as failed (a test skipped because its setup
- * failed was never run, which is a failure, not a skip); a failed module whose tests all passed
- * (or that has none) counts as one failure. Unhandled errors count one each.
+ * Counts the tests of a run. A test that did not run because a set-up around it failed — its
+ * file did not load, or a beforeAll/afterAll of its file or of a describe around it threw — is a
+ * failure, not a skip. A failed module with no such test (e.g. it has no tests, or only its last
+ * afterAll threw) counts as one failure. Tests skipped on purpose (`it.skip`, `-t` filters) stay
+ * skipped. Unhandled errors count one each.
  */
 export function countTotals(testModules: ReadonlyArray<TestModule>, unhandledErrors: ReadonlyArray<unknown>): Totals {
   const totals: Totals = { passed: 0, failed: 0, skipped: 0 };
   for (const mod of testModules) {
-    const moduleFailed = mod.state() === 'failed';
-    let notPassed = 0;
+    let failedHere = 0;
     for (const t of mod.children.allTests()) {
       const state = t.result().state;
       if (state === 'passed') totals.passed++;
-      else if (state === 'failed' || moduleFailed) notPassed++;
+      else if (state === 'failed' || setUpFailed(t)) failedHere++;
       else totals.skipped++;
     }
-    totals.failed += moduleFailed ? Math.max(notPassed, 1) : notPassed;
+    totals.failed += mod.state() === 'failed' ? Math.max(failedHere, 1) : failedHere;
   }
   totals.failed += unhandledErrors.length;
   return totals;
+}
+
+/** True when the test's module or a describe around it carries an error of its own (load or hook). */
+function setUpFailed(test: TestCase): boolean {
+  for (let parent: TestSuite | TestModule = test.parent; ; parent = parent.parent) {
+    if (parent.errors().length > 0) return true;
+    if (parent.type === 'module') return false;
+  }
 }
 
 export const formatTotals = ({ passed, failed, skipped }: Totals) => `${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`;
