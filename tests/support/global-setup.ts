@@ -4,7 +4,7 @@
  * server; DATABASE_URL and SMTP_URL are ignored here so a run never touches real data or mail.
  * On a bare Debian machine, run as root, it first installs PostgreSQL's server package and — when
  * the run includes browser tests — Chromium (server/devenv/debian-packages.ts); as another user
- * it stops with the apt-get command to run.
+ * the run stops (PostgreSQL) or every browser test fails (Chromium) with the apt-get command to run.
  */
 import type { TestProject } from 'vitest/node';
 import { ensureDebianPackages } from '../../server/devenv/debian-packages';
