@@ -3,14 +3,15 @@
  * downtime by cause, in the site's time zone — hours, share and running share, the cutter-work
  * share, utilisation and advance — and how many standstills still wait for a cause.
  */
-import { and, asc, eq } from 'drizzle-orm';
+import { asc, eq } from 'drizzle-orm';
 import type { DowntimeReport } from '../shared/schemas/downtime';
 import { db } from '../server/db/client';
-import { memberships, projects, users } from '../server/db/schema';
-import { env } from '../server/env';
-import { enqueueMail, kickMailDelivery, optedOut } from '../server/lib/mail';
+import { projects } from '../server/db/schema';
+import { configuredAppUrl } from '../server/lib/app-url';
+import { enqueueMail, kickMailDelivery } from '../server/lib/mail';
 import { buildDowntimeReport, previousIsoWeek } from '../server/services/downtime';
 import type { JobContext } from '../server/services/job-runner';
+import { recipientsFor } from '../server/services/recipients';
 
 const pct = (share: number) => `${(share * 100).toFixed(1)} %`;
 const escapeHtml = (s: string) => s.replace(/[&<>"]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' })[c]!);
@@ -60,17 +61,11 @@ export async function downtimeDigestJob({ now }: JobContext, options: { projectI
   let mails = 0;
   for (const drive of drives) {
     const queued = await db.transaction(async (tx) => {
-      const managers = await tx
-        .select({ id: users.id, email: users.email })
-        .from(memberships)
-        .innerJoin(users, eq(users.id, memberships.userId))
-        .where(and(eq(memberships.projectId, drive.id), eq(memberships.role, 'site_manager'), eq(users.active, true)));
-      const off = await optedOut(tx, managers.map((m) => m.id), 'downtime_digest');
-      const to = managers.filter((m) => !off.has(m.id)).map((m) => m.email);
+      const to = (await recipientsFor(tx, drive.id, 'downtime_digest')).map((r) => r.email);
       if (to.length === 0) return 0;
       const week = previousIsoWeek(now, drive.siteTimeZone);
       const report = await buildDowntimeReport(tx, drive, week);
-      const appUrl = env().APP_URL?.replace(/\/$/, '');
+      const appUrl = configuredAppUrl();
       const link = appUrl ? `${appUrl}/projects/${drive.id}/downtime/report?from=${week.from}&to=${week.to}` : null;
       const { text, html } = digestBodies(drive.name, week.isoWeek, report, link);
       const subject = `${drive.name}: downtime in week ${week.isoWeek} — ${report.downtimeHours.toFixed(1)} h, cutter work ${pct(report.cutterWorkShare)}`;

@@ -54,10 +54,6 @@ export const jobs: JobDefinition[] = [
   },
 ];
 
-export function findJob(name: string): JobDefinition | undefined {
-  return jobs.find((j) => j.name === name);
-}
-
 /** Schedules every job and catches up missed runs (in the background). Returns a stop function. */
 export function startJobs(): () => void {
   const tasks: ScheduledTask[] = jobs.map((job) =>

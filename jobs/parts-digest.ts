@@ -5,11 +5,12 @@
  */
 import { and, eq, exists } from 'drizzle-orm';
 import { db } from '../server/db/client';
-import { memberships, parts, projects, users } from '../server/db/schema';
-import { env } from '../server/env';
-import { enqueueMail, kickMailDelivery, optedOut } from '../server/lib/mail';
+import { parts, projects } from '../server/db/schema';
+import { configuredAppUrl } from '../server/lib/app-url';
+import { enqueueMail, kickMailDelivery } from '../server/lib/mail';
 import type { JobContext } from '../server/services/job-runner';
 import { computePartsDemand, sourcesText, type PartsDemand } from '../server/services/parts';
+import { recipientsFor } from '../server/services/recipients';
 
 /** Weeks the digest looks ahead (about a quarter: longer than most lead times; common practice, no source). */
 export const DIGEST_WEEKS = 12;
@@ -59,16 +60,10 @@ export async function partsDigestJob({ now }: JobContext, options: { projectId?:
   let sent = 0;
   for (const drive of drives) {
     sent += await db.transaction(async (tx) => {
-      const buyers = await tx
-        .select({ id: users.id, email: users.email })
-        .from(memberships)
-        .innerJoin(users, eq(users.id, memberships.userId))
-        .where(and(eq(memberships.projectId, drive.id), eq(memberships.role, 'buyer'), eq(users.active, true)));
-      const off = await optedOut(tx, buyers.map((b) => b.id), 'parts_digest');
-      const to = buyers.filter((b) => !off.has(b.id));
+      const to = await recipientsFor(tx, drive.id, 'parts_digest');
       if (to.length === 0) return 0;
       const demand = await computePartsDemand(tx, drive.id, now, { weeks: DIGEST_WEEKS });
-      const appUrl = env().APP_URL?.replace(/\/$/, '');
+      const appUrl = configuredAppUrl();
       const { subject, text } = partsDigestText(drive.name, demand, appUrl ? `${appUrl}/projects/${drive.id}/parts` : null);
       // One message per buyer: buyers do not see each other's addresses.
       for (const b of to) await enqueueMail(tx, { kind: 'parts_digest', projectId: drive.id, to: [b.email], subject, text });

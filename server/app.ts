@@ -8,7 +8,7 @@ import { env } from './env';
 import { logger } from './lib/logger';
 import { loadUser } from './middleware/auth';
 import { apiNotFound, errorHandler } from './middleware/error';
-import { adminRouter } from './routes/admin';
+import { adminRouter, createAdminJobsRouter } from './routes/admin';
 import { authRouter } from './routes/auth';
 import { crewsRouter } from './routes/crews';
 import { cuttersRouter } from './routes/cutters';
@@ -23,10 +23,16 @@ import { projectsRouter } from './routes/projects';
 import { roundsRouter } from './routes/rounds';
 import { stopsRouter } from './routes/stops';
 import { strokesRouter } from './routes/strokes';
+import type { JobDefinition } from './services/job-runner';
 
 export interface AppOptions {
   /** The built client (`dist/`) to serve beside the API; omitted in API-only tests and `npm run dev`. */
   clientDir?: string;
+  /**
+   * The scheduled jobs the administrator may list and run (jobs/index.ts's registry, passed in by
+   * the entries; the server does not import jobs/). Without it the app has no jobs to offer.
+   */
+  jobs?: readonly JobDefinition[];
 }
 
 /** Builds the Express app; `listen` happens elsewhere (server/index.ts, server/start.ts, tests). */
@@ -58,6 +64,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use('/projects/:projectId/stops', stopsRouter);
   api.use('/projects/:projectId/downtime', downtimeRouter);
   api.use('/projects/:projectId/parts', partsRouter);
+  api.use('/admin/jobs', createAdminJobsRouter(options.jobs ?? []));
   api.use('/admin', adminRouter);
   api.use(apiNotFound);
   app.use('/api', api);

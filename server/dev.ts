@@ -17,9 +17,9 @@ const { env } = await import('./env');
 const { db } = await import('./db/client');
 const { seedDemo } = await import('./db/seed-demo');
 const { createApp } = await import('./app');
-const { startJobs } = await import('../jobs/index');
+const { jobs, startJobs } = await import('../jobs/index');
 await seedDemo(db);
-const server = createApp().listen(env().PORT, '127.0.0.1');
+const server = createApp({ jobs }).listen(env().PORT, '127.0.0.1');
 const stopJobs = startJobs();
 const vite = spawn(process.execPath, ['node_modules/vite/bin/vite.js'], { stdio: 'inherit' });
 

@@ -7,9 +7,9 @@ import { loadDotEnv } from './env';
 loadDotEnv();
 const { env } = await import('./env');
 const { createApp } = await import('./app');
-const { startJobs } = await import('../jobs/index');
+const { jobs, startJobs } = await import('../jobs/index');
 const { logger } = await import('./lib/logger');
 
 const port = env().PORT;
-createApp({ clientDir: 'dist' }).listen(port, () => logger.info(`Kerfwise listening on port ${port}`));
+createApp({ clientDir: 'dist', jobs }).listen(port, () => logger.info(`Kerfwise listening on port ${port}`));
 startJobs();

@@ -46,14 +46,14 @@ try {
   const { db } = await import('./db/client');
   const { seedDemo, demoUsers, DEMO_PASSWORD } = await import('./db/seed-demo');
   const { createApp } = await import('./app');
-  const { startJobs } = await import('../jobs/index');
+  const { jobs, startJobs } = await import('../jobs/index');
 
   const demo = await seedDemo(db);
   log(demo.created ? 'Demo drive loaded.' : 'Demo drive already present; left as it is.');
   ensureClientBuilt('.', log);
 
   const port = env().PORT;
-  server = createApp({ clientDir: 'dist' }).listen(port, '127.0.0.1');
+  server = createApp({ clientDir: 'dist', jobs }).listen(port, '127.0.0.1');
   await new Promise<void>((resolve, reject) => {
     server!.once('listening', resolve);
     server!.once('error', reject);

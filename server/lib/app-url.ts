@@ -5,3 +5,8 @@ import { env } from '../env';
 export function appUrl(req: Request): string {
   return (env().APP_URL ?? `${req.protocol}://${req.get('host')}`).replace(/\/$/, '');
 }
+
+/** APP_URL without a trailing slash, for links in mail sent by jobs (no request to fall back on); null when unset. */
+export function configuredAppUrl(): string | null {
+  return env().APP_URL?.replace(/\/$/, '') ?? null;
+}

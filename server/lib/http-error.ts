@@ -1,12 +1,13 @@
-/** An error the error middleware turns into an HTTP answer with a message a person can act on. */
-/** One problem with the input; file imports add the row and column it is in. */
-export interface Issue {
-  path: string;
-  message: string;
-  row?: number;
-  column?: string;
-}
+/**
+ * HTTP answers for routes and middleware that have no domain meaning (401, 403, 413, 415, 429).
+ * Not found, conflict and bad input are the typed errors of ./errors.ts, which services throw too;
+ * the helpers below make them, so a route reads the same either way.
+ */
+import { ConflictError, InvalidInputError, NotFoundError, type Issue } from './errors';
 
+export type { Issue } from './errors';
+
+/** An error the error middleware turns into an HTTP answer with a message a person can act on. */
 export class HttpError extends Error {
   constructor(
     readonly status: number,
@@ -19,7 +20,7 @@ export class HttpError extends Error {
   }
 }
 
-export const notFound = (what = 'That record') => new HttpError(404, `${what} was not found, or you do not have access to it.`);
+export const notFound = (what = 'That record') => new NotFoundError(what);
 export const forbidden = (message = 'Your role on this project does not allow that.') => new HttpError(403, message);
-export const conflict = (message: string) => new HttpError(409, message);
-export const badRequest = (message: string, issues: Issue[] = []) => new HttpError(400, message, issues);
+export const conflict = (message: string) => new ConflictError(message);
+export const badRequest = (message: string, issues: Issue[] = []) => new InvalidInputError(message, issues);

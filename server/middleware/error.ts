@@ -1,6 +1,7 @@
 import type { NextFunction, Request, Response } from 'express';
 import { ZodError } from 'zod';
-import { HttpError, type Issue } from '../lib/http-error';
+import { ConflictError, InvalidInputError, NotFoundError, ServiceError, type Issue } from '../lib/errors';
+import { HttpError } from '../lib/http-error';
 import { logger } from '../lib/logger';
 
 interface ErrorBody {
@@ -8,6 +9,14 @@ interface ErrorBody {
 }
 
 const body = (message: string, issues: Issue[] = [], details: Record<string, unknown> = {}): ErrorBody => ({ error: { ...details, message, issues } });
+
+/** The status of each typed refusal thrown by services and routes (server/lib/errors.ts). */
+function statusOf(err: ServiceError): number {
+  if (err instanceof NotFoundError) return 404;
+  if (err instanceof ConflictError) return 409;
+  if (err instanceof InvalidInputError) return 400;
+  return 400;
+}
 
 /** The one error middleware: a message a person can act on, never a stack trace. */
 export function errorHandler(err: unknown, req: Request, res: Response, _next: NextFunction) {
@@ -18,6 +27,10 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
       ? first.message
       : `${issues.length} fields need attention: ${issues.map((i) => (i.path ? `${i.path}: ${i.message}` : i.message)).join('; ')}`;
     res.status(400).json(body(message, issues));
+    return;
+  }
+  if (err instanceof ServiceError) {
+    res.status(statusOf(err)).json(body(err.message, err.issues, err.details));
     return;
   }
   if (err instanceof HttpError) {

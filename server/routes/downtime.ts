@@ -1,5 +1,3 @@
-import { TZDate } from '@date-fns/tz';
-import { format } from 'date-fns';
 import { stringify } from 'csv-stringify/sync';
 import { and, asc, eq, gt, isNull, lt, max, ne, type SQL } from 'drizzle-orm';
 import { Router, type Request, type Response } from 'express';
@@ -7,6 +5,7 @@ import {
   costQuerySchema, downtimeCauseInputSchema, downtimeCauseUpdateSchema, downtimeEventInputSchema, eventListQuerySchema, reportQuerySchema,
   siteSettingsInputSchema, type DowntimeEventInput, type DowntimeEventList, type DowntimeEventRow,
 } from '../../shared/schemas/downtime';
+import { formatSiteDateTime, isoWithSiteOffset } from '../../shared/site-time';
 import { db, type DbOrTx } from '../db/client';
 import { downtimeCauses, downtimeEvents, projects, siteSettings, stops } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
@@ -26,10 +25,6 @@ async function loadProject(tx: DbOrTx, projectId: string) {
   const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
   return project;
 }
-
-/** A date and time in the site's zone with its offset, unambiguous across daylight-saving changes. */
-const siteTime = (at: Date, tz: string) => format(new TZDate(at, tz), "yyyy-MM-dd'T'HH:mmXXX");
-const siteText = (at: Date, tz: string) => format(new TZDate(at, tz), 'yyyy-MM-dd HH:mm');
 
 function sendCsv(res: Response, name: string, columns: string[], rows: unknown[][]) {
   res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': `attachment; filename="${name}.csv"` });
@@ -155,7 +150,8 @@ downtimeRouter.get('/events', requireProject('downtime.read'), async (req, res) 
     return;
   }
   sendCsv(res, 'downtime-events', ['start', 'end', 'hours', 'cause', 'cutter_work', 'source', 'stop_chainage_m', 'note'], rows.map((r) => [
-    siteTime(new Date(r.startAt), tz), siteTime(new Date(r.endAt), tz), r.hours.toFixed(2), r.causeName ?? '', r.cutterWork ? 'yes' : 'no', r.source, r.stopChainageM ?? '', r.note,
+    // With the site's offset then: unambiguous across daylight-saving changes.
+    isoWithSiteOffset(r.startAt, tz), isoWithSiteOffset(r.endAt, tz), r.hours.toFixed(2), r.causeName ?? '', r.cutterWork ? 'yes' : 'no', r.source, r.stopChainageM ?? '', r.note,
   ]));
 });
 
@@ -185,7 +181,7 @@ async function checkEvent(tx: DbOrTx, projectId: string, tz: string, input: Down
     .orderBy(asc(downtimeEvents.startAt))
     .limit(1);
   if (other) {
-    const named = `the downtime event from ${siteText(other.startAt, tz)} to ${siteText(other.endAt, tz)} (${other.cause ?? 'no cause given yet'})`;
+    const named = `the downtime event from ${formatSiteDateTime(other.startAt, tz)} to ${formatSiteDateTime(other.endAt, tz)} (${other.cause ?? 'no cause given yet'})`;
     throw new HttpError(400, `This overlaps ${named}. Change the times, or edit that event instead.`, [{ path: 'startAt', message: `Overlaps ${named}.` }], { overlapsEventId: other.id });
   }
   return { startAt: start, endAt: end, causeId: input.causeId, note: input.note, stopId: input.stopId };

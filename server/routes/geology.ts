@@ -12,6 +12,7 @@ import { readGeologyCsv } from '../lib/csv-import';
 import { idParam } from '../lib/params';
 import { csvRefusal, uploadStream } from './strokes';
 import { invalidateRolledDistance, refreshRolledDistance } from '../services/rolled-distance';
+import { driveDataChanged } from '../services/drive-data';
 
 export const groundTypesRouter = Router({ mergeParams: true });
 export const geologyRouter = Router({ mergeParams: true });
@@ -94,8 +95,7 @@ geologyRouter.put('/', requireProject('drive.edit'), async (req, res) => {
     const after = sections.length ? await tx.insert(geologySections).values(sections.map((s) => ({ ...s, projectId }))).returning() : [];
     await audit(tx, { userId: me.id, projectId, entity: 'geology', entityId: projectId, action: 'replace', before, after });
     // Ground attribution changes everywhere: recompute the rolled distances of the whole drive.
-    await invalidateRolledDistance(tx, projectId);
-    await refreshRolledDistance(tx, projectId);
+    await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: true });
   });
   res.json({ saved: sections.length, warnings: check.warnings });
 });

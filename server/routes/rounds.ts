@@ -8,7 +8,7 @@ import { audit } from '../lib/audit';
 import { conflict, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
 import { entryFlags, recordEntry, startRound } from '../services/inspections';
-import { listPositions } from './positions';
+import { listPositions } from '../services/positions';
 
 export const roundsRouter = Router({ mergeParams: true });
 

@@ -4,15 +4,19 @@ import {
   cancelStopInputSchema, canStop, completeStopInputSchema, createStopInputSchema, scheduleStopInputSchema, startStopInputSchema, stopListQuerySchema,
   stopPlanQuerySchema, type StopAction,
 } from '../../shared/schemas/stop';
+import { formatChainage } from '../../shared/domain/chainage';
+import { workPackText } from '../../shared/domain/work-pack';
+import { formatSiteDateTime } from '../../shared/site-time';
 import { db, type DbOrTx } from '../db/client';
 import { crews, inspectionRounds, positions, projects, stopPositions, stopReminders, stops } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { appUrl } from '../lib/app-url';
 import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
-import { enqueueMail, kickMailDelivery, optedOut } from '../lib/mail';
+import { enqueueMail, kickMailDelivery } from '../lib/mail';
 import { idParam } from '../lib/params';
-import { chainageText, describeStopPlace, listStops, loadWorkPack, planForProject, siteTimeText, workPackText, type WorkPack } from '../services/stops';
+import { recipientsFor } from '../services/recipients';
+import { describeStopPlace, listStops, loadWorkPack, planForProject, type WorkPack } from '../services/stops';
 
 /** Intervention stops: the plan, the stops with planned against actual hours, and each stop's work pack and life. */
 export const stopsRouter = Router({ mergeParams: true });
@@ -26,7 +30,7 @@ const pastTense: Record<StopAction, string> = { schedule: 'scheduled', publish: 
 
 /** Why `action` cannot happen to the stop in its present state, in words that say what to do instead. */
 function refusal(action: StopAction, stop: Stop, timeZone: string): string {
-  const when = (at: Date | null) => (at ? siteTimeText(at, timeZone) : 'at an unknown time');
+  const when = (at: Date | null) => (at ? formatSiteDateTime(at, timeZone) : 'at an unknown time');
   switch (stop.status) {
     case 'done':
       return `This stop is done (finished ${when(stop.actualEnd)}), so it cannot be ${pastTense[action]}. Propose a new stop for further work.`;
@@ -54,9 +58,7 @@ async function lockStop(tx: DbOrTx, projectId: string, stopId: string, action: S
 
 /** Mail to the stop's crew members who have not turned `stop_published` off; how many were queued. */
 async function mailCrew(tx: DbOrTx, project: Project, pack: WorkPack, subject: string, text: string): Promise<string[]> {
-  const members = pack.crew?.members ?? [];
-  const off = await optedOut(tx, members.flatMap((m) => (m.userId ? [m.userId] : [])), 'stop_published');
-  const to = members.filter((m) => !m.userId || !off.has(m.userId)).map((m) => m.email);
+  const to = (await recipientsFor(tx, project.id, 'stop_published', { crewId: pack.crew?.id })).map((r) => r.email);
   // One message per member: crew members do not see each other's addresses.
   for (const address of to) await enqueueMail(tx, { kind: 'stop_published', projectId: project.id, to: [address], subject, text });
   return to;
@@ -89,10 +91,10 @@ stopsRouter.post('/', requireProject('stops.plan'), async (req, res) => {
     const unknown = wanted.flatMap((id, i) => (known.has(id) ? [] : [{ path: `positions.${i}.positionId`, message: 'Not a position of this drive’s cutterhead.' }]));
     if (unknown.length > 0) throw badRequest(`${unknown.length} of the positions are not on this drive’s cutterhead. Reload the plan and propose the stop again.`, unknown);
     const place = await describeStopPlace(tx, project, input.chainageM);
-    const at = chainageText(input.chainageM);
+    const at = formatChainage(input.chainageM);
     if (!place.allowed) throw badRequest(`No stop may be made at ${at}: ${place.reason}. Choose a chainage in a section where stops are allowed.`, [{ path: 'chainageM', message: `No stop allowed at ${at}.` }]);
     if (place.machine && place.aheadM != null && place.aheadM < -1e-6) {
-      throw badRequest(`${at} is behind the machine (now at ${chainageText(place.machine.chainageM)}): a stop can only be made where the machine has yet to reach.`, [{ path: 'chainageM', message: 'Behind the machine.' }]);
+      throw badRequest(`${at} is behind the machine (now at ${formatChainage(place.machine.chainageM)}): a stop can only be made where the machine has yet to reach.`, [{ path: 'chainageM', message: 'Behind the machine.' }]);
     }
     const [same] = await tx
       .select({ id: stops.id, status: stops.status })
@@ -151,17 +153,17 @@ stopsRouter.post('/:stopId/publish', requireProject('stops.plan'), async (req, r
   const pack = await db.transaction(async (tx) => {
     const { stop: before, project } = await lockStop(tx, projectId, stopId, 'publish');
     if (before.publishedAt) {
-      throw conflict(`This stop was already published on ${siteTimeText(before.publishedAt, project.siteTimeZone)}; the crew has the work pack. Change its schedule to publish it again.`);
+      throw conflict(`This stop was already published on ${formatSiteDateTime(before.publishedAt, project.siteTimeZone)}; the crew has the work pack. Change its schedule to publish it again.`);
     }
     const draft = await loadWorkPack(tx, projectId, stopId);
     if (!draft.crew) throw conflict('This stop has no crew (the crew may have been removed). Schedule it with a crew, then publish it.');
     if (draft.crew.members.length === 0) throw conflict(`${draft.crew.name} has no members to tell. Ask the administrator to add the crew’s e-mail addresses, then publish.`);
     const [after] = await tx.update(stops).set({ publishedAt: new Date(), updatedAt: new Date() }).where(eq(stops.id, stopId)).returning();
     const published = await loadWorkPack(tx, projectId, stopId);
-    const when = after.plannedStart ? siteTimeText(after.plannedStart, project.siteTimeZone) : '';
+    const when = after.plannedStart ? formatSiteDateTime(after.plannedStart, project.siteTimeZone, { withZone: true }) : '';
     const to = await mailCrew(
       tx, project, published,
-      `${project.name}: cutter stop at ${chainageText(after.chainageM)}, ${when}`,
+      `${project.name}: cutter stop at ${formatChainage(after.chainageM)}, ${when}`,
       `You are on the crew of this intervention stop.\n\n${workPackText(published, project, stopUrl(req, projectId, stopId))}`,
     );
     await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'publish', before, after: { ...after, mailedTo: to } });
@@ -198,7 +200,7 @@ stopsRouter.post('/:stopId/complete', requireProject('stops.run'), async (req, r
     }
     const actualEnd = input.actualEnd ? new Date(input.actualEnd) : new Date();
     if (before.actualStart && actualEnd < before.actualStart) {
-      throw badRequest(`The end is before the start (${siteTimeText(before.actualStart, project.siteTimeZone)}). Check the date and time.`, [{ path: 'actualEnd', message: 'Before the start.' }]);
+      throw badRequest(`The end is before the start (${formatSiteDateTime(before.actualStart, project.siteTimeZone)}). Check the date and time.`, [{ path: 'actualEnd', message: 'Before the start.' }]);
     }
     const [after] = await tx.update(stops).set({ status: 'done', actualEnd, roundId: input.roundId, updatedAt: new Date() }).where(eq(stops.id, stopId)).returning();
     await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'complete', before, after });
@@ -220,8 +222,8 @@ stopsRouter.post('/:stopId/cancel', requireProject('stops.plan'), async (req, re
     const to = before.publishedAt
       ? await mailCrew(
         tx, project, cancelled,
-        `${project.name}: cutter stop at ${chainageText(after.chainageM)} CANCELLED`,
-        `The intervention stop at ${chainageText(after.chainageM)}${before.plannedStart ? ` planned for ${siteTimeText(before.plannedStart, project.siteTimeZone)} (${project.siteTimeZone})` : ''} is cancelled.\n\nReason: ${input.reason}\n\n${stopUrl(req, projectId, stopId)}\n`,
+        `${project.name}: cutter stop at ${formatChainage(after.chainageM)} CANCELLED`,
+        `The intervention stop at ${formatChainage(after.chainageM)}${before.plannedStart ? ` planned for ${formatSiteDateTime(before.plannedStart, project.siteTimeZone, { withZone: true })}` : ''} is cancelled.\n\nReason: ${input.reason}\n\n${stopUrl(req, projectId, stopId)}\n`,
       )
       : [];
     mailed = to.length > 0;

@@ -6,6 +6,7 @@ import { stringify } from 'csv-stringify';
 import { z } from 'zod';
 import { advanceLogColumnMappingSchema, advanceLogFields } from '../../shared/schemas/advance-log';
 import { strokeListQuerySchema } from '../../shared/schemas/geology';
+import { isoWithSiteOffset } from '../../shared/site-time';
 import { db } from '../db/client';
 import { importMappings, projects, strokes } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
@@ -54,12 +55,14 @@ strokesRouter.get('/', requireProject('drive.read'), async (req, res) => {
 strokesRouter.get('/export.csv', requireProject('drive.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const q = strokeListQuerySchema.parse(req.query);
-  const rows = await db.select().from(strokes).where(filters(projectId, q, await siteTimeZone(projectId))).orderBy(asc(strokes.ringNumber));
+  const tz = await siteTimeZone(projectId);
+  const rows = await db.select().from(strokes).where(filters(projectId, q, tz)).orderBy(asc(strokes.ringNumber));
   res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': 'attachment; filename="advance-log.csv"' });
   const csv = stringify({ header: true, columns: ['ring', 'start_time', 'end_time', 'chainage_start_m', 'chainage_end_m', 'revolutions', 'penetration_mm_per_rev', 'rpm', 'thrust_kn', 'torque_knm'] });
   csv.pipe(res);
   for (const r of rows) {
-    csv.write([r.ringNumber, r.startTime.toISOString(), r.endTime.toISOString(), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm]);
+    // Site time with its offset: what the site reads, unambiguous, and read back by the import.
+    csv.write([r.ringNumber, isoWithSiteOffset(r.startTime, tz), isoWithSiteOffset(r.endTime, tz), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm]);
   }
   csv.end();
 });

@@ -4,16 +4,16 @@
  * utilisation, cutter-work share, metres per day, Pareto; cutter cost per m and per m³). Shared by
  * the downtime routes, the weekly digest job and the demo loader. All times in the site's zone.
  */
-import { TZDate } from '@date-fns/tz';
-import { addDays, addWeeks, format, getISOWeek, getISOWeekYear, startOfISOWeek } from 'date-fns';
 import { and, asc, eq, gt, gte, lt, max, sql } from 'drizzle-orm';
 import { cutterCostBy, faceAreaM2, type CutterCostEntry } from '../../shared/domain/cutter-cost';
 import {
-  cutterWorkShare, downtimeHoursByCauseAndShift, downtimeHoursByCauseAndWeek, metresPerDay, proposeDowntimeFromGaps, utilisation, type DowntimeEvent,
+  cutterWorkShare, downtimeHoursByCauseAndShift, downtimeHoursByCauseAndWeek, isoWeeksTouching, metresPerDay, proposeDowntimeFromGaps, uncoveredParts, utilisation,
+  type DowntimeEvent,
 } from '../../shared/domain/downtime';
 import {
   NO_CAUSE_LABEL, type CutterCostReport, type DowntimeCause, type DowntimeReport, type ProposeFromGapsResult, type ReportPeriod, type SiteSettings,
 } from '../../shared/schemas/downtime';
+import { addSiteDays, siteDay, siteIsoWeek, siteMidnight, siteWeekStart } from '../../shared/site-time';
 import type { DbOrTx } from '../db/client';
 import {
   downtimeCauses, downtimeEvents, geologySections, groundTypes, parts, projects, siteSettings, strokes,
@@ -79,25 +79,6 @@ export async function lockDowntime(tx: DbOrTx, projectId: string): Promise<void>
   await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`kerfwise-downtime:${projectId}`}))`);
 }
 
-interface Interval {
-  start: Date;
-  end: Date;
-}
-
-/** The parts of `gap` not covered by `covered` (sorted by start). */
-function uncoveredParts(gap: Interval, covered: readonly Interval[]): Interval[] {
-  const pieces: Interval[] = [];
-  let cursor = gap.start.getTime();
-  for (const c of covered) {
-    if (c.start.getTime() >= gap.end.getTime()) break;
-    if (c.end.getTime() <= cursor) continue;
-    if (c.start.getTime() > cursor) pieces.push({ start: new Date(cursor), end: c.start });
-    cursor = Math.max(cursor, c.end.getTime());
-  }
-  if (cursor < gap.end.getTime()) pieces.push({ start: new Date(cursor), end: gap.end });
-  return pieces;
-}
-
 /**
  * Creates a 'gap' event (cause still to give) for every standstill between strokes longer than the
  * site's gap setting, less whatever existing events already cover; what remains must itself be
@@ -136,33 +117,16 @@ export interface Period {
   timeZone: string;
 }
 
-/** Local 00:00 of a site calendar day (YYYY-MM-DD). */
-function localMidnight(day: string, timeZone: string): TZDate {
-  const [y, m, d] = day.split('-').map(Number);
-  return new TZDate(y, m - 1, d, 0, 0, timeZone);
-}
-
-/** The site calendar day (YYYY-MM-DD) of an instant. */
-export function siteDay(at: Date, timeZone: string): string {
-  return format(new TZDate(at, timeZone), 'yyyy-MM-dd');
-}
-
-/** ISO week ('2026-W13') of an instant in the site's zone. */
-export function siteIsoWeek(at: Date, timeZone: string): string {
-  const local = new TZDate(at, timeZone);
-  return `${getISOWeekYear(local)}-W${String(getISOWeek(local)).padStart(2, '0')}`;
-}
-
 /** The period of days `from`–`to` (both included) in the site's zone. */
 export function periodOfDays(from: string, to: string, timeZone: string): Period {
-  return { from, to, timeZone, start: new Date(+localMidnight(from, timeZone)), end: new Date(+addDays(localMidnight(to, timeZone), 1)) };
+  return { from, to, timeZone, start: siteMidnight(from, timeZone), end: siteMidnight(addSiteDays(to, 1, timeZone), timeZone) };
 }
 
 /** The whole ISO week before the one that contains `now`, in the site's zone. */
 export function previousIsoWeek(now: Date, timeZone: string): Period & { isoWeek: string } {
-  const end = startOfISOWeek(new TZDate(now, timeZone));
-  const start = addWeeks(end, -1);
-  return { from: siteDay(start, timeZone), to: siteDay(addDays(end, -1), timeZone), start: new Date(+start), end: new Date(+end), timeZone, isoWeek: siteIsoWeek(start, timeZone) };
+  const end = siteWeekStart(now, timeZone);
+  const start = siteWeekStart(now, timeZone, -1);
+  return { from: siteDay(start, timeZone), to: addSiteDays(siteDay(end, timeZone), -1, timeZone), start, end, timeZone, isoWeek: siteIsoWeek(start, timeZone) };
 }
 
 /**
@@ -181,21 +145,12 @@ export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: st
     to = siteDay(latest ? new Date(latest.getTime() - 1) : now, tz);
     if (q.from && q.from > to) to = q.from;
   }
-  const from = q.from ?? siteDay(addWeeks(startOfISOWeek(localMidnight(to, tz)), -7), tz);
+  const from = q.from ?? siteDay(siteWeekStart(siteMidnight(to, tz), tz, -7), tz);
   return periodOfDays(from, to, tz);
 }
 
 function periodFields(p: Period): ReportPeriod {
   return { from: p.from, to: p.to, timeZone: p.timeZone, startAt: p.start.toISOString(), endAt: p.end.toISOString(), hours: (p.end.getTime() - p.start.getTime()) / 3_600_000 };
-}
-
-/** Every ISO week touching the period, in order. */
-function weeksOf(p: Period): string[] {
-  const weeks: string[] = [];
-  for (let monday = startOfISOWeek(new TZDate(p.start, p.timeZone)); monday.getTime() < p.end.getTime(); monday = addWeeks(monday, 1)) {
-    weeks.push(siteIsoWeek(monday, p.timeZone));
-  }
-  return weeks;
 }
 
 /** Events overlapping the period, clipped to it, each with its cause's label and cutter-work flag. */
@@ -246,7 +201,7 @@ export async function buildDowntimeReport(tx: DbOrTx, project: Project, p: Perio
   const unexplained = events.filter((e) => !e.explained);
   return {
     ...periodFields(p),
-    weeks: weeksOf(p),
+    weeks: isoWeeksTouching(p.start, p.end, p.timeZone),
     shifts: settings.shifts.map((s) => s.name),
     byWeek: downtimeHoursByCauseAndWeek(events, tz).map((r) => ({ ...r, cutterWork: flag.get(r.cause) ?? false })),
     byShift: downtimeHoursByCauseAndShift(events, settings.shifts.map((s) => ({ name: s.name, startLocal: s.start })), tz)

@@ -6,11 +6,13 @@
 import { and, desc, eq, isNull, ne, sql } from 'drizzle-orm';
 import { conditionNeedsChange, type DiscCondition } from '../../shared/cutters';
 import type { EntryInput, StartRoundInput } from '../../shared/schemas/inspection';
+import { formatSiteDate } from '../../shared/site-time';
 import type { DbOrTx } from '../db/client';
-import { cutterEvents, cutters, entrySubmissions, fittings, inspectionEntries, inspectionRounds, positions, strokes } from '../db/schema';
-import { invalidateRolledDistance, recordEntryExposure } from './rolled-distance';
+import { cutterEvents, cutters, entrySubmissions, fittings, inspectionEntries, inspectionRounds, positions, projects, strokes } from '../db/schema';
+import { driveDataChanged } from './drive-data';
+import { recordEntryExposure } from './rolled-distance';
 import { audit } from '../lib/audit';
-import { conflict, HttpError, notFound } from '../lib/http-error';
+import { ConflictError, NotFoundError } from '../lib/errors';
 
 type Entry = typeof inspectionEntries.$inferSelect;
 
@@ -23,8 +25,14 @@ export async function startRound(tx: DbOrTx, projectId: string, userId: string |
   return round;
 }
 
-const wearFell = (wearMm: number, last: { wearMm: number; at: Date; serial: string }) =>
-  new HttpError(409, `Wear ${wearMm} mm is less than the ${last.wearMm} mm measured on ${last.at.toISOString().slice(0, 10)} on the same disc (serial ${last.serial}), with no change in between. Check the value; if the earlier one was wrong, confirm this one as re-measured.`, [
+/** The site's time zone, for dates in messages (read only when a message needs one). */
+async function siteTimeZoneOf(tx: DbOrTx, projectId: string): Promise<string> {
+  const [p] = await tx.select({ tz: projects.siteTimeZone }).from(projects).where(eq(projects.id, projectId));
+  return p.tz;
+}
+
+const wearFell = (wearMm: number, last: { wearMm: number; at: Date; serial: string }, timeZone: string) =>
+  new ConflictError(`Wear ${wearMm} mm is less than the ${last.wearMm} mm measured on ${formatSiteDate(last.at, timeZone)} on the same disc (serial ${last.serial}), with no change in between. Check the value; if the earlier one was wrong, confirm this one as re-measured.`, [
     { path: 'wearMm', message: `Less than the last ${last.wearMm} mm on this disc. Confirm as re-measured if the earlier value was wrong.` },
   ]);
 
@@ -51,10 +59,10 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
   }
 
   const [round] = await tx.select().from(inspectionRounds).where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId))).for('update');
-  if (!round) throw notFound('That inspection round');
-  if (round.closedAt) throw conflict('This round is closed. Start a new round to record more.');
+  if (!round) throw new NotFoundError('That inspection round');
+  if (round.closedAt) throw new ConflictError('This round is closed. Start a new round to record more.');
   const [position] = await tx.select().from(positions).where(and(eq(positions.id, input.positionId), eq(positions.projectId, projectId)));
-  if (!position) throw notFound('That position');
+  if (!position) throw new NotFoundError('That position');
 
   const [current] = await tx
     .select({ fitting: fittings, serial: cutters.serial })
@@ -64,7 +72,7 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
     .for('update');
   const [prior] = await tx.select().from(inspectionEntries).where(and(eq(inspectionEntries.roundId, round.id), eq(inspectionEntries.positionId, position.id)));
   if (prior?.action === 'changed' && input.action === 'none') {
-    throw conflict(`Position ${position.number} was recorded as changed in this round. A change cannot be undone by an edit; ask the planner to correct it.`);
+    throw new ConflictError(`Position ${position.number} was recorded as changed in this round. A change cannot be undone by an edit; ask the planner to correct it.`);
   }
 
   // The disc the fitter measured: the one on the position when they came to it.
@@ -86,7 +94,7 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
       .orderBy(desc(inspectionRounds.startedAt), desc(inspectionEntries.recordedAt))
       .limit(1);
     if (last?.wearMm != null && input.wearMm < last.wearMm) {
-      if (!input.remeasured) throw wearFell(input.wearMm, { wearMm: last.wearMm, at: last.at, serial: last.serial });
+      if (!input.remeasured) throw wearFell(input.wearMm, { wearMm: last.wearMm, at: last.at, serial: last.serial }, await siteTimeZoneOf(tx, projectId));
       await audit(tx, {
         userId, projectId, entity: 'inspection_entry', entityId: input.clientKey, action: 'remeasured_correction',
         before: { lastWearMm: last.wearMm, lastMeasuredAt: last.at }, after: { wearMm: input.wearMm, positionNumber: position.number },
@@ -99,7 +107,7 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
   if (input.action === 'changed' && prior?.action === 'changed') {
     const [fittedBefore] = await tx.select({ serial: cutters.serial }).from(cutters).where(eq(cutters.id, prior.fittedCutterId!));
     if (input.fitted && fittedBefore && input.fitted.serial !== fittedBefore.serial) {
-      throw conflict(`Position ${position.number} already has serial ${fittedBefore.serial} recorded as fitted in this round. Correcting the serial needs the planner.`);
+      throw new ConflictError(`Position ${position.number} already has serial ${fittedBefore.serial} recorded as fitted in this round. Correcting the serial needs the planner.`);
     }
   } else if (input.action === 'changed') {
     ({ removedCutterId, fittedCutterId } = await changeCutter(tx, { projectId, userId, round, position, current, input }));
@@ -146,33 +154,34 @@ interface ChangeContext {
 /** Closes the removed serial's fitted period and opens the fitted one's, at the round's place and time. */
 async function changeCutter(tx: DbOrTx, { projectId, userId, round, position, current, input }: ChangeContext) {
   if (input.removedSerial && !current) {
-    throw conflict(`Kerfwise has no cutter on position ${position.number}, so ${input.removedSerial} cannot be taken off it. Check the position number.`);
+    throw new ConflictError(`Kerfwise has no cutter on position ${position.number}, so ${input.removedSerial} cannot be taken off it. Check the position number.`);
   }
   if (input.removedSerial && current && input.removedSerial !== current.serial) {
-    throw conflict(`Kerfwise has serial ${current.serial} on position ${position.number}, not ${input.removedSerial}. Check the serial stamped on the hub.`);
+    throw new ConflictError(`Kerfwise has serial ${current.serial} on position ${position.number}, not ${input.removedSerial}. Check the serial stamped on the hub.`);
   }
   const fittedSerial = input.fitted!.serial;
   let [fitted] = await tx.select().from(cutters).where(and(eq(cutters.projectId, projectId), eq(cutters.serial, fittedSerial))).for('update');
   if (!fitted) {
-    if (!input.fitted!.isNew) throw notFound(`Serial ${fittedSerial}`);
+    if (!input.fitted!.isNew) throw new NotFoundError(`Serial ${fittedSerial}`);
     [fitted] = await tx.insert(cutters).values({ projectId, serial: fittedSerial, discSizeIn: position.discSizeIn, status: 'in_store' }).returning();
     await tx.insert(cutterEvents).values({ projectId, cutterId: fitted.id, kind: 'received', userId, at: round.startedAt, details: { enteredAtFace: true } });
     await audit(tx, { userId, projectId, entity: 'cutter', entityId: fitted.id, action: 'create', after: fitted });
   }
   if (fitted.status === 'fitted') {
     const [where] = await tx.select({ number: positions.number, since: fittings.fittedAt }).from(fittings).innerJoin(positions, eq(positions.id, fittings.positionId)).where(and(eq(fittings.cutterId, fitted.id), isNull(fittings.removedAt)));
-    throw conflict(`Serial ${fittedSerial} is already fitted at position ${where?.number ?? '?'}${where ? ` since ${where.since.toISOString().slice(0, 10)}` : ''}. A cutter cannot be in two places; check the serial.`);
+    throw new ConflictError(`Serial ${fittedSerial} is already fitted at position ${where?.number ?? '?'}${where ? ` since ${formatSiteDate(where.since, await siteTimeZoneOf(tx, projectId))}` : ''}. A cutter cannot be in two places; check the serial.`);
   }
-  if (fitted.status === 'scrapped') throw conflict(`Serial ${fittedSerial} was scrapped and cannot be fitted.`);
-  if (fitted.status === 'workshop') throw conflict(`Serial ${fittedSerial} is in the workshop. Record its rebuild (Cutters → ${fittedSerial}) before fitting it.`);
+  if (fitted.status === 'scrapped') throw new ConflictError(`Serial ${fittedSerial} was scrapped and cannot be fitted.`);
+  if (fitted.status === 'workshop') throw new ConflictError(`Serial ${fittedSerial} is in the workshop. Record its rebuild (Cutters → ${fittedSerial}) before fitting it.`);
   if (fitted.discSizeIn !== position.discSizeIn) {
-    throw conflict(`Serial ${fittedSerial} is a ${fitted.discSizeIn}″ cutter; position ${position.number} takes ${position.discSizeIn}″.`);
+    throw new ConflictError(`Serial ${fittedSerial} is a ${fitted.discSizeIn}″ cutter; position ${position.number} takes ${position.discSizeIn}″.`);
   }
 
   const at = round.startedAt;
   // A change recorded back in time re-divides strokes already counted: recompute the drive next time.
   const [later] = await tx.select({ id: strokes.id }).from(strokes).where(and(eq(strokes.projectId, projectId), sql`${strokes.startTime} > ${at}`)).limit(1);
-  if (later) await invalidateRolledDistance(tx, projectId);
+  // (Not refreshed now: the fittings below are not changed yet.)
+  if (later) await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: false });
   let removedCutterId: string | null = null;
   if (current) {
     removedCutterId = current.fitting.cutterId;

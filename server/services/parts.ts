@@ -21,16 +21,16 @@
  * Each removed cutter goes through the workshop loop (shared/domain/parts-projection.ts) by its
  * worst condition: scrap if any of its conditions is scrap, else the dearest bill of materials.
  */
-import { TZDate } from '@date-fns/tz';
-import { format } from 'date-fns';
 import { and, asc, eq, gt, inArray, sql } from 'drizzle-orm';
 import { discConditions, type PositionClass } from '../../shared/cutters';
-import { rolledKmPerMetre, type DriveDirection } from '../../shared/domain/forecast';
+import { advanceAheadByWeek, weightedRolledKm } from '../../shared/domain/advance-ahead';
+import { formatChainage } from '../../shared/domain/chainage';
 import { reorderPointUnits, safetyStockUnits, serviceLevelZ, suggestOrder } from '../../shared/domain/inventory';
 import {
   projectParts, weekIndexOf, type CutterRebuildSpec, type ExpectedChange, type ExpectedFailure, type OpenOrder, type PartWeek, type RebuildInProgress, type RebuildOutcome,
 } from '../../shared/domain/parts-projection';
 import type { DemandSource, OrderSuggestion, WorkshopSettingsInput } from '../../shared/schemas/parts';
+import { siteDay } from '../../shared/site-time';
 import type { DbOrTx } from '../db/client';
 import { geologySections, parts, positions, projects, purchaseOrderLines, purchaseOrders, stockMovements, stopPositions, stops, workshopSettings } from '../db/schema';
 import { computeForecast } from './forecast';
@@ -78,85 +78,11 @@ async function openOrderLines(tx: DbOrTx, projectId: string) {
     .where(and(eq(purchaseOrders.projectId, projectId), gt(purchaseOrderLines.qtyOrdered, purchaseOrderLines.qtyReceived)));
 }
 
-/** The calendar date (YYYY-MM-DD) of an instant in the site's time zone. */
-export const siteDate = (at: Date, timeZone: string) => format(new TZDate(at, timeZone), 'yyyy-MM-dd');
-
-export interface AdvanceSegment {
-  /** Null in a gap of the long section (unknown ground). */
-  groundTypeId: string | null;
-  metres: number;
-  penetrationMmPerRev: number;
-}
-
-export interface AdvanceAheadInput {
-  currentChainageM: number;
-  direction: DriveDirection;
-  sections: readonly { fromChainageM: number; toChainageM: number; groundTypeId: string | null }[];
-  penetrationMmPerRevByGround: Readonly<Record<string, number>>;
-  advanceMPerDayByGround: Readonly<Record<string, number>>;
-  weeks: number;
-}
-
-/**
- * The advance expected in each of the next `weeks` weeks (7 calendar days each from now), as
- * segments of metres per ground with their penetration, walking the long section at each ground's
- * advance per day. Ground without a rate, or a gap between sections, takes the lowest known
- * penetration and the fastest known advance. The walk stops where the mapped geology ends
- * (`geologyEndsWeek`); it returns null when no penetration or advance is known at all.
- */
-export function advanceAheadByWeek(input: AdvanceAheadInput): { weeks: AdvanceSegment[][]; geologyEndsWeek: number | null } | null {
-  const pens = Object.values(input.penetrationMmPerRevByGround);
-  const advs = Object.values(input.advanceMPerDayByGround);
-  if (pens.length === 0 || advs.length === 0) return null;
-  const sign = input.direction === 'increasing' ? 1 : -1;
-  // Sections as distances ahead of the machine, nearest first.
-  const ahead = input.sections
-    .map((s) => {
-      const a = (s.fromChainageM - input.currentChainageM) * sign;
-      const b = (s.toChainageM - input.currentChainageM) * sign;
-      return { from: Math.min(a, b), to: Math.max(a, b), groundTypeId: s.groundTypeId };
-    })
-    .filter((s) => s.to > 0)
-    .sort((x, y) => x.from - y.from);
-  const end = Math.max(0, ...ahead.map((s) => s.to));
-  const weeks: AdvanceSegment[][] = [];
-  let atM = 0;
-  let geologyEndsWeek: number | null = null;
-  for (let w = 0; w < input.weeks; w++) {
-    const segments: AdvanceSegment[] = [];
-    let days = 7;
-    while (days > 1e-9 && atM < end - 1e-9) {
-      const section = ahead.find((s) => s.from <= atM + 1e-9 && s.to > atM + 1e-9);
-      const ground = section?.groundTypeId ?? null;
-      const nextBoundaryM = section ? section.to : Math.min(...ahead.filter((s) => s.from > atM).map((s) => s.from));
-      const pen = ground !== null && Object.hasOwn(input.penetrationMmPerRevByGround, ground) ? input.penetrationMmPerRevByGround[ground] : Math.min(...pens);
-      const adv = ground !== null && Object.hasOwn(input.advanceMPerDayByGround, ground) ? input.advanceMPerDayByGround[ground] : Math.max(...advs);
-      const metres = Math.min(adv * days, nextBoundaryM - atM);
-      days -= metres / adv;
-      atM += metres;
-      const last = segments.at(-1);
-      if (last && last.groundTypeId === ground && last.penetrationMmPerRev === pen) last.metres += metres;
-      else segments.push({ groundTypeId: ground, metres, penetrationMmPerRev: pen });
-    }
-    if (days > 1e-9 && geologyEndsWeek === null) geologyEndsWeek = w;
-    weeks.push(segments);
-  }
-  return { weeks, geologyEndsWeek };
-}
-
 /** A per-ground value, or the highest known one for unknown ground or a ground without a value (cautious). */
 function perGround(byGround: Readonly<Record<string, number>>, groundTypeId: string | null): number {
   if (groundTypeId !== null && Object.hasOwn(byGround, groundTypeId)) return byGround[groundTypeId];
   const known = Object.values(byGround);
   return known.length > 0 ? Math.max(...known) : 0;
-}
-
-/**
- * Km rolled per disc at track radius `trackRadiusMm` over the segments, weighted per ground by
- * `perKm` (e.g. failures per km or mm of wear per km): Σ weight_g · metres · 2·π·r/p.
- */
-export function weightedRolledKm(segments: readonly AdvanceSegment[], trackRadiusMm: number, perKm: (groundTypeId: string | null) => number): number {
-  return segments.reduce((sum, s) => sum + perKm(s.groundTypeId) * s.metres * rolledKmPerMetre(trackRadiusMm, s.penetrationMmPerRev), 0);
 }
 
 /** One source of a part's demand in a week: a stop, the forecast (positions due without a stop), or sudden failures. */
@@ -196,11 +122,6 @@ export interface PartsDemand {
   problems: string[];
 }
 
-const chainageText = (m: number) => {
-  const km = Math.floor(Math.abs(m) / 1000);
-  return `${m < 0 ? '-' : ''}${km}+${(Math.abs(m) - km * 1000).toFixed(1).padStart(5, '0')}`;
-};
-
 /** Demand per part and week over `weeks` weeks from `now`, with order suggestions at `serviceLevel` (default: the workshop setting). */
 export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Date, options: { weeks: number; serviceLevel?: number }): Promise<PartsDemand> {
   const horizonWeeks = options.weeks;
@@ -208,8 +129,8 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
   const settings = await loadWorkshopSettings(tx, projectId);
   const serviceLevel = options.serviceLevel ?? settings.serviceLevel;
   const z = serviceLevelZ(serviceLevel);
-  const startDate = siteDate(now, project.siteTimeZone);
-  const weekOf = (at: Date) => Math.max(0, weekIndexOf(siteDate(at, project.siteTimeZone), startDate));
+  const startDate = siteDay(now, project.siteTimeZone);
+  const weekOf = (at: Date) => Math.max(0, weekIndexOf(siteDay(at, project.siteTimeZone), startDate));
   const problems: string[] = [];
 
   const catalogue = await listCatalogue(tx, projectId);
@@ -292,10 +213,10 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
     const dated = stop.status === 'in_progress' ? stop.actualStart ?? stop.plannedStart ?? now : stop.plannedStart;
     let ds = demandStops.get(stop.id);
     if (!ds) {
-      const when = dated ? ` on ${siteDate(dated, project.siteTimeZone)}` : ' (no date yet: at the positions’ P90 dates)';
+      const when = dated ? ` on ${siteDay(dated, project.siteTimeZone)}` : ' (no date yet: at the positions’ P90 dates)';
       ds = {
         id: stop.id, status: stop.status, chainageM: stop.chainageM, ringNumber: stop.ringNumber, plannedStart: dated, dateBasis: dated ? 'planned' : 'p90', positionNumbers: [],
-        label: `Stop at ${chainageText(stop.chainageM)}${stop.ringNumber != null ? ` (ring ${stop.ringNumber})` : ''}, ${stop.status.replace('_', ' ')}${when}`,
+        label: `Stop at ${formatChainage(stop.chainageM)}${stop.ringNumber != null ? ` (ring ${stop.ringNumber})` : ''}, ${stop.status.replace('_', ' ')}${when}`,
       };
       demandStops.set(stop.id, ds);
     }
@@ -303,7 +224,7 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
     const p90 = p90Of.get(positionId);
     const at = dated ?? (p90 && p90.status !== 'beyond_known_ground' ? p90.date : null);
     if (!at) {
-      problems.push(`Position ${positionNumber} is on the stop at ${chainageText(stop.chainageM)}, which has no date, and the forecast gives it no change-out date: its change is not counted.`);
+      problems.push(`Position ${positionNumber} is on the stop at ${formatChainage(stop.chainageM)}, which has no date, and the forecast gives it no change-out date: its change is not counted.`);
       continue;
     }
     if (firstChangeWeek.has(positionId)) continue; // on two open stops: counted once, at the first
@@ -368,7 +289,7 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
     if (!assembly || c.rebuild_count >= settings.maxRebuilds) continue;
     if (specOf.get(assembly.id)!.bomByCondition[worstCondition(assembly.id, c.removal_conditions ?? [])] === 'scrap') continue;
     const ready = new Date(new Date(c.removed_at).getTime() + settings.turnaroundDays * 86_400_000);
-    rebuildsInProgress.push({ assemblyPartId: assembly.id, readyWeek: Math.max(0, weekIndexOf(siteDate(ready, project.siteTimeZone), startDate)), qty: 1 });
+    rebuildsInProgress.push({ assemblyPartId: assembly.id, readyWeek: Math.max(0, weekIndexOf(siteDay(ready, project.siteTimeZone), startDate)), qty: 1 });
   }
 
   const openOrders: OpenOrder[] = (await openOrderLines(tx, projectId)).map((l) => ({ partId: l.partId, dueWeek: weekIndexOf(l.dueDate, startDate), qty: l.qty }));

@@ -3,17 +3,17 @@
  * section), and the work pack of a stop (what to change, which serials to take from the store, the
  * parts kit, the crew, the cautions). The pure optimiser is shared/domain/stop-planner.ts.
  */
-import { TZDate } from '@date-fns/tz';
-import { format } from 'date-fns';
 import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
+import { aheadM, chainageAhead, formatChainage, ringAtAhead } from '../../shared/domain/chainage';
 import { COMPRESSED_AIR_CAUTION, needsCompressedAir, workingPressureFromHead } from '../../shared/domain/compressed-air';
 import { forecastChangeOut, type DriveDirection, type PositionClass } from '../../shared/domain/forecast';
 import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
+import { partsKit } from '../../shared/domain/work-pack';
 import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
 import type { DbOrTx } from '../db/client';
 import { crewMembers, crews, cutters, fittings, geologySections, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
-import { notFound } from '../lib/http-error';
+import { NotFoundError } from '../lib/errors';
 import { computeForecast, type ProjectForecast } from './forecast';
 
 /**
@@ -171,7 +171,7 @@ async function loadDriveGeology(tx: DbOrTx, project: typeof projects.$inferSelec
  */
 export async function planForProject(tx: DbOrTx, projectId: string, now: Date, overrides: StopPlanQuery = {}): Promise<ProjectStopPlan> {
   const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
-  if (!project) throw notFound('That project');
+  if (!project) throw new NotFoundError('That project');
   const settings = planSettings(project, overrides);
   const forecast = await computeForecast(tx, projectId, now);
   const geology = await loadDriveGeology(tx, project);
@@ -201,18 +201,17 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   if (result.feasible && !result.provenOptimal) {
     problems0.push(`The search stopped after ${PLANNER_MAX_STATES.toLocaleString('en')} states: this is the best plan found, not proven the cheapest. A shorter horizon gives an exact answer.`);
   }
-  const sign = geology.direction === 'increasing' ? 1 : -1;
-  const horizonEndChainageM = forecast.currentChainageM + sign * Math.max(0, input.horizonM);
+  const horizonEndChainageM = chainageAhead(forecast.currentChainageM, Math.max(0, input.horizonM), geology.direction);
   const problems = [...empty.problems, ...problems0];
   if (knownM < settings.horizonM) problems.push(`The long section ends ${knownM.toFixed(0)} m ahead of the machine: the plan stops there, short of the ${settings.horizonM} m horizon.`);
   if (infeasible.length > 0) {
     problems.push(
       `No plan keeps position${infeasible.length === 1 ? '' : 's'} ${infeasible.map((p) => p.positionNumber).join(', ')} within the cautious wear limit ` +
-      `past ${chainageText(horizonEndChainageM)} (why, below). ` +
+      `past ${formatChainage(horizonEndChainageM)} (why, below). ` +
       (result.feasible ? 'The plan stops short of that point; decide with the site how to pass it.' : 'Decide with the site how to pass it.'),
     );
   }
-  const candidatePlaceCount = input.stopPlaces.filter((p) => (p.chainageM - forecast.currentChainageM!) * sign <= input.horizonM).length;
+  const candidatePlaceCount = input.stopPlaces.filter((p) => aheadM(forecast.currentChainageM!, p.chainageM, geology.direction) <= input.horizonM).length;
   const base = { ...empty, horizonEndChainageM, candidatePlaceCount, problems, infeasible };
   if (!result.feasible) return base;
 
@@ -224,7 +223,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
       return {
         chainageM: s.chainageM,
         aheadM: s.aheadM,
-        ringNumber: forecast.currentRingNumber! + Math.round(s.aheadM / geology.ringLengthM),
+        ringNumber: ringAtAhead(forecast.currentRingNumber!, s.aheadM, geology.ringLengthM),
         compressedAir: s.compressedAir,
         waterHeadM,
         workingPressureBar: pressureBar(waterHeadM),
@@ -268,36 +267,38 @@ export async function describeStopPlace(tx: DbOrTx, project: typeof projects.$in
   const geology = await loadDriveGeology(tx, project);
   const place = stopPlaceAt(geology.sections, chainageM);
   const machine = await machinePosition(tx, project.id);
-  const aheadM = machine ? (chainageM - machine.chainageM) * (geology.direction === 'increasing' ? 1 : -1) : null;
+  const ahead = machine ? aheadM(machine.chainageM, chainageM, geology.direction) : null;
   return {
     ...place,
     machine,
-    aheadM,
+    aheadM: ahead,
     // The stop lies in the ring during whose stroke the machine reaches it (as in the forecast).
-    ringNumber: machine && aheadM != null && aheadM >= 0 ? machine.ringNumber + Math.ceil(aheadM / project.ringLengthM - 1e-9) : null,
+    ringNumber: machine && ahead != null && ahead >= 0 ? ringAtAhead(machine.ringNumber, ahead, project.ringLengthM) : null,
     workingPressureBar: pressureBar(place.waterHeadM),
   };
 }
 
 /**
- * Spares packed with every stop's kit besides one cutter assembly per change, per disc size.
- * Common practice, no source; adjust to the site's failure history: a ring, a seal kit and a
- * bearing kit are the parts most often found damaged when a disc is taken off.
+ * Where the nightly job proposes a stop for positions due `dueAheadM` metres ahead: the last ring
+ * boundary at or before that point where a stop is allowed (the planner's candidate places, the
+ * rule of `stopPlaceAt`), walking back towards the machine; the machine's own place when there is
+ * none. With its ring, water head, compressed air (the site's rule) and working pressure; null
+ * before the first stroke.
  */
-export const kitSpares = [
-  { item: 'spare ring', perChanges: 10 },
-  { item: 'spare seal kit', perChanges: 10 },
-  { item: 'spare bearing kit', perChanges: 20 },
-] as const;
-
-const inches = (sizeIn: number) => `${sizeIn}″`;
-
-/** The parts kit for `changesBySize` changes per disc size (in): assemblies one per change, spares per `kitSpares`. */
-export function partsKit(changesBySize: Map<number, number>): { item: string; quantity: number; basis: string }[] {
-  return [...changesBySize.entries()].sort((a, b) => a[0] - b[0]).flatMap(([sizeIn, n]) => [
-    { item: `${inches(sizeIn)} disc cutter assembly`, quantity: n, basis: 'one per position changed' },
-    ...kitSpares.map((s) => ({ item: `${inches(sizeIn)} ${s.item}`, quantity: Math.ceil(n / s.perChanges), basis: `one per ${s.perChanges} changes, rounded up` })),
-  ]);
+export async function proposalStopPlace(tx: DbOrTx, project: typeof projects.$inferSelect, dueAheadM: number) {
+  const machine = await machinePosition(tx, project.id);
+  if (!machine) return null;
+  const geology = await loadDriveGeology(tx, project);
+  let chainageM = machine.chainageM;
+  for (let k = Math.floor(Math.max(0, dueAheadM) / project.ringLengthM + 1e-9); k >= 0; k--) {
+    const at = chainageAhead(machine.chainageM, k * project.ringLengthM, project.driveDirection);
+    if (stopPlaceAt(geology.sections, at).allowed) {
+      chainageM = at;
+      break;
+    }
+  }
+  const place = await describeStopPlace(tx, project, chainageM);
+  return { ...place, chainageM, compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: project.compressedAirAboveHeadM }) };
 }
 
 const hoursBetween = (from: Date | null, to: Date | null) => (from && to ? (to.getTime() - from.getTime()) / 3_600_000 : null);
@@ -310,7 +311,7 @@ const hoursBetween = (from: Date | null, to: Date | null) => (from && to ? (to.g
  */
 export async function loadWorkPack(tx: DbOrTx, projectId: string, stopId: string) {
   const [stop] = await tx.select().from(stops).where(and(eq(stops.id, stopId), eq(stops.projectId, projectId)));
-  if (!stop) throw notFound('That stop');
+  if (!stop) throw new NotFoundError('That stop');
   const changes = await tx
     .select({
       positionId: positions.id, number: positions.number, positionClass: positions.positionClass, trackRadiusMm: positions.trackRadiusMm,
@@ -374,38 +375,4 @@ export async function listStops(tx: DbOrTx, projectId: string, status?: StopStat
     .where(and(eq(stops.projectId, projectId), status ? eq(stops.status, status) : undefined))
     .orderBy(project?.direction === 'decreasing' ? desc(stops.chainageM) : asc(stops.chainageM), asc(stops.createdAt));
   return rows.map((r) => ({ ...r.stop, crewName: r.crewName, positionCount: r.positionCount, actualHours: hoursBetween(r.stop.actualStart, r.stop.actualEnd) }));
-}
-
-/** Chainage as km+metres, e.g. 5012.5 → "5+012.5". */
-export function chainageText(chainageM: number): string {
-  const km = Math.floor(Math.abs(chainageM) / 1000);
-  return `${chainageM < 0 ? '-' : ''}${km}+${(Math.abs(chainageM) - km * 1000).toFixed(1).padStart(5, '0')}`;
-}
-
-/** A moment in the site's time zone, e.g. "Mon 14 Dec 2026 06:00". */
-export const siteTimeText = (at: Date, timeZone: string) => format(new TZDate(at, timeZone), 'EEE d MMM yyyy HH:mm');
-
-/** The work pack as plain text for e-mail: when, where, air, positions, serials, kit, crew, link and cautions. */
-export function workPackText(pack: WorkPack, project: { name: string; siteTimeZone: string }, stopUrl: string): string {
-  const { stop } = pack;
-  const pressure = stop.workingPressureBar != null ? ` (indicative working pressure ${stop.workingPressureBar.toFixed(2)} bar)` : '';
-  const lines = [
-    `${project.name}: cutter stop at chainage ${chainageText(stop.chainageM)}${stop.ringNumber != null ? `, ring ${stop.ringNumber}` : ''}`,
-    stop.plannedStart ? `Planned start: ${siteTimeText(stop.plannedStart, project.siteTimeZone)} (${project.siteTimeZone}), about ${stop.expectedHours ?? '?'} h.` : 'Not scheduled yet.',
-    `Crew: ${pack.crew ? `${pack.crew.name} (${pack.crew.members.map((m) => m.name).join(', ') || 'no members'})` : 'none yet'}.`,
-    stop.compressedAir ? `Worked in COMPRESSED AIR${pressure}.` : 'Worked in free air.',
-    '',
-    `Positions to change (${pack.positions.length}):`,
-    ...pack.positions.map((p) => `  - position ${p.number} (${p.positionClass}${p.twinDisc ? ', twin' : ''}), ${p.fittedSerial ?? 'no serial'} off` +
-      (p.expectedWearMm != null ? `, expected wear ${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm` : '')),
-    '',
-    `From the store: ${pack.storeSerials.map((c) => c.serial).join(', ') || 'none'}.`,
-    ...pack.shortages.map((s) => `SHORT: ${s.needed} ${inches(s.discSizeIn)} cutters needed, ${s.inStore} in store.`),
-    `Parts kit: ${pack.partsKit.map((k) => `${k.quantity} × ${k.item}`).join('; ')}.`,
-    '',
-    `Work pack: ${stopUrl}`,
-    '',
-    ...pack.cautions.flatMap((c) => [c, '']),
-  ];
-  return `${lines.join('\n').trimEnd()}\n`;
 }

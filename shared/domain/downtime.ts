@@ -1,5 +1,6 @@
 import { TZDate } from '@date-fns/tz';
-import { addDays, addWeeks, getISOWeek, getISOWeekYear, startOfDay, startOfISOWeek } from 'date-fns';
+import { addDays, startOfDay } from 'date-fns';
+import { siteIsoWeek, siteWeekStart } from '../site-time';
 
 /** A downtime event over [start, end). */
 export interface DowntimeEvent {
@@ -74,16 +75,11 @@ function hoursByLabel(startMs: number, endMs: number, cuts: Cut[]): Map<string, 
   return hours;
 }
 
-/** ISO week key ('2026-W09') of an instant in the time zone `date` carries. */
-function isoWeekKey(date: TZDate): string {
-  return `${getISOWeekYear(date)}-W${String(getISOWeek(date)).padStart(2, '0')}`;
-}
-
 /** Local Monday-00:00 cuts covering [startMs, endMs). */
 function weekCuts(startMs: number, endMs: number, timeZone: string): Cut[] {
   const cuts: Cut[] = [];
-  for (let monday = startOfISOWeek(new TZDate(startMs, timeZone)); monday.getTime() < endMs; monday = addWeeks(monday, 1)) {
-    cuts.push({ atMs: monday.getTime(), label: isoWeekKey(monday) });
+  for (let w = 0, monday = siteWeekStart(startMs, timeZone); monday.getTime() < endMs; monday = siteWeekStart(startMs, timeZone, ++w)) {
+    cuts.push({ atMs: monday.getTime(), label: siteIsoWeek(monday, timeZone) });
   }
   return cuts;
 }
@@ -139,6 +135,11 @@ function hoursByCauseAndLabel(
     }
   }
   return [...totals].flatMap(([cause, byLabel]) => [...byLabel].map(([label, hours]) => ({ cause, label, hours })));
+}
+
+/** Every ISO week of the site's local time in `timeZone` that [start, end) touches, in order (e.g. a report's columns). */
+export function isoWeeksTouching(start: Date, end: Date, timeZone: string): string[] {
+  return weekCuts(start.getTime(), end.getTime(), timeZone).map((c) => c.label);
 }
 
 /**
@@ -234,4 +235,18 @@ export function findOverlappingEvents(events: readonly DowntimeEvent[]): EventOv
     }
   });
   return overlaps;
+}
+
+/** The parts of `gap` that none of `covered` (sorted by start) covers, in order; e.g. the unexplained rest of a standstill. */
+export function uncoveredParts(gap: { start: Date; end: Date }, covered: readonly { start: Date; end: Date }[]): { start: Date; end: Date }[] {
+  const pieces: { start: Date; end: Date }[] = [];
+  let cursor = gap.start.getTime();
+  for (const c of covered) {
+    if (c.start.getTime() >= gap.end.getTime()) break;
+    if (c.end.getTime() <= cursor) continue;
+    if (c.start.getTime() > cursor) pieces.push({ start: new Date(cursor), end: c.start });
+    cursor = Math.max(cursor, c.end.getTime());
+  }
+  if (cursor < gap.end.getTime()) pieces.push({ start: new Date(cursor), end: gap.end });
+  return pieces;
 }

@@ -24,11 +24,11 @@
  * Discs per position does not change a disc's wear: discs on one hub roll at about the same track
  * radius and the fitted class factor carries any difference; it is echoed for parts demand.
  */
+import { chainageAhead, directionSign, ringAtAhead, type DriveDirection } from './chainage';
 import { gaugeBoreCheck, type GaugeBoreCheck } from './gauge-bore';
 
 export type PositionClass = 'centre' | 'face' | 'gauge';
 export type { DriveDirection } from './chainage';
-import type { DriveDirection } from './chainage';
 export type Quantile = 'p50' | 'p90';
 
 /** Wear rates of one ground type, mm of radial ring wear per km rolled, for a face disc. */
@@ -227,7 +227,7 @@ export function forecastChangeOut(input: ForecastInput): ChangeOutForecast {
   if (position.positionClass === 'gauge' && position.gaugeTiltDeg === null) {
     throw new RangeError(`gauge position ${position.positionNumber} has no tilt angle`);
   }
-  const sign = input.driveDirection === 'increasing' ? 1 : -1;
+  const sign = directionSign(input.driveDirection);
   const classFactor = rates.classFactors[position.positionClass];
 
   const segments = groundAhead(input.geology, currentChainageM, sign).map((s) => {
@@ -258,9 +258,9 @@ export function forecastChangeOut(input: ForecastInput): ChangeOutForecast {
     status,
     wearNowMm,
     remainingM: distanceM,
-    chainageM: currentChainageM + sign * distanceM,
+    chainageM: chainageAhead(currentChainageM, distanceM, input.driveDirection),
     // The point lies in the ring during whose stroke the machine reaches it.
-    ringNumber: currentRingNumber + Math.max(0, Math.ceil(distanceM / ringLengthM - EPS)),
+    ringNumber: ringAtAhead(currentRingNumber, distanceM, ringLengthM),
     date: new Date(now.getTime() + days * MS_PER_DAY),
     wearThereMm,
   });

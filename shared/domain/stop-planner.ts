@@ -67,6 +67,7 @@
  * infeasible exactly when some ring falls due before the next allowed place, reported per
  * position with the ring and the places around its due point.
  */
+import { directionSign } from './chainage';
 import type { DriveDirection, PositionClass } from './forecast';
 
 /** Cautious wear growth from `fromAheadM` (m ahead) until the next stretch starts; the last one runs on. */
@@ -223,7 +224,7 @@ function validate(input: StopPlanInput): void {
 }
 
 function prepare(input: StopPlanInput): Prepared {
-  const sign = input.direction === 'increasing' ? 1 : -1;
+  const sign = directionSign(input.direction);
   // Places behind the machine or beyond the horizon cannot be used; of two at one point keep the cheaper.
   const places = input.stopPlaces
     .map((p) => ({ aheadM: (p.chainageM - input.currentChainageM) * sign, compressedAir: p.compressedAir }))
@@ -286,7 +287,7 @@ function lastReachable(prep: Prepared, i: number, budgetMm: number): number {
 
 /** Per position: the places of its own latest chain (each ring changed at its last reachable place), or why it fails. */
 function ownLatestChains(input: StopPlanInput, prep: Prepared): { chains: number[][]; problems: InfeasiblePosition[] } {
-  const sign = input.direction === 'increasing' ? 1 : -1;
+  const sign = directionSign(input.direction);
   const chains: number[][] = [];
   const problems: InfeasiblePosition[] = [];
   input.positions.forEach((p, i) => {
@@ -317,7 +318,7 @@ function ownLatestChains(input: StopPlanInput, prep: Prepared): { chains: number
 
 /** Prices a plan given as (place index, positions changed there) in place order. */
 function pricePlan(input: StopPlanInput, prep: Prepared, plan: { idx: number; changed: number[] }[]): StopPlan {
-  const sign = input.direction === 'increasing' ? 1 : -1;
+  const sign = directionSign(input.direction);
   const v = input.wastedRingLifeHPerMm;
   const budgetMm = input.positions.map((p) => p.limitMm - p.wearNowMm);
   const stops = plan.map(({ idx, changed }): PlannedStop => {

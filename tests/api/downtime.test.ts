@@ -155,7 +155,7 @@ describe('the report, hand-worked across a week boundary, a shift boundary and b
     expect(pareto.text.trim().split('\n')).toEqual(['cause,cutter_work,hours,share_pct,cumulative_pct', 'Cutter change,yes,12.00,52.2,52.2', 'Machine breakdown,no,11.00,47.8,100.0']);
     const events = await ctx.agent.get(ctx.url('/events?format=csv&to=2026-03-31'));
     // Site-local times with their offset: the breakdown ends in summer time.
-    expect(events.text).toContain('2026-03-28T18:00+01:00,2026-03-29T06:00+02:00,11.00,Machine breakdown,no,manual');
+    expect(events.text).toContain('2026-03-28T18:00:00+01:00,2026-03-29T06:00:00+02:00,11.00,Machine breakdown,no,manual');
   });
 });
 

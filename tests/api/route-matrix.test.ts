@@ -7,6 +7,7 @@ import type { Express } from 'express';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { projectRoles, type ProjectRole } from '../../shared/roles';
 import { createApp } from '../../server/app';
+import { jobs } from '../../jobs/index';
 import { randomUUID } from 'node:crypto';
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
@@ -18,7 +19,7 @@ import { makeCutterhead } from '../support/drive-fixtures';
 import { stopContext } from '../support/stops-fixtures';
 import { routeTable, type RouteCase, type RouteContext } from './route-table';
 
-const app: Express = createApp();
+const app: Express = createApp({ jobs });
 
 type Caller = 'anonymous' | 'admin' | 'outsider' | `member:${ProjectRole}`;
 const callers: Caller[] = ['anonymous', 'admin', 'outsider', ...projectRoles.map((r) => `member:${r}` as const)];

@@ -36,12 +36,16 @@ describe('stop reminders', () => {
     await stopRemindersJob({ now: hours(23) });
     const first = await waitForMail(a, 'Reminder (24 hours)');
     expect(first.toAddresses.sort()).toEqual([a, b].sort());
-    expect(first.textBody).toContain('chainage 4+321.5 (ring 2881)');
-    expect(first.textBody).toContain('position 2 — expected wear 23.4 of 25 mm');
-    expect(first.textBody).toContain('COMPRESSED AIR (indicative 3.10 bar)');
+    // The work pack's own text, as when the stop was published.
+    expect(first.textBody).toContain('cutter stop at chainage 4+321.5, ring 2881');
+    expect(first.textBody).toMatch(/position 2 \(\w+\), \S+ off, expected wear 23\.4 of 25 mm/);
+    expect(first.textBody).toContain('COMPRESSED AIR (indicative working pressure 3.10 bar)');
     expect(first.textBody).toMatch(/does not compute decompression schedules/);
     expect(first.textBody).toMatch(/Entering the cutterhead/);
-    expect(first.textBody).toMatch(/\(Europe\/Zurich\)/);
+    // Site time with the zone named; the reference is the platform's own time-zone data (Intl), not the code's date library.
+    const siteClock = new Intl.DateTimeFormat('sv-SE', { timeZone: 'Europe/Zurich', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(start);
+    expect(first.textBody).toContain(`Planned start: ${siteClock} Europe/Zurich, about 10 h.`);
+    expect(first.subject).toBe(`Reminder (24 hours): cutter stop at 4+321.5, ${siteClock} Europe/Zurich`);
 
     await stopRemindersJob({ now: hours(22) });
     expect(await mailsTo(a)).toHaveLength(1);

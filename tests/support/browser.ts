@@ -3,6 +3,7 @@ import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { chromium, type Browser } from 'playwright-core';
 import { createApp } from '../../server/app';
+import { jobs } from '../../jobs/index';
 import { ensureClientBuilt } from '../../server/devenv/client-build';
 import { chromiumPath, ensureDebianPackages } from '../../server/devenv/debian-packages';
 
@@ -24,7 +25,7 @@ export function launchBrowser(): Promise<Browser> {
 /** Builds the client if stale and serves it with the API on a free port. */
 export async function serveApp(): Promise<{ url: string; close: () => Promise<void> }> {
   ensureClientBuilt('.');
-  const server: Server = createApp({ clientDir: 'dist' }).listen(0, '127.0.0.1');
+  const server: Server = createApp({ clientDir: 'dist', jobs }).listen(0, '127.0.0.1');
   await new Promise<void>((resolve) => server.once('listening', resolve));
   const { port } = server.address() as AddressInfo;
   return { url: `http://127.0.0.1:${port}`, close: () => new Promise((resolve) => server.close(() => resolve())) };
