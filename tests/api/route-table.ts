@@ -59,6 +59,7 @@ export const routeTable: RouteCase[] = [
   // No message is uncertain here: a permitted caller gets past the guard to the 404.
   { method: 'post', path: '/api/admin/outbox/999999999/release', admin: true, okStatus: 404 },
   { method: 'post', path: '/api/admin/jobs/deliver-mail/run', admin: true },
+  { method: 'get', path: '/api/admin/backups/status', admin: true },
   { method: 'get', path: '/api/auth/notifications', signedIn: true },
   { method: 'put', path: '/api/auth/notifications', signedIn: true, body: () => ({ kind: 'stop_reminder', enabled: true }) },
 
