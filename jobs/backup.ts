@@ -14,6 +14,8 @@ import type { JobContext } from '../server/services/job-runner';
 
 export const BACKUP_JOB = BACKUP_JOB_NAME;
 
+const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? '' : 's'}`;
+
 export async function nightlyBackupJob({ now }: JobContext): Promise<string> {
   const e = env();
   try {
@@ -21,8 +23,8 @@ export async function nightlyBackupJob({ now }: JobContext): Promise<string> {
     const pruned = await pruneBackups(e.BACKUP_DIR, now, { daily: e.BACKUP_KEEP_DAILY, weekly: e.BACKUP_KEEP_WEEKLY });
     const photos = backup.manifest.files.length - 1;
     return (
-      `${backup.name}: ${formatBytes(backup.sizeBytes)} (database and ${photos} stored file${photos === 1 ? '' : 's'}) ` +
-      `in ${(backup.durationMs / 1000).toFixed(1)} s; ${pruned.kept.length} backups kept, ${pruned.removed.length} removed.`
+      `${backup.name}: ${formatBytes(backup.sizeBytes)} (database and ${plural(photos, 'stored file')}) ` +
+      `in ${(backup.durationMs / 1000).toFixed(1)} s; ${plural(pruned.kept.length, 'backup')} kept, ${pruned.removed.length} removed.`
     );
   } catch (err) {
     await mailAdministrators(

@@ -22,8 +22,10 @@ backupsRouter.get('/status', async (_req, res) => {
     .limit(1);
   const goodAt = good?.finishedAt ?? good?.startedAt ?? null;
   const onDisk = await listBackups(env().BACKUP_DIR).catch(() => []);
+  // A backup made by hand (`npm run backup`) counts too: it is a complete folder, not a job run.
+  const newestAt = Math.max(goodAt?.getTime() ?? 0, onDisk.at(-1)?.takenAt.getTime() ?? 0);
   res.json({
-    missing: !goodAt || now.getTime() - goodAt.getTime() > BACKUP_MISSING_AFTER_HOURS * 3600_000,
+    missing: now.getTime() - newestAt > BACKUP_MISSING_AFTER_HOURS * 3600_000,
     missingAfterHours: BACKUP_MISSING_AFTER_HOURS,
     lastGood: good ? { at: goodAt, summary: good.summary } : null,
     failedSince: failed ? { at: failed.startedAt, error: failed.error } : null,

@@ -114,7 +114,9 @@ function runTool(bin: string, args: string[], env: NodeJS.ProcessEnv): Promise<v
   return new Promise((resolve, reject) => {
     const child = spawn(bin, args, { env, cwd: '/', stdio: ['ignore', 'ignore', 'pipe'] });
     let stderr = '';
-    child.stderr.on('data', (d: Buffer) => (stderr += d.toString()).length > 20_000 && (stderr = stderr.slice(-20_000)));
+    child.stderr.on('data', (d: Buffer) => {
+      stderr = (stderr + d.toString()).slice(-20_000);
+    });
     child.on('error', reject);
     child.on('close', (code) =>
       code === 0 ? resolve() : reject(new Error(`${path.basename(bin)} failed (exit ${code}): ${stderr.trim() || 'no message'}`)),
