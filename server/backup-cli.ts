@@ -12,7 +12,7 @@ import path from 'node:path';
 import { z } from 'zod';
 import { startLocalPostgres } from './devenv/postgres';
 import { backupEnvSchema, loadDotEnv } from './env';
-import { createBackup, formatBytes, listBackups, readManifest, restoreBackup, RestoreRefused, verifyBackup } from './services/backup';
+import { createBackup, formatBytes, knownMigrationCount, listBackups, readManifest, restoreBackup, RestoreRefused, verifyBackup } from './services/backup';
 
 /** The local cluster of `npm start` (server/start.ts). */
 const LOCAL = { dataDir: '.data/pg', port: 54329, database: 'kerfwise' };
@@ -122,7 +122,11 @@ async function main() {
     log(`Restored ${r.manifest.name} (taken ${r.manifest.takenAt}, migration level ${r.manifest.database.migrationLevel.lastTag ?? 'none'}):`);
     log(`  ${r.tables} tables, ${r.rows} rows — every table's row count matches the backup's manifest;`);
     log(`  ${r.files} stored files into ${path.resolve(storageDir)} — every file's SHA-256 matches.`);
-    log('Start Kerfwise as usual; it applies any newer migrations. Then sign in and look at a drive (README, "Check a restore").');
+    if (r.manifest.database.migrationLevel.count > knownMigrationCount()) {
+      log(`Caution: the backup comes from a newer Kerfwise (${r.manifest.database.migrationLevel.count} migrations, this one knows ${knownMigrationCount()}). Update this checkout before starting it.`);
+    } else {
+      log('Start Kerfwise as usual; it applies any newer migrations. Then sign in and look at a drive (README, "Check a restore").');
+    }
   } catch (err) {
     if (err instanceof RestoreRefused) fail(err.message);
     throw err;

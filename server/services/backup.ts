@@ -151,6 +151,11 @@ async function rowCounts(client: pg.Client): Promise<Record<string, number>> {
 
 const journalFile = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../drizzle/meta/_journal.json');
 
+/** How many migrations this checkout of Kerfwise has (a backup from a newer one has more). */
+export function knownMigrationCount(): number {
+  return (JSON.parse(readFileSync(journalFile, 'utf8')) as { entries: unknown[] }).entries.length;
+}
+
 async function migrationLevel(client: pg.Client): Promise<{ count: number; lastTag: string | null }> {
   const exists = await client.query(`select 1 from pg_tables where schemaname = 'drizzle' and tablename = '__drizzle_migrations'`);
   if (exists.rowCount === 0) return { count: 0, lastTag: null };
