@@ -6,6 +6,7 @@
 import cron, { type ScheduledTask } from 'node-cron';
 import { deliverPendingMail } from '../server/lib/mail';
 import { catchUpMissedRuns, runJob, type JobDefinition } from '../server/services/job-runner';
+import { BACKUP_JOB, nightlyBackupJob } from './backup';
 import { downtimeDigestJob } from './downtime-digest';
 import { partsDigestJob } from './parts-digest';
 import { refreshForecastsJob } from './refresh-forecasts';
@@ -52,6 +53,7 @@ export const jobs: JobDefinition[] = [
     periodMs: 7 * 24 * 60 * MINUTE,
     run: (ctx) => partsDigestJob(ctx),
   },
+  { name: BACKUP_JOB, label: 'Nightly backup of the database and photos (BACKUP_DIR), with retention', cron: '15 2 * * *', periodMs: 24 * 60 * MINUTE, run: nightlyBackupJob },
 ];
 
 /** Schedules every job and catches up missed runs (in the background). Returns a stop function. */

@@ -10,6 +10,7 @@ import { loadUser } from './middleware/auth';
 import { apiNotFound, errorHandler } from './middleware/error';
 import { adminRouter, createAdminJobsRouter } from './routes/admin';
 import { authRouter } from './routes/auth';
+import { backupsRouter } from './routes/backups';
 import { crewsRouter } from './routes/crews';
 import { cuttersRouter } from './routes/cutters';
 import { downtimeRouter } from './routes/downtime';
@@ -65,6 +66,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use('/projects/:projectId/downtime', downtimeRouter);
   api.use('/projects/:projectId/parts', partsRouter);
   api.use('/admin/jobs', createAdminJobsRouter(options.jobs ?? []));
+  api.use('/admin/backups', backupsRouter);
   api.use('/admin', adminRouter);
   api.use(apiNotFound);
   app.use('/api', api);

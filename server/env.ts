@@ -5,6 +5,16 @@ import { z } from 'zod';
  * Configuration from the environment (and `.env`, loaded by Node's own loader). Read once, on first
  * use, after the start script has filled in DATABASE_URL / SMTP_URL for the local services.
  */
+/** Backups (server/services/backup.ts); also read on their own by `npm run backup` / `npm run restore`. */
+export const backupEnvSchema = z.object({
+  /** Where nightly and manual backups go; copy this folder off the machine (README, "Backups"). */
+  BACKUP_DIR: z.string().default('.data/backups'),
+  /** Days (that have a backup) whose newest backup is kept. */
+  BACKUP_KEEP_DAILY: z.coerce.number().int().min(1, 'BACKUP_KEEP_DAILY must be at least 1').default(14),
+  /** ISO weeks (that have a backup) whose newest backup is kept. */
+  BACKUP_KEEP_WEEKLY: z.coerce.number().int().min(0).default(8),
+});
+
 const envSchema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
   PORT: z.coerce.number().int().min(1).max(65535).default(3000),
@@ -20,6 +30,7 @@ const envSchema = z.object({
   TRUST_PROXY: z.coerce.number().int().min(0).default(0),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   STORAGE_DIR: z.string().default('.data/storage'),
+  ...backupEnvSchema.shape,
 });
 
 export type Env = z.infer<typeof envSchema>;

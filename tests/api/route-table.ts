@@ -77,6 +77,7 @@ export const routeTable: RouteCase[] = [
   { method: 'get', path: '/api/admin/jobs', admin: true },
   { method: 'post', path: '/api/admin/outbox/:outboxId/release', admin: true, okStatus: 202, prepare: uncertainMail },
   { method: 'post', path: '/api/admin/jobs/:jobName/run', admin: true },
+  { method: 'get', path: '/api/admin/backups/status', admin: true },
   { method: 'get', path: '/api/auth/notifications', signedIn: true },
   { method: 'put', path: '/api/auth/notifications', signedIn: true, body: () => ({ kind: 'stop_reminder', enabled: true }) },
 

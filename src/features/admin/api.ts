@@ -52,11 +52,22 @@ export interface JobInfo {
   runs: JobRunRow[];
 }
 
+export interface BackupStatus {
+  missing: boolean;
+  missingAfterHours: number;
+  lastGood: { at: string; summary: string | null } | null;
+  failedSince: { at: string; error: string | null } | null;
+  backupDir: string;
+  onDisk: number;
+  newestOnDisk: string | null;
+}
+
 export const adminQueries = {
   all: ['admin'] as const,
   users: () => queryOptions({ queryKey: [...adminQueries.all, 'users'], queryFn: () => apiGet<AdminUser[]>('/api/admin/users') }),
   projects: () => queryOptions({ queryKey: [...adminQueries.all, 'projects'], queryFn: () => apiGet<AdminProject[]>('/api/admin/projects') }),
   jobs: () => queryOptions({ queryKey: [...adminQueries.all, 'jobs'], queryFn: () => apiGet<JobInfo[]>('/api/admin/jobs'), refetchInterval: 10_000 }),
+  backupStatus: () => queryOptions({ queryKey: [...adminQueries.all, 'backup-status'], queryFn: () => apiGet<BackupStatus>('/api/admin/backups/status'), refetchInterval: 60_000 }),
   mail: () =>
     queryOptions({
       queryKey: [...adminQueries.all, 'mail'],

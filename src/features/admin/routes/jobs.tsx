@@ -6,6 +6,7 @@ import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { adminQueries, runJobNow } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
+import { BackupStatusLine } from '../components/backup-status';
 
 const outcomeText: Record<string, string> = { ok: 'Done', failed: 'Failed', skipped: 'Skipped (another server ran it)', running: 'Running…' };
 
@@ -25,6 +26,7 @@ export function AdminJobsRoute() {
   return (
     <Page title="Administration">
       <AdminTabs />
+      <BackupStatusLine />
       {message && <Alert tone={message.tone}>{message.text}</Alert>}
       {jobs.map((job) => (
         <Panel key={job.name} title={job.label}>
