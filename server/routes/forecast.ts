@@ -6,7 +6,7 @@ import { forecastSettings } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { idParam } from '../lib/params';
-import { computeForecast, computeWearFit, loadForecastSettings } from '../services/forecast';
+import { computeForecast, computeWearFit, forecastRates, loadForecastSettings } from '../services/forecast';
 
 export const wearFitRouter = Router({ mergeParams: true });
 export const forecastRouter = Router({ mergeParams: true });
@@ -22,8 +22,14 @@ wearFitRouter.get('/', requireProject('forecast.read'), async (req, res) => {
     .filter((x) => x.entries.length === 1)
     .slice(0, 4000)
     .map(({ entries: [[groundTypeId, rolledKm]], o }) => ({ groundTypeId, rolledKm, wearMm: o.wearMm, positionClass: o.positionClass }));
+  const cautious = forecastRates(report);
   res.json({
-    grounds: report.grounds.map((g) => ({ ...g, rate: report.fit.rates.find((r) => r.groundTypeId === g.id) ?? null })),
+    grounds: report.grounds.map((g) => ({
+      ...g,
+      rate: report.fit.rates.find((r) => r.groundTypeId === g.id) ?? null,
+      cautious: cautious.byGround[g.id] ?? null,
+    })),
+    relativeScatter: cautious.relativeScatter,
     residualSdMm: report.fit.residualSdMm,
     residualDof: report.fit.residualDof,
     classFactors: report.fit.classFactors,

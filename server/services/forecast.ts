@@ -7,7 +7,7 @@
  */
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { discConditions, type PositionClass } from '../../shared/cutters';
-import { cautiousRates, relativeScatter } from '../../shared/domain/cautious-rates';
+import { cautiousRates, relativeScatter, type CautiousRate } from '../../shared/domain/cautious-rates';
 import { classifyCai } from '../../shared/domain/cerchar';
 import { estimateDriveRates, forecastChangeOut, modelledWearSinceMm, type ChangeOutForecast, type WearRateSet } from '../../shared/domain/forecast';
 import { gehringPriorRateMmPerKm } from '../../shared/domain/gehring-prior';
@@ -110,7 +110,8 @@ export function buildWearFit(data: ForecastData): WearFitReport {
   const ringDiameterMm = commonSize * 25.4;
   const priors: Record<string, number> = {};
   for (const g of grounds) {
-    if (g.cai != null) priors[g.id] = gehringPriorRateMmPerKm({ cai: g.cai, ringDiameterMm, tipWidthMm: settings.tipWidthMm, siteFactor: settings.gehringSiteFactor });
+    // A site factor of 0 (refused since, maybe stored before) would make a 0 mm/km prior: no prior then.
+    if (g.cai != null && settings.gehringSiteFactor > 0) priors[g.id] = gehringPriorRateMmPerKm({ cai: g.cai, ringDiameterMm, tipWidthMm: settings.tipWidthMm, siteFactor: settings.gehringSiteFactor });
   }
   const observations: NormalWearObservation[] = [];
   const abnormalEvents: WearFitReport['abnormalEvents'] = [];
@@ -142,8 +143,11 @@ export function buildWearFit(data: ForecastData): WearFitReport {
   };
 }
 
+/** Rates the forecast walks with: P50 and cautious P90 per ground (each saying where its P90 comes from), and the disc scatter. */
+export type ForecastRates = WearRateSet & { byGround: Record<string, CautiousRate>; relativeScatter: number | null };
+
 /** P50 and cautious P90 rates per ground for the forecast, with the disc scatter they rest on. */
-export function forecastRates(report: WearFitReport): WearRateSet & { relativeScatter: number | null } {
+export function forecastRates(report: WearFitReport): ForecastRates {
   const { fit, observations } = report;
   const rate = new Map(fit.rates.map((r) => [r.groundTypeId, r.rateMmPerKm]));
   const scatter = relativeScatter(
@@ -165,7 +169,7 @@ export interface ProjectForecast {
   now: Date;
   currentChainageM: number | null;
   currentRingNumber: number | null;
-  rates: WearRateSet & { relativeScatter: number | null };
+  rates: ForecastRates;
   driveRates: ReturnType<typeof estimateDriveRates>;
   positions: PositionForecast[];
   problems: string[];

@@ -39,7 +39,11 @@ export function radialWearRateMmPerKm(
   return volumeMm3PerKm / (Math.PI * ringDiameterMm * tipWidthMm);
 }
 
-/** Input of the Gehring prior; `siteFactor` (default 1) scales the result to match the site. */
+/**
+ * Input of the Gehring prior; `siteFactor` (default 1, must be > 0) scales the result to match
+ * the site. A factor of 0 would give a prior of 0 mm/km, i.e. "this ground does not wear": to
+ * leave the prior out, give it no weight in the fit instead (wear-fit.ts, strength 0).
+ */
 export interface GehringPriorInput {
   cai: number;
   ringDiameterMm: number;
@@ -51,7 +55,7 @@ export interface GehringPriorInput {
 /** Prior radial wear rate in mm per km rolled from CAI and ring geometry (Gehring × site factor). */
 export function gehringPriorRateMmPerKm(input: GehringPriorInput): number {
   const siteFactor = input.siteFactor ?? 1;
-  if (!(siteFactor >= 0)) throw new RangeError('site factor must be non-negative');
+  if (!(siteFactor > 0)) throw new RangeError('site factor must be positive');
   return (
     siteFactor *
     radialWearRateMmPerKm(gehringSpecificWearMgPerM(input.cai), input.ringDiameterMm, input.tipWidthMm, input.steelDensityGPerCm3)

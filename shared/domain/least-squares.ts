@@ -72,7 +72,7 @@ export function fitNonNegative(
 }
 
 /** s²·(XᵀX)⁻¹ restricted to `free`, embedded in a columnCount² matrix; null if XᵀX there is singular. */
-function freeSetCovariance(rows: number[][], free: number[], variance: number, columnCount: number): number[][] | null {
+export function freeSetCovariance(rows: number[][], free: number[], variance: number, columnCount: number): number[][] | null {
   const covariance = Array.from({ length: columnCount }, () => new Array<number>(columnCount).fill(0));
   if (free.length === 0) return covariance;
   const x = new Matrix(rows.map((row) => free.map((j) => row[j])));

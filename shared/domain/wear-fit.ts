@@ -18,11 +18,20 @@
  * This is mixed estimation in the sense of Theil & Goldberger (Int. Econ. Rev. 2, 1961; from
  * memory). Where a ground's inspections saw only that ground the result is exactly
  *     rate_g = (n_g · siteRate_g + n0 · p_g) / (n_g + n0)
- * (site rate = its through-origin least-squares rate), so the reported site weight is
- * n_g / (n_g + n0): 0 with no inspections (rate = prior, source 'prior'), rising towards 1 as
- * inspections arrive (source 'blended'). Where inspections span several grounds the same
- * weight is reported as an approximation. Grounds without a prior are 'site' (weight 1).
- * Rates stay ≥ 0 either way.
+ * (site rate = its through-origin least-squares rate). n0 = 0 turns the blend off: the rates of
+ * grounds with inspections are then exactly the site-only NNLS fit (source 'site'); a ground
+ * without any inspection still takes its prior (source 'prior'), there being nothing to blend.
+ *
+ * Site-only rate and effective weight. With a prior in the fit the same NNLS is also solved
+ * without the prior rows (`siteOnlyRateMmPerKm`), and the weight the fit actually gave the
+ * site data is read off the two: w_g = (rate_g − p_g) / (siteOnly_g − p_g), so that
+ * rate_g = w_g · siteOnly_g + (1 − w_g) · p_g. For a ground inspected alone this is
+ * n_g / (n_g + n0) (closed form above; used as such when siteOnly_g = p_g leaves the quotient
+ * undefined). Where inspections span several grounds the prior of one ground moves the rates
+ * of the others, so the quotient can fall outside [0, 1] (or be undefined): the effective weight
+ * is then null, meaning "grounds share inspections, no single weight applies". The nominal
+ * n_g / (n_g + n0) stays in `siteWeight` for callers that read it.
+ * Grounds without a prior are 'site' (weight 1). Rates stay ≥ 0 either way.
  *
  * Statistics. Residuals use the real inspections only: s² = SSE / (n − p), where p counts the
  * rates that are free (> 0) and have site exposure; rates held at 0 by the constraint and
@@ -30,6 +39,10 @@
  * XᵀX including the prior rows, so a prior narrows a blended rate's standard error. Rates at
  * 0 and prior-only rates have no standard error (null). As usual for constrained fits the
  * standard errors take the set of free rates as given.
+ *
+ * A rate held at 0 still gets `heldStandardErrorMmPerKm`: the standard error its column would
+ * have in the same covariance if it were free (free set plus that column). t·se of it is the
+ * rate the data cannot rule out, used by cautious-rates.ts when the ground has no prior.
  *
  * Prediction. For a new disc with row x0 (f(c) · km_g): mean x0·rate, variance s² + x0ᵀ·C·x0,
  * and a ONE-SIDED upper bound mean + t(P; n − p) · √variance (Student t quantile, jstat), so
@@ -43,7 +56,7 @@
  */
 import jStat from 'jstat';
 
-import { dot, fitNonNegative } from './least-squares';
+import { dot, fitNonNegative, freeSetCovariance } from './least-squares';
 
 export type PositionClass = 'centre' | 'face' | 'gauge';
 
@@ -59,7 +72,7 @@ export interface NormalWearObservation {
   rolledKmByGround: Readonly<Record<string, number>>;
 }
 
-/** Prior rates and how many inspections the prior is worth. */
+/** Prior rates and how many inspections the prior is worth (0: no blend, see method). */
 export interface WearPrior {
   rateMmPerKmByGround: Readonly<Record<string, number>>;
   strengthObservations: number;
@@ -83,8 +96,21 @@ export interface GroundWearRate {
   /** The constraint holds the rate at 0 (the unconstrained fit would go negative). */
   heldAtZero: boolean;
   source: RateSource;
-  /** Weight of site data in the rate, 0..1. */
+  /** Nominal weight of site data, n / (n + n0) (0 for prior, 1 for site); see effectiveSiteWeight. */
   siteWeight: number;
+  /** The ground's prior rate, mm/km; null without a prior. */
+  priorRateMmPerKm: number | null;
+  /** The rate of the same fit without any prior rows, mm/km; null without inspections in this ground. */
+  siteOnlyRateMmPerKm: number | null;
+  /**
+   * The weight the fit gave the site data: rate = w·siteOnly + (1 − w)·prior (method above).
+   * Null when grounds share inspections and no single weight in [0, 1] applies.
+   */
+  effectiveSiteWeight: number | null;
+  /** Some inspection with exposure in this ground also rolled in another ground. */
+  sharesInspections: boolean;
+  /** Only for a rate held at 0: its standard error were it free (method above); null otherwise or not estimable. */
+  heldStandardErrorMmPerKm: number | null;
 }
 
 export interface WearFit {
@@ -103,8 +129,11 @@ export function fitWearRates(observations: readonly NormalWearObservation[], opt
   const { classFactors, prior } = options;
   checkClassFactors(classFactors);
   const priorRates = prior?.rateMmPerKmByGround ?? {};
-  if (prior && !(prior.strengthObservations > 0)) throw new RangeError('prior strength must be positive');
-  if (Object.values(priorRates).some((rate) => !(rate >= 0))) throw new RangeError('prior rates must be non-negative');
+  if (prior && !(prior.strengthObservations >= 0 && Number.isFinite(prior.strengthObservations))) {
+    throw new RangeError('prior strength must be a finite number of inspections, 0 or more');
+  }
+  // A prior of 0 mm/km would claim the ground does not wear; leave the ground out of the prior instead.
+  if (Object.values(priorRates).some((rate) => !(rate > 0 && Number.isFinite(rate)))) throw new RangeError('prior rates must be positive');
   for (const observation of observations) {
     if (!Number.isFinite(observation.wearMm)) throw new RangeError('wear must be a finite number of mm');
     checkRolledKm(observation.rolledKmByGround);
@@ -125,14 +154,18 @@ export function fitWearRates(observations: readonly NormalWearObservation[], opt
     return Math.sqrt(strength * meanSquare);
   });
 
-  const fit = fitNonNegative(
-    design,
-    observations.map((o) => o.wearMm),
-    prior ? { values: groundIds.map((g) => priorRates[g] ?? 0), weights: priorWeights } : undefined,
-  );
+  const withPrior = prior ? { values: groundIds.map((g) => priorRates[g] ?? 0), weights: priorWeights } : undefined;
+  const response = observations.map((o) => o.wearMm);
+  const fit = fitNonNegative(design, response, withPrior);
+  const siteOnly = siteOnlyRates(design, response, counts, withPrior ? null : fit.coefficients);
+  const shares = groundIds.map((_, j) => design.some((row) => row[j] > 0 && row.some((x, k) => k !== j && x > 0)));
+  const heldSe = heldStandardErrors(design, withPrior, fit);
 
   const rates = groundIds.map((groundTypeId, j): GroundWearRate => {
-    const source: RateSource = !hasPrior[j] ? 'site' : counts[j] === 0 ? 'prior' : 'blended';
+    const blendsPrior = hasPrior[j] && priorWeights[j] > 0;
+    const source: RateSource = !blendsPrior ? 'site' : counts[j] === 0 ? 'prior' : 'blended';
+    const priorRate = hasPrior[j] ? priorRates[groundTypeId] : null;
+    const nominal = source === 'site' ? 1 : source === 'prior' ? 0 : counts[j] / (counts[j] + strength);
     return {
       groundTypeId,
       rateMmPerKm: fit.coefficients[j],
@@ -140,10 +173,58 @@ export function fitWearRates(observations: readonly NormalWearObservation[], opt
       observationCount: counts[j],
       heldAtZero: fit.atBound[j] && fit.informed[j],
       source,
-      siteWeight: source === 'site' ? 1 : counts[j] / (counts[j] + strength),
+      siteWeight: nominal,
+      priorRateMmPerKm: priorRate,
+      siteOnlyRateMmPerKm: siteOnly[j],
+      effectiveSiteWeight:
+        source === 'blended' ? effectiveWeight(fit.coefficients[j], siteOnly[j]!, priorRate!, shares[j] ? null : nominal) : nominal,
+      sharesInspections: shares[j],
+      heldStandardErrorMmPerKm: heldSe[j],
     };
   });
   return { rates, residualSdMm: fit.residualSd, residualDof: fit.residualDof, classFactors, rateCovariance: fit.covariance };
+}
+
+/** Rates of the NNLS fit without prior rows (`known` when the fit had none), null for grounds without inspections. */
+function siteOnlyRates(design: number[][], response: number[], counts: number[], known: number[] | null): (number | null)[] {
+  if (known) return known.map((rate, j) => (counts[j] > 0 ? rate : null));
+  const exposed = counts.map((_, j) => j).filter((j) => counts[j] > 0);
+  const out = counts.map((): number | null => null);
+  if (exposed.length === 0) return out;
+  const coefficients = fitNonNegative(design.map((row) => exposed.map((j) => row[j])), response).coefficients;
+  exposed.forEach((j, a) => (out[j] = coefficients[a]));
+  return out;
+}
+
+/**
+ * w with rate = w·site + (1 − w)·prior, when that is defined and in [0, 1]; `closedForm` (a ground
+ * inspected alone: n/(n + n0)) where site = prior leaves it undefined; else null (method above).
+ */
+function effectiveWeight(rate: number, site: number, prior: number, closedForm: number | null): number | null {
+  const scale = Math.max(Math.abs(site), Math.abs(prior));
+  const tolerance = 1e-9;
+  if (Math.abs(site - prior) <= tolerance * scale) return closedForm;
+  const w = (rate - prior) / (site - prior);
+  if (w < -tolerance || w > 1 + tolerance) return null;
+  return Math.min(1, Math.max(0, w));
+}
+
+/** For each rate held at 0: √ of its diagonal in s²·(XᵀX)⁻¹ over the free set plus its column (prior rows included). */
+function heldStandardErrors(design: number[][], prior: { values: number[]; weights: number[] } | undefined, fit: ReturnType<typeof fitNonNegative>): (number | null)[] {
+  const columnCount = fit.coefficients.length;
+  const rows = design.map((row) => [...row]);
+  prior?.weights.forEach((weight, j) => {
+    if (weight === 0) return;
+    const row = new Array<number>(columnCount).fill(0);
+    row[j] = weight;
+    rows.push(row);
+  });
+  const free = fit.coefficients.map((_, j) => j).filter((j) => !fit.atBound[j] && fit.informed[j]);
+  return fit.coefficients.map((_, j) => {
+    if (!(fit.atBound[j] && fit.informed[j]) || fit.residualSd === null) return null;
+    const covariance = freeSetCovariance(rows, [...free, j], fit.residualSd ** 2, columnCount);
+    return covariance ? Math.sqrt(covariance[j][j]) : null;
+  });
 }
 
 /** Predicted radial wear of a new disc, mm, with its one-sided upper bound at the given probability. */

@@ -39,5 +39,7 @@ describe('radialWearRateMmPerKm', () => {
     expect(gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, siteFactor: 1.5 })).toBeCloseTo(1.5 * base, 12);
     expect(gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, steelDensityGPerCm3: 7.85 / 2 })).toBeCloseTo(2 * base, 12);
     expect(() => gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, siteFactor: -1 })).toThrow(RangeError);
+    // A factor of 0 would claim the ground does not wear; the prior is switched off by its weight instead.
+    expect(() => gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, siteFactor: 0 })).toThrow(RangeError);
   });
 });

@@ -1,5 +1,6 @@
 import { queryOptions } from '@tanstack/react-query';
 import type { DiscCondition, PositionClass } from '../../../shared/cutters';
+import type { CautiousRate } from '../../../shared/domain/cautious-rates';
 import type { CercharClassification } from '../../../shared/domain/cerchar';
 import type { ChangeOutForecast, DriveRateEstimate, WearRateSet } from '../../../shared/domain/forecast';
 import type { GeologyGapWarning } from '../../../shared/domain/geology';
@@ -25,7 +26,7 @@ export interface Forecast {
   currentChainageM: number | null;
   currentRingNumber: number | null;
   problems: string[];
-  rates: WearRateSet & { relativeScatter: number | null };
+  rates: WearRateSet & { byGround: Record<string, CautiousRate>; relativeScatter: number | null };
   driveRates: DriveRateEstimate;
   positions: PositionForecast[];
 }
@@ -37,12 +38,16 @@ export interface WearFitGround {
   caiClass: CercharClassification | null;
   priorMmPerKm: number | null;
   rate: GroundWearRate | null;
+  /** P50 and cautious P90 rates with where the P90 comes from; null when the ground has no rate. */
+  cautious: CautiousRate | null;
 }
 
 export interface WearFitReport {
   grounds: WearFitGround[];
   residualSdMm: number | null;
   residualDof: number;
+  /** Relative scatter of discs about the fit (cv of the cautious rates); null with too few inspections. */
+  relativeScatter: number | null;
   classFactors: ClassFactors;
   observationCount: number;
   failures: (SuddenFailureRate & { groundName: string })[];

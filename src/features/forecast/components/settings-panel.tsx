@@ -80,8 +80,8 @@ function SettingsForm({ projectId, settings, groundTypes, driveRates, onDone }: 
         <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
           {field('classFactors.centre', 'Centre class factor', `× the face-disc rate. ${positionClassLabels.face} discs are the reference: 1.`, e.classFactors?.centre)}
           {field('classFactors.gauge', 'Gauge class factor', '× the face-disc rate.', e.classFactors?.gauge)}
-          {field('gehringSiteFactor', 'Gehring site factor', 'Scales every prior rate from the CAI; 1 takes it as published.', e.gehringSiteFactor)}
-          {field('priorStrength', 'Prior weight (inspections)', 'How many inspections the prior from the CAI is worth.', e.priorStrength)}
+          {field('gehringSiteFactor', 'Gehring site factor', 'Scales every prior rate from the CAI; 1 takes it as published. More than 0.', e.gehringSiteFactor)}
+          {field('priorStrength', 'Prior weight (inspections)', 'How many inspections the prior from the CAI is worth. 0 turns the blend off: the site’s own fit alone (a ground not yet inspected still starts from its CAI).', e.priorStrength)}
           {field('tipWidthMm', 'Ring tip width (mm)', 'For the prior; about 19 mm on 17″ rings.', e.tipWidthMm)}
         </div>
       </fieldset>
@@ -179,7 +179,11 @@ export function SettingsPanel({ projectId, settings, groundTypes, driveRates, ca
             <dt className="font-semibold">Class factors</dt>
             <dd>Centre {settings.classFactors.centre} · Face 1 · Gauge {settings.classFactors.gauge}</dd>
             <dt className="font-semibold">Prior from the CAI</dt>
-            <dd>Gehring site factor {settings.gehringSiteFactor}, worth {settings.priorStrength} inspections, tip width {settings.tipWidthMm} mm</dd>
+            <dd>
+              {settings.priorStrength === 0
+                ? `Off (weight 0): rates are the site’s own fit; grounds not yet inspected start from the CAI (Gehring site factor ${settings.gehringSiteFactor}, tip width ${settings.tipWidthMm} mm)`
+                : `Gehring site factor ${settings.gehringSiteFactor}, worth ${settings.priorStrength} inspections, tip width ${settings.tipWidthMm} mm`}
+            </dd>
             <dt className="font-semibold">Overcut margin</dt>
             <dd>{settings.overcutMarginMm} mm on the diameter</dd>
             <dt className="font-semibold">Penetration and advance</dt>

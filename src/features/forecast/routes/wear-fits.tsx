@@ -3,6 +3,7 @@ import { createColumnHelper } from '@tanstack/react-table';
 import { useState } from 'react';
 import { Link, useParams } from 'react-router';
 import { conditionLabel, positionClasses, positionClassLabels } from '../../../../shared/cutters';
+import type { CautiousSource } from '../../../../shared/domain/cautious-rates';
 import { Alert } from '../../../components/ui/alert';
 import { DataTable } from '../../../components/ui/data-table';
 import { SelectField } from '../../../components/ui/field';
@@ -16,8 +17,9 @@ import { fixed, formatRate, whole } from '../format';
 const sourceText = (g: WearFitGround) => {
   if (!g.rate) return 'None';
   if (g.rate.source === 'prior') return 'Prior only';
-  if (g.rate.source === 'site') return 'Site';
-  return `Blended, ${fixed(g.rate.siteWeight * 100)} % site`;
+  if (g.rate.source === 'site') return g.rate.priorRateMmPerKm == null ? 'Site' : 'Site only (prior weight 0)';
+  if (g.rate.effectiveSiteWeight == null) return 'Blended; this ground shares inspections with others, so no single site weight applies';
+  return `Blended, ${fixed(g.rate.effectiveSiteWeight * 100)} % site`;
 };
 
 const noteText = (g: WearFitGround) => {
@@ -25,6 +27,17 @@ const noteText = (g: WearFitGround) => {
   if (g.rate.heldAtZero) return 'Held at 0: the inspections would give a negative rate.';
   if (g.rate.source === 'prior') return 'No inspection yet: the Gehring estimate from the CAI.';
   return '';
+};
+
+/** Where the cautious rate comes from (shared/domain/cautious-rates.ts). */
+const cautiousText: Record<CautiousSource, string> = {
+  fit: 'fitted rate with the disc scatter and its standard error',
+  margin: 'fitted rate plus a margin: too few inspections to measure the scatter',
+  'prior-margin': 'prior plus a margin',
+  prior: 'rate held at 0: the prior from the CAI stands in',
+  'fit-upper-bound': 'rate held at 0: the largest rate the inspections cannot rule out',
+  'largest-other': 'rate held at 0: the largest cautious rate of the other grounds',
+  none: 'nothing known to be cautious with',
 };
 
 const col = createColumnHelper<WearFitGround>();
@@ -41,6 +54,17 @@ const rateColumns = [
     header: 'Fitted rate ± standard error (mm/km)',
     sortingFn: (a, b) => (a.original.rate?.rateMmPerKm ?? -1) - (b.original.rate?.rateMmPerKm ?? -1),
     cell: ({ getValue }) => <span className="whitespace-nowrap font-semibold">{getValue()}</span>,
+  }),
+  col.accessor((g) => g.rate?.siteOnlyRateMmPerKm, { id: 'siteOnly', header: 'Site-only rate (mm/km)', cell: ({ getValue }) => formatRate(getValue()) }),
+  col.accessor((g) => g.cautious?.p90MmPerKm, {
+    id: 'p90',
+    header: 'Cautious P90 rate (mm/km)',
+    cell: ({ getValue, row }) => (
+      <span className="block min-w-40">
+        <span className="font-semibold">{formatRate(getValue())}</span>
+        {row.original.cautious && <span className="block text-caption text-basalt-600">{cautiousText[row.original.cautious.cautiousSource]}</span>}
+      </span>
+    ),
   }),
   col.accessor((g) => g.rate?.observationCount ?? 0, { id: 'n', header: 'Inspections' }),
   col.accessor(sourceText, { id: 'source', header: 'Source' }),
@@ -86,7 +110,9 @@ export function WearFitsRoute() {
       <Panel title="Rates">
         <p className="mb-3 max-w-prose">
           Radial ring wear per km a face disc rolls in each ground type, fitted to every normal-wear inspection. Where a ground has a CAI,
-          the Gehring estimate from it is the starting point (the prior) until the site’s own inspections outweigh it.
+          the Gehring estimate from it is the starting point (the prior) until the site’s own inspections outweigh it. The site-only rate is
+          the same fit without the prior; the site share is read off the two (fitted = share × site-only + rest × prior). The cautious P90 rate
+          is what the forecast plans with: never below the fitted rate, and never 0 for a ground whose rate is held at 0.
         </p>
         <DataTable data={report.grounds} columns={rateColumns} exportName="kerfwise-wear-rates" emptyText="No ground types yet: add them to the drive data." />
         <dl className="mt-3 grid gap-x-6 gap-y-1 sm:grid-cols-[max-content_1fr]">
