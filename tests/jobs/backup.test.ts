@@ -94,8 +94,8 @@ const checksumOf = async (c: pg.Client, table: string) =>
   (await c.query<{ md5: string }>(`select md5(coalesce(string_agg(t::text, E'\\n' order by t::text), '')) as md5 from ${table} t`)).rows[0].md5;
 
 async function backupJob() {
-  const { findJob } = await import('../../jobs/index');
-  const job = findJob('nightly-backup');
+  const { jobs } = await import('../../jobs/index');
+  const job = jobs.find((j) => j.name === 'nightly-backup');
   if (!job) throw new Error('the nightly-backup job is not registered');
   return job;
 }
