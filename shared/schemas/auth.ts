@@ -1,10 +1,8 @@
 import { z } from 'zod';
+import { emailAddress } from './fields';
 
-export const emailSchema = z
-  .string({ message: 'Enter an e-mail address.' })
-  .trim()
-  .toLowerCase()
-  .pipe(z.email({ message: 'Enter a valid e-mail address, like name@example.com.' }));
+/** An e-mail address; its length is checked before any other work (shared/schemas/fields.ts). */
+export const emailSchema = emailAddress();
 
 export const signInInputSchema = z.object({
   email: emailSchema,

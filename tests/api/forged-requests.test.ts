@@ -5,7 +5,6 @@
  * with 415 — so a plain HTML form cannot publish a stop. Scripts without browser headers still work.
  */
 import { and, eq } from 'drizzle-orm';
-import request from 'supertest';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/app';
 import { db } from '../../server/db/client';
