@@ -8,6 +8,7 @@ import { env } from './env';
 import { logger } from './lib/logger';
 import { loadUser } from './middleware/auth';
 import { apiNotFound, errorHandler } from './middleware/error';
+import { requireBodyType, requireSameOrigin } from './middleware/same-origin';
 import { adminRouter, createAdminJobsRouter } from './routes/admin';
 import { authRouter } from './routes/auth';
 import { backupsRouter } from './routes/backups';
@@ -48,6 +49,8 @@ export function createApp(options: AppOptions = {}): Express {
   app.use(cookieParser());
 
   const api = express.Router();
+  // Forged cross-site requests are refused before anything else (decision 25).
+  api.use(requireSameOrigin, requireBodyType);
   api.use(loadUser);
   api.use('/health', healthRouter);
   api.use('/auth', authRouter);

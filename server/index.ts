@@ -10,6 +10,12 @@ const { createApp } = await import('./app');
 const { jobs, startJobs } = await import('../jobs/index');
 const { logger } = await import('./lib/logger');
 
+if (!env().APP_URL) {
+  // E-mailed links (password resets, invitations, stops) are built from APP_URL only, never from a
+  // request's Host header, which a caller controls (decision 25).
+  logger.fatal('APP_URL is not set: set it to the address people open (e.g. https://kerfwise.example.org) and start again.');
+  process.exit(1);
+}
 const port = env().PORT;
 createApp({ clientDir: 'dist', jobs }).listen(port, () => logger.info(`Kerfwise listening on port ${port}`));
 startJobs();

@@ -95,8 +95,18 @@ export const signInAttempts = pgTable('sign_in_attempts', {
   at: timestamp({ withTimezone: true }).notNull().defaultNow(),
   email: text().notNull(),
   ip: text().notNull(),
+  /** The known device the attempt came from (a device cookie of this account), or null. */
+  deviceId: text(),
   succeeded: boolean().notNull(),
 }, (t) => [index('sign_in_attempts_email_idx').on(t.email, t.at), index('sign_in_attempts_ip_idx').on(t.ip, t.at)]);
+
+/** Password-reset requests, counted per address asked for and per client address (decision 25). */
+export const passwordResetRequests = pgTable('password_reset_requests', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  at: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  email: text().notNull(),
+  ip: text().notNull(),
+}, (t) => [index('password_reset_requests_email_idx').on(t.email, t.at), index('password_reset_requests_ip_idx').on(t.ip, t.at)]);
 
 /** Mail waits here, written in the same transaction as the change that caused it, until sent. */
 export const outbox = pgTable('outbox', {

@@ -51,7 +51,7 @@ adminRouter.post('/users', async (req, res) => {
       kind: 'invitation',
       to: [user.email],
       subject: 'You are invited to Kerfwise',
-      text: `Hello ${user.name},\n\n${me.name} has invited you to Kerfwise, where the cutter crews, planner, buyer and site manager of a TBM drive keep track of disc cutters and stops.\n\nChoose your password here (the link works once, for 7 days):\n\n${appUrl(req)}/set-password?token=${token}\n`,
+      text: `Hello ${user.name},\n\n${me.name} has invited you to Kerfwise, where the cutter crews, planner, buyer and site manager of a TBM drive keep track of disc cutters and stops.\n\nChoose your password here (the link works once, for 7 days):\n\n${appUrl()}/set-password?token=${token}\n`,
     });
     await audit(tx, { userId: me.id, entity: 'user', entityId: user.id, action: 'invite', after: { ...input } });
     return user;

@@ -64,7 +64,7 @@ async function mailCrew(tx: DbOrTx, project: Project, pack: WorkPack, subject: s
   return to;
 }
 
-const stopUrl = (req: Request, projectId: string, stopId: string) => `${appUrl(req)}/projects/${projectId}/stops/${stopId}`;
+const stopUrl = (_req: Request, projectId: string, stopId: string) => `${appUrl()}/projects/${projectId}/stops/${stopId}`;
 
 /** The optimised plan against the hand plan over the horizon; the query may override every assumption. */
 stopsRouter.get('/plan', requireProject('stops.read'), async (req, res) => {

@@ -1,6 +1,7 @@
 import { queryOptions } from '@tanstack/react-query';
 import type { ProjectRole } from '../../../shared/roles';
-import type { ChangePasswordInput, PasswordResetRequest, SetPasswordInput, SignInInput } from '../../../shared/schemas/auth';
+import type { PasswordResetRequest, SignInInput } from '../../../shared/schemas/auth';
+import type { ChangePasswordInput, SetPasswordInput } from '../../../shared/schemas/password';
 import { api, ApiError } from '../../lib/api-client';
 
 export interface Me {

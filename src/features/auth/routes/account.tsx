@@ -1,7 +1,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
-import { changePasswordInputSchema, type ChangePasswordInput } from '../../../../shared/schemas/auth';
+import { changePasswordInputSchema, type ChangePasswordInput } from '../../../../shared/schemas/password';
 import { roleLabels } from '../../../../shared/roles';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
