@@ -89,6 +89,7 @@ export const routeTable: RouteCase[] = [
   { method: 'post', path: '/api/projects/:projectId/ground-types', roles: ['planner'], body: () => ({ name: uniq('Granite'), cai: 3.9 }), okStatus: 201 },
   { method: 'get', path: '/api/projects/:projectId/geology', roles: everyone },
   { method: 'put', path: '/api/projects/:projectId/geology', roles: ['planner'], body: () => ({ sections: [] }) },
+  { method: 'get', path: '/api/projects/:projectId/geology/mapping', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes/daily', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes/export.csv', roles: everyone },
