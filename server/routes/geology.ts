@@ -127,9 +127,9 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
   const me = requireUser(req);
   const query = importQuerySchema.parse(req.query);
   requireRawCsv(req);
-  const mapping = await chosenMapping(projectId, 'geology', query.mapping, geologySectionColumnMappingSchema as z.ZodType<Record<string, string>>);
+  const columns = await chosenMapping(projectId, 'geology', query.mapping, geologySectionColumnMappingSchema as z.ZodType<Record<string, string>>);
   const upload = uploadStream(req);
-  const result = await readGeologyCsv(upload.body, { mapping });
+  const result = await readGeologyCsv(upload.body, columns);
   await upload.drain();
   if (!result.ok) throw csvRefusal(result.errors, result.errorCount, result.detected);
   const notes: CsvIssue[] = [];

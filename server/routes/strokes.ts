@@ -90,10 +90,10 @@ strokesRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
   const me = requireUser(req);
   const query = importQuerySchema.parse(req.query);
   requireRawCsv(req);
-  const mapping = await chosenMapping(projectId, 'advance_log', query.mapping, advanceLogColumnMappingSchema as z.ZodType<Record<string, string>>);
+  const columns = await chosenMapping(projectId, 'advance_log', query.mapping, advanceLogColumnMappingSchema as z.ZodType<Record<string, string>>);
   const [project] = await db.select().from(projects).where(eq(projects.id, projectId));
   const upload = uploadStream(req);
-  const result = await readAdvanceLogCsv(upload.body, { timeZone: project.siteTimeZone, direction: project.driveDirection, mapping });
+  const result = await readAdvanceLogCsv(upload.body, { timeZone: project.siteTimeZone, direction: project.driveDirection, ...columns });
   await upload.drain();
   if (!result.ok) throw csvRefusal(result.errors, result.errorCount, result.detected);
   const outcome = await db.transaction((tx) => importAdvanceLog(tx, projectId, me.id, result.rows, { replace: query.replace, mapping: result.detected.mapping as Record<string, string> }));

@@ -1,8 +1,8 @@
 /**
  * The header row → which column fills which field. The first non-blank line names the columns;
  * none of its cells may look like a value, and no name may appear twice. A mapping passed in
- * (chosen on the mapping screen, or remembered for the project) wins; the other fields are found
- * by the synonyms in shared/csv-headers.ts. Columns left over fill no field: the caller keeps
+ * chosen on the mapping screen wins; then a column remembered for the project, when the file has
+ * it; the other fields are found by the synonyms in shared/csv-headers.ts. Columns left over fill no field: the caller keeps
  * them (advance log `extra`) or names them in a warning.
  */
 import { headerMatches, type ColumnMapping, type CsvFieldInfo } from '../../../shared/csv-headers';
@@ -22,7 +22,13 @@ export interface ColumnSpec<F extends string> {
 }
 
 /** Reads the header row into a column plan; null (with errors logged) when it cannot be used. */
-export function planColumns<F extends string>(cells: string[], table: ColumnSpec<F>, explicit: ColumnMapping<F>, log: IssueLog): ColumnPlan<F> | null {
+export function planColumns<F extends string>(
+  cells: string[],
+  table: ColumnSpec<F>,
+  explicit: ColumnMapping<F>,
+  log: IssueLog,
+  remembered: ColumnMapping<F> = {},
+): ColumnPlan<F> | null {
   const headers = cells.map((cell) => cell.trim());
   const errorsBefore = log.errorCount;
   const value = headers.find(looksLikeValue);
@@ -55,8 +61,15 @@ export function planColumns<F extends string>(cells: string[], table: ColumnSpec
       used.add(index);
     }
   }
+  for (const [field, wanted] of Object.entries(remembered) as [F, string | undefined][]) {
+    if (wanted === undefined || field in explicit) continue;
+    const index = headers.findIndex((h, i) => !used.has(i) && h.toLowerCase() === wanted.trim().toLowerCase());
+    if (index < 0) continue;
+    columns.set(field, index);
+    used.add(index);
+  }
   for (const info of table.fields) {
-    if (info.field in explicit) continue;
+    if (info.field in explicit || columns.has(info.field)) continue;
     const matches = headers.flatMap((header, i) => (!used.has(i) && headerMatches(info, header) ? [i] : []));
     if (matches.length === 0) continue;
     columns.set(info.field, matches[0]);

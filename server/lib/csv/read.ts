@@ -39,8 +39,14 @@ export interface CsvProgress {
 }
 
 export interface CsvReadOptions<F extends string> {
-  /** Columns chosen by the user; fields left out are matched by header name. */
+  /** Columns chosen by the user for this file; fields left out are matched by header name. */
   mapping?: ColumnMapping<F>;
+  /**
+   * Columns remembered from the project's last import: used for fields the file has that column
+   * for, ignored for the others (a file with other headers, e.g. Kerfwise's own export, is then
+   * read by its header names).
+   */
+  remembered?: ColumnMapping<F>;
   maxBytes?: number;
   maxRows?: number;
   /** Length of the error list returned (the count covers all); warnings are capped the same. */
@@ -253,7 +259,7 @@ export async function readCsv<F extends string, Row>(
       previousEmptyLines = info.empty_lines;
       if (record.every((cell) => cell.trim() === '')) continue;
       if (!plan) {
-        plan = planColumns(record, table, options.mapping ?? {}, log);
+        plan = planColumns(record, table, options.mapping ?? {}, log, options.remembered ?? {});
         if (!plan) break;
         detected.mapping = Object.fromEntries([...plan.columns].map(([field, i]) => [field, plan!.headers[i]])) as ColumnMapping<F>;
         continue;

@@ -57,8 +57,16 @@ export async function storedMapping(projectId: string, kind: MappingKind): Promi
   return (stored?.mapping as Record<string, string> | undefined) ?? null;
 }
 
-/** The mapping chosen with this upload (JSON in the query, checked by `schema`), else the remembered one. */
-export async function chosenMapping(projectId: string, kind: MappingKind, raw: string | undefined, schema: z.ZodType<Record<string, string>>) {
+/**
+ * The columns for this upload: `mapping` chosen with it (JSON in the query, checked by `schema`),
+ * else `remembered` from the project's last import of this kind (used where the file has the column).
+ */
+export async function chosenMapping(
+  projectId: string,
+  kind: MappingKind,
+  raw: string | undefined,
+  schema: z.ZodType<Record<string, string>>,
+): Promise<{ mapping?: Record<string, string>; remembered?: Record<string, string> }> {
   if (raw) {
     let parsed: unknown;
     try {
@@ -66,9 +74,9 @@ export async function chosenMapping(projectId: string, kind: MappingKind, raw: s
     } catch {
       throw badRequest('The column mapping is not valid JSON.');
     }
-    return schema.parse(parsed);
+    return { mapping: schema.parse(parsed) };
   }
-  return (await storedMapping(projectId, kind)) ?? undefined;
+  return { remembered: (await storedMapping(projectId, kind)) ?? undefined };
 }
 
 /** Remembers the mapping an import used, for the next import of that kind (inside the import's transaction). */
