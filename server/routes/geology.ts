@@ -1,16 +1,20 @@
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { Router } from 'express';
+import { z } from 'zod';
+import { geologySectionFields } from '../../shared/csv-headers';
 import { classifyCai } from '../../shared/domain/cerchar';
 import { validateGeologySections } from '../../shared/domain/geology';
+import { geologySectionColumnMappingSchema } from '../../shared/schemas/advance-log';
 import { groundTypeInputSchema, longSectionInputSchema } from '../../shared/schemas/geology';
 import { db } from '../db/client';
 import { geologySections, groundTypes, strokes } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
-import { readGeologyCsv } from '../lib/csv-import';
+import { readGeologyCsv } from '../lib/csv/geology';
+import type { CsvIssue } from '../lib/csv/issues';
+import { csvRefusal, chosenMapping, rememberMapping, requireRawCsv, storedMapping, unusedColumnWarnings, uploadStream } from '../lib/csv/upload';
 import { idParam } from '../lib/params';
-import { csvRefusal, uploadStream } from './strokes';
 import { invalidateRolledDistance, refreshRolledDistance } from '../services/rolled-distance';
 import { driveDataChanged } from '../services/drive-data';
 
@@ -100,43 +104,95 @@ geologyRouter.put('/', requireProject('drive.edit'), async (req, res) => {
   res.json({ saved: sections.length, warnings: check.warnings });
 });
 
+const importQuerySchema = z.object({
+  /** JSON object: field → header, chosen on the mapping screen; the stored mapping is used when absent. */
+  mapping: z.string().max(4000).optional(),
+});
+
+/** Lines of the file, for a warning: "lines 3, 5 and 2 more". */
+function linesText(lines: number[]): string {
+  const shown = lines.slice(0, 10).join(', ');
+  return `line${lines.length === 1 ? '' : 's'} ${shown}${lines.length > 10 ? ` and ${lines.length - 10} more` : ''}`;
+}
+
 /**
  * Imports the long section from a CSV sent as the raw body and replaces the stored one, all or
- * nothing. Ground types are found by name; names not yet known become new ground types (listed
- * in the warnings so the planner adds their CAI).
+ * nothing. Columns are mapped like the advance log's (an explicit mapping wins and is remembered
+ * for the project). Ground types are found by name; names not yet known become new ground types.
+ * UCS and CAI given in the file fill or change the ground type; every such change, every empty
+ * water head stored as 0 m and every column not read comes back as a warning.
  */
 geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const me = requireUser(req);
-  if (req.is('application/json') || req.is('multipart/form-data')) throw badRequest('Send the CSV file itself as the request body (Content-Type text/csv).');
+  const query = importQuerySchema.parse(req.query);
+  requireRawCsv(req);
+  const columns = await chosenMapping(projectId, 'geology', query.mapping, geologySectionColumnMappingSchema as z.ZodType<Record<string, string>>);
   const upload = uploadStream(req);
-  const result = await readGeologyCsv(upload.body);
+  const result = await readGeologyCsv(upload.body, columns);
   await upload.drain();
   if (!result.ok) throw csvRefusal(result.errors, result.errorCount, result.detected);
+  const notes: CsvIssue[] = [];
+  const waterHeadColumn = result.detected.mapping.waterHeadM;
+  if (!waterHeadColumn) {
+    notes.push({ row: 1, column: 'Water head above axis (m)', message: 'The file has no water head column, so every section is stored with 0 m of water above the axis. Compressed-air stops depend on it: add the column, or choose it in the column mapping.' });
+  } else {
+    const empty = result.rows.filter((r) => r.data.waterHeadM === null).map((r) => r.line);
+    if (empty.length > 0) notes.push({ row: empty[0], column: waterHeadColumn, message: `The water head is empty on ${linesText(empty)}; those sections are stored with 0 m above the axis. Fill it in where there is groundwater.` });
+  }
   const outcome = await db.transaction(async (tx) => {
     const known = await tx.select().from(groundTypes).where(eq(groundTypes.projectId, projectId));
-    const byName = new Map(known.map((g) => [g.name.toLowerCase(), g.id]));
+    const byName = new Map(known.map((g) => [g.name.toLowerCase(), g]));
     const created: string[] = [];
     for (const r of result.rows) {
-      const key = r.data.groundTypeName.trim().toLowerCase();
-      if (byName.has(key)) continue;
-      const [g] = await tx.insert(groundTypes).values({ projectId, name: r.data.groundTypeName.trim() }).returning();
-      byName.set(key, g.id);
-      created.push(g.name);
+      const name = r.data.groundTypeName.trim();
+      const key = name.toLowerCase();
+      const given = { ...(r.data.ucsMpa !== undefined && { ucsMpa: r.data.ucsMpa }), ...(r.data.cai !== undefined && { cai: r.data.cai }) };
+      const before = byName.get(key);
+      if (!before) {
+        const [g] = await tx.insert(groundTypes).values({ projectId, name, ...given }).returning();
+        await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: g.id, action: 'create', after: g });
+        byName.set(key, g);
+        created.push(g.name);
+        continue;
+      }
+      const changes = (Object.keys(given) as (keyof typeof given)[]).filter((k) => before[k] !== given[k]);
+      if (changes.length === 0) continue;
+      const [after] = await tx.update(groundTypes).set(given).where(eq(groundTypes.id, before.id)).returning();
+      await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: before.id, action: 'update', before, after });
+      byName.set(key, after);
+      const words = changes.map((k) => `${k === 'cai' ? 'CAI' : 'UCS'} ${before[k] ?? 'not set'} → ${after[k]}${k === 'ucsMpa' ? ' MPa' : ''}`).join(', ');
+      notes.push({ row: r.line, column: 'Ground type', message: `Ground type "${before.name}" changed from the file: ${words}. Forecasts use the new values.` });
     }
-    const before = await tx.delete(geologySections).where(eq(geologySections.projectId, projectId)).returning();
-    const after = await tx.insert(geologySections).values(result.rows.map((r) => ({
-      projectId, chainageFromM: r.data.chainageFromM, chainageToM: r.data.chainageToM, groundTypeId: byName.get(r.data.groundTypeName.trim().toLowerCase())!,
+    const previous = await tx.delete(geologySections).where(eq(geologySections.projectId, projectId)).returning();
+    const saved = await tx.insert(geologySections).values(result.rows.map((r) => ({
+      projectId, chainageFromM: r.data.chainageFromM, chainageToM: r.data.chainageToM, groundTypeId: byName.get(r.data.groundTypeName.trim().toLowerCase())!.id,
       waterHeadM: r.data.waterHeadM ?? 0, stopAllowed: r.data.stopAllowed, stopReason: r.data.stopReason ?? '',
     }))).returning();
-    await audit(tx, { userId: me.id, projectId, entity: 'geology', entityId: projectId, action: 'import', before, after });
+    await audit(tx, { userId: me.id, projectId, entity: 'geology', entityId: projectId, action: 'import', before: previous, after: saved });
+    await rememberMapping(tx, projectId, 'geology', result.detected.mapping as Record<string, string>);
     await invalidateRolledDistance(tx, projectId);
     await refreshRolledDistance(tx, projectId);
-    return { saved: after.length, createdGroundTypes: created };
+    return { saved: saved.length, createdGroundTypes: created };
   });
   const warnings = [
+    ...unusedColumnWarnings(result.unusedColumns, { what: 'the long section', canMap: true }),
     ...result.warnings,
-    ...outcome.createdGroundTypes.map((name) => ({ row: 0, column: 'Ground type', message: `New ground type "${name}" was created; add its CAI so wear can be forecast before site data exists.` })),
+    ...notes,
+    ...outcome.createdGroundTypes
+      .filter((name) => byNameHasNoCai(result.rows, name))
+      .map((name) => ({ row: 0, column: 'Ground type', message: `New ground type "${name}" was created; add its CAI so wear can be forecast before site data exists.` })),
   ];
   res.status(201).json({ saved: outcome.saved, warnings, detected: result.detected });
+});
+
+/** Whether the file gave no CAI for the ground type `name`. */
+function byNameHasNoCai(rows: { data: { groundTypeName: string; cai?: number } }[], name: string): boolean {
+  return !rows.some((r) => r.data.groundTypeName.trim().toLowerCase() === name.toLowerCase() && r.data.cai !== undefined);
+}
+
+/** The remembered column mapping of the long-section import, with the fields Kerfwise knows. */
+geologyRouter.get('/mapping', requireProject('drive.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  res.json({ mapping: await storedMapping(projectId, 'geology'), fields: geologySectionFields });
 });

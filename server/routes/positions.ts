@@ -1,12 +1,14 @@
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { Router } from 'express';
-import { parse } from 'csv-parse/sync';
-import { layoutCsvInputSchema, layoutInputSchema, positionInputSchema, type PositionInput } from '../../shared/schemas/cutterhead';
+import { Readable } from 'node:stream';
+import { layoutCsvInputSchema, layoutInputSchema, type PositionInput } from '../../shared/schemas/cutterhead';
 import { db } from '../db/client';
 import { cutters, fittings, inspectionEntries, photos, positions, projects } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
-import { badRequest, notFound } from '../lib/http-error';
+import { readLayoutCsv } from '../lib/csv/layout';
+import { csvRefusal, unusedColumnWarnings } from '../lib/csv/upload';
+import { badRequest, HttpError, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
 import { driveDataChanged } from '../services/drive-data';
 import { listPositions } from '../services/positions';
@@ -72,41 +74,25 @@ positionsRouter.put('/', requireProject('layout.edit'), async (req, res) => {
   res.json(await saveLayout(projectId, requireUser(req).id, list, (i) => `positions.${i}`));
 });
 
-/** CSV columns: number, track_radius_mm, class, disc_size_in, tilt_deg, wear_limit_mm, twin_disc, angle_deg. */
-const csvColumns: Record<string, keyof PositionInput> = {
-  number: 'number', position: 'number', track_radius_mm: 'trackRadiusMm', radius_mm: 'trackRadiusMm', class: 'positionClass',
-  disc_size_in: 'discSizeIn', disc_size: 'discSizeIn', tilt_deg: 'tiltDeg', wear_limit_mm: 'wearLimitMm', limit_mm: 'wearLimitMm',
-  twin_disc: 'twinDisc', twin: 'twinDisc', angle_deg: 'angleDeg',
-};
-
+/**
+ * Imports the layout from CSV text (`{ csv }`), read by the one CSV reader (server/lib/csv/):
+ * columns by name (number, track_radius_mm, class, disc_size_in, tilt_deg, wear_limit_mm,
+ * twin_disc, angle_deg and their synonyms), every problem by row and column, all or nothing.
+ * Issue paths are "row N.field", as for the layout rules checked when saving.
+ */
 positionsRouter.post('/import', requireProject('layout.edit'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const { csv } = layoutCsvInputSchema.parse(req.body);
-  let records: Record<string, string>[];
-  try {
-    records = parse(csv.replace(/^\uFEFF/, ''), { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[^a-z0-9]+/g, '_')), skip_empty_lines: true, trim: true, delimiter: [',', ';', '\t'] });
-  } catch (err) {
-    throw badRequest(`The file is not readable as CSV: ${(err as Error).message}`);
+  const result = await readLayoutCsv(Readable.from([Buffer.from(csv, 'utf8')]));
+  const fieldOf = new Map(Object.entries(result.detected.mapping).map(([field, header]) => [header, field]));
+  if (!result.ok) {
+    const refusal = csvRefusal(result.errors, result.errorCount, result.detected);
+    const issues = refusal.issues.map((issue) => (issue.row ? { ...issue, path: `row ${issue.row}${issue.column ? `.${fieldOf.get(issue.column) ?? issue.column}` : ''}` } : issue));
+    throw new HttpError(refusal.status, refusal.message, issues, refusal.details);
   }
-  if (records.length === 0) throw badRequest('The file has a header but no positions.');
-  const unknown = Object.keys(records[0]).filter((h) => !(h in csvColumns));
-  if (unknown.length > 0) throw badRequest(`Unknown column(s): ${unknown.join(', ')}. Use: number, track_radius_mm, class, disc_size_in, tilt_deg, wear_limit_mm, twin_disc, angle_deg.`);
-  const issues: { path: string; message: string }[] = [];
-  const list: PositionInput[] = [];
-  records.forEach((rec, i) => {
-    const input: Record<string, unknown> = {};
-    for (const [h, v] of Object.entries(rec)) {
-      const field = csvColumns[h];
-      input[field] = v === '' ? (field === 'tiltDeg' || field === 'angleDeg' ? null : undefined)
-        : field === 'twinDisc' ? /^(1|yes|true|y)$/i.test(v)
-        : field === 'positionClass' ? v.toLowerCase() : v;
-    }
-    const parsed = positionInputSchema.safeParse(input);
-    if (parsed.success) list.push(parsed.data);
-    else for (const iss of parsed.error.issues) issues.push({ path: `row ${i + 2}.${iss.path.join('.')}`, message: iss.message });
-  });
-  if (issues.length > 0) throw badRequest(`${issues.length} problem(s) in the file; nothing was imported.`, issues);
-  res.json(await saveLayout(projectId, requireUser(req).id, list, (i) => `row ${i + 2}`));
+  const rows = result.rows;
+  const saved = await saveLayout(projectId, requireUser(req).id, rows.map((r) => r.data), (i) => `row ${rows[i].line}`);
+  res.json({ ...saved, warnings: unusedColumnWarnings(result.unusedColumns, { what: 'a cutterhead layout', canMap: false }) });
 });
 
 /** One position: the serial on it now, every fitted period, every measurement, and photos. */

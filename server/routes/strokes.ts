@@ -1,17 +1,16 @@
 import { and, asc, count, desc, eq, gte, lte, sql, type SQL } from 'drizzle-orm';
-import { Router, type Request } from 'express';
-import { once } from 'node:events';
-import { PassThrough } from 'node:stream';
+import { Router } from 'express';
 import { stringify } from 'csv-stringify';
 import { z } from 'zod';
-import { advanceLogColumnMappingSchema, advanceLogFields } from '../../shared/schemas/advance-log';
+import { advanceLogFields } from '../../shared/csv-headers';
+import { advanceLogColumnMappingSchema } from '../../shared/schemas/advance-log';
 import { strokeListQuerySchema } from '../../shared/schemas/geology';
 import { isoWithSiteOffset } from '../../shared/site-time';
 import { db } from '../db/client';
-import { importMappings, projects, strokes } from '../db/schema';
+import { projects, strokes } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
-import { readAdvanceLogCsv, type CsvIssue } from '../lib/csv-import';
-import { badRequest, HttpError } from '../lib/http-error';
+import { readAdvanceLogCsv } from '../lib/csv/advance-log';
+import { chosenMapping, csvRefusal, requireRawCsv, storedMapping, unusedColumnWarnings, uploadStream } from '../lib/csv/upload';
 import { idParam } from '../lib/params';
 import { importAdvanceLog } from '../services/advance-log-import';
 
@@ -85,49 +84,6 @@ const importQuerySchema = z.object({
   mapping: z.string().max(4000).optional(),
 });
 
-/** Reads a mapping from the query, or the project's remembered one. */
-async function chosenMapping(projectId: string, kind: string, raw: string | undefined, schema: z.ZodType<Record<string, string>>) {
-  if (raw) {
-    let parsed: unknown;
-    try {
-      parsed = JSON.parse(raw);
-    } catch {
-      throw badRequest('The column mapping is not valid JSON.');
-    }
-    return schema.parse(parsed);
-  }
-  const [stored] = await db.select().from(importMappings).where(and(eq(importMappings.projectId, projectId), eq(importMappings.kind, kind)));
-  return (stored?.mapping as Record<string, string> | undefined) ?? undefined;
-}
-
-/**
- * The request body as a stream the CSV engine may stop early. When it stops (too large, binary),
- * the rest of the upload is read and dropped, so the client receives the answer instead of a reset
- * connection.
- */
-export function uploadStream(req: Request): { body: PassThrough; drain: () => Promise<void> } {
-  const body = new PassThrough();
-  req.pipe(body);
-  return {
-    body,
-    drain: async () => {
-      if (req.readableEnded) return;
-      req.unpipe(body);
-      req.resume();
-      await once(req, 'end');
-    },
-  };
-}
-
-/** Turns the engine's refusal into a 4xx whose issues point at row and column. */
-export function csvRefusal(errors: CsvIssue[], errorCount: number, detected: unknown): HttpError {
-  const tooBig = errors.some((e) => e.row === 0 && /50 MB|too large|larger than/i.test(e.message));
-  const issues = errors.map((e) => ({ path: e.row === 0 ? 'file' : `row ${e.row}${e.column ? `, ${e.column}` : ''}`, row: e.row, column: e.column, message: e.message }));
-  const whole = errors.find((e) => e.row === 0);
-  const message = whole ? `${whole.message} Nothing was imported.` : `${errorCount} problem(s) in the file; nothing was imported.`;
-  return new HttpError(tooBig ? 413 : 400, message, issues, { errorCount, detected });
-}
-
 /**
  * Imports an advance-log CSV sent as the raw request body (streamed, up to 50 MB / 50,000 rows).
  * All or nothing; rows already stored with the same values are skipped; conflicts need replace=true.
@@ -136,22 +92,20 @@ strokesRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
   const projectId = idParam(req.params, 'projectId', 'That project');
   const me = requireUser(req);
   const query = importQuerySchema.parse(req.query);
-  if (req.is('application/json') || req.is('multipart/form-data')) {
-    throw badRequest('Send the CSV file itself as the request body (Content-Type text/csv).');
-  }
-  const mapping = await chosenMapping(projectId, 'advance_log', query.mapping, advanceLogColumnMappingSchema as z.ZodType<Record<string, string>>);
+  requireRawCsv(req);
+  const columns = await chosenMapping(projectId, 'advance_log', query.mapping, advanceLogColumnMappingSchema as z.ZodType<Record<string, string>>);
   const [project] = await db.select().from(projects).where(eq(projects.id, projectId));
   const upload = uploadStream(req);
-  const result = await readAdvanceLogCsv(upload.body, { timeZone: project.siteTimeZone, direction: project.driveDirection, mapping });
+  const result = await readAdvanceLogCsv(upload.body, { timeZone: project.siteTimeZone, direction: project.driveDirection, ...columns });
   await upload.drain();
   if (!result.ok) throw csvRefusal(result.errors, result.errorCount, result.detected);
   const outcome = await db.transaction((tx) => importAdvanceLog(tx, projectId, me.id, result.rows, { replace: query.replace, mapping: result.detected.mapping as Record<string, string> }));
-  res.status(outcome.inserted + outcome.replaced > 0 ? 201 : 200).json({ ...outcome, warnings: result.warnings, detected: result.detected });
+  const warnings = [...unusedColumnWarnings(result.unusedColumns, { what: 'the advance log', keptAs: 'with each ring as extra data', canMap: true }), ...result.warnings];
+  res.status(outcome.inserted + outcome.replaced > 0 ? 201 : 200).json({ ...outcome, warnings, detected: result.detected });
 });
 
 /** The remembered column mapping of the advance log, with the fields Kerfwise knows. */
 strokesRouter.get('/mapping', requireProject('drive.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
-  const [stored] = await db.select().from(importMappings).where(and(eq(importMappings.projectId, projectId), eq(importMappings.kind, 'advance_log')));
-  res.json({ mapping: stored?.mapping ?? null, fields: advanceLogFields });
+  res.json({ mapping: await storedMapping(projectId, 'advance_log'), fields: advanceLogFields });
 });

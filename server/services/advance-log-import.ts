@@ -1,5 +1,5 @@
 /**
- * Imports an advance-log CSV (already read and checked row by row by lib/csv-import.ts) against
+ * Imports an advance-log CSV (already read and checked row by row by lib/csv/advance-log.ts) against
  * what is stored: rings already there with the same values are skipped, so importing a file again
  * adds nothing; a ring stored with other values is a conflict that needs an explicit "replace";
  * everything else goes in, all or nothing, in one transaction.
@@ -7,8 +7,9 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { AdvanceLogRow } from '../../shared/schemas/advance-log';
 import type { DbOrTx } from '../db/client';
-import { importMappings, strokes } from '../db/schema';
+import { strokes } from '../db/schema';
 import { audit } from '../lib/audit';
+import { rememberMapping } from '../lib/csv/upload';
 import { HttpError, type Issue } from '../lib/http-error';
 import { invalidateRolledDistance, refreshRolledDistance } from './rolled-distance';
 
@@ -112,10 +113,7 @@ export async function importAdvanceLog(
   for (const c of conflicts) {
     await tx.update(strokes).set(values(c.data)).where(eq(strokes.id, c.stored.id));
   }
-  await tx
-    .insert(importMappings)
-    .values({ projectId, kind: 'advance_log', mapping: options.mapping })
-    .onConflictDoUpdate({ target: [importMappings.projectId, importMappings.kind], set: { mapping: options.mapping, updatedAt: sql`now()` } });
+  await rememberMapping(tx, projectId, 'advance_log', options.mapping);
   await audit(tx, {
     userId, projectId, entity: 'advance_log', entityId: projectId, action: 'import',
     before: conflicts.length ? conflicts.map((c) => c.stored) : null,

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import type { ColumnMapping } from '../csv-headers';
 
 /**
  * Rows of the two CSV imports after their columns have been mapped: the advance log (one row per
@@ -6,21 +7,6 @@ import { z } from 'zod';
  * column-mapping screen (client). Values not given are null; unmapped columns of the advance log
  * are kept as text in `extra`.
  */
-
-/** How a cell is read: a number (decimal point or, for a whole file, decimal comma), a date and time, text, or yes/no. */
-export type CsvValueType = 'number' | 'time' | 'text' | 'yesNo';
-
-/** One target field of an import: its label (with unit) and the header names it is recognised by. */
-export interface CsvFieldInfo<F extends string> {
-  field: F;
-  label: string;
-  type: CsvValueType;
-  /** Header names that map to this field, compared ignoring case, punctuation and a trailing unit. */
-  synonyms: readonly string[];
-}
-
-/** Target field → header of the source column, as chosen on the mapping screen. */
-export type ColumnMapping<F extends string> = Partial<Record<F, string>>;
 
 // ----- advance log -----
 
@@ -37,29 +23,6 @@ export const advanceLogFieldNames = [
   'torqueKnm',
 ] as const;
 export type AdvanceLogField = (typeof advanceLogFieldNames)[number];
-
-export const advanceLogFields: readonly CsvFieldInfo<AdvanceLogField>[] = [
-  { field: 'ringNumber', label: 'Ring / stroke number', type: 'number', synonyms: ['ring', 'ring no', 'ring nr', 'ring number', 'ring id', 'stroke', 'stroke no', 'stroke number'] },
-  { field: 'startTime', label: 'Start time', type: 'time', synonyms: ['start time', 'start', 'begin', 'begin time', 'started', 'start date time', 'start datetime', 'time start'] },
-  { field: 'endTime', label: 'End time', type: 'time', synonyms: ['end time', 'end', 'finish', 'finish time', 'finished', 'end date time', 'end datetime', 'time end'] },
-  { field: 'chainageStartM', label: 'Chainage start (m)', type: 'number', synonyms: ['chainage start', 'chainage from', 'start chainage', 'from chainage', 'ch start', 'ch from', 'from'] },
-  { field: 'chainageEndM', label: 'Chainage end (m)', type: 'number', synonyms: ['chainage end', 'chainage to', 'end chainage', 'to chainage', 'ch end', 'ch to', 'to'] },
-  { field: 'revolutions', label: 'Cutterhead revolutions', type: 'number', synonyms: ['revolutions', 'cutterhead revolutions', 'revs', 'cutterhead revs', 'rev count'] },
-  { field: 'penetrationMmPerRev', label: 'Penetration (mm/rev)', type: 'number', synonyms: ['penetration', 'pen', 'penetration per rev', 'penetration per revolution'] },
-  { field: 'rpm', label: 'Cutterhead speed (rpm)', type: 'number', synonyms: ['rpm', 'cutterhead speed', 'cutterhead rpm', 'rotation speed'] },
-  { field: 'thrustKn', label: 'Thrust (kN)', type: 'number', synonyms: ['thrust', 'total thrust', 'thrust force'] },
-  { field: 'torqueKnm', label: 'Torque (kN·m)', type: 'number', synonyms: ['torque', 'cutterhead torque'] },
-];
-
-/** Each inner list needs at least one mapped column: revolutions may come from penetration instead. */
-export const advanceLogRequiredColumns: readonly (readonly AdvanceLogField[])[] = [
-  ['ringNumber'],
-  ['startTime'],
-  ['endTime'],
-  ['chainageStartM'],
-  ['chainageEndM'],
-  ['revolutions', 'penetrationMmPerRev'],
-];
 
 /** For a cross-field refinement: run it only when none of `fields` already failed. */
 const whenValid =
@@ -120,24 +83,10 @@ export const geologySectionFieldNames = [
   'waterHeadM',
   'stopAllowed',
   'stopReason',
+  'ucsMpa',
+  'cai',
 ] as const;
 export type GeologySectionField = (typeof geologySectionFieldNames)[number];
-
-export const geologySectionFields: readonly CsvFieldInfo<GeologySectionField>[] = [
-  { field: 'chainageFromM', label: 'Chainage from (m)', type: 'number', synonyms: ['chainage from', 'from chainage', 'from', 'ch from', 'chainage start', 'start chainage', 'start'] },
-  { field: 'chainageToM', label: 'Chainage to (m)', type: 'number', synonyms: ['chainage to', 'to chainage', 'to', 'ch to', 'chainage end', 'end chainage', 'end'] },
-  { field: 'groundTypeName', label: 'Ground type', type: 'text', synonyms: ['ground type', 'ground', 'geology', 'rock type', 'lithology', 'ground class'] },
-  { field: 'waterHeadM', label: 'Water head above axis (m)', type: 'number', synonyms: ['water head above axis', 'water head', 'groundwater head', 'head above axis', 'water level above axis'] },
-  { field: 'stopAllowed', label: 'Stop allowed (yes/no)', type: 'yesNo', synonyms: ['stop allowed', 'stops allowed', 'stopping allowed', 'can stop', 'intervention allowed'] },
-  { field: 'stopReason', label: 'Stop reason', type: 'text', synonyms: ['stop reason', 'reason', 'stop note', 'stop remark'] },
-];
-
-export const geologySectionRequiredColumns: readonly (readonly GeologySectionField[])[] = [
-  ['chainageFromM'],
-  ['chainageToM'],
-  ['groundTypeName'],
-  ['stopAllowed'],
-];
 
 export const geologySectionRowSchema = z
   .object({
@@ -153,6 +102,12 @@ export const geologySectionRowSchema = z
       .nullable(),
     stopAllowed: z.boolean({ error: 'Say whether a stop is allowed in this section: yes or no.' }),
     stopReason: z.string().max(300, 'Keep the stop reason to 300 characters.').nullable(),
+    /**
+     * Properties of the section's ground type when the file gives them (limits as in
+     * shared/schemas/geology.ts); undefined, not null, when it does not.
+     */
+    ucsMpa: z.number().min(0, 'UCS cannot be negative.').max(500, 'UCS must be at most 500 MPa.').nullable().transform((v) => v ?? undefined),
+    cai: z.number().min(0, 'CAI cannot be negative.').max(7, 'CAI must be at most 7 (the Cerchar scale ends there).').nullable().transform((v) => v ?? undefined),
   })
   .refine((row) => row.chainageToM > row.chainageFromM, {
     path: ['chainageToM'],

@@ -109,6 +109,7 @@ export const routeTable: RouteCase[] = [
   { method: 'delete', path: '/api/projects/:projectId/ground-types/:groundTypeId', roles: ['planner'], okStatus: 204, prepare: freshGroundType },
   { method: 'get', path: '/api/projects/:projectId/geology', roles: everyone },
   { method: 'put', path: '/api/projects/:projectId/geology', roles: ['planner'], body: () => ({ sections: [] }) },
+  { method: 'get', path: '/api/projects/:projectId/geology/mapping', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes/daily', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/strokes/export.csv', roles: everyone },

@@ -4,14 +4,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import {
-  detectCsvFormat,
-  readAdvanceLogCsv,
-  readGeologyCsv,
-  type AdvanceLogReadOptions,
-  type CsvImportResult,
-  type CsvProgress,
-} from '../../server/lib/csv-import';
+import { readAdvanceLogCsv, type AdvanceLogReadOptions } from '../../server/lib/csv/advance-log';
+import { detectCsvFormat } from '../../server/lib/csv/detect';
+import { readGeologyCsv } from '../../server/lib/csv/geology';
+import { readLayoutCsv } from '../../server/lib/csv/layout';
+import type { CsvImportResult, CsvProgress } from '../../server/lib/csv/read';
+import { normalizeHeader } from '../../shared/csv-headers';
 
 // All data invented (no real project): a drive of 1.5 m strokes from chainage 2450.0 m,
 // penetration 4.6–11.3 mm/rev, 4.6–6.8 rpm, thrust 8,700–15,400 kN, torque 1,760–3,600 kN·m.
@@ -239,6 +237,7 @@ describe('bad files: each error on the right line and column', () => {
       ],
     ],
     ['geology-missing-stop-allowed-column.csv', [issue(1, 'Stop allowed (yes/no)', /No column for Stop allowed/)]],
+    ['geology-unreadable-water-head.csv', [issue(3, 'water_head_m', /Water head above axis \(m\) must be a number; 'about 20' is not one/)]],
   ];
 
   it.each(cases)('%s', async (file, expected) => {
@@ -436,5 +435,52 @@ describe('mapping, times and checks between rows (inline files)', () => {
   it('stops at a file larger than a smaller maxBytes', async () => {
     const result = await readAdvanceLogCsv(textStream(`${HEADER}\n${rows.join('\n')}\n`), { ...ZURICH, maxBytes: 100 });
     expect(errorsOf(result)).toEqual([issue(0, '', /larger than 100 bytes/)]);
+  });
+});
+
+describe('header names with units joined by "_", unused columns, ground properties, the layout', () => {
+  it('compares header names with the unit joined by a space, an underscore or in brackets alike', () => {
+    // common practice, no source: "name_unit" is how machine data systems and Kerfwise's own export write units.
+    for (const header of ['water_head_m', 'Water head (m)', 'WATER HEAD m', 'water head']) expect(normalizeHeader(header)).toBe('waterhead');
+    expect(['penetration_mm_per_rev', 'penetration_mm_rev', 'Penetration [mm/rev]'].map(normalizeHeader)).toEqual(['penetration', 'penetration', 'penetration']);
+    expect(['thrust_kn', 'torque_knm', 'ucs_mpa', 'chainage_start_m', 'disc_size_in', 'tilt_deg'].map(normalizeHeader)).toEqual(['thrust', 'torque', 'ucs', 'chainagestart', 'discsize', 'tilt']);
+  });
+
+  it("reads the advance log under the headers of Kerfwise's own export", async () => {
+    // derived: the column list of GET /strokes/export.csv (server/routes/strokes.ts); times as the export writes them (UTC).
+    const header = 'ring,start_time,end_time,chainage_start_m,chainage_end_m,revolutions,penetration_mm_per_rev,rpm,thrust_kn,torque_knm';
+    const text = `${header}\n101,2026-03-14T05:00:00.000Z,2026-03-14T05:37:00.000Z,2450,2451.5,190,7.9,5.2,11800,2450\n`;
+    const result = await readAdvanceLogCsv(textStream(text), ZURICH);
+    expect(rowsOf(result)[0].data).toEqual({
+      ringNumber: 101, startTime: '2026-03-14T06:00:00+01:00', endTime: '2026-03-14T06:37:00+01:00', chainageStartM: 2450, chainageEndM: 2451.5,
+      revolutions: 190, penetrationMmPerRev: 7.9, rpm: 5.2, thrustKn: 11800, torqueKnm: 2450, extra: {},
+    });
+    expect(result.unusedColumns).toEqual([]);
+  });
+
+  it('reads water head, UCS and CAI of a long section written with "_" units, and lists a column it does not read', async () => {
+    const text = 'chainage_from_m,chainage_to_m,ground_type,water_head_m,stop_allowed,stop_reason,ucs_mpa,cai,logged_by\n2400,2520,Marl,18.5,yes,,45,1.2,AB\n2520,2610,Sandstone,21,yes,,80,2.4,AB\n';
+    const result = await readGeologyCsv(textStream(text));
+    // derived: the inline file above, line by line.
+    expect(rowsOf(result).map((r) => [r.data.waterHeadM, r.data.ucsMpa, r.data.cai])).toEqual([[18.5, 45, 1.2], [21, 80, 2.4]]);
+    expect(result.unusedColumns).toEqual(['logged_by']);
+  });
+
+  it('refuses two rows of one ground type with different CAI', async () => {
+    const text = 'from,to,ground,stop allowed,cai\n2400,2520,Marl,yes,1.2\n2520,2610,marl,yes,1.5\n';
+    expect(errorsOf(await readGeologyCsv(textStream(text)))).toEqual([issue(3, 'cai', /CAI 1\.5 here, but line 2 gives 1\.2 for the same ground type/)]);
+  });
+
+  it('reads a cutterhead layout through the same reader, with errors by row and column', async () => {
+    // derived: inline file; line 3 has a wear limit of 0 (must be > 0), line 4 a class Kerfwise does not know.
+    const text = 'number;track_radius_mm;class;disc_size_in;wear_limit_mm;twin_disc\n1;60;Centre;17;25;yes\n2;900;face;17;0;no\n3;1800,5;middle;17;25;no\n';
+    const result = await readLayoutCsv(textStream(text));
+    expect(errorsOf(result)).toEqual([
+      issue(3, 'wear_limit_mm', /wear limit must be more than 0 mm/),
+      issue(4, 'class', /Class must be centre, face or gauge/),
+    ]);
+    expect(result.detected).toMatchObject({ delimiter: ';', decimalComma: true });
+    const good = await readLayoutCsv(textStream('position,radius (mm),class,disc size,limit\n1,60,centre,17,25\n'));
+    expect(rowsOf(good)[0].data).toEqual({ number: 1, trackRadiusMm: 60, positionClass: 'centre', discSizeIn: 17, tiltDeg: null, wearLimitMm: 25, twinDisc: false, angleDeg: null });
   });
 });

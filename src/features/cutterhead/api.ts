@@ -63,6 +63,8 @@ export interface LayoutSaved {
   created: number;
   updated: number;
   unchanged: number;
+  /** From a CSV import: columns the import did not read, by row and column. */
+  warnings?: { row: number; column: string; message: string }[];
 }
 
 const base = (projectId: string) => `/api/projects/${projectId}/positions`;

@@ -1,7 +1,8 @@
 import { keepPreviousData, queryOptions } from '@tanstack/react-query';
 import type { CercharClassification } from '../../../shared/domain/cerchar';
 import type { GeologyGapWarning } from '../../../shared/domain/geology';
-import type { AdvanceLogField, CsvFieldInfo } from '../../../shared/schemas/advance-log';
+import type { ColumnMapping, CsvFieldInfo } from '../../../shared/csv-headers';
+import type { AdvanceLogField, GeologySectionField } from '../../../shared/schemas/advance-log';
 import type { GroundTypeInput, SectionInput, StrokeListQuery } from '../../../shared/schemas/geology';
 import { api, apiGet, ApiError } from '../../lib/api-client';
 
@@ -34,11 +35,14 @@ export interface DailyAdvance {
   strokes: number;
 }
 
-export interface AdvanceLogMapping {
+/** The column mapping of one import, remembered per project. */
+export interface ImportMapping<F extends string> {
   /** Field → header, remembered from the last import; null before the first. */
-  mapping: Partial<Record<AdvanceLogField, string>> | null;
-  fields: CsvFieldInfo<AdvanceLogField>[];
+  mapping: ColumnMapping<F> | null;
+  fields: CsvFieldInfo<F>[];
 }
+export type AdvanceLogMapping = ImportMapping<AdvanceLogField>;
+export type GeologyMapping = ImportMapping<GeologySectionField>;
 
 export interface GroundType {
   id: string;
@@ -80,6 +84,7 @@ export const geologyImportUrl = (projectId: string) => `${base(projectId)}/geolo
 export const getStrokes = (projectId: string, query: StrokeListQuery) => apiGet<StrokePage>(`${base(projectId)}/strokes?${strokeQueryString(query)}`);
 export const getDailyAdvance = (projectId: string) => apiGet<DailyAdvance[]>(`${base(projectId)}/strokes/daily`);
 export const getAdvanceLogMapping = (projectId: string) => apiGet<AdvanceLogMapping>(`${base(projectId)}/strokes/mapping`);
+export const getGeologyMapping = (projectId: string) => apiGet<GeologyMapping>(`${base(projectId)}/geology/mapping`);
 export const getGroundTypes = (projectId: string) => apiGet<GroundType[]>(`${base(projectId)}/ground-types`);
 export const getGeology = (projectId: string) => apiGet<Geology>(`${base(projectId)}/geology`);
 export const createGroundType = (projectId: string, input: GroundTypeInput) => api<GroundType>('POST', `${base(projectId)}/ground-types`, input);
@@ -99,6 +104,7 @@ export const driveQueries = {
     }),
   daily: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
   mapping: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
+  geologyMapping: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'mapping', 'geology'], queryFn: () => getGeologyMapping(projectId) }),
   groundTypes: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'ground-types'], queryFn: () => getGroundTypes(projectId) }),
   geology: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'geology'], queryFn: () => getGeology(projectId) }),
 };

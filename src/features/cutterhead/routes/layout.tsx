@@ -248,13 +248,16 @@ function CsvImport({ projectId }: { projectId: string }) {
     try {
       const saved = await importLayoutCsv(projectId, await file.text());
       await queryClient.invalidateQueries({ queryKey: positionQueries.all(projectId) });
-      setResult({ tone: 'success', text: `${file.name} imported: ${savedText(saved)}`, problems: [] });
+      const notes = (saved.warnings ?? []).map((w) => ({ row: String(w.row), column: w.column, message: w.message }));
+      setResult({ tone: 'success', text: `${file.name} imported: ${savedText(saved)}`, problems: notes });
     } catch (err) {
       const problems = err instanceof ApiError
         ? err.issues.map((issue) => {
           const m = /^row (\d+)(?:\.(\w+))?/.exec(issue.path);
           const field = m?.[2] as keyof PositionInput | undefined;
-          return { row: m?.[1] ?? '—', column: field ? csvColumnOf[field] ?? field : '—', message: issue.message };
+          // The reader names the column as the file wrote it; older answers only had the field.
+          const written = (issue as { column?: string }).column;
+          return { row: m?.[1] ?? '—', column: written || (field ? csvColumnOf[field] ?? field : '—'), message: issue.message };
         })
         : [];
       setResult({ tone: 'error', text: err instanceof ApiError ? err.message : 'The import failed. Try again.', problems });

@@ -1,7 +1,9 @@
 import { useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
+import { proposeMapping, advanceLogRequiredColumns, type ColumnMapping } from '../../../../shared/csv-headers';
+import type { AdvanceLogField } from '../../../../shared/schemas/advance-log';
 import { advanceLogImportUrl, driveQueries } from '../api';
-import { ColumnMapping, proposeMapping, readHeader, type MappingChoice } from './column-mapping';
+import { ColumnMappingStep, readHeader } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
 const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?? 0).toLocaleString('en-GB');
@@ -10,7 +12,7 @@ const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?
 export function AdvanceLogImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
   const { data: known } = useSuspenseQuery(driveQueries.mapping(projectId));
   const [headers, setHeaders] = useState<string[] | null>(null);
-  const [choice, setChoice] = useState<MappingChoice>({});
+  const [choice, setChoice] = useState<ColumnMapping<AdvanceLogField>>({});
 
   const onFile = async (file: File | null) => {
     setHeaders(null);
@@ -34,7 +36,15 @@ export function AdvanceLogImport({ projectId, onImported }: { projectId: string;
       url={url}
       onFile={onFile}
       step={headers && headers.length > 1 && (
-        <ColumnMapping headers={headers} fields={known.fields} stored={known.mapping} choice={choice} onChange={setChoice} />
+        <ColumnMappingStep
+          headers={headers}
+          fields={known.fields}
+          required={advanceLogRequiredColumns}
+          stored={known.mapping}
+          choice={choice}
+          onChange={setChoice}
+          unusedNote="are kept with each ring as extra data"
+        />
       )}
       successTitle={(name, body) =>
         `${name} imported: ${count(body, 'inserted')} new, ${count(body, 'unchanged')} already stored and unchanged, ${count(body, 'replaced')} replaced.`}

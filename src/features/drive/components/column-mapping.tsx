@@ -1,8 +1,6 @@
 import Papa from 'papaparse';
 import { useId } from 'react';
-import { advanceLogRequiredColumns, type AdvanceLogField, type CsvFieldInfo } from '../../../../shared/schemas/advance-log';
-
-export type MappingChoice = Partial<Record<AdvanceLogField, string>>;
+import { missingColumnGroups, type ColumnMapping, type CsvFieldInfo } from '../../../../shared/csv-headers';
 
 /** The column names on the first line of a file, read in the browser (the file is not sent for this). */
 export async function readHeader(file: File): Promise<string[]> {
@@ -11,64 +9,30 @@ export async function readHeader(file: File): Promise<string[]> {
   return (parsed.data[0] ?? []).map((h) => h.trim()).filter((h) => h !== '');
 }
 
-/**
- * Header names compared as the server's importer compares them (server/lib/csv-import.ts):
- * lower case, bracketed text and a trailing unit dropped, letters and digits only.
- */
-function normalizeHeader(header: string): string {
-  let name = header.toLowerCase().replace(/[([{][^)\]}]*[)\]}]/g, ' ').trim();
-  const unit = /^(.*\S)\s+(mm\/rev|mm\/u|kn·m|kn\.m|kn-m|knm|kn|rpm|1\/min|mm|m)$/.exec(name);
-  if (unit) name = unit[1];
-  return name.replace(/[^a-z0-9]/g, '');
-}
-
-/**
- * The column proposed for each field: the one remembered from the last import when the file has
- * it, else the first unused column whose name Kerfwise recognises.
- */
-export function proposeMapping(headers: string[], fields: readonly CsvFieldInfo<AdvanceLogField>[], stored: MappingChoice | null): MappingChoice {
-  const used = new Set<string>();
-  const choice: MappingChoice = {};
-  for (const { field } of fields) {
-    const remembered = stored?.[field] && headers.find((h) => h.toLowerCase() === stored[field]!.toLowerCase());
-    if (remembered) {
-      choice[field] = remembered;
-      used.add(remembered);
-    }
-  }
-  for (const { field, synonyms } of fields) {
-    if (choice[field]) continue;
-    const names = new Set(synonyms.map(normalizeHeader));
-    const found = headers.find((h) => !used.has(h) && names.has(normalizeHeader(h)));
-    if (found) {
-      choice[field] = found;
-      used.add(found);
-    }
-  }
-  return choice;
-}
-
 /** Required fields no column was chosen for, in words ("End time", "Cutterhead revolutions or Penetration (mm/rev)"). */
-function missingFields(choice: MappingChoice, fields: readonly CsvFieldInfo<AdvanceLogField>[]): string[] {
-  const label = (f: AdvanceLogField) => fields.find((i) => i.field === f)?.label ?? f;
-  return advanceLogRequiredColumns.filter((group) => !group.some((f) => choice[f])).map((group) => group.map(label).join(' or '));
+function missingFields<F extends string>(choice: ColumnMapping<F>, fields: readonly CsvFieldInfo<F>[], required: readonly (readonly F[])[]): string[] {
+  const label = (f: F) => fields.find((i) => i.field === f)?.label ?? f;
+  return missingColumnGroups(choice, required).map((group) => group.map(label).join(' or '));
 }
 
-const requiredAlone = new Set(advanceLogRequiredColumns.filter((g) => g.length === 1).map((g) => g[0]));
-
 /**
- * Which column of the chosen file fills each field of the advance log. Folded away when every
- * needed field was found; open when one is missing.
+ * Which column of the chosen file fills each field of an import (advance log, long section).
+ * Folded away when every needed field was found; open when one is missing. Header names are
+ * proposed by shared/csv-headers.ts, as the server's reader matches them.
  */
-export function ColumnMapping({ headers, fields, stored, choice, onChange }: {
+export function ColumnMappingStep<F extends string>({ headers, fields, required, stored, choice, onChange, unusedNote }: {
   headers: string[];
-  fields: readonly CsvFieldInfo<AdvanceLogField>[];
-  stored: MappingChoice | null;
-  choice: MappingChoice;
-  onChange: (choice: MappingChoice) => void;
+  fields: readonly CsvFieldInfo<F>[];
+  required: readonly (readonly F[])[];
+  stored: ColumnMapping<F> | null;
+  choice: ColumnMapping<F>;
+  onChange: (choice: ColumnMapping<F>) => void;
+  /** What happens to columns not chosen, e.g. "are kept with each ring as extra data". */
+  unusedNote: string;
 }) {
   const id = useId();
-  const missing = missingFields(choice, fields);
+  const requiredAlone = new Set<F>(required.filter((g) => g.length === 1).map((g) => g[0]));
+  const missing = missingFields(choice, fields, required);
   const found = fields.filter((f) => choice[f.field]).length;
   const chosen = Object.values(choice).filter(Boolean);
   const twice = [...new Set(chosen.filter((h, i) => chosen.indexOf(h) !== i))];
@@ -80,7 +44,7 @@ export function ColumnMapping({ headers, fields, stored, choice, onChange }: {
       <div className="space-y-3 px-3 pb-3">
         <p className="text-caption text-basalt-700">
           Choose, for each field, the column of your file that holds it. Kerfwise remembers the choice for the next import of this drive.
-          Columns not chosen are kept with each ring as extra data.
+          Columns not chosen {unusedNote}.
         </p>
         {missing.length > 0 && (
           <p role="status" className="font-semibold text-caution-700">Choose a column for {missing.join('; ')}: the file cannot be imported without it.</p>

@@ -5,7 +5,7 @@ import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { uploadCsv, type ImportIssue, type UploadAnswer } from '../api';
 
-/** The server refuses larger files (server/lib/csv-import.ts); checking here saves the upload. */
+/** The server refuses larger files (server/lib/csv/read.ts); checking here saves the upload. */
 const MAX_BYTES = 50 * 1024 * 1024;
 
 type Refusal = Extract<UploadAnswer, { ok: false }>;

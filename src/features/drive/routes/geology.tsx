@@ -7,8 +7,8 @@ import { DataTable } from '../../../components/ui/data-table';
 import { Page, Panel } from '../../../components/ui/page';
 import { formatChainage } from '../../../lib/format';
 import { projectQueries } from '../../projects/api';
-import { driveQueries, geologyImportUrl, type GeologySection } from '../api';
-import { CsvUpload } from '../components/csv-upload';
+import { driveQueries, type GeologySection } from '../api';
+import { GeologyImport } from '../components/geology-import';
 import { GroundTypesPanel } from '../components/ground-types-panel';
 import { gapText, LongSectionEditor } from '../components/long-section-editor';
 import { LongSectionStrip } from '../components/long-section-strip';
@@ -59,18 +59,7 @@ export function GeologyRoute() {
       {canEdit ? (
         <>
           <LongSectionEditor projectId={projectId} sections={geology.sections} groundTypes={groundTypes} />
-          <CsvUpload
-            title="Import the long section"
-            url={() => geologyImportUrl(projectId)}
-            successTitle={(name, body) => `${name} imported: ${Number(body.saved ?? 0)} sections saved; they replace the long section stored before.`}
-            onImported={refresh}
-          >
-            <p>
-              One row per section with the columns chainage from, chainage to (m, lower chainage first), ground type (by name; new names
-              become new ground types), water head above the axis (m), stop allowed (yes/no) and stop reason (needed where no stop is allowed).
-            </p>
-            <p>The file replaces the whole long section. Overlapping sections are refused; gaps are reported.</p>
-          </CsvUpload>
+          <GeologyImport projectId={projectId} onImported={refresh} />
         </>
       ) : (
         <Panel title="Sections">

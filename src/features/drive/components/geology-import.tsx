@@ -1,0 +1,53 @@
+import { useSuspenseQuery } from '@tanstack/react-query';
+import { useState } from 'react';
+import { geologySectionRequiredColumns, proposeMapping, type ColumnMapping } from '../../../../shared/csv-headers';
+import type { GeologySectionField } from '../../../../shared/schemas/advance-log';
+import { driveQueries, geologyImportUrl } from '../api';
+import { ColumnMappingStep, readHeader } from './column-mapping';
+import { CsvUpload } from './csv-upload';
+
+/** The planner's import of the geology long section, with the column mapping as an optional step (as for the advance log). */
+export function GeologyImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
+  const { data: known } = useSuspenseQuery(driveQueries.geologyMapping(projectId));
+  const [headers, setHeaders] = useState<string[] | null>(null);
+  const [choice, setChoice] = useState<ColumnMapping<GeologySectionField>>({});
+
+  const onFile = async (file: File | null) => {
+    setHeaders(null);
+    if (!file) return;
+    const read = await readHeader(file);
+    setHeaders(read);
+    setChoice(proposeMapping(read, known.fields, known.mapping));
+  };
+
+  // As for the advance log: once the header is read, the choice on screen is what the server uses.
+  const url = () => (headers ? `${geologyImportUrl(projectId)}?${new URLSearchParams({ mapping: JSON.stringify(choice) })}` : geologyImportUrl(projectId));
+
+  return (
+    <CsvUpload
+      title="Import the long section"
+      url={url}
+      onFile={onFile}
+      step={headers && headers.length > 1 && (
+        <ColumnMappingStep
+          headers={headers}
+          fields={known.fields}
+          required={geologySectionRequiredColumns}
+          stored={known.mapping}
+          choice={choice}
+          onChange={setChoice}
+          unusedNote="are not imported; each is named in a note after the import"
+        />
+      )}
+      successTitle={(name, body) => `${name} imported: ${Number(body.saved ?? 0)} sections saved; they replace the long section stored before.`}
+      onImported={onImported}
+    >
+      <p>
+        One row per section with the columns chainage from, chainage to (m, lower chainage first), ground type (by name; new names
+        become new ground types), water head above the axis (m), stop allowed (yes/no) and stop reason (needed where no stop is allowed);
+        UCS (MPa) and CAI of the ground type when known. Names with units joined by a space or an underscore (water_head_m) are recognised.
+      </p>
+      <p>The file replaces the whole long section. Overlapping sections are refused; gaps, empty water heads and columns not read are reported.</p>
+    </CsvUpload>
+  );
+}
