@@ -15,7 +15,6 @@ import { readGeologyCsv } from '../lib/csv/geology';
 import type { CsvIssue } from '../lib/csv/issues';
 import { csvRefusal, chosenMapping, rememberMapping, requireRawCsv, storedMapping, unusedColumnWarnings, uploadStream } from '../lib/csv/upload';
 import { idParam } from '../lib/params';
-import { invalidateRolledDistance, refreshRolledDistance } from '../services/rolled-distance';
 import { driveDataChanged } from '../services/drive-data';
 
 export const groundTypesRouter = Router({ mergeParams: true });
@@ -171,8 +170,7 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
     }))).returning();
     await audit(tx, { userId: me.id, projectId, entity: 'geology', entityId: projectId, action: 'import', before: previous, after: saved });
     await rememberMapping(tx, projectId, 'geology', result.detected.mapping as Record<string, string>);
-    await invalidateRolledDistance(tx, projectId);
-    await refreshRolledDistance(tx, projectId);
+    await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: true });
     return { saved: saved.length, createdGroundTypes: created };
   });
   const warnings = [

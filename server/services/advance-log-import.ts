@@ -10,8 +10,8 @@ import type { DbOrTx } from '../db/client';
 import { strokes } from '../db/schema';
 import { audit } from '../lib/audit';
 import { rememberMapping } from '../lib/csv/upload';
-import { HttpError, type Issue } from '../lib/http-error';
-import { invalidateRolledDistance, refreshRolledDistance } from './rolled-distance';
+import { ConflictError, InvalidInputError, type Issue } from '../lib/errors';
+import { driveDataChanged } from './drive-data';
 
 type StoredStroke = typeof strokes.$inferSelect;
 
@@ -84,7 +84,7 @@ export async function importAdvanceLog(
       path: `row ${c.line}`, row: c.line, column: 'ring',
       message: `Ring ${c.data.ringNumber} is already stored with a different ${c.diffs.join(', ')}. Import with "replace" to overwrite it.`,
     }));
-    throw new HttpError(409, `${conflicts.length} ring(s) of the file differ from the stored ones; nothing was imported. Check them, then import again with "replace" to overwrite.`, issues, { conflictCount: conflicts.length });
+    throw new ConflictError(`${conflicts.length} ring(s) of the file differ from the stored ones; nothing was imported. Check them, then import again with "replace" to overwrite.`, issues, { conflictCount: conflicts.length });
   }
 
   // New rings may not overlap stored strokes in chainage (the engine checked the file itself).
@@ -102,7 +102,7 @@ export async function importAdvanceLog(
       const hit = near.find((n) => n.ringNumber !== r.data.ringNumber && Math.min(n.a, n.b) < b - 0.001 && Math.max(n.a, n.b) > a + 0.001);
       if (hit) issues.push({ path: `row ${r.line}`, row: r.line, column: 'chainage start', message: `Ring ${r.data.ringNumber} overlaps the stored ring ${hit.ringNumber} (${Math.min(hit.a, hit.b)}–${Math.max(hit.a, hit.b)} m).` });
     }
-    if (issues.length > 0) throw new HttpError(400, `${issues.length} row(s) overlap strokes already stored; nothing was imported.`, issues.slice(0, 200));
+    if (issues.length > 0) throw new InvalidInputError(`${issues.length} row(s) overlap strokes already stored; nothing was imported.`, issues.slice(0, 200));
   }
 
   const values = (r: AdvanceLogRow) => ({
@@ -120,7 +120,6 @@ export async function importAdvanceLog(
     after: { inserted: fresh.length, unchanged, replaced: conflicts.length, rings: rings.length ? [Math.min(...rings), Math.max(...rings)] : [] },
   });
   // Replaced rings change the past; new rings after the last computed one only add.
-  if (conflicts.length > 0) await invalidateRolledDistance(tx, projectId);
-  if (fresh.length + conflicts.length > 0) await refreshRolledDistance(tx, projectId);
+  if (fresh.length + conflicts.length > 0) await driveDataChanged(tx, projectId, { rewritesPast: conflicts.length > 0, refreshNow: true });
   return { inserted: fresh.length, unchanged, replaced: conflicts.length };
 }
