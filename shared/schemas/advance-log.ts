@@ -168,3 +168,38 @@ export type GeologySectionRow = z.infer<typeof geologySectionRowSchema>;
 
 export const geologySectionColumnMappingSchema = z.partialRecord(z.enum(geologySectionFieldNames), z.string().trim().min(1));
 export type GeologySectionColumnMapping = ColumnMapping<GeologySectionField>;
+
+/** One ring or stroke of the advance log as GET /strokes sends it. */
+export interface Stroke {
+  id: number;
+  ringNumber: number;
+  startTime: string;
+  endTime: string;
+  chainageStartM: number;
+  chainageEndM: number;
+  revolutions: number | null;
+  penetrationMmPerRev: number | null;
+  rpm: number | null;
+  thrustKn: number | null;
+  torqueKnm: number | null;
+}
+
+export interface StrokePage {
+  rows: Stroke[];
+  total: number;
+  page: number;
+  pageSize: number;
+}
+
+/** Metres advanced on one calendar day of the site. */
+export interface DailyAdvance {
+  day: string;
+  advanceM: number;
+  strokes: number;
+}
+
+export interface AdvanceLogMapping {
+  /** Field → header, remembered from the last import; null before the first. */
+  mapping: Partial<Record<AdvanceLogField, string>> | null;
+  fields: CsvFieldInfo<AdvanceLogField>[];
+}

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import type { ProjectRole } from '../roles';
 
 export const emailSchema = z
   .string({ message: 'Enter an e-mail address.' })
@@ -32,3 +33,8 @@ export const changePasswordInputSchema = z.object({
   newPassword: newPasswordSchema,
 });
 export type ChangePasswordInput = z.infer<typeof changePasswordInputSchema>;
+
+export interface Me {
+  user: { id: string; email: string; name: string; isAdmin: boolean };
+  memberships: { projectId: string; projectName: string; role: ProjectRole }[];
+}

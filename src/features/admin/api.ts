@@ -3,54 +3,15 @@ import type { ProjectRole } from '../../../shared/roles';
 import type { ProjectInput } from '../../../shared/schemas/project';
 import type { InviteUserInput, UpdateUserInput } from '../../../shared/schemas/user';
 import { api, apiGet } from '../../lib/api-client';
+import type { AdminMailView, AdminProject, AdminUser, JobInfo, JobRunRow } from '../../../shared/schemas/admin';
+export type { AdminMailView, AdminUser, AdminProject, CaughtMail, JobRunRow, JobInfo } from '../../../shared/schemas/admin';
 
-export interface AdminUser {
-  id: string;
-  email: string;
-  name: string;
-  isAdmin: boolean;
-  active: boolean;
-  invited: boolean;
-  memberships: { projectId: string; projectName: string; role: ProjectRole }[];
-}
-
-export interface AdminProject {
-  id: string;
-  name: string;
-  machineDescription: string;
-  excavatedDiameterM: number;
-  startChainageM: number;
-  driveDirection: 'increasing' | 'decreasing';
-  siteTimeZone: string;
-  memberCount: number;
-}
-
-export interface CaughtMail {
-  id: number;
-  receivedAt: string;
-  fromAddress: string;
-  toAddresses: string[];
-  subject: string;
-  textBody: string;
-}
-
-export interface JobRunRow {
-  id: number;
-  job: string;
-  trigger: string;
-  startedAt: string;
-  finishedAt: string | null;
-  outcome: string;
-  summary: string | null;
-  error: string | null;
-}
-
-export interface JobInfo {
-  name: string;
-  label: string;
-  cron: string;
-  runs: JobRunRow[];
-}
+/**
+ * The zone Admin → Mail and Admin → Jobs show times in: mail and job runs belong to the
+ * installation, not to one drive, so they use the first project's site zone (UTC when there is no
+ * project yet). See DEVELOPERS.md, decision 25.
+ */
+export const installationTimeZone = (projects: readonly Pick<AdminProject, 'siteTimeZone'>[]) => projects[0]?.siteTimeZone ?? 'UTC';
 
 export const adminQueries = {
   all: ['admin'] as const,
@@ -60,7 +21,7 @@ export const adminQueries = {
   mail: () =>
     queryOptions({
       queryKey: [...adminQueries.all, 'mail'],
-      queryFn: () => apiGet<{ caught: CaughtMail[]; outbox: { waiting: number; failing: number }; uncertain: { id: number; subject: string; toAddresses: string[]; claimedAt: string }[] }>('/api/admin/mail'),
+      queryFn: () => apiGet<AdminMailView>('/api/admin/mail'),
       refetchInterval: 5000,
     }),
 };

@@ -1,69 +1,8 @@
 import { queryOptions } from '@tanstack/react-query';
-import type { DiscCondition, PositionClass } from '../../../shared/cutters';
 import type { LayoutInput } from '../../../shared/schemas/cutterhead';
 import { api, apiGet } from '../../lib/api-client';
-
-/** A position as GET /positions lists it: the layout, the serial on it now, and its last wear. */
-export interface PositionSummary {
-  id: string;
-  number: number;
-  trackRadiusMm: number;
-  positionClass: PositionClass;
-  discSizeIn: number;
-  tiltDeg: number | null;
-  wearLimitMm: number;
-  twinDisc: boolean;
-  angleDeg: number | null;
-  current: { fittingId: string; cutterId: string; serial: string; fittedAt: string; fittedChainageM: number } | null;
-  lastWearMm: number | null;
-  lastMeasuredAt: string | null;
-  lastConditions: DiscCondition[];
-}
-
-export interface FittedPeriod {
-  id: string;
-  cutterId: string;
-  serial: string;
-  fittedAt: string;
-  fittedChainageM: number;
-  fittedRing: number | null;
-  removedAt: string | null;
-  removedChainageM: number | null;
-  removedRing: number | null;
-  removalReason: string | null;
-  removalConditions: DiscCondition[] | null;
-}
-
-export interface Measurement {
-  id: string;
-  wearMm: number | null;
-  conditions: DiscCondition[];
-  action: 'none' | 'changed';
-  note: string;
-  remeasured: boolean;
-  recordedAt: string;
-  roundAt: string;
-  chainageM: number;
-  ringNumber: number | null;
-  fittingId: string | null;
-  serial: string | null;
-  removedSerial: string | null;
-  fittedSerial: string | null;
-  changeReason: string | null;
-}
-
-export interface PositionDetail {
-  position: Omit<PositionSummary, 'current' | 'lastWearMm' | 'lastMeasuredAt' | 'lastConditions'>;
-  periods: FittedPeriod[];
-  measurements: Measurement[];
-  photos: { id: string; entryId: string; createdAt: string; mimeType: string }[];
-}
-
-export interface LayoutSaved {
-  created: number;
-  updated: number;
-  unchanged: number;
-}
+import type { PositionSummary, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
+export type { PositionSummary, FittedPeriod, Measurement, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
 
 const base = (projectId: string) => `/api/projects/${projectId}/positions`;
 

@@ -1,65 +1,12 @@
 import { keepPreviousData, queryOptions } from '@tanstack/react-query';
-import type { CercharClassification } from '../../../shared/domain/cerchar';
 import type { GeologyGapWarning } from '../../../shared/domain/geology';
-import type { AdvanceLogField, CsvFieldInfo } from '../../../shared/schemas/advance-log';
 import type { GroundTypeInput, SectionInput, StrokeListQuery } from '../../../shared/schemas/geology';
+import type { ApiIssue } from '../../../shared/schemas/api-error';
 import { api, apiGet, ApiError } from '../../lib/api-client';
-
-/** One ring or stroke of the advance log as GET /strokes sends it. */
-export interface Stroke {
-  id: number;
-  ringNumber: number;
-  startTime: string;
-  endTime: string;
-  chainageStartM: number;
-  chainageEndM: number;
-  revolutions: number | null;
-  penetrationMmPerRev: number | null;
-  rpm: number | null;
-  thrustKn: number | null;
-  torqueKnm: number | null;
-}
-
-export interface StrokePage {
-  rows: Stroke[];
-  total: number;
-  page: number;
-  pageSize: number;
-}
-
-/** Metres advanced on one calendar day of the site. */
-export interface DailyAdvance {
-  day: string;
-  advanceM: number;
-  strokes: number;
-}
-
-export interface AdvanceLogMapping {
-  /** Field → header, remembered from the last import; null before the first. */
-  mapping: Partial<Record<AdvanceLogField, string>> | null;
-  fields: CsvFieldInfo<AdvanceLogField>[];
-}
-
-export interface GroundType {
-  id: string;
-  name: string;
-  description: string;
-  ucsMpa: number | null;
-  cai: number | null;
-  caiClass: CercharClassification | null;
-  quartzPct: number | null;
-  notes: string;
-}
-
-export interface GeologySection extends SectionInput {
-  id: string;
-}
-
-export interface Geology {
-  sections: GeologySection[];
-  warnings: GeologyGapWarning[];
-  currentChainageM: number | null;
-}
+import type { StrokePage, DailyAdvance, AdvanceLogMapping } from '../../../shared/schemas/advance-log';
+import type { GroundType } from '../../../shared/schemas/geology';
+export type { GroundType, GeologySection, Geology } from '../../../shared/schemas/geology';
+export type { Stroke, StrokePage, DailyAdvance, AdvanceLogMapping } from '../../../shared/schemas/advance-log';
 
 /** Filters of the advance-log list (the paging and sorting come with them in StrokeListQuery). */
 export type StrokeFilters = Pick<StrokeListQuery, 'ringFrom' | 'ringTo' | 'from' | 'to'>;
@@ -80,8 +27,6 @@ export const geologyImportUrl = (projectId: string) => `${base(projectId)}/geolo
 export const getStrokes = (projectId: string, query: StrokeListQuery) => apiGet<StrokePage>(`${base(projectId)}/strokes?${strokeQueryString(query)}`);
 export const getDailyAdvance = (projectId: string) => apiGet<DailyAdvance[]>(`${base(projectId)}/strokes/daily`);
 export const getAdvanceLogMapping = (projectId: string) => apiGet<AdvanceLogMapping>(`${base(projectId)}/strokes/mapping`);
-export const getGroundTypes = (projectId: string) => apiGet<GroundType[]>(`${base(projectId)}/ground-types`);
-export const getGeology = (projectId: string) => apiGet<Geology>(`${base(projectId)}/geology`);
 export const createGroundType = (projectId: string, input: GroundTypeInput) => api<GroundType>('POST', `${base(projectId)}/ground-types`, input);
 export const updateGroundType = (projectId: string, id: string, input: GroundTypeInput) => api<GroundType>('PATCH', `${base(projectId)}/ground-types/${id}`, input);
 export const deleteGroundType = (projectId: string, id: string) => api<void>('DELETE', `${base(projectId)}/ground-types/${id}`);
@@ -99,17 +44,10 @@ export const driveQueries = {
     }),
   daily: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
   mapping: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
-  groundTypes: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'ground-types'], queryFn: () => getGroundTypes(projectId) }),
-  geology: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'geology'], queryFn: () => getGeology(projectId) }),
 };
 
 /** A problem the server found in an uploaded file; row 0 is the file as a whole. */
-export interface ImportIssue {
-  path: string;
-  message: string;
-  row?: number;
-  column?: string;
-}
+export type ImportIssue = ApiIssue;
 
 /** The server's answer to an upload: the body of a success, or of a refusal (`error`). */
 export type UploadAnswer =

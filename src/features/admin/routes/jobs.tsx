@@ -4,8 +4,9 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { adminQueries, runJobNow } from '../api';
+import { adminQueries, installationTimeZone, runJobNow } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
+import { formatSiteDateTime } from '../../../../shared/site-time';
 
 const outcomeText: Record<string, string> = { ok: 'Done', failed: 'Failed', skipped: 'Skipped (another server ran it)', running: 'Running…' };
 
@@ -13,6 +14,7 @@ const outcomeText: Record<string, string> = { ok: 'Done', failed: 'Failed', skip
 export function AdminJobsRoute() {
   const queryClient = useQueryClient();
   const { data: jobs } = useSuspenseQuery(adminQueries.jobs());
+  const timeZone = installationTimeZone(useSuspenseQuery(adminQueries.projects()).data);
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const run = useMutation({
     mutationFn: runJobNow,
@@ -40,7 +42,7 @@ export function AdminJobsRoute() {
               <tbody>
                 {job.runs.map((r) => (
                   <tr key={r.id} className="border-t border-basalt-100">
-                    <td className="py-1 pr-3 whitespace-nowrap">{new Date(r.startedAt).toLocaleString()}</td>
+                    <td className="py-1 pr-3 whitespace-nowrap">{formatSiteDateTime(r.startedAt, timeZone, { withZone: true })}</td>
                     <td className="pr-3">{r.trigger}</td>
                     <td className={`pr-3 font-semibold ${r.outcome === 'failed' ? 'text-alarm-700' : ''}`}>{outcomeText[r.outcome] ?? r.outcome}</td>
                     <td>{r.error ?? r.summary ?? ''}</td>

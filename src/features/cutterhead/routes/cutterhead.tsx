@@ -8,7 +8,7 @@ import { Alert } from '../../../components/ui/alert';
 import { DataTable } from '../../../components/ui/data-table';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
-import { formatDate } from '../../../lib/format';
+import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { positionQueries, type PositionSummary } from '../api';
 import { CutterheadPicture, remainingBand, remainingLegend, WearLegend, wearBand } from '../components/cutterhead-picture';
@@ -43,7 +43,7 @@ export function CutterheadRoute() {
       },
     }),
     col.accessor('lastWearMm', { header: 'Last wear (mm)', cell: ({ getValue }) => getValue() ?? '—' }),
-    col.accessor((p) => formatDate(p.lastMeasuredAt, project.siteTimeZone), { id: 'measured', header: 'Measured', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((p) => formatSiteDate(p.lastMeasuredAt, project.siteTimeZone), { id: 'measured', header: 'Measured', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     col.accessor('wearLimitMm', { header: 'Limit (mm)' }),
     col.accessor((p) => (p.lastWearMm == null ? null : Math.round((100 * p.lastWearMm) / p.wearLimitMm)), {
       id: 'percent',

@@ -9,7 +9,7 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { formatChainage } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
 import { driveQueries, saveLongSection, type GeologySection, type GroundType } from '../api';
 
 type LongSection = z.infer<typeof longSectionInputSchema>;

@@ -5,7 +5,8 @@ import { roleCan } from '../../../../shared/roles';
 import { Alert } from '../../../components/ui/alert';
 import { DataTable } from '../../../components/ui/data-table';
 import { Page, Panel } from '../../../components/ui/page';
-import { formatChainage } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { geologyQueries } from '../../../lib/geology-queries';
 import { projectQueries } from '../../projects/api';
 import { driveQueries, geologyImportUrl, type GeologySection } from '../api';
 import { CsvUpload } from '../components/csv-upload';
@@ -20,7 +21,7 @@ export function GeologyRoute() {
   const { projectId = '' } = useParams();
   const queryClient = useQueryClient();
   const [{ data: project }, { data: geology }, { data: groundTypes }] = useSuspenseQueries({
-    queries: [projectQueries.detail(projectId), driveQueries.geology(projectId), driveQueries.groundTypes(projectId)],
+    queries: [projectQueries.detail(projectId), geologyQueries.geology(projectId), geologyQueries.groundTypes(projectId)],
   });
   const canEdit = roleCan(project.role, 'drive.edit');
   const groundName = new Map(groundTypes.map((g) => [g.id, g.name]));
