@@ -55,3 +55,11 @@ export interface AdminMailView {
   outbox: { waiting: number; failing: number };
   uncertain: { id: number; subject: string; toAddresses: string[]; claimedAt: string }[];
 }
+
+/** GET /api/admin/projects/:projectId/members. */
+export interface AdminMember {
+  userId: string;
+  name: string;
+  email: string;
+  role: ProjectRole;
+}

@@ -1,4 +1,4 @@
-import { keepPreviousData, queryOptions } from '@tanstack/react-query';
+import { keepPreviousData, queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { GeologyGapWarning } from '../../../shared/domain/geology';
 import type { GroundTypeInput, SectionInput, StrokeListQuery } from '../../../shared/schemas/geology';
 import type { ApiIssue } from '../../../shared/schemas/api-error';
@@ -87,4 +87,30 @@ export function uploadCsv(url: string, file: File, onProgress: (fraction: number
     xhr.send(file);
   });
   return { answer, abort: () => xhr.abort() };
+}
+
+/** Saves a ground type (new without `id`); the drive's data is read again after it. */
+export function useSaveGroundType(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: ({ id, input }: { id?: string; input: GroundTypeInput }) => (id ? updateGroundType(projectId, id, input) : createGroundType(projectId, input)),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) }),
+  });
+}
+
+export function useDeleteGroundType(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (id: string) => deleteGroundType(projectId, id),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) }),
+  });
+}
+
+/** Saves the whole long section (PUT). */
+export function useSaveLongSection(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (sections: SectionInput[]) => saveLongSection(projectId, sections),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) }),
+  });
 }

@@ -1,4 +1,4 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { ForecastSettingsInput } from '../../../shared/schemas/forecast';
 import { api, apiGet } from '../../lib/api-client';
 import type { Forecast, WearFitReport } from '../../../shared/schemas/forecast';
@@ -37,3 +37,12 @@ export const forecastQueries = {
   settings: (projectId: string) =>
     queryOptions({ queryKey: [...forecastQueries.all(projectId), 'settings'], queryFn: () => getForecastSettings(projectId), staleTime }),
 };
+
+/** Saves the forecast settings; the wear fit and the forecast are read again after it. */
+export function useSaveForecastSettings(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (input: ForecastSettingsInput) => saveForecastSettings(projectId, input),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: forecastQueries.all(projectId) }),
+  });
+}

@@ -1,9 +1,9 @@
-import { useMutation, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { Alert } from '../../../components/ui/alert';
 import { Page } from '../../../components/ui/page';
 import { Button } from '../../../components/ui/button';
-import { adminQueries, installationTimeZone, releaseUncertainMail } from '../api';
+import { adminQueries, installationTimeZone, useReleaseUncertainMail } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
 import { formatSiteDateTime } from '../../../../shared/site-time';
 
@@ -12,8 +12,7 @@ export function AdminMailRoute() {
   const { data } = useSuspenseQuery(adminQueries.mail());
   const timeZone = installationTimeZone(useSuspenseQuery(adminQueries.projects()).data);
   const [openId, setOpenId] = useState<number | null>(null);
-  const queryClient = useQueryClient();
-  const release = useMutation({ mutationFn: releaseUncertainMail, onSuccess: () => queryClient.invalidateQueries({ queryKey: adminQueries.all }) });
+  const release = useReleaseUncertainMail();
   return (
     <Page title="Administration">
       <AdminTabs />
