@@ -1,5 +1,6 @@
 /** What the administration routes answer (server/routes/admin.ts), typed once for server and client. */
 import type { ProjectRole } from '../roles';
+import type { Project } from './project';
 
 export interface AdminUser {
   id: string;
@@ -11,14 +12,8 @@ export interface AdminUser {
   memberships: { projectId: string; projectName: string; role: ProjectRole }[];
 }
 
-export interface AdminProject {
-  id: string;
-  name: string;
-  machineDescription: string;
-  excavatedDiameterM: number;
-  startChainageM: number;
-  driveDirection: 'increasing' | 'decreasing';
-  siteTimeZone: string;
+/** A drive as the administration lists it: the project without the caller's role, with its member count. */
+export interface AdminProject extends Omit<Project, 'role' | 'units'> {
   memberCount: number;
 }
 

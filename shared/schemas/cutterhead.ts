@@ -26,7 +26,7 @@ export type LayoutInput = z.infer<typeof layoutInputSchema>;
 export const layoutCsvInputSchema = z.object({ csv: z.string().min(1, 'The file is empty.').max(2_000_000, 'The file is too large for a cutterhead layout.') });
 
 /** A position as GET /positions lists it: the layout, the serial on it now, and its last wear. */
-export interface PositionSummary {
+export interface LayoutPosition {
   id: string;
   number: number;
   trackRadiusMm: number;
@@ -75,7 +75,7 @@ export interface Measurement {
 }
 
 export interface PositionDetail {
-  position: Omit<PositionSummary, 'current' | 'lastWearMm' | 'lastMeasuredAt' | 'lastConditions'>;
+  position: Omit<LayoutPosition, 'current' | 'lastWearMm' | 'lastMeasuredAt' | 'lastConditions'>;
   periods: FittedPeriod[];
   measurements: Measurement[];
   photos: { id: string; entryId: string; createdAt: string; mimeType: string }[];

@@ -6,9 +6,9 @@ import { PageLoading } from '../components/ui/page';
 import { paths } from '../config/paths';
 import { adminQueries } from '../features/admin/api';
 import { authQueries } from '../features/auth/api';
-import { positionQueries } from '../features/cutterhead/api';
+import { layoutQueries } from '../features/layout/api';
 import { cutterQueries } from '../features/cutters/api';
-import { driveQueries } from '../features/drive/api';
+import { driveDataQueries } from '../features/drive-data/api';
 import { forecastQueries } from '../features/forecast/api';
 import { projectQueries } from '../features/projects/api';
 import { roundQueries } from '../features/rounds/api';
@@ -34,10 +34,15 @@ function page(pattern: string, load: () => Promise<ComponentType>, queries?: Pag
     path: pattern,
     lazy: async () => ({ Component: await load() }),
     loader: queries
-      ? async ({ params }) => {
-          // A failure here is the AppShell's to show ("could not reach its server").
-          const me = await queryClient.ensureQueryData(authQueries.me()).catch(() => null);
-          if (me) for (const q of queries(params)) void queryClient.prefetchQuery(q as FetchQueryOptions);
+      ? ({ params }) => {
+          // Not awaited: the page renders at once and suspends on what is still on its way. A
+          // failure of `me` is the AppShell's to show ("could not reach its server").
+          void queryClient.ensureQueryData(authQueries.me()).then(
+            (me) => {
+              if (me) for (const q of queries(params)) void queryClient.prefetchQuery(q as FetchQueryOptions);
+            },
+            () => {},
+          );
           return null;
         }
       : undefined,
@@ -65,10 +70,10 @@ export const router = createBrowserRouter([
           { index: true, lazy: async () => ({ Component: (await import('../features/projects/routes/project-picker')).ProjectPickerRoute }) },
           page(paths.account, async () => (await import('../features/auth/routes/account')).AccountRoute),
           page(paths.project.pattern, async () => (await import('../features/projects/routes/project-home')).ProjectHomeRoute, withProject(() => [])),
-          page(paths.cutterhead.pattern, async () => (await import('../features/cutterhead/routes/cutterhead')).CutterheadRoute, withProject((id) => [positionQueries.list(id)])),
-          page(paths.layout.pattern, async () => (await import('../features/cutterhead/routes/layout')).LayoutRoute, withProject((id) => [positionQueries.list(id)])),
-          page(paths.position.pattern, async () => (await import('../features/cutterhead/routes/position')).PositionRoute,
-            withProject((id, p) => [positionQueries.detail(id, p.positionId ?? '')])),
+          page(paths.cutterhead.pattern, async () => (await import('../features/layout/routes/cutterhead')).CutterheadRoute, withProject((id) => [layoutQueries.list(id)])),
+          page(paths.layout.pattern, async () => (await import('../features/layout/routes/layout')).LayoutRoute, withProject((id) => [layoutQueries.list(id)])),
+          page(paths.position.pattern, async () => (await import('../features/layout/routes/position')).PositionRoute,
+            withProject((id, p) => [layoutQueries.detail(id, p.positionId ?? '')])),
           page(paths.cutters.pattern, async () => (await import('../features/cutters/routes/cutters')).CuttersRoute, withProject(() => [])),
           page(paths.cutter.pattern, async () => (await import('../features/cutters/routes/cutter')).CutterRoute,
             withProject((id, p) => [cutterQueries.detail(id, p.cutterId ?? '')])),
@@ -78,9 +83,9 @@ export const router = createBrowserRouter([
           page(paths.forecast.pattern, async () => (await import('../features/forecast/routes/forecast')).ForecastRoute,
             withProject((id) => [forecastQueries.forecast(id), geologyQueries.geology(id), geologyQueries.groundTypes(id), forecastQueries.settings(id)])),
           page(paths.wearFits.pattern, async () => (await import('../features/forecast/routes/wear-fits')).WearFitsRoute, withProject((id) => [forecastQueries.wearFit(id)])),
-          page(paths.advanceLog.pattern, async () => (await import('../features/drive/routes/advance-log')).AdvanceLogRoute,
-            withProject((id) => [driveQueries.daily(id), driveQueries.mapping(id)])),
-          page(paths.geology.pattern, async () => (await import('../features/drive/routes/geology')).GeologyRoute,
+          page(paths.advanceLog.pattern, async () => (await import('../features/drive-data/routes/advance-log')).AdvanceLogRoute,
+            withProject((id) => [driveDataQueries.daily(id), driveDataQueries.mapping(id)])),
+          page(paths.geology.pattern, async () => (await import('../features/drive-data/routes/geology')).GeologyRoute,
             withProject((id) => [geologyQueries.geology(id), geologyQueries.groundTypes(id)])),
           page(paths.parts.pattern, async () => (await import('../features/parts/routes/parts')).PartsRoute, withProject(() => [])),
           page(paths.downtime.pattern, async () => (await import('../features/downtime/routes/downtime-events')).DowntimeEventsRoute, withProject(() => [])),

@@ -11,7 +11,7 @@ import { paths } from '../../../config/paths';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { photoUrl, positionQueries, type FittedPeriod, type Measurement, type PositionDetail } from '../api';
+import { photoUrl, layoutQueries, type FittedPeriod, type Measurement, type PositionDetail } from '../api';
 
 const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
 const conditionsText = (keys: DiscCondition[] | null) => (keys && keys.length ? keys.map(conditionLabel).join(', ') : '');
@@ -64,7 +64,7 @@ function WearChart({ detail, axis, timeZone, reversed }: { detail: PositionDetai
 export function PositionRoute() {
   const { projectId = '', positionId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: detail } = useSuspenseQuery(positionQueries.detail(projectId, positionId));
+  const { data: detail } = useSuspenseQuery(layoutQueries.detail(projectId, positionId));
   const [axis, setAxis] = useState<Axis>('date');
   const tz = project.siteTimeZone;
   const { position, periods, measurements, photos } = detail;

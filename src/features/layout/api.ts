@@ -1,12 +1,12 @@
 import { queryOptions } from '@tanstack/react-query';
 import type { LayoutInput } from '../../../shared/schemas/cutterhead';
 import { api, apiGet } from '../../lib/api-client';
-import type { PositionSummary, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
-export type { PositionSummary, FittedPeriod, Measurement, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
+import type { LayoutPosition, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
+export type { LayoutPosition, FittedPeriod, Measurement, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
 
 const base = (projectId: string) => `/api/projects/${projectId}/positions`;
 
-export const getPositions = (projectId: string) => apiGet<PositionSummary[]>(base(projectId));
+export const getLayout = (projectId: string) => apiGet<LayoutPosition[]>(base(projectId));
 export const getPosition = (projectId: string, positionId: string) => apiGet<PositionDetail>(`${base(projectId)}/${positionId}`);
 export const saveLayout = (projectId: string, input: LayoutInput) => api<LayoutSaved>('PUT', base(projectId), input);
 export const importLayoutCsv = (projectId: string, csv: string) => api<LayoutSaved>('POST', `${base(projectId)}/import`, { csv });
@@ -24,11 +24,11 @@ export async function getRemainingMetres(projectId: string): Promise<RemainingMe
   return f.positions.map((p) => ({ positionId: p.position.positionId, remainingM: p.p90.remainingM, status: p.p90.status }));
 }
 
-export const positionQueries = {
+export const layoutQueries = {
   all: (projectId: string) => ['projects', projectId, 'positions'] as const,
-  list: (projectId: string) => queryOptions({ queryKey: positionQueries.all(projectId), queryFn: () => getPositions(projectId) }),
+  list: (projectId: string) => queryOptions({ queryKey: layoutQueries.all(projectId), queryFn: () => getLayout(projectId) }),
   remaining: (projectId: string) =>
-    queryOptions({ queryKey: [...positionQueries.all(projectId), 'remaining'], queryFn: () => getRemainingMetres(projectId), staleTime: 5_000 }),
+    queryOptions({ queryKey: [...layoutQueries.all(projectId), 'remaining'], queryFn: () => getRemainingMetres(projectId), staleTime: 5_000 }),
   detail: (projectId: string, positionId: string) =>
-    queryOptions({ queryKey: [...positionQueries.all(projectId), positionId], queryFn: () => getPosition(projectId, positionId) }),
+    queryOptions({ queryKey: [...layoutQueries.all(projectId), positionId], queryFn: () => getPosition(projectId, positionId) }),
 };

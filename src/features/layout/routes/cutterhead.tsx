@@ -10,20 +10,20 @@ import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
 import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { positionQueries, type PositionSummary } from '../api';
+import { layoutQueries, type LayoutPosition } from '../api';
 import { CutterheadPicture, remainingBand, remainingLegend, WearLegend, wearBand } from '../components/cutterhead-picture';
 
-const col = createColumnHelper<PositionSummary>();
+const col = createColumnHelper<LayoutPosition>();
 const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
 
 export function CutterheadRoute() {
   const { projectId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: positions } = useSuspenseQuery(positionQueries.list(projectId));
+  const { data: positions } = useSuspenseQuery(layoutQueries.list(projectId));
   const [view, setView] = useState<'wear' | 'forecast'>('wear');
-  const remaining = useQuery({ ...positionQueries.remaining(projectId), enabled: view === 'forecast' });
+  const remaining = useQuery({ ...layoutQueries.remaining(projectId), enabled: view === 'forecast' });
   const forecastBandOf = useCallback(
-    (p: PositionSummary) => remainingBand(remaining.data?.find((r) => r.positionId === p.id)),
+    (p: LayoutPosition) => remainingBand(remaining.data?.find((r) => r.positionId === p.id)),
     [remaining.data],
   );
 

@@ -33,17 +33,17 @@ export const deleteGroundType = (projectId: string, id: string) => api<void>('DE
 export const saveLongSection = (projectId: string, sections: SectionInput[]) =>
   api<{ saved: number; warnings: GeologyGapWarning[] }>('PUT', `${base(projectId)}/geology`, { sections });
 
-export const driveQueries = {
-  all: (projectId: string) => ['projects', projectId, 'drive'] as const,
+export const driveDataQueries = {
+  all: (projectId: string) => ['projects', projectId, 'drive-data'] as const,
   strokes: (projectId: string, query: StrokeListQuery) =>
     queryOptions({
-      queryKey: [...driveQueries.all(projectId), 'strokes', query],
+      queryKey: [...driveDataQueries.all(projectId), 'strokes', query],
       queryFn: () => getStrokes(projectId, query),
       // The old page stays on screen while the next one loads, so the table does not jump.
       placeholderData: keepPreviousData,
     }),
-  daily: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
-  mapping: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
+  daily: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
+  mapping: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
 };
 
 /** A problem the server found in an uploaded file; row 0 is the file as a whole. */
@@ -94,7 +94,7 @@ export function useSaveGroundType(projectId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: ({ id, input }: { id?: string; input: GroundTypeInput }) => (id ? updateGroundType(projectId, id, input) : createGroundType(projectId, input)),
-    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) }),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) }),
   });
 }
 
@@ -102,7 +102,7 @@ export function useDeleteGroundType(projectId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (id: string) => deleteGroundType(projectId, id),
-    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) }),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) }),
   });
 }
 
@@ -111,6 +111,6 @@ export function useSaveLongSection(projectId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (sections: SectionInput[]) => saveLongSection(projectId, sections),
-    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) }),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) }),
   });
 }

@@ -12,7 +12,7 @@ import { Page, Panel } from '../../../components/ui/page';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { driveQueries, strokesExportUrl, type Stroke, type StrokeFilters } from '../api';
+import { driveDataQueries, strokesExportUrl, type Stroke, type StrokeFilters } from '../api';
 import { AdvanceLogImport } from '../components/advance-log-import';
 import { DailyAdvanceChart } from '../components/daily-advance-chart';
 
@@ -53,7 +53,7 @@ export function AdvanceLogRoute() {
   const { projectId = '' } = useParams();
   const queryClient = useQueryClient();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const daily = useQuery(driveQueries.daily(projectId));
+  const daily = useQuery(driveDataQueries.daily(projectId));
   const [sorting, setSorting] = useState<SortingState>([{ id: 'ringNumber', desc: true }]);
   const [pagination, setPagination] = useState<PaginationState>({ pageIndex: 0, pageSize: 50 });
   const [filterText, setFilterText] = useState<FilterText>(noFilters);
@@ -71,7 +71,7 @@ export function AdvanceLogRoute() {
     dir: sorting[0]?.desc === false ? 'asc' : 'desc',
     ...filters,
   };
-  const list = useQuery(driveQueries.strokes(projectId, query));
+  const list = useQuery(driveDataQueries.strokes(projectId, query));
   const columns = useMemo(() => strokeColumns(project.siteTimeZone), [project.siteTimeZone]);
   const total = list.data?.total ?? 0;
 
@@ -145,7 +145,7 @@ export function AdvanceLogRoute() {
       </Panel>
 
       {roleCan(project.role, 'drive.edit') && (
-        <AdvanceLogImport projectId={projectId} onImported={() => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) })} />
+        <AdvanceLogImport projectId={projectId} onImported={() => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) })} />
       )}
     </Page>
   );

@@ -8,7 +8,7 @@ import { Page, Panel } from '../../../components/ui/page';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { geologyQueries } from '../../../lib/geology-queries';
 import { projectQueries } from '../../projects/api';
-import { driveQueries, geologyImportUrl, type GeologySection } from '../api';
+import { driveDataQueries, geologyImportUrl, type GeologySection } from '../api';
 import { CsvUpload } from '../components/csv-upload';
 import { GroundTypesPanel } from '../components/ground-types-panel';
 import { gapText, LongSectionEditor } from '../components/long-section-editor';
@@ -25,7 +25,7 @@ export function GeologyRoute() {
   });
   const canEdit = roleCan(project.role, 'drive.edit');
   const groundName = new Map(groundTypes.map((g) => [g.id, g.name]));
-  const refresh = () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) });
+  const refresh = () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) });
 
   const readOnlyColumns = [
     col.accessor('chainageFromM', { header: 'From', cell: ({ getValue }) => formatChainage(getValue()) }),

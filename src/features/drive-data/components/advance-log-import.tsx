@@ -1,6 +1,6 @@
 import { useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
-import { advanceLogImportUrl, driveQueries } from '../api';
+import { advanceLogImportUrl, driveDataQueries } from '../api';
 import { ColumnMapping, proposeMapping, readHeader, type MappingChoice } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
@@ -8,7 +8,7 @@ const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?
 
 /** The planner's import of the machine's advance log, with the column mapping as an optional step. */
 export function AdvanceLogImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
-  const { data: known } = useSuspenseQuery(driveQueries.mapping(projectId));
+  const { data: known } = useSuspenseQuery(driveDataQueries.mapping(projectId));
   const [headers, setHeaders] = useState<string[] | null>(null);
   const [choice, setChoice] = useState<MappingChoice>({});
 
