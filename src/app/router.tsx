@@ -34,15 +34,10 @@ function page(pattern: string, load: () => Promise<ComponentType>, queries?: Pag
     path: pattern,
     lazy: async () => ({ Component: await load() }),
     loader: queries
-      ? ({ params }) => {
-          // Not awaited: the page renders at once and suspends on what is still on its way. A
-          // failure of `me` is the AppShell's to show ("could not reach its server").
-          void queryClient.ensureQueryData(authQueries.me()).then(
-            (me) => {
-              if (me) for (const q of queries(params)) void queryClient.prefetchQuery(q as FetchQueryOptions);
-            },
-            () => {},
-          );
+      ? async ({ params }) => {
+          // A failure here is the AppShell's to show ("could not reach its server").
+          const me = await queryClient.ensureQueryData(authQueries.me()).catch(() => null);
+          if (me) for (const q of queries(params)) void queryClient.prefetchQuery(q as FetchQueryOptions);
           return null;
         }
       : undefined,
