@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import type { ColumnMapping } from '../csv-headers';
+import type { ColumnMapping, CsvFieldInfo } from '../csv-headers';
 
 /**
  * Rows of the two CSV imports after their columns have been mapped: the advance log (one row per
@@ -123,3 +123,41 @@ export type GeologySectionRow = z.infer<typeof geologySectionRowSchema>;
 
 export const geologySectionColumnMappingSchema = z.partialRecord(z.enum(geologySectionFieldNames), z.string().trim().min(1));
 export type GeologySectionColumnMapping = ColumnMapping<GeologySectionField>;
+
+/** One ring or stroke of the advance log as GET /strokes sends it. */
+export interface Stroke {
+  id: number;
+  ringNumber: number;
+  startTime: string;
+  endTime: string;
+  chainageStartM: number;
+  chainageEndM: number;
+  revolutions: number | null;
+  penetrationMmPerRev: number | null;
+  rpm: number | null;
+  thrustKn: number | null;
+  torqueKnm: number | null;
+}
+
+export interface StrokePage {
+  rows: Stroke[];
+  total: number;
+  page: number;
+  pageSize: number;
+}
+
+/** Metres advanced on one calendar day of the site. */
+export interface DailyAdvance {
+  day: string;
+  advanceM: number;
+  strokes: number;
+}
+
+/** The column mapping of one import as GET …/mapping sends it, remembered per project. */
+export interface ImportMapping<F extends string> {
+  /** Field → header, remembered from the last import; null before the first. */
+  mapping: ColumnMapping<F> | null;
+  fields: CsvFieldInfo<F>[];
+}
+export type AdvanceLogMapping = ImportMapping<AdvanceLogField>;
+export type GeologyMapping = ImportMapping<GeologySectionField>;

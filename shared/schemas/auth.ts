@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { emailAddress } from './fields';
+import type { ProjectRole } from '../roles';
 
 /** An e-mail address; its length is checked before any other work (shared/schemas/fields.ts). */
 export const emailSchema = emailAddress();
@@ -13,3 +14,7 @@ export type SignInInput = z.infer<typeof signInInputSchema>;
 export const passwordResetRequestSchema = z.object({ email: emailSchema });
 export type PasswordResetRequest = z.infer<typeof passwordResetRequestSchema>;
 
+export interface Me {
+  user: { id: string; email: string; name: string; isAdmin: boolean };
+  memberships: { projectId: string; projectName: string; role: ProjectRole }[];
+}

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { cutterStatuses, discConditionKeys } from '../cutters';
+import type { CutterStatus } from '../cutters';
 
 export const serialSchema = z
   .string({ message: 'Enter the serial number.' })
@@ -34,3 +35,44 @@ export const workshopInputSchema = z.discriminatedUnion('outcome', [
 export type WorkshopInput = z.infer<typeof workshopInputSchema>;
 
 export const conditionsSchema = z.array(z.enum(discConditionKeys, { message: 'Unknown condition.' })).max(discConditionKeys.length);
+
+export interface Cutter {
+  id: string;
+  serial: string;
+  discSizeIn: number;
+  status: CutterStatus;
+  rebuildCount: number;
+  notes: string;
+  createdAt: string;
+  updatedAt: string;
+}
+
+/** A row of the store list: the serial, its state and, when fitted, where and since when. */
+export interface CutterListItem extends Cutter {
+  positionNumber: number | null;
+  fittedAt: string | null;
+}
+
+export interface CutterLife {
+  cutter: Cutter;
+  periods: {
+    id: string;
+    positionId: string;
+    positionNumber: number;
+    fittedAt: string;
+    fittedChainageM: number;
+    fittedRing: number | null;
+    removedAt: string | null;
+    removedChainageM: number | null;
+    removedRing: number | null;
+    removalReason: string | null;
+  }[];
+  events: {
+    id: number;
+    at: string;
+    kind: string;
+    positionId: string | null;
+    positionNumber: number | null;
+    details: Record<string, unknown>;
+  }[];
+}

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { positionClasses } from '../cutters';
+import type { DiscCondition, PositionClass } from '../cutters';
 
 const num = (label: string) => z.coerce.number({ message: `${label} must be a number.` }).refine(Number.isFinite, `${label} must be a number.`);
 
@@ -23,3 +24,67 @@ export const layoutInputSchema = z.object({ positions: z.array(positionInputSche
 export type LayoutInput = z.infer<typeof layoutInputSchema>;
 
 export const layoutCsvInputSchema = z.object({ csv: z.string().min(1, 'The file is empty.').max(2_000_000, 'The file is too large for a cutterhead layout.') });
+
+/** A position as GET /positions lists it: the layout, the serial on it now, and its last wear. */
+export interface LayoutPosition {
+  id: string;
+  number: number;
+  trackRadiusMm: number;
+  positionClass: PositionClass;
+  discSizeIn: number;
+  tiltDeg: number | null;
+  wearLimitMm: number;
+  twinDisc: boolean;
+  angleDeg: number | null;
+  current: { fittingId: string; cutterId: string; serial: string; fittedAt: string; fittedChainageM: number } | null;
+  lastWearMm: number | null;
+  lastMeasuredAt: string | null;
+  lastConditions: DiscCondition[];
+}
+
+export interface FittedPeriod {
+  id: string;
+  cutterId: string;
+  serial: string;
+  fittedAt: string;
+  fittedChainageM: number;
+  fittedRing: number | null;
+  removedAt: string | null;
+  removedChainageM: number | null;
+  removedRing: number | null;
+  removalReason: string | null;
+  removalConditions: DiscCondition[] | null;
+}
+
+export interface Measurement {
+  id: string;
+  wearMm: number | null;
+  conditions: DiscCondition[];
+  action: 'none' | 'changed';
+  note: string;
+  remeasured: boolean;
+  recordedAt: string;
+  roundAt: string;
+  chainageM: number;
+  ringNumber: number | null;
+  fittingId: string | null;
+  serial: string | null;
+  removedSerial: string | null;
+  fittedSerial: string | null;
+  changeReason: string | null;
+}
+
+export interface PositionDetail {
+  position: Omit<LayoutPosition, 'current' | 'lastWearMm' | 'lastMeasuredAt' | 'lastConditions'>;
+  periods: FittedPeriod[];
+  measurements: Measurement[];
+  photos: { id: string; entryId: string; createdAt: string; mimeType: string }[];
+}
+
+export interface LayoutSaved {
+  created: number;
+  updated: number;
+  unchanged: number;
+  /** From a CSV import: columns the import did not read, by row and column. */
+  warnings?: { row: number; column: string; message: string }[];
+}

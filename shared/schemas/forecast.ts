@@ -1,4 +1,10 @@
 import { z } from 'zod';
+import type { DiscCondition, PositionClass } from '../cutters';
+import type { CautiousRate } from '../domain/cautious-rates';
+import type { CercharClassification } from '../domain/cerchar';
+import type { ChangeOutForecast, DriveRateEstimate, WearRateSet } from '../domain/forecast';
+import type { ClassFactors, GroundWearRate, SuddenFailureRate } from '../domain/wear-fit';
+import type { Wire } from './wire';
 
 const factor = (label: string) => z.number({ message: `${label} must be a number.` }).gt(0, `${label} must be more than 0.`).max(5, `${label} must be at most 5.`);
 
@@ -20,3 +26,49 @@ export const forecastSettingsInputSchema = z.object({
 export type ForecastSettingsInput = z.infer<typeof forecastSettingsInputSchema>;
 
 export const forecastQuerySchema = z.object({ positionId: z.uuid().optional() });
+
+export type Explanation = Wire<ChangeOutForecast['explanation']>;
+
+/** One position of GET /forecast; `explanation` only for the position asked for with ?positionId=. */
+export type PositionForecast = Wire<Omit<ChangeOutForecast, 'explanation'>> & {
+  serial: string | null;
+  /** Postgres timestamp text (e.g. "2026-11-30 08:23:23.601+00"), null when never measured. */
+  lastMeasuredAt: string | null;
+  explanation?: Explanation;
+};
+
+export interface Forecast {
+  now: string;
+  currentChainageM: number | null;
+  currentRingNumber: number | null;
+  problems: string[];
+  rates: WearRateSet & { byGround: Record<string, CautiousRate>; relativeScatter: number | null };
+  driveRates: DriveRateEstimate;
+  positions: PositionForecast[];
+}
+
+export interface WearFitGround {
+  id: string;
+  name: string;
+  cai: number | null;
+  caiClass: CercharClassification | null;
+  priorMmPerKm: number | null;
+  rate: GroundWearRate | null;
+  /** P50 and cautious P90 rates with where the P90 comes from; null when the ground has no rate. */
+  cautious: CautiousRate | null;
+}
+
+export interface WearFitReport {
+  grounds: WearFitGround[];
+  residualSdMm: number | null;
+  residualDof: number;
+  /** Relative scatter of discs about the fit (cv of the cautious rates); null with too few inspections. */
+  relativeScatter: number | null;
+  classFactors: ClassFactors;
+  observationCount: number;
+  failures: (SuddenFailureRate & { groundName: string })[];
+  abnormalEvents: { entryId: string; at: string; positionNumber: number; conditions: DiscCondition[]; chainageM: number }[];
+  /** Inspections whose disc rolled in one ground only: the chart's points. */
+  points: { groundTypeId: string; rolledKm: number; wearMm: number; positionClass: PositionClass }[];
+  ringDiameterMm: number;
+}

@@ -1,4 +1,6 @@
 import { z } from 'zod';
+import type { CercharClassification } from '../domain/cerchar';
+import type { GeologyGapWarning } from '../domain/geology';
 
 const optionalNumber = (label: string, min: number, max: number) =>
   z.number({ message: `${label} must be a number.` }).min(min, `${label} must be at least ${min}.`).max(max, `${label} must be at most ${max}.`).nullable().default(null);
@@ -39,3 +41,24 @@ export const strokeListQuerySchema = z.object({
   to: z.iso.date({ message: 'to must be a date like 2026-11-30.' }).optional(),
 });
 export type StrokeListQuery = z.infer<typeof strokeListQuerySchema>;
+
+export interface GroundType {
+  id: string;
+  name: string;
+  description: string;
+  ucsMpa: number | null;
+  cai: number | null;
+  caiClass: CercharClassification | null;
+  quartzPct: number | null;
+  notes: string;
+}
+
+export interface GeologySection extends SectionInput {
+  id: string;
+}
+
+export interface Geology {
+  sections: GeologySection[];
+  warnings: GeologyGapWarning[];
+  currentChainageM: number | null;
+}

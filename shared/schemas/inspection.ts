@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { conditionsSchema, serialSchema } from './cutter';
+import type { DiscCondition } from '../cutters';
 
 export const startRoundInputSchema = z.object({
   startedAt: z.iso.datetime({ offset: true, message: 'Give the date and time of the round.' }),
@@ -39,3 +40,69 @@ export const entryInputSchema = z
   .refine((e) => e.action !== 'changed' || e.fitted !== null, { path: ['fitted'], message: 'A change needs the serial of the cutter put on.' })
   .refine((e) => e.action !== 'changed' || (e.changeReason ?? '') !== '', { path: ['changeReason'], message: 'Give the reason for the change.' });
 export type EntryInput = z.infer<typeof entryInputSchema>;
+
+export interface Round {
+  id: string;
+  projectId: string;
+  startedAt: string;
+  chainageM: number;
+  ringNumber: number | null;
+  crew: string;
+  notes: string;
+  closedAt: string | null;
+}
+
+export interface RoundListItem extends Round {
+  entryCount: number;
+  changeCount: number;
+}
+
+/** A cutterhead position as the round screen gets it: the serial on it now and its last wear. */
+export interface RoundPosition {
+  id: string;
+  number: number;
+  trackRadiusMm: number;
+  positionClass: 'centre' | 'face' | 'gauge';
+  discSizeIn: number;
+  tiltDeg: number | null;
+  wearLimitMm: number;
+  twinDisc: boolean;
+  current: { fittingId: string; cutterId: string; serial: string; fittedAt: string; fittedChainageM: number } | null;
+  lastWearMm: number | null;
+  lastMeasuredAt: string | null;
+  lastConditions: DiscCondition[];
+}
+
+/** What the server stored for one position in this round, with the flags the fitter sees. */
+export interface RoundEntry {
+  id: string;
+  positionId: string;
+  clientKey: string;
+  wearMm: number | null;
+  conditions: DiscCondition[];
+  action: 'none' | 'changed';
+  removedCutterId: string | null;
+  fittedCutterId: string | null;
+  changeReason: string | null;
+  note: string;
+  remeasured: boolean;
+  recordedAt: string;
+  overLimit: boolean;
+  needsChange: boolean;
+  photoIds: string[];
+}
+
+export interface RoundDetail {
+  round: Round;
+  positions: RoundPosition[];
+  entries: RoundEntry[];
+  /** Position ids in the order they were recorded in the previous round. */
+  lastRoundOrder: string[];
+}
+
+export interface StoreCutter {
+  id: string;
+  serial: string;
+  discSizeIn: number;
+  rebuildCount: number;
+}

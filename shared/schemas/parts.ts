@@ -150,3 +150,89 @@ export interface OrderSuggestion {
   /** The demand within the lead-time window by source: what makes the order necessary. */
   sources: DemandSource[];
 }
+
+export interface CataloguePart {
+  id: string;
+  code: string;
+  name: string;
+  kind: PartKind;
+  discSizeIn: number | null;
+  unitCost: number;
+  currency: string;
+  supplier: string;
+  leadTimeMeanDays: number;
+  leadTimeSdDays: number;
+  minOrderQty: number;
+  onHand: number;
+  onOrder: number;
+}
+
+/** GET /parts: the catalogue with stock and the 12-week order flag. */
+export interface PartListItem extends CataloguePart {
+  weeksOfCover: number | null;
+  orderNow: boolean;
+  orderQty: number;
+  safetyStock: number;
+  reorderPoint: number;
+  firstShortageDate: string | null;
+}
+
+export interface DemandWeek {
+  partId: string;
+  week: number;
+  weekStartDate: string;
+  demand: number;
+  receipts: number;
+  rebuildReturns: number;
+  scrapped: number;
+  projectedStock: number;
+  sources: DemandSource[];
+}
+
+export interface DemandStop {
+  id: string;
+  status: string;
+  chainageM: number;
+  ringNumber: number | null;
+  plannedStart: string | null;
+  dateBasis: 'planned' | 'p90';
+  positionNumbers: number[];
+  label: string;
+}
+
+/** GET /parts/demand. */
+export interface PartsDemand {
+  now: string;
+  startDate: string;
+  horizonWeeks: number;
+  serviceLevel: number;
+  z: number;
+  parts: CataloguePart[];
+  weeks: DemandWeek[];
+  suggestions: OrderSuggestion[];
+  stops: DemandStop[];
+  estimate: { rolledKmPerWeek: number[]; suddenFailuresPerWeek: number[]; geologyEndsWeek: number | null };
+  problems: string[];
+}
+
+export interface OrderLine {
+  id: string;
+  purchaseOrderId: string;
+  partId: string;
+  partCode: string;
+  partName: string;
+  qtyOrdered: number;
+  qtyReceived: number;
+  qtyOpen: number;
+  dueDate: string;
+}
+
+export interface PurchaseOrder {
+  id: string;
+  number: string;
+  supplier: string;
+  orderedAt: string;
+  note: string;
+  open: boolean;
+  lines: OrderLine[];
+}

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import type { ProjectRole } from '../roles';
 
 const isTimeZone = (tz: string) => {
   try {
@@ -37,3 +38,15 @@ export type ProjectInput = z.infer<typeof projectInputSchema>;
 
 export const projectPatchSchema = projectInputSchema.partial();
 export type ProjectPatch = z.infer<typeof projectPatchSchema>;
+
+export interface Project {
+  id: string;
+  name: string;
+  machineDescription: string;
+  excavatedDiameterM: number;
+  startChainageM: number;
+  driveDirection: 'increasing' | 'decreasing';
+  siteTimeZone: string;
+  units: string;
+  role: ProjectRole;
+}

@@ -151,3 +151,60 @@ export interface StopPlanView<TDate = string> {
   savingH: number | null;
   cautions: string[];
 }
+
+export interface Stop {
+  id: string;
+  projectId: string;
+  status: StopStatus;
+  source: string;
+  chainageM: number;
+  ringNumber: number | null;
+  compressedAir: boolean;
+  workingPressureBar: number | null;
+  plannedStart: string | null;
+  expectedHours: number | null;
+  crewId: string | null;
+  publishedAt: string | null;
+  actualStart: string | null;
+  actualEnd: string | null;
+  actualHours: number | null;
+  roundId: string | null;
+  cancelReason: string | null;
+  notes: string;
+  createdAt: string;
+}
+
+/** A row of GET /stops. */
+export interface StopListItem extends Stop {
+  crewName: string | null;
+  positionCount: number;
+}
+
+/** GET /stops/:stopId and the answer of every change to a stop. */
+export interface WorkPack {
+  stop: Stop;
+  positions: {
+    positionId: string; number: number; positionClass: PositionClass; trackRadiusMm: number; discSizeIn: number; twinDisc: boolean; wearLimitMm: number;
+    expectedWearMm: number | null; fittedSerial: string | null;
+  }[];
+  storeSerials: { cutterId: string; serial: string; discSizeIn: number; rebuildCount: number }[];
+  shortages: { discSizeIn: number; needed: number; inStore: number }[];
+  partsKit: { item: string; quantity: number; basis: string }[];
+  crew: { id: string; name: string; members: { name: string; email: string }[] } | null;
+  round: { id: string; startedAt: string; chainageM: number; ringNumber: number | null } | null;
+  cautions: string[];
+}
+
+export interface Crew {
+  id: string;
+  name: string;
+  members: { id: string; name: string; email: string }[];
+}
+
+export interface RoundOption {
+  id: string;
+  startedAt: string;
+  chainageM: number;
+  ringNumber: number | null;
+  crew: string;
+}

@@ -1,30 +1,48 @@
-/** Every client route path in one place. */
+import { generatePath } from 'react-router';
+
+/** A route: its pattern (for the router) and a builder of its address from the ids in the pattern's order. */
+type Route<Ids extends string[]> = ((...ids: Ids) => string) & { readonly pattern: string };
+
+function route<Ids extends string[]>(pattern: string): Route<Ids> {
+  const names = [...pattern.matchAll(/:(\w+)/g)].map((m) => m[1]);
+  const build = (...ids: Ids) => generatePath(pattern, Object.fromEntries(names.map((name, i) => [name, ids[i]])));
+  return Object.assign(build, { pattern });
+}
+
+type ProjectRoute = Route<[projectId: string]>;
+const projectRoute = (rest: string): ProjectRoute => route(`/projects/:projectId${rest}`);
+
+/**
+ * Every client route in one place: `paths.x(ids…)` builds an address, `paths.x.pattern` is what
+ * `src/app/router.tsx` matches — never written twice.
+ */
 export const paths = {
   home: '/',
   signIn: '/sign-in',
   requestReset: '/reset-password',
   setPassword: '/set-password',
   account: '/account',
-  project: (projectId: string) => `/projects/${projectId}`,
-  cutterhead: (projectId: string) => `/projects/${projectId}/cutterhead`,
-  layout: (projectId: string) => `/projects/${projectId}/layout`,
-  position: (projectId: string, positionId: string) => `/projects/${projectId}/positions/${positionId}`,
-  cutters: (projectId: string) => `/projects/${projectId}/cutters`,
-  cutter: (projectId: string, cutterId: string) => `/projects/${projectId}/cutters/${cutterId}`,
-  rounds: (projectId: string) => `/projects/${projectId}/rounds`,
-  round: (projectId: string, roundId: string) => `/projects/${projectId}/rounds/${roundId}`,
-  forecast: (projectId: string) => `/projects/${projectId}/forecast`,
-  wearFits: (projectId: string) => `/projects/${projectId}/wear-fits`,
-  advanceLog: (projectId: string) => `/projects/${projectId}/advance-log`,
-  geology: (projectId: string) => `/projects/${projectId}/geology`,
-  parts: (projectId: string) => `/projects/${projectId}/parts`,
-  downtime: (projectId: string) => `/projects/${projectId}/downtime`,
-  downtimeReport: (projectId: string) => `/projects/${projectId}/downtime/report`,
-  cutterCost: (projectId: string) => `/projects/${projectId}/downtime/cost`,
-  stops: (projectId: string) => `/projects/${projectId}/stops`,
-  stopPlan: (projectId: string) => `/projects/${projectId}/stops/plan`,
-  stop: (projectId: string, stopId: string) => `/projects/${projectId}/stops/${stopId}`,
+  project: projectRoute(''),
+  cutterhead: projectRoute('/cutterhead'),
+  layout: projectRoute('/layout'),
+  position: route<[projectId: string, positionId: string]>('/projects/:projectId/positions/:positionId'),
+  cutters: projectRoute('/cutters'),
+  cutter: route<[projectId: string, cutterId: string]>('/projects/:projectId/cutters/:cutterId'),
+  rounds: projectRoute('/rounds'),
+  round: route<[projectId: string, roundId: string]>('/projects/:projectId/rounds/:roundId'),
+  forecast: projectRoute('/forecast'),
+  wearFits: projectRoute('/wear-fits'),
+  advanceLog: projectRoute('/advance-log'),
+  geology: projectRoute('/geology'),
+  parts: projectRoute('/parts'),
+  downtime: projectRoute('/downtime'),
+  downtimeReport: projectRoute('/downtime/report'),
+  cutterCost: projectRoute('/downtime/cost'),
+  stops: projectRoute('/stops'),
+  stopPlan: projectRoute('/stops/plan'),
+  stop: route<[projectId: string, stopId: string]>('/projects/:projectId/stops/:stopId'),
   admin: {
+    home: '/admin',
     users: '/admin/users',
     projects: '/admin/projects',
     mail: '/admin/mail',

@@ -1,12 +1,34 @@
-/** The error the server sends: `{ error: { message, issues } }`. */
+import type { ApiErrorBody, ApiIssue } from '../../shared/schemas/api-error';
+
+/**
+ * The error the server sends (`ApiErrorBody`): the message, every issue with its path — and, for
+ * file imports, its row and column — and the body's other details (e.g. `errorCount`).
+ */
 export class ApiError extends Error {
   constructor(
     readonly status: number,
     message: string,
-    readonly issues: { path: string; message: string }[] = [],
+    readonly issues: ApiIssue[] = [],
+    readonly details: Record<string, unknown> = {},
   ) {
     super(message);
   }
+
+  /** The issues of one field (`path`), for a form's setError. */
+  issuesAt(path: string): ApiIssue[] {
+    return this.issues.filter((i) => i.path === path);
+  }
+}
+
+/** The ApiError of an error body as it came over the wire (anything not in that shape becomes the status message). */
+export function apiErrorFrom(status: number, data: unknown): ApiError {
+  const err = (data as Partial<ApiErrorBody> | null)?.error;
+  if (!err || typeof err.message !== 'string') return new ApiError(status, `The server answered ${status}.`);
+  const { message, issues, ...details } = err;
+  const kept = Array.isArray(issues)
+    ? issues.map((i) => ({ path: String(i.path ?? ''), message: String(i.message ?? ''), ...(typeof i.row === 'number' ? { row: i.row } : {}), ...(typeof i.column === 'string' ? { column: i.column } : {}) }))
+    : [];
+  return new ApiError(status, message, kept, details);
 }
 
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
@@ -26,8 +48,7 @@ export async function api<T>(method: Method, url: string, body?: unknown): Promi
   if (res.status === 204) return undefined as T;
   const data = await res.json().catch(() => null);
   if (!res.ok) {
-    const err = data?.error;
-    throw new ApiError(res.status, err?.message ?? `The server answered ${res.status}.`, err?.issues ?? []);
+    throw apiErrorFrom(res.status, data);
   }
   return data as T;
 }

@@ -4,7 +4,13 @@
  * Directive 2000/84/EC — last Sunday of March / October, 01:00 UTC).
  */
 import { describe, expect, it } from 'vitest';
-import { fromSiteInput, toSiteInput } from '../../src/features/downtime/site-time';
+import { fromSiteInput as fromSiteInputUtc, isoWithSiteOffset, toSiteInput } from '../../shared/site-time';
+
+/** What the downtime form shows and sends: the wall time read in the site's zone, with the offset then. */
+const fromSiteInput = (value: string, timeZone: string) => {
+  const at = fromSiteInputUtc(value, timeZone);
+  return at == null ? null : isoWithSiteOffset(at, timeZone);
+};
 
 const ZONE = 'Europe/Zurich';
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { discPointMm, discRadiiMm, layOutAnglesDeg, nearestSpacingMm } from '../../src/features/cutterhead/head-geometry';
+import { discPointMm, discRadiiMm, layOutAnglesDeg, nearestSpacingMm } from '../../src/features/layout/head-geometry';
 
 describe('discPointMm', () => {
   it('measures angles clockwise from the top in SVG axes (y down)', () => {

@@ -11,7 +11,7 @@ import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { db } from '../../server/db/client';
 import { projects } from '../../server/db/schema';
-import { formatChainage } from '../../src/lib/format';
+import { formatChainage } from '../../shared/domain/chainage';
 import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 import { addMember, makeProject, makeUser, PASSWORD } from '../support/fixtures';
 

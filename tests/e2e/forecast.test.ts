@@ -2,7 +2,7 @@ import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { db } from '../../server/db/client';
 import { DEMO_PASSWORD, seedDemo } from '../../server/db/seed-demo';
-import { formatChainage } from '../../src/lib/format';
+import { formatChainage } from '../../shared/domain/chainage';
 import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 
 let browser: Browser;

@@ -4,6 +4,7 @@ import { Link, Navigate, NavLink, Outlet, useLocation, useMatch, useNavigate } f
 import { roleCan, roleLabels } from '../../../shared/roles';
 import { paths } from '../../config/paths';
 import { authQueries, signOut } from '../../features/auth/api';
+import { PageLoading } from '../ui/page';
 import { Logo } from './logo';
 
 const navLink = ({ isActive }: { isActive: boolean }) =>
@@ -77,7 +78,7 @@ export function AppShell() {
         </div>
       </header>
       <main>
-        <Suspense fallback={<p className="p-6">Loading…</p>}>
+        <Suspense fallback={<PageLoading />}>
           <Outlet />
         </Suspense>
       </main>

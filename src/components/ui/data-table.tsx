@@ -1,10 +1,29 @@
 import {
   flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable,
-  type ColumnDef, type SortingState,
+  type ColumnDef, type OnChangeFn, type PaginationState, type Row, type SortingState,
 } from '@tanstack/react-table';
-import { useState } from 'react';
+import { Fragment, useState, type ReactNode } from 'react';
 import { downloadCsv, toCsv } from '../../lib/csv';
 import { Button } from './button';
+import { SelectField } from './field';
+
+type CsvValue = string | number | null | undefined;
+
+/**
+ * Paging, sorting and filtering done by the server: the table shows the one page it is given and
+ * reports what the user asks for. Filters are the page's own fields (`toolbar`).
+ */
+export interface ServerPaging {
+  rowCount: number;
+  sorting: SortingState;
+  onSortingChange: OnChangeFn<SortingState>;
+  pagination: PaginationState;
+  onPaginationChange: OnChangeFn<PaginationState>;
+  /** Page sizes the server accepts. */
+  pageSizes: readonly number[];
+  /** The old page is still shown while the next one loads. */
+  stale?: boolean;
+}
 
 interface DataTableProps<T> {
   data: T[];
@@ -12,62 +31,127 @@ interface DataTableProps<T> {
   /** File name for the CSV export, without extension. */
   exportName: string;
   emptyText?: string;
+  /** The table's accessible name. */
+  label?: string;
+  /** Sorted this way when the page opens. */
+  initialSort?: SortingState;
+  getRowId?: (row: T) => string;
+  /** Rows that open: what shows under an opened row (a cell toggles it with `row.toggleExpanded()`). */
+  renderExpanded?: (row: Row<T>) => ReactNode;
+  /** The id of an opened row's detail is this prefix + the row id (for a toggle's aria-controls). */
+  expandIdPrefix?: string;
+  /** The column that stays in view while the table scrolls sideways. */
+  stickyColumnId?: string;
+  filterPlaceholder?: string;
+  /**
+   * The CSV export: by default the columns as shown; `csv` names its own columns; `exportHref`
+   * downloads from the server instead (all matching rows, not just the page shown).
+   */
+  csv?: { header: string[]; row: (row: T) => CsvValue[] };
+  exportHref?: string;
+  /** Fields above the table (server filters). */
+  toolbar?: ReactNode;
+  server?: ServerPaging;
 }
 
-/** A table that sorts (click a header), filters (one search box) and exports what it shows to CSV. */
-export function DataTable<T>({ data, columns, exportName, emptyText = 'Nothing here yet.' }: DataTableProps<T>) {
-  const [sorting, setSorting] = useState<SortingState>([]);
+const sortIcon = (sorted: false | 'asc' | 'desc') => (sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '');
+const ariaSort = (sorted: false | 'asc' | 'desc') => (sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none');
+
+/**
+ * The one table of Kerfwise (TanStack Table): sorts by a header click (with an initial sort),
+ * filters with one search box, exports CSV, opens rows to show more under them, and pages on the
+ * server when `server` is given.
+ */
+export function DataTable<T>({
+  data, columns, exportName, emptyText = 'Nothing here yet.', label, initialSort = [], getRowId, renderExpanded,
+  expandIdPrefix = 'row-detail-', stickyColumnId, filterPlaceholder = 'Filter…', csv, exportHref, toolbar, server,
+}: DataTableProps<T>) {
+  const [localSorting, setLocalSorting] = useState<SortingState>(initialSort);
   const [filter, setFilter] = useState('');
   const table = useReactTable({
     data,
     columns,
-    state: { sorting, globalFilter: filter },
-    onSortingChange: setSorting,
-    onGlobalFilterChange: setFilter,
+    getRowId,
     getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
-    getFilteredRowModel: getFilteredRowModel(),
+    getRowCanExpand: () => renderExpanded != null,
+    ...(server
+      ? {
+          state: { sorting: server.sorting, pagination: server.pagination },
+          manualSorting: true,
+          manualPagination: true,
+          rowCount: server.rowCount,
+          enableSortingRemoval: false,
+          sortDescFirst: false,
+          onSortingChange: server.onSortingChange,
+          onPaginationChange: server.onPaginationChange,
+        }
+      : {
+          state: { sorting: localSorting, globalFilter: filter },
+          onSortingChange: setLocalSorting,
+          onGlobalFilterChange: setFilter,
+          getSortedRowModel: getSortedRowModel(),
+          getFilteredRowModel: getFilteredRowModel(),
+        }),
   });
   const leafColumns = table.getAllLeafColumns();
+  const rows = table.getRowModel().rows;
+
   const exportCsv = () => {
-    const header = leafColumns.map((c) => (typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id));
-    const rows = table.getRowModel().rows.map((r) => leafColumns.map((c) => {
+    if (csv) {
+      downloadCsv(`${exportName}.csv`, toCsv(csv.header, rows.map((r) => csv.row(r.original))));
+      return;
+    }
+    const exported = leafColumns;
+    const header = exported.map((c) => (typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id));
+    const values = rows.map((r) => exported.map((c) => {
       const v = r.getValue(c.id);
       return typeof v === 'number' || typeof v === 'string' ? v : v == null ? '' : String(v);
     }));
-    downloadCsv(`${exportName}.csv`, toCsv(header, rows));
+    downloadCsv(`${exportName}.csv`, toCsv(header, values));
   };
+  const sticky = (columnId: string, background: string) => (columnId === stickyColumnId ? `sticky left-0 z-10 ${background}` : '');
+
   return (
     <div className="space-y-3">
+      {toolbar}
       <div className="flex flex-wrap items-end gap-3">
-        <label className="flex-1 min-w-48">
-          <span className="sr-only">Filter</span>
-          <input
-            type="search"
-            placeholder="Filter…"
-            value={filter}
-            onChange={(e) => setFilter(e.target.value)}
-            className="block w-full min-h-touch rounded-md border-2 border-basalt-300 bg-white px-3"
-          />
-        </label>
-        <Button variant="secondary" onClick={exportCsv}>Export CSV</Button>
+        {!server && (
+          <label className="min-w-48 flex-1">
+            <span className="sr-only">Filter</span>
+            <input
+              type="search"
+              placeholder={filterPlaceholder}
+              value={filter}
+              onChange={(e) => setFilter(e.target.value)}
+              className="block min-h-touch w-full rounded-md border-2 border-basalt-300 bg-white px-3"
+            />
+          </label>
+        )}
+        {exportHref ? (
+          <a className="ml-auto inline-flex min-h-touch items-center justify-center rounded-md border-2 border-basalt-300 bg-white px-4 font-semibold text-basalt-900 hover:border-basalt-500" href={exportHref} download>
+            Export CSV
+          </a>
+        ) : (
+          <Button variant="secondary" onClick={exportCsv}>Export CSV</Button>
+        )}
       </div>
-      <div className="overflow-x-auto rounded-lg border border-basalt-200 bg-white">
-        <table className="min-w-full text-left">
+      {/* A size container, so an opened row is as wide as the visible table (100cqw); relative, so screen-reader text scrolls with it. */}
+      <div className={`@container relative overflow-x-auto rounded-lg border border-basalt-200 bg-white ${server?.stale ? 'opacity-60' : ''}`}>
+        <table className="min-w-full text-left" aria-label={label}>
           <thead className="bg-basalt-100">
             {table.getHeaderGroups().map((hg) => (
               <tr key={hg.id}>
                 {hg.headers.map((h) => {
                   const sorted = h.column.getIsSorted();
                   return (
-                    <th key={h.id} scope="col" aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'} className="p-0">
+                    <th key={h.id} scope="col" aria-sort={ariaSort(sorted)} className={`p-0 align-bottom ${sticky(h.column.id, 'bg-basalt-100')}`}>
                       {h.isPlaceholder ? null : h.column.getCanSort() ? (
-                        <button type="button" onClick={h.column.getToggleSortingHandler()} className="flex min-h-touch w-full items-center gap-1 px-3 font-semibold">
+                        <button type="button" onClick={h.column.getToggleSortingHandler()} className="flex min-h-touch w-full items-center gap-1 px-3 text-left font-semibold">
                           {flexRender(h.column.columnDef.header, h.getContext())}
-                          <span aria-hidden="true">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : ''}</span>
+                          <span aria-hidden="true">{sortIcon(sorted)}</span>
                         </button>
                       ) : (
-                        <span className="block px-3 font-semibold">{flexRender(h.column.columnDef.header, h.getContext())}</span>
+                        <span className="block px-3 py-2 font-semibold">{flexRender(h.column.columnDef.header, h.getContext())}</span>
                       )}
                     </th>
                   );
@@ -76,19 +160,51 @@ export function DataTable<T>({ data, columns, exportName, emptyText = 'Nothing h
             ))}
           </thead>
           <tbody>
-            {table.getRowModel().rows.length === 0 && (
-              <tr><td colSpan={leafColumns.length} className="px-3 py-4 text-basalt-600">{emptyText}</td></tr>
+            {rows.length === 0 && (
+              <tr><td colSpan={leafColumns.length} className="px-3 py-4 text-basalt-600">{data.length === 0 || server ? emptyText : 'Nothing matches the filter.'}</td></tr>
             )}
-            {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-t border-basalt-100">
-                {row.getVisibleCells().map((cell) => (
-                  <td key={cell.id} className="px-3 py-2 align-middle">{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>
-                ))}
-              </tr>
+            {rows.map((row) => (
+              <Fragment key={row.id}>
+                <tr className="border-t border-basalt-100">
+                  {row.getVisibleCells().map((cell) => (
+                    <td key={cell.id} className={`px-3 py-2 align-middle tabular-nums ${sticky(cell.column.id, 'bg-white')}`}>
+                      {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                    </td>
+                  ))}
+                </tr>
+                {renderExpanded && row.getIsExpanded() && (
+                  <tr id={`${expandIdPrefix}${row.id}`} className="bg-basalt-50">
+                    <td colSpan={leafColumns.length} className="p-0">
+                      <div className="sticky left-0 max-w-[100cqw] p-4">{renderExpanded(row)}</div>
+                    </td>
+                  </tr>
+                )}
+              </Fragment>
             ))}
           </tbody>
         </table>
       </div>
+      {server && <Pager table={table} paging={server} label={label} />}
     </div>
+  );
+}
+
+function Pager<T>({ table, paging, label }: { table: ReturnType<typeof useReactTable<T>>; paging: ServerPaging; label?: string }) {
+  const { rowCount, pagination } = paging;
+  return (
+    <nav aria-label={label ? `Pages of ${label.toLowerCase()}` : 'Pages'} className="flex flex-wrap items-end gap-2">
+      <Button variant="secondary" aria-label="First page" disabled={!table.getCanPreviousPage()} onClick={() => table.firstPage()}>«</Button>
+      <Button variant="secondary" aria-label="Previous page" disabled={!table.getCanPreviousPage()} onClick={() => table.previousPage()}>‹ Previous</Button>
+      <span className="flex min-h-touch items-center px-2 font-semibold">
+        Page {rowCount === 0 ? 0 : pagination.pageIndex + 1} of {table.getPageCount().toLocaleString('en-GB')}
+      </span>
+      <Button variant="secondary" aria-label="Next page" disabled={!table.getCanNextPage()} onClick={() => table.nextPage()}>Next ›</Button>
+      <Button variant="secondary" aria-label="Last page" disabled={!table.getCanNextPage()} onClick={() => table.lastPage()}>»</Button>
+      <div className="ml-auto w-36">
+        <SelectField label="Rows per page" value={pagination.pageSize} onChange={(e) => table.setPagination({ pageIndex: 0, pageSize: Number(e.target.value) })}>
+          {paging.pageSizes.map((n) => <option key={n} value={n}>{n}</option>)}
+        </SelectField>
+      </div>
+    </nav>
   );
 }

@@ -20,3 +20,8 @@ export function Panel({ title, children }: { title?: string; children: ReactNode
     </div>
   );
 }
+
+/** What shows while a page's code or first data loads. */
+export function PageLoading() {
+  return <p className="p-6">Loading…</p>;
+}

@@ -1,56 +1,17 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { ProjectRole } from '../../../shared/roles';
 import type { ProjectInput } from '../../../shared/schemas/project';
 import type { InviteUserInput, UpdateUserInput } from '../../../shared/schemas/user';
 import { api, apiGet } from '../../lib/api-client';
+import type { AdminMailView, AdminMember, AdminProject, AdminUser, JobInfo, JobRunRow } from '../../../shared/schemas/admin';
+export type { AdminMailView, AdminMember, AdminUser, AdminProject, CaughtMail, JobRunRow, JobInfo } from '../../../shared/schemas/admin';
 
-export interface AdminUser {
-  id: string;
-  email: string;
-  name: string;
-  isAdmin: boolean;
-  active: boolean;
-  invited: boolean;
-  memberships: { projectId: string; projectName: string; role: ProjectRole }[];
-}
-
-export interface AdminProject {
-  id: string;
-  name: string;
-  machineDescription: string;
-  excavatedDiameterM: number;
-  startChainageM: number;
-  driveDirection: 'increasing' | 'decreasing';
-  siteTimeZone: string;
-  memberCount: number;
-}
-
-export interface CaughtMail {
-  id: number;
-  receivedAt: string;
-  fromAddress: string;
-  toAddresses: string[];
-  subject: string;
-  textBody: string;
-}
-
-export interface JobRunRow {
-  id: number;
-  job: string;
-  trigger: string;
-  startedAt: string;
-  finishedAt: string | null;
-  outcome: string;
-  summary: string | null;
-  error: string | null;
-}
-
-export interface JobInfo {
-  name: string;
-  label: string;
-  cron: string;
-  runs: JobRunRow[];
-}
+/**
+ * The zone Admin → Mail and Admin → Jobs show times in: mail and job runs belong to the
+ * installation, not to one drive, so they use the first project's site zone (UTC when there is no
+ * project yet). See DEVELOPERS.md, decision 25.
+ */
+export const installationTimeZone = (projects: readonly Pick<AdminProject, 'siteTimeZone'>[]) => projects[0]?.siteTimeZone ?? 'UTC';
 
 export interface BackupStatus {
   missing: boolean;
@@ -66,12 +27,14 @@ export const adminQueries = {
   all: ['admin'] as const,
   users: () => queryOptions({ queryKey: [...adminQueries.all, 'users'], queryFn: () => apiGet<AdminUser[]>('/api/admin/users') }),
   projects: () => queryOptions({ queryKey: [...adminQueries.all, 'projects'], queryFn: () => apiGet<AdminProject[]>('/api/admin/projects') }),
+  members: (projectId: string) =>
+    queryOptions({ queryKey: [...adminQueries.all, 'members', projectId], queryFn: () => apiGet<AdminMember[]>(`/api/admin/projects/${projectId}/members`) }),
   jobs: () => queryOptions({ queryKey: [...adminQueries.all, 'jobs'], queryFn: () => apiGet<JobInfo[]>('/api/admin/jobs'), refetchInterval: 10_000 }),
   backupStatus: () => queryOptions({ queryKey: [...adminQueries.all, 'backup-status'], queryFn: () => apiGet<BackupStatus>('/api/admin/backups/status'), refetchInterval: 60_000 }),
   mail: () =>
     queryOptions({
       queryKey: [...adminQueries.all, 'mail'],
-      queryFn: () => apiGet<{ caught: CaughtMail[]; outbox: { waiting: number; failing: number }; uncertain: { id: number; subject: string; toAddresses: string[]; claimedAt: string }[] }>('/api/admin/mail'),
+      queryFn: () => apiGet<AdminMailView>('/api/admin/mail'),
       refetchInterval: 5000,
     }),
 };
@@ -84,3 +47,17 @@ export const setMembership = (projectId: string, userId: string, role: ProjectRo
 export const removeMembership = (projectId: string, userId: string) => api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);
 export const runJobNow = (name: string) => api<JobRunRow>('POST', `/api/admin/jobs/${name}/run`);
 export const releaseUncertainMail = (id: number) => api('POST', `/api/admin/outbox/${id}/release`);
+
+/** Every administrative change invalidates `adminQueries.all`: users, projects and members move together. */
+function useAdminMutation<TInput, TResult>(mutationFn: (input: TInput) => Promise<TResult>) {
+  const queryClient = useQueryClient();
+  return useMutation({ mutationFn, onSuccess: () => queryClient.invalidateQueries({ queryKey: adminQueries.all }) });
+}
+
+export const useInviteUser = () => useAdminMutation(inviteUser);
+export const useSetUserActive = () => useAdminMutation((u: Pick<AdminUser, 'id' | 'active'>) => updateUser(u.id, { active: u.active }));
+export const useCreateProject = () => useAdminMutation(createProject);
+export const useSetMembership = () => useAdminMutation((m: { projectId: string; userId: string; role: ProjectRole }) => setMembership(m.projectId, m.userId, m.role));
+export const useRemoveMembership = () => useAdminMutation((m: { projectId: string; userId: string }) => removeMembership(m.projectId, m.userId));
+export const useRunJobNow = () => useAdminMutation(runJobNow);
+export const useReleaseUncertainMail = () => useAdminMutation(releaseUncertainMail);

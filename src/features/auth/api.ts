@@ -1,13 +1,9 @@
 import { queryOptions } from '@tanstack/react-query';
-import type { ProjectRole } from '../../../shared/roles';
 import type { PasswordResetRequest, SignInInput } from '../../../shared/schemas/auth';
 import type { ChangePasswordInput, SetPasswordInput } from '../../../shared/schemas/password';
 import { api, ApiError } from '../../lib/api-client';
-
-export interface Me {
-  user: { id: string; email: string; name: string; isAdmin: boolean };
-  memberships: { projectId: string; projectName: string; role: ProjectRole }[];
-}
+import type { Me } from '../../../shared/schemas/auth';
+export type { Me } from '../../../shared/schemas/auth';
 
 /** The signed-in user, or null when nobody is signed in. */
 export async function getMe(): Promise<Me | null> {

@@ -2,47 +2,8 @@ import { queryOptions } from '@tanstack/react-query';
 import type { CutterStatus } from '../../../shared/cutters';
 import type { ReceiveCutterInput, WorkshopInput } from '../../../shared/schemas/cutter';
 import { api, apiGet } from '../../lib/api-client';
-
-export interface Cutter {
-  id: string;
-  serial: string;
-  discSizeIn: number;
-  status: CutterStatus;
-  rebuildCount: number;
-  notes: string;
-  createdAt: string;
-  updatedAt: string;
-}
-
-/** A row of the store list: the serial, its state and, when fitted, where and since when. */
-export interface CutterListItem extends Cutter {
-  positionNumber: number | null;
-  fittedAt: string | null;
-}
-
-export interface CutterLife {
-  cutter: Cutter;
-  periods: {
-    id: string;
-    positionId: string;
-    positionNumber: number;
-    fittedAt: string;
-    fittedChainageM: number;
-    fittedRing: number | null;
-    removedAt: string | null;
-    removedChainageM: number | null;
-    removedRing: number | null;
-    removalReason: string | null;
-  }[];
-  events: {
-    id: number;
-    at: string;
-    kind: string;
-    positionId: string | null;
-    positionNumber: number | null;
-    details: Record<string, unknown>;
-  }[];
-}
+import type { Cutter, CutterListItem, CutterLife } from '../../../shared/schemas/cutter';
+export type { Cutter, CutterListItem, CutterLife } from '../../../shared/schemas/cutter';
 
 export interface CutterFilters {
   status?: CutterStatus;

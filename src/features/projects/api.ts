@@ -1,18 +1,7 @@
 import { queryOptions } from '@tanstack/react-query';
-import type { ProjectRole } from '../../../shared/roles';
 import { apiGet } from '../../lib/api-client';
-
-export interface Project {
-  id: string;
-  name: string;
-  machineDescription: string;
-  excavatedDiameterM: number;
-  startChainageM: number;
-  driveDirection: 'increasing' | 'decreasing';
-  siteTimeZone: string;
-  units: string;
-  role: ProjectRole;
-}
+import type { Project } from '../../../shared/schemas/project';
+export type { Project } from '../../../shared/schemas/project';
 
 export const getProjects = () => apiGet<Project[]>('/api/projects');
 export const getProject = (projectId: string) => apiGet<Project>(`/api/projects/${projectId}`);

@@ -1,28 +1,30 @@
-import { useMutation, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { adminQueries, runJobNow } from '../api';
+import { adminQueries, installationTimeZone, useRunJobNow } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
 import { BackupStatusLine } from '../components/backup-status';
+import { formatSiteDateTime } from '../../../../shared/site-time';
 
 const outcomeText: Record<string, string> = { ok: 'Done', failed: 'Failed', skipped: 'Skipped (another server ran it)', running: 'Running…' };
 
 /** Scheduled jobs: their last runs, and "run now". */
 export function AdminJobsRoute() {
-  const queryClient = useQueryClient();
   const { data: jobs } = useSuspenseQuery(adminQueries.jobs());
+  const timeZone = installationTimeZone(useSuspenseQuery(adminQueries.projects()).data);
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
-  const run = useMutation({
-    mutationFn: runJobNow,
-    onSuccess: (r) => {
-      setMessage({ tone: r.outcome === 'failed' ? 'error' : 'success', text: `${r.job}: ${outcomeText[r.outcome] ?? r.outcome}. ${r.summary ?? r.error ?? ''}` });
-      return queryClient.invalidateQueries({ queryKey: adminQueries.all });
-    },
-    onError: (err) => setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The job could not be started.' }),
-  });
+  const runJob = useRunJobNow();
+  const run = {
+    isPending: runJob.isPending,
+    mutate: (name: string) =>
+      runJob.mutate(name, {
+        onSuccess: (r) => setMessage({ tone: r.outcome === 'failed' ? 'error' : 'success', text: `${r.job}: ${outcomeText[r.outcome] ?? r.outcome}. ${r.summary ?? r.error ?? ''}` }),
+        onError: (err) => setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The job could not be started.' }),
+      }),
+  };
   return (
     <Page title="Administration">
       <AdminTabs />
@@ -42,7 +44,7 @@ export function AdminJobsRoute() {
               <tbody>
                 {job.runs.map((r) => (
                   <tr key={r.id} className="border-t border-basalt-100">
-                    <td className="py-1 pr-3 whitespace-nowrap">{new Date(r.startedAt).toLocaleString()}</td>
+                    <td className="py-1 pr-3 whitespace-nowrap">{formatSiteDateTime(r.startedAt, timeZone, { withZone: true })}</td>
                     <td className="pr-3">{r.trigger}</td>
                     <td className={`pr-3 font-semibold ${r.outcome === 'failed' ? 'text-alarm-700' : ''}`}>{outcomeText[r.outcome] ?? r.outcome}</td>
                     <td>{r.error ?? r.summary ?? ''}</td>

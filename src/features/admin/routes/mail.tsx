@@ -1,17 +1,18 @@
-import { useMutation, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { Alert } from '../../../components/ui/alert';
 import { Page } from '../../../components/ui/page';
 import { Button } from '../../../components/ui/button';
-import { adminQueries, releaseUncertainMail } from '../api';
+import { adminQueries, installationTimeZone, useReleaseUncertainMail } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
+import { formatSiteDateTime } from '../../../../shared/site-time';
 
 /** Mail caught by the local mail catcher (development, demo): what the crews would have received. */
 export function AdminMailRoute() {
   const { data } = useSuspenseQuery(adminQueries.mail());
+  const timeZone = installationTimeZone(useSuspenseQuery(adminQueries.projects()).data);
   const [openId, setOpenId] = useState<number | null>(null);
-  const queryClient = useQueryClient();
-  const release = useMutation({ mutationFn: releaseUncertainMail, onSuccess: () => queryClient.invalidateQueries({ queryKey: adminQueries.all }) });
+  const release = useReleaseUncertainMail();
   return (
     <Page title="Administration">
       <AdminTabs />
@@ -40,7 +41,7 @@ export function AdminMailRoute() {
               <button type="button" className="flex min-h-touch w-full flex-wrap items-center gap-x-4 px-4 py-2 text-left" aria-expanded={openId === m.id} onClick={() => setOpenId(openId === m.id ? null : m.id)}>
                 <span className="font-semibold">{m.subject}</span>
                 <span className="text-basalt-600">to {m.toAddresses.join(', ')}</span>
-                <span className="ml-auto text-caption text-basalt-600">{new Date(m.receivedAt).toLocaleString()}</span>
+                <span className="ml-auto text-caption text-basalt-600">{formatSiteDateTime(m.receivedAt, timeZone, { withZone: true })}</span>
               </button>
               {openId === m.id && <pre className="whitespace-pre-wrap border-t border-basalt-100 px-4 py-3 font-sans">{m.textBody}</pre>}
             </li>

@@ -1,5 +1,5 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQuery, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useQuery, useSuspenseQuery } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
@@ -11,20 +11,20 @@ import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
-import { apiGet, ApiError } from '../../../lib/api-client';
-import { adminQueries, createProject, removeMembership, setMembership, type AdminProject } from '../api';
+import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
+import { adminQueries, useCreateProject, useRemoveMembership, useSetMembership, type AdminProject } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
 
 type ProjectForm = z.input<typeof projectInputSchema>;
 const col = createColumnHelper<AdminProject>();
 const timeZones = Intl.supportedValuesOf('timeZone');
 
-interface Member { userId: string; name: string; email: string; role: ProjectRole }
-
 function Members({ project }: { project: AdminProject }) {
-  const queryClient = useQueryClient();
   const { data: users = [] } = useQuery(adminQueries.users());
-  const members = useQuery({ queryKey: [...adminQueries.all, 'members', project.id], queryFn: () => apiGet<Member[]>(`/api/admin/projects/${project.id}/members`) });
+  const members = useQuery(adminQueries.members(project.id));
+  const setMember = useSetMembership();
+  const removeMember = useRemoveMembership();
   const [userId, setUserId] = useState('');
   const [role, setRole] = useState<ProjectRole>('fitter');
   const [error, setError] = useState<string | null>(null);
@@ -32,7 +32,6 @@ function Members({ project }: { project: AdminProject }) {
     setError(null);
     try {
       await fn();
-      await queryClient.invalidateQueries({ queryKey: adminQueries.all });
     } catch (err) {
       setError(err instanceof ApiError ? err.message : 'The change failed.');
     }
@@ -45,10 +44,10 @@ function Members({ project }: { project: AdminProject }) {
           <li key={m.userId} className="flex flex-wrap items-center gap-3 py-2">
             <span className="flex-1">{m.name} <span className="text-basalt-600">({m.email})</span></span>
             <label className="sr-only" htmlFor={`role-${m.userId}`}>Role of {m.name}</label>
-            <select id={`role-${m.userId}`} className="min-h-touch rounded-md border-2 border-basalt-300 px-2" value={m.role} onChange={(e) => run(() => setMembership(project.id, m.userId, e.target.value as ProjectRole))}>
+            <select id={`role-${m.userId}`} className="min-h-touch rounded-md border-2 border-basalt-300 px-2" value={m.role} onChange={(e) => run(() => setMember.mutateAsync({ projectId: project.id, userId: m.userId, role: e.target.value as ProjectRole }))}>
               {projectRoles.map((r) => <option key={r} value={r}>{roleLabels[r]}</option>)}
             </select>
-            <Button variant="secondary" onClick={() => run(() => removeMembership(project.id, m.userId))}>Remove</Button>
+            <Button variant="secondary" onClick={() => run(() => removeMember.mutateAsync({ projectId: project.id, userId: m.userId }))}>Remove</Button>
           </li>
         ))}
       </ul>
@@ -60,14 +59,14 @@ function Members({ project }: { project: AdminProject }) {
         <SelectField label="Role" value={role} onChange={(e) => setRole(e.target.value as ProjectRole)}>
           {projectRoles.map((r) => <option key={r} value={r}>{roleLabels[r]}</option>)}
         </SelectField>
-        <Button disabled={!userId} onClick={() => run(() => setMembership(project.id, userId, role))}>Add</Button>
+        <Button disabled={!userId} onClick={() => run(() => setMember.mutateAsync({ projectId: project.id, userId, role }))}>Add</Button>
       </div>
     </Panel>
   );
 }
 
 export function AdminProjectsRoute() {
-  const queryClient = useQueryClient();
+  const create = useCreateProject();
   const { data: projects } = useSuspenseQuery(adminQueries.projects());
   const [selected, setSelected] = useState<string | null>(null);
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
@@ -78,13 +77,12 @@ export function AdminProjectsRoute() {
   const onCreate = form.handleSubmit(async (v) => {
     setMessage(null);
     try {
-      const p = await createProject(projectInputSchema.parse(v));
+      const p = await create.mutateAsync(projectInputSchema.parse(v));
       form.reset();
       setMessage({ tone: 'success', text: `Project ${p.name} created. Add its members below.` });
       setSelected(p.id);
-      await queryClient.invalidateQueries({ queryKey: adminQueries.all });
     } catch (err) {
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Creating the project failed.' });
+      setMessage({ tone: 'error', text: serverErrors(err, form.setError, 'Creating the project failed.').text });
     }
   });
   const columns = [

@@ -1,5 +1,5 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useMutation, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useSuspenseQuery } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
@@ -11,9 +11,9 @@ import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { useMe } from '../../auth/use-me';
-import { adminQueries, inviteUser, updateUser, type AdminUser } from '../api';
+import { adminQueries, useInviteUser, useSetUserActive, type AdminUser } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
 
 const inviteFormSchema = z.object({
@@ -29,29 +29,25 @@ const col = createColumnHelper<AdminUser>();
 
 export function AdminUsersRoute() {
   const me = useMe();
-  const queryClient = useQueryClient();
   const { data: users } = useSuspenseQuery(adminQueries.users());
   const { data: projects } = useSuspenseQuery(adminQueries.projects());
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const form = useForm<InviteForm>({ resolver: zodResolver(inviteFormSchema), defaultValues: { projectId: '', role: '', isAdmin: false } });
 
-  const refresh = () => queryClient.invalidateQueries({ queryKey: adminQueries.all });
-  const toggleActive = useMutation({
-    mutationFn: (u: AdminUser) => updateUser(u.id, { active: !u.active }),
-    onSuccess: refresh,
-    onError: (err) => setMessage({ tone: 'error', text: err.message }),
-  });
+  const invite = useInviteUser();
+  const setActive = useSetUserActive();
+  const toggleActive = (u: AdminUser) =>
+    setActive.mutate({ id: u.id, active: !u.active }, { onError: (err) => setMessage({ tone: 'error', text: err.message }) });
 
   const onInvite = form.handleSubmit(async (v) => {
     setMessage(null);
     try {
       const memberships = v.projectId && v.role ? [{ projectId: v.projectId, role: v.role as ProjectRole }] : [];
-      await inviteUser({ name: v.name, email: v.email, isAdmin: v.isAdmin, memberships });
+      await invite.mutateAsync({ name: v.name, email: v.email, isAdmin: v.isAdmin, memberships });
       form.reset();
       setMessage({ tone: 'success', text: `Invitation sent to ${v.email}.` });
-      await refresh();
     } catch (err) {
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The invitation failed.' });
+      setMessage({ tone: 'error', text: serverErrors(err, form.setError, 'The invitation failed.').text });
     }
   });
 
@@ -65,7 +61,7 @@ export function AdminUsersRoute() {
       header: 'Actions',
       cell: ({ row }) =>
         row.original.id === me.user.id ? null : (
-          <Button variant={row.original.active ? 'secondary' : 'primary'} onClick={() => toggleActive.mutate(row.original)}>
+          <Button variant={row.original.active ? 'secondary' : 'primary'} onClick={() => toggleActive(row.original)}>
             {row.original.active ? 'Deactivate' : 'Reactivate'}
           </Button>
         ),

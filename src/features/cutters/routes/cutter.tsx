@@ -13,7 +13,8 @@ import { TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
 import { ApiError } from '../../../lib/api-client';
-import { formatChainage, formatDate, formatDateTime } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDate, formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { cutterQueries, recordWorkshop, type CutterLife } from '../api';
 
@@ -118,7 +119,7 @@ export function CutterRoute() {
 
   const eCol = createColumnHelper<LifeEvent>();
   const eventColumns = [
-    eCol.accessor((e) => formatDateTime(e.at, tz), { id: 'at', header: 'When', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    eCol.accessor((e) => formatSiteDateTime(e.at, tz), { id: 'at', header: 'When', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     eCol.accessor(eventText, { id: 'event', header: 'What happened', cell: ({ getValue }) => <span className="block min-w-56">{getValue()}</span> }),
     eCol.accessor('positionNumber', {
       header: 'Position',
@@ -128,9 +129,9 @@ export function CutterRoute() {
   const pCol = createColumnHelper<Period>();
   const periodColumns = [
     pCol.accessor('positionNumber', { header: 'Position', cell: ({ row }) => <Link className={linkClass} to={paths.position(projectId, row.original.positionId)}>{row.original.positionNumber}</Link> }),
-    pCol.accessor((p) => formatDate(p.fittedAt, tz), { id: 'fitted', header: 'Fitted', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    pCol.accessor((p) => formatSiteDate(p.fittedAt, tz), { id: 'fitted', header: 'Fitted', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     pCol.accessor('fittedChainageM', { header: 'At chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
-    pCol.accessor((p) => (p.removedAt ? formatDate(p.removedAt, tz) : 'still fitted'), { id: 'removed', header: 'Removed', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    pCol.accessor((p) => (p.removedAt ? formatSiteDate(p.removedAt, tz) : 'still fitted'), { id: 'removed', header: 'Removed', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     pCol.accessor('removedChainageM', { header: 'At chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
     pCol.accessor((p) => (p.removedChainageM == null ? null : Math.abs(p.removedChainageM - p.fittedChainageM)), {
       id: 'advance', header: 'Advance (m)', cell: ({ getValue }) => getValue()?.toFixed(1) ?? '—',
@@ -145,11 +146,11 @@ export function CutterRoute() {
           <dt className="font-semibold">State</dt>
           <dd>
             {cutterStatusLabels[cutter.status]}
-            {current && <> at <Link className={linkClass} to={paths.position(projectId, current.positionId)}>position {current.positionNumber}</Link> since {formatDate(current.fittedAt, tz)}</>}
+            {current && <> at <Link className={linkClass} to={paths.position(projectId, current.positionId)}>position {current.positionNumber}</Link> since {formatSiteDate(current.fittedAt, tz)}</>}
           </dd>
           <dt className="font-semibold">Disc size</dt><dd>{cutter.discSizeIn}″</dd>
           <dt className="font-semibold">Rebuilds</dt><dd>{cutter.rebuildCount}</dd>
-          <dt className="font-semibold">In Kerfwise since</dt><dd>{formatDate(events.find((e) => e.kind === 'received')?.at ?? cutter.createdAt, tz)}</dd>
+          <dt className="font-semibold">In Kerfwise since</dt><dd>{formatSiteDate(events.find((e) => e.kind === 'received')?.at ?? cutter.createdAt, tz)}</dd>
           {cutter.notes && <><dt className="font-semibold">Notes</dt><dd>{cutter.notes}</dd></>}
         </dl>
       </Panel>

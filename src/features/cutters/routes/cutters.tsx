@@ -15,7 +15,7 @@ import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
 import { ApiError } from '../../../lib/api-client';
-import { formatDate } from '../../../lib/format';
+import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { cutterQueries, receiveCutter, type CutterListItem } from '../api';
 
@@ -83,7 +83,7 @@ export function CuttersRoute() {
     col.accessor('discSizeIn', { header: 'Disc (in)' }),
     col.accessor('rebuildCount', { header: 'Rebuilds' }),
     col.accessor('positionNumber', { header: 'Position', cell: ({ getValue }) => getValue() ?? '—' }),
-    col.accessor((c) => (c.fittedAt ? formatDate(c.fittedAt, project.siteTimeZone) : ''), { id: 'fittedAt', header: 'Fitted since', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((c) => (c.fittedAt ? formatSiteDate(c.fittedAt, project.siteTimeZone) : ''), { id: 'fittedAt', header: 'Fitted since', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     col.accessor('notes', { header: 'Notes' }),
   ];
 

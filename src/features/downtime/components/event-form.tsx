@@ -5,14 +5,15 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { ApiError } from '../../../lib/api-client';
-import { formatChainage } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { fromSiteInput, isoWithSiteOffset, toSiteInput } from '../../../../shared/site-time';
 import { createEvent, deleteEvent, downtimeQueries, updateEvent, type StopOption } from '../api';
-import { fromSiteInput, toSiteInput } from '../site-time';
 
 /** What a site time resolves to, with its UTC offset (so a daylight-saving hour is never a guess). */
 function resolvedHint(value: string, timeZone: string): string {
-  const iso = fromSiteInput(value, timeZone);
-  if (!iso) return `Site time (${timeZone})`;
+  const at = fromSiteInput(value, timeZone);
+  if (!at) return `Site time (${timeZone})`;
+  const iso = isoWithSiteOffset(at, timeZone);
   const skipped = iso.slice(11, 16) !== value.slice(11, 16) ? ' — the clocks skip the time entered on this day' : '';
   return `${iso.slice(0, 10)} ${iso.slice(11, 16)}, UTC${iso.slice(19)}${skipped}`;
 }

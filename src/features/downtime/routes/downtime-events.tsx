@@ -10,7 +10,8 @@ import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { formatChainage, formatDateTime } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { downtimeQueries, proposeFromGaps } from '../api';
 import { CausesPanel } from '../components/causes-panel';
@@ -102,8 +103,8 @@ export function DowntimeEventsRoute() {
     }
   };
   const columns = [
-    col.accessor((e) => formatDateTime(e.startAt, tz), { id: 'start', header: 'Start', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
-    col.accessor((e) => formatDateTime(e.endAt, tz), { id: 'end', header: 'End', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((e) => formatSiteDateTime(e.startAt, tz), { id: 'start', header: 'Start', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((e) => formatSiteDateTime(e.endAt, tz), { id: 'end', header: 'End', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     col.accessor((e) => Math.round(e.hours * 100) / 100, { id: 'hours', header: 'Hours' }),
     col.accessor((e) => e.causeName ?? NO_CAUSE_LABEL, {
       id: 'cause',
@@ -119,7 +120,7 @@ export function DowntimeEventsRoute() {
         id: 'actions',
         header: '',
         cell: ({ row }) => (
-          <Button variant="secondary" aria-label={`Edit the event from ${formatDateTime(row.original.startAt, tz)}`} onClick={() => { setMessage(null); setEditing(row.original); }}>Edit</Button>
+          <Button variant="secondary" aria-label={`Edit the event from ${formatSiteDateTime(row.original.startAt, tz)}`} onClick={() => { setMessage(null); setEditing(row.original); }}>Edit</Button>
         ),
       })]
       : []),

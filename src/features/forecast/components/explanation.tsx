@@ -2,7 +2,8 @@ import { useQuery } from '@tanstack/react-query';
 import type { EstimateBasis, Fallback } from '../../../../shared/domain/forecast';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { Alert } from '../../../components/ui/alert';
-import { formatChainage, formatDate } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDate } from '../../../../shared/site-time';
 import { forecastQueries, type PositionForecast } from '../api';
 import { fixed, formatRate, pgTimestampToIso } from '../format';
 
@@ -34,7 +35,7 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
   const { rates, driveRates } = data.forecast;
   const grounds = [...new Set(e.sections.map((s) => s.groundTypeId).filter((g): g is string => g != null))];
   const limit = p.position.allowableWearMm;
-  const lastAt = p.lastMeasuredAt ? formatDate(pgTimestampToIso(p.lastMeasuredAt), timeZone) : null;
+  const lastAt = p.lastMeasuredAt ? formatSiteDate(pgTimestampToIso(p.lastMeasuredAt), timeZone) : null;
   const outcome = (q: 'p50' | 'p90') => {
     const point = p[q];
     if (point.status === 'over_limit') return `already at or over the ${limit} mm limit (${fixed(point.wearNowMm)} mm)`;

@@ -2,20 +2,14 @@ import { useState } from 'react';
 import { CartesianGrid, ReferenceArea, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis } from 'recharts';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { Button } from '../../../components/ui/button';
-import { formatChainage } from '../../../lib/format';
+import { directionSign, formatChainage } from '../../../../shared/domain/chainage';
+import { groundColours } from '../../../lib/ground-colours';
 import type { Forecast, Geology, GroundType } from '../api';
 
-/** Muted earth tones for ground types, kept apart from the ember accent and the signal colours. */
-const groundPalette = ['#5f7fa0', '#9a6f9a', '#c2a878', '#4f8f8a', '#8a5a44', '#7b8794', '#7d7a3a', '#6b4f7a', '#a3826b', '#3f6b7d'];
 const HATCH_ID = 'kerfwise-no-stop-hatch';
 const ranges = [250, 500, 1000, 2000, null] as const;
 const tickSteps = [10, 25, 50, 100, 250, 500, 1000, 2500, 5000, 10000];
 type Range = (typeof ranges)[number];
-
-/** The colour of each ground type, by the ground types' order (by name), so it is the same on every visit. */
-export function groundColours(groundTypes: GroundType[]): Map<string, string> {
-  return new Map(groundTypes.map((g, i) => [g.id, groundPalette[i % groundPalette.length]]));
-}
 
 interface Marker {
   chainageM: number;
@@ -55,7 +49,7 @@ export function ForecastChart({ forecast, geology, groundTypes, driveDirection }
   driveDirection: 'increasing' | 'decreasing';
 }) {
   const current = forecast.currentChainageM ?? 0;
-  const sign = driveDirection === 'increasing' ? 1 : -1;
+  const sign = directionSign(driveDirection);
   const remaining = forecast.positions.map((p) => p.p50.remainingM).sort((a, b) => a - b);
   // Start with the shortest range that shows three quarters of the positions.
   const wanted = remaining[Math.floor(remaining.length * 0.75)] ?? 0;

@@ -1,14 +1,12 @@
-import {
-  flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable,
-  type ColumnDef, type SortingState,
-} from '@tanstack/react-table';
-import { Fragment, useState, type ReactNode } from 'react';
+import type { ColumnDef } from '@tanstack/react-table';
+import type { ReactNode } from 'react';
 import { Link } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { Button } from '../../../components/ui/button';
+import { DataTable } from '../../../components/ui/data-table';
 import { paths } from '../../../config/paths';
-import { downloadCsv, toCsv } from '../../../lib/csv';
-import { formatChainage, formatDate } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDate } from '../../../../shared/site-time';
 import type { PositionForecast } from '../api';
 import { fixed } from '../format';
 import { Explanation } from './explanation';
@@ -56,9 +54,6 @@ function FlagChip({ flag }: { flag: Flag }) {
   );
 }
 
-/** The position number stays in view while the table scrolls sideways on a tablet. */
-const stickyFirst = 'sticky left-0 z-10';
-
 /** P90 on top in bold, P50 under it. */
 function Pair({ p90, p50 }: { p90: ReactNode; p50: ReactNode }) {
   return (
@@ -71,7 +66,7 @@ function Pair({ p90, p50 }: { p90: ReactNode; p50: ReactNode }) {
 
 /**
  * Every position's change-out, most urgent (cautious P90) first: sorts, filters, exports CSV, and
- * opens "how was this made" under a row. (The kit's DataTable has no rows that open.)
+ * opens "how was this made" under a row.
  */
 export function ForecastTable({ projectId, positions, timeZone, groundName }: {
   projectId: string;
@@ -79,15 +74,7 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
   timeZone: string;
   groundName: (id: string | null) => string;
 }) {
-  const [sorting, setSorting] = useState<SortingState>([{ id: 'remaining', desc: false }]);
-  const [filter, setFilter] = useState('');
-  const [open, setOpen] = useState<ReadonlySet<string>>(new Set());
-  const toggle = (id: string) => setOpen((s) => {
-    const next = new Set(s);
-    if (!next.delete(id)) next.add(id);
-    return next;
-  });
-  const date = (at: string) => formatDate(at, timeZone);
+  const date = (at: string) => formatSiteDate(at, timeZone);
 
   const columns: ColumnDef<PositionForecast, any>[] = [
     {
@@ -145,10 +132,9 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
       enableSorting: false,
       enableGlobalFilter: false,
       cell: ({ row }) => {
-        const id = row.original.position.positionId;
-        const isOpen = open.has(id);
+        const isOpen = row.getIsExpanded();
         return (
-          <Button variant="ghost" aria-expanded={isOpen} aria-controls={`explain-${id}`} onClick={() => toggle(id)} className="whitespace-nowrap border-2 border-basalt-200">
+          <Button variant="ghost" aria-expanded={isOpen} aria-controls={`explain-${row.id}`} onClick={() => row.toggleExpanded()} className="whitespace-nowrap border-2 border-basalt-200">
             <span aria-hidden="true">{isOpen ? '▾' : '▸'}</span>
             {isOpen ? 'Hide' : 'How?'}
             <span className="sr-only"> How was the forecast of position {row.original.position.positionNumber} made</span>
@@ -158,107 +144,38 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
     },
   ];
 
-  const table = useReactTable({
-    data: positions,
-    columns,
-    state: { sorting, globalFilter: filter },
-    onSortingChange: setSorting,
-    onGlobalFilterChange: setFilter,
-    getRowId: (p) => p.position.positionId,
-    getCoreRowModel: getCoreRowModel(),
-    getSortedRowModel: getSortedRowModel(),
-    getFilteredRowModel: getFilteredRowModel(),
-  });
+  const csvHeader = [
+    'Position', 'Class', 'Serial', 'Wear now P50 (mm)', 'Wear now P90 (mm)', 'Limit (mm)',
+    'P90 chainage', 'P90 chainage (m)', 'P90 ring', 'P90 date', 'P90 remaining (m)', 'P90 status',
+    'P50 chainage', 'P50 chainage (m)', 'P50 ring', 'P50 date', 'P50 remaining (m)', 'P50 status', 'Flags',
+  ];
+  const csvRow = (p: PositionForecast) => [
+    p.position.positionNumber, positionClassLabels[p.position.positionClass], p.serial, fixed(p.p50.wearNowMm, 2), fixed(p.p90.wearNowMm, 2), p.position.allowableWearMm,
+    ...(['p90', 'p50'] as const).flatMap((q) => [
+      formatChainage(p[q].chainageM), fixed(p[q].chainageM, 1), p[q].ringNumber, date(p[q].date), fixed(p[q].remainingM, 1), p[q].status.replaceAll('_', ' '),
+    ]),
+    flagsOf(p).map((f) => f.text).join('; '),
+  ];
 
-  const exportCsv = () => {
-    const header = [
-      'Position', 'Class', 'Serial', 'Wear now P50 (mm)', 'Wear now P90 (mm)', 'Limit (mm)',
-      'P90 chainage', 'P90 chainage (m)', 'P90 ring', 'P90 date', 'P90 remaining (m)', 'P90 status',
-      'P50 chainage', 'P50 chainage (m)', 'P50 ring', 'P50 date', 'P50 remaining (m)', 'P50 status', 'Flags',
-    ];
-    const rows = table.getRowModel().rows.map(({ original: p }) => [
-      p.position.positionNumber, positionClassLabels[p.position.positionClass], p.serial, fixed(p.p50.wearNowMm, 2), fixed(p.p90.wearNowMm, 2), p.position.allowableWearMm,
-      ...(['p90', 'p50'] as const).flatMap((q) => [
-        formatChainage(p[q].chainageM), fixed(p[q].chainageM, 1), p[q].ringNumber, date(p[q].date), fixed(p[q].remainingM, 1), p[q].status.replaceAll('_', ' '),
-      ]),
-      flagsOf(p).map((f) => f.text).join('; '),
-    ]);
-    downloadCsv('kerfwise-change-out-forecast.csv', toCsv(header, rows));
-  };
-
-  const columnCount = table.getAllLeafColumns().length;
   return (
-    <div className="space-y-3">
-      <div className="flex flex-wrap items-end gap-3">
-        <label className="min-w-48 flex-1">
-          <span className="sr-only">Filter</span>
-          <input
-            type="search"
-            placeholder="Filter… (position, class, serial, flag)"
-            value={filter}
-            onChange={(e) => setFilter(e.target.value)}
-            className="block min-h-touch w-full rounded-md border-2 border-basalt-300 bg-white px-3"
-          />
-        </label>
-        <Button variant="secondary" onClick={exportCsv}>Export CSV</Button>
-      </div>
-      {/* A size container, so an opened explanation is as wide as the visible table (100cqw); relative, so the buttons’ screen-reader text scrolls with it. */}
-      <div className="@container relative overflow-x-auto rounded-lg border border-basalt-200 bg-white">
-        <table className="min-w-full text-left" aria-label="Change-out forecast by position">
-          <thead className="bg-basalt-100">
-            {table.getHeaderGroups().map((hg) => (
-              <tr key={hg.id}>
-                {hg.headers.map((h) => {
-                  const sorted = h.column.getIsSorted();
-                  return (
-                    <th
-                      key={h.id}
-                      scope="col"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'}
-                      className={`p-0 align-bottom ${h.column.id === 'position' ? `${stickyFirst} bg-basalt-100` : ''}`}
-                    >
-                      {h.column.getCanSort() ? (
-                        <button type="button" onClick={h.column.getToggleSortingHandler()} className="flex min-h-touch w-full items-center gap-1 px-3 text-left font-semibold">
-                          {flexRender(h.column.columnDef.header, h.getContext())}
-                          <span aria-hidden="true">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : ''}</span>
-                        </button>
-                      ) : (
-                        <span className="block px-3 py-2 font-semibold">{flexRender(h.column.columnDef.header, h.getContext())}</span>
-                      )}
-                    </th>
-                  );
-                })}
-              </tr>
-            ))}
-          </thead>
-          <tbody>
-            {table.getRowModel().rows.length === 0 && (
-              <tr><td colSpan={columnCount} className="px-3 py-4 text-basalt-600">{positions.length === 0 ? 'No position to forecast yet.' : 'No position matches the filter.'}</td></tr>
-            )}
-            {table.getRowModel().rows.map((row) => (
-              <Fragment key={row.id}>
-                <tr className="border-t border-basalt-100">
-                  {row.getVisibleCells().map((cell) => (
-                    <td key={cell.id} className={`px-3 py-2 align-middle ${cell.column.id === 'position' ? `${stickyFirst} bg-white` : ''}`}>
-                      {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                    </td>
-                  ))}
-                </tr>
-                {open.has(row.id) && (
-                  <tr id={`explain-${row.id}`} className="bg-basalt-50">
-                    <td colSpan={columnCount} className="p-0">
-                      <div className="sticky left-0 max-w-[100cqw] p-4">
-                        <h3 className="mb-2 text-lead font-semibold">How the forecast of position {row.original.position.positionNumber} was made</h3>
-                        <Explanation projectId={projectId} positionId={row.id} groundName={groundName} timeZone={timeZone} />
-                      </div>
-                    </td>
-                  </tr>
-                )}
-              </Fragment>
-            ))}
-          </tbody>
-        </table>
-      </div>
-    </div>
+    <DataTable
+      data={positions}
+      columns={columns}
+      label="Change-out forecast by position"
+      exportName="kerfwise-change-out-forecast"
+      csv={{ header: csvHeader, row: csvRow }}
+      initialSort={[{ id: 'remaining', desc: false }]}
+      getRowId={(p) => p.position.positionId}
+      stickyColumnId="position"
+      filterPlaceholder="Filter… (position, class, serial, flag)"
+      emptyText="No position to forecast yet."
+      expandIdPrefix="explain-"
+      renderExpanded={(row) => (
+        <>
+          <h3 className="mb-2 text-lead font-semibold">How the forecast of position {row.original.position.positionNumber} was made</h3>
+          <Explanation projectId={projectId} positionId={row.id} groundName={groundName} timeZone={timeZone} />
+        </>
+      )}
+    />
   );
 }

@@ -1,5 +1,4 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQueryClient } from '@tanstack/react-query';
 import { useMemo, useState } from 'react';
 import { useForm, type FieldError, type FieldPath } from 'react-hook-form';
 import { positionClassLabels } from '../../../../shared/cutters';
@@ -9,8 +8,8 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
-import { forecastQueries, saveForecastSettings, type GroundType } from '../api';
+import { serverErrors } from '../../../lib/form';
+import { useSaveForecastSettings, type GroundType } from '../api';
 import { fixed } from '../format';
 
 /** Inputs hold text; the schema wants numbers. Blank is "not given"; a decimal comma is read as a point. */
@@ -39,7 +38,7 @@ function SettingsForm({ projectId, settings, groundTypes, driveRates, onDone }: 
   driveRates: DriveRateEstimate;
   onDone: (text: string) => void;
 }) {
-  const queryClient = useQueryClient();
+  const save = useSaveForecastSettings(projectId);
   const [error, setError] = useState<{ text: string; issues: string[] } | null>(null);
   const values = useMemo(() => formValues(settings, groundTypes), [settings, groundTypes]);
   const form = useForm<ForecastSettingsInput>({ resolver: zodResolver(forecastSettingsInputSchema), values });
@@ -51,16 +50,11 @@ function SettingsForm({ projectId, settings, groundTypes, driveRates, onDone }: 
       Object.entries(input.overrides).filter(([, o]) => o.penetrationMmPerRev !== undefined || o.advanceMPerDay !== undefined),
     );
     try {
-      await saveForecastSettings(projectId, { ...input, overrides });
-      await queryClient.invalidateQueries({ queryKey: forecastQueries.all(projectId) });
+      await save.mutateAsync({ ...input, overrides });
       onDone('Settings saved. The wear fit and the forecast are worked out again with them.');
     } catch (err) {
-      if (!(err instanceof ApiError)) {
-        setError({ text: 'Saving failed. Try again.', issues: [] });
-        return;
-      }
-      for (const issue of err.issues) form.setError(issue.path as FieldPath<ForecastSettingsInput>, { type: 'server', message: issue.message });
-      setError({ text: err.message, issues: err.issues.map((i) => i.message) });
+      const failure = serverErrors(err, form.setError, 'Saving failed. Try again.');
+      setError({ text: failure.text, issues: failure.issues.map((i) => i.message) });
     }
   }, () => setError({ text: 'Some settings need attention; they are marked below. Nothing was saved.', issues: [] }));
 

@@ -3,7 +3,9 @@ import { Link, useParams } from 'react-router';
 import { roleCan } from '../../../../shared/roles';
 import { Alert } from '../../../components/ui/alert';
 import { Page, Panel } from '../../../components/ui/page';
-import { formatChainage, formatDate, formatDateTime } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDate, formatSiteDateTime } from '../../../../shared/site-time';
+import { geologyQueries } from '../../../lib/geology-queries';
 import { projectQueries } from '../../projects/api';
 import { forecastQueries } from '../api';
 import { ForecastChart } from '../components/forecast-chart';
@@ -20,8 +22,8 @@ export function ForecastRoute() {
     queries: [
       projectQueries.detail(projectId),
       forecastQueries.forecast(projectId),
-      forecastQueries.geology(projectId),
-      forecastQueries.groundTypes(projectId),
+      geologyQueries.geology(projectId),
+      geologyQueries.groundTypes(projectId),
       forecastQueries.settings(projectId),
     ],
   });
@@ -38,7 +40,7 @@ export function ForecastRoute() {
         {forecast.currentChainageM == null
           ? 'The machine’s position is not known yet.'
           : `Machine at ${formatChainage(forecast.currentChainageM)}, ring ${forecast.currentRingNumber}.`}{' '}
-        Worked out {formatDateTime(forecast.now, tz)} (site time) from every inspection and stroke recorded so far. P50 is the central
+        Worked out {formatSiteDateTime(forecast.now, tz)} (site time) from every inspection and stroke recorded so far. P50 is the central
         estimate; P90 the cautious one: nine discs in ten should last at least that far.
       </p>
 
@@ -53,7 +55,7 @@ export function ForecastRoute() {
         <Alert tone={overLimit > 0 ? 'error' : 'info'} title={overLimit > 0 ? `${overLimit} position${overLimit === 1 ? ' is' : 's are'} at or over the wear limit (P90).` : 'Next change-out'}>
           {next.p90.status === 'over_limit'
             ? `Position ${next.position.positionNumber} is due now: ${fixed(next.p90.wearNowMm)} mm worn (P90) against a ${next.position.allowableWearMm} mm limit.`
-            : `Position ${next.position.positionNumber} reaches its limit by ${formatChainage(next.p90.chainageM)} (cautious), ring ${next.p90.ringNumber}, on ${formatDate(next.p90.date, tz)}: ${fixed(next.p90.remainingM, 0)} m ahead.`}
+            : `Position ${next.position.positionNumber} reaches its limit by ${formatChainage(next.p90.chainageM)} (cautious), ring ${next.p90.ringNumber}, on ${formatSiteDate(next.p90.date, tz)}: ${fixed(next.p90.remainingM, 0)} m ahead.`}
           {boreLoss > 0 && ` ${boreLoss} gauge position${boreLoss === 1 ? '' : 's'} would cut the bore smaller than the overcut allows before change-out.`}
         </Alert>
       )}

@@ -8,7 +8,8 @@ import { Alert } from '../../../components/ui/alert';
 import { DataTable } from '../../../components/ui/data-table';
 import { SelectField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
-import { formatChainage, formatDate } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { forecastQueries, type WearFitGround, type WearFitReport } from '../api';
 import { WearChart } from '../components/wear-chart';
@@ -96,7 +97,7 @@ export function WearFitsRoute() {
 
   const eCol = createColumnHelper<AbnormalEvent>();
   const eventColumns = [
-    eCol.accessor((e) => formatDate(e.at, tz), { id: 'date', header: 'Date', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    eCol.accessor((e) => formatSiteDate(e.at, tz), { id: 'date', header: 'Date', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     eCol.accessor('positionNumber', { header: 'Position' }),
     eCol.accessor((e) => e.conditions.map(conditionLabel).join(', '), { id: 'conditions', header: 'Found' }),
     eCol.accessor('chainageM', { header: 'Chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),

@@ -6,7 +6,7 @@ import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { formatDate } from '../../../lib/format';
+import { formatSiteDate } from '../../../../shared/site-time';
 import { createOrder, partQueries, receiveLine, type CataloguePart, type OrderLine, type PurchaseOrder } from '../api';
 import type { OrderSuggestion } from '../../../../shared/schemas/parts';
 
@@ -53,7 +53,7 @@ export function OrderList({ projectId, orders, canEdit, timeZone }: { projectId:
           <h2 id={`order-${o.id}`} className="text-lead font-semibold">
             Order {o.number} <span className={`ml-2 rounded-md px-2 py-1 text-caption ${o.open ? 'bg-caution-100 text-caution-700' : 'bg-moss-100 text-moss-700'}`}>{o.open ? 'Open' : 'Received in full'}</span>
           </h2>
-          <p className="text-basalt-700">{o.supplier || 'No supplier given'} · ordered {formatDate(o.orderedAt, timeZone)}{o.note ? ` · ${o.note}` : ''}</p>
+          <p className="text-basalt-700">{o.supplier || 'No supplier given'} · ordered {formatSiteDate(o.orderedAt, timeZone)}{o.note ? ` · ${o.note}` : ''}</p>
           <div className="mt-3 overflow-x-auto">
             <table className="min-w-full text-left">
               <thead className="bg-basalt-100">

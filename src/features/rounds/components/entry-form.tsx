@@ -5,7 +5,7 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { photoUrl, type RoundEntry, type RoundPosition, type StoreCutter } from '../api';
-import { formatSiteTime } from '../format';
+import { formatSiteDateTime } from '../../../../shared/site-time';
 import { discardItem, getOutboxItem, queueEntry, type QueuedEntry } from '../offline-queue';
 import { CutterPicker } from './cutter-picker';
 import { overLimitBadge, OverLimitMark } from './marks';
@@ -172,7 +172,7 @@ export function EntryForm(props: Props) {
             <div className="flex flex-wrap items-center gap-x-2">
               <dt className="text-basalt-700">Last wear</dt>
               <dd className="font-semibold">{position.lastWearMm != null ? `${position.lastWearMm.toFixed(1)} mm` : 'not measured yet'}</dd>
-              {position.lastMeasuredAt && <dd className="text-caption text-basalt-700">{formatSiteTime(position.lastMeasuredAt, timeZone)}</dd>}
+              {position.lastMeasuredAt && <dd className="text-caption text-basalt-700">{formatSiteDateTime(position.lastMeasuredAt, timeZone)}</dd>}
               {lastOver && (
                 <dd className={`inline-flex items-center gap-1 rounded px-2 text-caption font-semibold ${overLimitBadge}`}><OverLimitMark className="h-3 w-3" /> over limit</dd>
               )}

@@ -12,7 +12,8 @@ import { draftFrom, EntryForm, type Draft } from '../components/entry-form';
 import { Legend } from '../components/marks';
 import { AttentionList, SaveStatus } from '../components/outbox-status';
 import { positionMark, PositionStrip } from '../components/position-strip';
-import { formatChainage, formatSiteTime } from '../format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDateTime } from '../../../../shared/site-time';
 import { useOutbox, type QueuedEntry, type QueuedItem } from '../offline-queue';
 
 /** Puts what the server just stored into the cached round, so the screen shows it before the refetch. */
@@ -111,7 +112,7 @@ export function RoundRoute() {
           <h1 className="text-lead font-bold md:text-title">
             <Link to={paths.rounds(projectId)} className="font-semibold underline">Rounds</Link>
             <span aria-hidden="true"> › </span>
-            {formatSiteTime(round.startedAt, tz)}
+            {formatSiteDateTime(round.startedAt, tz)}
           </h1>
           <p className="text-basalt-700">
             Chainage {formatChainage(round.chainageM)}{round.ringNumber != null && ` · ring ${round.ringNumber}`}{round.crew && ` · ${round.crew}`}

@@ -14,7 +14,8 @@ import { ApiError } from '../../../lib/api-client';
 import { projectQueries } from '../../projects/api';
 import { roundQueries, startRound, type RoundListItem } from '../api';
 import { OutboxBanner } from '../components/outbox-status';
-import { formatChainage, formatSiteTime, siteLocalToIso, siteNowLocalValue } from '../format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDateTime, fromSiteInput, toSiteInput } from '../../../../shared/site-time';
 
 const col = createColumnHelper<RoundListItem>();
 
@@ -29,7 +30,7 @@ export function RoundsRoute() {
       header: 'Date',
       cell: ({ row }) => (
         <Link to={paths.round(projectId, row.original.id)} className="inline-flex min-h-touch items-center font-semibold text-ember-700 underline">
-          {formatSiteTime(row.original.startedAt, tz)}
+          {formatSiteDateTime(row.original.startedAt, tz)}
         </Link>
       ),
     }),
@@ -56,7 +57,7 @@ function StartRoundForm({ projectId, timeZone }: { projectId: string; timeZone: 
   const navigate = useNavigate();
   const queryClient = useQueryClient();
   const [values, setValues] = useState<Record<Field, string>>(() => ({
-    startedAt: siteNowLocalValue(timeZone, Date.now()),
+    startedAt: toSiteInput(Date.now(), timeZone),
     chainageM: '',
     ringNumber: '',
     crew: '',
@@ -74,7 +75,7 @@ function StartRoundForm({ projectId, timeZone }: { projectId: string; timeZone: 
     e.preventDefault();
     setMessage(null);
     const parsed = startRoundInputSchema.safeParse({
-      startedAt: siteLocalToIso(values.startedAt, timeZone) ?? '',
+      startedAt: fromSiteInput(values.startedAt, timeZone) ?? '',
       chainageM: values.chainageM.trim() === '' ? undefined : values.chainageM.replace(',', '.'),
       ringNumber: values.ringNumber.trim() === '' ? null : values.ringNumber,
       crew: values.crew,

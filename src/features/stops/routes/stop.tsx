@@ -10,12 +10,13 @@ import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
 import { ApiError } from '../../../lib/api-client';
-import { formatChainage, formatDateTime } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDateTime, fromSiteInput, toSiteInput } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { cancelStop, completeStop, publishStop, scheduleStop, startStop, stopQueries, type Crew, type RoundOption, type WorkPack } from '../api';
 import { AirBadge } from '../components/air-badge';
 import { StopCautions } from '../components/cautions';
-import { hoursText, siteLocalToIso, siteLocalValue } from '../format';
+import { hoursText } from '../format';
 import '../work-pack-print.css';
 
 const linkClass = 'inline-flex min-h-touch items-center font-semibold text-ember-700 underline underline-offset-2';
@@ -77,7 +78,7 @@ export function StopRoute() {
         {canPlan && stop.status === 'scheduled' && (
           <Panel title="Publish">
             {stop.publishedAt ? (
-              <p>Published {formatDateTime(stop.publishedAt, project.siteTimeZone)}: the crew has the work pack. Change the schedule to publish again.</p>
+              <p>Published {formatSiteDateTime(stop.publishedAt, project.siteTimeZone)}: the crew has the work pack. Change the schedule to publish again.</p>
             ) : (
               <div className="space-y-3">
                 <p>Every member of {pack.crew?.name ?? 'the crew'} gets the work pack and the cautions by e-mail, and reminders before the start.</p>
@@ -122,16 +123,16 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
       <dl className="grid grid-cols-2 gap-3 md:grid-cols-3 print:grid-cols-3">
         <Fact label="Status">{stopStatusLabels[stop.status]}{stop.publishedAt && ' · published'}</Fact>
         <Fact label="Air"><AirBadge compressedAir={stop.compressedAir} workingPressureBar={stop.workingPressureBar} /></Fact>
-        <Fact label={`Planned start (${timeZone})`}>{stop.plannedStart ? formatDateTime(stop.plannedStart, timeZone) : 'Not scheduled'}</Fact>
+        <Fact label={`Planned start (${timeZone})`}>{stop.plannedStart ? formatSiteDateTime(stop.plannedStart, timeZone) : 'Not scheduled'}</Fact>
         <Fact label="Expected duration">{hoursText(stop.expectedHours)}</Fact>
         <Fact label="Crew">{pack.crew ? `${pack.crew.name} (${pack.crew.members.map((m) => m.name).join(', ') || 'no members'})` : 'None yet'}</Fact>
         {(stop.actualStart || stop.actualEnd) && (
           <Fact label="Actual">
-            {formatDateTime(stop.actualStart, timeZone)} – {stop.actualEnd ? formatDateTime(stop.actualEnd, timeZone) : 'in progress'}
+            {formatSiteDateTime(stop.actualStart, timeZone)} – {stop.actualEnd ? formatSiteDateTime(stop.actualEnd, timeZone) : 'in progress'}
             {stop.actualHours != null && ` (${hoursText(stop.actualHours)})`}
           </Fact>
         )}
-        {pack.round && <Fact label="Inspection round">{formatDateTime(pack.round.startedAt, timeZone)} at {formatChainage(pack.round.chainageM)}</Fact>}
+        {pack.round && <Fact label="Inspection round">{formatSiteDateTime(pack.round.startedAt, timeZone)} at {formatChainage(pack.round.chainageM)}</Fact>}
         {stop.cancelReason && <Fact label="Cancelled because">{stop.cancelReason}</Fact>}
       </dl>
 
@@ -225,7 +226,7 @@ type ScheduleField = 'plannedStart' | 'expectedHours' | 'crewId' | 'compressedAi
 function ScheduleForm({ pack, crews, timeZone, action, projectId }: { pack: WorkPack; crews: Crew[]; timeZone: string; action: StopChanger; projectId: string }) {
   const { stop } = pack;
   const [values, setValues] = useState(() => ({
-    plannedStart: stop.plannedStart ? siteLocalValue(stop.plannedStart, timeZone) : '',
+    plannedStart: stop.plannedStart ? toSiteInput(stop.plannedStart, timeZone) : '',
     expectedHours: stop.expectedHours == null ? '' : String(stop.expectedHours),
     crewId: stop.crewId ?? '',
     compressedAir: stop.compressedAir,
@@ -234,7 +235,7 @@ function ScheduleForm({ pack, crews, timeZone, action, projectId }: { pack: Work
   const onSubmit = (e: FormEvent) => {
     e.preventDefault();
     const parsed = scheduleStopInputSchema.safeParse({
-      plannedStart: siteLocalToIso(values.plannedStart, timeZone) ?? '',
+      plannedStart: fromSiteInput(values.plannedStart, timeZone) ?? '',
       expectedHours: values.expectedHours.trim() === '' ? undefined : Number(values.expectedHours.replace(',', '.')),
       crewId: values.crewId,
       compressedAir: values.compressedAir,
@@ -301,7 +302,7 @@ function CompleteForm({ rounds, timeZone, action, projectId, stopId }: { rounds:
         <SelectField label="Inspection round done during the stop" value={roundId} onChange={(e) => setRoundId(e.target.value)} hint="Optional.">
           <option value="">No round</option>
           {rounds.map((r) => (
-            <option key={r.id} value={r.id}>{formatDateTime(r.startedAt, timeZone)} · {formatChainage(r.chainageM)}{r.crew && ` · ${r.crew}`}</option>
+            <option key={r.id} value={r.id}>{formatSiteDateTime(r.startedAt, timeZone)} · {formatChainage(r.chainageM)}{r.crew && ` · ${r.crew}`}</option>
           ))}
         </SelectField>
         <div className="flex items-end">

@@ -8,7 +8,8 @@ import { DataTable } from '../../../components/ui/data-table';
 import { SelectField } from '../../../components/ui/field';
 import { Page } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
-import { formatChainage, formatDateTime } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { stopQueries, type StopListItem } from '../api';
 import { hoursText } from '../format';
@@ -37,9 +38,9 @@ export function StopsRoute() {
     col.accessor('ringNumber', { header: 'Ring', cell: (c) => c.getValue() ?? '—' }),
     col.accessor((r) => stopStatusLabels[r.status], { id: 'status', header: 'Status' }),
     col.accessor((r) => (r.compressedAir ? `Compressed air${r.workingPressureBar != null ? ` ${r.workingPressureBar.toFixed(2)} bar` : ''}` : 'Free air'), { id: 'air', header: 'Air' }),
-    col.accessor((r) => (r.plannedStart ? formatDateTime(r.plannedStart, tz) : ''), { id: 'plannedStart', header: 'Planned start', cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span> }),
+    col.accessor((r) => (r.plannedStart ? formatSiteDateTime(r.plannedStart, tz) : ''), { id: 'plannedStart', header: 'Planned start', cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span> }),
     col.accessor('expectedHours', { header: 'Planned (h)', cell: (c) => hoursText(c.getValue()) }),
-    col.accessor((r) => (r.actualStart ? formatDateTime(r.actualStart, tz) : ''), { id: 'actualStart', header: 'Actual start', cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span> }),
+    col.accessor((r) => (r.actualStart ? formatSiteDateTime(r.actualStart, tz) : ''), { id: 'actualStart', header: 'Actual start', cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span> }),
     col.accessor((r) => (r.actualHours == null ? null : Math.round(r.actualHours * 10) / 10), { id: 'actualHours', header: 'Actual (h)', cell: (c) => hoursText(c.getValue()) }),
     col.accessor((r) => (r.actualHours != null && r.expectedHours != null ? Math.round((r.actualHours - r.expectedHours) * 10) / 10 : null), {
       id: 'overrun',

@@ -2,7 +2,7 @@ import { useId, useMemo, type KeyboardEvent } from 'react';
 import { useNavigate } from 'react-router';
 import { positionClassLabels, wearState } from '../../../../shared/cutters';
 import { paths } from '../../../config/paths';
-import type { PositionSummary } from '../api';
+import type { LayoutPosition } from '../api';
 import { discPointMm, discRadiiMm, layOutAnglesDeg } from '../head-geometry';
 
 /**
@@ -28,7 +28,7 @@ export type WearBand =
   | { kind: 'over'; label: string };
 
 /** How a position is drawn: no cutter, not measured since fitted, a band of the ramp, or over its limit. */
-export function wearBand(p: Pick<PositionSummary, 'current' | 'lastWearMm' | 'wearLimitMm'>): WearBand {
+export function wearBand(p: Pick<LayoutPosition, 'current' | 'lastWearMm' | 'wearLimitMm'>): WearBand {
   if (!p.current) return { kind: 'empty', label: 'No cutter fitted' };
   const { fraction, overLimit } = wearState(p.lastWearMm, p.wearLimitMm);
   if (fraction == null) return { kind: 'unmeasured', label: 'Not measured since fitted' };
@@ -128,9 +128,9 @@ interface CutterheadPictureProps {
   projectId: string;
   /** Excavated diameter of the drive (m): the outer circle of the picture. */
   excavatedDiameterM: number;
-  positions: PositionSummary[];
+  positions: LayoutPosition[];
   /** Colours by something else than wear now (e.g. the forecast); wear now when absent. */
-  bandOf?: (p: PositionSummary) => WearBand;
+  bandOf?: (p: LayoutPosition) => WearBand;
 }
 
 /**

@@ -8,9 +8,10 @@ import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
-import { formatChainage, formatDate } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { photoUrl, positionQueries, type FittedPeriod, type Measurement, type PositionDetail } from '../api';
+import { photoUrl, layoutQueries, type FittedPeriod, type Measurement, type PositionDetail } from '../api';
 
 const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
 const conditionsText = (keys: DiscCondition[] | null) => (keys && keys.length ? keys.map(conditionLabel).join(', ') : '');
@@ -30,7 +31,7 @@ function WearChart({ detail, axis, timeZone, reversed }: { detail: PositionDetai
     }))
     .filter((s) => s.points.length > 0);
   const maxWear = Math.max(limit, ...series.flatMap((s) => s.points.map((p) => p.wearMm ?? 0)));
-  const formatX = (v: number) => (axis === 'date' ? formatDate(new Date(v), timeZone) : formatChainage(v));
+  const formatX = (v: number) => (axis === 'date' ? formatSiteDate(new Date(v), timeZone) : formatChainage(v));
   if (series.length === 0) return <p className="text-basalt-600">No wear measured on this position yet.</p>;
   return (
     <div className="h-80 w-full" role="img" aria-label={`Wear against ${axis}, ${series.length} fitted period(s), limit ${limit} mm`}>
@@ -63,7 +64,7 @@ function WearChart({ detail, axis, timeZone, reversed }: { detail: PositionDetai
 export function PositionRoute() {
   const { projectId = '', positionId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: detail } = useSuspenseQuery(positionQueries.detail(projectId, positionId));
+  const { data: detail } = useSuspenseQuery(layoutQueries.detail(projectId, positionId));
   const [axis, setAxis] = useState<Axis>('date');
   const tz = project.siteTimeZone;
   const { position, periods, measurements, photos } = detail;
@@ -72,7 +73,7 @@ export function PositionRoute() {
 
   const mCol = createColumnHelper<Measurement>();
   const measurementColumns = [
-    mCol.accessor((m) => formatDate(m.roundAt, tz), { id: 'date', header: 'Round', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    mCol.accessor((m) => formatSiteDate(m.roundAt, tz), { id: 'date', header: 'Round', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     mCol.accessor('chainageM', { header: 'Chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
     mCol.accessor('ringNumber', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
     mCol.accessor((m) => m.serial ?? '', { id: 'serial', header: 'Serial measured', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
@@ -95,10 +96,10 @@ export function PositionRoute() {
   const pCol = createColumnHelper<FittedPeriod>();
   const periodColumns = [
     pCol.accessor('serial', { header: 'Serial', cell: ({ row }) => <Link className={`${linkClass} whitespace-nowrap`} to={paths.cutter(projectId, row.original.cutterId)}>{row.original.serial}</Link> }),
-    pCol.accessor((p) => formatDate(p.fittedAt, tz), { id: 'fitted', header: 'Fitted', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    pCol.accessor((p) => formatSiteDate(p.fittedAt, tz), { id: 'fitted', header: 'Fitted', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     pCol.accessor('fittedChainageM', { header: 'At chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
     pCol.accessor('fittedRing', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
-    pCol.accessor((p) => (p.removedAt ? formatDate(p.removedAt, tz) : 'still fitted'), { id: 'removed', header: 'Removed', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    pCol.accessor((p) => (p.removedAt ? formatSiteDate(p.removedAt, tz) : 'still fitted'), { id: 'removed', header: 'Removed', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     pCol.accessor('removedChainageM', { header: 'At chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
     pCol.accessor('removedRing', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
     pCol.accessor((p) => p.removalReason ?? '', { id: 'reason', header: 'Reason' }),
@@ -120,14 +121,14 @@ export function PositionRoute() {
             {current ? (
               <>
                 <Link className={linkClass} to={paths.cutter(projectId, current.cutterId)}>{current.serial}</Link>
-                {' '}since {formatDate(current.fittedAt, tz)} at {formatChainage(current.fittedChainageM)}{current.fittedRing != null ? `, ring ${current.fittedRing}` : ''}
+                {' '}since {formatSiteDate(current.fittedAt, tz)} at {formatChainage(current.fittedChainageM)}{current.fittedRing != null ? `, ring ${current.fittedRing}` : ''}
               </>
             ) : 'No cutter fitted'}
           </dd>
           <dt className="font-semibold">Last wear</dt>
           <dd>
             {lastOnCurrent?.wearMm != null
-              ? <>{lastOnCurrent.wearMm} mm on {formatDate(lastOnCurrent.roundAt, tz)} ({Math.round((100 * lastOnCurrent.wearMm) / position.wearLimitMm)} % of the limit{lastOnCurrent.wearMm >= position.wearLimitMm ? <strong> · over the limit</strong> : ''})</>
+              ? <>{lastOnCurrent.wearMm} mm on {formatSiteDate(lastOnCurrent.roundAt, tz)} ({Math.round((100 * lastOnCurrent.wearMm) / position.wearLimitMm)} % of the limit{lastOnCurrent.wearMm >= position.wearLimitMm ? <strong> · over the limit</strong> : ''})</>
               : 'Not measured since fitted'}
           </dd>
         </dl>
@@ -155,7 +156,7 @@ export function PositionRoute() {
           <ul className="grid grid-cols-2 gap-3 sm:grid-cols-3 md:grid-cols-4">
             {photos.map((photo) => {
               const entry = roundOfEntry.get(photo.entryId);
-              const caption = `${entry ? formatDate(entry.roundAt, tz) : formatDate(photo.createdAt, tz)}${entry?.serial ? ` · ${entry.serial}` : ''}`;
+              const caption = `${entry ? formatSiteDate(entry.roundAt, tz) : formatSiteDate(photo.createdAt, tz)}${entry?.serial ? ` · ${entry.serial}` : ''}`;
               return (
                 <li key={photo.id}>
                   <a href={photoUrl(projectId, photo.id)} target="_blank" rel="noreferrer" className="block rounded-md border border-basalt-200 p-1 hover:border-basalt-500">

@@ -8,22 +8,22 @@ import { Alert } from '../../../components/ui/alert';
 import { DataTable } from '../../../components/ui/data-table';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
-import { formatDate } from '../../../lib/format';
+import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { positionQueries, type PositionSummary } from '../api';
+import { layoutQueries, type LayoutPosition } from '../api';
 import { CutterheadPicture, remainingBand, remainingLegend, WearLegend, wearBand } from '../components/cutterhead-picture';
 
-const col = createColumnHelper<PositionSummary>();
+const col = createColumnHelper<LayoutPosition>();
 const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
 
 export function CutterheadRoute() {
   const { projectId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: positions } = useSuspenseQuery(positionQueries.list(projectId));
+  const { data: positions } = useSuspenseQuery(layoutQueries.list(projectId));
   const [view, setView] = useState<'wear' | 'forecast'>('wear');
-  const remaining = useQuery({ ...positionQueries.remaining(projectId), enabled: view === 'forecast' });
+  const remaining = useQuery({ ...layoutQueries.remaining(projectId), enabled: view === 'forecast' });
   const forecastBandOf = useCallback(
-    (p: PositionSummary) => remainingBand(remaining.data?.find((r) => r.positionId === p.id)),
+    (p: LayoutPosition) => remainingBand(remaining.data?.find((r) => r.positionId === p.id)),
     [remaining.data],
   );
 
@@ -43,7 +43,7 @@ export function CutterheadRoute() {
       },
     }),
     col.accessor('lastWearMm', { header: 'Last wear (mm)', cell: ({ getValue }) => getValue() ?? '—' }),
-    col.accessor((p) => formatDate(p.lastMeasuredAt, project.siteTimeZone), { id: 'measured', header: 'Measured', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((p) => formatSiteDate(p.lastMeasuredAt, project.siteTimeZone), { id: 'measured', header: 'Measured', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
     col.accessor('wearLimitMm', { header: 'Limit (mm)' }),
     col.accessor((p) => (p.lastWearMm == null ? null : Math.round((100 * p.lastWearMm) / p.wearLimitMm)), {
       id: 'percent',

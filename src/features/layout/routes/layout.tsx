@@ -14,7 +14,7 @@ import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { downloadCsv, toCsv } from '../../../lib/csv';
 import { projectQueries } from '../../projects/api';
-import { importLayoutCsv, positionQueries, saveLayout, type LayoutSaved, type PositionSummary } from '../api';
+import { importLayoutCsv, layoutQueries, saveLayout, type LayoutSaved, type LayoutPosition } from '../api';
 import { layOutAnglesDeg } from '../head-geometry';
 
 /** The columns the importer reads (server/routes/positions.ts), by the field each fills. */
@@ -30,7 +30,7 @@ const csvColumnOf: Record<keyof PositionInput, string> = {
 };
 const csvFields = Object.keys(csvColumnOf) as (keyof PositionInput)[];
 
-function layoutCsv(positions: PositionSummary[]): string {
+function layoutCsv(positions: LayoutPosition[]): string {
   return toCsv(
     csvFields.map((f) => csvColumnOf[f]),
     positions.map((p) => csvFields.map((f) => (f === 'twinDisc' ? (p.twinDisc ? 'yes' : 'no') : p[f]))),
@@ -52,7 +52,7 @@ interface LayoutForm {
   positions: FormRow[];
 }
 
-const toRows = (positions: PositionSummary[]): FormRow[] =>
+const toRows = (positions: LayoutPosition[]): FormRow[] =>
   positions.map(({ number, trackRadiusMm, positionClass, discSizeIn, tiltDeg, wearLimitMm, twinDisc, angleDeg }) => ({
     number, trackRadiusMm, positionClass, discSizeIn, tiltDeg, wearLimitMm, twinDisc, angleDeg,
   }));
@@ -86,7 +86,7 @@ const cellInput = 'block min-h-touch rounded-md border-2 border-basalt-300 bg-wh
 
 const savedText = (r: LayoutSaved) => `${r.created} new, ${r.updated} changed, ${r.unchanged} unchanged.`;
 
-function LayoutEditor({ projectId, positions }: { projectId: string; positions: PositionSummary[] }) {
+function LayoutEditor({ projectId, positions }: { projectId: string; positions: LayoutPosition[] }) {
   const queryClient = useQueryClient();
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string; issues?: string[] } | null>(null);
   const values = useMemo(() => ({ positions: toRows(positions) }), [positions]);
@@ -104,7 +104,7 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
     setMessage(null);
     try {
       const saved = await saveLayout(projectId, input);
-      await queryClient.invalidateQueries({ queryKey: positionQueries.all(projectId) });
+      await queryClient.invalidateQueries({ queryKey: layoutQueries.all(projectId) });
       setMessage({ tone: 'success', text: `Layout saved: ${savedText(saved)} Changes to wear limits are kept in the audit log.` });
     } catch (err) {
       if (!(err instanceof ApiError)) {
@@ -247,7 +247,7 @@ function CsvImport({ projectId }: { projectId: string }) {
     setResult(null);
     try {
       const saved = await importLayoutCsv(projectId, await file.text());
-      await queryClient.invalidateQueries({ queryKey: positionQueries.all(projectId) });
+      await queryClient.invalidateQueries({ queryKey: layoutQueries.all(projectId) });
       const notes = (saved.warnings ?? []).map((w) => ({ row: String(w.row), column: w.column, message: w.message }));
       setResult({ tone: 'success', text: `${file.name} imported: ${savedText(saved)}`, problems: notes });
     } catch (err) {
@@ -301,7 +301,7 @@ function CsvImport({ projectId }: { projectId: string }) {
   );
 }
 
-const col = createColumnHelper<PositionSummary>();
+const col = createColumnHelper<LayoutPosition>();
 const readOnlyColumns = [
   col.accessor('number', { header: 'Position' }),
   col.accessor('trackRadiusMm', { header: 'Radius (mm)' }),
@@ -316,7 +316,7 @@ const readOnlyColumns = [
 export function LayoutRoute() {
   const { projectId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: positions } = useSuspenseQuery(positionQueries.list(projectId));
+  const { data: positions } = useSuspenseQuery(layoutQueries.list(projectId));
   const canEdit = roleCan(project.role, 'layout.edit');
   return (
     <Page

@@ -1,14 +1,8 @@
 import { useId, useLayoutEffect, useState } from 'react';
-import { formatChainage } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { groundColours, isDarkGround } from '../../../lib/ground-colours';
 import type { Geology, GeologySection, GroundType } from '../api';
 
-/**
- * Ground colours alternate dark and light, so neighbouring bands differ in lightness as well as
- * hue (readable in grey and with the common colour-vision deficiencies); reds and oranges are left
- * to the ember accent and the alarm signal. Every band also carries its name or a legend entry.
- */
-const groundPalette = ['#2f5f8a', '#e3c86b', '#7f5a9b', '#a9d0e8', '#3d8a73', '#dcc0dc', '#5c6670', '#bcd99c'];
-const darkColours = new Set(['#2f5f8a', '#7f5a9b', '#3d8a73', '#5c6670']);
 const WATER = '#4d7ea8';
 const MACHINE = '#bd4f09';
 const tickSteps = [10, 25, 50, 100, 250, 500, 1000, 2500, 5000, 10000, 25000];
@@ -20,11 +14,6 @@ const WATER_LANE = { top: 104, height: 56 };
 const AXIS_Y = WATER_LANE.top + WATER_LANE.height + 4;
 const HEIGHT = AXIS_Y + 24;
 const SIDE = 12;
-
-/** The colour of each ground type by the ground types' order (by name), so it stays the same between visits. */
-function groundColours(groundTypes: GroundType[]): Map<string, string> {
-  return new Map(groundTypes.map((g, i) => [g.id, groundPalette[i % groundPalette.length]]));
-}
 
 /** The width of an element, followed as it changes; the ref is a callback, so an element mounted later is measured too. */
 function useWidth() {
@@ -160,9 +149,9 @@ export function LongSectionStrip({ geology, groundTypes, driveDirection }: {
                       textAnchor="middle"
                       fontSize="14"
                       fontWeight="600"
-                      fill={darkColours.has(fill) ? '#ffffff' : '#1d201c'}
+                      fill={isDarkGround(fill) ? '#ffffff' : '#1d201c'}
                       paintOrder="stroke"
-                      stroke={s.stopAllowed ? 'none' : darkColours.has(fill) ? '#1d201c' : '#ffffff'}
+                      stroke={s.stopAllowed ? 'none' : isDarkGround(fill) ? '#1d201c' : '#ffffff'}
                       strokeWidth="4"
                     >
                       {label}

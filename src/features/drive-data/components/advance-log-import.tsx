@@ -2,7 +2,7 @@ import { useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { proposeMapping, advanceLogRequiredColumns, type ColumnMapping } from '../../../../shared/csv-headers';
 import type { AdvanceLogField } from '../../../../shared/schemas/advance-log';
-import { advanceLogImportUrl, driveQueries } from '../api';
+import { advanceLogImportUrl, driveDataQueries } from '../api';
 import { ColumnMappingStep, readHeader } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
@@ -10,7 +10,7 @@ const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?
 
 /** The planner's import of the machine's advance log, with the column mapping as an optional step. */
 export function AdvanceLogImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
-  const { data: known } = useSuspenseQuery(driveQueries.mapping(projectId));
+  const { data: known } = useSuspenseQuery(driveDataQueries.mapping(projectId));
   const [headers, setHeaders] = useState<string[] | null>(null);
   const [choice, setChoice] = useState<ColumnMapping<AdvanceLogField>>({});
 

@@ -1,69 +1,12 @@
-import { keepPreviousData, queryOptions } from '@tanstack/react-query';
-import type { CercharClassification } from '../../../shared/domain/cerchar';
+import { keepPreviousData, queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { GeologyGapWarning } from '../../../shared/domain/geology';
-import type { ColumnMapping, CsvFieldInfo } from '../../../shared/csv-headers';
-import type { AdvanceLogField, GeologySectionField } from '../../../shared/schemas/advance-log';
 import type { GroundTypeInput, SectionInput, StrokeListQuery } from '../../../shared/schemas/geology';
+import type { ApiIssue } from '../../../shared/schemas/api-error';
 import { api, apiGet, ApiError } from '../../lib/api-client';
-
-/** One ring or stroke of the advance log as GET /strokes sends it. */
-export interface Stroke {
-  id: number;
-  ringNumber: number;
-  startTime: string;
-  endTime: string;
-  chainageStartM: number;
-  chainageEndM: number;
-  revolutions: number | null;
-  penetrationMmPerRev: number | null;
-  rpm: number | null;
-  thrustKn: number | null;
-  torqueKnm: number | null;
-}
-
-export interface StrokePage {
-  rows: Stroke[];
-  total: number;
-  page: number;
-  pageSize: number;
-}
-
-/** Metres advanced on one calendar day of the site. */
-export interface DailyAdvance {
-  day: string;
-  advanceM: number;
-  strokes: number;
-}
-
-/** The column mapping of one import, remembered per project. */
-export interface ImportMapping<F extends string> {
-  /** Field → header, remembered from the last import; null before the first. */
-  mapping: ColumnMapping<F> | null;
-  fields: CsvFieldInfo<F>[];
-}
-export type AdvanceLogMapping = ImportMapping<AdvanceLogField>;
-export type GeologyMapping = ImportMapping<GeologySectionField>;
-
-export interface GroundType {
-  id: string;
-  name: string;
-  description: string;
-  ucsMpa: number | null;
-  cai: number | null;
-  caiClass: CercharClassification | null;
-  quartzPct: number | null;
-  notes: string;
-}
-
-export interface GeologySection extends SectionInput {
-  id: string;
-}
-
-export interface Geology {
-  sections: GeologySection[];
-  warnings: GeologyGapWarning[];
-  currentChainageM: number | null;
-}
+import type { StrokePage, DailyAdvance, AdvanceLogMapping, GeologyMapping } from '../../../shared/schemas/advance-log';
+import type { GroundType } from '../../../shared/schemas/geology';
+export type { GroundType, GeologySection, Geology } from '../../../shared/schemas/geology';
+export type { Stroke, StrokePage, DailyAdvance, AdvanceLogMapping, GeologyMapping } from '../../../shared/schemas/advance-log';
 
 /** Filters of the advance-log list (the paging and sorting come with them in StrokeListQuery). */
 export type StrokeFilters = Pick<StrokeListQuery, 'ringFrom' | 'ringTo' | 'from' | 'to'>;
@@ -85,37 +28,28 @@ export const getStrokes = (projectId: string, query: StrokeListQuery) => apiGet<
 export const getDailyAdvance = (projectId: string) => apiGet<DailyAdvance[]>(`${base(projectId)}/strokes/daily`);
 export const getAdvanceLogMapping = (projectId: string) => apiGet<AdvanceLogMapping>(`${base(projectId)}/strokes/mapping`);
 export const getGeologyMapping = (projectId: string) => apiGet<GeologyMapping>(`${base(projectId)}/geology/mapping`);
-export const getGroundTypes = (projectId: string) => apiGet<GroundType[]>(`${base(projectId)}/ground-types`);
-export const getGeology = (projectId: string) => apiGet<Geology>(`${base(projectId)}/geology`);
 export const createGroundType = (projectId: string, input: GroundTypeInput) => api<GroundType>('POST', `${base(projectId)}/ground-types`, input);
 export const updateGroundType = (projectId: string, id: string, input: GroundTypeInput) => api<GroundType>('PATCH', `${base(projectId)}/ground-types/${id}`, input);
 export const deleteGroundType = (projectId: string, id: string) => api<void>('DELETE', `${base(projectId)}/ground-types/${id}`);
 export const saveLongSection = (projectId: string, sections: SectionInput[]) =>
   api<{ saved: number; warnings: GeologyGapWarning[] }>('PUT', `${base(projectId)}/geology`, { sections });
 
-export const driveQueries = {
-  all: (projectId: string) => ['projects', projectId, 'drive'] as const,
+export const driveDataQueries = {
+  all: (projectId: string) => ['projects', projectId, 'drive-data'] as const,
   strokes: (projectId: string, query: StrokeListQuery) =>
     queryOptions({
-      queryKey: [...driveQueries.all(projectId), 'strokes', query],
+      queryKey: [...driveDataQueries.all(projectId), 'strokes', query],
       queryFn: () => getStrokes(projectId, query),
       // The old page stays on screen while the next one loads, so the table does not jump.
       placeholderData: keepPreviousData,
     }),
-  daily: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
-  mapping: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
-  geologyMapping: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'mapping', 'geology'], queryFn: () => getGeologyMapping(projectId) }),
-  groundTypes: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'ground-types'], queryFn: () => getGroundTypes(projectId) }),
-  geology: (projectId: string) => queryOptions({ queryKey: [...driveQueries.all(projectId), 'geology'], queryFn: () => getGeology(projectId) }),
+  daily: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
+  mapping: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
+  geologyMapping: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'mapping', 'geology'], queryFn: () => getGeologyMapping(projectId) }),
 };
 
 /** A problem the server found in an uploaded file; row 0 is the file as a whole. */
-export interface ImportIssue {
-  path: string;
-  message: string;
-  row?: number;
-  column?: string;
-}
+export type ImportIssue = ApiIssue;
 
 /** The server's answer to an upload: the body of a success, or of a refusal (`error`). */
 export type UploadAnswer =
@@ -155,4 +89,30 @@ export function uploadCsv(url: string, file: File, onProgress: (fraction: number
     xhr.send(file);
   });
   return { answer, abort: () => xhr.abort() };
+}
+
+/** Saves a ground type (new without `id`); the drive's data is read again after it. */
+export function useSaveGroundType(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: ({ id, input }: { id?: string; input: GroundTypeInput }) => (id ? updateGroundType(projectId, id, input) : createGroundType(projectId, input)),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) }),
+  });
+}
+
+export function useDeleteGroundType(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (id: string) => deleteGroundType(projectId, id),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) }),
+  });
+}
+
+/** Saves the whole long section (PUT). */
+export function useSaveLongSection(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (sections: SectionInput[]) => saveLongSection(projectId, sections),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) }),
+  });
 }

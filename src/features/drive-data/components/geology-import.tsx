@@ -2,13 +2,13 @@ import { useSuspenseQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { geologySectionRequiredColumns, proposeMapping, type ColumnMapping } from '../../../../shared/csv-headers';
 import type { GeologySectionField } from '../../../../shared/schemas/advance-log';
-import { driveQueries, geologyImportUrl } from '../api';
+import { driveDataQueries, geologyImportUrl } from '../api';
 import { ColumnMappingStep, readHeader } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
 /** The planner's import of the geology long section, with the column mapping as an optional step (as for the advance log). */
 export function GeologyImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
-  const { data: known } = useSuspenseQuery(driveQueries.geologyMapping(projectId));
+  const { data: known } = useSuspenseQuery(driveDataQueries.geologyMapping(projectId));
   const [headers, setHeaders] = useState<string[] | null>(null);
   const [choice, setChoice] = useState<ColumnMapping<GeologySectionField>>({});
 

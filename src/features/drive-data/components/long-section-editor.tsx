@@ -1,16 +1,15 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQueryClient } from '@tanstack/react-query';
 import { Fragment, useMemo, useState } from 'react';
-import { useFieldArray, useForm, type FieldPath, type Resolver } from 'react-hook-form';
+import { useFieldArray, useForm, type Resolver } from 'react-hook-form';
 import type { z } from 'zod';
 import type { GeologyGapWarning } from '../../../../shared/domain/geology';
 import { longSectionInputSchema } from '../../../../shared/schemas/geology';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
-import { formatChainage } from '../../../lib/format';
-import { driveQueries, saveLongSection, type GeologySection, type GroundType } from '../api';
+import { serverErrors } from '../../../lib/form';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { useSaveLongSection, type GeologySection, type GroundType } from '../api';
 
 type LongSection = z.infer<typeof longSectionInputSchema>;
 
@@ -48,7 +47,7 @@ export const gapText = (warnings: GeologyGapWarning[]) => warnings.map((w) => `$
 
 /** The long section as an editable table, saved as a whole (PUT); the server's problems are shown on their rows. */
 export function LongSectionEditor({ projectId, sections, groundTypes }: { projectId: string; sections: GeologySection[]; groundTypes: GroundType[] }) {
-  const queryClient = useQueryClient();
+  const save = useSaveLongSection(projectId);
   const [message, setMessage] = useState<{ tone: 'success' | 'error' | 'caution'; text: string; lines?: string[] } | null>(null);
   const values = useMemo(() => ({ sections: toRows(sections) }), [sections]);
   const form = useForm<LongSectionForm, unknown, LongSection>({
@@ -61,23 +60,17 @@ export function LongSectionEditor({ projectId, sections, groundTypes }: { projec
   const onSave = form.handleSubmit(async (input) => {
     setMessage(null);
     try {
-      const saved = await saveLongSection(projectId, input.sections);
-      await queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) });
+      const saved = await save.mutateAsync(input.sections);
       setMessage(saved.warnings.length
         ? { tone: 'caution', text: `Long section saved: ${saved.saved} sections. It has gaps of unknown ground: ${gapText(saved.warnings)}.` }
         : { tone: 'success', text: `Long section saved: ${saved.saved} sections, no gaps.` });
     } catch (err) {
-      if (!(err instanceof ApiError)) {
-        setMessage({ tone: 'error', text: 'Saving failed. Try again.' });
-        return;
-      }
-      const lines = err.issues.map((issue) => {
+      const failure = serverErrors(err, form.setError, 'Saving failed. Try again.');
+      const lines = failure.issues.map((issue) => {
         const m = /^sections\.(\d+)\.(\w+)$/.exec(issue.path);
-        if (!m) return issue.message;
-        form.setError(issue.path as FieldPath<LongSectionForm>, { type: 'server', message: issue.message });
-        return `Row ${Number(m[1]) + 1}, ${fieldLabels[m[2] as keyof FormRow] ?? m[2]}: ${issue.message}`;
+        return m ? `Row ${Number(m[1]) + 1}, ${fieldLabels[m[2] as keyof FormRow] ?? m[2]}: ${issue.message}` : issue.message;
       });
-      setMessage({ tone: 'error', text: err.message, lines });
+      setMessage({ tone: 'error', text: failure.text, lines });
     }
   }, () => setMessage({ tone: 'error', text: 'Some rows need attention; they are marked below. Nothing was saved.' }));
 

@@ -1,5 +1,4 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQueryClient } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
@@ -11,8 +10,8 @@ import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
 import { TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
-import { createGroundType, deleteGroundType, driveQueries, updateGroundType, type GroundType } from '../api';
+import { serverErrors } from '../../../lib/form';
+import { useDeleteGroundType, useSaveGroundType, type GroundType } from '../api';
 
 type GroundForm = z.input<typeof groundTypeInputSchema>;
 
@@ -22,7 +21,8 @@ const orDash = (v: number | null) => (v == null ? '—' : String(v));
 const classText = (g: GroundType) => (g.caiClass ? `${g.caiClass.label}${g.caiClass.outsideTabulatedRange ? ' (outside the tabulated range)' : ''}` : '—');
 
 function GroundTypeForm({ projectId, editing, onClose }: { projectId: string; editing: GroundType | null; onClose: (message: string) => void }) {
-  const queryClient = useQueryClient();
+  const save = useSaveGroundType(projectId);
+  const del = useDeleteGroundType(projectId);
   const [error, setError] = useState<string | null>(null);
   const [confirming, setConfirming] = useState(false);
   const form = useForm<GroundForm, unknown, GroundTypeInput>({
@@ -38,11 +38,10 @@ function GroundTypeForm({ projectId, editing, onClose }: { projectId: string; ed
   const onSubmit = form.handleSubmit(async (input) => {
     setError(null);
     try {
-      const saved = editing ? await updateGroundType(projectId, editing.id, input) : await createGroundType(projectId, input);
-      await queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) });
+      const saved = await save.mutateAsync({ id: editing?.id, input });
       onClose(`${saved.name} ${editing ? 'saved' : 'added'}.`);
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'Saving failed. Try again.');
+      setError(serverErrors(err, form.setError, 'Saving failed. Try again.').text);
     }
   });
 
@@ -50,11 +49,10 @@ function GroundTypeForm({ projectId, editing, onClose }: { projectId: string; ed
     setError(null);
     setConfirming(false);
     try {
-      await deleteGroundType(projectId, g.id);
-      await queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) });
+      await del.mutateAsync(g.id);
       onClose(`${g.name} deleted.`);
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'Deleting failed. Try again.');
+      setError(serverErrors(err, form.setError, 'Deleting failed. Try again.').text);
     }
   };
 

@@ -5,9 +5,10 @@ import { roleCan } from '../../../../shared/roles';
 import { Alert } from '../../../components/ui/alert';
 import { DataTable } from '../../../components/ui/data-table';
 import { Page, Panel } from '../../../components/ui/page';
-import { formatChainage } from '../../../lib/format';
+import { formatChainage } from '../../../../shared/domain/chainage';
+import { geologyQueries } from '../../../lib/geology-queries';
 import { projectQueries } from '../../projects/api';
-import { driveQueries, type GeologySection } from '../api';
+import { driveDataQueries, type GeologySection } from '../api';
 import { GeologyImport } from '../components/geology-import';
 import { GroundTypesPanel } from '../components/ground-types-panel';
 import { gapText, LongSectionEditor } from '../components/long-section-editor';
@@ -20,11 +21,11 @@ export function GeologyRoute() {
   const { projectId = '' } = useParams();
   const queryClient = useQueryClient();
   const [{ data: project }, { data: geology }, { data: groundTypes }] = useSuspenseQueries({
-    queries: [projectQueries.detail(projectId), driveQueries.geology(projectId), driveQueries.groundTypes(projectId)],
+    queries: [projectQueries.detail(projectId), geologyQueries.geology(projectId), geologyQueries.groundTypes(projectId)],
   });
   const canEdit = roleCan(project.role, 'drive.edit');
   const groundName = new Map(groundTypes.map((g) => [g.id, g.name]));
-  const refresh = () => queryClient.invalidateQueries({ queryKey: driveQueries.all(projectId) });
+  const refresh = () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) });
 
   const readOnlyColumns = [
     col.accessor('chainageFromM', { header: 'From', cell: ({ getValue }) => formatChainage(getValue()) }),

@@ -1,0 +1,34 @@
+import { queryOptions } from '@tanstack/react-query';
+import type { LayoutInput } from '../../../shared/schemas/cutterhead';
+import { api, apiGet } from '../../lib/api-client';
+import type { LayoutPosition, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
+export type { LayoutPosition, FittedPeriod, Measurement, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
+
+const base = (projectId: string) => `/api/projects/${projectId}/positions`;
+
+export const getLayout = (projectId: string) => apiGet<LayoutPosition[]>(base(projectId));
+export const getPosition = (projectId: string, positionId: string) => apiGet<PositionDetail>(`${base(projectId)}/${positionId}`);
+export const saveLayout = (projectId: string, input: LayoutInput) => api<LayoutSaved>('PUT', base(projectId), input);
+export const importLayoutCsv = (projectId: string, csv: string) => api<LayoutSaved>('POST', `${base(projectId)}/import`, { csv });
+export const photoUrl = (projectId: string, photoId: string) => `/api/projects/${projectId}/photos/${photoId}`;
+
+/** What the picture's forecast view needs of GET /forecast: metres left per position (cautious P90). */
+export interface RemainingMetres {
+  positionId: string;
+  remainingM: number;
+  status: 'reaches_limit' | 'over_limit' | 'beyond_known_ground';
+}
+
+export async function getRemainingMetres(projectId: string): Promise<RemainingMetres[]> {
+  const f = await apiGet<{ positions: { position: { positionId: string }; p90: { remainingM: number; status: RemainingMetres['status'] } }[] }>(`/api/projects/${projectId}/forecast`);
+  return f.positions.map((p) => ({ positionId: p.position.positionId, remainingM: p.p90.remainingM, status: p.p90.status }));
+}
+
+export const layoutQueries = {
+  all: (projectId: string) => ['projects', projectId, 'positions'] as const,
+  list: (projectId: string) => queryOptions({ queryKey: layoutQueries.all(projectId), queryFn: () => getLayout(projectId) }),
+  remaining: (projectId: string) =>
+    queryOptions({ queryKey: [...layoutQueries.all(projectId), 'remaining'], queryFn: () => getRemainingMetres(projectId), staleTime: 5_000 }),
+  detail: (projectId: string, positionId: string) =>
+    queryOptions({ queryKey: [...layoutQueries.all(projectId), positionId], queryFn: () => getPosition(projectId, positionId) }),
+};
