@@ -9,6 +9,9 @@ const { env } = await import('./env');
 const { createApp } = await import('./app');
 const { startJobs } = await import('../jobs/index');
 const { logger } = await import('./lib/logger');
+const { installProcessGuards } = await import('./lib/process-guards');
+
+installProcessGuards();
 
 const port = env().PORT;
 createApp({ clientDir: 'dist' }).listen(port, () => logger.info(`Kerfwise listening on port ${port}`));

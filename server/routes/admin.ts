@@ -10,7 +10,7 @@ import { runJob } from '../services/job-runner';
 import { requireAdmin, requireUser } from '../middleware/auth';
 import { appUrl } from '../lib/app-url';
 import { audit } from '../lib/audit';
-import { badRequest, conflict, notFound } from '../lib/http-error';
+import { badRequest, conflict, HttpError, notFound } from '../lib/http-error';
 import { enqueueMail, kickMailDelivery, releaseUncertainMail, UNCERTAIN_AFTER_MINUTES } from '../lib/mail';
 import { issueToken } from '../lib/one-time-token';
 import { revokeAllSessions } from '../lib/session';
@@ -195,12 +195,23 @@ adminRouter.get('/jobs', async (_req, res) => {
   res.json(jobs.map((j) => ({ name: j.name, label: j.label, cron: j.cron, runs: runs.filter((r) => r.job === j.name).slice(0, 20) })));
 });
 
-/** Runs a job now (under the same lock as the schedule) and answers with the recorded run. */
+const runNowQuerySchema = z.object({
+  again: z.enum(['true', 'false'], { message: 'again must be true or false' }).optional().transform((v) => v === 'true'),
+});
+
+/**
+ * Runs a job now (under the same lock as the schedule) and answers with the recorded run. A weekly
+ * digest whose week was already sent answers 409 with `confirmAgain: true` unless `?again=true`.
+ */
 adminRouter.post('/jobs/:name/run', async (req, res) => {
   const me = requireUser(req);
   const { name } = z.object({ name: z.string().max(60) }).parse(req.params);
+  const { again } = runNowQuerySchema.parse(req.query);
   const { findJob } = await import('../../jobs/index');
   const job = findJob(name);
   if (!job) throw notFound('That job');
-  res.json(await runJob(job, 'admin', { userId: me.id }));
+  const now = new Date();
+  const sentBefore = !again && job.alreadyDone ? await job.alreadyDone({ now }) : null;
+  if (sentBefore) throw new HttpError(409, sentBefore, [], { confirmAgain: true });
+  res.json(await runJob(job, 'admin', { userId: me.id, now, again }));
 });

@@ -4,10 +4,15 @@ export class ApiError extends Error {
     readonly status: number,
     message: string,
     readonly issues: { path: string; message: string }[] = [],
+    /** Other fields of the error body (e.g. `confirmAgain`). */
+    readonly details: Record<string, unknown> = {},
   ) {
     super(message);
   }
 }
+
+/** What the client says when the server answers 503: it is up, its database is not (decision 25). */
+export const DATABASE_DOWN_MESSAGE = 'The server cannot reach its database; your entries are kept on this device.';
 
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
 
@@ -27,7 +32,9 @@ export async function api<T>(method: Method, url: string, body?: unknown): Promi
   const data = await res.json().catch(() => null);
   if (!res.ok) {
     const err = data?.error;
-    throw new ApiError(res.status, err?.message ?? `The server answered ${res.status}.`, err?.issues ?? []);
+    if (res.status === 503) throw new ApiError(503, `${DATABASE_DOWN_MESSAGE} Try again in a minute.`);
+    const { message, issues, ...details } = err ?? {};
+    throw new ApiError(res.status, message ?? `The server answered ${res.status}.`, issues ?? [], details);
   }
   return data as T;
 }

@@ -20,7 +20,15 @@ export function AdminJobsRoute() {
       setMessage({ tone: r.outcome === 'failed' ? 'error' : 'success', text: `${r.job}: ${outcomeText[r.outcome] ?? r.outcome}. ${r.summary ?? r.error ?? ''}` });
       return queryClient.invalidateQueries({ queryKey: adminQueries.all });
     },
-    onError: (err) => setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The job could not be started.' }),
+    onError: (err, vars) => {
+      // A weekly digest whose week was already sent: ask before sending it a second time.
+      if (err instanceof ApiError && err.details.confirmAgain === true && !vars.again) {
+        setMessage(null);
+        if (window.confirm(err.message)) run.mutate({ name: vars.name, again: true });
+        return;
+      }
+      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The job could not be started.' });
+    },
   });
   return (
     <Page title="Administration">
@@ -30,7 +38,7 @@ export function AdminJobsRoute() {
         <Panel key={job.name} title={job.label}>
           <div className="mb-3 flex flex-wrap items-center gap-3">
             <code className="rounded bg-basalt-100 px-2 py-1 text-caption">{job.name} · {job.cron}</code>
-            <Button variant="secondary" disabled={run.isPending} onClick={() => run.mutate(job.name)}>Run now</Button>
+            <Button variant="secondary" disabled={run.isPending} onClick={() => run.mutate({ name: job.name })}>Run now</Button>
           </div>
           {job.runs.length === 0 ? (
             <p className="text-basalt-600">No runs yet.</p>
