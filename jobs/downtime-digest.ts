@@ -12,6 +12,7 @@ import { enqueueMail, kickMailDelivery } from '../server/lib/mail';
 import { buildDowntimeReport, previousIsoWeek } from '../server/services/downtime';
 import type { JobContext } from '../server/services/job-runner';
 import { recipientsFor } from '../server/services/recipients';
+import { claimDigestWeek } from './digest-weeks';
 
 const pct = (share: number) => `${(share * 100).toFixed(1)} %`;
 const escapeHtml = (s: string) => s.replace(/[&<>"]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' })[c]!);
@@ -56,14 +57,23 @@ function digestBodies(driveName: string, isoWeek: string, r: DowntimeReport, lin
   return { text: `${text}\n`, html };
 }
 
-export async function downtimeDigestJob({ now }: JobContext, options: { projectId?: string } = {}): Promise<string> {
+/** The week a digest sent at `now` covers: the last full ISO week in the site's zone. */
+export const downtimeDigestWeek = (now: Date, timeZone: string) => previousIsoWeek(now, timeZone).isoWeek;
+
+export async function downtimeDigestJob({ now, again }: JobContext, options: { projectId?: string } = {}): Promise<string> {
   const drives = await db.select().from(projects).where(options.projectId ? eq(projects.id, options.projectId) : undefined).orderBy(asc(projects.name));
   let mails = 0;
+  let alreadySent = 0;
   for (const drive of drives) {
     const queued = await db.transaction(async (tx) => {
       const to = (await recipientsFor(tx, drive.id, 'downtime_digest')).map((r) => r.email);
       if (to.length === 0) return 0;
       const week = previousIsoWeek(now, drive.siteTimeZone);
+      // Once per week and drive, whichever trigger comes first (decision 19).
+      if (!(await claimDigestWeek(tx, 'downtime_digest', drive.id, week.isoWeek, to.length, again))) {
+        alreadySent++;
+        return 0;
+      }
       const report = await buildDowntimeReport(tx, drive, week);
       const appUrl = configuredAppUrl();
       const link = appUrl ? `${appUrl}/projects/${drive.id}/downtime/report?from=${week.from}&to=${week.to}` : null;
@@ -76,5 +86,5 @@ export async function downtimeDigestJob({ now }: JobContext, options: { projectI
     mails += queued;
   }
   if (mails > 0) kickMailDelivery();
-  return `${mails} downtime digest(s) queued for ${drives.length} drive(s).`;
+  return `${mails} downtime digest(s) queued for ${drives.length} drive(s).${alreadySent > 0 ? ` ${alreadySent} drive(s) left out: their week was already sent.` : ''}`;
 }

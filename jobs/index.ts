@@ -5,10 +5,12 @@
  */
 import cron, { type ScheduledTask } from 'node-cron';
 import { deliverPendingMail } from '../server/lib/mail';
-import { catchUpMissedRuns, runJob, type JobDefinition } from '../server/services/job-runner';
+import { logger } from '../server/lib/logger';
+import { catchUpMissedRuns, runJob, slotAtOrBefore, type JobDefinition } from '../server/services/job-runner';
 import { BACKUP_JOB, nightlyBackupJob } from './backup';
-import { downtimeDigestJob } from './downtime-digest';
-import { partsDigestJob } from './parts-digest';
+import { alreadySentText } from './digest-weeks';
+import { downtimeDigestJob, downtimeDigestWeek } from './downtime-digest';
+import { partsDigestJob, partsDigestWeek } from './parts-digest';
 import { refreshForecastsJob } from './refresh-forecasts';
 import { stopRemindersJob } from './stop-reminders';
 
@@ -45,6 +47,7 @@ export const jobs: JobDefinition[] = [
     cron: '0 7 * * 1',
     periodMs: 7 * 24 * 60 * MINUTE,
     run: (ctx) => downtimeDigestJob(ctx),
+    alreadyDone: ({ now }) => alreadySentText('downtime_digest', now, downtimeDigestWeek),
   },
   {
     name: 'parts-digest',
@@ -52,15 +55,32 @@ export const jobs: JobDefinition[] = [
     cron: '0 6 * * 1',
     periodMs: 7 * 24 * 60 * MINUTE,
     run: (ctx) => partsDigestJob(ctx),
+    alreadyDone: ({ now }) => alreadySentText('parts_digest', now, partsDigestWeek),
   },
   { name: BACKUP_JOB, label: 'Nightly backup of the database and photos (BACKUP_DIR), with retention', cron: '15 2 * * *', periodMs: 24 * 60 * MINUTE, run: nightlyBackupJob },
 ];
 
+/** The job of that name in the registry (tests and the entries; the server is given the registry). */
+export function findJob(name: string): JobDefinition | undefined {
+  return jobs.find((j) => j.name === name);
+}
+
+/**
+ * One cron tick: runs the job in the slot of the scheduled time `at` (the runner records the run
+ * and never rejects; the catch is a last guard so a tick can never end the process).
+ */
+export function scheduledTick(job: JobDefinition, at: Date): Promise<void> {
+  return runJob(job, 'schedule', { now: at, slot: slotAtOrBefore(job.cron, at) }).then(
+    () => undefined,
+    (err: unknown) => logger.error({ err, job: job.name }, 'scheduled run failed'),
+  );
+}
+
 /** Schedules every job and catches up missed runs (in the background). Returns a stop function. */
 export function startJobs(): () => void {
   const tasks: ScheduledTask[] = jobs.map((job) =>
-    cron.schedule(job.cron, () => void runJob(job, 'schedule'), { name: job.name, noOverlap: true }),
+    cron.schedule(job.cron, (ctx) => scheduledTick(job, ctx.date), { name: job.name, noOverlap: true }),
   );
-  void catchUpMissedRuns(jobs);
+  catchUpMissedRuns(jobs).catch((err: unknown) => logger.error({ err }, 'start-up catch-up failed'));
   return () => tasks.forEach((t) => t.stop());
 }

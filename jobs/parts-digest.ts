@@ -9,6 +9,8 @@ import { parts, projects } from '../server/db/schema';
 import { configuredAppUrl } from '../server/lib/app-url';
 import { enqueueMail, kickMailDelivery } from '../server/lib/mail';
 import type { JobContext } from '../server/services/job-runner';
+import { siteIsoWeek } from '../shared/site-time';
+import { claimDigestWeek } from './digest-weeks';
 import { computePartsDemand, sourcesText, type PartsDemand } from '../server/services/parts';
 import { recipientsFor } from '../server/services/recipients';
 
@@ -48,20 +50,29 @@ export function partsDigestText(driveName: string, demand: PartsDemand, link: st
   };
 }
 
-export async function partsDigestJob({ now }: JobContext, options: { projectId?: string } = {}): Promise<string> {
+/** The week a digest sent at `now` covers: the current ISO week in the site's zone (it looks ahead from there). */
+export const partsDigestWeek = (now: Date, timeZone: string) => siteIsoWeek(now, timeZone);
+
+export async function partsDigestJob({ now, again }: JobContext, options: { projectId?: string } = {}): Promise<string> {
   // Drives with a catalogue: without parts there is nothing to suggest.
   const drives = await db
-    .select({ id: projects.id, name: projects.name })
+    .select({ id: projects.id, name: projects.name, siteTimeZone: projects.siteTimeZone })
     .from(projects)
     .where(and(
       options.projectId ? eq(projects.id, options.projectId) : undefined,
       exists(db.select({ id: parts.id }).from(parts).where(eq(parts.projectId, projects.id))),
     ));
   let sent = 0;
+  let alreadySent = 0;
   for (const drive of drives) {
     sent += await db.transaction(async (tx) => {
       const to = await recipientsFor(tx, drive.id, 'parts_digest');
       if (to.length === 0) return 0;
+      // Once per week and drive, whichever trigger comes first (decision 19).
+      if (!(await claimDigestWeek(tx, 'parts_digest', drive.id, partsDigestWeek(now, drive.siteTimeZone), to.length, again))) {
+        alreadySent++;
+        return 0;
+      }
       const demand = await computePartsDemand(tx, drive.id, now, { weeks: DIGEST_WEEKS });
       const appUrl = configuredAppUrl();
       const { subject, text } = partsDigestText(drive.name, demand, appUrl ? `${appUrl}/projects/${drive.id}/parts` : null);
@@ -71,5 +82,5 @@ export async function partsDigestJob({ now }: JobContext, options: { projectId?:
     });
   }
   if (sent > 0) kickMailDelivery();
-  return `${drives.length} drive(s) with a catalogue; ${sent} digest(s) queued.`;
+  return `${drives.length} drive(s) with a catalogue; ${sent} digest(s) queued.${alreadySent > 0 ? ` ${alreadySent} drive(s) left out: their week was already sent.` : ''}`;
 }

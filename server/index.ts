@@ -9,6 +9,9 @@ const { env } = await import('./env');
 const { createApp } = await import('./app');
 const { jobs, startJobs } = await import('../jobs/index');
 const { logger } = await import('./lib/logger');
+const { installProcessGuards } = await import('./lib/process-guards');
+
+installProcessGuards();
 
 if (!env().APP_URL) {
   // E-mailed links (password resets, invitations, stops) are built from APP_URL only, never from a

@@ -49,6 +49,7 @@ try {
   const { seedDemo, demoUsers, DEMO_PASSWORD } = await import('./db/seed-demo');
   const { createApp } = await import('./app');
   const { jobs, startJobs } = await import('../jobs/index');
+  (await import('./lib/process-guards')).installProcessGuards();
 
   const demo = await seedDemo(db);
   log(demo.created ? 'Demo drive loaded.' : 'Demo drive already present; left as it is.');

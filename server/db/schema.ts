@@ -452,7 +452,25 @@ export const jobRuns = pgTable('job_runs', {
   summary: text(),
   error: text(),
   triggeredBy: uuid().references(() => users.id, { onDelete: 'set null' }),
-}, (t) => [index('job_runs_job_idx').on(t.job, t.startedAt)]);
+  /** The scheduled time a 'schedule' or 'catch-up' run stands for; null for 'run now'. */
+  slotAt: timestamp({ withTimezone: true }),
+}, (t) => [
+  index('job_runs_job_idx').on(t.job, t.startedAt),
+  // One running or good run per slot: a late instance finds the slot taken (decision 19).
+  uniqueIndex('job_runs_slot_key').on(t.job, t.slotAt).where(sql`${t.outcome} in ('running', 'ok')`),
+]);
+
+/** The week a weekly digest covered for a drive: a week is sent once unless an administrator asks again. */
+export const digestWeeks = pgTable('digest_weeks', {
+  digest: text().notNull(),
+  projectId: uuid().notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  /** ISO week in the site's time zone, e.g. 2026-W13. */
+  isoWeek: text().notNull(),
+  mails: integer().notNull(),
+  sentAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  /** How many times an administrator sent this week again. */
+  resent: integer().notNull().default(0),
+}, (t) => [primaryKey({ columns: [t.digest, t.projectId, t.isoWeek] })]);
 
 /** Which notifications a user turned off (everything is on until turned off). */
 export const notificationOptOuts = pgTable('notification_opt_outs', {

@@ -17,6 +17,12 @@ const addresses = (a: AddressObject | AddressObject[] | undefined): string[] =>
 
 export async function startFakeSmtp(opts: { databaseUrl: string; port?: number }): Promise<FakeSmtp> {
   const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 2 });
+  // A database restart closes our connections: log and drop them (an unheard 'error' event would
+  // end the process). A message arriving meanwhile is refused with a temporary error and retried
+  // by the sender. No app logger here: this also runs in the test set-up, before the app's env.
+  const lost = (err: Error) => console.warn(`[mail catcher] database connection lost (${err.message}); dropped.`);
+  pool.on('error', lost);
+  pool.on('connect', (client) => client.on('error', lost));
   const server = new SMTPServer({
     authOptional: true,
     disabledCommands: ['STARTTLS', 'AUTH'],
@@ -33,7 +39,7 @@ export async function startFakeSmtp(opts: { databaseUrl: string; port?: number }
           );
           callback();
         })
-        .catch((err: Error) => callback(err));
+        .catch((err: Error) => callback(Object.assign(err, { responseCode: 451 })));
     },
   });
   const port = await new Promise<number>((resolve, reject) => {

@@ -86,7 +86,12 @@ export async function deliverPendingMail(options: DeliveryOptions = {}): Promise
     } catch (err) {
       await db
         .update(outbox)
-        .set({ claimedAt: null, lastError: err instanceof Error ? err.message : String(err), nextAttemptAt: sql`${now} + make_interval(mins => ${retryDelayMinutes(row.attempts)})` })
+        // Back-off from the time the attempt was due, not from when the tick got to it: measured
+        // from "now", every step slipped by up to a tick (1, 2, 4 … became 2, 3, 5 …). When that is
+        // already past (the job did not run for a while), from now: never due again in this pass.
+        .set({ claimedAt: null, lastError: err instanceof Error ? err.message : String(err), nextAttemptAt: sql`case
+          when ${outbox.nextAttemptAt} + make_interval(mins => ${retryDelayMinutes(row.attempts)}) > ${now} then ${outbox.nextAttemptAt} + make_interval(mins => ${retryDelayMinutes(row.attempts)})
+          else ${now} + make_interval(mins => ${retryDelayMinutes(row.attempts)}) end` })
         .where(eq(outbox.id, row.id));
       logger.warn({ outboxId: row.id, attempts: row.attempts, err: String(err) }, 'mail delivery failed; will retry');
       failed++;

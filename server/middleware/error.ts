@@ -1,5 +1,6 @@
 import type { NextFunction, Request, Response } from 'express';
 import { ZodError } from 'zod';
+import { isDatabaseUnavailable } from '../db/client';
 import { ConflictError, InvalidInputError, NotFoundError, ServiceError, type Issue } from '../lib/errors';
 import { HttpError } from '../lib/http-error';
 import { logger } from '../lib/logger';
@@ -18,6 +19,9 @@ function statusOf(err: ServiceError): number {
   return 400;
 }
 
+/** Seconds a client should wait before retrying while the database is unreachable. */
+export const DATABASE_RETRY_AFTER_S = 5;
+
 /** The one error middleware: a message a person can act on, never a stack trace. */
 export function errorHandler(err: unknown, req: Request, res: Response, _next: NextFunction) {
   if (err instanceof ZodError) {
@@ -35,6 +39,16 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
   }
   if (err instanceof HttpError) {
     res.status(err.status).json(body(err.message, err.issues, err.details));
+    return;
+  }
+  // The database is restarting or unreachable (decision 25): say so and when to try again.
+  if (isDatabaseUnavailable(err)) {
+    logger.warn({ url: req.originalUrl, err: err instanceof Error ? err.message : String(err) }, 'database unavailable');
+    res.status(503).set('Retry-After', String(DATABASE_RETRY_AFTER_S)).json(body(
+      'The server cannot reach its database right now, so nothing was saved by this request. Try again in a few seconds; if it lasts, tell your administrator.',
+      [],
+      { database: 'unreachable' },
+    ));
     return;
   }
   const e = err as { type?: string; status?: number; statusCode?: number; code?: string; cause?: { code?: string } };

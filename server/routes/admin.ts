@@ -10,6 +10,7 @@ import { runJob, type JobDefinition } from '../services/job-runner';
 import { requireAdmin, requireUser } from '../middleware/auth';
 import { appUrl } from '../lib/app-url';
 import { audit } from '../lib/audit';
+import { ConflictError } from '../lib/errors';
 import { badRequest, conflict, notFound } from '../lib/http-error';
 import { enqueueMail, kickMailDelivery, releaseUncertainMail, UNCERTAIN_AFTER_MINUTES } from '../lib/mail';
 import { issueToken } from '../lib/one-time-token';
@@ -202,13 +203,24 @@ export function createAdminJobsRouter(jobs: readonly JobDefinition[]) {
     res.json(jobs.map((j) => ({ name: j.name, label: j.label, cron: j.cron, runs: runs.filter((r) => r.job === j.name).slice(0, 20) })));
   });
 
-  /** Runs a job now (under the same lock as the schedule) and answers with the recorded run. */
+  /**
+   * Runs a job now (under the same lock as the schedule) and answers with the recorded run. A weekly
+   * digest whose week was already sent answers 409 with `confirmAgain: true` unless `?again=true`.
+   */
   router.post('/:name/run', async (req, res) => {
     const me = requireUser(req);
     const { name } = z.object({ name: z.string().max(60) }).parse(req.params);
+    const { again } = runNowQuerySchema.parse(req.query);
     const job = jobs.find((j) => j.name === name);
     if (!job) throw notFound('That job');
-    res.json(await runJob(job, 'admin', { userId: me.id }));
+    const now = new Date();
+    const sentBefore = !again && job.alreadyDone ? await job.alreadyDone({ now }) : null;
+    if (sentBefore) throw new ConflictError(sentBefore, [], { confirmAgain: true });
+    res.json(await runJob(job, 'admin', { userId: me.id, now, again }));
   });
   return router;
 }
+
+const runNowQuerySchema = z.object({
+  again: z.enum(['true', 'false'], { message: 'again must be true or false' }).optional().transform((v) => v === 'true'),
+});

@@ -47,6 +47,10 @@ export function entryFlags(entry: Pick<Entry, 'wearMm' | 'conditions' | 'action'
  * was stored before — a queued entry sent twice is stored once.
  */
 export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string, userId: string | null, input: EntryInput) {
+  // Two identical submissions at the same moment (two tabs, a retry racing the original): the
+  // second waits here until the first commits, then finds it below as a replay (decision 14).
+  // Transaction-scoped, so callers pass a transaction.
+  await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`kerfwise-entry:${projectId}:${input.clientKey}`}))`);
   const [replay] = await tx
     .select({ entry: inspectionEntries })
     .from(entrySubmissions)

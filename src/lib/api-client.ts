@@ -31,6 +31,9 @@ export function apiErrorFrom(status: number, data: unknown): ApiError {
   return new ApiError(status, message, kept, details);
 }
 
+/** What the client says when the server answers 503: it is up, its database is not (decision 25). */
+export const DATABASE_DOWN_MESSAGE = 'The server cannot reach its database; your entries are kept on this device.';
+
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
 
 export async function api<T>(method: Method, url: string, body?: unknown): Promise<T> {
@@ -48,6 +51,7 @@ export async function api<T>(method: Method, url: string, body?: unknown): Promi
   if (res.status === 204) return undefined as T;
   const data = await res.json().catch(() => null);
   if (!res.ok) {
+    if (res.status === 503) throw new ApiError(503, `${DATABASE_DOWN_MESSAGE} Try again in a minute.`);
     throw apiErrorFrom(res.status, data);
   }
   return data as T;

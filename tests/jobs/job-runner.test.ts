@@ -47,8 +47,9 @@ describe('job runner', () => {
     await catchUpMissedRuns([j]); // never ran → runs
     await catchUpMissedRuns([j]); // ran just now → nothing
     expect(count).toBe(1);
-    // Pretend the last good run was two days ago: the next start-up catches up once.
-    await db.update(jobRuns).set({ startedAt: new Date(Date.now() - 48 * 3600_000) }).where(eq(jobRuns.job, j.name));
+    // Pretend the last good run was two days ago (in its slot of two days ago): the next start-up catches up once.
+    const twoDaysAgo = new Date(Date.now() - 48 * 3600_000);
+    await db.update(jobRuns).set({ startedAt: twoDaysAgo, slotAt: twoDaysAgo }).where(eq(jobRuns.job, j.name));
     const runs = await catchUpMissedRuns([j]);
     expect(runs.map((r) => r.trigger)).toEqual(['catch-up']);
     expect(count).toBe(2);

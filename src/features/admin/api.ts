@@ -45,7 +45,9 @@ export const createProject = (input: ProjectInput) => api<AdminProject>('POST', 
 export const setMembership = (projectId: string, userId: string, role: ProjectRole) =>
   api('PUT', `/api/admin/projects/${projectId}/members/${userId}`, { role });
 export const removeMembership = (projectId: string, userId: string) => api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);
-export const runJobNow = (name: string) => api<JobRunRow>('POST', `/api/admin/jobs/${name}/run`);
+/** `again`: the administrator confirmed sending a weekly digest's week a second time. */
+export const runJobNow = ({ name, again = false }: { name: string; again?: boolean }) =>
+  api<JobRunRow>('POST', `/api/admin/jobs/${name}/run${again ? '?again=true' : ''}`);
 export const releaseUncertainMail = (id: number) => api('POST', `/api/admin/outbox/${id}/release`);
 
 /** Every administrative change invalidates `adminQueries.all`: users, projects and members move together. */

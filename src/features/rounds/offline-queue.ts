@@ -6,6 +6,7 @@
 import { createStore, del, entries, set, type UseStore } from 'idb-keyval';
 import { useEffect, useRef, useSyncExternalStore } from 'react';
 import type { EntryInput } from '../../../shared/schemas/inspection';
+import { DATABASE_DOWN_MESSAGE } from '../../lib/api-client';
 
 export interface SendError {
   status: number;
@@ -74,7 +75,9 @@ export async function drainQueue(storage: QueueStorage, send: (item: QueuedItem)
       await storage.remove(item.key);
       unsentEntries.delete(item.key);
       stored++;
-    } else {
+    } else if ((await storage.list()).some((i) => i.key === item.key)) {
+      // Only while it is still queued: another tab may have had it stored and removed meanwhile,
+      // and a stored entry must never come back as refused.
       await storage.put({ ...item, state: 'attention', error: error! });
     }
   }
@@ -120,12 +123,16 @@ async function sendItem(item: QueuedItem): Promise<{ data: unknown } | { error: 
   }
   const data = await res.json().catch(() => null);
   if (res.ok) return { data };
+  // 503: the server is up but its database is not; the item stays queued and is sent again.
+  if (res.status === 503) return { error: { status: 503, message: `${DATABASE_DOWN_MESSAGE} They are sent when it is back.`, issues: [] } };
   return { error: { status: res.status, message: data?.error?.message ?? `The server answered ${res.status}.`, issues: data?.error?.issues ?? [] } };
 }
 
 export interface OutboxSnapshot {
   items: QueuedItem[];
   sending: boolean;
+  /** Why items still wait, when the server said so (503: its database is unreachable). */
+  waitingReason?: string;
 }
 
 /** Told about each item the server stored, with its answer, so screens can show it at once. */
@@ -158,12 +165,17 @@ export function flushOutbox(): Promise<void> {
     try {
       do {
         again = false;
+        let waitingReason: string | undefined;
         await drainQueue(idbStorage, async (item) => {
           const result = await sendItem(item);
-          if ('error' in result) return result.error;
+          if ('error' in result) {
+            if (result.error.status === 503) waitingReason = result.error.message;
+            return result.error;
+          }
           storedListeners.forEach((l) => l(item, result.data));
           return null;
         });
+        publish({ waitingReason });
         await reload();
       } while (again);
     } finally {

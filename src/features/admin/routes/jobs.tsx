@@ -19,11 +19,20 @@ export function AdminJobsRoute() {
   const runJob = useRunJobNow();
   const run = {
     isPending: runJob.isPending,
-    mutate: (name: string) =>
-      runJob.mutate(name, {
+    mutate: function mutate(vars: { name: string; again?: boolean }) {
+      runJob.mutate(vars, {
         onSuccess: (r) => setMessage({ tone: r.outcome === 'failed' ? 'error' : 'success', text: `${r.job}: ${outcomeText[r.outcome] ?? r.outcome}. ${r.summary ?? r.error ?? ''}` }),
-        onError: (err) => setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The job could not be started.' }),
-      }),
+        onError: (err) => {
+          // A weekly digest whose week was already sent: ask before sending it a second time.
+          if (err instanceof ApiError && err.details.confirmAgain === true && !vars.again) {
+            setMessage(null);
+            if (window.confirm(err.message)) mutate({ name: vars.name, again: true });
+            return;
+          }
+          setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The job could not be started.' });
+        },
+      });
+    },
   };
   return (
     <Page title="Administration">
@@ -34,7 +43,7 @@ export function AdminJobsRoute() {
         <Panel key={job.name} title={job.label}>
           <div className="mb-3 flex flex-wrap items-center gap-3">
             <code className="rounded bg-basalt-100 px-2 py-1 text-caption">{job.name} · {job.cron}</code>
-            <Button variant="secondary" disabled={run.isPending} onClick={() => run.mutate(job.name)}>Run now</Button>
+            <Button variant="secondary" disabled={run.isPending} onClick={() => run.mutate({ name: job.name })}>Run now</Button>
           </div>
           {job.runs.length === 0 ? (
             <p className="text-basalt-600">No runs yet.</p>

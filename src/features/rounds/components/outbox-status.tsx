@@ -26,6 +26,7 @@ function useOnline() {
 /** "Saved", "Sending (N)…" or "Waiting for network (N)", plus refusals: always in view on the round screen. */
 export function SaveStatus({ items, sending }: { items: QueuedItem[]; sending: boolean }) {
   const online = useOnline();
+  const { waitingReason } = useOutbox();
   const waiting = items.filter((i) => i.state === 'pending').length;
   const refused = items.length - waiting;
   return (
@@ -35,7 +36,7 @@ export function SaveStatus({ items, sending }: { items: QueuedItem[]; sending: b
       ) : waiting > 0 && (
         <span className="inline-flex items-center gap-2 rounded bg-caution-100 px-2 text-caution-700">
           <WaitingMark className="h-5 w-5" />
-          {online && sending ? `Sending (${waiting})…` : `Waiting for network (${waiting})`}
+          {online && sending ? `Sending (${waiting})…` : waitingReason ? `Waiting (${waiting}): ${waitingReason}` : `Waiting for network (${waiting})`}
         </span>
       )}
       {refused > 0 && (
