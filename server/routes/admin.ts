@@ -194,11 +194,11 @@ adminRouter.post('/outbox/:outboxId/release', async (req, res) => {
  * (jobs/index.ts in the entries, whatever a test passes): the server never imports jobs/ itself.
  */
 export function createAdminJobsRouter(jobs: readonly JobDefinition[]) {
-  const router = Router();
-  router.use(requireAdmin);
+  const adminJobsRouter = Router();
+  adminJobsRouter.use(requireAdmin);
 
   /** The scheduled jobs with their last runs (newest first). */
-  router.get('/', async (_req, res) => {
+  adminJobsRouter.get('/', async (_req, res) => {
     const runs = await db.select().from(jobRuns).orderBy(desc(jobRuns.startedAt)).limit(300);
     res.json(jobs.map((j) => ({ name: j.name, label: j.label, cron: j.cron, runs: runs.filter((r) => r.job === j.name).slice(0, 20) })));
   });
@@ -207,7 +207,7 @@ export function createAdminJobsRouter(jobs: readonly JobDefinition[]) {
    * Runs a job now (under the same lock as the schedule) and answers with the recorded run. A weekly
    * digest whose week was already sent answers 409 with `confirmAgain: true` unless `?again=true`.
    */
-  router.post('/:name/run', async (req, res) => {
+  adminJobsRouter.post('/:name/run', async (req, res) => {
     const me = requireUser(req);
     const { name } = z.object({ name: z.string().max(60) }).parse(req.params);
     const { again } = runNowQuerySchema.parse(req.query);
@@ -218,7 +218,7 @@ export function createAdminJobsRouter(jobs: readonly JobDefinition[]) {
     if (sentBefore) throw new ConflictError(sentBefore, [], { confirmAgain: true });
     res.json(await runJob(job, 'admin', { userId: me.id, now, again }));
   });
-  return router;
+  return adminJobsRouter;
 }
 
 const runNowQuerySchema = z.object({

@@ -133,11 +133,15 @@ it('the route table names every route the server registers, and only those', () 
   const norm = (p: string) => p.replace(/\?.*$/, '').replace(/:[A-Za-z]+/g, ':id').replace(/(.)\/$/, '$1');
   const app = readFileSync('server/app.ts', 'utf8');
   const mounts = new Map<string, string>();
-  for (const [, prefix, router] of app.matchAll(/api\.use\('([^']+)',\s*(\w+Router)\)/g)) mounts.set(router, `/api${prefix}`);
+  // A router is mounted by name (`api.use('/x', xRouter)`) or made by a factory (`createXRouter(…)` makes `xRouter`).
+  for (const [, prefix, made, named] of app.matchAll(/api\.use\('([^']+)',\s*(?:create(\w+Router)\(|(\w+Router)\))/g)) {
+    const router = named ?? `${made[0].toLowerCase()}${made.slice(1)}`;
+    mounts.set(router, `/api${prefix}`);
+  }
   const registered = new Set<string>();
   for (const file of readdirSync('server/routes').filter((f) => f.endsWith('.ts'))) {
     const source = readFileSync(path.join('server/routes', file), 'utf8');
-    for (const [, router, method, sub] of source.matchAll(/^(\w+Router)\.(get|post|put|patch|delete)\('([^']*)'/gm)) {
+    for (const [, router, method, sub] of source.matchAll(/^\s*(\w+Router)\.(get|post|put|patch|delete)\('([^']*)'/gm)) {
       const prefix = mounts.get(router);
       if (prefix === undefined) throw new Error(`${router} in ${file} is not mounted in server/app.ts`);
       registered.add(`${method} ${norm(prefix + sub)}`);

@@ -6,7 +6,7 @@
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, describe, expect, inject, it } from 'vitest';
 import { downtimeDigestJob } from '../../jobs/downtime-digest';
-import { findJob } from '../../jobs/index';
+import { findJob, jobs } from '../../jobs/index';
 import { createApp } from '../../server/app';
 import { db, resilientPool } from '../../server/db/client';
 import { digestWeeks, jobRuns, outbox } from '../../server/db/schema';
@@ -139,7 +139,7 @@ describe('weekly digests', () => {
     const buyer = await makeUser();
     await addMember(project.id, buyer.id, 'buyer');
     const admin = await makeUser({ isAdmin: true });
-    const agent = await signedInAgent(createApp(), admin.email);
+    const agent = await signedInAgent(createApp({ jobs }), admin.email);
     const first = await agent.post('/api/admin/jobs/parts-digest/run');
     expect(first.status).toBe(200);
     expect(first.body.outcome).toBe('ok');
