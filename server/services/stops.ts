@@ -7,14 +7,15 @@ import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
-import { COMPRESSED_AIR_CAUTION, needsCompressedAir, workingPressureFromHead } from '../../shared/domain/compressed-air';
-import { forecastChangeOut, type DriveDirection, type PositionClass } from '../../shared/domain/forecast';
-import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
+import { COMPRESSED_AIR_CAUTION, workingPressureFromHead } from '../../shared/domain/compressed-air';
+import type { PositionClass } from '../../shared/domain/forecast';
+import { buildStopPlanInput, knownGroundAheadM, PLACE_EPS_M, stopPlaceAt, type DriveGeology } from '../../shared/domain/stop-plan-input';
+import { planStops, type StopPlan } from '../../shared/domain/stop-planner';
 import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
 import type { DbOrTx } from '../db/client';
 import { crewMembers, crews, cutters, fittings, geologySections, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
 import { notFound } from '../lib/http-error';
-import { computeForecast, type ProjectForecast } from './forecast';
+import { computeForecast } from './forecast';
 
 /**
  * The plan's assumptions. Common practice, no source; site-adjustable (every one can be overridden
@@ -35,105 +36,12 @@ export const defaultStopPlanSettings = {
 };
 
 
-/** The long section as the planner reads it, and how chainage turns into rings. */
-export interface DriveGeology {
-  sections: { chainageFromM: number; chainageToM: number; groundTypeId: string | null; waterHeadM: number; stopAllowed: boolean; stopReason: string }[];
-  ringLengthM: number;
-  direction: DriveDirection;
-}
 
-/** Chainage tolerance, m: absorbs rounding when a stop is matched to a section boundary or a plan place. */
-const EPS_M = 1e-6;
-
-/**
- * Whether a stop may be made at `chainageM`, and the water head there (m). On a boundary between
- * two sections both must allow a stop, and the higher head counts (cautious).
- */
-export function stopPlaceAt(sections: DriveGeology['sections'], chainageM: number): { allowed: boolean; waterHeadM: number | null; reason: string | null } {
-  const touching = sections.filter((s) => s.chainageFromM - EPS_M <= chainageM && chainageM <= s.chainageToM + EPS_M);
-  if (touching.length === 0) return { allowed: false, waterHeadM: null, reason: 'it lies outside the geology long section' };
-  const waterHeadM = Math.max(...touching.map((s) => s.waterHeadM));
-  const refusing = touching.find((s) => !s.stopAllowed);
-  if (refusing) return { allowed: false, waterHeadM, reason: refusing.stopReason || 'the long section allows no stop there' };
-  return { allowed: true, waterHeadM, reason: null };
-}
+/** Chainage tolerance, m: absorbs rounding when a stop is matched to a plan place. */
+const EPS_M = PLACE_EPS_M;
 
 /** Indicative working pressure (bar) from the water head; null where there is no head above the axis. */
 const pressureBar = (waterHeadM: number | null) => (waterHeadM != null && waterHeadM > 0 ? workingPressureFromHead(waterHeadM).pressureBar : null);
-
-/**
- * Metres of known ground ahead of the machine: how far the forecast can walk. The planner's
- * horizon is cut there, as no stop place or wear rate is known beyond.
- */
-function knownGroundAheadM(geology: DriveGeology, currentChainageM: number): number {
-  const sign = geology.direction === 'increasing' ? 1 : -1;
-  return Math.max(0, ...geology.sections.map((s) => Math.max((s.chainageFromM - currentChainageM) * sign, (s.chainageToM - currentChainageM) * sign)));
-}
-
-/**
- * Cautious (P90) wear growth per metre ahead of one position over the whole known ground. The
- * forecast's own explanation stops at the position's limit point; a ring fitted later wears on
- * through the ground beyond, so the same forecast walk is repeated with the limit lifted.
- */
-function p90WearStretches(position: ProjectForecast['positions'][number], forecast: ProjectForecast, geology: DriveGeology): WearStretch[] {
-  const walk = forecastChangeOut({
-    position: { ...position.position, allowableWearMm: Infinity },
-    wearNow: position.explanation.wearNow,
-    currentChainageM: forecast.currentChainageM!,
-    currentRingNumber: forecast.currentRingNumber!,
-    ringLengthM: geology.ringLengthM,
-    driveDirection: geology.direction,
-    geology: geology.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
-    rates: forecast.rates,
-    penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
-    advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
-    overcutMarginMm: 0,
-    now: forecast.now,
-  });
-  let fromAheadM = 0;
-  return walk.explanation.sections.map((s) => {
-    const stretch = { fromAheadM, wearMmPerM: s.wearMmPerM.p90 };
-    fromAheadM += s.lengthM;
-    return stretch;
-  });
-}
-
-/**
- * The stop planner's input from a project's forecast (P90 wear now, limits, P90 wear growth per
- * metre ahead), its long section (a candidate place at every ring boundary ahead, within the
- * horizon and the known ground, where a stop is allowed; compressed air above the site's water
- * head) and the cost settings. Needs a forecast with a known machine position.
- */
-export function buildStopPlanInput(forecast: ProjectForecast, geology: DriveGeology, settings: StopPlanSettings): StopPlanInput {
-  const currentChainageM = forecast.currentChainageM;
-  if (currentChainageM == null || forecast.currentRingNumber == null) throw new RangeError('the machine position is not known: no advance log');
-  const sign = geology.direction === 'increasing' ? 1 : -1;
-  const horizonM = Math.min(settings.horizonM, knownGroundAheadM(geology, currentChainageM));
-  const stopPlaces: StopPlanInput['stopPlaces'] = [];
-  for (let k = 0; k * geology.ringLengthM <= horizonM + EPS_M; k++) {
-    const chainageM = currentChainageM + sign * k * geology.ringLengthM;
-    const place = stopPlaceAt(geology.sections, chainageM);
-    if (place.allowed) stopPlaces.push({ chainageM, compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: settings.compressedAirAboveHeadM }) });
-  }
-  return {
-    currentChainageM,
-    direction: geology.direction,
-    horizonM,
-    positions: forecast.positions.map((p) => ({
-      positionId: p.position.positionId,
-      positionClass: p.position.positionClass,
-      wearNowMm: p.explanation.wearNowMm.p90,
-      limitMm: p.position.allowableWearMm,
-      wearStretches: p90WearStretches(p, forecast, geology),
-    })),
-    stopPlaces,
-    freeAirStopH: settings.freeAirStopH,
-    compressedAirStopH: settings.compressedAirStopH,
-    changeHByClass: settings.changeHByClass,
-    wastedRingLifeHPerMm: settings.wastedRingLifeHPerMm,
-  };
-}
-
 
 export type ProjectStopPlan = StopPlanView<Date>;
 
