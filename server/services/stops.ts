@@ -9,11 +9,11 @@ import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
 import { COMPRESSED_AIR_CAUTION, workingPressureFromHead } from '../../shared/domain/compressed-air';
 import type { PositionClass } from '../../shared/domain/forecast';
-import { buildStopPlanInput, knownGroundAheadM, PLACE_EPS_M, stopPlaceAt, type DriveGeology } from '../../shared/domain/stop-plan-input';
+import { buildStopPlanInput, expectedAtAhead, knownGroundAheadM, PLACE_EPS_M, stopPlaceAt, type DriveGeology } from '../../shared/domain/stop-plan-input';
 import { planStops, type StopPlan } from '../../shared/domain/stop-planner';
 import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
 import type { DbOrTx } from '../db/client';
-import { crewMembers, crews, cutters, fittings, geologySections, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
+import { crewMembers, crews, cutters, fittings, geologySections, groundTypes, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
 import { notFound } from '../lib/http-error';
 import { computeForecast } from './forecast';
 
@@ -26,6 +26,8 @@ import { computeForecast } from './forecast';
  */
 /** States the exact stop search may expand in one request (about 1–2 s on the project’s 2-core machine). */
 export const PLANNER_MAX_STATES = 3_000;
+/** Steps of the lower bound per request (about 1 s on the demo drive; `npm run bench`). */
+export const PLANNER_BOUND_ITERATIONS = 300;
 
 export const defaultStopPlanSettings = {
   horizonM: 2000,
@@ -33,6 +35,10 @@ export const defaultStopPlanSettings = {
   compressedAirStopH: 14,
   changeHByClass: { centre: 1.5, face: 1.0, gauge: 1.25 } as Record<PositionClass, number>,
   wastedRingLifeHPerMm: 0.2,
+  /** Site-practice rule: change every disc past 80 % of its limit at a stop (common practice, no source). */
+  practiceChangeSharePercent: 80,
+  /** Fixed-interval rule: a stop every 250 m (common practice, no source). */
+  fixedIntervalM: 250,
 };
 
 
@@ -64,6 +70,8 @@ function planSettings(project: { compressedAirAboveHeadM: number }, overrides: S
     },
     wastedRingLifeHPerMm: overrides.wastedRingLifeHPerMm ?? d.wastedRingLifeHPerMm,
     compressedAirAboveHeadM: overrides.compressedAirAboveHeadM ?? project.compressedAirAboveHeadM,
+    practiceChangeSharePercent: overrides.practiceChangeSharePercent ?? d.practiceChangeSharePercent,
+    fixedIntervalM: overrides.fixedIntervalM ?? d.fixedIntervalM,
   };
 }
 
@@ -85,7 +93,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const geology = await loadDriveGeology(tx, project);
   const empty: ProjectStopPlan = {
     now, currentChainageM: forecast.currentChainageM, currentRingNumber: forecast.currentRingNumber, settings, horizonEndChainageM: null,
-    candidatePlaceCount: 0, problems: [...forecast.problems], infeasible: [], optimised: null, hand: null, savingH: null, cautions: [CUTTERHEAD_ENTRY_CAUTION],
+    candidatePlaceCount: 0, longSection: [], compressedAirAboveHeadM: settings.compressedAirAboveHeadM, problems: [...forecast.problems], infeasible: [], optimised: null, certificate: null, practice: null, fixedInterval: null, savingVsPracticeH: null, savingVsIntervalH: null, cautions: [CUTTERHEAD_ENTRY_CAUTION],
   };
   if (forecast.currentChainageM == null || forecast.positions.length === 0) return empty;
   const knownM = knownGroundAheadM(geology, forecast.currentChainageM);
@@ -95,7 +103,12 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const byId = new Map(forecast.positions.map((p) => [p.position.positionId, p.position]));
   // The exact search can grow fast on abrasive ground; a request must answer in seconds, so the
   // server caps it (DEVELOPERS.md, decision 24) and says when the plan is not proven cheapest.
-  const first = planStops(fullInput, { maxStates: PLANNER_MAX_STATES });
+  const options = {
+    maxStates: PLANNER_MAX_STATES,
+    boundIterations: PLANNER_BOUND_ITERATIONS,
+    rules: { changeShare: settings.practiceChangeSharePercent / 100, intervalM: settings.fixedIntervalM },
+  };
+  const first = planStops(fullInput, options);
   const infeasible = first.feasible
     ? []
     : first.problems
@@ -105,10 +118,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   // need the stops before it, and the problem is shown beside them.
   const reachM = first.feasible ? fullInput.horizonM : Math.min(...first.problems.map((p) => p.dueAheadM)) - 1e-3;
   const input = first.feasible ? fullInput : { ...fullInput, horizonM: reachM };
-  const result = first.feasible ? first : reachM > 0 ? planStops(input, { maxStates: PLANNER_MAX_STATES }) : first;
-  if (result.feasible && !result.provenOptimal) {
-    problems0.push(`The search stopped after ${PLANNER_MAX_STATES.toLocaleString('en')} states: this is the best plan found, not proven the cheapest. A shorter horizon gives an exact answer.`);
-  }
+  const result = first.feasible ? first : reachM > 0 ? planStops(input, options) : first;
   const sign = geology.direction === 'increasing' ? 1 : -1;
   const horizonEndChainageM = forecast.currentChainageM + sign * Math.max(0, input.horizonM);
   const problems = [...empty.problems, ...problems0];
@@ -121,11 +131,19 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
     );
   }
   const candidatePlaceCount = input.stopPlaces.filter((p) => (p.chainageM - forecast.currentChainageM!) * sign <= input.horizonM).length;
-  const base = { ...empty, horizonEndChainageM, candidatePlaceCount, problems, infeasible };
+  const names = new Map((await tx.select({ id: groundTypes.id, name: groundTypes.name }).from(groundTypes).where(eq(groundTypes.projectId, projectId))).map((g) => [g.id, g.name]));
+  const [lowM, highM] = [Math.min(forecast.currentChainageM, horizonEndChainageM), Math.max(forecast.currentChainageM, horizonEndChainageM)];
+  const longSection = geology.sections
+    .filter((s) => s.chainageToM > lowM && s.chainageFromM < highM)
+    .map((s) => ({
+      chainageFromM: Math.max(s.chainageFromM, lowM), chainageToM: Math.min(s.chainageToM, highM), groundName: s.groundTypeId ? names.get(s.groundTypeId) ?? null : null,
+      waterHeadM: s.waterHeadM, stopAllowed: s.stopAllowed, stopReason: s.stopReason,
+    }));
+  const base = { ...empty, horizonEndChainageM, candidatePlaceCount, longSection, problems, infeasible };
   if (!result.feasible) return base;
 
   const open = await tx.select({ id: stops.id, chainageM: stops.chainageM }).from(stops).where(and(eq(stops.projectId, projectId), inArray(stops.status, openStatuses)));
-  const view = (plan: StopPlan): PlanView => ({
+  const view = (plan: StopPlan | null): PlanView | null => plan && ({
     cost: plan.cost,
     stops: plan.stops.map((s) => {
       const { waterHeadM } = stopPlaceAt(geology.sections, s.chainageM);
@@ -146,17 +164,23 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
           })
           .sort((a, b) => a.positionNumber - b.positionNumber),
         existingStopId: open.find((o) => Math.abs(o.chainageM - s.chainageM) < EPS_M)?.id ?? null,
+        expectedAt: expectedAtAhead(forecast, geology, s.aheadM)?.toISOString() ?? null,
       };
     }),
   });
-  const optimised = view(result.optimised);
-  const hand = view(result.hand);
+  const optimised = view(result.optimised)!;
+  const practice = view(result.practice);
+  const fixedInterval = view(result.fixedInterval);
+  const { certificate } = result;
   return {
     ...base,
     optimised,
-    hand,
-    savingH: result.savingH,
-    cautions: stopCautions([...optimised.stops, ...hand.stops].some((s) => s.compressedAir)),
+    certificate: { proven: certificate.proven, gapPercent: 100 * certificate.gap, lowerBoundH: certificate.lowerBoundH },
+    practice,
+    fixedInterval,
+    savingVsPracticeH: practice && practice.cost.totalH - optimised.cost.totalH,
+    savingVsIntervalH: fixedInterval && fixedInterval.cost.totalH - optimised.cost.totalH,
+    cautions: stopCautions([optimised, practice, fixedInterval].some((p) => p?.stops.some((s) => s.compressedAir))),
   };
 }
 

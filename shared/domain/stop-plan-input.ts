@@ -120,3 +120,34 @@ export function buildStopPlanInput(forecast: PlannerForecast, geology: DriveGeol
     wastedRingLifeHPerMm: settings.wastedRingLifeHPerMm,
   };
 }
+
+/**
+ * The expected moment the machine reaches `aheadByM` metres ahead, walking the known ground at the
+ * forecast's advance rate per ground (m/day) from `now`; null past the known ground.
+ */
+export function expectedAtAhead(forecast: PlannerForecast, geology: DriveGeology, aheadByM: number): Date | null {
+  const position = forecast.positions[0];
+  if (!position || forecast.currentChainageM == null) return null;
+  const walk = forecastChangeOut({
+    position: { ...position.position, allowableWearMm: Infinity },
+    wearNow: position.explanation.wearNow,
+    currentChainageM: forecast.currentChainageM,
+    currentRingNumber: forecast.currentRingNumber!,
+    ringLengthM: geology.ringLengthM,
+    driveDirection: geology.direction,
+    geology: geology.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
+    rates: forecast.rates,
+    penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
+    advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
+    overcutMarginMm: 0,
+    now: forecast.now,
+  });
+  let fromM = 0;
+  let days = 0;
+  for (const s of walk.explanation.sections) {
+    if (aheadByM <= fromM + s.lengthM) return new Date(forecast.now.getTime() + (days + (aheadByM - fromM) / s.advanceMPerDay) * 86_400_000);
+    fromM += s.lengthM;
+    days += s.days;
+  }
+  return null;
+}

@@ -1,7 +1,13 @@
 /**
  * Intervention-stop planner: where to stop along the drive, and which cutterhead positions to
  * change at each stop, so that no position passes its cautious (P90) wear limit inside the
- * planning horizon, at the least total cost. Exact.
+ * planning horizon, at the least total cost, with a certificate: proven cheapest, or at most X %
+ * above the cheapest possible plan (X from a lower bound, ./stop-planner-steps/lagrangian.ts).
+ *
+ * Steps, one file each under ./stop-planner-steps/: model.ts (prepare the input; the cost model, written
+ * once), baselines.ts (the latest-change plan, the site-practice rule, the fixed-interval rule),
+ * bounds.ts (lower bounds for the search), lagrangian.ts (the certificate's lower bound and plans
+ * found from it), search.ts (the exact search).
  *
  * Model (distances in metres ahead of the current chainage, along the drive)
  * - Position i wears at a cautious rate given per stretch ahead (mm per m of advance, e.g. the
@@ -61,20 +67,30 @@
  * polynomial exact method for it): it grows with how often the fastest-wearing positions fall
  * due inside the horizon. Measured in tests/bench/stop-planner.bench.ts.
  *
- * Hand plan, for comparison: stop at the last allowed place before the first position is due,
- * change there only what would be due before the next such stop, repeat. That changes every
- * ring at its own latest place, so it is feasible exactly when any plan is; an instance is
- * infeasible exactly when some ring falls due before the next allowed place, reported per
- * position with the ring and the places around its due point.
+ * Certificate: the Lagrangian bound L ≤ cheapest plan; a plan of H hours is then at most
+ * (H − L)/L above the cheapest. When the exact search runs to the end, the plan is proven cheapest.
+ *
+ * Feasibility: changing every ring at its own latest place (the latest-change plan) is feasible
+ * exactly when any plan is; an instance is infeasible exactly when some ring falls due before the
+ * next allowed place, reported per position with the ring and the places around its due point.
+ *
+ * Comparisons: the site-practice rule (stop when the first disc reaches its cautious limit, change
+ * every disc worn past a share of its limit, default 80 %) and a stop every N metres; both are
+ * priced with the same cost model, so the saving can be checked from the plans' own tables.
  */
 import type { DriveDirection, PositionClass } from './forecast';
-import { latestChangePlan, ownLatestChains } from './stop-planner/baselines';
-import { searchBounds } from './stop-planner/bounds';
-import { prepare, pricePlan, validate } from './stop-planner/model';
-import { exactSearch } from './stop-planner/search';
+import { fixedIntervalPlan, latestChangePlan, ownLatestChains, practicePlan } from './stop-planner-steps/baselines';
+import { searchBounds } from './stop-planner-steps/bounds';
+import { lagrangianBound } from './stop-planner-steps/lagrangian';
+import { prepare, pricePlan, validate } from './stop-planner-steps/model';
+import { exactSearch } from './stop-planner-steps/search';
 
 /** States expanded per place by the first, quick pass that finds a good plan to bound the exact pass. */
 const QUICK_PASS_STATES = 8;
+/** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
+const BOUND_ITERATIONS = 400;
+/** The bound stops improving once the plan is certified within this share. */
+const TARGET_GAP = 0.005;
 
 /** Cautious wear growth from `fromAheadM` (m ahead) until the next stretch starts; the last one runs on. */
 export interface WearStretch {
@@ -148,41 +164,97 @@ export interface InfeasiblePosition {
   reason: string;
 }
 
+/** How close the plan is to the cheapest possible one. */
+export interface PlanCertificate {
+  /** Every plan of this instance costs at least this many hours. */
+  lowerBoundH: number;
+  /** True when the plan is proven the cheapest (exact search run to the end, or bound reached). */
+  proven: boolean;
+  /** (plan hours − lower bound) / lower bound: the plan is at most this share above the cheapest; 0 when proven. */
+  gap: number;
+}
+
 export type StopPlanResult =
   | {
       feasible: true;
       optimised: StopPlan;
-      hand: StopPlan;
-      /** Hand plan hours less optimised plan hours. */
-      savingH: number;
+      certificate: PlanCertificate;
+      /** The site-practice rule's plan (null if the rule gets stuck: a new ring would pass its limit before the next place). */
+      practice: StopPlan | null;
+      /** A stop every `intervalM` metres (null if the rule gets stuck). */
+      fixedInterval: StopPlan | null;
       /** Search states expanded, a measure of the work done. */
       statesExpanded: number;
-      /** False when the exact search hit `maxStates` and the plan is the best found, not proven cheapest. */
+      /** Same as certificate.proven. */
       provenOptimal: boolean;
     }
   | { feasible: false; problems: InfeasiblePosition[] };
 
+/** The rules the optimised plan is compared with (planner settings). */
+export interface ComparisonRules {
+  /** Site practice: at a stop, change every disc worn to at least this share of its limit. Common practice, no source. */
+  changeShare: number;
+  /** Fixed interval: a stop every this many metres. */
+  intervalM: number;
+}
+
+/** Defaults of the comparison rules: 80 % of the limit (common practice, no source), a stop every 250 m (common practice, no source). */
+export const DEFAULT_COMPARISON_RULES: ComparisonRules = { changeShare: 0.8, intervalM: 250 };
+
+export interface PlanStopsOptions {
+  /** States expanded per place by the quick first pass of the search (0 skips it); only the time changes. */
+  quickPassStates?: number;
+  /** Cap on the exact search (a server must answer in time); past it the plan is the best found, with its certificate. */
+  maxStates?: number;
+  /** Steps of the Lagrangian bound (0 skips it; the certificate is then the search's only). */
+  boundIterations?: number;
+  /** The bound stops improving once the plan is within this share of it. */
+  targetGap?: number;
+  rules?: ComparisonRules;
+}
+
 /**
- * Plans the intervention stops over the horizon: the cheapest plan (hours of stops + changes +
- * ring life thrown away), the hand plan for comparison and the saving in hours, or the
- * positions that no plan can keep within their limit. `quickPassStates` tunes the first pass
- * (0 skips it); the result is the same, only the time changes. `maxStates` caps the exact pass
- * (a server must answer in time): past it the best plan found so far is returned, marked
- * `provenOptimal: false`; it is never worse than the hand plan.
+ * Plans the intervention stops over the horizon: the cheapest plan found (hours of stops + changes
+ * + ring life thrown away) with its certificate, the site-practice and fixed-interval plans for
+ * comparison, or the positions that no plan can keep within their limit.
  */
-export function planStops(
-  input: StopPlanInput,
-  { quickPassStates = QUICK_PASS_STATES, maxStates = Infinity }: { quickPassStates?: number; maxStates?: number } = {},
-): StopPlanResult {
+export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}): StopPlanResult {
+  const { quickPassStates = QUICK_PASS_STATES, maxStates = Infinity, boundIterations = BOUND_ITERATIONS, targetGap = TARGET_GAP, rules = DEFAULT_COMPARISON_RULES } = options;
+  if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
+  if (!(rules.intervalM > 0)) throw new RangeError(`interval must be > 0 m, got ${rules.intervalM}`);
   // Step 1: prepare.
   validate(input);
   const prep = prepare(input);
   // Step 2: baseline plans; the latest-change plan decides feasibility.
   const { chains, problems } = ownLatestChains(prep);
   if (problems.length > 0) return { feasible: false, problems };
-  const hand = pricePlan(prep, latestChangePlan(chains));
-  // Steps 3 and 4: bounds, then the search.
-  const found = exactSearch(prep, searchBounds(prep), { quickPassStates, maxStates, boundH: hand.cost.totalH });
-  const optimised = found.plan === null ? hand : pricePlan(prep, found.plan);
-  return { feasible: true, optimised, hand, savingH: hand.cost.totalH - optimised.cost.totalH, statesExpanded: found.statesExpanded, provenOptimal: found.complete };
+  const practiceIdx = practicePlan(prep, rules.changeShare);
+  const intervalIdx = fixedIntervalPlan(prep, rules.intervalM, rules.changeShare);
+  const practice = practiceIdx && pricePlan(prep, practiceIdx);
+  const fixedInterval = intervalIdx && pricePlan(prep, intervalIdx);
+  let best = [pricePlan(prep, latestChangePlan(chains)), practice, fixedInterval]
+    .filter((p): p is StopPlan => p !== null)
+    .reduce((a, b) => (b.cost.totalH < a.cost.totalH ? b : a));
+  // Step 3: the lower bound, and plans found from it.
+  const relaxed = best.cost.totalH > 0 && boundIterations > 0 ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap }) : null;
+  if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
+  // Step 4: the exact search, bounded by the best plan so far.
+  const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);
+  const found = proven0 ? { plan: null, statesExpanded: 0, complete: true } : exactSearch(prep, searchBounds(prep), { quickPassStates, maxStates, boundH: best.cost.totalH });
+  if (found.plan !== null) {
+    const searched = pricePlan(prep, found.plan);
+    if (searched.cost.totalH < best.cost.totalH) best = searched;
+  }
+  const totalH = best.cost.totalH;
+  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0));
+  const gap = found.complete || totalH <= lowerBoundH ? 0 : lowerBoundH > 0 ? (totalH - lowerBoundH) / lowerBoundH : Infinity;
+  return {
+    feasible: true,
+    optimised: best,
+    certificate: { lowerBoundH, proven: found.complete, gap },
+    practice,
+    fixedInterval,
+    statesExpanded: found.statesExpanded,
+    provenOptimal: found.complete,
+  };
 }
