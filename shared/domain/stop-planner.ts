@@ -81,7 +81,7 @@
 import type { DriveDirection, PositionClass } from './forecast';
 import { fixedIntervalPlan, latestChangePlan, ownLatestChains, practicePlan } from './stop-planner-steps/baselines';
 import { searchBounds } from './stop-planner-steps/bounds';
-import { lagrangianBound } from './stop-planner-steps/lagrangian';
+import { lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
 import { prepare, pricePlan, validate } from './stop-planner-steps/model';
 import { exactSearch } from './stop-planner-steps/search';
 
@@ -240,13 +240,16 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
   // Step 4: the exact search, bounded by the best plan so far.
   const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);
-  const found = proven0 ? { plan: null, statesExpanded: 0, complete: true } : exactSearch(prep, searchBounds(prep), { quickPassStates, maxStates, boundH: best.cost.totalH });
+  const restBoundH = relaxed ? lagrangianRestBound(prep, relaxed.lambda) : undefined;
+  const found = proven0
+    ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
+    : exactSearch(prep, searchBounds(prep), { quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
     if (searched.cost.totalH < best.cost.totalH) best = searched;
   }
   const totalH = best.cost.totalH;
-  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0));
+  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH));
   const gap = found.complete || totalH <= lowerBoundH ? 0 : lowerBoundH > 0 ? (totalH - lowerBoundH) / lowerBoundH : Infinity;
   return {
     feasible: true,

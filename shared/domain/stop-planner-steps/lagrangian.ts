@@ -138,6 +138,8 @@ export interface LagrangianResult {
   plan: IndexPlan | null;
   planH: number;
   iterations: number;
+  /** The multipliers of the best bound. */
+  lambda: Float64Array[];
 }
 
 /**
@@ -149,6 +151,7 @@ export function lagrangianBound(prep: Prepared, { iterations, upperH, targetGap 
   const m = prep.aheadM.length;
   const lambda = Array.from({ length: n }, () => new Float64Array(m));
   let lowerH = -Infinity;
+  let bestLambda: Float64Array[] = lambda;
   let bestPlan: IndexPlan | null = null;
   let bestH = upperH;
   let theta = 2;
@@ -179,6 +182,7 @@ export function lagrangianBound(prep: Prepared, { iterations, upperH, targetGap 
     }
     if (it === 0 || valueH > lowerH + 1e-9 * (1 + Math.abs(lowerH))) {
       lowerH = valueH;
+      bestLambda = lambda.map((l) => l.slice());
       sinceGain = 0;
     } else if (++sinceGain >= STALL_STEPS) {
       theta /= 2;
@@ -222,5 +226,81 @@ export function lagrangianBound(prep: Prepared, { iterations, upperH, targetGap 
       }
     }
   }
-  return { lowerH, plan: bestPlan, planH: bestH, iterations: it };
+  return { lowerH, plan: bestPlan, planH: bestH, iterations: it, lambda: bestLambda };
+}
+
+/**
+ * The Lagrangian bound on the rest of a plan from a search state, for multipliers λ: at place q
+ * (whose stop is already paid, so changes there carry no λ), with each position's fitted ring
+ * reaching `reach[i]` with budget `budgetMm[i]`, every completion costs at least
+ *   Σ_{j>q} min(0, s_j − Σ_i λ_ij) + Σ_i min over chains from that ring (cost_i + Σ_{j>q} λ_ij)
+ * (the same weak-duality argument as above, for the stops still to choose). Per position the
+ * cheapest chain after a ring fitted at j is precomputed backwards (togo), and the first change
+ * is a range minimum (sparse table), so a state costs O(n).
+ */
+export function lagrangianRestBound(prep: Prepared, lambda: Float64Array[]): (q: number, reach: Int32Array, budgetMm: Float64Array) => number {
+  const n = prep.input.positions.length;
+  const m = prep.aheadM.length;
+  const { done, v } = prep;
+  const stopAfterH = new Float64Array(m + 1);
+  for (let j = m - 1; j >= 0; j--) {
+    let sigmaH = 0;
+    for (let i = 0; i < n; i++) sigmaH += lambda[i][j];
+    stopAfterH[j] = stopAfterH[j + 1] + Math.min(0, prep.stopH[j] - sigmaH);
+  }
+  // stopAfterH[j] sums places ≥ j; the bound at q needs places > q: stopAfterH[q + 1].
+  const levels = Math.max(1, Math.ceil(Math.log2(m + 1)) + 1);
+  const togo: Float64Array[] = [];
+  const tables: Float64Array[][] = [];
+  for (let i = 0; i < n; i++) {
+    const reach = prep.reachNew[i];
+    const w = prep.wearAt[i];
+    const lam = lambda[i];
+    const t = new Float64Array(m);
+    const h = new Float64Array(m); // h(k) = −v·W(k) + λ_ik + togo(k): what a change at k adds, less its fixed part
+    const deque = new Int32Array(m);
+    let front = m;
+    let back = m; // deque occupies [front, back): smallest k at the front
+    const fixedH = prep.changeH[i] + v * prep.limitMm[i];
+    for (let j = m - 1; j >= 0; j--) {
+      if (j + 1 < m && h[j + 1] < Infinity) {
+        const val = h[j + 1];
+        while (back > front && h[deque[front]] >= val) front++;
+        deque[--front] = j + 1;
+      }
+      if (reach[j] === done) t[j] = 0;
+      else {
+        while (back > front && deque[back - 1] > reach[j]) back--;
+        t[j] = back > front ? fixedH + v * w[j] + h[deque[back - 1]] : Infinity;
+      }
+      h[j] = -v * w[j] + lam[j] + t[j];
+    }
+    togo.push(t);
+    const table = [h];
+    for (let l = 1; l < levels; l++) {
+      const prev = table[l - 1];
+      const span = 1 << (l - 1);
+      const cur = new Float64Array(m);
+      for (let k = 0; k < m; k++) cur[k] = k + span < m ? Math.min(prev[k], prev[k + span]) : prev[k];
+      table.push(cur);
+    }
+    tables.push(table);
+  }
+  const rangeMin = (i: number, lo: number, hi: number) => {
+    if (lo > hi) return Infinity;
+    const l = 31 - Math.clz32(hi - lo + 1);
+    const t = tables[i][l];
+    return Math.min(t[lo], t[hi - (1 << l) + 1]);
+  };
+  return (q, reach, budgetMm) => {
+    let restH = stopAfterH[q + 1];
+    for (let i = 0; i < n; i++) {
+      const r = reach[i];
+      if (r === done) continue;
+      const atQ = r >= q ? -v * prep.wearAt[i][q] + togo[i][q] : Infinity;
+      const later = rangeMin(i, q + 1, Math.min(r, m - 1));
+      restH += prep.changeH[i] + v * budgetMm[i] + Math.min(atQ, later);
+    }
+    return restH;
+  };
 }

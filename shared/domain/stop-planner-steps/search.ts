@@ -33,6 +33,8 @@ export interface SearchOptions {
   maxStates: number;
   /** Hours of a plan already known (the search looks only for cheaper ones). */
   boundH: number;
+  /** A lower bound on the rest from a state at place q (./lagrangian.ts), if known. */
+  restBoundH?: (q: number, reach: Int32Array, budgetMm: Float64Array) => number;
 }
 
 export interface SearchResult {
@@ -42,9 +44,11 @@ export interface SearchResult {
   statesExpanded: number;
   /** True when the exact pass ran to the end: no plan cheaper than `bestH` exists. */
   complete: boolean;
+  /** No plan costs less than this: `bestH` when complete, else the least bound over the states left. */
+  lowerH: number;
 }
 
-export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassStates, maxStates, boundH }: SearchOptions): SearchResult {
+export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassStates, maxStates, boundH, restBoundH }: SearchOptions): SearchResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
   const { done } = prep;
@@ -53,7 +57,7 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
   const startReach = Int32Array.from(prep.startBudgetMm, (b, i) => lastReachable(prep, i, b));
   const startBudgetMm = Float64Array.from(prep.startBudgetMm);
   const firstLim = startReach.reduce((a, r) => Math.min(a, r), done);
-  if (firstLim === done) return { plan: [], bestH: 0, statesExpanded: 0, complete: true };
+  if (firstLim === done) return { plan: [], bestH: 0, statesExpanded: 0, complete: true, lowerH: 0 };
   // State hashes: Σ (reach + 1)·c_i over two sets of odd 32-bit multipliers, updated per change.
   const hashA = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x9e3779b1) | 1);
   const hashB = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x85ebca77) | 1);
@@ -92,6 +96,12 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
 
   let statesExpanded = 0;
   let stoppedEarly = false;
+  let frontierH = Infinity;
+  const stateBoundH = (l: Label) => {
+    if (!restBoundH) return l.costH + stopsAfterH[l.idx] + l.ownH;
+    const { reach, budgetMm } = fill(l);
+    return Math.max(l.costH + stopsAfterH[l.idx] + l.ownH, l.costH + restBoundH(l.idx, reach, budgetMm));
+  };
   // One pass over the places in order; `beamWidth` caps the states expanded per place (Infinity:
   // exact). Returns the best plan costing less than `boundH`, if any.
   const pass = (beamWidth: number, passBoundH: number) => {
@@ -119,9 +129,11 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
     for (let q = 0; q < m; q++) {
       if (beamWidth === Infinity && statesExpanded > maxStates) {
         stoppedEarly = true;
+        // Every plan cheaper than the best found passes through a state left here.
+        for (let r = q; r < m; r++) for (const held of buckets[r].values()) for (const l of held) frontierH = Math.min(frontierH, stateBoundH(l));
         break;
       }
-      const entries = [...buckets[q].values()].flat().filter((l) => l.costH + stopsAfterH[q] + l.ownH < bestH - tolH);
+      const entries = [...buckets[q].values()].flat().filter((l) => stateBoundH(l) < bestH - tolH);
       buckets[q].clear();
       const filled = new Map(entries.map((e) => [e, fill(e)]));
       // Dominance, comparing only the positions whose reach differs between the states here.
@@ -207,7 +219,8 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
   const exact = pass(Infinity, quick.bestH);
   const best = exact.best ?? quick.best;
   const bestH = exact.best ? exact.bestH : quick.bestH;
-  if (best === null) return { plan: null, bestH, statesExpanded, complete: !stoppedEarly };
+  const lowerH = stoppedEarly ? Math.min(bestH, frontierH) : bestH;
+  if (best === null) return { plan: null, bestH, statesExpanded, complete: !stoppedEarly, lowerH };
   const plan: IndexPlan = [];
   let changedUpTo = best.changedUpTo;
   for (let l: Label | null = best.last; l !== null; l = l.parent) {
@@ -215,5 +228,5 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
     plan.unshift({ idx: l.idx, changed: [...reach.keys()].filter((i) => reach[i] !== done && reach[i] <= changedUpTo) });
     changedUpTo = l.changedUpTo;
   }
-  return { plan, bestH, statesExpanded, complete: !stoppedEarly };
+  return { plan, bestH, statesExpanded, complete: !stoppedEarly, lowerH };
 }
