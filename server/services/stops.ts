@@ -7,14 +7,15 @@ import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
 import { aheadM, chainageAhead, formatChainage, ringAtAhead } from '../../shared/domain/chainage';
 import { COMPRESSED_AIR_CAUTION, needsCompressedAir, workingPressureFromHead } from '../../shared/domain/compressed-air';
-import { forecastChangeOut, type DriveDirection, type PositionClass } from '../../shared/domain/forecast';
-import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
+import type { PositionClass } from '../../shared/domain/forecast';
+import { buildStopPlanInput, expectedAtAhead, knownGroundAheadM, PLACE_EPS_M, stopPlaceAt, type DriveGeology } from '../../shared/domain/stop-plan-input';
+import { planStops, type StopPlan } from '../../shared/domain/stop-planner';
 import { partsKit } from '../../shared/domain/work-pack';
 import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
 import type { DbOrTx } from '../db/client';
-import { crewMembers, crews, cutters, fittings, geologySections, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
+import { crewMembers, crews, cutters, fittings, geologySections, groundTypes, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
 import { NotFoundError } from '../lib/errors';
-import { computeForecast, type ProjectForecast } from './forecast';
+import { computeForecast } from './forecast';
 
 /**
  * The plan's assumptions. Common practice, no source; site-adjustable (every one can be overridden
@@ -25,6 +26,8 @@ import { computeForecast, type ProjectForecast } from './forecast';
  */
 /** States the exact stop search may expand in one request (about 1–2 s on the project’s 2-core machine). */
 export const PLANNER_MAX_STATES = 3_000;
+/** Steps of the lower bound per request (about 1 s on the demo drive; `npm run bench`). */
+export const PLANNER_BOUND_ITERATIONS = 300;
 
 export const defaultStopPlanSettings = {
   horizonM: 2000,
@@ -32,108 +35,19 @@ export const defaultStopPlanSettings = {
   compressedAirStopH: 14,
   changeHByClass: { centre: 1.5, face: 1.0, gauge: 1.25 } as Record<PositionClass, number>,
   wastedRingLifeHPerMm: 0.2,
+  /** Site-practice rule: change every disc past 80 % of its limit at a stop (common practice, no source). */
+  practiceChangeSharePercent: 80,
+  /** Fixed-interval rule: a stop every 250 m (common practice, no source). */
+  fixedIntervalM: 250,
 };
 
 
-/** The long section as the planner reads it, and how chainage turns into rings. */
-export interface DriveGeology {
-  sections: { chainageFromM: number; chainageToM: number; groundTypeId: string | null; waterHeadM: number; stopAllowed: boolean; stopReason: string }[];
-  ringLengthM: number;
-  direction: DriveDirection;
-}
 
-/** Chainage tolerance, m: absorbs rounding when a stop is matched to a section boundary or a plan place. */
-const EPS_M = 1e-6;
-
-/**
- * Whether a stop may be made at `chainageM`, and the water head there (m). On a boundary between
- * two sections both must allow a stop, and the higher head counts (cautious).
- */
-export function stopPlaceAt(sections: DriveGeology['sections'], chainageM: number): { allowed: boolean; waterHeadM: number | null; reason: string | null } {
-  const touching = sections.filter((s) => s.chainageFromM - EPS_M <= chainageM && chainageM <= s.chainageToM + EPS_M);
-  if (touching.length === 0) return { allowed: false, waterHeadM: null, reason: 'it lies outside the geology long section' };
-  const waterHeadM = Math.max(...touching.map((s) => s.waterHeadM));
-  const refusing = touching.find((s) => !s.stopAllowed);
-  if (refusing) return { allowed: false, waterHeadM, reason: refusing.stopReason || 'the long section allows no stop there' };
-  return { allowed: true, waterHeadM, reason: null };
-}
+/** Chainage tolerance, m: absorbs rounding when a stop is matched to a plan place. */
+const EPS_M = PLACE_EPS_M;
 
 /** Indicative working pressure (bar) from the water head; null where there is no head above the axis. */
 const pressureBar = (waterHeadM: number | null) => (waterHeadM != null && waterHeadM > 0 ? workingPressureFromHead(waterHeadM).pressureBar : null);
-
-/**
- * Metres of known ground ahead of the machine: how far the forecast can walk. The planner's
- * horizon is cut there, as no stop place or wear rate is known beyond.
- */
-function knownGroundAheadM(geology: DriveGeology, currentChainageM: number): number {
-  const sign = geology.direction === 'increasing' ? 1 : -1;
-  return Math.max(0, ...geology.sections.map((s) => Math.max((s.chainageFromM - currentChainageM) * sign, (s.chainageToM - currentChainageM) * sign)));
-}
-
-/**
- * Cautious (P90) wear growth per metre ahead of one position over the whole known ground. The
- * forecast's own explanation stops at the position's limit point; a ring fitted later wears on
- * through the ground beyond, so the same forecast walk is repeated with the limit lifted.
- */
-function p90WearStretches(position: ProjectForecast['positions'][number], forecast: ProjectForecast, geology: DriveGeology): WearStretch[] {
-  const walk = forecastChangeOut({
-    position: { ...position.position, allowableWearMm: Infinity },
-    wearNow: position.explanation.wearNow,
-    currentChainageM: forecast.currentChainageM!,
-    currentRingNumber: forecast.currentRingNumber!,
-    ringLengthM: geology.ringLengthM,
-    driveDirection: geology.direction,
-    geology: geology.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
-    rates: forecast.rates,
-    penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
-    advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
-    overcutMarginMm: 0,
-    now: forecast.now,
-  });
-  let fromAheadM = 0;
-  return walk.explanation.sections.map((s) => {
-    const stretch = { fromAheadM, wearMmPerM: s.wearMmPerM.p90 };
-    fromAheadM += s.lengthM;
-    return stretch;
-  });
-}
-
-/**
- * The stop planner's input from a project's forecast (P90 wear now, limits, P90 wear growth per
- * metre ahead), its long section (a candidate place at every ring boundary ahead, within the
- * horizon and the known ground, where a stop is allowed; compressed air above the site's water
- * head) and the cost settings. Needs a forecast with a known machine position.
- */
-export function buildStopPlanInput(forecast: ProjectForecast, geology: DriveGeology, settings: StopPlanSettings): StopPlanInput {
-  const currentChainageM = forecast.currentChainageM;
-  if (currentChainageM == null || forecast.currentRingNumber == null) throw new RangeError('the machine position is not known: no advance log');
-  const sign = geology.direction === 'increasing' ? 1 : -1;
-  const horizonM = Math.min(settings.horizonM, knownGroundAheadM(geology, currentChainageM));
-  const stopPlaces: StopPlanInput['stopPlaces'] = [];
-  for (let k = 0; k * geology.ringLengthM <= horizonM + EPS_M; k++) {
-    const chainageM = currentChainageM + sign * k * geology.ringLengthM;
-    const place = stopPlaceAt(geology.sections, chainageM);
-    if (place.allowed) stopPlaces.push({ chainageM, compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: settings.compressedAirAboveHeadM }) });
-  }
-  return {
-    currentChainageM,
-    direction: geology.direction,
-    horizonM,
-    positions: forecast.positions.map((p) => ({
-      positionId: p.position.positionId,
-      positionClass: p.position.positionClass,
-      wearNowMm: p.explanation.wearNowMm.p90,
-      limitMm: p.position.allowableWearMm,
-      wearStretches: p90WearStretches(p, forecast, geology),
-    })),
-    stopPlaces,
-    freeAirStopH: settings.freeAirStopH,
-    compressedAirStopH: settings.compressedAirStopH,
-    changeHByClass: settings.changeHByClass,
-    wastedRingLifeHPerMm: settings.wastedRingLifeHPerMm,
-  };
-}
-
 
 export type ProjectStopPlan = StopPlanView<Date>;
 
@@ -156,6 +70,8 @@ function planSettings(project: { compressedAirAboveHeadM: number }, overrides: S
     },
     wastedRingLifeHPerMm: overrides.wastedRingLifeHPerMm ?? d.wastedRingLifeHPerMm,
     compressedAirAboveHeadM: overrides.compressedAirAboveHeadM ?? project.compressedAirAboveHeadM,
+    practiceChangeSharePercent: overrides.practiceChangeSharePercent ?? d.practiceChangeSharePercent,
+    fixedIntervalM: overrides.fixedIntervalM ?? d.fixedIntervalM,
   };
 }
 
@@ -177,7 +93,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const geology = await loadDriveGeology(tx, project);
   const empty: ProjectStopPlan = {
     now, currentChainageM: forecast.currentChainageM, currentRingNumber: forecast.currentRingNumber, settings, horizonEndChainageM: null,
-    candidatePlaceCount: 0, problems: [...forecast.problems], infeasible: [], optimised: null, hand: null, savingH: null, cautions: [CUTTERHEAD_ENTRY_CAUTION],
+    candidatePlaceCount: 0, longSection: [], compressedAirAboveHeadM: settings.compressedAirAboveHeadM, problems: [...forecast.problems], infeasible: [], optimised: null, certificate: null, practice: null, fixedInterval: null, savingVsPracticeH: null, savingVsIntervalH: null, cautions: [CUTTERHEAD_ENTRY_CAUTION],
   };
   if (forecast.currentChainageM == null || forecast.positions.length === 0) return empty;
   const knownM = knownGroundAheadM(geology, forecast.currentChainageM);
@@ -187,7 +103,12 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const byId = new Map(forecast.positions.map((p) => [p.position.positionId, p.position]));
   // The exact search can grow fast on abrasive ground; a request must answer in seconds, so the
   // server caps it (DEVELOPERS.md, decision 24) and says when the plan is not proven cheapest.
-  const first = planStops(fullInput, { maxStates: PLANNER_MAX_STATES });
+  const options = {
+    maxStates: PLANNER_MAX_STATES,
+    boundIterations: PLANNER_BOUND_ITERATIONS,
+    rules: { changeShare: settings.practiceChangeSharePercent / 100, intervalM: settings.fixedIntervalM },
+  };
+  const first = planStops(fullInput, options);
   const infeasible = first.feasible
     ? []
     : first.problems
@@ -197,10 +118,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   // need the stops before it, and the problem is shown beside them.
   const reachM = first.feasible ? fullInput.horizonM : Math.min(...first.problems.map((p) => p.dueAheadM)) - 1e-3;
   const input = first.feasible ? fullInput : { ...fullInput, horizonM: reachM };
-  const result = first.feasible ? first : reachM > 0 ? planStops(input, { maxStates: PLANNER_MAX_STATES }) : first;
-  if (result.feasible && !result.provenOptimal) {
-    problems0.push(`The search stopped after ${PLANNER_MAX_STATES.toLocaleString('en')} states: this is the best plan found, not proven the cheapest. A shorter horizon gives an exact answer.`);
-  }
+  const result = first.feasible ? first : reachM > 0 ? planStops(input, options) : first;
   const horizonEndChainageM = chainageAhead(forecast.currentChainageM, Math.max(0, input.horizonM), geology.direction);
   const problems = [...empty.problems, ...problems0];
   if (knownM < settings.horizonM) problems.push(`The long section ends ${knownM.toFixed(0)} m ahead of the machine: the plan stops there, short of the ${settings.horizonM} m horizon.`);
@@ -212,11 +130,19 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
     );
   }
   const candidatePlaceCount = input.stopPlaces.filter((p) => aheadM(forecast.currentChainageM!, p.chainageM, geology.direction) <= input.horizonM).length;
-  const base = { ...empty, horizonEndChainageM, candidatePlaceCount, problems, infeasible };
+  const names = new Map((await tx.select({ id: groundTypes.id, name: groundTypes.name }).from(groundTypes).where(eq(groundTypes.projectId, projectId))).map((g) => [g.id, g.name]));
+  const [lowM, highM] = [Math.min(forecast.currentChainageM, horizonEndChainageM), Math.max(forecast.currentChainageM, horizonEndChainageM)];
+  const longSection = geology.sections
+    .filter((s) => s.chainageToM > lowM && s.chainageFromM < highM)
+    .map((s) => ({
+      chainageFromM: Math.max(s.chainageFromM, lowM), chainageToM: Math.min(s.chainageToM, highM), groundName: s.groundTypeId ? names.get(s.groundTypeId) ?? null : null,
+      waterHeadM: s.waterHeadM, stopAllowed: s.stopAllowed, stopReason: s.stopReason,
+    }));
+  const base = { ...empty, horizonEndChainageM, candidatePlaceCount, longSection, problems, infeasible };
   if (!result.feasible) return base;
 
   const open = await tx.select({ id: stops.id, chainageM: stops.chainageM }).from(stops).where(and(eq(stops.projectId, projectId), inArray(stops.status, openStatuses)));
-  const view = (plan: StopPlan): PlanView => ({
+  const view = (plan: StopPlan | null): PlanView | null => plan && ({
     cost: plan.cost,
     stops: plan.stops.map((s) => {
       const { waterHeadM } = stopPlaceAt(geology.sections, s.chainageM);
@@ -237,17 +163,23 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
           })
           .sort((a, b) => a.positionNumber - b.positionNumber),
         existingStopId: open.find((o) => Math.abs(o.chainageM - s.chainageM) < EPS_M)?.id ?? null,
+        expectedAt: expectedAtAhead(forecast, geology, s.aheadM)?.toISOString() ?? null,
       };
     }),
   });
-  const optimised = view(result.optimised);
-  const hand = view(result.hand);
+  const optimised = view(result.optimised)!;
+  const practice = view(result.practice);
+  const fixedInterval = view(result.fixedInterval);
+  const { certificate } = result;
   return {
     ...base,
     optimised,
-    hand,
-    savingH: result.savingH,
-    cautions: stopCautions([...optimised.stops, ...hand.stops].some((s) => s.compressedAir)),
+    certificate: { proven: certificate.proven, gapPercent: 100 * certificate.gap, lowerBoundH: certificate.lowerBoundH },
+    practice,
+    fixedInterval,
+    savingVsPracticeH: practice && practice.cost.totalH - optimised.cost.totalH,
+    savingVsIntervalH: fixedInterval && fixedInterval.cost.totalH - optimised.cost.totalH,
+    cautions: stopCautions([optimised, practice, fixedInterval].some((p) => p?.stops.some((s) => s.compressedAir))),
   };
 }
 

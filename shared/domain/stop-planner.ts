@@ -1,7 +1,13 @@
 /**
  * Intervention-stop planner: where to stop along the drive, and which cutterhead positions to
  * change at each stop, so that no position passes its cautious (P90) wear limit inside the
- * planning horizon, at the least total cost. Exact.
+ * planning horizon, at the least total cost, with a certificate: proven cheapest, or at most X %
+ * above the cheapest possible plan (X from a lower bound, ./stop-planner-steps/lagrangian.ts).
+ *
+ * Steps, one file each under ./stop-planner-steps/: model.ts (prepare the input; the cost model, written
+ * once), baselines.ts (the latest-change plan, the site-practice rule, the fixed-interval rule),
+ * bounds.ts (lower bounds for the search), lagrangian.ts (the certificate's lower bound and plans
+ * found from it), search.ts (the exact search).
  *
  * Model (distances in metres ahead of the current chainage, along the drive)
  * - Position i wears at a cautious rate given per stretch ahead (mm per m of advance, e.g. the
@@ -61,14 +67,30 @@
  * polynomial exact method for it): it grows with how often the fastest-wearing positions fall
  * due inside the horizon. Measured in tests/bench/stop-planner.bench.ts.
  *
- * Hand plan, for comparison: stop at the last allowed place before the first position is due,
- * change there only what would be due before the next such stop, repeat. That changes every
- * ring at its own latest place, so it is feasible exactly when any plan is; an instance is
- * infeasible exactly when some ring falls due before the next allowed place, reported per
- * position with the ring and the places around its due point.
+ * Certificate: the Lagrangian bound L ≤ cheapest plan; a plan of H hours is then at most
+ * (H − L)/L above the cheapest. When the exact search runs to the end, the plan is proven cheapest.
+ *
+ * Feasibility: changing every ring at its own latest place (the latest-change plan) is feasible
+ * exactly when any plan is; an instance is infeasible exactly when some ring falls due before the
+ * next allowed place, reported per position with the ring and the places around its due point.
+ *
+ * Comparisons: the site-practice rule (stop when the first disc reaches its cautious limit, change
+ * every disc worn past a share of its limit, default 80 %) and a stop every N metres; both are
+ * priced with the same cost model, so the saving can be checked from the plans' own tables.
  */
-import { directionSign } from './chainage';
 import type { DriveDirection, PositionClass } from './forecast';
+import { fixedIntervalPlan, latestChangePlan, ownLatestChains, practicePlan } from './stop-planner-steps/baselines';
+import { searchBounds } from './stop-planner-steps/bounds';
+import { lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
+import { prepare, pricePlan, validate } from './stop-planner-steps/model';
+import { exactSearch } from './stop-planner-steps/search';
+
+/** States expanded per place by the first, quick pass that finds a good plan to bound the exact pass. */
+const QUICK_PASS_STATES = 8;
+/** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
+const BOUND_ITERATIONS = 400;
+/** The bound stops improving once the plan is certified within this share. */
+const TARGET_GAP = 0.005;
 
 /** Cautious wear growth from `fromAheadM` (m ahead) until the next stretch starts; the last one runs on. */
 export interface WearStretch {
@@ -142,475 +164,100 @@ export interface InfeasiblePosition {
   reason: string;
 }
 
+/** How close the plan is to the cheapest possible one. */
+export interface PlanCertificate {
+  /** Every plan of this instance costs at least this many hours. */
+  lowerBoundH: number;
+  /** True when the plan is proven the cheapest (exact search run to the end, or bound reached). */
+  proven: boolean;
+  /** (plan hours − lower bound) / lower bound: the plan is at most this share above the cheapest; 0 when proven. */
+  gap: number;
+}
+
 export type StopPlanResult =
   | {
       feasible: true;
       optimised: StopPlan;
-      hand: StopPlan;
-      /** Hand plan hours less optimised plan hours. */
-      savingH: number;
+      certificate: PlanCertificate;
+      /** The site-practice rule's plan (null if the rule gets stuck: a new ring would pass its limit before the next place). */
+      practice: StopPlan | null;
+      /** A stop every `intervalM` metres (null if the rule gets stuck). */
+      fixedInterval: StopPlan | null;
       /** Search states expanded, a measure of the work done. */
       statesExpanded: number;
-      /** False when the exact search hit `maxStates` and the plan is the best found, not proven cheapest. */
+      /** Same as certificate.proven. */
       provenOptimal: boolean;
     }
   | { feasible: false; problems: InfeasiblePosition[] };
 
-/** Tolerance on wear comparisons, mm: absorbs rounding in the summed wear. */
-const EPS_MM = 1e-9;
-/** States expanded per place by the first, quick pass that finds a good plan to bound the exact pass. */
-const QUICK_PASS_STATES = 8;
-
-interface Prepared {
-  aheadM: number[];
-  compressedAir: boolean[];
-  stopH: number[];
-  /** Latest free-air place at or before each place, −1 if none. */
-  prevFree: Int32Array;
-  /** Per position: wear added from here to each place, and to the horizon. */
-  wearAt: Float64Array[];
-  wearAtHorizon: number[];
-  /** Per position and place: last place a ring fitted there reaches, or `done`. */
-  reachNew: Int32Array[];
-  changeH: number[];
-  /** "Lasts to the horizon", as a place index: the number of places. */
-  done: number;
+/** The rules the optimised plan is compared with (planner settings). */
+export interface ComparisonRules {
+  /** Site practice: at a stop, change every disc worn to at least this share of its limit. Common practice, no source. */
+  changeShare: number;
+  /** Fixed interval: a stop every this many metres. */
+  intervalM: number;
 }
 
-/** Wear added (mm) over [0, x] for each x of the sorted `xs` (m ahead), from the position's stretches. */
-function cumulativeWearMm(stretches: WearStretch[], xs: number[]): Float64Array {
-  const out = new Float64Array(xs.length);
-  let k = 0;
-  let cumMm = 0;
-  xs.forEach((x, j) => {
-    while (k + 1 < stretches.length && stretches[k + 1].fromAheadM <= x) {
-      cumMm += stretches[k].wearMmPerM * (stretches[k + 1].fromAheadM - stretches[k].fromAheadM);
-      k++;
-    }
-    out[j] = cumMm + stretches[k].wearMmPerM * (x - stretches[k].fromAheadM);
-  });
-  return out;
-}
+/** Defaults of the comparison rules: 80 % of the limit (common practice, no source), a stop every 250 m (common practice, no source). */
+export const DEFAULT_COMPARISON_RULES: ComparisonRules = { changeShare: 0.8, intervalM: 250 };
 
-/** Metres ahead where the wear added first exceeds `wearMm`; Infinity if never. */
-function aheadWhereWearExceedsM(stretches: WearStretch[], wearMm: number): number {
-  if (wearMm < 0) return 0;
-  let cumMm = 0;
-  for (let k = 0; k < stretches.length; k++) {
-    const { fromAheadM, wearMmPerM } = stretches[k];
-    const lengthM = k + 1 < stretches.length ? stretches[k + 1].fromAheadM - fromAheadM : Infinity;
-    if (wearMmPerM > 0 && cumMm + wearMmPerM * lengthM > wearMm) return fromAheadM + (wearMm - cumMm) / wearMmPerM;
-    cumMm += wearMmPerM * lengthM;
-  }
-  return Infinity;
-}
-
-function validate(input: StopPlanInput): void {
-  const hours = { freeAirStopH: input.freeAirStopH, compressedAirStopH: input.compressedAirStopH, wastedRingLifeHPerMm: input.wastedRingLifeHPerMm, ...input.changeHByClass };
-  for (const [name, value] of Object.entries(hours)) {
-    if (!(value >= 0 && Number.isFinite(value))) throw new RangeError(`${name} must be a finite number >= 0, got ${value}`);
-  }
-  if (!(input.horizonM > 0 && Number.isFinite(input.horizonM))) throw new RangeError(`horizon must be > 0 m, got ${input.horizonM}`);
-  for (const p of input.positions) {
-    if (!(p.limitMm > 0)) throw new RangeError(`position ${p.positionId}: limit must be > 0 mm, got ${p.limitMm}`);
-    if (!(p.wearNowMm >= 0)) throw new RangeError(`position ${p.positionId}: wear now must be >= 0 mm, got ${p.wearNowMm}`);
-    const s = p.wearStretches;
-    if (s.length === 0 || s[0].fromAheadM !== 0) throw new RangeError(`position ${p.positionId}: wear stretches must start at 0 m ahead`);
-    s.forEach((st, k) => {
-      if (!(st.wearMmPerM >= 0 && Number.isFinite(st.wearMmPerM))) throw new RangeError(`position ${p.positionId}: wear per metre must be >= 0, got ${st.wearMmPerM}`);
-      if (k > 0 && !(st.fromAheadM > s[k - 1].fromAheadM)) throw new RangeError(`position ${p.positionId}: wear stretches must be in increasing order`);
-    });
-  }
-}
-
-function prepare(input: StopPlanInput): Prepared {
-  const sign = directionSign(input.direction);
-  // Places behind the machine or beyond the horizon cannot be used; of two at one point keep the cheaper.
-  const places = input.stopPlaces
-    .map((p) => ({ aheadM: (p.chainageM - input.currentChainageM) * sign, compressedAir: p.compressedAir }))
-    .filter((p) => p.aheadM >= 0 && p.aheadM <= input.horizonM)
-    .sort((a, b) => a.aheadM - b.aheadM || Number(a.compressedAir) - Number(b.compressedAir))
-    .filter((p, j, all) => j === 0 || p.aheadM !== all[j - 1].aheadM);
-  const aheadM = places.map((p) => p.aheadM);
-  const m = aheadM.length;
-  const prevFree = new Int32Array(m);
-  places.forEach((p, j) => (prevFree[j] = p.compressedAir ? (j > 0 ? prevFree[j - 1] : -1) : j));
-
-  const wearAt = input.positions.map((p) => cumulativeWearMm(p.wearStretches, aheadM));
-  const wearAtHorizon = input.positions.map((p) => cumulativeWearMm(p.wearStretches, [input.horizonM])[0]);
-  // A ring fitted at a later place reaches at least as far: one sweep per position.
-  const reachNew = input.positions.map((p, i) => {
-    const w = wearAt[i];
-    const reach = new Int32Array(m);
-    let r = 0;
-    for (let j = 0; j < m; j++) {
-      const budgetMm = w[j] + p.limitMm + EPS_MM;
-      if (wearAtHorizon[i] <= budgetMm) {
-        reach.fill(m, j);
-        break;
-      }
-      r = Math.max(r, j);
-      while (r + 1 < m && w[r + 1] <= budgetMm) r++;
-      reach[j] = r;
-    }
-    return reach;
-  });
-  return {
-    aheadM,
-    compressedAir: places.map((p) => p.compressedAir),
-    stopH: places.map((p) => (p.compressedAir ? input.compressedAirStopH : input.freeAirStopH)),
-    prevFree,
-    wearAt,
-    wearAtHorizon,
-    reachNew,
-    changeH: input.positions.map((p) => input.changeHByClass[p.positionClass]),
-    done: m,
-  };
+export interface PlanStopsOptions {
+  /** States expanded per place by the quick first pass of the search (0 skips it); only the time changes. */
+  quickPassStates?: number;
+  /** Cap on the exact search (a server must answer in time); past it the plan is the best found, with its certificate. */
+  maxStates?: number;
+  /** Steps of the Lagrangian bound (0 skips it; the certificate is then the search's only). */
+  boundIterations?: number;
+  /** The bound stops improving once the plan is within this share of it. */
+  targetGap?: number;
+  rules?: ComparisonRules;
 }
 
 /**
- * Last place (index) the ring now fitted at position i reaches while the wear added from here
- * stays ≤ `budgetMm` (limit − wear now); `done` if it lasts to the horizon, −1 if it reaches no place.
+ * Plans the intervention stops over the horizon: the cheapest plan found (hours of stops + changes
+ * + ring life thrown away) with its certificate, the site-practice and fixed-interval plans for
+ * comparison, or the positions that no plan can keep within their limit.
  */
-function lastReachable(prep: Prepared, i: number, budgetMm: number): number {
-  if (prep.wearAtHorizon[i] <= budgetMm + EPS_MM) return prep.done;
-  const w = prep.wearAt[i];
-  let lo = -1;
-  let hi = w.length - 1;
-  while (lo < hi) {
-    const mid = (lo + hi + 1) >> 1;
-    if (w[mid] <= budgetMm + EPS_MM) lo = mid;
-    else hi = mid - 1;
-  }
-  return lo;
-}
-
-/** Per position: the places of its own latest chain (each ring changed at its last reachable place), or why it fails. */
-function ownLatestChains(input: StopPlanInput, prep: Prepared): { chains: number[][]; problems: InfeasiblePosition[] } {
-  const sign = directionSign(input.direction);
-  const chains: number[][] = [];
-  const problems: InfeasiblePosition[] = [];
-  input.positions.forEach((p, i) => {
-    const chain: number[] = [];
-    let fitIdx = -1;
-    let reach = lastReachable(prep, i, p.limitMm - p.wearNowMm);
-    while (reach !== prep.done && reach > fitIdx) {
-      chain.push(reach);
-      fitIdx = reach;
-      reach = prep.reachNew[i][reach];
-    }
-    chains.push(chain);
-    if (reach === prep.done) return;
-    const budgetMm = fitIdx < 0 ? p.limitMm - p.wearNowMm : prep.wearAt[i][fitIdx] + p.limitMm;
-    const dueAheadM = aheadWhereWearExceedsM(p.wearStretches, budgetMm);
-    const fittedAheadM = fitIdx < 0 ? -1 : prep.aheadM[fitIdx];
-    const nextPlaceM = prep.aheadM.find((x) => x > fittedAheadM);
-    const ring = fitIdx < 0 ? 'the ring fitted now' : `the ring fitted at ${fittedAheadM.toFixed(1)} m ahead`;
-    const reason =
-      budgetMm < 0
-        ? `the ring fitted now is already past its limit (${p.wearNowMm} mm > ${p.limitMm} mm)`
-        : `${ring} reaches its limit ${dueAheadM.toFixed(1)} m ahead, before the next allowed stop place` +
-          (nextPlaceM === undefined ? ' (none left inside the horizon)' : ` (${nextPlaceM.toFixed(1)} m ahead)`);
-    problems.push({ positionId: p.positionId, ringNumber: chain.length, dueAheadM, dueChainageM: input.currentChainageM + sign * dueAheadM, reason });
-  });
-  return { chains, problems };
-}
-
-/** Prices a plan given as (place index, positions changed there) in place order. */
-function pricePlan(input: StopPlanInput, prep: Prepared, plan: { idx: number; changed: number[] }[]): StopPlan {
-  const sign = directionSign(input.direction);
-  const v = input.wastedRingLifeHPerMm;
-  const budgetMm = input.positions.map((p) => p.limitMm - p.wearNowMm);
-  const stops = plan.map(({ idx, changed }): PlannedStop => {
-    const changes = [...changed].sort((a, b) => a - b).map((i): PlannedChange => {
-      const unusedWearMm = Math.max(0, budgetMm[i] - prep.wearAt[i][idx]);
-      budgetMm[i] = prep.wearAt[i][idx] + input.positions[i].limitMm;
-      return { positionId: input.positions[i].positionId, wearAtChangeMm: input.positions[i].limitMm - unusedWearMm, unusedWearMm };
-    });
-    return {
-      chainageM: input.currentChainageM + sign * prep.aheadM[idx],
-      aheadM: prep.aheadM[idx],
-      compressedAir: prep.compressedAir[idx],
-      changes,
-      stopH: prep.stopH[idx],
-      changeH: changed.reduce((t, i) => t + prep.changeH[i], 0),
-      wastedRingLifeH: v * changes.reduce((t, c) => t + c.unusedWearMm, 0),
-    };
-  });
-  const stopH = stops.reduce((t, s) => t + s.stopH, 0);
-  const changeH = stops.reduce((t, s) => t + s.changeH, 0);
-  const wastedRingLifeH = stops.reduce((t, s) => t + s.wastedRingLifeH, 0);
-  return { stops, cost: { stopH, changeH, wastedRingLifeH, totalH: stopH + changeH + wastedRingLifeH } };
-}
-
-/** A search state: at stop place `idx`, before its changes. */
-interface Label {
-  idx: number;
-  costH: number;
-  /** costH + v·Σ budget over rings still to be changed: states of equal reach compare on this. */
-  keyH: number;
-  /** Σ over positions of the own-chain cost from the fitted ring: a lower bound on the rest. */
-  ownH: number;
-  /** Two 32-bit hashes of `reach`, kept up to date change by change. */
-  hashA: number;
-  hashB: number;
-  parent: Label | null;
-  /** The positions changed at the parent's place are those whose reach there was ≤ this. */
-  changedUpTo: number;
-  /** Per position: last place the fitted ring reaches (`done` if it lasts to the horizon); filled when first needed. */
-  reach: Int32Array | null;
-  /** Per position: the fitted ring's budget, mm of W: limit − wear now, or W(fitting place) + limit. */
-  budgetMm: Float64Array | null;
-}
-
-/**
- * Plans the intervention stops over the horizon: the cheapest plan (hours of stops + changes +
- * ring life thrown away), the hand plan for comparison and the saving in hours, or the
- * positions that no plan can keep within their limit. `quickPassStates` tunes the first pass
- * (0 skips it); the result is the same, only the time changes. `maxStates` caps the exact pass
- * (a server must answer in time): past it the best plan found so far is returned, marked
- * `provenOptimal: false`; it is never worse than the hand plan.
- */
-export function planStops(
-  input: StopPlanInput,
-  { quickPassStates = QUICK_PASS_STATES, maxStates = Infinity }: { quickPassStates?: number; maxStates?: number } = {},
-): StopPlanResult {
+export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}): StopPlanResult {
+  const { quickPassStates = QUICK_PASS_STATES, maxStates = Infinity, boundIterations = BOUND_ITERATIONS, targetGap = TARGET_GAP, rules = DEFAULT_COMPARISON_RULES } = options;
+  if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
+  if (!(rules.intervalM > 0)) throw new RangeError(`interval must be > 0 m, got ${rules.intervalM}`);
+  // Step 1: prepare.
   validate(input);
   const prep = prepare(input);
-  const n = input.positions.length;
-  const m = prep.aheadM.length;
-  const { done } = prep;
-  const v = input.wastedRingLifeHPerMm;
-  const limitMm = input.positions.map((p) => p.limitMm);
-
-  const { chains, problems } = ownLatestChains(input, prep);
+  // Step 2: baseline plans; the latest-change plan decides feasibility.
+  const { chains, problems } = ownLatestChains(prep);
   if (problems.length > 0) return { feasible: false, problems };
-
-  // Hand plan: the union of the positions' own latest chains.
-  const handByIdx = new Map<number, number[]>();
-  chains.forEach((chain, i) => chain.forEach((idx) => handByIdx.set(idx, [...(handByIdx.get(idx) ?? []), i])));
-  const hand = pricePlan(input, prep, [...handByIdx.entries()].sort((a, b) => a[0] - b[0]).map(([idx, changed]) => ({ idx, changed })));
-
-  // Next stops after place `afterIdx` when every ring reaches `limIdx`: the latest place, and the latest free-air place.
-  const nextPlaces = (afterIdx: number, limIdx: number): number[] => {
-    if (limIdx <= afterIdx) return [];
-    const free = prep.prevFree[limIdx];
-    return free > afterIdx && free !== limIdx ? [limIdx, free] : [limIdx];
-  };
-  // ownRestH[i][j]: least cost of position i after a ring is fitted at place j (its own latest
-  // chain, every place available). changeThenRestH[i][j] = a change at j followed by that chain,
-  // less the changeH + v·budget every change of the current ring pays wherever it is made.
-  const ownRestH: Float64Array[] = [];
-  const changeThenRestH: Float64Array[] = [];
-  for (let i = 0; i < n; i++) {
-    const rest = new Float64Array(m);
-    const after = new Float64Array(m);
-    for (let j = m - 1; j >= 0; j--) {
-      const r = prep.reachNew[i][j];
-      rest[j] = r === done ? 0 : prep.changeH[i] + v * (prep.wearAt[i][j] + limitMm[i] - prep.wearAt[i][r]) + rest[r];
-      after[j] = rest[j] - v * prep.wearAt[i][j];
-    }
-    ownRestH.push(rest);
-    changeThenRestH.push(after);
+  const practiceIdx = practicePlan(prep, rules.changeShare);
+  const intervalIdx = fixedIntervalPlan(prep, rules.intervalM, rules.changeShare);
+  const practice = practiceIdx && pricePlan(prep, practiceIdx);
+  const fixedInterval = intervalIdx && pricePlan(prep, intervalIdx);
+  let best = [pricePlan(prep, latestChangePlan(chains)), practice, fixedInterval]
+    .filter((p): p is StopPlan => p !== null)
+    .reduce((a, b) => (b.cost.totalH < a.cost.totalH ? b : a));
+  // Step 3: the lower bound, and plans found from it.
+  const relaxed = best.cost.totalH > 0 && boundIterations > 0 ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap }) : null;
+  if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
+  // Step 4: the exact search, bounded by the best plan so far.
+  const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);
+  const restBoundH = relaxed ? lagrangianRestBound(prep, relaxed.lambda) : undefined;
+  const found = proven0
+    ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
+    : exactSearch(prep, searchBounds(prep), { quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
+  if (found.plan !== null) {
+    const searched = pricePlan(prep, found.plan);
+    if (searched.cost.totalH < best.cost.totalH) best = searched;
   }
-  const ownTermH = (i: number, reach: number, budgetMm: number) =>
-    reach === done ? 0 : prep.changeH[i] + v * (budgetMm - prep.wearAt[i][reach]) + ownRestH[i][reach];
-  // Least stop hours after place j: everything fresh there and changed at every stop, each stop as late as allowed.
-  const stopsAfterH = new Float64Array(m);
-  for (let j = m - 1; j >= 0; j--) {
-    let lim = done;
-    for (let i = 0; i < n; i++) lim = Math.min(lim, prep.reachNew[i][j]);
-    stopsAfterH[j] = lim === done ? 0 : Infinity;
-    if (lim !== done) for (const t of nextPlaces(j, lim)) stopsAfterH[j] = Math.min(stopsAfterH[j], prep.stopH[t] + stopsAfterH[t]);
-  }
-  // Bound (b) of the top comment: own chains plus the least extra for putting the next change of
-  // every position (`order`: those still to change, in due order) at shared stops. A group served
-  // at stop t pays stopH(t) and, per position o, pen = a(t) − a(reach o) ≥ 0 (a = changeThenRestH
-  // does not increase with t: a later change never needs more changes after it); the last group
-  // also pays the stops still needed after it. restH[j]: least extra for positions j… when they
-  // are served after the current place.
-  const penH = (reach: Int32Array, o: number, t: number) => Math.max(0, changeThenRestH[o][t] - changeThenRestH[o][reach[o]]);
-  const sharedRestH = (idx: number, reach: Int32Array, order: number[]) => {
-    const p = order.length;
-    const restH = new Float64Array(p + 1);
-    restH[p] = stopsAfterH[idx];
-    for (let j = p - 1; j >= 0; j--) {
-      restH[j] = Infinity;
-      for (const t of nextPlaces(idx, reach[order[j]])) {
-        let accH = prep.stopH[t];
-        for (let h = j; h < p && accH < restH[j]; h++) {
-          accH += penH(reach, order[h], t);
-          restH[j] = Math.min(restH[j], accH + (h + 1 === p ? stopsAfterH[t] : restH[h + 1]));
-        }
-      }
-    }
-    return restH;
+  const totalH = best.cost.totalH;
+  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH));
+  const gap = found.complete || totalH <= lowerBoundH ? 0 : lowerBoundH > 0 ? (totalH - lowerBoundH) / lowerBoundH : Infinity;
+  return {
+    feasible: true,
+    optimised: best,
+    certificate: { lowerBoundH, proven: found.complete, gap },
+    practice,
+    fixedInterval,
+    statesExpanded: found.statesExpanded,
+    provenOptimal: found.complete,
   };
-
-  const startReach = Int32Array.from(input.positions, (p, i) => lastReachable(prep, i, p.limitMm - p.wearNowMm));
-  const startBudgetMm = Float64Array.from(input.positions, (p) => p.limitMm - p.wearNowMm);
-  const firstLim = startReach.reduce((a, r) => Math.min(a, r), done);
-  if (firstLim === done) return { feasible: true, optimised: pricePlan(input, prep, []), hand, savingH: 0, statesExpanded: 0, provenOptimal: true };
-  // State hashes: Σ (reach + 1)·c_i over two sets of odd 32-bit multipliers, updated per change.
-  const hashA = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x9e3779b1) | 1);
-  const hashB = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x85ebca77) | 1);
-  const hashKey = (a: number, b: number) => (a >>> 0) * 0x200000 + ((b >>> 0) & 0x1fffff);
-  let startOwnH = 0;
-  let startKeyH = 0;
-  let startHashA = 0;
-  let startHashB = 0;
-  for (let i = 0; i < n; i++) {
-    startOwnH += ownTermH(i, startReach[i], startBudgetMm[i]);
-    if (startReach[i] !== done) startKeyH += v * startBudgetMm[i];
-    startHashA = (startHashA + Math.imul(startReach[i] + 1, hashA[i])) | 0;
-    startHashB = (startHashB + Math.imul(startReach[i] + 1, hashB[i])) | 0;
-  }
-  const reachOf = (l: Label, i: number): number => {
-    if (l.reach !== null) return l.reach[i];
-    const p = l.parent as Label;
-    const r = (p.reach as Int32Array)[i];
-    return r !== done && r <= l.changedUpTo ? prep.reachNew[i][p.idx] : r;
-  };
-  const fill = (l: Label): { reach: Int32Array; budgetMm: Float64Array } => {
-    if (l.reach === null || l.budgetMm === null) {
-      const p = l.parent as Label;
-      const pReach = p.reach as Int32Array;
-      l.reach = pReach.slice();
-      l.budgetMm = (p.budgetMm as Float64Array).slice();
-      for (let i = 0; i < n; i++) {
-        if (pReach[i] !== done && pReach[i] <= l.changedUpTo) {
-          l.reach[i] = prep.reachNew[i][p.idx];
-          l.budgetMm[i] = prep.wearAt[i][p.idx] + limitMm[i];
-        }
-      }
-    }
-    return { reach: l.reach, budgetMm: l.budgetMm };
-  };
-
-  let statesExpanded = 0;
-  let stoppedEarly = false;
-  // One pass over the places in order; `beamWidth` caps the states expanded per place (Infinity:
-  // exact). Returns the best plan costing less than `boundH`, if any.
-  const search = (beamWidth: number, boundH: number) => {
-    let bestH = boundH;
-    let best: { last: Label; changedUpTo: number } | null = null;
-    const tolH = 1e-9 * (1 + boundH);
-    const buckets: Map<number, Label[]>[] = Array.from({ length: m }, () => new Map());
-    // Adds a state, merged with one of equal reach (keeping the lower folded cost).
-    const sameReach = (a: Label, b: Label) => {
-      for (let i = 0; i < n; i++) if (reachOf(a, i) !== reachOf(b, i)) return false;
-      return true;
-    };
-    const push = (label: Label) => {
-      const key = hashKey(label.hashA, label.hashB);
-      const held = buckets[label.idx].get(key) ?? [];
-      const k = held.findIndex((h) => sameReach(h, label));
-      if (k < 0) buckets[label.idx].set(key, [...held, label]);
-      else if (label.keyH < held[k].keyH) held[k] = label;
-    };
-    for (const idx of nextPlaces(-1, firstLim)) {
-      const costH = prep.stopH[idx];
-      push({ idx, costH, keyH: costH + startKeyH, ownH: startOwnH, hashA: startHashA, hashB: startHashB, parent: null, changedUpTo: -1, reach: startReach, budgetMm: startBudgetMm });
-    }
-
-    for (let q = 0; q < m; q++) {
-      if (beamWidth === Infinity && statesExpanded > maxStates) {
-        stoppedEarly = true;
-        break;
-      }
-      const entries = [...buckets[q].values()].flat().filter((l) => l.costH + stopsAfterH[q] + l.ownH < bestH - tolH);
-      buckets[q].clear();
-      const filled = new Map(entries.map((e) => [e, fill(e)]));
-      // Dominance, comparing only the positions whose reach differs between the states here.
-      const dims: number[] = [];
-      for (let i = 0; i < n && entries.length > 1; i++) if (entries.some((e) => filled.get(e)!.reach[i] !== filled.get(entries[0])!.reach[i])) dims.push(i);
-      const reachSum = new Map(entries.map((e) => [e, dims.reduce((t, i) => t + filled.get(e)!.reach[i], 0)]));
-      const dominates = (a: Label, b: Label) => {
-        if (reachSum.get(a)! < reachSum.get(b)!) return false;
-        const ra = filled.get(a)!.reach;
-        const { reach: rb, budgetMm: bb } = filled.get(b)!;
-        let slackH = b.keyH - a.keyH;
-        for (const i of dims) {
-          if (ra[i] < rb[i]) return false;
-          if (ra[i] === done && rb[i] !== done) slackH -= v * bb[i];
-        }
-        return slackH >= 0;
-      };
-      entries.sort((x, y) => x.keyH - y.keyH);
-      const kept: Label[] = [];
-      for (const e of entries) if (!kept.some((k) => dominates(k, e))) kept.push(e);
-      kept.sort((x, y) => x.costH + x.ownH - (y.costH + y.ownH));
-
-      for (const label of kept.slice(0, beamWidth)) {
-        if (label.costH + stopsAfterH[q] + label.ownH >= bestH - tolH) break;
-        const { reach, budgetMm } = filled.get(label)!;
-        const order: number[] = [];
-        for (let i = 0; i < n; i++) if (reach[i] !== done) order.push(i);
-        order.sort((a, b) => reach[a] - reach[b]);
-        // Bound (b): at least one position is changed here; the pens of those plus restH after.
-        const restH = sharedRestH(q, reach, order);
-        const baseH = label.costH + label.ownH;
-        let extraH = Infinity;
-        for (let k = 0, pensH = 0; k < order.length && baseH + pensH < bestH - tolH; k++) {
-          pensH += penH(reach, order[k], q);
-          extraH = Math.min(extraH, pensH + restH[k + 1]);
-        }
-        if (baseH + Math.max(extraH, stopsAfterH[q]) >= bestH - tolH) continue;
-        statesExpanded++;
-        // Change the k due first; the next stop must lie beyond the last of them.
-        let changeCostH = 0;
-        let penSumH = 0;
-        let minNewReach = done;
-        let { ownH, keyH } = label;
-        let hA = 0;
-        let hB = 0;
-        for (let k = 0; k < order.length; k++) {
-          const i = order[k];
-          const newReach = prep.reachNew[i][q];
-          const newBudgetMm = prep.wearAt[i][q] + limitMm[i];
-          const thisChangeH = prep.changeH[i] + v * (budgetMm[i] - prep.wearAt[i][q]);
-          changeCostH += thisChangeH;
-          penSumH += penH(reach, i, q);
-          ownH += ownTermH(i, newReach, newBudgetMm) - ownTermH(i, reach[i], budgetMm[i]);
-          keyH += thisChangeH - v * budgetMm[i] + (newReach === done ? 0 : v * newBudgetMm);
-          hA = (hA + Math.imul(newReach - reach[i], hashA[i])) | 0;
-          hB = (hB + Math.imul(newReach - reach[i], hashB[i])) | 0;
-          minNewReach = Math.min(minNewReach, newReach);
-          const groupReach = reach[i];
-          if (minNewReach <= groupReach) break; // a new ring would not get past this group, nor past any larger one
-          if (k + 1 < order.length && reach[order[k + 1]] === groupReach) continue;
-          const lim = Math.min(k + 1 < order.length ? reach[order[k + 1]] : done, minNewReach);
-          if (lim === done) {
-            if (label.costH + changeCostH < bestH - tolH) {
-              bestH = label.costH + changeCostH;
-              best = { last: label, changedUpTo: groupReach };
-            }
-            break; // changing more is never needed
-          }
-          if (baseH + penSumH + restH[k + 1] >= bestH - tolH) continue; // bound (b) for this choice
-          for (const idx of nextPlaces(groupReach, lim)) {
-            const costH = label.costH + changeCostH + prep.stopH[idx];
-            if (costH + stopsAfterH[idx] + ownH >= bestH - tolH) continue;
-            const hashes = { hashA: (label.hashA + hA) | 0, hashB: (label.hashB + hB) | 0 };
-            push({ idx, costH, keyH: keyH + prep.stopH[idx], ownH, ...hashes, parent: label, changedUpTo: groupReach, reach: null, budgetMm: null });
-          }
-        }
-      }
-    }
-    return { best, bestH };
-  };
-
-  const quick = search(quickPassStates, hand.cost.totalH);
-  const best = search(Infinity, quick.bestH).best ?? quick.best;
-  const provenOptimal = !stoppedEarly;
-  if (best === null) return { feasible: true, optimised: hand, hand, savingH: 0, statesExpanded, provenOptimal };
-  const plan: { idx: number; changed: number[] }[] = [];
-  let changedUpTo = best.changedUpTo;
-  for (let l: Label | null = best.last; l !== null; l = l.parent) {
-    const reach = l.reach as Int32Array;
-    plan.unshift({ idx: l.idx, changed: [...reach.keys()].filter((i) => reach[i] !== done && reach[i] <= changedUpTo) });
-    changedUpTo = l.changedUpTo;
-  }
-  const optimised = pricePlan(input, prep, plan);
-  return { feasible: true, optimised, hand, savingH: hand.cost.totalH - optimised.cost.totalH, statesExpanded, provenOptimal };
 }

@@ -39,6 +39,10 @@ export const stopPlanQuerySchema = z.object({
   changeHGauge: hours('Hours per gauge cutter change', 50).optional(),
   wastedRingLifeHPerMm: hours('Hours per mm of ring life thrown away', 50).optional(),
   compressedAirAboveHeadM: z.coerce.number({ message: 'The compressed-air head must be a number of metres.' }).min(0, 'The head cannot be negative.').max(300).optional(),
+  /** Site-practice rule: at a stop, change every disc worn to at least this share of its limit (%). */
+  practiceChangeSharePercent: z.coerce.number({ message: 'The change share must be a percentage of the limit.' }).min(50, 'Change discs at 50 % of their limit or more.').max(100, 'The change share cannot pass 100 % of the limit.').optional(),
+  /** Fixed-interval rule: a stop every this many metres. */
+  fixedIntervalM: z.coerce.number({ message: 'The interval must be a number of metres.' }).min(10, 'Stop at most every 10 m.').max(5000, 'The interval must be at most 5,000 m.').optional(),
 });
 export type StopPlanQuery = z.infer<typeof stopPlanQuerySchema>;
 
@@ -101,6 +105,20 @@ export interface StopPlanSettings {
   wastedRingLifeHPerMm: number;
   /** A stop under more groundwater head than this (m above the axis) is worked in compressed air. */
   compressedAirAboveHeadM: number;
+  /** Site-practice rule: change every disc worn to at least this share of its limit (%); common practice, no source. */
+  practiceChangeSharePercent: number;
+  /** Fixed-interval rule: a stop every this many metres. */
+  fixedIntervalM: number;
+}
+
+/** How close the plan is to the cheapest possible one. */
+export interface PlanCertificateView {
+  /** Proven the cheapest possible plan. */
+  proven: boolean;
+  /** At most this many % above the cheapest possible plan (0 when proven). */
+  gapPercent: number;
+  /** No plan can cost less than this, in hours. */
+  lowerBoundH: number;
 }
 
 export interface PlanChange {
@@ -125,6 +143,18 @@ export interface PlanStop {
   changes: PlanChange[];
   /** An open stop already at this chainage (proposed from the plan before, or by the nightly job). */
   existingStopId: string | null;
+  /** When the machine is expected there (ISO), at the forecast's advance rates; null if not known. */
+  expectedAt: string | null;
+}
+
+/** One section of the long section over the plan's stretch, for the plan's drawing. */
+export interface PlanSection {
+  chainageFromM: number;
+  chainageToM: number;
+  groundName: string | null;
+  waterHeadM: number;
+  stopAllowed: boolean;
+  stopReason: string;
 }
 
 export interface PlanView {
@@ -141,14 +171,22 @@ export interface StopPlanView<TDate = string> {
   /** Where the plan ends: the horizon, or the end of the known ground if that comes first. */
   horizonEndChainageM: number | null;
   candidatePlaceCount: number;
+  /** The long section between the machine and the plan's end. */
+  longSection: PlanSection[];
+  /** Compressed air above this water head (m), for the drawing's line. */
+  compressedAirAboveHeadM: number;
   /** Why there is no plan, or what limits it. */
   problems: string[];
   /** Positions no plan can keep within their limit. */
   infeasible: { positionId: string; positionNumber: number; dueChainageM: number; reason: string }[];
   optimised: PlanView | null;
-  hand: PlanView | null;
-  /** Hand plan hours less optimised plan hours. */
-  savingH: number | null;
+  certificate: PlanCertificateView | null;
+  /** The site-practice rule's plan and a stop every N metres, priced the same way (null when the rule gets stuck). */
+  practice: PlanView | null;
+  fixedInterval: PlanView | null;
+  /** Practice-rule hours less optimised hours, and fixed-interval hours less optimised hours (sums of the plans' own tables). */
+  savingVsPracticeH: number | null;
+  savingVsIntervalH: number | null;
   cautions: string[];
 }
 

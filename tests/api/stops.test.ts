@@ -66,12 +66,13 @@ describe('the plan', () => {
     // The defaults (common practice, no source) with the override, and the project's compressed-air rule (30 m, its default).
     expect(plan.settings).toEqual({
       horizonM: 600, freeAirStopH: 6, compressedAirStopH: 14, changeHByClass: { centre: 1.5, face: 1, gauge: 1.25 }, wastedRingLifeHPerMm: 0.2, compressedAirAboveHeadM: 30,
+      practiceChangeSharePercent: 80, fixedIntervalM: 250,
     });
     expect(plan.currentChainageM).toBe(ctx.drive.currentChainageM);
     expect(plan.horizonEndChainageM).toBe(800);
     expect(plan.infeasible).toEqual([]);
     expect(plan.optimised.stops.length).toBeGreaterThan(1);
-    for (const which of ['optimised', 'hand'] as const) {
+    for (const which of ['optimised', 'practice', 'fixedInterval'] as const) {
       let stopH = 0;
       for (const s of plan[which].stops) {
         // A ring boundary k rings ahead of the machine (1.5 m rings, ring 133 ends at 200 m), in ring 133 + k.
@@ -93,8 +94,20 @@ describe('the plan', () => {
       expect(cost.stopH).toBe(stopH);
       expect(cost.totalH).toBeCloseTo(cost.stopH + cost.changeH + cost.wastedRingLifeH, 9);
     }
-    expect(plan.savingH).toBeCloseTo(plan.hand.cost.totalH - plan.optimised.cost.totalH, 9);
-    expect(plan.savingH).toBeGreaterThanOrEqual(0);
+    // The savings are differences of the plans' own totals, and each total is the sum of its table.
+    expect(plan.savingVsPracticeH).toBeCloseTo(plan.practice.cost.totalH - plan.optimised.cost.totalH, 9);
+    expect(plan.savingVsIntervalH).toBeCloseTo(plan.fixedInterval.cost.totalH - plan.optimised.cost.totalH, 9);
+    expect(plan.savingVsPracticeH).toBeGreaterThanOrEqual(0);
+    for (const which of ['optimised', 'practice', 'fixedInterval'] as const) {
+      const rowsH = plan[which].stops.reduce((t: number, s: { stopH: number; changeH: number; wastedRingLifeH: number }) => t + s.stopH + s.changeH + s.wastedRingLifeH, 0);
+      expect(rowsH).toBeCloseTo(plan[which].cost.totalH, 9);
+    }
+    // A small drive: the search runs to the end, so the plan is proven cheapest.
+    expect(plan.certificate).toMatchObject({ proven: true, gapPercent: 0 });
+    expect(plan.certificate.lowerBoundH).toBeCloseTo(plan.optimised.cost.totalH, 9);
+    // The long section of the planned stretch, with the fault zone (230–260 m) where no stop is allowed.
+    expect(plan.longSection.some((s: { chainageFromM: number; stopAllowed: boolean }) => s.chainageFromM === 230 && !s.stopAllowed)).toBe(true);
+    expect(plan.compressedAirAboveHeadM).toBe(30);
     // A stop under 40 m of head: compressed air at 3.92266 bar (derived: 1000 · 9.80665 · 40 / 10⁵).
     const underHead = plan.optimised.stops.find((s: { chainageM: number }) => s.chainageM > 260);
     expect(underHead.compressedAir).toBe(true);
@@ -116,6 +129,21 @@ describe('the plan', () => {
     const word = await ctx.planner.get(ctx.url('/plan?changeHFace=soon'));
     expect(word.status).toBe(400);
     expect(word.body.error.issues[0].path).toBe('changeHFace');
+    const share = await ctx.planner.get(ctx.url('/plan?practiceChangeSharePercent=120'));
+    expect(share.status).toBe(400);
+    expect(share.body.error.message).toBe('The change share cannot pass 100 % of the limit.');
+    const interval = await ctx.planner.get(ctx.url('/plan?fixedIntervalM=0'));
+    expect(interval.status).toBe(400);
+    expect(interval.body.error.message).toBe('Stop at most every 10 m.');
+  });
+
+  it('takes the planner’s comparison rules: the practice share and the fixed interval', async () => {
+    const res = await ctx.planner.get(ctx.url('/plan?horizonM=600&practiceChangeSharePercent=60&fixedIntervalM=100'));
+    expect(res.status).toBe(200);
+    expect(res.body.settings).toMatchObject({ practiceChangeSharePercent: 60, fixedIntervalM: 100 });
+    // The optimised plan is never worse than either rule (both are plans it could have chosen).
+    expect(res.body.savingVsPracticeH).toBeGreaterThanOrEqual(-1e-9);
+    expect(res.body.savingVsIntervalH).toBeGreaterThanOrEqual(-1e-9);
   });
 });
 

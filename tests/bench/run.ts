@@ -20,8 +20,9 @@ try {
   const { benchDrive, benchImport } = await import('./drive.bench');
   for (const l of await benchImport()) print(l);
   for (const l of await benchDrive()) print(l);
-  const { benchStopPlanner } = await import('./stop-planner.bench');
+  const { benchStopPlanner, benchDemoStopPlan } = await import('./stop-planner.bench');
   for (const l of await benchStopPlanner()) print(l);
+  for (const l of await benchDemoStopPlan()) print(l);
 } finally {
   const { pool } = await import('../../server/db/client');
   await pool.end();

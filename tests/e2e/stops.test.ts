@@ -41,11 +41,14 @@ it('the planner proposes, schedules and publishes the first stop of the plan; th
   await planner.getByRole('link', { name: 'Plan stops' }).click();
   // The plan walks the forecast of every position over the next 2 km: give it time.
   await expect.poll(() => heading(planner), { timeout: 60_000 }).toBe('Stop plan');
-  await expect.poll(() => planner.getByRole('table', { name: 'Cost of the two plans, in hours' }).count(), { timeout: 60_000 }).toBe(1);
-  expect(await planner.getByText(/The optimised plan saves [\d.]+ h/).count()).toBe(1);
+  await expect.poll(() => planner.getByRole('table', { name: 'Cost of the plans, in hours' }).count(), { timeout: 60_000 }).toBe(1);
+  expect(await planner.getByText(/The optimised plan saves [\d.]+ h against site practice/).count()).toBe(1);
+  expect(await planner.getByText(/Cheapest possible plan \(proven\)|At most [\d.]+ % above the cheapest possible plan/).count()).toBe(1);
   expect(await planner.getByRole('note').filter({ hasText: 'Entering the cutterhead' }).count()).toBe(1);
 
-  const first = planner.getByRole('listitem', { name: /^Stop 1 at / });
+  // The stops are a compact table; the first row opens to its positions and the proposal button.
+  await planner.getByRole('table', { name: 'Planned stops' }).getByRole('button').first().click();
+  const first = planner.getByRole('group', { name: /^Stop at / });
   const label = (await first.getAttribute('aria-label'))!;
   const chainage = /at (\d+\+\d{3}\.\d)$/.exec(label)![1];
   await first.getByRole('button', { name: 'Propose this stop' }).click();

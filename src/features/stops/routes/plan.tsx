@@ -1,5 +1,5 @@
 import { useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
-import { useState, type FormEvent } from 'react';
+import { Fragment, useState, type FormEvent } from 'react';
 import { Link, useNavigate, useParams, useSearchParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { roleCan } from '../../../../shared/roles';
@@ -11,7 +11,7 @@ import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
 import { ApiError } from '../../../lib/api-client';
 import { formatChainage } from '../../../../shared/domain/chainage';
-import { formatSiteDateTime as formatDateTime } from '../../../../shared/site-time';
+import { formatSiteDate as formatDate, formatSiteDateTime as formatDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { proposeStop, stopQueries, type PlanStop, type PlanView, type StopPlan, type StopPlanSettings } from '../api';
 import { AirBadge } from '../components/air-badge';
@@ -20,7 +20,7 @@ import { hoursText } from '../format';
 
 const linkClass = 'inline-flex min-h-touch items-center font-semibold text-ember-700 underline underline-offset-2';
 
-/** The optimised stop plan against the plan a planner would make by hand, and a way to propose its stops. */
+/** The optimised stop plan with its certificate, against site practice and a fixed interval, and a way to propose its stops. */
 export function StopPlanRoute() {
   const { projectId = '' } = useParams();
   const [search, setSearch] = useSearchParams();
@@ -52,29 +52,26 @@ export function StopPlanRoute() {
       )}
       <StopCautions cautions={plan.cautions} />
 
-      {plan.optimised && plan.hand && (
+      {plan.optimised && (
         <>
-          <Panel title="Optimised plan against the hand plan">
-            <CostComparison optimised={plan.optimised} hand={plan.hand} savingH={plan.savingH ?? 0} />
+          <Panel title="Plan, certificate and savings">
+            <CertificateText plan={plan} />
+            <CostComparison plan={plan} />
           </Panel>
-          <Panel title={`Optimised plan: ${plan.optimised.stops.length} stop${plan.optimised.stops.length === 1 ? '' : 's'}`}>
+          <Panel title={`Long section and ${plan.optimised.stops.length} planned stop${plan.optimised.stops.length === 1 ? '' : 's'}`}>
+            <LongSection plan={plan} />
             {plan.optimised.stops.length === 0 ? (
               <p>No cutter reaches its cautious limit within the plan: no stop is needed.</p>
             ) : (
-              <ol className="space-y-3">
-                {plan.optimised.stops.map((s, i) => <PlanStopCard key={s.chainageM} projectId={projectId} stop={s} index={i + 1} canPlan={canPlan} />)}
-              </ol>
+              <StopTable projectId={projectId} stops={plan.optimised.stops} timeZone={project.siteTimeZone} canPlan={canPlan} label="Planned stops" />
             )}
           </Panel>
-          <details className="rounded-lg border border-basalt-200 bg-white p-4">
-            <summary className="min-h-touch cursor-pointer font-semibold">The hand plan’s {plan.hand.stops.length} stops, for comparison</summary>
-            <p className="my-2 max-w-prose text-basalt-700">
-              Stop at the last allowed place before the first cutter is due; change there only what would be due before the next such stop; repeat.
-            </p>
-            <ol className="space-y-3">
-              {plan.hand.stops.map((s, i) => <PlanStopCard key={s.chainageM} projectId={projectId} stop={s} index={i + 1} canPlan={false} />)}
-            </ol>
-          </details>
+          {[{ name: `Site practice (change at ${plan.settings.practiceChangeSharePercent} % of the limit)`, view: plan.practice }, { name: `A stop every ${plan.settings.fixedIntervalM} m`, view: plan.fixedInterval }].map(({ name, view }) => view && (
+            <details key={name} className="rounded-lg border border-basalt-200 bg-white p-4">
+              <summary className="min-h-touch cursor-pointer font-semibold">{name}: {view.stops.length} stops, {hoursText(view.cost.totalH)}, for comparison</summary>
+              <StopTable projectId={projectId} stops={view.stops} timeZone={project.siteTimeZone} canPlan={false} label={name} />
+            </details>
+          ))}
         </>
       )}
 
@@ -83,48 +80,184 @@ export function StopPlanRoute() {
   );
 }
 
-function CostComparison({ optimised, hand, savingH }: { optimised: PlanView; hand: PlanView; savingH: number }) {
+/** Whether the plan is proven the cheapest, or how far above the cheapest it can be at most. */
+function CertificateText({ plan }: { plan: StopPlan }) {
+  const c = plan.certificate;
+  if (!c || !plan.optimised) return null;
+  return (
+    <p className="mb-3 text-lead font-semibold">
+      {c.proven
+        ? 'Cheapest possible plan (proven).'
+        : `At most ${c.gapPercent.toFixed(1)} % above the cheapest possible plan: no plan can cost less than ${hoursText(c.lowerBoundH)}.`}
+    </p>
+  );
+}
+
+/** The three plans' hours side by side; each total is the sum of that plan's own table. */
+function CostComparison({ plan }: { plan: StopPlan }) {
   const rows = [
-    { name: 'Optimised', plan: optimised },
-    { name: 'By hand', plan: hand },
-  ];
-  const share = hand.cost.totalH > 0 ? (100 * savingH) / hand.cost.totalH : 0;
+    { name: 'Optimised', view: plan.optimised },
+    { name: `Site practice (${plan.settings.practiceChangeSharePercent} %)`, view: plan.practice },
+    { name: `Every ${plan.settings.fixedIntervalM} m`, view: plan.fixedInterval },
+  ].filter((r): r is { name: string; view: PlanView } => r.view !== null);
+  const saving = (h: number | null, against: string) =>
+    h == null ? null : h > 1e-6 ? `saves ${hoursText(h)} against ${against}` : `is no better than ${against}`;
+  const sentences = [saving(plan.savingVsPracticeH, 'site practice'), saving(plan.savingVsIntervalH, `a stop every ${plan.settings.fixedIntervalM} m`)].filter(Boolean);
   return (
     <div className="space-y-3">
       <div className="overflow-x-auto">
-        <table className="min-w-full text-left" aria-label="Cost of the two plans, in hours">
+        <table className="min-w-full text-left" aria-label="Cost of the plans, in hours">
           <thead className="bg-basalt-100">
             <tr>
-              <th scope="col" className="px-3 py-2">Plan</th>
-              <th scope="col" className="px-3 py-2 text-right">Stops</th>
-              <th scope="col" className="px-3 py-2 text-right">Stop hours</th>
-              <th scope="col" className="px-3 py-2 text-right">Change hours</th>
-              <th scope="col" className="px-3 py-2 text-right">Ring life thrown away</th>
-              <th scope="col" className="px-3 py-2 text-right">Total</th>
+              <th scope="col" className="px-3 py-1">Plan</th>
+              <th scope="col" className="px-3 py-1 text-right">Stops</th>
+              <th scope="col" className="px-3 py-1 text-right">Stop hours</th>
+              <th scope="col" className="px-3 py-1 text-right">Change hours</th>
+              <th scope="col" className="px-3 py-1 text-right">Ring life thrown away</th>
+              <th scope="col" className="px-3 py-1 text-right">Total</th>
             </tr>
           </thead>
           <tbody>
-            {rows.map(({ name, plan }) => (
+            {rows.map(({ name, view }) => (
               <tr key={name} className="border-t border-basalt-100">
-                <th scope="row" className="px-3 py-2">{name}</th>
-                <td className="px-3 py-2 text-right">{plan.stops.length}</td>
-                <td className="px-3 py-2 text-right">{hoursText(plan.cost.stopH)}</td>
-                <td className="px-3 py-2 text-right">{hoursText(plan.cost.changeH)}</td>
-                <td className="px-3 py-2 text-right">{hoursText(plan.cost.wastedRingLifeH)}</td>
-                <td className="px-3 py-2 text-right font-semibold">{hoursText(plan.cost.totalH)}</td>
+                <th scope="row" className="px-3 py-1">{name}</th>
+                <td className="px-3 py-1 text-right">{view.stops.length}</td>
+                <td className="px-3 py-1 text-right">{hoursText(view.cost.stopH)}</td>
+                <td className="px-3 py-1 text-right">{hoursText(view.cost.changeH)}</td>
+                <td className="px-3 py-1 text-right">{hoursText(view.cost.wastedRingLifeH)}</td>
+                <td className="px-3 py-1 text-right font-semibold">{hoursText(view.cost.totalH)}</td>
               </tr>
             ))}
           </tbody>
         </table>
       </div>
-      <p className="text-lead font-semibold">
-        {savingH > 1e-6 ? `The optimised plan saves ${hoursText(savingH)} (${share.toFixed(0)} %) against the hand plan.` : 'The hand plan is already as good as it gets here.'}
-      </p>
+      {sentences.length > 0 && <p className="font-semibold">The optimised plan {sentences.join(' and ')}: the totals of the tables below.</p>}
     </div>
   );
 }
 
-function PlanStopCard({ projectId, stop, index, canPlan }: { projectId: string; stop: PlanStop; index: number; canPlan: boolean }) {
+const SVG_W = 1000;
+const SVG_H = 170;
+const STRIP_Y = 112;
+const STRIP_H = 26;
+const HEAD_TOP = 40;
+const HEAD_BOTTOM = 104;
+
+/**
+ * The plan's stretch of the long section: the ground strip (named), no-stop zones hatched, the
+ * water-head line with the compressed-air threshold, and each stop as a mark — a circle for free
+ * air, a diamond for compressed air, each with its number and the word in its tooltip and legend.
+ */
+function LongSection({ plan }: { plan: StopPlan }) {
+  const from = plan.currentChainageM;
+  const to = plan.horizonEndChainageM;
+  if (from == null || to == null || from === to || !plan.optimised) return null;
+  const x = (c: number) => 30 + ((c - from) / (to - from)) * (SVG_W - 60);
+  const maxHead = Math.max(plan.compressedAirAboveHeadM * 1.2, ...plan.longSection.map((s) => s.waterHeadM), 1);
+  const y = (h: number) => HEAD_BOTTOM - (h / maxHead) * (HEAD_BOTTOM - HEAD_TOP);
+  const grounds = [...new Set(plan.longSection.map((s) => s.groundName ?? 'unknown'))];
+  const shade = (name: string | null) => ['#e7e3dc', '#cfc8bb', '#b3a996', '#968a74', '#7a6e59'][grounds.indexOf(name ?? 'unknown') % 5];
+  return (
+    <figure className="mb-4">
+      <svg viewBox={`0 0 ${SVG_W} ${SVG_H}`} className="w-full" role="img" aria-label={`Long section from ${formatChainage(from)} to ${formatChainage(to)} with ${plan.optimised.stops.length} planned stops`}>
+        <defs>
+          <pattern id="no-stop-hatch" width="8" height="8" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
+            <line x1="0" y1="0" x2="0" y2="8" stroke="#7f1d1d" strokeWidth="2" />
+          </pattern>
+        </defs>
+        {plan.longSection.map((s) => {
+          const [a, b] = [x(s.chainageFromM), x(s.chainageToM)].sort((p, q) => p - q);
+          return (
+            <g key={`${s.chainageFromM}-${s.chainageToM}`}>
+              <rect x={a} y={STRIP_Y} width={b - a} height={STRIP_H} fill={shade(s.groundName)} stroke="#3f3a33" strokeWidth="0.5">
+                <title>{`${s.groundName ?? 'Unknown ground'}, ${formatChainage(s.chainageFromM)}–${formatChainage(s.chainageToM)}, water head ${s.waterHeadM} m${s.stopAllowed ? '' : `; no stop: ${s.stopReason || 'not allowed'}`}`}</title>
+              </rect>
+              {b - a > 70 && <text x={(a + b) / 2} y={STRIP_Y + 17} textAnchor="middle" fontSize="12" fill="#1c1917">{s.groundName ?? 'unknown'}</text>}
+              {!s.stopAllowed && (
+                <>
+                  <rect x={a} y={STRIP_Y - 10} width={b - a} height={8} fill="url(#no-stop-hatch)" />
+                  {b - a > 40 && <text x={(a + b) / 2} y={STRIP_Y + STRIP_H + 14} textAnchor="middle" fontSize="11" fill="#7f1d1d">no stop</text>}
+                </>
+              )}
+              <line x1={a} x2={b} y1={y(s.waterHeadM)} y2={y(s.waterHeadM)} stroke="#1d4ed8" strokeWidth="2" />
+            </g>
+          );
+        })}
+        <line x1={30} x2={SVG_W - 30} y1={y(plan.compressedAirAboveHeadM)} y2={y(plan.compressedAirAboveHeadM)} stroke="#1d4ed8" strokeDasharray="6 4" strokeWidth="1" />
+        <text x={SVG_W - 30} y={y(plan.compressedAirAboveHeadM) - 4} textAnchor="end" fontSize="11" fill="#1d4ed8">compressed air above {plan.compressedAirAboveHeadM} m head</text>
+        {plan.optimised.stops.map((s, i) => {
+          const cx = x(s.chainageM);
+          const cy = 20;
+          return (
+            <g key={s.chainageM}>
+              <line x1={cx} x2={cx} y1={cy + 7} y2={STRIP_Y} stroke="#57534e" strokeWidth="0.75" />
+              {s.compressedAir
+                ? <rect x={cx - 6} y={cy - 6} width={12} height={12} transform={`rotate(45 ${cx} ${cy})`} fill="#b45309" />
+                : <circle cx={cx} cy={cy} r={6} fill="#ffffff" stroke="#1c1917" strokeWidth="2" />}
+              <title>{`Stop ${i + 1} at ${formatChainage(s.chainageM)}, ${s.compressedAir ? 'compressed air' : 'free air'}, ${s.changes.length} positions`}</title>
+              <text x={cx} y={cy - 10} textAnchor="middle" fontSize="10" fill="#1c1917">{i + 1}</text>
+            </g>
+          );
+        })}
+        <text x={30} y={SVG_H - 4} fontSize="11" fill="#1c1917">{formatChainage(from)} (machine)</text>
+        <text x={SVG_W - 30} y={SVG_H - 4} textAnchor="end" fontSize="11" fill="#1c1917">{formatChainage(to)}</text>
+      </svg>
+      <figcaption className="text-caption text-basalt-700">
+        ○ stop in free air · ◆ stop in compressed air · blue line: water head above the axis (dashed: the site’s compressed-air threshold) · hatched: no stop allowed · strip: ground type.
+      </figcaption>
+    </figure>
+  );
+}
+
+/** The stops as a compact table; a row opens to its positions (and, for the optimised plan, a way to propose it). */
+function StopTable({ projectId, stops, timeZone, canPlan, label }: { projectId: string; stops: PlanStop[]; timeZone: string; canPlan: boolean; label: string }) {
+  const [open, setOpen] = useState<number | null>(null);
+  return (
+    <div className="overflow-x-auto">
+      <table className="min-w-full text-left text-caption" aria-label={label}>
+        <thead className="bg-basalt-100">
+          <tr>
+            <th scope="col" className="px-2 py-1">#</th>
+            <th scope="col" className="px-2 py-1">Chainage</th>
+            <th scope="col" className="px-2 py-1 text-right">Ring</th>
+            <th scope="col" className="px-2 py-1">Expected</th>
+            <th scope="col" className="px-2 py-1 text-right">Positions</th>
+            <th scope="col" className="px-2 py-1 text-right">Hours (stop + changes + ring life)</th>
+            <th scope="col" className="px-2 py-1">Air</th>
+          </tr>
+        </thead>
+        <tbody>
+          {stops.map((s, i) => (
+            <Fragment key={s.chainageM}>
+              <tr className="border-t border-basalt-100">
+                <td className="px-2 py-0.5">{i + 1}</td>
+                <td className="px-2 py-0.5">
+                  <button type="button" className="min-h-touch font-semibold text-ember-700 underline underline-offset-2" aria-expanded={open === i} onClick={() => setOpen(open === i ? null : i)}>
+                    {formatChainage(s.chainageM)}
+                  </button>
+                </td>
+                <td className="px-2 py-0.5 text-right">{s.ringNumber}</td>
+                <td className="px-2 py-0.5">{s.expectedAt ? formatDate(s.expectedAt, timeZone) : '—'}</td>
+                <td className="px-2 py-0.5 text-right">{s.changes.length}</td>
+                <td className="px-2 py-0.5 text-right">{hoursText(s.stopH + s.changeH + s.wastedRingLifeH)} ({s.stopH.toFixed(1)} + {s.changeH.toFixed(1)} + {s.wastedRingLifeH.toFixed(1)})</td>
+                <td className="px-2 py-0.5">{s.compressedAir ? '◆ compressed air' : '○ free air'}</td>
+              </tr>
+              {open === i && (
+                <tr>
+                  <td colSpan={7} className="px-2 pb-3">
+                    <StopDetail projectId={projectId} stop={s} canPlan={canPlan} />
+                  </td>
+                </tr>
+              )}
+            </Fragment>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+function StopDetail({ projectId, stop, canPlan }: { projectId: string; stop: PlanStop; canPlan: boolean }) {
   const navigate = useNavigate();
   const queryClient = useQueryClient();
   const [busy, setBusy] = useState(false);
@@ -147,35 +280,26 @@ function PlanStopCard({ projectId, stop, index, canPlan }: { projectId: string; 
       setBusy(false);
     }
   };
-  const label = `Stop ${index} at ${formatChainage(stop.chainageM)}`;
   return (
-    <li aria-label={label} className="space-y-2 rounded-md border border-basalt-200 p-3">
-      <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
-        <span className="text-lead font-semibold">{index}. {formatChainage(stop.chainageM)}</span>
-        <span>ring {stop.ringNumber} · {stop.aheadM.toFixed(0)} m ahead</span>
+    <div role="group" aria-label={`Stop at ${formatChainage(stop.chainageM)}`} className="space-y-2 rounded-md border border-basalt-200 p-2 text-body">
+      <div className="flex flex-wrap items-center gap-x-3">
+        <span>{stop.aheadM.toFixed(0)} m ahead{stop.waterHeadM != null && ` · water head ${stop.waterHeadM} m`}</span>
         <AirBadge compressedAir={stop.compressedAir} workingPressureBar={stop.workingPressureBar} />
       </div>
-      <p className="text-caption text-basalt-700">
-        Stop {hoursText(stop.stopH)} + changes {hoursText(stop.changeH)} + ring life thrown away {hoursText(stop.wastedRingLifeH)}
-        {stop.waterHeadM != null && ` · water head ${stop.waterHeadM} m`}
-      </p>
-      <div>
-        <span className="font-semibold">Change {stop.changes.length} position{stop.changes.length === 1 ? '' : 's'}: </span>
-        <ul className="inline">
-          {stop.changes.map((c) => (
-            <li key={c.positionId} className="mr-2 inline-block">
-              {c.positionNumber} <span className="text-caption text-basalt-600">({positionClassLabels[c.positionClass].toLowerCase()}, {c.wearAtChangeMm.toFixed(1)} of {c.limitMm} mm)</span>
-            </li>
-          ))}
-        </ul>
-      </div>
+      <ul className="flex flex-wrap gap-x-3">
+        {stop.changes.map((c) => (
+          <li key={c.positionId}>
+            {c.positionNumber} <span className="text-caption text-basalt-600">({positionClassLabels[c.positionClass].toLowerCase()}, {c.wearAtChangeMm.toFixed(1)} of {c.limitMm} mm)</span>
+          </li>
+        ))}
+      </ul>
       {error && <Alert tone="error">{error}</Alert>}
       {stop.existingStopId ? (
         <Link className={linkClass} to={paths.stop(projectId, stop.existingStopId)}>Open the stop already proposed here</Link>
       ) : (
         canPlan && <Button variant="secondary" onClick={propose} disabled={busy}>{busy ? 'Proposing…' : 'Propose this stop'}</Button>
       )}
-    </li>
+    </div>
   );
 }
 
@@ -188,6 +312,8 @@ const settingFields: { key: keyof StopPlanQuery; label: string; hint: string; va
   { key: 'changeHGauge', label: 'Hours per gauge change', hint: 'One gauge disc.', value: (s) => s.changeHByClass.gauge },
   { key: 'wastedRingLifeHPerMm', label: 'Hours per mm of ring life thrown away', hint: 'The price of a ring, as boring time.', value: (s) => s.wastedRingLifeHPerMm },
   { key: 'compressedAirAboveHeadM', label: 'Compressed air above water head (m)', hint: 'The site’s rule for this drive.', value: (s) => s.compressedAirAboveHeadM },
+  { key: 'practiceChangeSharePercent', label: 'Site practice: change at % of the limit', hint: 'Discs worn past this share are changed at every stop (common practice, no source).', value: (s) => s.practiceChangeSharePercent },
+  { key: 'fixedIntervalM', label: 'Fixed interval (m between stops)', hint: 'The rule of a stop every N metres, for comparison.', value: (s) => s.fixedIntervalM },
 ];
 
 /** The plan's assumptions; changing them recalculates the plan (they travel in the page address, nothing is saved). */
