@@ -1,5 +1,6 @@
 // jstat ships no types. `@ts-ignore` rather than `@ts-expect-error`: another file may declare the
 // module, and then an expect-error directive would itself become a type error.
+// eslint-disable-next-line @typescript-eslint/ban-ts-comment -- see the reason above
 // @ts-ignore
 import jstat from 'jstat';
 

@@ -102,7 +102,7 @@ async function backupJob() {
 
 // Making a drive, dumping and restoring take tens of seconds on a busy two-core machine.
 describe('nightly backup and restore', { timeout: 180_000 }, () => {
-  let photoNames: string[] = [];
+  const photoNames: string[] = [];
   let backupPath = '';
   let adminEmail = '';
 

@@ -76,6 +76,7 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
 }) {
   const date = (at: string) => formatSiteDate(at, timeZone);
 
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any -- mixed value types, as TanStack Table types them
   const columns: ColumnDef<PositionForecast, any>[] = [
     {
       id: 'position',
