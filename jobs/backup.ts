@@ -1,5 +1,5 @@
 /**
- * Nightly backup (DEVELOPERS.md, decision 25): one consistent backup of the database and the stored
+ * Nightly backup (DEVELOPERS.md, decision 28): one consistent backup of the database and the stored
  * photos into BACKUP_DIR, then the retention (BACKUP_KEEP_DAILY / BACKUP_KEEP_WEEKLY) prunes the
  * older ones. The run's summary carries size and duration; a failure is recorded by the job runner
  * and mailed to every active administrator.

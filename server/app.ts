@@ -49,7 +49,7 @@ export function createApp(options: AppOptions = {}): Express {
   app.use(cookieParser());
 
   const api = express.Router();
-  // Forged cross-site requests are refused before anything else (decision 25).
+  // Forged cross-site requests are refused before anything else (decision 29).
   api.use(requireSameOrigin, requireBodyType);
   api.use(loadUser);
   api.use('/health', healthRouter);

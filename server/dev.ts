@@ -12,7 +12,7 @@ const stack = await bringUpLocalStack({ dataDir: '.data/pg', pgPort: 54329, data
 process.env.DATABASE_URL = stack.databaseUrl;
 process.env.SMTP_URL = stack.smtpUrl;
 process.env.SESSION_SECRET = localSessionSecret();
-// People open Vite's dev server; links in mail point there (decision 25).
+// People open Vite's dev server; links in mail point there (decision 29).
 process.env.APP_URL ??= 'http://127.0.0.1:5173';
 
 const { env } = await import('./env');

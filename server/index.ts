@@ -15,7 +15,7 @@ installProcessGuards();
 
 if (!env().APP_URL) {
   // E-mailed links (password resets, invitations, stops) are built from APP_URL only, never from a
-  // request's Host header, which a caller controls (decision 25).
+  // request's Host header, which a caller controls (decision 29).
   logger.fatal('APP_URL is not set: set it to the address people open (e.g. https://kerfwise.example.org) and start again.');
   process.exit(1);
 }

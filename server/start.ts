@@ -21,7 +21,7 @@ process.env.DATABASE_URL = stack.databaseUrl;
 process.env.SMTP_URL = stack.smtpUrl;
 process.env.SESSION_SECRET = localSessionSecret();
 process.env.STORAGE_DIR ??= '.data/storage';
-// Links in mail point at the address this serves, never at a request's Host header (decision 25).
+// Links in mail point at the address this serves, never at a request's Host header (decision 29).
 process.env.APP_URL ??= `http://127.0.0.1:${process.env.PORT ?? 3000}`;
 
 let server: Server | undefined;

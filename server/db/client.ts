@@ -8,7 +8,7 @@ import * as schema from './schema';
 pg.types.setTypeParser(20, (v) => Number(v));
 
 /**
- * A pool that survives a database restart, fail-over or outage (DEVELOPERS.md, decision 25): a
+ * A pool that survives a database restart, fail-over or outage (DEVELOPERS.md, decision 33): a
  * connection the server closes — idle in the pool or checked out between two queries — is logged
  * and dropped instead of being an uncaught 'error' event; the next query opens a fresh one.
  */

@@ -100,7 +100,7 @@ export const signInAttempts = pgTable('sign_in_attempts', {
   succeeded: boolean().notNull(),
 }, (t) => [index('sign_in_attempts_email_idx').on(t.email, t.at), index('sign_in_attempts_ip_idx').on(t.ip, t.at)]);
 
-/** Password-reset requests, counted per address asked for and per client address (decision 25). */
+/** Password-reset requests, counted per address asked for and per client address (decision 29). */
 export const passwordResetRequests = pgTable('password_reset_requests', {
   id: bigserial({ mode: 'number' }).primaryKey(),
   at: timestamp({ withTimezone: true }).notNull().defaultNow(),

@@ -7,7 +7,7 @@ import { env } from '../env';
  * The device cookie of the OWASP Authentication Cheat Sheet's throttling scheme: after a good
  * sign-in, the browser gets a signed token naming the account and a random device id. Failures
  * from a device that carries one for the account are counted for that device alone, so an attack
- * from elsewhere cannot lock the owner out of their usual tablet (decision 25).
+ * from elsewhere cannot lock the owner out of their usual tablet (decision 29).
  */
 export const DEVICE_COOKIE = 'kerfwise_device';
 const DEVICE_DAYS = 365;

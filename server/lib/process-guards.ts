@@ -1,5 +1,5 @@
 /**
- * Last-resort handlers for the server process (DEVELOPERS.md, decision 25). Every job and
+ * Last-resort handlers for the server process (DEVELOPERS.md, decision 33). Every job and
  * background task catches its own failures; these catch what slipped through anyway:
  * - an unhandled promise rejection is logged and the server keeps serving (the request or task it
  *   belonged to has already failed on its own; nothing shared is left half-changed by it);

@@ -5,7 +5,7 @@
  * known device (a device cookie this account was signed in with before) or, without one, the
  * client address. A few failures are free; after that each further attempt waits longer. An
  * attacker hammering an account from elsewhere therefore slows down only unknown devices — the
- * owner's usual device keeps its own count. (DEVELOPERS.md, decision 25.)
+ * owner's usual device keeps its own count. (DEVELOPERS.md, decision 29.)
  */
 
 export const signInThrottle = {

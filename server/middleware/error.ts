@@ -41,7 +41,7 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
     res.status(err.status).json(body(err.message, err.issues, err.details));
     return;
   }
-  // The database is restarting or unreachable (decision 25): say so and when to try again.
+  // The database is restarting or unreachable (decision 33): say so and when to try again.
   if (isDatabaseUnavailable(err)) {
     logger.warn({ url: req.originalUrl, err: err instanceof Error ? err.message : String(err) }, 'database unavailable');
     res.status(503).set('Retry-After', String(DATABASE_RETRY_AFTER_S)).json(body(

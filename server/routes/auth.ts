@@ -32,7 +32,7 @@ async function failures(tx: DbOrTx, where: SQL | undefined) {
 }
 
 /**
- * Sign-in, throttled per account and source with growing delays (decision 25). The checks, the
+ * Sign-in, throttled per account and source with growing delays (decision 29). The checks, the
  * password verification and the recorded attempt run under a transaction-scoped advisory lock
  * per account and per client address, so parallel attempts are counted one after another and a
  * burst cannot get more tries than the limit — on every instance, as the lock is PostgreSQL's.
@@ -94,7 +94,7 @@ authRouter.get('/me', requireSignedIn, async (req, res) => {
   res.json({ user, memberships: rows });
 });
 
-/** Reset requests allowed per hour, per address asked for and per client address (decision 25). */
+/** Reset requests allowed per hour, per address asked for and per client address (decision 29). */
 export const resetLimits = { perAccount: 3, perAddress: 10, windowMinutes: 60 };
 
 /** Queues the reset mail for an active account; nothing for an unknown or inactive one. */

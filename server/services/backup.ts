@@ -1,5 +1,5 @@
 /**
- * Backups that are proven to restore (DEVELOPERS.md, decision 25). A backup is a folder
+ * Backups that are proven to restore (DEVELOPERS.md, decision 28). A backup is a folder
  * `kerfwise-YYYY-MM-DDTHH-MM-SSZ` (UTC) in BACKUP_DIR holding:
  *
  * - `database.dump` — pg_dump's custom format, taken in one snapshot;

@@ -1,5 +1,5 @@
 /**
- * Which backups to keep (DEVELOPERS.md, decision 25). The rule is the one of restic's and Borg's
+ * Which backups to keep (DEVELOPERS.md, decision 28). The rule is the one of restic's and Borg's
  * `--keep-daily` / `--keep-weekly`: of the `daily` most recent calendar days that have at least one
  * backup, keep the newest backup of each day; of the `weekly` most recent ISO weeks that have at
  * least one backup, keep the newest backup of each week. A backup may be kept by both rules.

@@ -31,7 +31,7 @@ export function apiErrorFrom(status: number, data: unknown): ApiError {
   return new ApiError(status, message, kept, details);
 }
 
-/** What the client says when the server answers 503: it is up, its database is not (decision 25). */
+/** What the client says when the server answers 503: it is up, its database is not (decision 33). */
 export const DATABASE_DOWN_MESSAGE = 'The server cannot reach its database; your entries are kept on this device.';
 
 type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';

@@ -3,7 +3,7 @@ import type { ApiIssue } from '../../shared/schemas/api-error';
 import { ApiError } from './api-client';
 
 /*
- * The one form pattern (DEVELOPERS.md, decision 26): `useForm` with `zodResolver(<the schema the
+ * The one form pattern (DEVELOPERS.md, decision 31): `useForm` with `zodResolver(<the schema the
  * server parses with>)`, saved through the feature's mutation hook (`useMutation` in its api.ts,
  * invalidation in `onSuccess`), and the server's refusal shown through `serverErrors` below.
  */

@@ -1,5 +1,5 @@
 /**
- * The server survives a database restart and an outage (DEVELOPERS.md, decision 25). The server
+ * The server survives a database restart and an outage (DEVELOPERS.md, decision 33). The server
  * runs as a child process (tests/support/outage-server.ts) so "still alive" means a real process
  * that an unhandled error would have ended.
  *

@@ -9,7 +9,7 @@ export type { AdminMailView, AdminMember, AdminUser, AdminProject, CaughtMail, J
 /**
  * The zone Admin → Mail and Admin → Jobs show times in: mail and job runs belong to the
  * installation, not to one drive, so they use the first project's site zone (UTC when there is no
- * project yet). See DEVELOPERS.md, decision 25.
+ * project yet). See DEVELOPERS.md, decision 30.
  */
 export const installationTimeZone = (projects: readonly Pick<AdminProject, 'siteTimeZone'>[]) => projects[0]?.siteTimeZone ?? 'UTC';
 
