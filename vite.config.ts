@@ -19,6 +19,8 @@ export default defineConfig({
     setupFiles: ['tests/support/setup-env.ts'],
     reporters: ['default', './tests/support/totals-reporter.ts'],
     testTimeout: 30_000,
+    // Browser tests poll the page; on a loaded 2-core machine a screen can take seconds to settle.
+    expect: { poll: { timeout: 15_000 } },
     hookTimeout: 120_000,
     pool: 'forks',
   },

@@ -4,12 +4,13 @@
  * older ones. The run's summary carries size and duration; a failure is recorded by the job runner
  * and mailed to every active administrator.
  */
-import { and, eq } from 'drizzle-orm';
+import { and, eq, gt, like } from 'drizzle-orm';
 import { db } from '../server/db/client';
-import { users } from '../server/db/schema';
+import { jobRuns, users } from '../server/db/schema';
 import { env } from '../server/env';
 import { enqueueMail, kickMailDelivery } from '../server/lib/mail';
 import { BACKUP_JOB_NAME, createBackup, formatBytes, pruneBackups } from '../server/services/backup';
+import { backupStatus } from '../server/services/backup-status';
 import type { JobContext } from '../server/services/job-runner';
 
 export const BACKUP_JOB = BACKUP_JOB_NAME;
@@ -47,4 +48,34 @@ export async function mailAdministrators(subject: string, text: string): Promise
   });
   kickMailDelivery();
   return admins.length;
+}
+
+export const BACKUP_WATCH_JOB = 'backup-watch';
+/** The watch mails at most once in this many hours while backups stay missing. */
+const WATCH_REMIND_HOURS = 24;
+const MAILED = 'Mailed the administrators';
+
+/**
+ * Hourly: when no good backup is newer than 36 h (the nightly job has not run, or keeps failing
+ * without anyone noticing), mail the administrators — at most once a day while it lasts.
+ */
+export async function backupWatchJob({ now }: JobContext): Promise<string> {
+  const status = await backupStatus(now);
+  const [running] = await db.select({ id: jobRuns.id }).from(jobRuns).where(and(eq(jobRuns.job, BACKUP_JOB_NAME), eq(jobRuns.outcome, 'running'))).limit(1);
+  if (status.missing && running) return 'A backup is running now; checked again at the next hour.';
+  if (!status.missing) return `A backup is at most ${status.missingAfterHours} h old; nothing to do.`;
+  const [recent] = await db
+    .select({ id: jobRuns.id })
+    .from(jobRuns)
+    .where(and(eq(jobRuns.job, BACKUP_WATCH_JOB), like(jobRuns.summary, `${MAILED}%`), gt(jobRuns.startedAt, new Date(now.getTime() - WATCH_REMIND_HOURS * 3600_000))))
+    .limit(1);
+  const newest = status.newestAt ? `The newest good backup is from ${status.newestAt.toISOString()}.` : 'There is no good backup at all.';
+  if (recent) return `Backups are missing (${newest}); the administrators were mailed within the last ${WATCH_REMIND_HOURS} h.`;
+  const n = await mailAdministrators(
+    'Kerfwise backup MISSING',
+    `No backup of Kerfwise is newer than ${status.missingAfterHours} hours. ${newest}\n\n` +
+      `Backup folder: ${status.backupDir}\n${status.failedSince ? `Last failure: ${status.failedSince.error ?? 'no message'}\n` : ''}\n` +
+      'Check Administration → Jobs: is the nightly backup running, and does it succeed? Run it there, or run "npm run backup" on the server.\n',
+  );
+  return `${MAILED} (${n}): backups are missing. ${newest}`;
 }

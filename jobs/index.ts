@@ -7,7 +7,7 @@ import cron, { type ScheduledTask } from 'node-cron';
 import { deliverPendingMail } from '../server/lib/mail';
 import { logger } from '../server/lib/logger';
 import { catchUpMissedRuns, runJob, slotAtOrBefore, type JobDefinition } from '../server/services/job-runner';
-import { BACKUP_JOB, nightlyBackupJob } from './backup';
+import { BACKUP_JOB, BACKUP_WATCH_JOB, backupWatchJob, nightlyBackupJob } from './backup';
 import { alreadySentText } from './digest-weeks';
 import { downtimeDigestJob, downtimeDigestWeek } from './downtime-digest';
 import { partsDigestJob, partsDigestWeek } from './parts-digest';
@@ -58,6 +58,7 @@ export const jobs: JobDefinition[] = [
     alreadyDone: ({ now }) => alreadySentText('parts_digest', now, partsDigestWeek),
   },
   { name: BACKUP_JOB, label: 'Nightly backup of the database and photos (BACKUP_DIR), with retention', cron: '15 2 * * *', periodMs: 24 * 60 * MINUTE, run: nightlyBackupJob },
+  { name: BACKUP_WATCH_JOB, label: 'Hourly check that a backup is at most 36 h old; mails the administrators once a day while none is', cron: '40 * * * *', periodMs: 60 * MINUTE, run: backupWatchJob },
 ];
 
 /** The job of that name in the registry (tests and the entries; the server is given the registry). */

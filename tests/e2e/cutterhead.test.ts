@@ -93,7 +93,7 @@ it('a fitter sees the layout read-only and the worn cutterhead with its over-lim
   const page = await signedInPage(browser, app.url, fitter.email);
 
   await page.goto(`${app.url}/projects/${project.id}/layout`);
-  await expect.poll(() => page.getByText('Only the maintenance planner can change the layout.').count()).toBe(1);
+  await expect.poll(() => page.getByText('Only the maintenance planner can change the layout.').count(), { timeout: 15_000 }).toBe(1);
   // A table to read, sort and export; no inputs, no save, no import.
   expect(await page.getByRole('row').count()).toBe(rows.length + 1);
   expect(await page.getByRole('textbox', { name: /row/ }).count()).toBe(0);

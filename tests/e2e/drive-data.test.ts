@@ -98,7 +98,8 @@ it('a planner imports an advance log (a bad file first) and a long section, page
   await expect.poll(() => strip.getByRole('img').count()).toBe(5); // four sections and the machine
   const legend = page.getByRole('list', { name: 'Legend' });
   for (const ground of ['Marl', 'Sandstone', 'Fault zone', 'Granite']) {
-    expect(await strip.getByRole('img', { name: new RegExp(`: ${ground}, water head`) }).count()).toBe(1);
+    // The ground names arrive with the ground types' own refetch, which may come after the sections'.
+    await expect.poll(() => strip.getByRole('img', { name: new RegExp(`: ${ground}, water head`) }).count(), { timeout: 10_000 }).toBe(1);
     expect(await legend.getByText(ground, { exact: true }).count()).toBe(1);
   }
   expect(await strip.getByRole('img', { name: /Fault zone.*no stop allowed: fractured ground, no face support/ }).count()).toBe(1);
