@@ -33,14 +33,9 @@ function sendCsv(res: Response, name: string, columns: string[], rows: unknown[]
 
 // Causes ----------------------------------------------------------------------------------------
 
-/** The drive's causes; a drive without any gets the defaults on first read. */
+/** The drive's causes (the defaults are created with the project: a read never writes). */
 downtimeRouter.get('/causes', requireProject('downtime.read'), async (req, res) => {
-  const projectId = projectIdOf(req);
-  const me = requireUser(req);
-  res.json(await db.transaction(async (tx) => {
-    await ensureDefaultCauses(tx, projectId, me.id);
-    return listCauses(tx, projectId);
-  }));
+  res.json(await listCauses(db, projectIdOf(req)));
 });
 
 async function refuseDuplicateName(tx: DbOrTx, projectId: string, name: string, selfId: string | null) {
