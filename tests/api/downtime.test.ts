@@ -18,6 +18,7 @@ import type { DowntimeEventList, DowntimeReport } from '../../shared/schemas/dow
 import { addMember, makeProject, makeUser, signedInAgent, uniq } from '../support/fixtures';
 import { springEvents, springStrokes } from '../support/downtime-fixtures';
 import { ensureDefaultCauses } from '../../server/services/downtime';
+import { csvLines } from '../support/csv';
 
 const app: Express = createApp();
 type Agent = Awaited<ReturnType<typeof signedInAgent>>;
@@ -166,16 +167,16 @@ describe('the report, hand-worked across a week boundary, a shift boundary and b
   it('exports each table as CSV', async () => {
     const week = await ctx.agent.get(ctx.url('/report?from=2026-03-16&to=2026-03-29&format=csv&table=week'));
     expect(week.headers['content-type']).toMatch(/text\/csv/);
-    expect(week.text.trim().split('\n')).toEqual([
+    expect(csvLines(week.text)).toEqual([
       'cause,cutter_work,2026-W12,2026-W13,total',
       'Cutter change,yes,8.00,4.00,12.00',
       'Machine breakdown,no,0.00,11.00,11.00',
     ]);
     const shift = await ctx.agent.get(ctx.url('/report?from=2026-03-16&to=2026-03-29&format=csv&table=shift'));
-    expect(shift.text.trim().split('\n')[1]).toBe('Cutter change,yes,2.00,10.00,12.00');
+    expect(csvLines(shift.text)[1]).toBe('Cutter change,yes,2.00,10.00,12.00');
     const pareto = await ctx.agent.get(ctx.url('/report?from=2026-03-16&to=2026-03-29&format=csv&table=pareto'));
     // derived: 12/23 = 52.17 %, 11/23 = 47.83 %.
-    expect(pareto.text.trim().split('\n')).toEqual(['cause,cutter_work,hours,share_pct,cumulative_pct', 'Cutter change,yes,12.00,52.2,52.2', 'Machine breakdown,no,11.00,47.8,100.0']);
+    expect(csvLines(pareto.text)).toEqual(['cause,cutter_work,hours,share_pct,cumulative_pct', 'Cutter change,yes,12.00,52.2,52.2', 'Machine breakdown,no,11.00,47.8,100.0']);
     const events = await ctx.agent.get(ctx.url('/events?format=csv&to=2026-03-31'));
     // Site-local times with their offset: the breakdown ends in summer time.
     expect(events.text).toContain('2026-03-28T18:00:00+01:00,2026-03-29T06:00:00+02:00,11.00,Machine breakdown,no,manual');
@@ -313,7 +314,7 @@ describe('cutter cost', () => {
     expect(c).toMatchObject({ unpricedParts: 0, currency: 'EUR', labourRatePerHour: 80, diameterM: 8 });
 
     const csv = await agent.get(url('/cost?from=2026-03-23&to=2026-03-29&format=csv&table=ground'));
-    expect(csv.text.trim().split('\n')[1]).toBe(`${granite.name},10.0,502.7,2950.00,240.00,3190.00,319.00,6.35,3.979`);
+    expect(csvLines(csv.text)[1]).toBe(`${granite.name},10.0,502.7,2950.00,240.00,3190.00,319.00,6.35,3.979`);
 
     // Without a catalogue only labour is counted, and the three parts show as not priced.
     await db.delete(parts).where(eq(parts.projectId, project.id));
