@@ -6,6 +6,7 @@ import { inviteUserInputSchema, membershipInputSchema, updateUserInputSchema } f
 import { roleLabels } from '../../shared/roles';
 import { db } from '../db/client';
 import { caughtMail, jobRuns, memberships, outbox, projects, users } from '../db/schema';
+import { ensureDefaultCauses } from '../services/downtime';
 import { runJob, type JobDefinition } from '../services/job-runner';
 import { requireAdmin, requireUser } from '../middleware/auth';
 import { appUrl } from '../lib/app-url';
@@ -95,6 +96,8 @@ adminRouter.post('/projects', async (req, res) => {
     if (dup) throw conflict('A project with that name already exists.');
     const [p] = await tx.insert(projects).values(input).returning();
     await audit(tx, { userId: me.id, projectId: p.id, entity: 'project', entityId: p.id, action: 'create', after: p });
+    // The causes come with the project, so that no read ever has to write them.
+    await ensureDefaultCauses(tx, p.id, me.id);
     return p;
   });
   res.status(201).json(project);

@@ -1,10 +1,10 @@
-import { stringify } from 'csv-stringify/sync';
 import { and, asc, eq, gt, isNull, lt, max, ne, type SQL } from 'drizzle-orm';
 import { Router, type Request, type Response } from 'express';
 import {
   costQuerySchema, downtimeCauseInputSchema, downtimeCauseUpdateSchema, downtimeEventInputSchema, eventListQuerySchema, reportQuerySchema,
   siteSettingsInputSchema, type DowntimeEventInput, type DowntimeEventList, type DowntimeEventRow,
 } from '../../shared/schemas/downtime';
+import { writeCsv, type CsvCell, type CsvColumn } from '../../shared/csv-writer';
 import { formatSiteDateTime, isoWithSiteOffset } from '../../shared/site-time';
 import { db, type DbOrTx } from '../db/client';
 import { downtimeCauses, downtimeEvents, projects, siteSettings, stops } from '../db/schema';
@@ -26,21 +26,21 @@ async function loadProject(tx: DbOrTx, projectId: string) {
   return project;
 }
 
-function sendCsv(res: Response, name: string, columns: string[], rows: unknown[][]) {
+/** A CSV through the one writer (formula cells neutralised, numbers as on screen, BOM). */
+function sendCsv(res: Response, name: string, columns: (string | CsvColumn)[], rows: CsvCell[][]) {
   res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': `attachment; filename="${name}.csv"` });
-  res.send(stringify(rows, { header: true, columns }));
+  res.send(writeCsv(columns, rows));
 }
+
+/** Decimals as the downtime and cost screens show them: hours 2, shares 1 (%), metres and m³ 1, money 2. */
+const hoursCol = (header: string): CsvColumn => ({ header, decimals: 2 });
+const pctCol = (header: string): CsvColumn => ({ header, decimals: 1 });
 
 // Causes ----------------------------------------------------------------------------------------
 
-/** The drive's causes; a drive without any gets the defaults on first read. */
+/** The drive's causes (the defaults are created with the project: a read never writes). */
 downtimeRouter.get('/causes', requireProject('downtime.read'), async (req, res) => {
-  const projectId = projectIdOf(req);
-  const me = requireUser(req);
-  res.json(await db.transaction(async (tx) => {
-    await ensureDefaultCauses(tx, projectId, me.id);
-    return listCauses(tx, projectId);
-  }));
+  res.json(await listCauses(db, projectIdOf(req)));
 });
 
 async function refuseDuplicateName(tx: DbOrTx, projectId: string, name: string, selfId: string | null) {
@@ -149,9 +149,9 @@ downtimeRouter.get('/events', requireProject('downtime.read'), async (req, res) 
     res.json({ from: period.from, to: period.to, timeZone: tz, events: rows } satisfies DowntimeEventList);
     return;
   }
-  sendCsv(res, 'downtime-events', ['start', 'end', 'hours', 'cause', 'cutter_work', 'source', 'stop_chainage_m', 'note'], rows.map((r) => [
+  sendCsv(res, 'downtime-events', ['start', 'end', hoursCol('hours'), 'cause', 'cutter_work', 'source', 'stop_chainage_m', 'note'], rows.map((r) => [
     // With the site's offset then: unambiguous across daylight-saving changes.
-    isoWithSiteOffset(r.startAt, tz), isoWithSiteOffset(r.endAt, tz), r.hours.toFixed(2), r.causeName ?? '', r.cutterWork ? 'yes' : 'no', r.source, r.stopChainageM ?? '', r.note,
+    isoWithSiteOffset(r.startAt, tz), isoWithSiteOffset(r.endAt, tz), r.hours, r.causeName ?? '', r.cutterWork ? 'yes' : 'no', r.source, r.stopChainageM ?? '', r.note,
   ]));
 });
 
@@ -241,8 +241,6 @@ downtimeRouter.post('/propose-from-gaps', requireProject('downtime.edit'), async
 
 // Reports ---------------------------------------------------------------------------------------
 
-const hoursText = (h: number) => h.toFixed(2);
-const pct = (share: number) => (share * 100).toFixed(1);
 
 /** Pivot of (cause, column, hours) rows: one line per cause with a column each and a total. */
 function pivot(rows: { cause: string; cutterWork: boolean; hours: number; column: string }[], columns: string[]) {
@@ -250,7 +248,7 @@ function pivot(rows: { cause: string; cutterWork: boolean; hours: number; column
   return causes.map((cause) => {
     const mine = rows.filter((r) => r.cause === cause);
     const cells = columns.map((c) => mine.filter((r) => r.column === c).reduce((s, r) => s + r.hours, 0));
-    return [cause, mine[0].cutterWork ? 'yes' : 'no', ...cells.map(hoursText), hoursText(cells.reduce((s, h) => s + h, 0))];
+    return [cause, mine[0].cutterWork ? 'yes' : 'no', ...cells, cells.reduce((s, h) => s + h, 0)];
   });
 }
 
@@ -267,11 +265,11 @@ downtimeRouter.get('/report', requireProject('downtime.read'), async (req, res) 
     return;
   }
   const name = `downtime-${q.table}-${report.from}-${report.to}`;
-  if (q.table === 'week') sendCsv(res, name, ['cause', 'cutter_work', ...report.weeks, 'total'], pivot(report.byWeek.map((r) => ({ ...r, column: r.isoWeek })), report.weeks));
-  else if (q.table === 'shift') sendCsv(res, name, ['cause', 'cutter_work', ...report.shifts, 'total'], pivot(report.byShift.map((r) => ({ ...r, column: r.shift })), report.shifts));
+  if (q.table === 'week') sendCsv(res, name, ['cause', 'cutter_work', ...report.weeks.map(hoursCol), hoursCol('total')], pivot(report.byWeek.map((r) => ({ ...r, column: r.isoWeek })), report.weeks));
+  else if (q.table === 'shift') sendCsv(res, name, ['cause', 'cutter_work', ...report.shifts.map(hoursCol), hoursCol('total')], pivot(report.byShift.map((r) => ({ ...r, column: r.shift })), report.shifts));
   else {
-    sendCsv(res, name, ['cause', 'cutter_work', 'hours', 'share_pct', 'cumulative_pct'], report.pareto.map((r) => [
-      r.cause, r.cutterWork ? 'yes' : 'no', hoursText(r.hours), pct(r.share), pct(r.cumulativeShare),
+    sendCsv(res, name, ['cause', 'cutter_work', hoursCol('hours'), pctCol('share_pct'), pctCol('cumulative_pct')], report.pareto.map((r) => [
+      r.cause, r.cutterWork ? 'yes' : 'no', r.hours, r.share * 100, r.cumulativeShare * 100,
     ]));
   }
 });
@@ -289,8 +287,8 @@ downtimeRouter.get('/cost', requireProject('downtime.read'), async (req, res) =>
     return;
   }
   const rows = q.table === 'week' ? cost.byWeek : cost.byGround;
-  const money = (v: number | null) => (v == null ? '' : v.toFixed(2));
+  const money = (header: string): CsvColumn => ({ header, decimals: 2 });
   sendCsv(res, `cutter-cost-${q.table}-${cost.from}-${cost.to}`,
-    [q.table === 'week' ? 'iso_week' : 'ground_type', 'advance_m', 'excavated_m3', 'parts_cost', 'labour_cost', 'total_cost', 'cost_per_m', 'cost_per_m3', 'rings_per_1000_m3'],
-    rows.map((r) => [r.key, r.advanceM.toFixed(1), r.excavatedM3.toFixed(1), money(r.partsCost), money(r.labourCost), money(r.totalCost), money(r.costPerM), money(r.costPerM3), r.ringsPer1000M3 == null ? '' : r.ringsPer1000M3.toFixed(3)]));
+    [q.table === 'week' ? 'iso_week' : 'ground_type', { header: 'advance_m', decimals: 1 }, { header: 'excavated_m3', decimals: 1 }, money('parts_cost'), money('labour_cost'), money('total_cost'), money('cost_per_m'), money('cost_per_m3'), { header: 'rings_per_1000_m3', decimals: 3 }],
+    rows.map((r) => [r.key, r.advanceM, r.excavatedM3, r.partsCost, r.labourCost, r.totalCost, r.costPerM, r.costPerM3, r.ringsPer1000M3]));
 });

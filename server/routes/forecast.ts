@@ -1,10 +1,11 @@
-import { sql } from 'drizzle-orm';
+import { and, eq, inArray, sql } from 'drizzle-orm';
 import { Router } from 'express';
 import { forecastQuerySchema, forecastSettingsInputSchema } from '../../shared/schemas/forecast';
 import { db } from '../db/client';
-import { forecastSettings } from '../db/schema';
+import { forecastSettings, positions } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
+import { badRequest } from '../lib/http-error';
 import { idParam } from '../lib/params';
 import { computeForecast, computeWearFit, forecastRates, loadForecastSettings } from '../services/forecast';
 
@@ -66,6 +67,12 @@ forecastRouter.put('/settings', requireProject('forecast.edit'), async (req, res
   const me = requireUser(req);
   const input = forecastSettingsInputSchema.parse(req.body);
   const saved = await db.transaction(async (tx) => {
+    const keys = Object.keys(input.overrides);
+    if (keys.length > 0) {
+      const mine = new Set((await tx.select({ id: positions.id }).from(positions).where(and(eq(positions.projectId, projectId), inArray(positions.id, keys)))).map((p) => p.id));
+      const foreign = keys.find((k) => !mine.has(k));
+      if (foreign) throw badRequest(`The override for position ${foreign} names no cutter position of this drive. Reload and choose the position again.`, [{ path: `overrides.${foreign}`, message: 'Not a position of this drive.' }]);
+    }
     const before = await loadForecastSettings(tx, projectId);
     const [after] = await tx
       .insert(forecastSettings)

@@ -62,10 +62,12 @@ groundTypesRouter.delete('/:groundTypeId', requireProject('drive.edit'), async (
   const id = idParam(req.params, 'groundTypeId', 'That ground type');
   const me = requireUser(req);
   await db.transaction(async (tx) => {
-    const [used] = await tx.select({ id: geologySections.id }).from(geologySections).where(eq(geologySections.groundTypeId, id)).limit(1);
+    // 404 before the in-use check: another project's ground type must not show that it exists.
+    const [mine] = await tx.select({ id: groundTypes.id }).from(groundTypes).where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId))).for('update');
+    if (!mine) throw notFound('That ground type');
+    const [used] = await tx.select({ id: geologySections.id }).from(geologySections).where(and(eq(geologySections.groundTypeId, id), eq(geologySections.projectId, projectId))).limit(1);
     if (used) throw conflict('This ground type is used in the long section; change those sections first.');
     const [before] = await tx.delete(groundTypes).where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId))).returning();
-    if (!before) throw notFound('That ground type');
     await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: id, action: 'delete', before });
   });
   res.status(204).end();

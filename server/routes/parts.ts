@@ -1,6 +1,6 @@
-import { stringify } from 'csv-stringify/sync';
 import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import { Router } from 'express';
+import { writeCsv } from '../../shared/csv-writer';
 import {
   demandQuerySchema, partInputSchema, purchaseOrderInputSchema, receiveLineInputSchema, stockCountInputSchema, workshopSettingsInputSchema,
 } from '../../shared/schemas/parts';
@@ -86,7 +86,8 @@ partsRouter.get('/demand/suggestions.csv', requireProject('parts.read'), async (
   const query = demandQuerySchema.parse(req.query);
   const demand = await db.transaction((tx) => computePartsDemand(tx, projectId, new Date(), query));
   res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': `attachment; filename="order-suggestions-${demand.startDate}.csv"` });
-  res.send(stringify(suggestionsCsvRows(demand)));
+  const [header, ...rows] = suggestionsCsvRows(demand);
+  res.send(writeCsv(header.map(String), rows));
 });
 
 /** Purchase orders, newest first, with their lines. */

@@ -25,6 +25,10 @@ function receivePhoto(req: Request, res: Response, next: NextFunction) {
       next(err.code === 'LIMIT_FILE_SIZE'
         ? new HttpError(413, 'The photo is larger than 10 MB. Take it at a lower resolution and try again.')
         : badRequest(`The upload was not understood (${err.message}). Send one photo in the field "photo".`));
+    } else if (err instanceof Error && !(err instanceof HttpError)) {
+      // Errors of the multipart parser itself (busboy: "Unexpected end of form", "Malformed part
+      // header", …) mean the body was cut off or garbled on the way: the sender's fault, not ours.
+      next(badRequest(`The photo did not arrive whole (${err.message}). Check the connection and send it again.`));
     } else next(err);
   });
 }

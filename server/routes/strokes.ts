@@ -1,6 +1,6 @@
 import { and, asc, count, desc, eq, gte, lte, sql, type SQL } from 'drizzle-orm';
 import { Router } from 'express';
-import { stringify } from 'csv-stringify';
+import { csvHead, csvRecord } from '../../shared/csv-writer';
 import { z } from 'zod';
 import { advanceLogFields } from '../../shared/csv-headers';
 import { advanceLogColumnMappingSchema } from '../../shared/schemas/advance-log';
@@ -57,13 +57,17 @@ strokesRouter.get('/export.csv', requireProject('drive.read'), async (req, res) 
   const tz = await siteTimeZone(projectId);
   const rows = await db.select().from(strokes).where(filters(projectId, q, tz)).orderBy(asc(strokes.ringNumber));
   res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': 'attachment; filename="advance-log.csv"' });
-  const csv = stringify({ header: true, columns: ['ring', 'start_time', 'end_time', 'chainage_start_m', 'chainage_end_m', 'revolutions', 'penetration_mm_per_rev', 'rpm', 'thrust_kn', 'torque_knm'] });
-  csv.pipe(res);
+  // Numbers in full (no `decimals`): this file is read back by the import and must change nothing.
+  let chunk = csvHead(['ring', 'start_time', 'end_time', 'chainage_start_m', 'chainage_end_m', 'revolutions', 'penetration_mm_per_rev', 'rpm', 'thrust_kn', 'torque_knm']);
   for (const r of rows) {
     // Site time with its offset: what the site reads, unambiguous, and read back by the import.
-    csv.write([r.ringNumber, isoWithSiteOffset(r.startTime, tz), isoWithSiteOffset(r.endTime, tz), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm]);
+    chunk += csvRecord([r.ringNumber, isoWithSiteOffset(r.startTime, tz), isoWithSiteOffset(r.endTime, tz), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm]);
+    if (chunk.length > 64 * 1024) {
+      res.write(chunk);
+      chunk = '';
+    }
   }
-  csv.end();
+  res.end(chunk);
 });
 
 /** Metres advanced per calendar day in the site's time zone (for the small chart). */

@@ -1,5 +1,5 @@
 /**
- * Downtime for the site manager: the drive's causes (defaults seeded on first use), site settings,
+ * Downtime for the site manager: the drive's causes (defaults created with the project), site settings,
  * gap proposals from the advance log, and the reports (downtime by cause × week and × shift,
  * utilisation, cutter-work share, metres per day, Pareto; cutter cost per m and per m³). Shared by
  * the downtime routes, the weekly digest job and the demo loader. All times in the site's zone.
@@ -48,7 +48,7 @@ export const DEFAULT_SITE_SETTINGS = {
   gapMinutes: 90,
 };
 
-/** Seeds the default causes into a drive that has none (idempotent, also under a race). */
+/** Seeds the default causes into a drive that has none (idempotent, also under a race); called when a project is created, never by a read. */
 export async function ensureDefaultCauses(tx: DbOrTx, projectId: string, userId: string | null): Promise<void> {
   const [any] = await tx.select({ id: downtimeCauses.id }).from(downtimeCauses).where(eq(downtimeCauses.projectId, projectId)).limit(1);
   if (any) return;

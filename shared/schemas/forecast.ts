@@ -16,12 +16,18 @@ export const forecastSettingsInputSchema = z.object({
   overcutMarginMm: z.number().min(0).max(200),
   windowStrokes: z.number().int().min(5, 'Use at least 5 strokes.').max(2000),
   overrides: z.record(
-    z.uuid(),
+    z.string(),
     z.object({
       penetrationMmPerRev: z.number().gt(0, 'Penetration must be more than 0 mm/rev.').max(50).optional(),
       advanceMPerDay: z.number().gt(0, 'Advance per day must be more than 0 m.').max(200).optional(),
     }),
-  ),
+  ).superRefine((overrides, ctx) => {
+    // Keys are cutter position ids; the server also checks that they are this drive's positions.
+    for (const key of Object.keys(overrides)) {
+      if (key.trim() === '') ctx.addIssue({ code: 'custom', path: [key], message: 'An override has no cutter position; choose the position it is for.' });
+      else if (!z.uuid().safeParse(key).success) ctx.addIssue({ code: 'custom', path: [key], message: `"${key}" is not a cutter position of this drive; choose one from the list.` });
+    }
+  }),
 });
 export type ForecastSettingsInput = z.infer<typeof forecastSettingsInputSchema>;
 

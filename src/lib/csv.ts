@@ -1,8 +1,11 @@
-import Papa from 'papaparse';
+import { writeCsv, type CsvCell, type CsvColumn } from '../../shared/csv-writer';
 
-/** CSV text of a header and rows (RFC 4180 quoting by papaparse). */
-export function toCsv(header: string[], rows: (string | number | null | undefined)[][]): string {
-  return Papa.unparse({ fields: header, data: rows.map((r) => r.map((v) => v ?? '')) }, { newline: '\r\n' });
+/**
+ * CSV text of a header and rows through Kerfwise's one CSV writer (shared/csv-writer.ts): formula
+ * cells neutralised, numbers rounded to a column's `decimals`, UTF-8 BOM, RFC 4180 quoting.
+ */
+export function toCsv(header: (string | CsvColumn)[], rows: CsvCell[][]): string {
+  return writeCsv(header, rows);
 }
 
 /** Starts a browser download of CSV text. */

@@ -1,5 +1,5 @@
 /**
- * Downtime through the API: causes seeded on first read and kept by the site manager; events split
+ * Downtime through the API: causes created with the project (a read never writes) and kept by the site manager; events split
  * across a week boundary, a shift boundary and both daylight-saving changes of 2026 in the report;
  * gap proposals that leave no standstill unexplained and repeat nothing; cutter cost per metre and
  * per m³; bad input that changes nothing.
@@ -17,6 +17,8 @@ import { cutterEvents, cutters, geologySections, groundTypes, parts, projects, s
 import type { DowntimeEventList, DowntimeReport } from '../../shared/schemas/downtime';
 import { addMember, makeProject, makeUser, signedInAgent, uniq } from '../support/fixtures';
 import { springEvents, springStrokes } from '../support/downtime-fixtures';
+import { ensureDefaultCauses } from '../../server/services/downtime';
+import { csvLines } from '../support/csv';
 
 const app: Express = createApp();
 type Agent = Awaited<ReturnType<typeof signedInAgent>>;
@@ -24,6 +26,8 @@ type Agent = Awaited<ReturnType<typeof signedInAgent>>;
 /** A new drive (Europe/Zurich, makeProject) with a site manager signed in. */
 async function driveWithManager() {
   const project = await makeProject();
+  // makeProject inserts directly; the admin API creates the causes with the project (tested below).
+  await ensureDefaultCauses(db, project.id, null);
   const manager = await makeUser();
   await addMember(project.id, manager.id, 'site_manager');
   const agent: Agent = await signedInAgent(app, manager.email);
@@ -46,13 +50,33 @@ async function snapshot(projectId: string) {
 const byKey = <T>(rows: T[], key: (r: T) => string, value: (r: T) => number) => Object.fromEntries(rows.map((r) => [key(r), value(r)]));
 
 describe('causes', () => {
-  it('seeds the defaults once on first read, with cutter inspection, cutter change and compressed-air stops as cutter work', async () => {
-    const { agent, url, causes } = await driveWithManager();
+  it('a project created through the admin API has the defaults, with cutter inspection, cutter change and compressed-air stops as cutter work', async () => {
+    const admin = await makeUser({ isAdmin: true });
+    const adminAgent: Agent = await signedInAgent(app, admin.email);
+    const created = await adminAgent.post('/api/admin/projects').send({ name: uniq('Causes drive'), excavatedDiameterM: 6.2, startChainageM: 0, driveDirection: 'increasing', siteTimeZone: 'Europe/Zurich' });
+    expect(created.status).toBe(201);
+    const manager = await makeUser();
+    await addMember(created.body.id, manager.id, 'site_manager');
+    const agent: Agent = await signedInAgent(app, manager.email);
+    const causes = (await agent.get(`/api/projects/${created.body.id}/downtime/causes`)).body as { name: string; cutterWork: boolean }[];
     expect(causes.map((c) => c.name)).toEqual([
       'Cutter inspection', 'Cutter change', 'Compressed-air stop', 'Machine breakdown', 'Lining supply', 'Muck removal', 'Survey', 'Waiting', 'Other',
     ]);
     expect(causes.filter((c) => c.cutterWork).map((c) => c.name)).toEqual(['Cutter inspection', 'Cutter change', 'Compressed-air stop']);
-    expect((await agent.get(url('/causes'))).body).toHaveLength(9);
+  });
+
+  it('GET causes on a project without causes writes nothing (a GET never writes)', async () => {
+    const project = await makeProject();
+    const manager = await makeUser();
+    await addMember(project.id, manager.id, 'site_manager');
+    const agent: Agent = await signedInAgent(app, manager.email);
+    const before = await snapshot(project.id);
+    const res = await agent.get(`/api/projects/${project.id}/downtime/causes`);
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual([]);
+    expect(await snapshot(project.id)).toEqual(before);
+    const [{ n }] = (await db.execute<{ n: number }>(sql`select count(*)::int as n from downtime_causes where project_id = ${project.id}`)).rows;
+    expect(n).toBe(0);
   });
 
   it('adds, renames and deactivates a cause; a second cause of the same name is refused', async () => {
@@ -143,16 +167,16 @@ describe('the report, hand-worked across a week boundary, a shift boundary and b
   it('exports each table as CSV', async () => {
     const week = await ctx.agent.get(ctx.url('/report?from=2026-03-16&to=2026-03-29&format=csv&table=week'));
     expect(week.headers['content-type']).toMatch(/text\/csv/);
-    expect(week.text.trim().split('\n')).toEqual([
+    expect(csvLines(week.text)).toEqual([
       'cause,cutter_work,2026-W12,2026-W13,total',
       'Cutter change,yes,8.00,4.00,12.00',
       'Machine breakdown,no,0.00,11.00,11.00',
     ]);
     const shift = await ctx.agent.get(ctx.url('/report?from=2026-03-16&to=2026-03-29&format=csv&table=shift'));
-    expect(shift.text.trim().split('\n')[1]).toBe('Cutter change,yes,2.00,10.00,12.00');
+    expect(csvLines(shift.text)[1]).toBe('Cutter change,yes,2.00,10.00,12.00');
     const pareto = await ctx.agent.get(ctx.url('/report?from=2026-03-16&to=2026-03-29&format=csv&table=pareto'));
     // derived: 12/23 = 52.17 %, 11/23 = 47.83 %.
-    expect(pareto.text.trim().split('\n')).toEqual(['cause,cutter_work,hours,share_pct,cumulative_pct', 'Cutter change,yes,12.00,52.2,52.2', 'Machine breakdown,no,11.00,47.8,100.0']);
+    expect(csvLines(pareto.text)).toEqual(['cause,cutter_work,hours,share_pct,cumulative_pct', 'Cutter change,yes,12.00,52.2,52.2', 'Machine breakdown,no,11.00,47.8,100.0']);
     const events = await ctx.agent.get(ctx.url('/events?format=csv&to=2026-03-31'));
     // Site-local times with their offset: the breakdown ends in summer time.
     expect(events.text).toContain('2026-03-28T18:00:00+01:00,2026-03-29T06:00:00+02:00,11.00,Machine breakdown,no,manual');
@@ -290,7 +314,7 @@ describe('cutter cost', () => {
     expect(c).toMatchObject({ unpricedParts: 0, currency: 'EUR', labourRatePerHour: 80, diameterM: 8 });
 
     const csv = await agent.get(url('/cost?from=2026-03-23&to=2026-03-29&format=csv&table=ground'));
-    expect(csv.text.trim().split('\n')[1]).toBe(`${granite.name},10.0,502.7,2950.00,240.00,3190.00,319.00,6.35,3.979`);
+    expect(csvLines(csv.text)[1]).toBe(`${granite.name},10.0,502.7,2950.00,240.00,3190.00,319.00,6.35,3.979`);
 
     // Without a catalogue only labour is counted, and the three parts show as not priced.
     await db.delete(parts).where(eq(parts.projectId, project.id));

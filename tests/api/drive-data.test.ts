@@ -11,6 +11,7 @@ import { createApp } from '../../server/app';
 import { db } from '../../server/db/client';
 import { fittingRolledKm, fittings, groundTypes, projects, strokes } from '../../server/db/schema';
 import { addMember, makeProject, makeUser, signedInAgent } from '../support/fixtures';
+import { csvLines } from '../support/csv';
 import { makeCutterhead } from '../support/drive-fixtures';
 
 const app = createApp();
@@ -146,7 +147,7 @@ describe('good files', () => {
     expect(bad.status).toBe(400);
     const csv = await planner.get(`/api/projects/${projectId}/strokes/export.csv`);
     expect(csv.headers['content-type']).toMatch(/text\/csv/);
-    expect(csv.text.split('\n')[0]).toMatch(/^ring,start_time/);
+    expect(csvLines(csv.text)[0]).toMatch(/^ring,start_time/);
   });
 
   it('geology sections that overlap are refused from the table form too', async () => {

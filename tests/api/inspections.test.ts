@@ -198,4 +198,20 @@ describe('photos', () => {
     expect(res.body.error.message).toMatch(/10 MB/);
     expect(await countPhotos()).toBe(before);
   });
+
+  it('answers 400, not 500, to a multipart body cut off in the middle (no closing boundary), storing nothing', async () => {
+    const before = await countPhotos();
+    const boundary = 'kerfwise-cut-boundary';
+    // RFC 7578 multipart/form-data whose file part stops mid-way: the closing --boundary-- never comes.
+    const body = Buffer.concat([
+      Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="entryClientKey"\r\n\r\n${entryKey}\r\n`),
+      Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="clientKey"\r\n\r\n${randomUUID()}\r\n`),
+      Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="photo"; filename="cut.png"\r\nContent-Type: image/png\r\n\r\n`),
+      PNG_1x1.subarray(0, 20),
+    ]);
+    const res = await fitter.post(`/api/projects/${projectId}/photos`).set('Content-Type', `multipart/form-data; boundary=${boundary}`).send(body);
+    expect(res.status).toBe(400);
+    expect(res.body.error.message).toMatch(/did not arrive whole.*send it again/);
+    expect(await countPhotos()).toBe(before);
+  });
 });

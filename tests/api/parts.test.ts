@@ -16,6 +16,7 @@ import type { DemandWeek } from '../../server/services/parts';
 import { siteDay } from '../../shared/site-time';
 import type { OrderSuggestion } from '../../shared/schemas/parts';
 import { addMember, makeProject, makeUser, signedInAgent } from '../support/fixtures';
+import { csvLines } from '../support/csv';
 import { makeCutterhead } from '../support/drive-fixtures';
 import { bomFor, makeSmallCatalogue } from '../support/parts-fixtures';
 import { insertStop, makeStopsDrive } from '../support/stops-fixtures';
@@ -134,7 +135,7 @@ describe('demand and order suggestions, worked by hand', () => {
     expect(csv.status).toBe(200);
     expect(csv.headers['content-type']).toMatch(/text\/csv/);
     expect(csv.headers['content-disposition']).toMatch(/attachment; filename="order-suggestions-\d{4}-\d{2}-\d{2}\.csv"/);
-    const lines = csv.text.trim().split('\n');
+    const lines = csvLines(csv.text);
     expect(lines[0]).toMatch(/^code,name,supplier,on_hand,on_order/);
     const ringLine = lines.find((l) => l.startsWith('RING17,'))!;
     expect(ringLine).toContain(',yes,10,380,EUR,3800,');

@@ -47,6 +47,7 @@ it('the buyer sees an order suggestion caused by a scheduled stop and exports it
   const [download] = await Promise.all([page.waitForEvent('download'), panel.getByRole('button', { name: 'Export CSV' }).click()]);
   expect(download.suggestedFilename()).toMatch(/^kerfwise-order-suggestions-\d{4}-\d{2}-\d{2}\.csv$/);
   const csv = await readFile((await download.path())!, 'utf8');
+  expect(csv.startsWith('\uFEFF'), 'the Export CSV button writes the UTF-8 BOM (shared/csv-writer.ts)').toBe(true);
   const [header, ...lines] = csv.trim().split(/\r?\n/);
   expect(header).toContain('Order now');
   expect(header).toContain('Demand from');

@@ -1,13 +1,22 @@
 import {
   flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable,
-  type ColumnDef, type OnChangeFn, type PaginationState, type Row, type SortingState,
+  type ColumnDef, type OnChangeFn, type PaginationState, type Row, type RowData, type SortingState,
 } from '@tanstack/react-table';
 import { Fragment, useState, type ReactNode } from 'react';
+import type { CsvColumn } from '../../../shared/csv-writer';
 import { downloadCsv, toCsv } from '../../lib/csv';
 import { Button } from './button';
 import { SelectField } from './field';
 
 type CsvValue = string | number | null | undefined;
+
+declare module '@tanstack/react-table' {
+  // eslint-disable-next-line @typescript-eslint/no-unused-vars
+  interface ColumnMeta<TData extends RowData, TValue> {
+    /** Decimals of this column's numbers in the CSV export, as the cell shows them. */
+    csvDecimals?: number;
+  }
+}
 
 /**
  * Paging, sorting and filtering done by the server: the table shows the one page it is given and
@@ -49,7 +58,7 @@ interface DataTableProps<T> {
    * The CSV export: by default the columns as shown; `csv` names its own columns; `exportHref`
    * downloads from the server instead (all matching rows, not just the page shown).
    */
-  csv?: { header: string[]; row: (row: T) => CsvValue[] };
+  csv?: { header: (string | CsvColumn)[]; row: (row: T) => CsvValue[] };
   exportHref?: string;
   /** Fields above the table (server filters). */
   toolbar?: ReactNode;
@@ -104,7 +113,7 @@ export function DataTable<T>({
       return;
     }
     const exported = leafColumns;
-    const header = exported.map((c) => (typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id));
+    const header = exported.map((c) => ({ header: typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id, decimals: c.columnDef.meta?.csvDecimals }));
     const values = rows.map((r) => exported.map((c) => {
       const v = r.getValue(c.id);
       return typeof v === 'number' || typeof v === 'string' ? v : v == null ? '' : String(v);

@@ -38,8 +38,8 @@ export function HoursPivot<T extends { cause: string; cutterWork: boolean; hours
   const tableColumns = [
     col.accessor('cause', { header: 'Cause', cell: ({ getValue }) => <span className={getValue() === ALL ? 'font-semibold' : ''}>{getValue()}</span> }),
     col.accessor('cutterWork', { header: 'Cutter work' }),
-    ...columns.map((c) => col.accessor((r) => r.hours[c] ?? 0, { id: c, header: columnLabel ? columnLabel(c) : c, cell: ({ getValue }) => hoursCell(getValue()) })),
-    col.accessor('total', { header: 'Total (h)', cell: ({ getValue }) => <span className="font-semibold">{getValue().toFixed(1)}</span> }),
+    ...columns.map((c) => col.accessor((r) => r.hours[c] ?? 0, { id: c, header: columnLabel ? columnLabel(c) : c, cell: ({ getValue }) => hoursCell(getValue()), meta: { csvDecimals: 1 } })),
+    col.accessor('total', { header: 'Total (h)', cell: ({ getValue }) => <span className="font-semibold">{getValue().toFixed(1)}</span>, meta: { csvDecimals: 1 } }),
   ];
   return <DataTable data={data} columns={tableColumns} exportName={exportName} emptyText="No downtime in this period." />;
 }

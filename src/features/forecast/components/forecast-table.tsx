@@ -145,15 +145,19 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
     },
   ];
 
+  // Numbers stay numbers (rounded by the writer as the table shows them), so an overdue negative
+  // remaining distance is not mistaken for a formula cell.
   const csvHeader = [
-    'Position', 'Class', 'Serial', 'Wear now P50 (mm)', 'Wear now P90 (mm)', 'Limit (mm)',
-    'P90 chainage', 'P90 chainage (m)', 'P90 ring', 'P90 date', 'P90 remaining (m)', 'P90 status',
-    'P50 chainage', 'P50 chainage (m)', 'P50 ring', 'P50 date', 'P50 remaining (m)', 'P50 status', 'Flags',
+    'Position', 'Class', 'Serial', { header: 'Wear now P50 (mm)', decimals: 2 }, { header: 'Wear now P90 (mm)', decimals: 2 }, 'Limit (mm)',
+    ...(['P90', 'P50'] as const).flatMap((q) => [
+      `${q} chainage`, { header: `${q} chainage (m)`, decimals: 1 }, `${q} ring`, `${q} date`, { header: `${q} remaining (m)`, decimals: 1 }, `${q} status`,
+    ]),
+    'Flags',
   ];
   const csvRow = (p: PositionForecast) => [
-    p.position.positionNumber, positionClassLabels[p.position.positionClass], p.serial, fixed(p.p50.wearNowMm, 2), fixed(p.p90.wearNowMm, 2), p.position.allowableWearMm,
+    p.position.positionNumber, positionClassLabels[p.position.positionClass], p.serial, p.p50.wearNowMm, p.p90.wearNowMm, p.position.allowableWearMm,
     ...(['p90', 'p50'] as const).flatMap((q) => [
-      formatChainage(p[q].chainageM), fixed(p[q].chainageM, 1), p[q].ringNumber, date(p[q].date), fixed(p[q].remainingM, 1), p[q].status.replaceAll('_', ' '),
+      formatChainage(p[q].chainageM), p[q].chainageM, p[q].ringNumber, date(p[q].date), p[q].remainingM, p[q].status.replaceAll('_', ' '),
     ]),
     flagsOf(p).map((f) => f.text).join('; '),
   ];
