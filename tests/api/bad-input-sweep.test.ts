@@ -109,8 +109,20 @@ const knownBadValues: unknown[] = [
 /** Values for path parameters: malformed ids, huge integers, traversal, empty. */
 const badParams = ['not-a-uuid', '2147483648', '99999999999999999999999', '-1', '0', '..%2F', '%2E%2E', '%00', '%ZZ', 'x'.repeat(300), '1e308', 'NaN', '00000000-0000-0000-0000-00000000000g', '%20', 'null'];
 /** Query parameter names routes read (page, pageSize, weeks, from/to, format, table…) and a few unknown ones. */
-const queryNames = ['page', 'pageSize', 'weeks', 'from', 'to', 'format', 'table', 'limit', 'offset', 'at', 'since', 'ring', 'chainageM', 'q', 'projectId', 'until', 'status', 'kind'];
-const badQueryValues = ['2147483648', '-1', '1e308', 'NaN', '0000-01-01', '9999-12-31', '9999-12-31T00:00:00Z', '%00', 'x'.repeat(5000), '', '[]', '0.5', 'csv', '-0'];
+const queryNames = ['mapping', 'replace', 'again', 'page', 'pageSize', 'weeks', 'from', 'to', 'format', 'table', 'limit', 'offset', 'at', 'since', 'ring', 'chainageM', 'q', 'projectId', 'until', 'status', 'kind'];
+const badQueryValues = ['2147483648', '-1', '1e308', 'NaN', '0000-01-01', '9999-12-31', '9999-12-31T00:00:00Z', '%00', 'x'.repeat(5000), '', '[]', '0.5', 'csv', '-0', '{"ringNumber":"Ring\\u0000"}', '{"ringNumber":"\u0000"}', '{"ringNumber":1}', '{"__proto__":{"x":"y"}}', 'true'];
+
+/** Broken CSV files, and the route's valid file with a NUL, a control character or a huge number in a cell or an extra column. */
+const badCsv = (valid: string): string[] => {
+  const [head, ...rows] = valid.trimEnd().split('\n');
+  const cells = rows[0].split(',');
+  const withCell = (i: number, v: string) => [head, cells.map((x, j) => (j === i ? v : x)).join(','), ...rows.slice(1)].join('\n') + '\n';
+  return [
+    '\u0000,\u0000\n', `Ring\n${'9'.repeat(400)}\n`, 'a,b\n"unclosed', '',
+    ...cells.flatMap((_, i) => [withCell(i, 'Ring\u0000seal'), withCell(i, '2147483648'), withCell(i, '1e308'), withCell(i, '9999-12-31T00:00:00Z'), withCell(i, '0000-01-01'), withCell(i, '\u001b')]),
+    `${head},Extra\u0000column\n${rows.map((r) => `${r},x\u0000y`).join('\n')}\n`,
+  ];
+};
 
 const deep = (levels: number): unknown => (levels === 0 ? 'bottom' : { a: deep(levels - 1) });
 const badValue = fc.oneof(
@@ -164,7 +176,7 @@ function badRequests(route: RouteCase, c: RouteContext): fc.Arbitrary<BadRequest
     badValue,
     fc.constant(undefined),
   );
-  const raw = route.csv ? fc.option(fc.oneof(fc.constantFrom('\u0000,\u0000\n', `Ring\n${'9'.repeat(400)}\n`, 'a,b\n"unclosed'), fc.string({ unit: 'binary', maxLength: 200 })), { nil: undefined }) : fc.constant(undefined);
+  const raw = route.csv ? fc.option(fc.oneof(fc.constantFrom(...badCsv(route.csv(c))), fc.string({ unit: 'binary', maxLength: 200 })), { nil: undefined }) : fc.constant(undefined);
   return fc.record({ params, query, body, raw }).map(({ params: p, query: q, body: b, raw: r }) => ({
     params: p ? { [p.name]: p.value } : {},
     query: q ? `${route.path.includes('?') ? '&' : '?'}${q[0]}=${encodeURIComponent(q[1])}` : '',
@@ -207,6 +219,12 @@ describe('no bad input answers 5xx or changes a table', () => {
           i++;
           if (typeof valid !== 'object' || valid === null || i >= countLeaves(valid)) break;
         }
+      }
+    }
+    if (route.csv) {
+      for (const raw of badCsv(route.csv(c))) await check({ params: {}, query: '', body: undefined, raw });
+      for (const m of ['{"ringNumber":"Ring\\u0000"}', '{"chainageFromM":"\\u0000"}', '{"x":"y"}', '[]', 'null', '{']) {
+        await check({ params: {}, query: `?mapping=${encodeURIComponent(m)}`, body: undefined, raw: route.csv(c) });
       }
     }
     await fc.assert(fc.asyncProperty(badRequests(route, c), async (bad) => { await check(bad); }), { seed: SEED, numRuns: RUNS_PER_ROUTE, endOnFailure: true });
