@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { chainageM, freeText, INT32_MAX, instant, requiredLine } from './fields';
 import type { ColumnMapping, CsvFieldInfo } from '../csv-headers';
 
 /**
@@ -31,7 +32,7 @@ const whenValid =
     !payload.issues.some((issue) => fields.includes(String(issue.path?.[0])));
 
 const isoWithOffset = (what: string) =>
-  z.iso.datetime({ offset: true, error: `${what} is missing or is not a date and time with its UTC offset.` });
+  instant(what, `${what} is missing or is not a date and time with its UTC offset.`);
 
 const nullableAtLeastZero = (what: string) =>
   z.number().min(0, `${what} cannot be negative; leave the cell empty when it was not recorded.`).nullable();
@@ -41,12 +42,13 @@ export const advanceLogRowSchema = z
     ringNumber: z
       .number({ error: 'The ring number is empty; every row needs one.' })
       .int('The ring number must be a whole number.')
-      .min(0, 'The ring number cannot be negative.'),
+      .min(0, 'The ring number cannot be negative.')
+      .max(INT32_MAX, `The ring number must be at most ${INT32_MAX.toLocaleString('en')}.`),
     /** ISO 8601 with offset, in the project's time zone. */
     startTime: isoWithOffset('The start time'),
     endTime: isoWithOffset('The end time'),
-    chainageStartM: z.number({ error: 'The chainage at the start of the stroke is empty; every row needs one.' }),
-    chainageEndM: z.number({ error: 'The chainage at the end of the stroke is empty; every row needs one.' }),
+    chainageStartM: chainageM('The chainage at the start of the stroke', 'The chainage at the start of the stroke is empty; every row needs one.'),
+    chainageEndM: chainageM('The chainage at the end of the stroke', 'The chainage at the end of the stroke is empty; every row needs one.'),
     /** Measured cutterhead revolutions over the stroke; null when only penetration is logged. */
     revolutions: nullableAtLeastZero('Cutterhead revolutions'),
     penetrationMmPerRev: z
@@ -57,7 +59,7 @@ export const advanceLogRowSchema = z
     thrustKn: nullableAtLeastZero('Thrust'),
     torqueKnm: nullableAtLeastZero('Torque'),
     /** Columns of the file that map to no field, by header, as text. */
-    extra: z.record(z.string(), z.string()),
+    extra: z.record(z.string(), freeText('An extra column', 10_000)),
   })
   .refine((row) => Date.parse(row.endTime) > Date.parse(row.startTime), {
     path: ['endTime'],
@@ -71,7 +73,7 @@ export const advanceLogRowSchema = z
   });
 export type AdvanceLogRow = z.infer<typeof advanceLogRowSchema>;
 
-export const advanceLogColumnMappingSchema = z.partialRecord(z.enum(advanceLogFieldNames), z.string().trim().min(1));
+export const advanceLogColumnMappingSchema = z.partialRecord(z.enum(advanceLogFieldNames), requiredLine('A column name', 200, 'Choose a column of the file.'));
 export type AdvanceLogColumnMapping = ColumnMapping<AdvanceLogField>;
 
 // ----- geology long section -----
@@ -90,18 +92,18 @@ export type GeologySectionField = (typeof geologySectionFieldNames)[number];
 
 export const geologySectionRowSchema = z
   .object({
-    chainageFromM: z.number({ error: 'Chainage from is empty; every section needs one.' }),
+    chainageFromM: chainageM('Chainage from', 'Chainage from is empty; every section needs one.'),
     /** Greater than chainageFromM whatever the drive direction (see shared/domain/geology.ts). */
-    chainageToM: z.number({ error: 'Chainage to is empty; every section needs one.' }),
+    chainageToM: chainageM('Chainage to', 'Chainage to is empty; every section needs one.'),
     // Limits as in shared/schemas/geology.ts, so rows that pass here also pass the section input.
-    groundTypeName: z.string({ error: 'The ground type is empty; name the ground of this section.' }).min(1).max(80, 'Keep the ground type name to 80 characters.'),
+    groundTypeName: requiredLine('The ground type name', 80, 'The ground type is empty; name the ground of this section.'),
     waterHeadM: z
       .number()
       .min(0, 'The water head above the tunnel axis cannot be negative; leave it empty when unknown.')
       .max(500, 'The water head above the tunnel axis must be at most 500 m.')
       .nullable(),
     stopAllowed: z.boolean({ error: 'Say whether a stop is allowed in this section: yes or no.' }),
-    stopReason: z.string().max(300, 'Keep the stop reason to 300 characters.').nullable(),
+    stopReason: freeText('The stop reason', 300).nullable(),
     /**
      * Properties of the section's ground type when the file gives them (limits as in
      * shared/schemas/geology.ts); undefined, not null, when it does not.
@@ -121,7 +123,7 @@ export const geologySectionRowSchema = z
   });
 export type GeologySectionRow = z.infer<typeof geologySectionRowSchema>;
 
-export const geologySectionColumnMappingSchema = z.partialRecord(z.enum(geologySectionFieldNames), z.string().trim().min(1));
+export const geologySectionColumnMappingSchema = z.partialRecord(z.enum(geologySectionFieldNames), requiredLine('A column name', 200, 'Choose a column of the file.'));
 export type GeologySectionColumnMapping = ColumnMapping<GeologySectionField>;
 
 /** One ring or stroke of the advance log as GET /strokes sends it. */

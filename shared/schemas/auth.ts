@@ -7,7 +7,7 @@ export const emailSchema = emailAddress();
 
 export const signInInputSchema = z.object({
   email: emailSchema,
-  password: z.string({ message: 'Enter your password.' }).min(1, 'Enter your password.').max(200),
+  password: z.string({ message: 'Enter your password.' }).min(1, 'Enter your password.').max(200, 'A password has at most 200 characters.'),
 });
 export type SignInInput = z.infer<typeof signInInputSchema>;
 

@@ -1,10 +1,11 @@
 import { z } from 'zod';
+import { requiredLine } from './fields';
 import { emailSchema } from './auth';
 
 export const crewInputSchema = z.object({
-  name: z.string().trim().min(1, 'Name the crew, like "Crew A".').max(80),
+  name: requiredLine('The crew name', 80, 'Name the crew, like "Crew A".'),
   members: z
-    .array(z.object({ name: z.string().trim().min(1, 'Enter the crew member’s name.').max(120), email: emailSchema }))
+    .array(z.object({ name: requiredLine('The crew member’s name', 120, 'Enter the crew member’s name.'), email: emailSchema }))
     .max(60)
     .refine((m) => new Set(m.map((x) => x.email)).size === m.length, 'The same e-mail address is in the crew twice.'),
 });

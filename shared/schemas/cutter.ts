@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { freeText, singleLine } from './fields';
 import { cutterStatuses, discConditionKeys } from '../cutters';
 import type { CutterStatus } from '../cutters';
 
@@ -11,14 +12,14 @@ export const serialSchema = z
 
 export const receiveCutterInputSchema = z.object({
   serial: serialSchema,
-  discSizeIn: z.coerce.number().min(10).max(24),
-  notes: z.string().max(500).default(''),
+  discSizeIn: z.coerce.number({ message: 'The disc size must be a number of inches.' }).min(10, 'Disc sizes run from 10″ to 24″.').max(24, 'Disc sizes run from 10″ to 24″.'),
+  notes: freeText('The notes', 500).default(''),
 });
 export type ReceiveCutterInput = z.infer<typeof receiveCutterInputSchema>;
 
 export const cutterListQuerySchema = z.object({
   status: z.enum(cutterStatuses).optional(),
-  q: z.string().max(40).optional(),
+  q: singleLine('The search', 40).optional(),
 });
 
 /** Workshop outcome for a removed cutter: rebuilt (what was renewed) and back in store, or scrapped. */
@@ -28,9 +29,9 @@ export const workshopInputSchema = z.discriminatedUnion('outcome', [
     newRing: z.boolean().default(true),
     newBearings: z.boolean().default(false),
     newSeals: z.boolean().default(false),
-    note: z.string().max(500).default(''),
+    note: freeText('The note', 500).default(''),
   }),
-  z.object({ outcome: z.literal('scrapped'), reason: z.string().trim().min(1, 'Say why the cutter is scrapped.').max(500) }),
+  z.object({ outcome: z.literal('scrapped'), reason: freeText('The reason', 500, 'Say why the cutter is scrapped.').refine((s) => s.length > 0, 'Say why the cutter is scrapped.') }),
 ]);
 export type WorkshopInput = z.infer<typeof workshopInputSchema>;
 

@@ -8,7 +8,8 @@ const num = (label: string) => z.coerce.number({ message: `${label} must be a nu
 export const positionInputSchema = z
   .object({
     number: num('Position number').int('Position number must be a whole number.').min(1, 'Position numbers start at 1.').max(999),
-    trackRadiusMm: num('Track radius').min(0, 'Track radius cannot be negative.'),
+    // More than 0: the rolled distance divides by it (shared/domain/forecast.ts, rolledKmPerMetre); at most the radius of a 20 m head.
+    trackRadiusMm: num('Track radius').gt(0, 'Track radius must be more than 0 mm.').max(10_000, 'Track radius must be at most 10,000 mm (the radius of a 20 m head).'),
     positionClass: z.enum(positionClasses, { message: 'Class must be centre, face or gauge.' }),
     discSizeIn: num('Disc size').min(10, 'Disc size looks wrong: give it in inches, like 17 or 19.').max(24, 'Disc size looks wrong: give it in inches, like 17 or 19.'),
     tiltDeg: num('Tilt angle').min(0, 'Tilt must be between 0° and 90°.').max(90, 'Tilt must be between 0° and 90°.').nullable().default(null),

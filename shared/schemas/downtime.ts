@@ -1,10 +1,11 @@
 import { z } from 'zod';
+import { calendarDate, freeText, instant, requiredLine, wholeNumber } from './fields';
 import type { CutterCostRow } from '../domain/cutter-cost';
 
 /** Label of downtime whose cause is still to give (events proposed from gaps in the advance log). */
 export const NO_CAUSE_LABEL = 'No cause given';
 
-const causeName = z.string().trim().min(1, 'Name the cause.').max(80, 'Keep the name under 80 characters.');
+const causeName = requiredLine('The cause name', 80, 'Name the cause.');
 
 export const downtimeCauseInputSchema = z.object({
   name: causeName,
@@ -19,19 +20,18 @@ export const downtimeCauseUpdateSchema = z
     name: causeName.optional(),
     cutterWork: z.boolean().optional(),
     active: z.boolean().optional(),
-    sortOrder: z.number().int().min(0).max(1000).optional(),
+    sortOrder: wholeNumber('The sort order', 1000).optional(),
   })
   .refine((u) => Object.keys(u).length > 0, 'Say what to change.');
 export type DowntimeCauseUpdate = z.infer<typeof downtimeCauseUpdateSchema>;
 
-const instant = (label: string) => z.iso.datetime({ offset: true, message: `${label} must be a date and time with its UTC offset, e.g. 2026-03-29T06:00:00+02:00.` });
 
 export const downtimeEventInputSchema = z
   .object({
     startAt: instant('The start'),
     endAt: instant('The end'),
     causeId: z.uuid({ message: 'Choose a cause from the list.' }).nullable().default(null),
-    note: z.string().trim().max(2000).default(''),
+    note: freeText('The note', 2000).default(''),
     stopId: z.uuid({ message: 'Choose the stop from the list.' }).nullable().default(null),
   })
   .refine((e) => Date.parse(e.endAt) > Date.parse(e.startAt), { path: ['endAt'], message: 'The end must be after the start.' });
@@ -43,7 +43,7 @@ export const siteSettingsInputSchema = z.object({
   /** Shift starts in site-local time; each shift runs until the next one starts. */
   shifts: z
     .array(z.object({
-      name: z.string().trim().min(1, 'Name the shift.').max(40),
+      name: requiredLine('The shift name', 40, 'Name the shift.'),
       start: z.string().regex(hhmm, 'A shift start is a time like 06:00.'),
     }))
     .min(1, 'Give at least one shift.')
@@ -57,7 +57,7 @@ export const siteSettingsInputSchema = z.object({
 });
 export type SiteSettingsInput = z.infer<typeof siteSettingsInputSchema>;
 
-const day = (label: string) => z.iso.date({ message: `${label} must be a date like 2026-11-30.` });
+const day = (label: string) => calendarDate(label);
 
 /** A period of the site's calendar days, both included; the server picks the last 8 ISO weeks of data when left out. */
 export const downtimePeriodQuerySchema = z

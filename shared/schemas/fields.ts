@@ -23,21 +23,21 @@ const inWindow = (ms: number) => ms >= WINDOW_MS.from - 14 * 3_600_000 && ms < W
 const windowText = `between ${DATE_WINDOW.from.slice(0, 4)} and ${DATE_WINDOW.to.slice(0, 4)}`;
 
 /** A calendar date YYYY-MM-DD between 1990 and 2100. */
-export const calendarDate = (label: string) =>
+export const calendarDate = (label: string, message = `${label} must be a date like 2026-11-30.`) =>
   z.iso
-    .date({ message: `${label} must be a date like 2026-11-30.` })
+    .date({ message })
     .refine((d) => d >= DATE_WINDOW.from && d <= DATE_WINDOW.to, `${label} must be ${windowText}.`);
 
 /** An instant in ISO 8601 with its UTC offset (e.g. 2026-03-29T06:00:00+02:00), between 1990 and 2100. */
-export const instant = (label: string) =>
+export const instant = (label: string, message = `${label} must be a date and time with its UTC offset, e.g. 2026-03-29T06:00:00+02:00.`) =>
   z.iso
-    .datetime({ offset: true, message: `${label} must be a date and time with its UTC offset, e.g. 2026-03-29T06:00:00+02:00.` })
+    .datetime({ offset: true, message })
     .refine((t) => inWindow(Date.parse(t)), `${label} must be ${windowText}.`);
 
 /** A whole number from 0 to 2^31 − 1 (ring numbers, counts, quantities); a lower `max` where the trade has one. */
-export const wholeNumber = (label: string, max: number = INT32_MAX) =>
+export const wholeNumber = (label: string, max: number = INT32_MAX, message = `${label} must be a whole number.`) =>
   z
-    .number({ message: `${label} must be a whole number.` })
+    .number({ message })
     .int(`${label} must be a whole number.`)
     .min(0, `${label} cannot be negative.`)
     .max(max, `${label} must be at most ${max.toLocaleString('en')}.`);
@@ -49,10 +49,10 @@ export const wholeNumberText = (label: string, max: number = INT32_MAX) => z.coe
 export const ringNumber = (label = 'The ring number') => wholeNumber(label);
 
 /** A chainage in metres: finite, within ±1,000 km. */
-export const chainageM = (label: string) =>
+export const chainageM = (label: string, message = `${label} must be a number of metres.`) =>
   z
-    .number({ message: `${label} must be a number of metres.` })
-    .refine(Number.isFinite, `${label} must be a number of metres.`)
+    .number({ message })
+    .refine(Number.isFinite, message)
     .refine((v) => Math.abs(v) <= CHAINAGE_LIMIT_M, `${label} must be within ±${CHAINAGE_LIMIT_M.toLocaleString('en')} m.`);
 
 /** A length along the drive in metres: finite, 0 to 1,000 km. */
@@ -68,21 +68,21 @@ const CONTROL = /[\u0000-\u0009\u000b\u000c\u000e-\u001f\u007f-\u009f]/;
 const LINE_BREAK = /[\r\n]/;
 
 /** Free text (notes, reasons): trimmed, at most `max` characters, no control characters except line breaks. */
-export const freeText = (label: string, max: number) =>
+export const freeText = (label: string, max: number, message = `${label} must be text.`) =>
   z
-    .string({ message: `${label} must be text.` })
+    .string({ message })
     .max(max * 4, `${label} is too long: keep it to ${max} characters.`)
     .trim()
     .max(max, `${label} is too long: keep it to ${max} characters.`)
     .refine((s) => !CONTROL.test(s), `${label} contains a control character (such as NUL or a tab); remove it and try again.`);
 
 /** A name or other one-line text: as free text, and no line breaks. */
-export const singleLine = (label: string, max: number) =>
-  freeText(label, max).refine((s) => !LINE_BREAK.test(s), `${label} must be on one line.`);
+export const singleLine = (label: string, max: number, message?: string) =>
+  freeText(label, max, message).refine((s) => !LINE_BREAK.test(s), `${label} must be on one line.`);
 
 /** A required name or one-line text (at least one character after trimming). */
 export const requiredLine = (label: string, max: number, emptyMessage = `Enter ${label.toLowerCase()}.`) =>
-  singleLine(label, max).refine((s) => s.length > 0, emptyMessage);
+  singleLine(label, max, emptyMessage).refine((s) => s.length > 0, emptyMessage);
 
 /** An e-mail address: its length is checked before any other work, then trimmed, lower-cased and checked. */
 export const emailAddress = () =>

@@ -1,13 +1,14 @@
 import { z } from 'zod';
+import { chainageM, freeText, instant, ringNumber, singleLine } from './fields';
 import { conditionsSchema, serialSchema } from './cutter';
 import type { DiscCondition } from '../cutters';
 
 export const startRoundInputSchema = z.object({
-  startedAt: z.iso.datetime({ offset: true, message: 'Give the date and time of the round.' }),
-  chainageM: z.coerce.number({ message: 'Give the chainage where the machine stands, in metres.' }).refine(Number.isFinite),
-  ringNumber: z.coerce.number().int().min(0).nullable().default(null),
-  crew: z.string().trim().max(300).default(''),
-  notes: z.string().max(2000).default(''),
+  startedAt: instant('The start of the round', 'Give the date and time of the round.'),
+  chainageM: z.coerce.number({ message: 'Give the chainage where the machine stands, in metres.' }).pipe(chainageM('The chainage', 'Give the chainage where the machine stands, in metres.')),
+  ringNumber: z.coerce.number({ message: 'The ring number must be a whole number.' }).pipe(ringNumber()).nullable().default(null),
+  crew: singleLine('The crew', 300).default(''),
+  notes: freeText('The notes', 2000).default(''),
 });
 export type StartRoundInput = z.infer<typeof startRoundInputSchema>;
 
@@ -30,12 +31,12 @@ export const entryInputSchema = z
     /** The serial taken off; defaults to the one Kerfwise has on the position. */
     removedSerial: serialSchema.nullable().default(null),
     fitted: fittedSchema.nullable().default(null),
-    changeReason: z.string().trim().max(300).nullable().default(null),
-    note: z.string().max(2000).default(''),
+    changeReason: freeText('The reason for the change', 300).nullable().default(null),
+    note: freeText('The note', 2000).default(''),
     /** Confirms a wear lower than the last measurement of the same disc as a correction. */
     remeasured: z.boolean().default(false),
     /** When the fitter entered it (offline entries arrive later). */
-    recordedAt: z.iso.datetime({ offset: true }).optional(),
+    recordedAt: instant('The time recorded').optional(),
   })
   .refine((e) => e.action !== 'changed' || e.fitted !== null, { path: ['fitted'], message: 'A change needs the serial of the cutter put on.' })
   .refine((e) => e.action !== 'changed' || (e.changeReason ?? '') !== '', { path: ['changeReason'], message: 'Give the reason for the change.' });

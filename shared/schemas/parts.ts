@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { calendarDate, freeText, requiredLine, singleLine } from './fields';
 import { discConditions } from '../cutters';
 import type { PartKind } from '../domain/parts-projection';
 
@@ -31,13 +32,13 @@ const days = (label: string, max: number) =>
 /** A catalogue part as the buyer enters it. Rings and complete assemblies are catalogued per disc size. */
 export const partInputSchema = z
   .object({
-    code: z.string().trim().min(1, 'Enter the part code.').max(40, 'A part code has at most 40 characters.'),
-    name: z.string().trim().min(1, 'Enter a name for the part.').max(200),
+    code: requiredLine('A part code', 40, 'Enter the part code.'),
+    name: requiredLine('The part name', 200, 'Enter a name for the part.'),
     kind: z.enum(partKinds, { message: 'Choose the kind of part.' }),
     discSizeIn: z.number({ message: 'The disc size must be a number of inches.' }).min(10, 'Disc sizes run from 10″ to 24″.').max(24, 'Disc sizes run from 10″ to 24″.').nullable().default(null),
     unitCost: z.number({ message: 'The unit cost must be a number.' }).min(0, 'The unit cost cannot be negative.').max(1e8).multipleOf(0.01, 'The unit cost has at most 2 decimals.'),
     currency: z.string().trim().regex(/^[A-Z]{3}$/, 'The currency is a three-letter code such as EUR.').default('EUR'),
-    supplier: z.string().trim().max(200).default(''),
+    supplier: singleLine('The supplier', 200).default(''),
     leadTimeMeanDays: days('The lead time', 730).gt(0, 'The lead time must be more than 0 days.'),
     leadTimeSdDays: days('The lead-time spread', 365).default(0),
     minOrderQty: z.number({ message: 'The minimum order quantity must be a whole number.' }).int('The minimum order quantity must be a whole number.').min(1, 'The minimum order quantity is at least 1.').max(100_000).default(1),
@@ -55,17 +56,18 @@ export const stockCountInputSchema = z.object({
     .int('Count whole units.')
     .min(0, 'Stock cannot be negative: enter what is on the shelf (0 or more).')
     .max(1_000_000),
-  note: z.string().trim().max(500).default(''),
+  note: freeText('The note', 500).default(''),
 });
 export type StockCountInput = z.infer<typeof stockCountInputSchema>;
 
 const isoDate = z.string({ message: 'Enter a date.' }).regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.')
-  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s), 'That date does not exist.');
+  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s), 'That date does not exist.')
+  .pipe(calendarDate('The due date'));
 
 export const purchaseOrderInputSchema = z.object({
-  number: z.string().trim().min(1, 'Enter the order number.').max(40, 'An order number has at most 40 characters.'),
-  supplier: z.string().trim().max(200).default(''),
-  note: z.string().trim().max(1000).default(''),
+  number: requiredLine('An order number', 40, 'Enter the order number.'),
+  supplier: singleLine('The supplier', 200).default(''),
+  note: freeText('The note', 1000).default(''),
   lines: z
     .array(z.object({
       partId: z.uuid({ message: 'Choose a part from the catalogue.' }),
@@ -79,7 +81,7 @@ export type PurchaseOrderInput = z.infer<typeof purchaseOrderInputSchema>;
 
 export const receiveLineInputSchema = z.object({
   qty: z.number({ message: 'Enter the quantity received.' }).int('Receive whole units.').min(1, 'Receive at least 1.').max(1_000_000),
-  note: z.string().trim().max(500).default(''),
+  note: freeText('The note', 500).default(''),
 });
 export type ReceiveLineInput = z.infer<typeof receiveLineInputSchema>;
 

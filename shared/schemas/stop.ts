@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { chainageM, freeText, instant } from './fields';
 import type { PositionClass } from '../cutters';
 import type { StopPlanCost } from '../domain/stop-planner';
 
@@ -50,7 +51,7 @@ const expectedHoursSchema = z.number({ message: 'Expected hours must be a number
 
 /** A proposed stop, taken from a stop of the plan. */
 export const createStopInputSchema = z.object({
-  chainageM: z.number({ message: 'Give the chainage of the stop, in metres.' }).refine(Number.isFinite, 'Give the chainage of the stop, in metres.'),
+  chainageM: chainageM('The chainage of the stop', 'Give the chainage of the stop, in metres.'),
   compressedAir: z.boolean().default(false),
   expectedHours: expectedHoursSchema.nullable().default(null),
   positions: z
@@ -61,12 +62,12 @@ export const createStopInputSchema = z.object({
     .min(1, 'A stop needs at least one position to change.')
     .max(300)
     .refine((p) => new Set(p.map((x) => x.positionId)).size === p.length, 'The same position is listed twice.'),
-  notes: z.string().max(2000).default(''),
+  notes: freeText('The notes', 2000).default(''),
 });
 export type CreateStopInput = z.infer<typeof createStopInputSchema>;
 
 export const scheduleStopInputSchema = z.object({
-  plannedStart: z.iso.datetime({ offset: true, message: 'Give the planned start as a date and time.' }),
+  plannedStart: instant('The planned start', 'Give the planned start as a date and time.'),
   expectedHours: expectedHoursSchema,
   crewId: z.uuid({ message: 'Choose a crew.' }),
   compressedAir: z.boolean({ message: 'Say whether the stop is worked in free air or compressed air.' }),
@@ -75,20 +76,20 @@ export type ScheduleStopInput = z.infer<typeof scheduleStopInputSchema>;
 
 export const startStopInputSchema = z.object({
   /** When work began; now when left out. */
-  actualStart: z.iso.datetime({ offset: true, message: 'Give the actual start as a date and time.' }).optional(),
+  actualStart: instant('The actual start', 'Give the actual start as a date and time.').optional(),
 });
 export type StartStopInput = z.infer<typeof startStopInputSchema>;
 
 export const completeStopInputSchema = z.object({
   /** When work ended; now when left out. */
-  actualEnd: z.iso.datetime({ offset: true, message: 'Give the actual end as a date and time.' }).optional(),
+  actualEnd: instant('The actual end', 'Give the actual end as a date and time.').optional(),
   /** The inspection round done during the stop. */
   roundId: z.uuid({ message: 'Choose an inspection round of this drive.' }).nullable().default(null),
 });
 export type CompleteStopInput = z.infer<typeof completeStopInputSchema>;
 
 export const cancelStopInputSchema = z.object({
-  reason: z.string({ message: 'Give the reason for cancelling.' }).trim().min(3, 'Give the reason for cancelling.').max(500),
+  reason: freeText('The reason', 500, 'Give the reason for cancelling.').refine((s) => s.length >= 3, 'Give the reason for cancelling.'),
 });
 export type CancelStopInput = z.infer<typeof cancelStopInputSchema>;
 

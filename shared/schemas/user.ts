@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { requiredLine } from './fields';
 import { projectRoles } from '../roles';
 import { emailSchema } from './auth';
 
@@ -6,7 +7,7 @@ export const projectRoleSchema = z.enum(projectRoles, { message: 'Choose a role:
 
 export const inviteUserInputSchema = z.object({
   email: emailSchema,
-  name: z.string().trim().min(1, 'Enter the person’s name.').max(120),
+  name: requiredLine('The name', 120, 'Enter the person’s name.'),
   isAdmin: z.boolean().default(false),
   memberships: z
     .array(z.object({ projectId: z.uuid({ message: 'Choose a project.' }), role: projectRoleSchema }))
@@ -16,7 +17,7 @@ export type InviteUserInput = z.infer<typeof inviteUserInputSchema>;
 
 export const updateUserInputSchema = z
   .object({
-    name: z.string().trim().min(1).max(120),
+    name: requiredLine('The name', 120, 'Enter the person’s name.'),
     isAdmin: z.boolean(),
     active: z.boolean(),
   })
