@@ -1,7 +1,7 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { PasswordResetRequest, SignInInput } from '../../../shared/schemas/auth';
 import type { ChangePasswordInput, SetPasswordInput } from '../../../shared/schemas/password';
-import { api, ApiError } from '../../lib/api-client';
+import { api, apiGet, ApiError } from '../../lib/api-client';
 import type { Me } from '../../../shared/schemas/auth';
 export type { Me } from '../../../shared/schemas/auth';
 
@@ -18,10 +18,31 @@ export async function getMe(): Promise<Me | null> {
 export const authQueries = {
   all: ['auth'] as const,
   me: () => queryOptions({ queryKey: [...authQueries.all, 'me'], queryFn: getMe, staleTime: 60_000 }),
+  notifications: () => queryOptions({ queryKey: [...authQueries.all, 'notifications'], queryFn: getNotificationChoices }),
 };
+
+/** One e-mail this person can get, and whether it is on. */
+export interface NotificationChoice { kind: string; label: string; enabled: boolean }
+export const getNotificationChoices = () => apiGet<NotificationChoice[]>('/api/auth/notifications');
+export const setNotificationChoice = (c: { kind: string; enabled: boolean }) => api('PUT', '/api/auth/notifications', c);
 
 export const signIn = (input: SignInInput) => api<{ user: Me['user'] }>('POST', '/api/auth/sign-in', input);
 export const signOut = () => api<void>('POST', '/api/auth/sign-out');
 export const requestPasswordReset = (input: PasswordResetRequest) => api<{ message: string }>('POST', '/api/auth/password-reset', input);
 export const setPassword = (input: SetPasswordInput) => api<{ user: Me['user'] }>('POST', '/api/auth/set-password', input);
 export const changePassword = (input: ChangePasswordInput) => api<void>('POST', '/api/auth/change-password', input);
+
+/** Signing in (or setting a password, which signs in) drops every cached answer about who is signed in. */
+function useSignInMutation<TInput, TResult>(mutationFn: (input: TInput) => Promise<TResult>) {
+  const queryClient = useQueryClient();
+  return useMutation({ mutationFn, onSuccess: () => queryClient.removeQueries({ queryKey: authQueries.all }) });
+}
+
+export const useSignIn = () => useSignInMutation(signIn);
+export const useSetPassword = () => useSignInMutation(setPassword);
+export const useRequestPasswordReset = () => useMutation({ mutationFn: requestPasswordReset });
+export const useChangePassword = () => useMutation({ mutationFn: changePassword });
+export function useSetNotificationChoice() {
+  const queryClient = useQueryClient();
+  return useMutation({ mutationFn: setNotificationChoice, onSuccess: () => queryClient.invalidateQueries({ queryKey: authQueries.notifications().queryKey }) });
+}

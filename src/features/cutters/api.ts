@@ -1,4 +1,4 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { CutterStatus } from '../../../shared/cutters';
 import type { ReceiveCutterInput, WorkshopInput } from '../../../shared/schemas/cutter';
 import { api, apiGet } from '../../lib/api-client';
@@ -31,3 +31,13 @@ export const cutterQueries = {
   detail: (projectId: string, cutterId: string) =>
     queryOptions({ queryKey: [...cutterQueries.all(projectId), 'detail', cutterId], queryFn: () => getCutter(projectId, cutterId) }),
 };
+
+/** Every cutter write invalidates `cutterQueries.all`: the list and the cutter's life move together. */
+function useCutterMutation<TInput, TResult>(projectId: string, mutationFn: (input: TInput) => Promise<TResult>) {
+  const queryClient = useQueryClient();
+  return useMutation({ mutationFn, onSuccess: () => queryClient.invalidateQueries({ queryKey: cutterQueries.all(projectId) }) });
+}
+
+export const useReceiveCutter = (projectId: string) => useCutterMutation(projectId, (input: ReceiveCutterInput) => receiveCutter(projectId, input));
+export const useRecordWorkshop = (projectId: string, cutterId: string) =>
+  useCutterMutation(projectId, (input: WorkshopInput) => recordWorkshop(projectId, cutterId, input));

@@ -1,4 +1,4 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type {
   CutterCostReport, DowntimeCause, DowntimeCauseInput, DowntimeCauseUpdate, DowntimeEventInput, DowntimeEventList, DowntimeEventRow, DowntimeReport, EventListQuery,
   ProposeFromGapsResult, SiteSettings, SiteSettingsInput,
@@ -57,3 +57,12 @@ export const downtimeQueries = {
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'cost', period], queryFn: () => getCost(projectId, period) }),
   stops: (projectId: string) => queryOptions({ queryKey: ['projects', projectId, 'stops', 'options'], queryFn: () => getStopOptions(projectId) }),
 };
+
+/** Every downtime write invalidates `downtimeQueries.all`: events, causes, settings and reports move together. */
+function useDowntimeMutation<TInput, TResult>(projectId: string, mutationFn: (input: TInput) => Promise<TResult>) {
+  const queryClient = useQueryClient();
+  return useMutation({ mutationFn, onSuccess: () => queryClient.invalidateQueries({ queryKey: downtimeQueries.all(projectId) }) });
+}
+
+export const useSaveSettings = (projectId: string) => useDowntimeMutation(projectId, (input: SiteSettingsInput) => saveSettings(projectId, input));
+export const useProposeFromGaps = (projectId: string) => useDowntimeMutation(projectId, () => proposeFromGaps(projectId));

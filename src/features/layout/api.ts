@@ -1,4 +1,4 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { LayoutInput } from '../../../shared/schemas/cutterhead';
 import { api, apiGet } from '../../lib/api-client';
 import type { LayoutPosition, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
@@ -32,3 +32,12 @@ export const layoutQueries = {
   detail: (projectId: string, positionId: string) =>
     queryOptions({ queryKey: [...layoutQueries.all(projectId), positionId], queryFn: () => getPosition(projectId, positionId) }),
 };
+
+/** A saved or imported layout invalidates `layoutQueries.all`: the list, the remaining metres and each position. */
+function useLayoutMutation<TInput, TResult>(projectId: string, mutationFn: (input: TInput) => Promise<TResult>) {
+  const queryClient = useQueryClient();
+  return useMutation({ mutationFn, onSuccess: () => queryClient.invalidateQueries({ queryKey: layoutQueries.all(projectId) }) });
+}
+
+export const useSaveLayout = (projectId: string) => useLayoutMutation(projectId, (input: LayoutInput) => saveLayout(projectId, input));
+export const useImportLayoutCsv = (projectId: string) => useLayoutMutation(projectId, (csv: string) => importLayoutCsv(projectId, csv));

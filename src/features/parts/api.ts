@@ -1,4 +1,4 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { PartInput, PurchaseOrderInput, ReceiveLineInput, StockCountInput, WorkshopSettingsInput } from '../../../shared/schemas/parts';
 import { api, apiGet } from '../../lib/api-client';
 import type { CataloguePart, PartListItem, PartsDemand, OrderLine, PurchaseOrder } from '../../../shared/schemas/parts';
@@ -36,3 +36,19 @@ export const partQueries = {
   orders: (projectId: string) => queryOptions({ queryKey: [...partQueries.all(projectId), 'orders'], queryFn: () => getOrders(projectId) }),
   workshop: (projectId: string) => queryOptions({ queryKey: [...partQueries.all(projectId), 'workshop'], queryFn: () => getWorkshop(projectId) }),
 };
+
+/** Every parts write invalidates `partQueries.all`: catalogue, stock, orders and demand move together. */
+function usePartsMutation<TInput, TResult>(projectId: string, mutationFn: (input: TInput) => Promise<TResult>) {
+  const queryClient = useQueryClient();
+  return useMutation({ mutationFn, onSuccess: () => queryClient.invalidateQueries({ queryKey: partQueries.all(projectId) }) });
+}
+
+export const useSavePart = (projectId: string) =>
+  usePartsMutation(projectId, ({ partId, input }: { partId: string | null; input: PartInput }) => (partId ? updatePart(projectId, partId, input) : createPart(projectId, input)));
+export const useDeletePart = (projectId: string) => usePartsMutation(projectId, (partId: string) => deletePart(projectId, partId));
+export const useCountStock = (projectId: string) =>
+  usePartsMutation(projectId, ({ partId, input }: { partId: string; input: StockCountInput }) => countStock(projectId, partId, input));
+export const useCreateOrder = (projectId: string) => usePartsMutation(projectId, (input: PurchaseOrderInput) => createOrder(projectId, input));
+export const useReceiveLine = (projectId: string) =>
+  usePartsMutation(projectId, ({ line, input }: { line: OrderLine; input: ReceiveLineInput }) => receiveLine(projectId, line, input));
+export const useSaveWorkshop = (projectId: string) => usePartsMutation(projectId, (input: WorkshopSettingsInput) => saveWorkshop(projectId, input));

@@ -1,4 +1,4 @@
-import { queryOptions } from '@tanstack/react-query';
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type {
   CancelStopInput, CompleteStopInput, CreateStopInput, ScheduleStopInput, StartStopInput, StopPlanQuery, StopPlanView, StopStatus,
 } from '../../../shared/schemas/stop';
@@ -42,3 +42,41 @@ export const stopQueries = {
   rounds: (projectId: string) =>
     queryOptions({ queryKey: [...stopQueries.all(projectId), 'rounds'], queryFn: () => apiGet<RoundOption[]>(`/api/projects/${projectId}/rounds`) }),
 };
+
+/** One change to a stop's state, as the work pack's buttons and forms ask for it. */
+export type StopChange =
+  | { kind: 'schedule'; input: ScheduleStopInput }
+  | { kind: 'publish' }
+  | { kind: 'start'; input: StartStopInput }
+  | { kind: 'complete'; input: CompleteStopInput }
+  | { kind: 'cancel'; input: CancelStopInput };
+
+function changeStop(projectId: string, stopId: string, change: StopChange): Promise<WorkPack> {
+  switch (change.kind) {
+    case 'schedule': return scheduleStop(projectId, stopId, change.input);
+    case 'publish': return publishStop(projectId, stopId);
+    case 'start': return startStop(projectId, stopId, change.input);
+    case 'complete': return completeStop(projectId, stopId, change.input);
+    case 'cancel': return cancelStop(projectId, stopId, change.input);
+  }
+}
+
+/** A change to a stop puts the answer (the new work pack) in the cache, then invalidates `stopQueries.all`. */
+export function useChangeStop(projectId: string, stopId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (change: StopChange) => changeStop(projectId, stopId, change),
+    onSuccess: (pack) => {
+      queryClient.setQueryData(stopQueries.detail(projectId, stopId).queryKey, pack);
+      return queryClient.invalidateQueries({ queryKey: stopQueries.all(projectId) });
+    },
+  });
+}
+
+export function useProposeStop(projectId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (input: CreateStopInput) => proposeStop(projectId, input),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: stopQueries.all(projectId) }),
+  });
+}

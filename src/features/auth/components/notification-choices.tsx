@@ -1,18 +1,11 @@
-import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { useQuery } from '@tanstack/react-query';
 import { Alert } from '../../../components/ui/alert';
-import { api, apiGet } from '../../../lib/api-client';
-
-interface Choice { kind: string; label: string; enabled: boolean }
-const key = ['auth', 'notifications'] as const;
+import { authQueries, useSetNotificationChoice } from '../api';
 
 /** The e-mails this person gets; each can be turned off (and on again). */
 export function NotificationChoices() {
-  const queryClient = useQueryClient();
-  const { data, error } = useQuery({ queryKey: key, queryFn: () => apiGet<Choice[]>('/api/auth/notifications') });
-  const save = useMutation({
-    mutationFn: (c: { kind: string; enabled: boolean }) => api('PUT', '/api/auth/notifications', c),
-    onSuccess: () => queryClient.invalidateQueries({ queryKey: key }),
-  });
+  const { data, error } = useQuery(authQueries.notifications());
+  const save = useSetNotificationChoice();
   if (error) return <Alert tone="error">{error.message}</Alert>;
   if (!data) return <p>Loading…</p>;
   if (data.length === 0) return <p>None of Kerfwise’s e-mails apply to your roles.</p>;

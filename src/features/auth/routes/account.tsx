@@ -7,23 +7,24 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
-import { changePassword } from '../api';
+import { serverErrors } from '../../../lib/form';
+import { useChangePassword } from '../api';
 import { NotificationChoices } from '../components/notification-choices';
 import { useMe } from '../use-me';
 
 export function AccountRoute() {
   const me = useMe();
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
-  const { register, handleSubmit, formState, reset } = useForm<ChangePasswordInput>({ resolver: zodResolver(changePasswordInputSchema) });
+  const changePassword = useChangePassword();
+  const { register, handleSubmit, formState, reset, setError } = useForm<ChangePasswordInput>({ resolver: zodResolver(changePasswordInputSchema) });
   const onSubmit = handleSubmit(async (input) => {
     setMessage(null);
     try {
-      await changePassword(input);
+      await changePassword.mutateAsync(input);
       reset();
       setMessage({ tone: 'success', text: 'Password changed. You were signed out everywhere else.' });
     } catch (err) {
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The change failed. Try again.' });
+      setMessage({ tone: 'error', text: serverErrors(err, setError, 'The change failed. Try again.').text });
     }
   });
   return (

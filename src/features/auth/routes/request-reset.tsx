@@ -7,20 +7,21 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { paths } from '../../../config/paths';
-import { ApiError } from '../../../lib/api-client';
-import { requestPasswordReset } from '../api';
+import { serverErrors } from '../../../lib/form';
+import { useRequestPasswordReset } from '../api';
 import { AuthCard } from '../components/auth-card';
 
 export function RequestResetRoute() {
   const [done, setDone] = useState<string | null>(null);
   const [error, setError] = useState<string | null>(null);
-  const { register, handleSubmit, formState } = useForm<PasswordResetRequest>({ resolver: zodResolver(passwordResetRequestSchema) });
+  const requestReset = useRequestPasswordReset();
+  const { register, handleSubmit, formState, setError: setFieldError } = useForm<PasswordResetRequest>({ resolver: zodResolver(passwordResetRequestSchema) });
   const onSubmit = handleSubmit(async (input) => {
     setError(null);
     try {
-      setDone((await requestPasswordReset(input)).message);
+      setDone((await requestReset.mutateAsync(input)).message);
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'The request failed. Try again.');
+      setError(serverErrors(err, setFieldError, 'The request failed. Try again.').text);
     }
   });
   return (

@@ -1,5 +1,4 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { Link, useNavigate, useSearchParams } from 'react-router';
@@ -9,8 +8,8 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { paths } from '../../../config/paths';
-import { ApiError } from '../../../lib/api-client';
-import { authQueries, setPassword } from '../api';
+import { serverErrors } from '../../../lib/form';
+import { useSetPassword } from '../api';
 import { AuthCard } from '../components/auth-card';
 
 const formSchema = z
@@ -23,17 +22,16 @@ export function SetPasswordRoute() {
   const [params] = useSearchParams();
   const token = params.get('token') ?? '';
   const navigate = useNavigate();
-  const queryClient = useQueryClient();
+  const save = useSetPassword();
   const [error, setError] = useState<string | null>(null);
-  const { register, handleSubmit, formState } = useForm<FormValues>({ resolver: zodResolver(formSchema) });
+  const { register, handleSubmit, formState, setError: setFieldError } = useForm<FormValues>({ resolver: zodResolver(formSchema) });
   const onSubmit = handleSubmit(async ({ password }) => {
     setError(null);
     try {
-      await setPassword({ token, password });
-      queryClient.removeQueries({ queryKey: authQueries.all }); // drop the cached "nobody signed in"
+      await save.mutateAsync({ token, password }); // drops the cached "nobody signed in"
       navigate(paths.home, { replace: true });
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'Setting the password failed. Try again.');
+      setError(serverErrors(err, setFieldError, 'Setting the password failed. Try again.').text);
     }
   });
   return (

@@ -1,5 +1,4 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { Link, useNavigate, useSearchParams } from 'react-router';
@@ -8,26 +7,25 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { paths } from '../../../config/paths';
-import { ApiError } from '../../../lib/api-client';
-import { authQueries, signIn } from '../api';
+import { serverErrors } from '../../../lib/form';
+import { useSignIn } from '../api';
 import { AuthCard } from '../components/auth-card';
 
 export function SignInRoute() {
   const navigate = useNavigate();
   const [params] = useSearchParams();
-  const queryClient = useQueryClient();
+  const signIn = useSignIn();
   const [error, setError] = useState<string | null>(null);
-  const { register, handleSubmit, formState } = useForm<SignInInput>({ resolver: zodResolver(signInInputSchema) });
+  const { register, handleSubmit, formState, setError: setFieldError } = useForm<SignInInput>({ resolver: zodResolver(signInInputSchema) });
 
   const onSubmit = handleSubmit(async (input) => {
     setError(null);
     try {
-      await signIn(input);
-      queryClient.removeQueries({ queryKey: authQueries.all }); // drop the cached "nobody signed in"
+      await signIn.mutateAsync(input); // drops the cached "nobody signed in"
       const next = params.get('next');
       navigate(next && next.startsWith('/') && !next.startsWith('//') ? next : paths.home, { replace: true });
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'Sign-in failed. Try again.');
+      setError(serverErrors(err, setFieldError, 'Sign-in failed. Try again.').text);
     }
   });
 

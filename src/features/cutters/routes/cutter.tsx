@@ -1,4 +1,4 @@
-import { useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useSuspenseQuery } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
@@ -12,11 +12,11 @@ import { DataTable } from '../../../components/ui/data-table';
 import { TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
-import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDate, formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { cutterQueries, recordWorkshop, type CutterLife } from '../api';
+import { cutterQueries, useRecordWorkshop, type CutterLife } from '../api';
 
 const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
 type LifeEvent = CutterLife['events'][number];
@@ -57,7 +57,7 @@ interface WorkshopForm {
 }
 
 function WorkshopOutcome({ projectId, cutterId, serial }: { projectId: string; cutterId: string; serial: string }) {
-  const queryClient = useQueryClient();
+  const save = useRecordWorkshop(projectId, cutterId);
   const [error, setError] = useState<string | null>(null);
   const form = useForm<WorkshopForm>({ defaultValues: { outcome: 'rebuilt', newRing: true, newBearings: false, newSeals: false, note: '', reason: '' } });
   const outcome = form.watch('outcome');
@@ -71,10 +71,9 @@ function WorkshopOutcome({ projectId, cutterId, serial }: { projectId: string; c
       return;
     }
     try {
-      await recordWorkshop(projectId, cutterId, parsed.data);
-      await queryClient.invalidateQueries({ queryKey: cutterQueries.all(projectId) });
+      await save.mutateAsync(parsed.data);
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'Saving failed. Try again.');
+      setError(serverErrors(err, form.setError, 'Saving failed. Try again.').text);
     }
   });
   const check = (name: 'newRing' | 'newBearings' | 'newSeals', label: string) => (

@@ -1,5 +1,5 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { keepPreviousData, useQuery, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { keepPreviousData, useQuery, useSuspenseQuery } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { useDeferredValue, useState } from 'react';
 import { useForm } from 'react-hook-form';
@@ -14,17 +14,17 @@ import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
-import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { cutterQueries, receiveCutter, type CutterListItem } from '../api';
+import { cutterQueries, useReceiveCutter, type CutterListItem } from '../api';
 
 /** Ring diameters in use (DOMAIN.md §4, common practice). */
 const discSizesIn = [15.5, 17, 19, 20];
 const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
 
 function ReceiveCutter({ projectId }: { projectId: string }) {
-  const queryClient = useQueryClient();
+  const receive = useReceiveCutter(projectId);
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const form = useForm<z.input<typeof receiveCutterInputSchema>, unknown, ReceiveCutterInput>({
     resolver: zodResolver(receiveCutterInputSchema),
@@ -33,13 +33,11 @@ function ReceiveCutter({ projectId }: { projectId: string }) {
   const onSubmit = form.handleSubmit(async (input) => {
     setMessage(null);
     try {
-      const cutter = await receiveCutter(projectId, input);
+      const cutter = await receive.mutateAsync(input);
       form.reset({ serial: '', discSizeIn: input.discSizeIn, notes: '' });
       setMessage({ tone: 'success', text: `Serial ${cutter.serial} is in the store.` });
-      await queryClient.invalidateQueries({ queryKey: cutterQueries.all(projectId) });
     } catch (err) {
-      if (err instanceof ApiError) for (const i of err.issues) if (i.path === 'serial' || i.path === 'notes') form.setError(i.path, { message: i.message });
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Receiving failed. Try again.' });
+      setMessage({ tone: 'error', text: serverErrors(err, form.setError, 'Receiving failed. Try again.').text });
     }
   });
   const e = form.formState.errors;

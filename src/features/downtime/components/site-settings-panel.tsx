@@ -1,4 +1,3 @@
-import { useQueryClient } from '@tanstack/react-query';
 import { useState, type FormEvent } from 'react';
 import { siteSettingsInputSchema, type SiteSettings } from '../../../../shared/schemas/downtime';
 import { Alert } from '../../../components/ui/alert';
@@ -6,11 +5,11 @@ import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { downtimeQueries, saveSettings } from '../api';
+import { useSaveSettings } from '../api';
 
 /** Shift pattern (site time), labour rate of cutter work, and the gap between strokes that counts as a standstill. */
 export function SiteSettingsPanel({ projectId, settings, canEdit, timeZone }: { projectId: string; settings: SiteSettings; canEdit: boolean; timeZone: string }) {
-  const queryClient = useQueryClient();
+  const saveSettings = useSaveSettings(projectId);
   const [shifts, setShifts] = useState(settings.shifts);
   const [rate, setRate] = useState(String(settings.labourRatePerHour));
   const [gap, setGap] = useState(String(settings.gapMinutes));
@@ -22,8 +21,7 @@ export function SiteSettingsPanel({ projectId, settings, canEdit, timeZone }: { 
     const parsed = siteSettingsInputSchema.safeParse({ shifts, labourRatePerHour: Number(rate.replace(',', '.')), gapMinutes: Number(gap) });
     if (!parsed.success) return setMessage({ tone: 'error', text: parsed.error.issues[0].message });
     try {
-      await saveSettings(projectId, parsed.data);
-      await queryClient.invalidateQueries({ queryKey: downtimeQueries.all(projectId) });
+      await saveSettings.mutateAsync(parsed.data);
       setMessage({ tone: 'success', text: 'Site settings saved; the reports use them from now on.' });
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Saving failed. Try again.' });

@@ -1,4 +1,4 @@
-import { useQuery, useQueryClient, useSuspenseQueries } from '@tanstack/react-query';
+import { useQuery, useSuspenseQueries } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { useState, type FormEvent } from 'react';
 import { useParams, useSearchParams } from 'react-router';
@@ -13,7 +13,7 @@ import { ApiError } from '../../../lib/api-client';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { downtimeQueries, proposeFromGaps } from '../api';
+import { downtimeQueries, useProposeFromGaps } from '../api';
 import { CausesPanel } from '../components/causes-panel';
 import { DowntimeTabs } from '../components/downtime-tabs';
 import { EventForm } from '../components/event-form';
@@ -74,7 +74,7 @@ function EventFilters({ shown, causes, onApply }: { shown: EventFilterValues; ca
 /** Downtime events with filters; editors add and edit them, propose standstills from the log, and keep causes and settings. */
 export function DowntimeEventsRoute() {
   const { projectId = '' } = useParams();
-  const queryClient = useQueryClient();
+  const proposeGaps = useProposeFromGaps(projectId);
   const { query, cause, apply } = useEventFilters();
   const [{ data: project }, { data: list }, { data: causes }, { data: settings }] = useSuspenseQueries({
     queries: [projectQueries.detail(projectId), downtimeQueries.events(projectId, query), downtimeQueries.causes(projectId), downtimeQueries.settings(projectId)],
@@ -91,8 +91,7 @@ export function DowntimeEventsRoute() {
     setMessage(null);
     setProposing(true);
     try {
-      const r = await proposeFromGaps(projectId);
-      await queryClient.invalidateQueries({ queryKey: downtimeQueries.all(projectId) });
+      const r = await proposeGaps.mutateAsync();
       setMessage(r.created === 0
         ? { tone: 'info', text: `Every standstill longer than ${r.gapMinutes} minutes between strokes already has an event.` }
         : { tone: 'success', text: `${r.created} standstill(s), ${r.hours.toFixed(1)} h in all, proposed from gaps of more than ${r.gapMinutes} minutes between strokes. Give each a cause.` });

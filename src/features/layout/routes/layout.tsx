@@ -1,5 +1,5 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useSuspenseQuery } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { Fragment, useMemo, useState, type ChangeEvent } from 'react';
 import { useFieldArray, useForm, type FieldPath, type Resolver } from 'react-hook-form';
@@ -14,7 +14,7 @@ import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { downloadCsv, toCsv } from '../../../lib/csv';
 import { projectQueries } from '../../projects/api';
-import { importLayoutCsv, layoutQueries, saveLayout, type LayoutSaved, type LayoutPosition } from '../api';
+import { layoutQueries, useImportLayoutCsv, useSaveLayout, type LayoutSaved, type LayoutPosition } from '../api';
 import { layOutAnglesDeg } from '../head-geometry';
 
 /** The columns the importer reads (server/routes/positions.ts), by the field each fills. */
@@ -87,7 +87,7 @@ const cellInput = 'block min-h-touch rounded-md border-2 border-basalt-300 bg-wh
 const savedText = (r: LayoutSaved) => `${r.created} new, ${r.updated} changed, ${r.unchanged} unchanged.`;
 
 function LayoutEditor({ projectId, positions }: { projectId: string; positions: LayoutPosition[] }) {
-  const queryClient = useQueryClient();
+  const save = useSaveLayout(projectId);
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string; issues?: string[] } | null>(null);
   const values = useMemo(() => ({ positions: toRows(positions) }), [positions]);
   const form = useForm<LayoutForm, unknown, LayoutInput>({
@@ -103,8 +103,7 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
   const onSave = form.handleSubmit(async (input) => {
     setMessage(null);
     try {
-      const saved = await saveLayout(projectId, input);
-      await queryClient.invalidateQueries({ queryKey: layoutQueries.all(projectId) });
+      const saved = await save.mutateAsync(input);
       setMessage({ tone: 'success', text: `Layout saved: ${savedText(saved)} Changes to wear limits are kept in the audit log.` });
     } catch (err) {
       if (!(err instanceof ApiError)) {
@@ -235,7 +234,7 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
 interface ImportProblem { row: string; column: string; message: string }
 
 function CsvImport({ projectId }: { projectId: string }) {
-  const queryClient = useQueryClient();
+  const importCsv = useImportLayoutCsv(projectId);
   const [busy, setBusy] = useState(false);
   const [result, setResult] = useState<{ tone: 'success' | 'error'; text: string; problems: ImportProblem[] } | null>(null);
 
@@ -246,8 +245,7 @@ function CsvImport({ projectId }: { projectId: string }) {
     setBusy(true);
     setResult(null);
     try {
-      const saved = await importLayoutCsv(projectId, await file.text());
-      await queryClient.invalidateQueries({ queryKey: layoutQueries.all(projectId) });
+      const saved = await importCsv.mutateAsync(await file.text());
       const notes = (saved.warnings ?? []).map((w) => ({ row: String(w.row), column: w.column, message: w.message }));
       setResult({ tone: 'success', text: `${file.name} imported: ${savedText(saved)}`, problems: notes });
     } catch (err) {

@@ -1,4 +1,3 @@
-import { useQueryClient } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { useState, type FormEvent } from 'react';
 import { partInputSchema, partKindLabels, partKinds } from '../../../../shared/schemas/parts';
@@ -8,7 +7,7 @@ import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { createPart, deletePart, partQueries, updatePart, type CataloguePart } from '../api';
+import { useDeletePart, useSavePart, type CataloguePart } from '../api';
 import { money } from '../format';
 
 type Draft = Record<'code' | 'name' | 'kind' | 'discSizeIn' | 'unitCost' | 'currency' | 'supplier' | 'leadTimeMeanDays' | 'leadTimeSdDays' | 'minOrderQty', string>;
@@ -22,7 +21,7 @@ const toDraft = (p: CataloguePart): Draft => ({
 const num = (s: string) => (s.trim() === '' ? undefined : Number(s.trim().replace(',', '.')));
 
 function PartForm({ projectId, editing, onDone }: { projectId: string; editing: CataloguePart | null; onDone: (text: string) => void }) {
-  const queryClient = useQueryClient();
+  const savePart = useSavePart(projectId);
   const [draft, setDraft] = useState<Draft>(editing ? toDraft(editing) : emptyDraft);
   const [errors, setErrors] = useState<Partial<Record<keyof Draft, string>>>({});
   const [failure, setFailure] = useState<string | null>(null);
@@ -41,8 +40,7 @@ function PartForm({ projectId, editing, onDone }: { projectId: string; editing: 
     }
     setErrors({});
     try {
-      const saved = editing ? await updatePart(projectId, editing.id, parsed.data) : await createPart(projectId, parsed.data);
-      await queryClient.invalidateQueries({ queryKey: partQueries.all(projectId) });
+      const saved = editing ? await savePart.mutateAsync({ partId: editing.id, input: parsed.data }) : await savePart.mutateAsync({ partId: null, input: parsed.data });
       onDone(`${saved.code} ${editing ? 'saved' : 'added to the catalogue'}.`);
     } catch (err) {
       if (err instanceof ApiError) setErrors(Object.fromEntries(err.issues.map((i) => [i.path, i.message])));
@@ -79,7 +77,7 @@ const col = createColumnHelper<CataloguePart>();
 
 /** The catalogue: every part with its cost, supplier and lead time; the buyer adds, edits and removes. */
 export function CatalogueEditor({ projectId, parts, canEdit }: { projectId: string; parts: CataloguePart[]; canEdit: boolean }) {
-  const queryClient = useQueryClient();
+  const removePart = useDeletePart(projectId);
   const [editing, setEditing] = useState<CataloguePart | null>(null);
   const [formKey, setFormKey] = useState(0);
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
@@ -91,9 +89,8 @@ export function CatalogueEditor({ projectId, parts, canEdit }: { projectId: stri
   const remove = async (p: CataloguePart) => {
     if (!window.confirm(`Remove ${p.code} from the catalogue?`)) return;
     try {
-      await deletePart(projectId, p.id);
+      await removePart.mutateAsync(p.id);
       setMessage({ tone: 'success', text: `${p.code} removed.` });
-      await queryClient.invalidateQueries({ queryKey: partQueries.all(projectId) });
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Removing failed. Try again.' });
     }

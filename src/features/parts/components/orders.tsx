@@ -1,4 +1,3 @@
-import { useQueryClient } from '@tanstack/react-query';
 import { useState, type FormEvent } from 'react';
 import { purchaseOrderInputSchema, receiveLineInputSchema } from '../../../../shared/schemas/parts';
 import { Alert } from '../../../components/ui/alert';
@@ -7,14 +6,14 @@ import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { formatSiteDate } from '../../../../shared/site-time';
-import { createOrder, partQueries, receiveLine, type CataloguePart, type OrderLine, type PurchaseOrder } from '../api';
+import { useCreateOrder, useReceiveLine, type CataloguePart, type OrderLine, type PurchaseOrder } from '../api';
 import type { OrderSuggestion } from '../../../../shared/schemas/parts';
 
 const cellInput = 'block min-h-touch w-24 rounded-md border-2 border-basalt-300 bg-white px-2 aria-[invalid=true]:border-alarm-500';
 
 /** Receiving against one open line: the quantity that arrived (never more than is still open). */
 function ReceiveCell({ projectId, line }: { projectId: string; line: OrderLine }) {
-  const queryClient = useQueryClient();
+  const receive = useReceiveLine(projectId);
   const [qty, setQty] = useState(String(line.qtyOpen));
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const onReceive = async () => {
@@ -25,9 +24,8 @@ function ReceiveCell({ projectId, line }: { projectId: string; line: OrderLine }
       return;
     }
     try {
-      await receiveLine(projectId, line, parsed.data);
+      await receive.mutateAsync({ line, input: parsed.data });
       setMessage({ tone: 'success', text: `${parsed.data.qty} × ${line.partCode} received into stock.` });
-      await queryClient.invalidateQueries({ queryKey: partQueries.all(projectId) });
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Receiving failed. Try again.' });
     }
@@ -85,7 +83,7 @@ const addDays = (isoDate: string, days: number) => new Date(Date.parse(`${isoDat
 
 /** A new purchase order; "Fill from the suggestions" puts in every part to order now, due after its lead time. */
 export function NewOrder({ projectId, parts, suggestions, today }: { projectId: string; parts: CataloguePart[]; suggestions: OrderSuggestion[]; today: string }) {
-  const queryClient = useQueryClient();
+  const create = useCreateOrder(projectId);
   const blank = (): DraftLine => ({ partId: parts[0]?.id ?? '', qty: '', dueDate: addDays(today, parts[0]?.leadTimeMeanDays ?? 14) });
   const [number, setNumber] = useState('');
   const [supplier, setSupplier] = useState('');
@@ -110,12 +108,11 @@ export function NewOrder({ projectId, parts, suggestions, today }: { projectId: 
       return;
     }
     try {
-      const order = await createOrder(projectId, parsed.data);
+      const order = await create.mutateAsync(parsed.data);
       setMessage({ tone: 'success', text: `Order ${order.number} saved with ${order.lines.length} line(s).` });
       setNumber('');
       setNote('');
       setLines([blank()]);
-      await queryClient.invalidateQueries({ queryKey: partQueries.all(projectId) });
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Saving failed. Try again.' });
     }

@@ -1,4 +1,3 @@
-import { useQueryClient } from '@tanstack/react-query';
 import { useState, type FormEvent } from 'react';
 import { stockCountInputSchema } from '../../../../shared/schemas/parts';
 import { Alert } from '../../../components/ui/alert';
@@ -6,11 +5,11 @@ import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { countStock, partQueries, type CataloguePart } from '../api';
+import { useCountStock, type CataloguePart } from '../api';
 
 /** A stock count: what is on the shelf replaces the book stock; the difference is recorded (and audited). */
 export function StockCount({ projectId, parts }: { projectId: string; parts: CataloguePart[] }) {
-  const queryClient = useQueryClient();
+  const count = useCountStock(projectId);
   const [partId, setPartId] = useState(parts[0]?.id ?? '');
   const [counted, setCounted] = useState('');
   const [note, setNote] = useState('');
@@ -28,11 +27,10 @@ export function StockCount({ projectId, parts }: { projectId: string; parts: Cat
     }
     setError(undefined);
     try {
-      const result = await countStock(projectId, partId, parsed.data);
+      const result = await count.mutateAsync({ partId, input: parsed.data });
       setCounted('');
       setNote('');
       setMessage({ tone: 'success', text: `${part?.code}: ${result.onHand} on hand (${result.difference === 0 ? 'as on the books' : `${result.difference > 0 ? '+' : ''}${result.difference} recorded as a count`}).` });
-      await queryClient.invalidateQueries({ queryKey: partQueries.all(projectId) });
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The count was not saved. Try again.' });
     }

@@ -1,4 +1,3 @@
-import { useQueryClient } from '@tanstack/react-query';
 import { useState, type FormEvent } from 'react';
 import { workshopConditions, workshopSettingsInputSchema, type RebuildOutcomeInput, type WorkshopCondition, type WorkshopSettingsInput } from '../../../../shared/schemas/parts';
 import { Alert } from '../../../components/ui/alert';
@@ -6,7 +5,7 @@ import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { partQueries, saveWorkshop, type CataloguePart } from '../api';
+import { useSaveWorkshop, type CataloguePart } from '../api';
 
 type Bom = Record<WorkshopCondition, RebuildOutcomeInput>;
 const allScrap = (): Bom => Object.fromEntries(workshopConditions.map((c) => [c.key, 'scrap'])) as Bom;
@@ -72,7 +71,7 @@ function BomEditor({ assembly, bom, parts, onChange }: { assembly: CataloguePart
 
 /** The workshop loop: turnaround, most rebuilds, service level and the bills of materials; the buyer edits, others read. */
 export function WorkshopSettings({ projectId, settings, parts, canEdit }: { projectId: string; settings: WorkshopSettingsInput; parts: CataloguePart[]; canEdit: boolean }) {
-  const queryClient = useQueryClient();
+  const save = useSaveWorkshop(projectId);
   const assemblies = parts.filter((p) => p.kind === 'cutter-assembly');
   const [turnaround, setTurnaround] = useState(String(settings.turnaroundDays));
   const [maxRebuilds, setMaxRebuilds] = useState(String(settings.maxRebuilds));
@@ -91,8 +90,7 @@ export function WorkshopSettings({ projectId, settings, parts, canEdit }: { proj
       return;
     }
     try {
-      await saveWorkshop(projectId, parsed.data);
-      await queryClient.invalidateQueries({ queryKey: partQueries.all(projectId) });
+      await save.mutateAsync(parsed.data);
       setMessage({ tone: 'success', text: 'Workshop settings saved; the demand is worked out again with them.' });
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Saving failed. Try again.' });

@@ -1,4 +1,4 @@
-import { useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
+import { useSuspenseQuery } from '@tanstack/react-query';
 import { Fragment, useState, type FormEvent } from 'react';
 import { Link, useNavigate, useParams, useSearchParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
@@ -13,7 +13,7 @@ import { ApiError } from '../../../lib/api-client';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDate as formatDate, formatSiteDateTime as formatDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { proposeStop, stopQueries, type PlanStop, type PlanView, type StopPlan, type StopPlanSettings } from '../api';
+import { stopQueries, useProposeStop, type PlanStop, type PlanView, type StopPlan, type StopPlanSettings } from '../api';
 import { AirBadge } from '../components/air-badge';
 import { StopCautions } from '../components/cautions';
 import { hoursText } from '../format';
@@ -259,21 +259,20 @@ function StopTable({ projectId, stops, timeZone, canPlan, label }: { projectId: 
 
 function StopDetail({ projectId, stop, canPlan }: { projectId: string; stop: PlanStop; canPlan: boolean }) {
   const navigate = useNavigate();
-  const queryClient = useQueryClient();
+  const proposeStop = useProposeStop(projectId);
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const propose = async () => {
     setBusy(true);
     setError(null);
     try {
-      const pack = await proposeStop(projectId, {
+      const pack = await proposeStop.mutateAsync({
         chainageM: stop.chainageM,
         compressedAir: stop.compressedAir,
         expectedHours: Math.round((stop.stopH + stop.changeH) * 10) / 10,
         positions: stop.changes.map((c) => ({ positionId: c.positionId, expectedWearMm: Math.round(c.wearAtChangeMm * 10) / 10 })),
         notes: '',
       });
-      await queryClient.invalidateQueries({ queryKey: stopQueries.all(projectId) });
       navigate(paths.stop(projectId, pack.stop.id));
     } catch (err) {
       setError(err instanceof ApiError ? err.message : 'The stop could not be proposed. Try again.');

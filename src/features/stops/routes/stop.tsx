@@ -1,4 +1,4 @@
-import { useQueryClient, useSuspenseQueries } from '@tanstack/react-query';
+import { useSuspenseQueries } from '@tanstack/react-query';
 import { useState, type FormEvent, type ReactNode } from 'react';
 import { Link, useParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
@@ -13,7 +13,7 @@ import { ApiError } from '../../../lib/api-client';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime, fromSiteInput, toSiteInput } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { cancelStop, completeStop, publishStop, scheduleStop, startStop, stopQueries, type Crew, type RoundOption, type WorkPack } from '../api';
+import { stopQueries, useChangeStop, type Crew, type RoundOption, type StopChange, type WorkPack } from '../api';
 import { AirBadge } from '../components/air-badge';
 import { StopCautions } from '../components/cautions';
 import { hoursText } from '../format';
@@ -23,17 +23,16 @@ const linkClass = 'inline-flex min-h-touch items-center font-semibold text-ember
 
 /** Runs a change to the stop, puts the answer (the new work pack) in the cache and keeps the outcome to show. */
 function useStopAction(projectId: string, stopId: string) {
-  const queryClient = useQueryClient();
+  const changeStop = useChangeStop(projectId, stopId);
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const [done, setDone] = useState<string | null>(null);
-  const run = async (change: () => Promise<WorkPack>, message: string) => {
+  const run = async (change: StopChange, message: string) => {
     setBusy(true);
     setError(null);
     setDone(null);
     try {
-      queryClient.setQueryData(stopQueries.detail(projectId, stopId).queryKey, await change());
-      await queryClient.invalidateQueries({ queryKey: stopQueries.all(projectId) });
+      await changeStop.mutateAsync(change);
       setDone(message);
     } catch (err) {
       setError(err instanceof ApiError ? err.message : 'That did not work. Try again.');
@@ -74,7 +73,7 @@ export function StopRoute() {
       <WorkPackView pack={pack} projectName={project.name} timeZone={project.siteTimeZone} />
 
       <div className="no-print space-y-6">
-        {canPlan && canStop('schedule', stop.status) && <ScheduleForm pack={pack} crews={crews} timeZone={project.siteTimeZone} action={action} projectId={projectId} />}
+        {canPlan && canStop('schedule', stop.status) && <ScheduleForm pack={pack} crews={crews} timeZone={project.siteTimeZone} action={action} />}
         {canPlan && stop.status === 'scheduled' && (
           <Panel title="Publish">
             {stop.publishedAt ? (
@@ -82,7 +81,7 @@ export function StopRoute() {
             ) : (
               <div className="space-y-3">
                 <p>Every member of {pack.crew?.name ?? 'the crew'} gets the work pack and the cautions by e-mail, and reminders before the start.</p>
-                <Button onClick={() => action.run(() => publishStop(projectId, stopId), 'Published: the crew is told by e-mail.')} disabled={action.busy}>
+                <Button onClick={() => action.run({ kind: 'publish' }, 'Published: the crew is told by e-mail.')} disabled={action.busy}>
                   Publish to the crew
                 </Button>
               </div>
@@ -91,11 +90,11 @@ export function StopRoute() {
         )}
         {canRun && canStop('start', stop.status) && (
           <Panel title="At the face">
-            <Button onClick={() => action.run(() => startStop(projectId, stopId, {}), 'Started: the stop is in progress.')} disabled={action.busy}>Start the stop now</Button>
+            <Button onClick={() => action.run({ kind: 'start', input: {} }, 'Started: the stop is in progress.')} disabled={action.busy}>Start the stop now</Button>
           </Panel>
         )}
-        {canRun && canStop('complete', stop.status) && <CompleteForm rounds={rounds} timeZone={project.siteTimeZone} action={action} projectId={projectId} stopId={stopId} />}
-        {canPlan && canStop('cancel', stop.status) && <CancelForm action={action} projectId={projectId} stopId={stopId} />}
+        {canRun && canStop('complete', stop.status) && <CompleteForm rounds={rounds} timeZone={project.siteTimeZone} action={action} />}
+        {canPlan && canStop('cancel', stop.status) && <CancelForm action={action} />}
       </div>
     </Page>
   );
@@ -223,7 +222,7 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
 
 type ScheduleField = 'plannedStart' | 'expectedHours' | 'crewId' | 'compressedAir';
 
-function ScheduleForm({ pack, crews, timeZone, action, projectId }: { pack: WorkPack; crews: Crew[]; timeZone: string; action: StopChanger; projectId: string }) {
+function ScheduleForm({ pack, crews, timeZone, action }: { pack: WorkPack; crews: Crew[]; timeZone: string; action: StopChanger }) {
   const { stop } = pack;
   const [values, setValues] = useState(() => ({
     plannedStart: stop.plannedStart ? toSiteInput(stop.plannedStart, timeZone) : '',
@@ -246,7 +245,7 @@ function ScheduleForm({ pack, crews, timeZone, action, projectId }: { pack: Work
     }
     setErrors({});
     const input: ScheduleStopInput = parsed.data;
-    void action.run(() => scheduleStop(projectId, stop.id, input), 'Scheduled. Publish it to tell the crew.');
+    void action.run({ kind: 'schedule', input }, 'Scheduled. Publish it to tell the crew.');
   };
   const airOption = (compressed: boolean, label: string) => (
     <label className="flex min-h-touch items-center gap-2 rounded-md border-2 border-basalt-300 px-3 has-[:checked]:border-ember-500">
@@ -294,7 +293,7 @@ function ScheduleForm({ pack, crews, timeZone, action, projectId }: { pack: Work
   );
 }
 
-function CompleteForm({ rounds, timeZone, action, projectId, stopId }: { rounds: RoundOption[]; timeZone: string; action: StopChanger; projectId: string; stopId: string }) {
+function CompleteForm({ rounds, timeZone, action }: { rounds: RoundOption[]; timeZone: string; action: StopChanger }) {
   const [roundId, setRoundId] = useState('');
   return (
     <Panel title="Finish">
@@ -306,7 +305,7 @@ function CompleteForm({ rounds, timeZone, action, projectId, stopId }: { rounds:
           ))}
         </SelectField>
         <div className="flex items-end">
-          <Button onClick={() => action.run(() => completeStop(projectId, stopId, { roundId: roundId || null }), 'Done: the stop is complete.')} disabled={action.busy}>
+          <Button onClick={() => action.run({ kind: 'complete', input: { roundId: roundId || null } }, 'Done: the stop is complete.')} disabled={action.busy}>
             Complete the stop now
           </Button>
         </div>
@@ -315,7 +314,7 @@ function CompleteForm({ rounds, timeZone, action, projectId, stopId }: { rounds:
   );
 }
 
-function CancelForm({ action, projectId, stopId }: { action: StopChanger; projectId: string; stopId: string }) {
+function CancelForm({ action }: { action: StopChanger }) {
   const [reason, setReason] = useState('');
   const [error, setError] = useState<string | undefined>();
   const onSubmit = (e: FormEvent) => {
@@ -326,7 +325,7 @@ function CancelForm({ action, projectId, stopId }: { action: StopChanger; projec
       return;
     }
     setError(undefined);
-    void action.run(() => cancelStop(projectId, stopId, parsed.data), 'Cancelled.');
+    void action.run({ kind: 'cancel', input: parsed.data }, 'Cancelled.');
   };
   return (
     <Panel title="Cancel the stop">
