@@ -41,7 +41,10 @@ export async function nightlyBackupJob({ now }: JobContext): Promise<string> {
 
 /** Queues one message to every active administrator. */
 export async function mailAdministrators(subject: string, text: string): Promise<number> {
-  const admins = await db.select({ email: users.email }).from(users).where(and(eq(users.isAdmin, true), eq(users.active, true)));
+  const admins = await db
+    .select({ email: users.email })
+    .from(users)
+    .where(and(eq(users.isAdmin, true), eq(users.active, true)));
   if (admins.length === 0) return 0;
   await db.transaction(async (tx) => {
     await enqueueMail(tx, { kind: 'backup_alert', to: admins.map((a) => a.email), subject, text });
@@ -61,13 +64,23 @@ const MAILED = 'Mailed the administrators';
  */
 export async function backupWatchJob({ now }: JobContext): Promise<string> {
   const status = await backupStatus(now);
-  const [running] = await db.select({ id: jobRuns.id }).from(jobRuns).where(and(eq(jobRuns.job, BACKUP_JOB_NAME), eq(jobRuns.outcome, 'running'))).limit(1);
+  const [running] = await db
+    .select({ id: jobRuns.id })
+    .from(jobRuns)
+    .where(and(eq(jobRuns.job, BACKUP_JOB_NAME), eq(jobRuns.outcome, 'running')))
+    .limit(1);
   if (status.missing && running) return 'A backup is running now; checked again at the next hour.';
   if (!status.missing) return `A backup is at most ${status.missingAfterHours} h old; nothing to do.`;
   const [recent] = await db
     .select({ id: jobRuns.id })
     .from(jobRuns)
-    .where(and(eq(jobRuns.job, BACKUP_WATCH_JOB), like(jobRuns.summary, `${MAILED}%`), gt(jobRuns.startedAt, new Date(now.getTime() - WATCH_REMIND_HOURS * 3600_000))))
+    .where(
+      and(
+        eq(jobRuns.job, BACKUP_WATCH_JOB),
+        like(jobRuns.summary, `${MAILED}%`),
+        gt(jobRuns.startedAt, new Date(now.getTime() - WATCH_REMIND_HOURS * 3600_000)),
+      ),
+    )
     .limit(1);
   const newest = status.newestAt ? `The newest good backup is from ${status.newestAt.toISOString()}.` : 'There is no good backup at all.';
   if (recent) return `Backups are missing (${newest}); the administrators were mailed within the last ${WATCH_REMIND_HOURS} h.`;

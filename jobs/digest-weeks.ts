@@ -15,13 +15,23 @@ export type DigestName = 'downtime_digest' | 'parts_digest';
  * Claims the week for a drive. Returns false when the week was already sent (and `again` is not
  * set); a concurrent claim waits for the other transaction and then sees its row.
  */
-export async function claimDigestWeek(tx: DbOrTx, digest: DigestName, projectId: string, isoWeek: string, mails: number, again = false): Promise<boolean> {
+export async function claimDigestWeek(
+  tx: DbOrTx,
+  digest: DigestName,
+  projectId: string,
+  isoWeek: string,
+  mails: number,
+  again = false,
+): Promise<boolean> {
   const row = { digest, projectId, isoWeek, mails };
   if (again) {
-    await tx.insert(digestWeeks).values(row).onConflictDoUpdate({
-      target: [digestWeeks.digest, digestWeeks.projectId, digestWeeks.isoWeek],
-      set: { mails, sentAt: sql`now()`, resent: sql`${digestWeeks.resent} + 1` },
-    });
+    await tx
+      .insert(digestWeeks)
+      .values(row)
+      .onConflictDoUpdate({
+        target: [digestWeeks.digest, digestWeeks.projectId, digestWeeks.isoWeek],
+        set: { mails, sentAt: sql`now()`, resent: sql`${digestWeeks.resent} + 1` },
+      });
     return true;
   }
   const claimed = await tx.insert(digestWeeks).values(row).onConflictDoNothing().returning({ isoWeek: digestWeeks.isoWeek });
@@ -32,7 +42,11 @@ export async function claimDigestWeek(tx: DbOrTx, digest: DigestName, projectId:
  * For 'run now': the drives whose week (as `weekOf` gives it at `now`) was already sent, as one
  * sentence for the administrator's confirmation, or null when nothing would be sent twice.
  */
-export async function alreadySentText(digest: DigestName, now: Date, weekOf: (now: Date, timeZone: string) => string): Promise<string | null> {
+export async function alreadySentText(
+  digest: DigestName,
+  now: Date,
+  weekOf: (now: Date, timeZone: string) => string,
+): Promise<string | null> {
   const drives = await db.select({ id: projects.id, name: projects.name, timeZone: projects.siteTimeZone }).from(projects);
   if (drives.length === 0) return null;
   const weeks = new Map(drives.map((d) => [d.id, weekOf(now, d.timeZone)]));

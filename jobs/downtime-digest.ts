@@ -26,7 +26,11 @@ function digestBodies(driveName: string, isoWeek: string, r: DowntimeReport, lin
   const summary = [
     `Downtime ${r.downtimeHours.toFixed(1)} h of ${r.hours.toFixed(0)} h; cutter work ${pct(r.cutterWorkShare)} of the downtime.`,
     `Utilisation ${pct(r.utilisation)} (boring ${r.boringHours.toFixed(1)} h); ${r.advanceM.toFixed(1)} m advanced, ${r.metresPerDay.toFixed(1)} m a day.`,
-    ...(r.unexplainedEvents > 0 ? [`${r.unexplainedEvents} standstill(s), ${r.unexplainedHours.toFixed(1)} h, still without a cause: give them one on the Downtime page.`] : []),
+    ...(r.unexplainedEvents > 0
+      ? [
+          `${r.unexplainedEvents} standstill(s), ${r.unexplainedHours.toFixed(1)} h, still without a cause: give them one on the Downtime page.`,
+        ]
+      : []),
   ];
   const text = [
     heading,
@@ -34,11 +38,11 @@ function digestBodies(driveName: string, isoWeek: string, r: DowntimeReport, lin
     ...(r.pareto.length === 0
       ? ['No downtime was recorded last week.']
       : [
-        line('Cause', 'Hours', 'Share', 'Running'),
-        ...r.pareto.map((p) => line(`${p.cause}${p.cutterWork ? ' *' : ''}`, p.hours.toFixed(1), pct(p.share), pct(p.cumulativeShare))),
-        line('Total', r.downtimeHours.toFixed(1), '100.0 %', ''),
-        '* cutter work',
-      ]),
+          line('Cause', 'Hours', 'Share', 'Running'),
+          ...r.pareto.map((p) => line(`${p.cause}${p.cutterWork ? ' *' : ''}`, p.hours.toFixed(1), pct(p.share), pct(p.cumulativeShare))),
+          line('Total', r.downtimeHours.toFixed(1), '100.0 %', ''),
+          '* cutter work',
+        ]),
     '',
     ...summary,
     ...(link ? ['', `The full report: ${link}`] : []),
@@ -48,9 +52,12 @@ function digestBodies(driveName: string, isoWeek: string, r: DowntimeReport, lin
     `<p><strong>${escapeHtml(heading)}</strong></p>`,
     r.pareto.length === 0
       ? '<p>No downtime was recorded last week.</p>'
-      : `<table style="border-collapse:collapse"><thead><tr><th align="left">Cause</th><th align="right">Hours</th><th align="right">Share</th><th align="right">Running</th></tr></thead><tbody>${
-        r.pareto.map((p) => `<tr>${cell(`${p.cause}${p.cutterWork ? ' (cutter work)' : ''}`)}${cell(p.hours.toFixed(1), true)}${cell(pct(p.share), true)}${cell(pct(p.cumulativeShare), true)}</tr>`).join('')
-      }<tr>${cell('Total')}${cell(r.downtimeHours.toFixed(1), true)}${cell('100.0 %', true)}${cell('')}</tr></tbody></table>`,
+      : `<table style="border-collapse:collapse"><thead><tr><th align="left">Cause</th><th align="right">Hours</th><th align="right">Share</th><th align="right">Running</th></tr></thead><tbody>${r.pareto
+          .map(
+            (p) =>
+              `<tr>${cell(`${p.cause}${p.cutterWork ? ' (cutter work)' : ''}`)}${cell(p.hours.toFixed(1), true)}${cell(pct(p.share), true)}${cell(pct(p.cumulativeShare), true)}</tr>`,
+          )
+          .join('')}<tr>${cell('Total')}${cell(r.downtimeHours.toFixed(1), true)}${cell('100.0 %', true)}${cell('')}</tr></tbody></table>`,
     ...summary.map((s) => `<p>${escapeHtml(s)}</p>`),
     ...(link ? [`<p><a href="${escapeHtml(link)}">Open the full report in Kerfwise</a></p>`] : []),
   ].join('\n');
@@ -61,7 +68,11 @@ function digestBodies(driveName: string, isoWeek: string, r: DowntimeReport, lin
 export const downtimeDigestWeek = (now: Date, timeZone: string) => previousIsoWeek(now, timeZone).isoWeek;
 
 export async function downtimeDigestJob({ now, again }: JobContext, options: { projectId?: string } = {}): Promise<string> {
-  const drives = await db.select().from(projects).where(options.projectId ? eq(projects.id, options.projectId) : undefined).orderBy(asc(projects.name));
+  const drives = await db
+    .select()
+    .from(projects)
+    .where(options.projectId ? eq(projects.id, options.projectId) : undefined)
+    .orderBy(asc(projects.name));
   let mails = 0;
   let alreadySent = 0;
   for (const drive of drives) {

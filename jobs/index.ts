@@ -57,8 +57,20 @@ export const jobs: JobDefinition[] = [
     run: (ctx) => partsDigestJob(ctx),
     alreadyDone: ({ now }) => alreadySentText('parts_digest', now, partsDigestWeek),
   },
-  { name: BACKUP_JOB, label: 'Nightly backup of the database and photos (BACKUP_DIR), with retention', cron: '15 2 * * *', periodMs: 24 * 60 * MINUTE, run: nightlyBackupJob },
-  { name: BACKUP_WATCH_JOB, label: 'Hourly check that a backup is at most 36 h old; mails the administrators once a day while none is', cron: '40 * * * *', periodMs: 60 * MINUTE, run: backupWatchJob },
+  {
+    name: BACKUP_JOB,
+    label: 'Nightly backup of the database and photos (BACKUP_DIR), with retention',
+    cron: '15 2 * * *',
+    periodMs: 24 * 60 * MINUTE,
+    run: nightlyBackupJob,
+  },
+  {
+    name: BACKUP_WATCH_JOB,
+    label: 'Hourly check that a backup is at most 36 h old; mails the administrators once a day while none is',
+    cron: '40 * * * *',
+    periodMs: 60 * MINUTE,
+    run: backupWatchJob,
+  },
 ];
 
 /** The job of that name in the registry (tests and the entries; the server is given the registry). */

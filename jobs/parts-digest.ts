@@ -17,7 +17,8 @@ import { recipientsFor } from '../server/services/recipients';
 /** Weeks the digest looks ahead (about a quarter: longer than most lead times; common practice, no source). */
 export const DIGEST_WEEKS = 12;
 
-const money = (v: number, currency: string) => `${v.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} ${currency}`;
+const money = (v: number, currency: string) =>
+  `${v.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} ${currency}`;
 const units = (v: number) => (Number.isInteger(v) ? String(v) : v.toFixed(1));
 
 /** The digest text: order-now lines with their reasons, then parts that reach their reorder point. */
@@ -31,18 +32,26 @@ export function partsDigestText(driveName: string, demand: PartsDemand, link: st
     ...(now.length === 0
       ? ['Nothing needs ordering now: stock and open orders cover the demand over each part’s lead time plus safety stock.']
       : [
-        `Order now (${now.length}):`,
-        ...now.flatMap((s) => [
-          `  • ${s.code} ${s.name}: order ${s.orderQty}${s.orderQty === s.minOrderQty ? ' (minimum order)' : ''} from ${s.supplier || 'the usual supplier'}, about ${money(s.orderValue, s.currency)}.`,
-          `    On hand ${s.onHand}, on order ${s.onOrder}; lead time ${units(s.leadTimeWeeks)} weeks; demand over it ${units(s.leadTimeDemand)} + safety stock ${units(s.safetyStock)}.`,
-          ...(s.firstShortageDate ? [`    Runs out in the week starting ${s.firstShortageDate}.`] : []),
-          ...(s.sources.length > 0 ? [`    Demand from: ${sourcesText(s.sources, stopsById)}.`] : []),
+          `Order now (${now.length}):`,
+          ...now.flatMap((s) => [
+            `  • ${s.code} ${s.name}: order ${s.orderQty}${s.orderQty === s.minOrderQty ? ' (minimum order)' : ''} from ${s.supplier || 'the usual supplier'}, about ${money(s.orderValue, s.currency)}.`,
+            `    On hand ${s.onHand}, on order ${s.onOrder}; lead time ${units(s.leadTimeWeeks)} weeks; demand over it ${units(s.leadTimeDemand)} + safety stock ${units(s.safetyStock)}.`,
+            ...(s.firstShortageDate ? [`    Runs out in the week starting ${s.firstShortageDate}.`] : []),
+            ...(s.sources.length > 0 ? [`    Demand from: ${sourcesText(s.sources, stopsById)}.`] : []),
+          ]),
         ]),
-      ]),
-    ...(low.length > 0 ? ['', 'Projected to run short later (covered by the lead time for now):', ...low.map((s) => `  • ${s.code} ${s.name}: week starting ${s.firstShortageDate}`)] : []),
+    ...(low.length > 0
+      ? [
+          '',
+          'Projected to run short later (covered by the lead time for now):',
+          ...low.map((s) => `  • ${s.code} ${s.name}: week starting ${s.firstShortageDate}`),
+        ]
+      : []),
     ...(demand.problems.length > 0 ? ['', 'Please note:', ...demand.problems.map((p) => `  • ${p}`)] : []),
     '',
-    link ? `The demand chart, the CSV export and receiving are on the Parts page: ${link}` : 'The demand chart, the CSV export and receiving are on the Parts page in Kerfwise.',
+    link
+      ? `The demand chart, the CSV export and receiving are on the Parts page: ${link}`
+      : 'The demand chart, the CSV export and receiving are on the Parts page in Kerfwise.',
   ];
   return {
     subject: `${driveName}: ${now.length === 0 ? 'no parts to order this week' : `${now.length} part(s) to order now`}`,
@@ -58,10 +67,12 @@ export async function partsDigestJob({ now, again }: JobContext, options: { proj
   const drives = await db
     .select({ id: projects.id, name: projects.name, siteTimeZone: projects.siteTimeZone })
     .from(projects)
-    .where(and(
-      options.projectId ? eq(projects.id, options.projectId) : undefined,
-      exists(db.select({ id: parts.id }).from(parts).where(eq(parts.projectId, projects.id))),
-    ));
+    .where(
+      and(
+        options.projectId ? eq(projects.id, options.projectId) : undefined,
+        exists(db.select({ id: parts.id }).from(parts).where(eq(parts.projectId, projects.id))),
+      ),
+    );
   let sent = 0;
   let alreadySent = 0;
   for (const drive of drives) {

@@ -20,10 +20,15 @@ export const PROPOSAL_HORIZON_M = 500;
 
 export async function refreshForecastsJob({ now }: JobContext, options: { projectId?: string } = {}): Promise<string> {
   // Drives with a cutterhead: without positions there is nothing to forecast.
-  const drives = await db.select().from(projects).where(and(
-    options.projectId ? eq(projects.id, options.projectId) : undefined,
-    exists(db.select({ id: positions.id }).from(positions).where(eq(positions.projectId, projects.id))),
-  ));
+  const drives = await db
+    .select()
+    .from(projects)
+    .where(
+      and(
+        options.projectId ? eq(projects.id, options.projectId) : undefined,
+        exists(db.select({ id: positions.id }).from(positions).where(eq(positions.projectId, projects.id))),
+      ),
+    );
   let proposed = 0;
   for (const drive of drives) {
     const made = await db.transaction(async (tx) => {
@@ -31,12 +36,13 @@ export async function refreshForecastsJob({ now }: JobContext, options: { projec
       const currentM = forecast.currentChainageM;
       if (currentM == null) return false;
       const covered = new Set(
-        (await tx
-          .select({ positionId: stopPositions.positionId })
-          .from(stopPositions)
-          .innerJoin(stops, eq(stops.id, stopPositions.stopId))
-          .where(and(eq(stops.projectId, drive.id), inArray(stops.status, ['proposed', 'scheduled', 'in_progress']))))
-          .map((r) => r.positionId),
+        (
+          await tx
+            .select({ positionId: stopPositions.positionId })
+            .from(stopPositions)
+            .innerJoin(stops, eq(stops.id, stopPositions.stopId))
+            .where(and(eq(stops.projectId, drive.id), inArray(stops.status, ['proposed', 'scheduled', 'in_progress'])))
+        ).map((r) => r.positionId),
       );
       const due = forecast.positions.filter((p) => p.p90.remainingM <= PROPOSAL_HORIZON_M && !covered.has(p.position.positionId));
       if (due.length === 0) return false;
@@ -44,14 +50,28 @@ export async function refreshForecastsJob({ now }: JobContext, options: { projec
       // The last allowed place at or before the first due point, as the stop service sees it.
       const place = (await proposalStopPlace(tx, drive, firstDueAhead))!;
       const { chainageM, workingPressureBar: pressure } = place;
-      const [stop] = await tx.insert(stops).values({
-        projectId: drive.id, source: 'job', status: 'proposed', chainageM,
-        ringNumber: place.ringNumber,
-        compressedAir: place.compressedAir,
-        workingPressureBar: pressure,
-        notes: `Proposed by the nightly forecast: ${due.length} position(s) reach their cautious limit within ${PROPOSAL_HORIZON_M} m.`,
-      }).returning();
-      await tx.insert(stopPositions).values(due.map((p) => ({ stopId: stop.id, positionId: p.position.positionId, expectedWearMm: Math.min(p.position.allowableWearMm, p.p90.wearNowMm) })));
+      const [stop] = await tx
+        .insert(stops)
+        .values({
+          projectId: drive.id,
+          source: 'job',
+          status: 'proposed',
+          chainageM,
+          ringNumber: place.ringNumber,
+          compressedAir: place.compressedAir,
+          workingPressureBar: pressure,
+          notes: `Proposed by the nightly forecast: ${due.length} position(s) reach their cautious limit within ${PROPOSAL_HORIZON_M} m.`,
+        })
+        .returning();
+      await tx
+        .insert(stopPositions)
+        .values(
+          due.map((p) => ({
+            stopId: stop.id,
+            positionId: p.position.positionId,
+            expectedWearMm: Math.min(p.position.allowableWearMm, p.p90.wearNowMm),
+          })),
+        );
       const to = (await recipientsFor(tx, drive.id, 'stop_proposed')).map((r) => r.email);
       if (to.length > 0) {
         await enqueueMail(tx, {

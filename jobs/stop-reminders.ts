@@ -26,7 +26,14 @@ export async function stopRemindersJob({ now }: JobContext): Promise<string> {
     .select({ stop: stops, project: projects })
     .from(stops)
     .innerJoin(projects, eq(projects.id, stops.projectId))
-    .where(and(eq(stops.status, 'scheduled'), isNotNull(stops.publishedAt), gt(stops.plannedStart, now), sql`${stops.plannedStart} <= ${new Date(now.getTime() + 24 * 3600_000)}`))
+    .where(
+      and(
+        eq(stops.status, 'scheduled'),
+        isNotNull(stops.publishedAt),
+        gt(stops.plannedStart, now),
+        sql`${stops.plannedStart} <= ${new Date(now.getTime() + 24 * 3600_000)}`,
+      ),
+    )
     .orderBy(asc(stops.plannedStart));
   let sent = 0;
   for (const { stop, project } of due) {

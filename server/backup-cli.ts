@@ -12,7 +12,16 @@ import path from 'node:path';
 import { z } from 'zod';
 import { startLocalPostgres } from './devenv/postgres';
 import { backupEnvSchema, loadDotEnv } from './env';
-import { createBackup, formatBytes, knownMigrationCount, listBackups, readManifest, restoreBackup, RestoreRefused, verifyBackup } from './services/backup';
+import {
+  createBackup,
+  formatBytes,
+  knownMigrationCount,
+  listBackups,
+  readManifest,
+  restoreBackup,
+  RestoreRefused,
+  verifyBackup,
+} from './services/backup';
 
 /** The local cluster of `npm start` (server/start.ts). */
 const LOCAL = { dataDir: '.data/pg', port: 54329, database: 'kerfwise' };
@@ -34,7 +43,10 @@ const argsSchema = z.object({
   target: z.string().optional(),
   force: z.boolean(),
   verify: z.string().optional(),
-  database: z.string().regex(/^[a-z_][a-z0-9_]{0,62}$/, 'A --database name is lower-case letters, digits and _ (e.g. kerfwise_check).').optional(),
+  database: z
+    .string()
+    .regex(/^[a-z_][a-z0-9_]{0,62}$/, 'A --database name is lower-case letters, digits and _ (e.g. kerfwise_check).')
+    .optional(),
   storageDir: z.string().min(1).optional(),
 });
 
@@ -65,7 +77,9 @@ async function resolveBackup(backupDir: string, which: string): Promise<string> 
   }
   if (existsSync(which)) return path.resolve(which);
   if (existsSync(path.join(backupDir, which))) return path.resolve(backupDir, which);
-  fail(`No backup "${which}" (neither a folder nor a name in ${path.resolve(backupDir)}). "npm run backup -- --verify latest" names the newest.`);
+  fail(
+    `No backup "${which}" (neither a folder nor a name in ${path.resolve(backupDir)}). "npm run backup -- --verify latest" names the newest.`,
+  );
 }
 
 /** DATABASE_URL, or the local cluster (started for this command when needed). */
@@ -86,7 +100,10 @@ async function main() {
   loadDotEnv();
   const args = parseArgs(process.argv.slice(2));
   const settings = backupEnvSchema.safeParse(process.env);
-  if (!settings.success) fail(`Configuration is not valid:\n${settings.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`).join('\n')}\nSee .env.example.`);
+  if (!settings.success)
+    fail(
+      `Configuration is not valid:\n${settings.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`).join('\n')}\nSee .env.example.`,
+    );
   const backupDir = settings.data.BACKUP_DIR;
   const storageDir = args.storageDir ?? process.env.STORAGE_DIR ?? '.data/storage';
 
@@ -105,7 +122,9 @@ async function main() {
     try {
       const b = await createBackup({ databaseUrl: db.url, storageDir, backupDir });
       const photos = b.manifest.files.length - 1;
-      log(`Backup ${b.name} written to ${b.dir}: ${formatBytes(b.sizeBytes)} (database and ${photos} stored files) in ${(b.durationMs / 1000).toFixed(1)} s.`);
+      log(
+        `Backup ${b.name} written to ${b.dir}: ${formatBytes(b.sizeBytes)} (database and ${photos} stored files) in ${(b.durationMs / 1000).toFixed(1)} s.`,
+      );
       log('Copy the folder off this machine (README, "Backups").');
     } finally {
       db.stop();
@@ -119,11 +138,15 @@ async function main() {
   try {
     log(`Restoring ${path.basename(dir)} …`);
     const r = await restoreBackup({ backupDir: dir, databaseUrl: db.url, storageDir, force: args.force });
-    log(`Restored ${r.manifest.name} (taken ${r.manifest.takenAt}, migration level ${r.manifest.database.migrationLevel.lastTag ?? 'none'}):`);
+    log(
+      `Restored ${r.manifest.name} (taken ${r.manifest.takenAt}, migration level ${r.manifest.database.migrationLevel.lastTag ?? 'none'}):`,
+    );
     log(`  ${r.tables} tables, ${r.rows} rows — every table's row count matches the backup's manifest;`);
     log(`  ${r.files} stored files into ${path.resolve(storageDir)} — every file's SHA-256 matches.`);
     if (r.manifest.database.migrationLevel.count > knownMigrationCount()) {
-      log(`Caution: the backup comes from a newer Kerfwise (${r.manifest.database.migrationLevel.count} migrations, this one knows ${knownMigrationCount()}). Update this checkout before starting it.`);
+      log(
+        `Caution: the backup comes from a newer Kerfwise (${r.manifest.database.migrationLevel.count} migrations, this one knows ${knownMigrationCount()}). Update this checkout before starting it.`,
+      );
     } else {
       log('Start Kerfwise as usual; it applies any newer migrations. Then sign in and look at a drive (README, "Check a restore").');
     }

@@ -13,10 +13,12 @@ import { loadDotEnv } from './env';
 const log = (line: string) => console.log(`[kerfwise] ${line}`);
 
 loadDotEnv();
-const stack = await bringUpLocalStack({ dataDir: '.data/pg', pgPort: 54329, database: 'kerfwise', smtpPort: 2525, log }).catch((err: unknown) => {
-  console.error(`[kerfwise] Could not start: ${err instanceof Error ? err.message : String(err)}`);
-  process.exit(1);
-});
+const stack = await bringUpLocalStack({ dataDir: '.data/pg', pgPort: 54329, database: 'kerfwise', smtpPort: 2525, log }).catch(
+  (err: unknown) => {
+    console.error(`[kerfwise] Could not start: ${err instanceof Error ? err.message : String(err)}`);
+    process.exit(1);
+  },
+);
 process.env.DATABASE_URL = stack.databaseUrl;
 process.env.SMTP_URL = stack.smtpUrl;
 process.env.SESSION_SECRET = localSessionSecret();

@@ -30,7 +30,11 @@ const TRAILING_UNIT = /^(.*\S)\s+(mm\/rev|mm\/u|mm per rev|mm rev|kn·m|kn\.m|kn
  * "Thrust" all give "thrust"; "water_head_m" gives "waterhead".
  */
 export function normalizeHeader(header: string): string {
-  let name = header.toLowerCase().replace(/[([{][^)\]}]*[)\]}]/g, ' ').replace(/_/g, ' ').trim();
+  let name = header
+    .toLowerCase()
+    .replace(/[([{][^)\]}]*[)\]}]/g, ' ')
+    .replace(/_/g, ' ')
+    .trim();
   const unit = TRAILING_UNIT.exec(name);
   if (unit) name = unit[1];
   return name.replace(/[^a-z0-9]/g, '');
@@ -47,7 +51,11 @@ export function headerMatches(info: CsvFieldInfo<string>, header: string): boole
  * it, else the first unused column whose name Kerfwise recognises (the reader on the server
  * matches the same way).
  */
-export function proposeMapping<F extends string>(headers: string[], fields: readonly CsvFieldInfo<F>[], stored: ColumnMapping<F> | null): ColumnMapping<F> {
+export function proposeMapping<F extends string>(
+  headers: string[],
+  fields: readonly CsvFieldInfo<F>[],
+  stored: ColumnMapping<F> | null,
+): ColumnMapping<F> {
   const used = new Set<string>();
   const choice: ColumnMapping<F> = {};
   for (const { field } of fields) {
@@ -77,14 +85,54 @@ export function missingColumnGroups<F extends string>(mapping: ColumnMapping<F>,
 // ----- advance log -----
 
 export const advanceLogFields: readonly CsvFieldInfo<AdvanceLogField>[] = [
-  { field: 'ringNumber', label: 'Ring / stroke number', type: 'number', synonyms: ['ring', 'ring no', 'ring nr', 'ring number', 'ring id', 'stroke', 'stroke no', 'stroke number'] },
-  { field: 'startTime', label: 'Start time', type: 'time', synonyms: ['start time', 'start', 'begin', 'begin time', 'started', 'start date time', 'start datetime', 'time start'] },
-  { field: 'endTime', label: 'End time', type: 'time', synonyms: ['end time', 'end', 'finish', 'finish time', 'finished', 'end date time', 'end datetime', 'time end'] },
-  { field: 'chainageStartM', label: 'Chainage start (m)', type: 'number', synonyms: ['chainage start', 'chainage from', 'start chainage', 'from chainage', 'ch start', 'ch from', 'from'] },
-  { field: 'chainageEndM', label: 'Chainage end (m)', type: 'number', synonyms: ['chainage end', 'chainage to', 'end chainage', 'to chainage', 'ch end', 'ch to', 'to'] },
-  { field: 'revolutions', label: 'Cutterhead revolutions', type: 'number', synonyms: ['revolutions', 'cutterhead revolutions', 'revs', 'cutterhead revs', 'rev count'] },
-  { field: 'penetrationMmPerRev', label: 'Penetration (mm/rev)', type: 'number', synonyms: ['penetration', 'pen', 'penetration per rev', 'penetration per revolution'] },
-  { field: 'rpm', label: 'Cutterhead speed (rpm)', type: 'number', synonyms: ['rpm', 'cutterhead speed', 'cutterhead rpm', 'rotation speed'] },
+  {
+    field: 'ringNumber',
+    label: 'Ring / stroke number',
+    type: 'number',
+    synonyms: ['ring', 'ring no', 'ring nr', 'ring number', 'ring id', 'stroke', 'stroke no', 'stroke number'],
+  },
+  {
+    field: 'startTime',
+    label: 'Start time',
+    type: 'time',
+    synonyms: ['start time', 'start', 'begin', 'begin time', 'started', 'start date time', 'start datetime', 'time start'],
+  },
+  {
+    field: 'endTime',
+    label: 'End time',
+    type: 'time',
+    synonyms: ['end time', 'end', 'finish', 'finish time', 'finished', 'end date time', 'end datetime', 'time end'],
+  },
+  {
+    field: 'chainageStartM',
+    label: 'Chainage start (m)',
+    type: 'number',
+    synonyms: ['chainage start', 'chainage from', 'start chainage', 'from chainage', 'ch start', 'ch from', 'from'],
+  },
+  {
+    field: 'chainageEndM',
+    label: 'Chainage end (m)',
+    type: 'number',
+    synonyms: ['chainage end', 'chainage to', 'end chainage', 'to chainage', 'ch end', 'ch to', 'to'],
+  },
+  {
+    field: 'revolutions',
+    label: 'Cutterhead revolutions',
+    type: 'number',
+    synonyms: ['revolutions', 'cutterhead revolutions', 'revs', 'cutterhead revs', 'rev count'],
+  },
+  {
+    field: 'penetrationMmPerRev',
+    label: 'Penetration (mm/rev)',
+    type: 'number',
+    synonyms: ['penetration', 'pen', 'penetration per rev', 'penetration per revolution'],
+  },
+  {
+    field: 'rpm',
+    label: 'Cutterhead speed (rpm)',
+    type: 'number',
+    synonyms: ['rpm', 'cutterhead speed', 'cutterhead rpm', 'rotation speed'],
+  },
   { field: 'thrustKn', label: 'Thrust (kN)', type: 'number', synonyms: ['thrust', 'total thrust', 'thrust force'] },
   { field: 'torqueKnm', label: 'Torque (kN·m)', type: 'number', synonyms: ['torque', 'cutterhead torque'] },
 ];
@@ -102,14 +150,49 @@ export const advanceLogRequiredColumns: readonly (readonly AdvanceLogField[])[] 
 // ----- geology long section -----
 
 export const geologySectionFields: readonly CsvFieldInfo<GeologySectionField>[] = [
-  { field: 'chainageFromM', label: 'Chainage from (m)', type: 'number', synonyms: ['chainage from', 'from chainage', 'from', 'ch from', 'chainage start', 'start chainage', 'start'] },
-  { field: 'chainageToM', label: 'Chainage to (m)', type: 'number', synonyms: ['chainage to', 'to chainage', 'to', 'ch to', 'chainage end', 'end chainage', 'end'] },
-  { field: 'groundTypeName', label: 'Ground type', type: 'text', synonyms: ['ground type', 'ground', 'geology', 'rock type', 'lithology', 'ground class', 'ground type name'] },
-  { field: 'waterHeadM', label: 'Water head above axis (m)', type: 'number', synonyms: ['water head above axis', 'water head', 'groundwater head', 'head above axis', 'water level above axis'] },
-  { field: 'stopAllowed', label: 'Stop allowed (yes/no)', type: 'yesNo', synonyms: ['stop allowed', 'stops allowed', 'stopping allowed', 'can stop', 'intervention allowed'] },
+  {
+    field: 'chainageFromM',
+    label: 'Chainage from (m)',
+    type: 'number',
+    synonyms: ['chainage from', 'from chainage', 'from', 'ch from', 'chainage start', 'start chainage', 'start'],
+  },
+  {
+    field: 'chainageToM',
+    label: 'Chainage to (m)',
+    type: 'number',
+    synonyms: ['chainage to', 'to chainage', 'to', 'ch to', 'chainage end', 'end chainage', 'end'],
+  },
+  {
+    field: 'groundTypeName',
+    label: 'Ground type',
+    type: 'text',
+    synonyms: ['ground type', 'ground', 'geology', 'rock type', 'lithology', 'ground class', 'ground type name'],
+  },
+  {
+    field: 'waterHeadM',
+    label: 'Water head above axis (m)',
+    type: 'number',
+    synonyms: ['water head above axis', 'water head', 'groundwater head', 'head above axis', 'water level above axis'],
+  },
+  {
+    field: 'stopAllowed',
+    label: 'Stop allowed (yes/no)',
+    type: 'yesNo',
+    synonyms: ['stop allowed', 'stops allowed', 'stopping allowed', 'can stop', 'intervention allowed'],
+  },
   { field: 'stopReason', label: 'Stop reason', type: 'text', synonyms: ['stop reason', 'reason', 'stop note', 'stop remark'] },
-  { field: 'ucsMpa', label: 'UCS of the ground type (MPa)', type: 'number', synonyms: ['ucs', 'uniaxial compressive strength', 'rock strength'] },
-  { field: 'cai', label: 'CAI of the ground type', type: 'number', synonyms: ['cai', 'cerchar abrasivity index', 'cerchar abrasivity', 'abrasivity'] },
+  {
+    field: 'ucsMpa',
+    label: 'UCS of the ground type (MPa)',
+    type: 'number',
+    synonyms: ['ucs', 'uniaxial compressive strength', 'rock strength'],
+  },
+  {
+    field: 'cai',
+    label: 'CAI of the ground type',
+    type: 'number',
+    synonyms: ['cai', 'cerchar abrasivity index', 'cerchar abrasivity', 'abrasivity'],
+  },
 ];
 
 export const geologySectionRequiredColumns: readonly (readonly GeologySectionField[])[] = [
@@ -121,7 +204,16 @@ export const geologySectionRequiredColumns: readonly (readonly GeologySectionFie
 
 // ----- cutterhead layout -----
 
-export const layoutFieldNames = ['number', 'trackRadiusMm', 'positionClass', 'discSizeIn', 'tiltDeg', 'wearLimitMm', 'twinDisc', 'angleDeg'] as const;
+export const layoutFieldNames = [
+  'number',
+  'trackRadiusMm',
+  'positionClass',
+  'discSizeIn',
+  'tiltDeg',
+  'wearLimitMm',
+  'twinDisc',
+  'angleDeg',
+] as const;
 export type LayoutField = (typeof layoutFieldNames)[number];
 
 /** The layout file Kerfwise writes (src/features/cutterhead) uses the first synonym of each field as its header. */
@@ -136,4 +228,10 @@ export const layoutFields: readonly CsvFieldInfo<LayoutField>[] = [
   { field: 'angleDeg', label: 'Angle on the head (°)', type: 'number', synonyms: ['angle', 'angle on head'] },
 ];
 
-export const layoutRequiredColumns: readonly (readonly LayoutField[])[] = [['number'], ['trackRadiusMm'], ['positionClass'], ['discSizeIn'], ['wearLimitMm']];
+export const layoutRequiredColumns: readonly (readonly LayoutField[])[] = [
+  ['number'],
+  ['trackRadiusMm'],
+  ['positionClass'],
+  ['discSizeIn'],
+  ['wearLimitMm'],
+];

@@ -26,7 +26,8 @@ export type DiscCondition = (typeof discConditions)[number]['key'];
 export const discConditionKeys = discConditions.map((c) => c.key) as [DiscCondition, ...DiscCondition[]];
 export const conditionLabel = (key: DiscCondition) => discConditions.find((c) => c.key === key)?.label ?? key;
 export const isAbnormal = (keys: readonly DiscCondition[]) => keys.some((k) => discConditions.find((c) => c.key === k)?.abnormal);
-export const conditionNeedsChange = (keys: readonly DiscCondition[]) => keys.some((k) => discConditions.find((c) => c.key === k)?.needsChange);
+export const conditionNeedsChange = (keys: readonly DiscCondition[]) =>
+  keys.some((k) => discConditions.find((c) => c.key === k)?.needsChange);
 
 export const cutterStatuses = ['in_store', 'fitted', 'workshop', 'scrapped'] as const;
 export type CutterStatus = (typeof cutterStatuses)[number];

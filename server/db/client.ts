@@ -16,7 +16,9 @@ export function resilientPool(config: pg.PoolConfig, name: string): pg.Pool {
   const created = new pg.Pool(config);
   created.on('error', (err) => logger.warn({ pool: name, err: err.message }, 'database connection lost; dropped from the pool'));
   // A checked-out client has no pool listener: without its own, a server-side close is fatal.
-  created.on('connect', (client) => client.on('error', (err) => logger.warn({ pool: name, err: err.message }, 'database connection lost while in use')));
+  created.on('connect', (client) =>
+    client.on('error', (err) => logger.warn({ pool: name, err: err.message }, 'database connection lost while in use')),
+  );
   return created;
 }
 
@@ -29,8 +31,26 @@ export type Db = typeof db;
 export type DbOrTx = Db | Parameters<Parameters<Db['transaction']>[0]>[0];
 
 // SQLSTATE classes 08 (connection exception) and 57P01–57P03 (shut down, crashed, starting up).
-const unavailableCodes = new Set(['08000', '08001', '08003', '08004', '08006', '57P01', '57P02', '57P03', 'ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'EHOSTUNREACH', 'ENETUNREACH', 'ENOTFOUND', 'EAI_AGAIN']);
-const unavailableMessages = /Connection terminated|connection timeout|timeout exceeded when trying to connect|not queryable|Client was closed|the database system is (starting up|shutting down|in recovery mode)/i;
+const unavailableCodes = new Set([
+  '08000',
+  '08001',
+  '08003',
+  '08004',
+  '08006',
+  '57P01',
+  '57P02',
+  '57P03',
+  'ECONNREFUSED',
+  'ECONNRESET',
+  'ETIMEDOUT',
+  'EPIPE',
+  'EHOSTUNREACH',
+  'ENETUNREACH',
+  'ENOTFOUND',
+  'EAI_AGAIN',
+]);
+const unavailableMessages =
+  /Connection terminated|connection timeout|timeout exceeded when trying to connect|not queryable|Client was closed|the database system is (starting up|shutting down|in recovery mode)/i;
 
 /**
  * True when `err` (or an error it wraps, as Drizzle does) says the database cannot be reached

@@ -83,7 +83,10 @@ export const realHost: PackageHost = {
  * whose message is the command to run. `alternative` is appended to that message (e.g. "or set
  * DATABASE_URL …").
  */
-export function ensureDebianPackages(wanted: readonly DebianPackage[], opts: { host?: Partial<PackageHost>; alternative?: string } = {}): void {
+export function ensureDebianPackages(
+  wanted: readonly DebianPackage[],
+  opts: { host?: Partial<PackageHost>; alternative?: string } = {},
+): void {
   const host: PackageHost = { ...realHost, ...opts.host };
   const missing = wanted.filter((pkg, i) => wanted.indexOf(pkg) === i && !host.isPresent(pkg));
   if (missing.length === 0) return;
@@ -99,22 +102,36 @@ export function ensureDebianPackages(wanted: readonly DebianPackage[], opts: { h
     );
   }
   if (!host.isRoot()) {
-    throw new MissingPackagesError(`${what} ${missing.length > 1 ? 'are' : 'is'} missing. Run as root:\n\n  ${command}\n\nthen try again.${tail}`, missing);
+    throw new MissingPackagesError(
+      `${what} ${missing.length > 1 ? 'are' : 'is'} missing. Run as root:\n\n  ${command}\n\nthen try again.${tail}`,
+      missing,
+    );
   }
 
-  host.log(`${what} ${missing.length > 1 ? 'are' : 'is'} missing; installing ${missing.join(', ')} from Debian's packages (${missing.map((p) => `${p}: ${packages[p].takes}`).join(', ')}).`);
+  host.log(
+    `${what} ${missing.length > 1 ? 'are' : 'is'} missing; installing ${missing.join(', ')} from Debian's packages (${missing.map((p) => `${p}: ${packages[p].takes}`).join(', ')}).`,
+  );
   host.log('Updating the package lists (apt-get update) …');
   if (host.run('apt-get update -qq') !== 0) {
-    throw new MissingPackagesError(`apt-get update failed (see above). Fix the package sources, then run as root:\n\n  ${command}${tail}`, missing);
+    throw new MissingPackagesError(
+      `apt-get update failed (see above). Fix the package sources, then run as root:\n\n  ${command}${tail}`,
+      missing,
+    );
   }
   host.log(`Installing ${missing.join(', ')} (apt-get install) …`);
   const started = Date.now();
   if (host.run(`DEBIAN_FRONTEND=noninteractive apt-get install -y -qq ${missing.join(' ')}`) !== 0) {
-    throw new MissingPackagesError(`apt-get install ${missing.join(' ')} failed (see above). Fix the cause, then run as root:\n\n  ${command}${tail}`, missing);
+    throw new MissingPackagesError(
+      `apt-get install ${missing.join(' ')} failed (see above). Fix the cause, then run as root:\n\n  ${command}${tail}`,
+      missing,
+    );
   }
   const still = missing.filter((p) => !host.isPresent(p));
   if (still.length > 0) {
-    const overrides = [process.env.PG_BIN && `PG_BIN=${process.env.PG_BIN}`, process.env.CHROMIUM_PATH && `CHROMIUM_PATH=${process.env.CHROMIUM_PATH}`].filter(Boolean);
+    const overrides = [
+      process.env.PG_BIN && `PG_BIN=${process.env.PG_BIN}`,
+      process.env.CHROMIUM_PATH && `CHROMIUM_PATH=${process.env.CHROMIUM_PATH}`,
+    ].filter(Boolean);
     throw new MissingPackagesError(
       `apt-get installed ${still.join(', ')} but ${still.map((p) => packages[p].what).join(' and ')} still cannot be found` +
         `${overrides.length ? ` (the environment sets ${overrides.join(', ')}; unset it to use Debian's)` : ''}.`,

@@ -46,9 +46,11 @@ export async function startFakeSmtp(opts: { databaseUrl: string; port?: number }
     let listening = false;
     server.on('error', (err: NodeJS.ErrnoException) => {
       if (listening) return; // a client's broken connection; the server goes on
-      reject(err.code === 'EADDRINUSE'
-        ? new Error(`Port ${opts.port} for the local mail catcher is in use. Is another Kerfwise running? Stop it, or set SMTP_URL.`)
-        : err);
+      reject(
+        err.code === 'EADDRINUSE'
+          ? new Error(`Port ${opts.port} for the local mail catcher is in use. Is another Kerfwise running? Stop it, or set SMTP_URL.`)
+          : err,
+      );
     });
     server.listen(opts.port ?? 0, '127.0.0.1', () => {
       listening = true;

@@ -44,8 +44,18 @@ export async function bringUpLocalStack(opts: LocalStackOptions): Promise<LocalS
     } else {
       // A bare Debian machine: install the server package when root, else stop with the command.
       // Without a log of its own (the test set-up) the installer still prints why it waits.
-      ensureDebianPackages(['postgresql'], { host: opts.log ? { log: opts.log } : {}, alternative: 'Or set DATABASE_URL to an existing PostgreSQL server.' });
-      const pg = await startLocalPostgres({ dataDir: opts.dataDir, port: opts.pgPort, database: opts.database, fast: opts.fast, freshDatabase: opts.freshDatabase, log });
+      ensureDebianPackages(['postgresql'], {
+        host: opts.log ? { log: opts.log } : {},
+        alternative: 'Or set DATABASE_URL to an existing PostgreSQL server.',
+      });
+      const pg = await startLocalPostgres({
+        dataDir: opts.dataDir,
+        port: opts.pgPort,
+        database: opts.database,
+        fast: opts.fast,
+        freshDatabase: opts.freshDatabase,
+        log,
+      });
       stops.push(pg.stop);
       databaseUrl = pg.url;
     }

@@ -34,7 +34,9 @@ export function findPgBin(): string {
   if (process.env.PG_BIN) return process.env.PG_BIN;
   const root = '/usr/lib/postgresql';
   const versions = existsSync(root)
-    ? readdirSync(root).filter((v) => existsSync(path.join(root, v, 'bin', 'initdb'))).sort((a, b) => Number(b) - Number(a))
+    ? readdirSync(root)
+        .filter((v) => existsSync(path.join(root, v, 'bin', 'initdb')))
+        .sort((a, b) => Number(b) - Number(a))
     : [];
   if (versions.length === 0) {
     throw new Error(
@@ -87,8 +89,15 @@ export async function startLocalPostgres(opts: LocalPostgresOptions): Promise<Lo
     log(`Creating a PostgreSQL cluster in ${path.relative(process.cwd(), dataDir)} …`);
     ensureDir(dataDir, owner, 0o700);
     runPg(path.join(bin, 'initdb'), [
-      '-D', dataDir, '-U', 'postgres', '-E', 'UTF8', '--locale=C.UTF-8',
-      '--auth-local=trust', '--auth-host=scram-sha-256',
+      '-D',
+      dataDir,
+      '-U',
+      'postgres',
+      '-E',
+      'UTF8',
+      '--locale=C.UTF-8',
+      '--auth-local=trust',
+      '--auth-host=scram-sha-256',
     ]);
     const conf = [
       `listen_addresses = '127.0.0.1'`,
@@ -101,18 +110,21 @@ export async function startLocalPostgres(opts: LocalPostgresOptions): Promise<Lo
     if (owner) chownSync(path.join(dataDir, 'postgresql.auto.conf'), owner.uid, owner.gid);
   }
 
-  const ready = () =>
-    spawnSync(path.join(bin, 'pg_isready'), ['-h', sockDir, '-p', String(opts.port)], { encoding: 'utf8' }).status === 0;
+  const ready = () => spawnSync(path.join(bin, 'pg_isready'), ['-h', sockDir, '-p', String(opts.port)], { encoding: 'utf8' }).status === 0;
 
   let startedHere = false;
   if (!ready()) {
     log(`Starting PostgreSQL on 127.0.0.1:${opts.port} …`);
-    const started = runPg(path.join(bin, 'pg_ctl'), ['-D', dataDir, '-l', path.join(sockDir, 'server.log'), '-w', '-t', '60', 'start'], { allowFail: true });
+    const started = runPg(path.join(bin, 'pg_ctl'), ['-D', dataDir, '-l', path.join(sockDir, 'server.log'), '-w', '-t', '60', 'start'], {
+      allowFail: true,
+    });
     if (started.status !== 0) {
       const log = existsSync(path.join(sockDir, 'server.log')) ? readFileSync(path.join(sockDir, 'server.log'), 'utf8') : '';
-      throw new Error(/Address already in use/.test(log)
-        ? `Port ${opts.port} on 127.0.0.1 is taken by another PostgreSQL (another Kerfwise checkout still running?). Stop it, or set DATABASE_URL.`
-        : `PostgreSQL did not start; see ${path.join(sockDir, 'server.log')}.\n${started.output}`);
+      throw new Error(
+        /Address already in use/.test(log)
+          ? `Port ${opts.port} on 127.0.0.1 is taken by another PostgreSQL (another Kerfwise checkout still running?). Stop it, or set DATABASE_URL.`
+          : `PostgreSQL did not start; see ${path.join(sockDir, 'server.log')}.\n${started.output}`,
+      );
     }
     startedHere = true;
     for (let i = 0; i < 100 && !ready(); i++) await new Promise((r) => setTimeout(r, 100));

@@ -29,6 +29,18 @@ export async function knownDevice(req: Request, email: string): Promise<string |
 /** Marks this browser as a known device of `email` (keeping its id when it already was one). */
 export async function rememberDevice(req: Request, res: Response, email: string, deviceId: string | null): Promise<void> {
   const id = deviceId ?? randomUUID();
-  const token = await new SignJWT({}).setProtectedHeader({ alg: 'HS256' }).setSubject(email).setJti(id).setIssuedAt().setExpirationTime(`${DEVICE_DAYS}d`).sign(key());
-  res.cookie(DEVICE_COOKIE, token, { httpOnly: true, sameSite: 'lax', secure: req.secure, path: '/api/auth', maxAge: DEVICE_DAYS * 86_400_000 });
+  const token = await new SignJWT({})
+    .setProtectedHeader({ alg: 'HS256' })
+    .setSubject(email)
+    .setJti(id)
+    .setIssuedAt()
+    .setExpirationTime(`${DEVICE_DAYS}d`)
+    .sign(key());
+  res.cookie(DEVICE_COOKIE, token, {
+    httpOnly: true,
+    sameSite: 'lax',
+    secure: req.secure,
+    path: '/api/auth',
+    maxAge: DEVICE_DAYS * 86_400_000,
+  });
 }

@@ -68,7 +68,9 @@ export async function deliverPendingMail(options: DeliveryOptions = {}): Promise
       const [due] = await tx
         .select({ id: outbox.id })
         .from(outbox)
-        .where(and(isNull(outbox.sentAt), isNull(outbox.claimedAt), lte(outbox.nextAttemptAt, now), kind ? eq(outbox.kind, kind) : undefined))
+        .where(
+          and(isNull(outbox.sentAt), isNull(outbox.claimedAt), lte(outbox.nextAttemptAt, now), kind ? eq(outbox.kind, kind) : undefined),
+        )
         .orderBy(asc(outbox.id))
         .limit(1)
         .for('update', { skipLocked: true });
@@ -89,15 +91,22 @@ export async function deliverPendingMail(options: DeliveryOptions = {}): Promise
         // Back-off from the time the attempt was due, not from when the tick got to it: measured
         // from "now", every step slipped by up to a tick (1, 2, 4 … became 2, 3, 5 …). When that is
         // already past (the job did not run for a while), from now: never due again in this pass.
-        .set({ claimedAt: null, lastError: err instanceof Error ? err.message : String(err), nextAttemptAt: sql`case
+        .set({
+          claimedAt: null,
+          lastError: err instanceof Error ? err.message : String(err),
+          nextAttemptAt: sql`case
           when ${outbox.nextAttemptAt} + make_interval(mins => ${retryDelayMinutes(row.attempts)}) > ${now} then ${outbox.nextAttemptAt} + make_interval(mins => ${retryDelayMinutes(row.attempts)})
-          else ${now} + make_interval(mins => ${retryDelayMinutes(row.attempts)}) end` })
+          else ${now} + make_interval(mins => ${retryDelayMinutes(row.attempts)}) end`,
+        })
         .where(eq(outbox.id, row.id));
       logger.warn({ outboxId: row.id, attempts: row.attempts, err: String(err) }, 'mail delivery failed; will retry');
       failed++;
       continue;
     }
-    await db.update(outbox).set({ sentAt: sql`now()`, claimedAt: null, lastError: null }).where(eq(outbox.id, row.id));
+    await db
+      .update(outbox)
+      .set({ sentAt: sql`now()`, claimedAt: null, lastError: null })
+      .where(eq(outbox.id, row.id));
     sent++;
   }
   return { sent, failed };
@@ -112,7 +121,9 @@ export async function releaseUncertainMail(id: number): Promise<boolean> {
     .update(outbox)
     .set({ claimedAt: null, nextAttemptAt: sql`now()` })
     // Only a stale claim: a message being sent right now is not touched.
-    .where(and(eq(outbox.id, id), isNull(outbox.sentAt), sql`${outbox.claimedAt} < now() - make_interval(mins => ${UNCERTAIN_AFTER_MINUTES})`))
+    .where(
+      and(eq(outbox.id, id), isNull(outbox.sentAt), sql`${outbox.claimedAt} < now() - make_interval(mins => ${UNCERTAIN_AFTER_MINUTES})`),
+    )
     .returning({ id: outbox.id });
   return rows.length > 0;
 }

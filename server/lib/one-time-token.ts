@@ -37,5 +37,8 @@ export async function consumeToken(tx: DbOrTx, token: string): Promise<{ userId:
 
 /** Every unused link of a user stops working (after a password change or a completed reset). */
 export async function revokeTokens(tx: DbOrTx, userId: string): Promise<void> {
-  await tx.update(oneTimeTokens).set({ usedAt: sql`now()` }).where(and(eq(oneTimeTokens.userId, userId), isNull(oneTimeTokens.usedAt)));
+  await tx
+    .update(oneTimeTokens)
+    .set({ usedAt: sql`now()` })
+    .where(and(eq(oneTimeTokens.userId, userId), isNull(oneTimeTokens.usedAt)));
 }

@@ -65,9 +65,15 @@ export async function resolveSession(token: string | undefined): Promise<{ user:
 }
 
 export async function revokeSession(tx: DbOrTx, sessionId: string): Promise<void> {
-  await tx.update(sessions).set({ revokedAt: sql`now()` }).where(and(eq(sessions.id, sessionId), isNull(sessions.revokedAt)));
+  await tx
+    .update(sessions)
+    .set({ revokedAt: sql`now()` })
+    .where(and(eq(sessions.id, sessionId), isNull(sessions.revokedAt)));
 }
 
 export async function revokeAllSessions(tx: DbOrTx, userId: string): Promise<void> {
-  await tx.update(sessions).set({ revokedAt: sql`now()` }).where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)));
+  await tx
+    .update(sessions)
+    .set({ revokedAt: sql`now()` })
+    .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)));
 }

@@ -9,7 +9,9 @@ interface ErrorBody {
   error: { message: string; issues: Issue[] } & Record<string, unknown>;
 }
 
-const body = (message: string, issues: Issue[] = [], details: Record<string, unknown> = {}): ErrorBody => ({ error: { ...details, message, issues } });
+const body = (message: string, issues: Issue[] = [], details: Record<string, unknown> = {}): ErrorBody => ({
+  error: { ...details, message, issues },
+});
 
 /** The status of each typed refusal thrown by services and routes (server/lib/errors.ts). */
 function statusOf(err: ServiceError): number {
@@ -27,9 +29,10 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
   if (err instanceof ZodError) {
     const issues = err.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
     const first = issues[0];
-    const message = issues.length === 1 && first
-      ? first.message
-      : `${issues.length} fields need attention: ${issues.map((i) => (i.path ? `${i.path}: ${i.message}` : i.message)).join('; ')}`;
+    const message =
+      issues.length === 1 && first
+        ? first.message
+        : `${issues.length} fields need attention: ${issues.map((i) => (i.path ? `${i.path}: ${i.message}` : i.message)).join('; ')}`;
     res.status(400).json(body(message, issues));
     return;
   }
@@ -44,11 +47,16 @@ export function errorHandler(err: unknown, req: Request, res: Response, _next: N
   // The database is restarting or unreachable (decision 33): say so and when to try again.
   if (isDatabaseUnavailable(err)) {
     logger.warn({ url: req.originalUrl, err: err instanceof Error ? err.message : String(err) }, 'database unavailable');
-    res.status(503).set('Retry-After', String(DATABASE_RETRY_AFTER_S)).json(body(
-      'The server cannot reach its database right now, so nothing was saved by this request. Try again in a few seconds; if it lasts, tell your administrator.',
-      [],
-      { database: 'unreachable' },
-    ));
+    res
+      .status(503)
+      .set('Retry-After', String(DATABASE_RETRY_AFTER_S))
+      .json(
+        body(
+          'The server cannot reach its database right now, so nothing was saved by this request. Try again in a few seconds; if it lasts, tell your administrator.',
+          [],
+          { database: 'unreachable' },
+        ),
+      );
     return;
   }
   const e = err as { type?: string; status?: number; statusCode?: number; code?: string; cause?: { code?: string } };

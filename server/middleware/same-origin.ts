@@ -30,7 +30,8 @@ export function requireSameOrigin(req: Request, _res: Response, next: NextFuncti
   if (!UNSAFE.has(req.method)) return next();
   const site = req.get('sec-fetch-site');
   const origin = req.get('origin');
-  const refused = () => next(new HttpError(403, 'This request did not come from a Kerfwise page, so it was refused. Open Kerfwise itself and try again.'));
+  const refused = () =>
+    next(new HttpError(403, 'This request did not come from a Kerfwise page, so it was refused. Open Kerfwise itself and try again.'));
   if (site !== undefined) return site === 'same-origin' ? next() : refused();
   if (origin !== undefined) return ownOrigins(req).has(origin) ? next() : refused();
   next();

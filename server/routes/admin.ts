@@ -24,7 +24,14 @@ const userIdParams = z.object({ userId: z.uuid({ message: 'That user id is not v
 const projectIdParams = z.object({ projectId: z.uuid({ message: 'That project id is not valid.' }) });
 const memberParams = projectIdParams.extend(userIdParams.shape);
 
-const publicUser = { id: users.id, email: users.email, name: users.name, isAdmin: users.isAdmin, active: users.active, invited: sql<boolean>`${users.passwordHash} is null` };
+const publicUser = {
+  id: users.id,
+  email: users.email,
+  name: users.name,
+  isAdmin: users.isAdmin,
+  active: users.active,
+  invited: sql<boolean>`${users.passwordHash} is null`,
+};
 
 adminRouter.get('/users', async (_req, res) => {
   const list = await db.select(publicUser).from(users).orderBy(asc(users.name));
@@ -72,7 +79,11 @@ adminRouter.patch('/users/:userId', async (req, res) => {
   const updated = await db.transaction(async (tx) => {
     const [before] = await tx.select(publicUser).from(users).where(eq(users.id, userId)).limit(1);
     if (!before) throw notFound('That user');
-    const [after] = await tx.update(users).set({ ...input, updatedAt: sql`now()` }).where(eq(users.id, userId)).returning(publicUser);
+    const [after] = await tx
+      .update(users)
+      .set({ ...input, updatedAt: sql`now()` })
+      .where(eq(users.id, userId))
+      .returning(publicUser);
     if (input.active === false) await revokeAllSessions(tx, userId);
     await audit(tx, { userId: me.id, entity: 'user', entityId: userId, action: 'update', before, after });
     return after;
@@ -110,7 +121,11 @@ adminRouter.patch('/projects/:projectId', async (req, res) => {
   const project = await db.transaction(async (tx) => {
     const [before] = await tx.select().from(projects).where(eq(projects.id, projectId)).limit(1);
     if (!before) throw notFound('That project');
-    const [after] = await tx.update(projects).set({ ...input, updatedAt: sql`now()` }).where(eq(projects.id, projectId)).returning();
+    const [after] = await tx
+      .update(projects)
+      .set({ ...input, updatedAt: sql`now()` })
+      .where(eq(projects.id, projectId))
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'project', entityId: projectId, action: 'update', before, after });
     return after;
   });
@@ -138,13 +153,25 @@ adminRouter.put('/projects/:projectId/members/:userId', async (req, res) => {
     const [u] = await tx.select({ id: users.id }).from(users).where(eq(users.id, userId)).limit(1);
     if (!p) throw notFound('That project');
     if (!u) throw notFound('That user');
-    const [before] = await tx.select().from(memberships).where(and(eq(memberships.projectId, projectId), eq(memberships.userId, userId))).limit(1);
+    const [before] = await tx
+      .select()
+      .from(memberships)
+      .where(and(eq(memberships.projectId, projectId), eq(memberships.userId, userId)))
+      .limit(1);
     const [after] = await tx
       .insert(memberships)
       .values({ projectId, userId, role })
       .onConflictDoUpdate({ target: [memberships.userId, memberships.projectId], set: { role } })
       .returning();
-    await audit(tx, { userId: me.id, projectId, entity: 'membership', entityId: after.id, action: before ? 'update' : 'create', before: before ?? null, after });
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'membership',
+      entityId: after.id,
+      action: before ? 'update' : 'create',
+      before: before ?? null,
+      after,
+    });
     return after;
   });
   res.json({ ...saved, roleLabel: roleLabels[saved.role] });
@@ -185,7 +212,9 @@ adminRouter.get('/mail', async (_req, res) => {
 /** Sends a message of uncertain delivery again, on the administrator's decision. */
 adminRouter.post('/outbox/:outboxId/release', async (req, res) => {
   const me = requireUser(req);
-  const { outboxId } = z.object({ outboxId: z.coerce.number().int().positive({ message: 'That message id is not valid.' }) }).parse(req.params);
+  const { outboxId } = z
+    .object({ outboxId: z.coerce.number().int().positive({ message: 'That message id is not valid.' }) })
+    .parse(req.params);
   if (!(await releaseUncertainMail(outboxId))) throw notFound('That message of uncertain delivery');
   await audit(db, { userId: me.id, entity: 'outbox', entityId: String(outboxId), action: 'release' });
   kickMailDelivery();
@@ -225,5 +254,8 @@ export function createAdminJobsRouter(jobs: readonly JobDefinition[]) {
 }
 
 const runNowQuerySchema = z.object({
-  again: z.enum(['true', 'false'], { message: 'again must be true or false' }).optional().transform((v) => v === 'true'),
+  again: z
+    .enum(['true', 'false'], { message: 'again must be true or false' })
+    .optional()
+    .transform((v) => v === 'true'),
 });

@@ -27,7 +27,13 @@ async function failures(tx: DbOrTx, where: SQL | undefined) {
   const [row] = await tx
     .select({ n: count(), last: max(signInAttempts.at) })
     .from(signInAttempts)
-    .where(and(where, eq(signInAttempts.succeeded, false), gt(signInAttempts.at, sql`now() - make_interval(mins => ${signInThrottle.windowMinutes})`)));
+    .where(
+      and(
+        where,
+        eq(signInAttempts.succeeded, false),
+        gt(signInAttempts.at, sql`now() - make_interval(mins => ${signInThrottle.windowMinutes})`),
+      ),
+    );
   return { n: row?.n ?? 0, lastMs: row?.last ? new Date(row.last).getTime() : null };
 }
 
@@ -52,9 +58,11 @@ authRouter.post('/sign-in', async (req, res) => {
     if (!deviceId) {
       const unknownDevices = await failures(tx, and(eq(signInAttempts.email, input.email), isNull(signInAttempts.deviceId)));
       const address = await failures(tx, and(eq(signInAttempts.ip, ip), isNull(signInAttempts.deviceId)));
-      wait = Math.max(wait,
+      wait = Math.max(
+        wait,
         waitS(unknownDevices.n, unknownDevices.lastMs, now, signInThrottle.accountUnknownFailures),
-        waitS(address.n, address.lastMs, now, signInThrottle.perAddressFailures));
+        waitS(address.n, address.lastMs, now, signInThrottle.perAddressFailures),
+      );
     }
     if (wait > 0) return { kind: 'wait', wait } as const;
     const [user] = await tx.select().from(users).where(eq(users.email, input.email)).limit(1);
@@ -69,7 +77,10 @@ authRouter.post('/sign-in', async (req, res) => {
   if (outcome.kind === 'wait') {
     res.set('Retry-After', String(outcome.wait));
     const minutes = Math.ceil(outcome.wait / 60);
-    throw new HttpError(429, `Too many failed sign-ins. Wait ${outcome.wait < 90 ? `${outcome.wait} seconds` : `${minutes} minutes`} and try again, or reset your password.`);
+    throw new HttpError(
+      429,
+      `Too many failed sign-ins. Wait ${outcome.wait < 90 ? `${outcome.wait} seconds` : `${minutes} minutes`} and try again, or reset your password.`,
+    );
   }
   if (outcome.kind === 'refused') throw wrongCredentials();
   const { user } = outcome;
@@ -125,15 +136,24 @@ authRouter.post('/password-reset', async (req, res) => {
   const limited = await db.transaction(async (tx) => {
     await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`kerfwise-reset:${email}`}))`);
     const since = sql`now() - make_interval(mins => ${resetLimits.windowMinutes})`;
-    const [perAccount] = await tx.select({ n: count() }).from(passwordResetRequests).where(and(eq(passwordResetRequests.email, email), gt(passwordResetRequests.at, since)));
-    const [perAddress] = await tx.select({ n: count() }).from(passwordResetRequests).where(and(eq(passwordResetRequests.ip, ip), gt(passwordResetRequests.at, since)));
+    const [perAccount] = await tx
+      .select({ n: count() })
+      .from(passwordResetRequests)
+      .where(and(eq(passwordResetRequests.email, email), gt(passwordResetRequests.at, since)));
+    const [perAddress] = await tx
+      .select({ n: count() })
+      .from(passwordResetRequests)
+      .where(and(eq(passwordResetRequests.ip, ip), gt(passwordResetRequests.at, since)));
     if ((perAccount?.n ?? 0) >= resetLimits.perAccount || (perAddress?.n ?? 0) >= resetLimits.perAddress) return true;
     await tx.insert(passwordResetRequests).values({ email, ip });
     return false;
   });
   if (limited) {
     res.set('Retry-After', String(resetLimits.windowMinutes * 60));
-    throw new HttpError(429, `Too many reset requests. The last link sent is still valid for an hour; check your mail, or try again in ${resetLimits.windowMinutes} minutes.`);
+    throw new HttpError(
+      429,
+      `Too many reset requests. The last link sent is still valid for an hour; check your mail, or try again in ${resetLimits.windowMinutes} minutes.`,
+    );
   }
   res.status(202).json({ message: 'If that address has an account, a link to set a new password is on its way.' });
   // After the answer: the time the lookup and the mail take does not show in the response.
@@ -156,7 +176,12 @@ authRouter.post('/set-password', async (req, res) => {
     // Every other link of this account stops working with the new password.
     await revokeTokens(tx, updated.id);
     await revokeAllSessions(tx, updated.id);
-    await audit(tx, { userId: updated.id, entity: 'user', entityId: updated.id, action: used.purpose === 'invitation' ? 'accept_invitation' : 'reset_password' });
+    await audit(tx, {
+      userId: updated.id,
+      entity: 'user',
+      entityId: updated.id,
+      action: used.purpose === 'invitation' ? 'accept_invitation' : 'reset_password',
+    });
     await startSession(tx, req, res, updated.id);
     return updated;
   });
@@ -173,7 +198,10 @@ authRouter.post('/change-password', requireSignedIn, async (req, res) => {
   }
   const passwordHash = await hashPassword(input.newPassword);
   await db.transaction(async (tx) => {
-    await tx.update(users).set({ passwordHash, updatedAt: sql`now()` }).where(eq(users.id, me.id));
+    await tx
+      .update(users)
+      .set({ passwordHash, updatedAt: sql`now()` })
+      .where(eq(users.id, me.id));
     // A reset link asked for before the change must not undo it.
     await revokeTokens(tx, me.id);
     // A password change ends every session, this one included; a fresh one keeps this device signed in.
@@ -187,18 +215,31 @@ authRouter.post('/change-password', requireSignedIn, async (req, res) => {
 /** The notifications this user may get (by their roles) and whether each is on. */
 authRouter.get('/notifications', requireSignedIn, async (req, res) => {
   const me = requireUser(req);
-  const roles = new Set((await db.select({ role: memberships.role }).from(memberships).where(eq(memberships.userId, me.id))).map((r) => r.role as string));
+  const roles = new Set(
+    (await db.select({ role: memberships.role }).from(memberships).where(eq(memberships.userId, me.id))).map((r) => r.role as string),
+  );
   const off = new Set((await db.select().from(notificationOptOuts).where(eq(notificationOptOuts.userId, me.id))).map((r) => r.kind));
-  res.json(notificationKinds.filter((k) => k.roles.some((r) => roles.has(r))).map((k) => ({ kind: k.key, label: k.label, enabled: !off.has(k.key) })));
+  res.json(
+    notificationKinds
+      .filter((k) => k.roles.some((r) => roles.has(r)))
+      .map((k) => ({ kind: k.key, label: k.label, enabled: !off.has(k.key) })),
+  );
 });
 
 authRouter.put('/notifications', requireSignedIn, async (req, res) => {
   const me = requireUser(req);
   const input = z.object({ kind: z.enum(notificationKeys, { message: 'Unknown notification.' }), enabled: z.boolean() }).parse(req.body);
   await db.transaction(async (tx) => {
-    if (input.enabled) await tx.delete(notificationOptOuts).where(and(eq(notificationOptOuts.userId, me.id), eq(notificationOptOuts.kind, input.kind)));
+    if (input.enabled)
+      await tx.delete(notificationOptOuts).where(and(eq(notificationOptOuts.userId, me.id), eq(notificationOptOuts.kind, input.kind)));
     else await tx.insert(notificationOptOuts).values({ userId: me.id, kind: input.kind }).onConflictDoNothing();
-    await audit(tx, { userId: me.id, entity: 'notification', entityId: me.id, action: input.enabled ? 'turn_on' : 'turn_off', after: input });
+    await audit(tx, {
+      userId: me.id,
+      entity: 'notification',
+      entityId: me.id,
+      action: input.enabled ? 'turn_on' : 'turn_off',
+      after: input,
+    });
   });
   res.json(input);
 });

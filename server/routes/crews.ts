@@ -14,7 +14,16 @@ export const crewsRouter = Router({ mergeParams: true });
 export async function listCrews(tx: DbOrTx, projectId: string) {
   const list = await tx.select().from(crews).where(eq(crews.projectId, projectId)).orderBy(asc(crews.name));
   const members = list.length
-    ? await tx.select().from(crewMembers).where(inArray(crewMembers.crewId, list.map((c) => c.id))).orderBy(asc(crewMembers.name))
+    ? await tx
+        .select()
+        .from(crewMembers)
+        .where(
+          inArray(
+            crewMembers.crewId,
+            list.map((c) => c.id),
+          ),
+        )
+        .orderBy(asc(crewMembers.name))
     : [];
   return list.map((c) => ({ ...c, members: members.filter((m) => m.crewId === c.id) }));
 }
@@ -26,8 +35,18 @@ crewsRouter.get('/', requireProject('stops.read'), async (req, res) => {
 async function saveMembers(tx: DbOrTx, crewId: string, members: { name: string; email: string }[]) {
   await tx.delete(crewMembers).where(eq(crewMembers.crewId, crewId));
   if (members.length === 0) return;
-  const known = await tx.select({ id: users.id, email: users.email }).from(users).where(inArray(users.email, members.map((m) => m.email)));
-  await tx.insert(crewMembers).values(members.map((m) => ({ crewId, name: m.name, email: m.email, userId: known.find((u) => u.email === m.email)?.id ?? null })));
+  const known = await tx
+    .select({ id: users.id, email: users.email })
+    .from(users)
+    .where(
+      inArray(
+        users.email,
+        members.map((m) => m.email),
+      ),
+    );
+  await tx
+    .insert(crewMembers)
+    .values(members.map((m) => ({ crewId, name: m.name, email: m.email, userId: known.find((u) => u.email === m.email)?.id ?? null })));
 }
 
 crewsRouter.post('/', requireAdmin, async (req, res) => {
@@ -35,7 +54,10 @@ crewsRouter.post('/', requireAdmin, async (req, res) => {
   const me = requireUser(req);
   const input = crewInputSchema.parse(req.body);
   const crew = await db.transaction(async (tx) => {
-    const [dup] = await tx.select({ id: crews.id }).from(crews).where(and(eq(crews.projectId, projectId), eq(crews.name, input.name)));
+    const [dup] = await tx
+      .select({ id: crews.id })
+      .from(crews)
+      .where(and(eq(crews.projectId, projectId), eq(crews.name, input.name)));
     if (dup) throw conflict(`There is already a crew called ${input.name}.`);
     const [row] = await tx.insert(crews).values({ projectId, name: input.name }).returning();
     await saveMembers(tx, row.id, input.members);
@@ -51,12 +73,23 @@ crewsRouter.put('/:crewId', requireAdmin, async (req, res) => {
   const me = requireUser(req);
   const input = crewInputSchema.parse(req.body);
   await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(crews).where(and(eq(crews.id, crewId), eq(crews.projectId, projectId)));
+    const [before] = await tx
+      .select()
+      .from(crews)
+      .where(and(eq(crews.id, crewId), eq(crews.projectId, projectId)));
     if (!before) throw notFound('That crew');
     const beforeMembers = await tx.select().from(crewMembers).where(eq(crewMembers.crewId, crewId));
     await tx.update(crews).set({ name: input.name }).where(eq(crews.id, crewId));
     await saveMembers(tx, crewId, input.members);
-    await audit(tx, { userId: me.id, projectId, entity: 'crew', entityId: crewId, action: 'update', before: { ...before, members: beforeMembers }, after: input });
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'crew',
+      entityId: crewId,
+      action: 'update',
+      before: { ...before, members: beforeMembers },
+      after: input,
+    });
   });
   res.json((await listCrews(db, projectId)).find((c) => c.id === crewId));
 });

@@ -19,11 +19,13 @@ cuttersRouter.get('/', requireProject('cutters.read'), async (req, res) => {
     .from(cutters)
     .leftJoin(fittings, and(eq(fittings.cutterId, cutters.id), isNull(fittings.removedAt)))
     .leftJoin(positions, eq(positions.id, fittings.positionId))
-    .where(and(
-      eq(cutters.projectId, projectId),
-      query.status ? eq(cutters.status, query.status) : undefined,
-      query.q ? ilike(cutters.serial, `%${query.q.replace(/[%_\\]/g, '\\$&')}%`) : undefined,
-    ))
+    .where(
+      and(
+        eq(cutters.projectId, projectId),
+        query.status ? eq(cutters.status, query.status) : undefined,
+        query.q ? ilike(cutters.serial, `%${query.q.replace(/[%_\\]/g, '\\$&')}%`) : undefined,
+      ),
+    )
     .orderBy(asc(cutters.serial));
   res.json(rows.map((r) => ({ ...r.cutter, positionNumber: r.positionNumber, fittedAt: r.fittedAt })));
 });
@@ -34,9 +36,15 @@ cuttersRouter.post('/', requireProject('cutters.edit'), async (req, res) => {
   const me = requireUser(req);
   const input = receiveCutterInputSchema.parse(req.body);
   const cutter = await db.transaction(async (tx) => {
-    const [dup] = await tx.select({ status: cutters.status }).from(cutters).where(and(eq(cutters.projectId, projectId), eq(cutters.serial, input.serial)));
+    const [dup] = await tx
+      .select({ status: cutters.status })
+      .from(cutters)
+      .where(and(eq(cutters.projectId, projectId), eq(cutters.serial, input.serial)));
     if (dup) throw conflict(`Serial ${input.serial} is already in Kerfwise (${dup.status.replace('_', ' ')}).`);
-    const [row] = await tx.insert(cutters).values({ ...input, projectId }).returning();
+    const [row] = await tx
+      .insert(cutters)
+      .values({ ...input, projectId })
+      .returning();
     await tx.insert(cutterEvents).values({ projectId, cutterId: row.id, kind: 'received', userId: me.id });
     await audit(tx, { userId: me.id, projectId, entity: 'cutter', entityId: row.id, action: 'create', after: row });
     return row;
@@ -48,7 +56,10 @@ cuttersRouter.post('/', requireProject('cutters.edit'), async (req, res) => {
 cuttersRouter.get('/:cutterId', requireProject('cutters.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const cutterId = idParam(req.params, 'cutterId', 'That cutter');
-  const [cutter] = await db.select().from(cutters).where(and(eq(cutters.id, cutterId), eq(cutters.projectId, projectId)));
+  const [cutter] = await db
+    .select()
+    .from(cutters)
+    .where(and(eq(cutters.id, cutterId), eq(cutters.projectId, projectId)));
   if (!cutter) throw notFound('That cutter');
   const periods = await db
     .select({ fitting: fittings, positionNumber: positions.number })
@@ -76,14 +87,20 @@ cuttersRouter.post('/:cutterId/workshop', requireProject('cutters.edit'), async 
   const me = requireUser(req);
   const input = workshopInputSchema.parse(req.body);
   const cutter = await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(cutters).where(and(eq(cutters.id, cutterId), eq(cutters.projectId, projectId))).for('update');
+    const [before] = await tx
+      .select()
+      .from(cutters)
+      .where(and(eq(cutters.id, cutterId), eq(cutters.projectId, projectId)))
+      .for('update');
     if (!before) throw notFound('That cutter');
     if (before.status !== 'workshop') throw conflict(`Serial ${before.serial} is ${before.status.replace('_', ' ')}, not in the workshop.`);
     const [after] = await tx
       .update(cutters)
-      .set(input.outcome === 'rebuilt'
-        ? { status: 'in_store', rebuildCount: before.rebuildCount + 1, updatedAt: sql`now()` }
-        : { status: 'scrapped', updatedAt: sql`now()` })
+      .set(
+        input.outcome === 'rebuilt'
+          ? { status: 'in_store', rebuildCount: before.rebuildCount + 1, updatedAt: sql`now()` }
+          : { status: 'scrapped', updatedAt: sql`now()` },
+      )
       .where(eq(cutters.id, cutterId))
       .returning();
     await tx.insert(cutterEvents).values({ projectId, cutterId, kind: input.outcome, userId: me.id, details: input });

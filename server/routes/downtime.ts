@@ -1,8 +1,16 @@
 import { and, asc, eq, gt, isNull, lt, max, ne, type SQL } from 'drizzle-orm';
 import { Router, type Request, type Response } from 'express';
 import {
-  costQuerySchema, downtimeCauseInputSchema, downtimeCauseUpdateSchema, downtimeEventInputSchema, eventListQuerySchema, reportQuerySchema,
-  siteSettingsInputSchema, type DowntimeEventInput, type DowntimeEventList, type DowntimeEventRow,
+  costQuerySchema,
+  downtimeCauseInputSchema,
+  downtimeCauseUpdateSchema,
+  downtimeEventInputSchema,
+  eventListQuerySchema,
+  reportQuerySchema,
+  siteSettingsInputSchema,
+  type DowntimeEventInput,
+  type DowntimeEventList,
+  type DowntimeEventRow,
 } from '../../shared/schemas/downtime';
 import { writeCsv, type CsvCell, type CsvColumn } from '../../shared/csv-writer';
 import { formatSiteDateTime, isoWithSiteOffset } from '../../shared/site-time';
@@ -13,7 +21,14 @@ import { audit } from '../lib/audit';
 import { badRequest, conflict, HttpError, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
 import {
-  buildCutterCost, buildDowntimeReport, ensureDefaultCauses, listCauses, lockDowntime, proposeGapEvents, readSiteSettings, resolvePeriod,
+  buildCutterCost,
+  buildDowntimeReport,
+  ensureDefaultCauses,
+  listCauses,
+  lockDowntime,
+  proposeGapEvents,
+  readSiteSettings,
+  resolvePeriod,
 } from '../services/downtime';
 
 /** Downtime events, causes and site settings; the site manager's downtime and cutter-cost reports. */
@@ -58,8 +73,14 @@ downtimeRouter.post('/causes', requireProject('downtime.edit'), async (req, res)
   const cause = await db.transaction(async (tx) => {
     await ensureDefaultCauses(tx, projectId, me.id);
     await refuseDuplicateName(tx, projectId, input.name, null);
-    const [{ last }] = await tx.select({ last: max(downtimeCauses.sortOrder) }).from(downtimeCauses).where(eq(downtimeCauses.projectId, projectId));
-    const [row] = await tx.insert(downtimeCauses).values({ projectId, name: input.name, cutterWork: input.cutterWork, sortOrder: (last ?? 0) + 10 }).returning();
+    const [{ last }] = await tx
+      .select({ last: max(downtimeCauses.sortOrder) })
+      .from(downtimeCauses)
+      .where(eq(downtimeCauses.projectId, projectId));
+    const [row] = await tx
+      .insert(downtimeCauses)
+      .values({ projectId, name: input.name, cutterWork: input.cutterWork, sortOrder: (last ?? 0) + 10 })
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'downtime_cause', entityId: row.id, action: 'create', after: row });
     return row;
   });
@@ -73,7 +94,11 @@ downtimeRouter.patch('/causes/:causeId', requireProject('downtime.edit'), async 
   const me = requireUser(req);
   const input = downtimeCauseUpdateSchema.parse(req.body);
   const cause = await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(downtimeCauses).where(and(eq(downtimeCauses.id, causeId), eq(downtimeCauses.projectId, projectId))).for('update');
+    const [before] = await tx
+      .select()
+      .from(downtimeCauses)
+      .where(and(eq(downtimeCauses.id, causeId), eq(downtimeCauses.projectId, projectId)))
+      .for('update');
     if (!before) throw notFound('That cause');
     if (input.name) await refuseDuplicateName(tx, projectId, input.name, causeId);
     const [after] = await tx.update(downtimeCauses).set(input).where(eq(downtimeCauses.id, causeId)).returning();
@@ -96,9 +121,20 @@ downtimeRouter.put('/settings', requireProject('downtime.edit'), async (req, res
   const saved = await db.transaction(async (tx) => {
     const before = await readSiteSettings(tx, projectId);
     const values = { shifts: input.shifts, labourRatePerHour: input.labourRatePerHour.toFixed(2), gapMinutes: input.gapMinutes };
-    await tx.insert(siteSettings).values({ projectId, ...values }).onConflictDoUpdate({ target: siteSettings.projectId, set: { ...values, updatedAt: new Date() } });
+    await tx
+      .insert(siteSettings)
+      .values({ projectId, ...values })
+      .onConflictDoUpdate({ target: siteSettings.projectId, set: { ...values, updatedAt: new Date() } });
     const after = await readSiteSettings(tx, projectId);
-    await audit(tx, { userId: me.id, projectId, entity: 'site_settings', entityId: projectId, action: before.saved ? 'update' : 'create', before: before.saved ? before : null, after });
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'site_settings',
+      entityId: projectId,
+      action: before.saved ? 'update' : 'create',
+      before: before.saved ? before : null,
+      after,
+    });
     return after;
   });
   res.json(saved);
@@ -139,36 +175,69 @@ downtimeRouter.get('/events', requireProject('downtime.read'), async (req, res) 
   const project = await loadProject(db, projectId);
   const tz = project.siteTimeZone;
   const period = await resolvePeriod(db, project, q, new Date());
-  const rows = await listEvents(db, projectId, and(
-    lt(downtimeEvents.startAt, period.end),
-    gt(downtimeEvents.endAt, period.start),
-    q.causeId ? eq(downtimeEvents.causeId, q.causeId) : undefined,
-    q.unexplained ? isNull(downtimeEvents.causeId) : undefined,
-  ));
+  const rows = await listEvents(
+    db,
+    projectId,
+    and(
+      lt(downtimeEvents.startAt, period.end),
+      gt(downtimeEvents.endAt, period.start),
+      q.causeId ? eq(downtimeEvents.causeId, q.causeId) : undefined,
+      q.unexplained ? isNull(downtimeEvents.causeId) : undefined,
+    ),
+  );
   if (q.format === 'json') {
     res.json({ from: period.from, to: period.to, timeZone: tz, events: rows } satisfies DowntimeEventList);
     return;
   }
-  sendCsv(res, 'downtime-events', ['start', 'end', hoursCol('hours'), 'cause', 'cutter_work', 'source', 'stop_chainage_m', 'note'], rows.map((r) => [
-    // With the site's offset then: unambiguous across daylight-saving changes.
-    isoWithSiteOffset(r.startAt, tz), isoWithSiteOffset(r.endAt, tz), r.hours, r.causeName ?? '', r.cutterWork ? 'yes' : 'no', r.source, r.stopChainageM ?? '', r.note,
-  ]));
+  sendCsv(
+    res,
+    'downtime-events',
+    ['start', 'end', hoursCol('hours'), 'cause', 'cutter_work', 'source', 'stop_chainage_m', 'note'],
+    rows.map((r) => [
+      // With the site's offset then: unambiguous across daylight-saving changes.
+      isoWithSiteOffset(r.startAt, tz),
+      isoWithSiteOffset(r.endAt, tz),
+      r.hours,
+      r.causeName ?? '',
+      r.cutterWork ? 'yes' : 'no',
+      r.source,
+      r.stopChainageM ?? '',
+      r.note,
+    ]),
+  );
 });
 
 /**
  * Checks an event against the drive: its cause (active, unless an edit keeps the one it had), its
  * stop, and that it overlaps no other event (the message names that event). Call under lockDowntime.
  */
-async function checkEvent(tx: DbOrTx, projectId: string, tz: string, input: DowntimeEventInput, before: { id: string; causeId: string | null } | null) {
+async function checkEvent(
+  tx: DbOrTx,
+  projectId: string,
+  tz: string,
+  input: DowntimeEventInput,
+  before: { id: string; causeId: string | null } | null,
+) {
   if (input.causeId) {
-    const [cause] = await tx.select().from(downtimeCauses).where(and(eq(downtimeCauses.id, input.causeId), eq(downtimeCauses.projectId, projectId)));
-    if (!cause) throw badRequest('That cause is not one of this drive’s causes. Reload and choose again.', [{ path: 'causeId', message: 'Unknown cause.' }]);
+    const [cause] = await tx
+      .select()
+      .from(downtimeCauses)
+      .where(and(eq(downtimeCauses.id, input.causeId), eq(downtimeCauses.projectId, projectId)));
+    if (!cause)
+      throw badRequest('That cause is not one of this drive’s causes. Reload and choose again.', [
+        { path: 'causeId', message: 'Unknown cause.' },
+      ]);
     if (!cause.active && before?.causeId !== cause.id) {
-      throw badRequest(`${cause.name} is no longer in use; choose another cause or reactivate it.`, [{ path: 'causeId', message: 'Cause not in use.' }]);
+      throw badRequest(`${cause.name} is no longer in use; choose another cause or reactivate it.`, [
+        { path: 'causeId', message: 'Cause not in use.' },
+      ]);
     }
   }
   if (input.stopId) {
-    const [stop] = await tx.select({ id: stops.id }).from(stops).where(and(eq(stops.id, input.stopId), eq(stops.projectId, projectId)));
+    const [stop] = await tx
+      .select({ id: stops.id })
+      .from(stops)
+      .where(and(eq(stops.id, input.stopId), eq(stops.projectId, projectId)));
     if (!stop) throw badRequest('That stop is not one of this drive’s stops.', [{ path: 'stopId', message: 'Unknown stop.' }]);
   }
   const start = new Date(input.startAt);
@@ -177,12 +246,24 @@ async function checkEvent(tx: DbOrTx, projectId: string, tz: string, input: Down
     .select({ id: downtimeEvents.id, startAt: downtimeEvents.startAt, endAt: downtimeEvents.endAt, cause: downtimeCauses.name })
     .from(downtimeEvents)
     .leftJoin(downtimeCauses, eq(downtimeCauses.id, downtimeEvents.causeId))
-    .where(and(eq(downtimeEvents.projectId, projectId), lt(downtimeEvents.startAt, end), gt(downtimeEvents.endAt, start), before ? ne(downtimeEvents.id, before.id) : undefined))
+    .where(
+      and(
+        eq(downtimeEvents.projectId, projectId),
+        lt(downtimeEvents.startAt, end),
+        gt(downtimeEvents.endAt, start),
+        before ? ne(downtimeEvents.id, before.id) : undefined,
+      ),
+    )
     .orderBy(asc(downtimeEvents.startAt))
     .limit(1);
   if (other) {
     const named = `the downtime event from ${formatSiteDateTime(other.startAt, tz)} to ${formatSiteDateTime(other.endAt, tz)} (${other.cause ?? 'no cause given yet'})`;
-    throw new HttpError(400, `This overlaps ${named}. Change the times, or edit that event instead.`, [{ path: 'startAt', message: `Overlaps ${named}.` }], { overlapsEventId: other.id });
+    throw new HttpError(
+      400,
+      `This overlaps ${named}. Change the times, or edit that event instead.`,
+      [{ path: 'startAt', message: `Overlaps ${named}.` }],
+      { overlapsEventId: other.id },
+    );
   }
   return { startAt: start, endAt: end, causeId: input.causeId, note: input.note, stopId: input.stopId };
 }
@@ -195,7 +276,10 @@ downtimeRouter.post('/events', requireProject('downtime.edit'), async (req, res)
     await lockDowntime(tx, projectId);
     const project = await loadProject(tx, projectId);
     const values = await checkEvent(tx, projectId, project.siteTimeZone, input, null);
-    const [created] = await tx.insert(downtimeEvents).values({ projectId, ...values, source: 'manual', createdBy: me.id }).returning();
+    const [created] = await tx
+      .insert(downtimeEvents)
+      .values({ projectId, ...values, source: 'manual', createdBy: me.id })
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'downtime_event', entityId: created.id, action: 'create', after: created });
     return (await listEvents(tx, projectId, eq(downtimeEvents.id, created.id)))[0];
   });
@@ -209,7 +293,10 @@ downtimeRouter.put('/events/:eventId', requireProject('downtime.edit'), async (r
   const input = downtimeEventInputSchema.parse(req.body);
   const row = await db.transaction(async (tx) => {
     await lockDowntime(tx, projectId);
-    const [before] = await tx.select().from(downtimeEvents).where(and(eq(downtimeEvents.id, eventId), eq(downtimeEvents.projectId, projectId)));
+    const [before] = await tx
+      .select()
+      .from(downtimeEvents)
+      .where(and(eq(downtimeEvents.id, eventId), eq(downtimeEvents.projectId, projectId)));
     if (!before) throw notFound('That downtime event');
     const project = await loadProject(tx, projectId);
     const values = await checkEvent(tx, projectId, project.siteTimeZone, input, before);
@@ -225,7 +312,10 @@ downtimeRouter.delete('/events/:eventId', requireProject('downtime.edit'), async
   const eventId = idParam(req.params, 'eventId', 'That downtime event');
   const me = requireUser(req);
   await db.transaction(async (tx) => {
-    const [before] = await tx.delete(downtimeEvents).where(and(eq(downtimeEvents.id, eventId), eq(downtimeEvents.projectId, projectId))).returning();
+    const [before] = await tx
+      .delete(downtimeEvents)
+      .where(and(eq(downtimeEvents.id, eventId), eq(downtimeEvents.projectId, projectId)))
+      .returning();
     if (!before) throw notFound('That downtime event');
     await audit(tx, { userId: me.id, projectId, entity: 'downtime_event', entityId: eventId, action: 'delete', before });
   });
@@ -240,7 +330,6 @@ downtimeRouter.post('/propose-from-gaps', requireProject('downtime.edit'), async
 });
 
 // Reports ---------------------------------------------------------------------------------------
-
 
 /** Pivot of (cause, column, hours) rows: one line per cause with a column each and a total. */
 function pivot(rows: { cause: string; cutterWork: boolean; hours: number; column: string }[], columns: string[]) {
@@ -265,12 +354,33 @@ downtimeRouter.get('/report', requireProject('downtime.read'), async (req, res) 
     return;
   }
   const name = `downtime-${q.table}-${report.from}-${report.to}`;
-  if (q.table === 'week') sendCsv(res, name, ['cause', 'cutter_work', ...report.weeks.map(hoursCol), hoursCol('total')], pivot(report.byWeek.map((r) => ({ ...r, column: r.isoWeek })), report.weeks));
-  else if (q.table === 'shift') sendCsv(res, name, ['cause', 'cutter_work', ...report.shifts.map(hoursCol), hoursCol('total')], pivot(report.byShift.map((r) => ({ ...r, column: r.shift })), report.shifts));
+  if (q.table === 'week')
+    sendCsv(
+      res,
+      name,
+      ['cause', 'cutter_work', ...report.weeks.map(hoursCol), hoursCol('total')],
+      pivot(
+        report.byWeek.map((r) => ({ ...r, column: r.isoWeek })),
+        report.weeks,
+      ),
+    );
+  else if (q.table === 'shift')
+    sendCsv(
+      res,
+      name,
+      ['cause', 'cutter_work', ...report.shifts.map(hoursCol), hoursCol('total')],
+      pivot(
+        report.byShift.map((r) => ({ ...r, column: r.shift })),
+        report.shifts,
+      ),
+    );
   else {
-    sendCsv(res, name, ['cause', 'cutter_work', hoursCol('hours'), pctCol('share_pct'), pctCol('cumulative_pct')], report.pareto.map((r) => [
-      r.cause, r.cutterWork ? 'yes' : 'no', r.hours, r.share * 100, r.cumulativeShare * 100,
-    ]));
+    sendCsv(
+      res,
+      name,
+      ['cause', 'cutter_work', hoursCol('hours'), pctCol('share_pct'), pctCol('cumulative_pct')],
+      report.pareto.map((r) => [r.cause, r.cutterWork ? 'yes' : 'no', r.hours, r.share * 100, r.cumulativeShare * 100]),
+    );
   }
 });
 
@@ -288,7 +398,20 @@ downtimeRouter.get('/cost', requireProject('downtime.read'), async (req, res) =>
   }
   const rows = q.table === 'week' ? cost.byWeek : cost.byGround;
   const money = (header: string): CsvColumn => ({ header, decimals: 2 });
-  sendCsv(res, `cutter-cost-${q.table}-${cost.from}-${cost.to}`,
-    [q.table === 'week' ? 'iso_week' : 'ground_type', { header: 'advance_m', decimals: 1 }, { header: 'excavated_m3', decimals: 1 }, money('parts_cost'), money('labour_cost'), money('total_cost'), money('cost_per_m'), money('cost_per_m3'), { header: 'rings_per_1000_m3', decimals: 3 }],
-    rows.map((r) => [r.key, r.advanceM, r.excavatedM3, r.partsCost, r.labourCost, r.totalCost, r.costPerM, r.costPerM3, r.ringsPer1000M3]));
+  sendCsv(
+    res,
+    `cutter-cost-${q.table}-${cost.from}-${cost.to}`,
+    [
+      q.table === 'week' ? 'iso_week' : 'ground_type',
+      { header: 'advance_m', decimals: 1 },
+      { header: 'excavated_m3', decimals: 1 },
+      money('parts_cost'),
+      money('labour_cost'),
+      money('total_cost'),
+      money('cost_per_m'),
+      money('cost_per_m3'),
+      { header: 'rings_per_1000_m3', decimals: 3 },
+    ],
+    rows.map((r) => [r.key, r.advanceM, r.excavatedM3, r.partsCost, r.labourCost, r.totalCost, r.costPerM, r.costPerM3, r.ringsPer1000M3]),
+  );
 });

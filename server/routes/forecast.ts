@@ -69,9 +69,20 @@ forecastRouter.put('/settings', requireProject('forecast.edit'), async (req, res
   const saved = await db.transaction(async (tx) => {
     const keys = Object.keys(input.overrides);
     if (keys.length > 0) {
-      const mine = new Set((await tx.select({ id: positions.id }).from(positions).where(and(eq(positions.projectId, projectId), inArray(positions.id, keys)))).map((p) => p.id));
+      const mine = new Set(
+        (
+          await tx
+            .select({ id: positions.id })
+            .from(positions)
+            .where(and(eq(positions.projectId, projectId), inArray(positions.id, keys)))
+        ).map((p) => p.id),
+      );
       const foreign = keys.find((k) => !mine.has(k));
-      if (foreign) throw badRequest(`The override for position ${foreign} names no cutter position of this drive. Reload and choose the position again.`, [{ path: `overrides.${foreign}`, message: 'Not a position of this drive.' }]);
+      if (foreign)
+        throw badRequest(
+          `The override for position ${foreign} names no cutter position of this drive. Reload and choose the position again.`,
+          [{ path: `overrides.${foreign}`, message: 'Not a position of this drive.' }],
+        );
     }
     const before = await loadForecastSettings(tx, projectId);
     const [after] = await tx

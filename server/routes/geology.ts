@@ -13,7 +13,15 @@ import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
 import { readGeologyCsv } from '../lib/csv/geology';
 import type { CsvIssue } from '../lib/csv/issues';
-import { csvRefusal, chosenMapping, rememberMapping, requireRawCsv, storedMapping, unusedColumnWarnings, uploadStream } from '../lib/csv/upload';
+import {
+  csvRefusal,
+  chosenMapping,
+  rememberMapping,
+  requireRawCsv,
+  storedMapping,
+  unusedColumnWarnings,
+  uploadStream,
+} from '../lib/csv/upload';
 import { idParam } from '../lib/params';
 import { driveDataChanged } from '../services/drive-data';
 
@@ -33,9 +41,15 @@ groundTypesRouter.post('/', requireProject('drive.edit'), async (req, res) => {
   const me = requireUser(req);
   const input = groundTypeInputSchema.parse(req.body);
   const row = await db.transaction(async (tx) => {
-    const [dup] = await tx.select({ id: groundTypes.id }).from(groundTypes).where(and(eq(groundTypes.projectId, projectId), eq(groundTypes.name, input.name)));
+    const [dup] = await tx
+      .select({ id: groundTypes.id })
+      .from(groundTypes)
+      .where(and(eq(groundTypes.projectId, projectId), eq(groundTypes.name, input.name)));
     if (dup) throw conflict(`There is already a ground type called ${input.name}.`);
-    const [g] = await tx.insert(groundTypes).values({ ...input, projectId }).returning();
+    const [g] = await tx
+      .insert(groundTypes)
+      .values({ ...input, projectId })
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: g.id, action: 'create', after: g });
     return g;
   });
@@ -48,7 +62,11 @@ groundTypesRouter.patch('/:groundTypeId', requireProject('drive.edit'), async (r
   const me = requireUser(req);
   const input = groundTypeInputSchema.partial().parse(req.body);
   const row = await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(groundTypes).where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId))).for('update');
+    const [before] = await tx
+      .select()
+      .from(groundTypes)
+      .where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId)))
+      .for('update');
     if (!before) throw notFound('That ground type');
     const [after] = await tx.update(groundTypes).set(input).where(eq(groundTypes.id, id)).returning();
     await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: id, action: 'update', before, after });
@@ -63,11 +81,22 @@ groundTypesRouter.delete('/:groundTypeId', requireProject('drive.edit'), async (
   const me = requireUser(req);
   await db.transaction(async (tx) => {
     // 404 before the in-use check: another project's ground type must not show that it exists.
-    const [mine] = await tx.select({ id: groundTypes.id }).from(groundTypes).where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId))).for('update');
+    const [mine] = await tx
+      .select({ id: groundTypes.id })
+      .from(groundTypes)
+      .where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId)))
+      .for('update');
     if (!mine) throw notFound('That ground type');
-    const [used] = await tx.select({ id: geologySections.id }).from(geologySections).where(and(eq(geologySections.groundTypeId, id), eq(geologySections.projectId, projectId))).limit(1);
+    const [used] = await tx
+      .select({ id: geologySections.id })
+      .from(geologySections)
+      .where(and(eq(geologySections.groundTypeId, id), eq(geologySections.projectId, projectId)))
+      .limit(1);
     if (used) throw conflict('This ground type is used in the long section; change those sections first.');
-    const [before] = await tx.delete(groundTypes).where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId))).returning();
+    const [before] = await tx
+      .delete(groundTypes)
+      .where(and(eq(groundTypes.id, id), eq(groundTypes.projectId, projectId)))
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: id, action: 'delete', before });
   });
   res.status(204).end();
@@ -76,8 +105,17 @@ groundTypesRouter.delete('/:groundTypeId', requireProject('drive.edit'), async (
 /** The long section in chainage order, its gaps (warnings), and where the machine stands now. */
 geologyRouter.get('/', requireProject('drive.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
-  const sections = await db.select().from(geologySections).where(eq(geologySections.projectId, projectId)).orderBy(asc(geologySections.chainageFromM));
-  const [last] = await db.select({ chainageM: strokes.chainageEndM }).from(strokes).where(eq(strokes.projectId, projectId)).orderBy(sql`${strokes.ringNumber} desc`).limit(1);
+  const sections = await db
+    .select()
+    .from(geologySections)
+    .where(eq(geologySections.projectId, projectId))
+    .orderBy(asc(geologySections.chainageFromM));
+  const [last] = await db
+    .select({ chainageM: strokes.chainageEndM })
+    .from(strokes)
+    .where(eq(strokes.projectId, projectId))
+    .orderBy(sql`${strokes.ringNumber} desc`)
+    .limit(1);
   const { warnings } = validateGeologySections(sections);
   res.json({ sections, warnings, currentChainageM: last?.chainageM ?? null });
 });
@@ -87,17 +125,30 @@ geologyRouter.put('/', requireProject('drive.edit'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const me = requireUser(req);
   const { sections } = longSectionInputSchema.parse(req.body);
-  const known = new Set((await db.select({ id: groundTypes.id }).from(groundTypes).where(eq(groundTypes.projectId, projectId))).map((g) => g.id));
-  const issues = sections.flatMap((s, i) => (known.has(s.groundTypeId) ? [] : [{ path: `sections.${i}.groundTypeId`, message: 'Choose one of this drive’s ground types.' }]));
+  const known = new Set(
+    (await db.select({ id: groundTypes.id }).from(groundTypes).where(eq(groundTypes.projectId, projectId))).map((g) => g.id),
+  );
+  const issues = sections.flatMap((s, i) =>
+    known.has(s.groundTypeId) ? [] : [{ path: `sections.${i}.groundTypeId`, message: 'Choose one of this drive’s ground types.' }],
+  );
   const check = validateGeologySections(sections);
   for (const e of check.errors) {
-    if (e.kind === 'overlap') issues.push({ path: `sections.${e.indexB}.chainageFromM`, message: `Overlaps section ${e.indexA + 1} between ${e.fromM} m and ${e.toM} m.` });
+    if (e.kind === 'overlap')
+      issues.push({
+        path: `sections.${e.indexB}.chainageFromM`,
+        message: `Overlaps section ${e.indexA + 1} between ${e.fromM} m and ${e.toM} m.`,
+      });
     else issues.push({ path: `sections.${e.index}.chainageToM`, message: 'Chainage to must be greater than chainage from.' });
   }
   if (issues.length > 0) throw badRequest(`The long section has ${issues.length} problem(s); nothing was saved.`, issues);
   await db.transaction(async (tx) => {
     const before = await tx.delete(geologySections).where(eq(geologySections.projectId, projectId)).returning();
-    const after = sections.length ? await tx.insert(geologySections).values(sections.map((s) => ({ ...s, projectId }))).returning() : [];
+    const after = sections.length
+      ? await tx
+          .insert(geologySections)
+          .values(sections.map((s) => ({ ...s, projectId })))
+          .returning()
+      : [];
     await audit(tx, { userId: me.id, projectId, entity: 'geology', entityId: projectId, action: 'replace', before, after });
     // Ground attribution changes everywhere: recompute the rolled distances of the whole drive.
     await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: true });
@@ -128,7 +179,12 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
   const me = requireUser(req);
   const query = importQuerySchema.parse(req.query);
   requireRawCsv(req);
-  const columns = await chosenMapping(projectId, 'geology', query.mapping, geologySectionColumnMappingSchema as z.ZodType<Record<string, string>>);
+  const columns = await chosenMapping(
+    projectId,
+    'geology',
+    query.mapping,
+    geologySectionColumnMappingSchema as z.ZodType<Record<string, string>>,
+  );
   const upload = uploadStream(req);
   const result = await readGeologyCsv(upload.body, columns);
   await upload.drain();
@@ -136,10 +192,20 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
   const notes: CsvIssue[] = [];
   const waterHeadColumn = result.detected.mapping.waterHeadM;
   if (!waterHeadColumn) {
-    notes.push({ row: 1, column: 'Water head above axis (m)', message: 'The file has no water head column, so every section is stored with 0 m of water above the axis. Compressed-air stops depend on it: add the column, or choose it in the column mapping.' });
+    notes.push({
+      row: 1,
+      column: 'Water head above axis (m)',
+      message:
+        'The file has no water head column, so every section is stored with 0 m of water above the axis. Compressed-air stops depend on it: add the column, or choose it in the column mapping.',
+    });
   } else {
     const empty = result.rows.filter((r) => r.data.waterHeadM === null).map((r) => r.line);
-    if (empty.length > 0) notes.push({ row: empty[0], column: waterHeadColumn, message: `The water head is empty on ${linesText(empty)}; those sections are stored with 0 m above the axis. Fill it in where there is groundwater.` });
+    if (empty.length > 0)
+      notes.push({
+        row: empty[0],
+        column: waterHeadColumn,
+        message: `The water head is empty on ${linesText(empty)}; those sections are stored with 0 m above the axis. Fill it in where there is groundwater.`,
+      });
   }
   const outcome = await db.transaction(async (tx) => {
     const known = await tx.select().from(groundTypes).where(eq(groundTypes.projectId, projectId));
@@ -151,7 +217,10 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
       const given = { ...(r.data.ucsMpa !== undefined && { ucsMpa: r.data.ucsMpa }), ...(r.data.cai !== undefined && { cai: r.data.cai }) };
       const before = byName.get(key);
       if (!before) {
-        const [g] = await tx.insert(groundTypes).values({ projectId, name, ...given }).returning();
+        const [g] = await tx
+          .insert(groundTypes)
+          .values({ projectId, name, ...given })
+          .returning();
         await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: g.id, action: 'create', after: g });
         byName.set(key, g);
         created.push(g.name);
@@ -162,14 +231,30 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
       const [after] = await tx.update(groundTypes).set(given).where(eq(groundTypes.id, before.id)).returning();
       await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: before.id, action: 'update', before, after });
       byName.set(key, after);
-      const words = changes.map((k) => `${k === 'cai' ? 'CAI' : 'UCS'} ${before[k] ?? 'not set'} → ${after[k]}${k === 'ucsMpa' ? ' MPa' : ''}`).join(', ');
-      notes.push({ row: r.line, column: 'Ground type', message: `Ground type "${before.name}" changed from the file: ${words}. Forecasts use the new values.` });
+      const words = changes
+        .map((k) => `${k === 'cai' ? 'CAI' : 'UCS'} ${before[k] ?? 'not set'} → ${after[k]}${k === 'ucsMpa' ? ' MPa' : ''}`)
+        .join(', ');
+      notes.push({
+        row: r.line,
+        column: 'Ground type',
+        message: `Ground type "${before.name}" changed from the file: ${words}. Forecasts use the new values.`,
+      });
     }
     const previous = await tx.delete(geologySections).where(eq(geologySections.projectId, projectId)).returning();
-    const saved = await tx.insert(geologySections).values(result.rows.map((r) => ({
-      projectId, chainageFromM: r.data.chainageFromM, chainageToM: r.data.chainageToM, groundTypeId: byName.get(r.data.groundTypeName.trim().toLowerCase())!.id,
-      waterHeadM: r.data.waterHeadM ?? 0, stopAllowed: r.data.stopAllowed, stopReason: r.data.stopReason ?? '',
-    }))).returning();
+    const saved = await tx
+      .insert(geologySections)
+      .values(
+        result.rows.map((r) => ({
+          projectId,
+          chainageFromM: r.data.chainageFromM,
+          chainageToM: r.data.chainageToM,
+          groundTypeId: byName.get(r.data.groundTypeName.trim().toLowerCase())!.id,
+          waterHeadM: r.data.waterHeadM ?? 0,
+          stopAllowed: r.data.stopAllowed,
+          stopReason: r.data.stopReason ?? '',
+        })),
+      )
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'geology', entityId: projectId, action: 'import', before: previous, after: saved });
     await rememberMapping(tx, projectId, 'geology', result.detected.mapping as Record<string, string>);
     await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: true });
@@ -181,7 +266,11 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
     ...notes,
     ...outcome.createdGroundTypes
       .filter((name) => byNameHasNoCai(result.rows, name))
-      .map((name) => ({ row: 0, column: 'Ground type', message: `New ground type "${name}" was created; add its CAI so wear can be forecast before site data exists.` })),
+      .map((name) => ({
+        row: 0,
+        column: 'Ground type',
+        message: `New ground type "${name}" was created; add its CAI so wear can be forecast before site data exists.`,
+      })),
   ];
   res.status(201).json({ saved: outcome.saved, warnings, detected: result.detected });
 });

@@ -2,7 +2,12 @@ import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import { Router } from 'express';
 import { writeCsv } from '../../shared/csv-writer';
 import {
-  demandQuerySchema, partInputSchema, purchaseOrderInputSchema, receiveLineInputSchema, stockCountInputSchema, workshopSettingsInputSchema,
+  demandQuerySchema,
+  partInputSchema,
+  purchaseOrderInputSchema,
+  receiveLineInputSchema,
+  stockCountInputSchema,
+  workshopSettingsInputSchema,
 } from '../../shared/schemas/parts';
 import { db, type DbOrTx } from '../db/client';
 import { parts, purchaseOrderLines, purchaseOrders, stockMovements, workshopSettings } from '../db/schema';
@@ -25,7 +30,15 @@ partsRouter.get('/', requireProject('parts.read'), async (req, res) => {
   res.json({
     parts: demand.parts.map((p) => {
       const s = byPart.get(p.id)!;
-      return { ...p, weeksOfCover: s.weeksOfCover, orderNow: s.orderNow, orderQty: s.orderQty, safetyStock: s.safetyStock, reorderPoint: s.reorderPoint, firstShortageDate: s.firstShortageDate };
+      return {
+        ...p,
+        weeksOfCover: s.weeksOfCover,
+        orderNow: s.orderNow,
+        orderQty: s.orderQty,
+        safetyStock: s.safetyStock,
+        reorderPoint: s.reorderPoint,
+        firstShortageDate: s.firstShortageDate,
+      };
     }),
     problems: demand.problems,
   });
@@ -36,9 +49,15 @@ partsRouter.post('/', requireProject('parts.edit'), async (req, res) => {
   const me = requireUser(req);
   const input = partInputSchema.parse(req.body);
   const part = await db.transaction(async (tx) => {
-    const [dup] = await tx.select({ id: parts.id }).from(parts).where(and(eq(parts.projectId, projectId), eq(parts.code, input.code)));
+    const [dup] = await tx
+      .select({ id: parts.id })
+      .from(parts)
+      .where(and(eq(parts.projectId, projectId), eq(parts.code, input.code)));
     if (dup) throw conflict(`There is already a part with code ${input.code}.`);
-    const [row] = await tx.insert(parts).values({ ...input, unitCost: input.unitCost.toFixed(2), projectId }).returning();
+    const [row] = await tx
+      .insert(parts)
+      .values({ ...input, unitCost: input.unitCost.toFixed(2), projectId })
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'part', entityId: row.id, action: 'create', after: row });
     return row;
   });
@@ -55,20 +74,35 @@ partsRouter.put('/workshop', requireProject('parts.edit'), async (req, res) => {
   const me = requireUser(req);
   const input = workshopSettingsInputSchema.parse(req.body);
   await db.transaction(async (tx) => {
-    const catalogue = await tx.select({ id: parts.id, code: parts.code, kind: parts.kind }).from(parts).where(eq(parts.projectId, projectId));
+    const catalogue = await tx
+      .select({ id: parts.id, code: parts.code, kind: parts.kind })
+      .from(parts)
+      .where(eq(parts.projectId, projectId));
     const kindOf = new Map(catalogue.map((p) => [p.id, p]));
     for (const [assemblyId, bom] of Object.entries(input.boms)) {
       const assembly = kindOf.get(assemblyId);
-      if (!assembly) throw badRequest('A bill of materials names a cutter assembly that is not in this drive’s catalogue.', [{ path: `boms.${assemblyId}`, message: 'Unknown part.' }]);
-      if (assembly.kind !== 'cutter-assembly') throw badRequest(`${assembly.code} is not a complete cutter assembly, so it has no workshop bill of materials.`, [{ path: `boms.${assemblyId}`, message: 'Not a cutter assembly.' }]);
+      if (!assembly)
+        throw badRequest('A bill of materials names a cutter assembly that is not in this drive’s catalogue.', [
+          { path: `boms.${assemblyId}`, message: 'Unknown part.' },
+        ]);
+      if (assembly.kind !== 'cutter-assembly')
+        throw badRequest(`${assembly.code} is not a complete cutter assembly, so it has no workshop bill of materials.`, [
+          { path: `boms.${assemblyId}`, message: 'Not a cutter assembly.' },
+        ]);
       for (const [condition, outcome] of Object.entries(bom)) {
         if (outcome === 'scrap') continue;
         const unknown = outcome.findIndex((l) => !kindOf.has(l.partId));
-        if (unknown >= 0) throw badRequest(`The bill of materials of ${assembly.code} names a part that is not in this drive’s catalogue.`, [{ path: `boms.${assemblyId}.${condition}.${unknown}.partId`, message: 'Unknown part.' }]);
+        if (unknown >= 0)
+          throw badRequest(`The bill of materials of ${assembly.code} names a part that is not in this drive’s catalogue.`, [
+            { path: `boms.${assemblyId}.${condition}.${unknown}.partId`, message: 'Unknown part.' },
+          ]);
       }
     }
     const before = await loadWorkshopSettings(tx, projectId);
-    await tx.insert(workshopSettings).values({ projectId, ...input }).onConflictDoUpdate({ target: workshopSettings.projectId, set: { ...input, updatedAt: sql`now()` } });
+    await tx
+      .insert(workshopSettings)
+      .values({ projectId, ...input })
+      .onConflictDoUpdate({ target: workshopSettings.projectId, set: { ...input, updatedAt: sql`now()` } });
     await audit(tx, { userId: me.id, projectId, entity: 'workshop_settings', entityId: projectId, action: 'update', before, after: input });
   });
   res.json(await loadWorkshopSettings(db, projectId));
@@ -85,7 +119,10 @@ partsRouter.get('/demand/suggestions.csv', requireProject('parts.read'), async (
   const projectId = projectOf(req.params);
   const query = demandQuerySchema.parse(req.query);
   const demand = await db.transaction((tx) => computePartsDemand(tx, projectId, new Date(), query));
-  res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': `attachment; filename="order-suggestions-${demand.startDate}.csv"` });
+  res.set({
+    'Content-Type': 'text/csv; charset=utf-8',
+    'Content-Disposition': `attachment; filename="order-suggestions-${demand.startDate}.csv"`,
+  });
   const [header, ...rows] = suggestionsCsvRows(demand);
   res.send(writeCsv(header.map(String), rows));
 });
@@ -97,14 +134,24 @@ async function listOrders(tx: DbOrTx, projectId: string, orderId?: string) {
     .from(purchaseOrders)
     .where(and(eq(purchaseOrders.projectId, projectId), orderId ? eq(purchaseOrders.id, orderId) : undefined))
     .orderBy(desc(purchaseOrders.orderedAt), desc(purchaseOrders.number));
-  const lines = orders.length === 0 ? [] : await tx
-    .select({ line: purchaseOrderLines, code: parts.code, name: parts.name })
-    .from(purchaseOrderLines)
-    .innerJoin(parts, eq(parts.id, purchaseOrderLines.partId))
-    .where(inArray(purchaseOrderLines.purchaseOrderId, orders.map((o) => o.id)))
-    .orderBy(asc(purchaseOrderLines.dueDate), asc(parts.code));
+  const lines =
+    orders.length === 0
+      ? []
+      : await tx
+          .select({ line: purchaseOrderLines, code: parts.code, name: parts.name })
+          .from(purchaseOrderLines)
+          .innerJoin(parts, eq(parts.id, purchaseOrderLines.partId))
+          .where(
+            inArray(
+              purchaseOrderLines.purchaseOrderId,
+              orders.map((o) => o.id),
+            ),
+          )
+          .orderBy(asc(purchaseOrderLines.dueDate), asc(parts.code));
   return orders.map((o) => {
-    const own = lines.filter((l) => l.line.purchaseOrderId === o.id).map((l) => ({ ...l.line, partCode: l.code, partName: l.name, qtyOpen: l.line.qtyOrdered - l.line.qtyReceived }));
+    const own = lines
+      .filter((l) => l.line.purchaseOrderId === o.id)
+      .map((l) => ({ ...l.line, partCode: l.code, partName: l.name, qtyOpen: l.line.qtyOrdered - l.line.qtyReceived }));
     return { ...o, open: own.some((l) => l.qtyOpen > 0), lines: own };
   });
 }
@@ -118,12 +165,36 @@ partsRouter.post('/orders', requireProject('parts.edit'), async (req, res) => {
   const me = requireUser(req);
   const input = purchaseOrderInputSchema.parse(req.body);
   const orderId = await db.transaction(async (tx) => {
-    const known = new Set((await tx.select({ id: parts.id }).from(parts).where(and(eq(parts.projectId, projectId), inArray(parts.id, input.lines.map((l) => l.partId))))).map((p) => p.id));
+    const known = new Set(
+      (
+        await tx
+          .select({ id: parts.id })
+          .from(parts)
+          .where(
+            and(
+              eq(parts.projectId, projectId),
+              inArray(
+                parts.id,
+                input.lines.map((l) => l.partId),
+              ),
+            ),
+          )
+      ).map((p) => p.id),
+    );
     const unknown = input.lines.findIndex((l) => !known.has(l.partId));
-    if (unknown >= 0) throw badRequest(`Line ${unknown + 1} names a part that is not in this drive’s catalogue.`, [{ path: `lines.${unknown}.partId`, message: 'Unknown part.' }]);
-    const [dup] = await tx.select({ id: purchaseOrders.id }).from(purchaseOrders).where(and(eq(purchaseOrders.projectId, projectId), eq(purchaseOrders.number, input.number)));
+    if (unknown >= 0)
+      throw badRequest(`Line ${unknown + 1} names a part that is not in this drive’s catalogue.`, [
+        { path: `lines.${unknown}.partId`, message: 'Unknown part.' },
+      ]);
+    const [dup] = await tx
+      .select({ id: purchaseOrders.id })
+      .from(purchaseOrders)
+      .where(and(eq(purchaseOrders.projectId, projectId), eq(purchaseOrders.number, input.number)));
     if (dup) throw conflict(`There is already an order numbered ${input.number}.`);
-    const [order] = await tx.insert(purchaseOrders).values({ projectId, number: input.number, supplier: input.supplier, note: input.note, createdBy: me.id }).returning();
+    const [order] = await tx
+      .insert(purchaseOrders)
+      .values({ projectId, number: input.number, supplier: input.supplier, note: input.note, createdBy: me.id })
+      .returning();
     await tx.insert(purchaseOrderLines).values(input.lines.map((l) => ({ ...l, purchaseOrderId: order.id })));
     await audit(tx, { userId: me.id, projectId, entity: 'purchase_order', entityId: order.id, action: 'create', after: input });
     return order.id;
@@ -161,9 +232,31 @@ partsRouter.post('/orders/:orderId/lines/:lineId/receive', requireProject('parts
         [{ path: 'qty', message: `At most ${open}.` }],
       );
     }
-    const [after] = await tx.update(purchaseOrderLines).set({ qtyReceived: line.qtyReceived + input.qty }).where(eq(purchaseOrderLines.id, lineId)).returning();
-    await tx.insert(stockMovements).values({ projectId, partId: line.partId, qty: input.qty, kind: 'receipt', note: input.note || `Order ${found.number}`, purchaseOrderLineId: lineId, userId: me.id });
-    await audit(tx, { userId: me.id, projectId, entity: 'purchase_order_line', entityId: lineId, action: 'receive', before: line, after: { ...after, received: input.qty, note: input.note } });
+    const [after] = await tx
+      .update(purchaseOrderLines)
+      .set({ qtyReceived: line.qtyReceived + input.qty })
+      .where(eq(purchaseOrderLines.id, lineId))
+      .returning();
+    await tx
+      .insert(stockMovements)
+      .values({
+        projectId,
+        partId: line.partId,
+        qty: input.qty,
+        kind: 'receipt',
+        note: input.note || `Order ${found.number}`,
+        purchaseOrderLineId: lineId,
+        userId: me.id,
+      });
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'purchase_order_line',
+      entityId: lineId,
+      action: 'receive',
+      before: line,
+      after: { ...after, received: input.qty, note: input.note },
+    });
   });
   res.json((await listOrders(db, projectId, orderId))[0]);
 });
@@ -174,11 +267,22 @@ partsRouter.put('/:partId', requireProject('parts.edit'), async (req, res) => {
   const me = requireUser(req);
   const input = partInputSchema.parse(req.body);
   const part = await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(parts).where(and(eq(parts.id, partId), eq(parts.projectId, projectId))).for('update');
+    const [before] = await tx
+      .select()
+      .from(parts)
+      .where(and(eq(parts.id, partId), eq(parts.projectId, projectId)))
+      .for('update');
     if (!before) throw notFound('That part');
-    const [dup] = await tx.select({ id: parts.id }).from(parts).where(and(eq(parts.projectId, projectId), eq(parts.code, input.code)));
+    const [dup] = await tx
+      .select({ id: parts.id })
+      .from(parts)
+      .where(and(eq(parts.projectId, projectId), eq(parts.code, input.code)));
     if (dup && dup.id !== partId) throw conflict(`There is already a part with code ${input.code}.`);
-    const [after] = await tx.update(parts).set({ ...input, unitCost: input.unitCost.toFixed(2) }).where(eq(parts.id, partId)).returning();
+    const [after] = await tx
+      .update(parts)
+      .set({ ...input, unitCost: input.unitCost.toFixed(2) })
+      .where(eq(parts.id, partId))
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'part', entityId: partId, action: 'update', before, after });
     return after;
   });
@@ -191,13 +295,22 @@ partsRouter.delete('/:partId', requireProject('parts.edit'), async (req, res) =>
   const partId = idParam(req.params, 'partId', 'That part');
   const me = requireUser(req);
   await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(parts).where(and(eq(parts.id, partId), eq(parts.projectId, projectId))).for('update');
+    const [before] = await tx
+      .select()
+      .from(parts)
+      .where(and(eq(parts.id, partId), eq(parts.projectId, projectId)))
+      .for('update');
     if (!before) throw notFound('That part');
     const [moved] = await tx.select({ id: stockMovements.id }).from(stockMovements).where(eq(stockMovements.partId, partId)).limit(1);
-    const [ordered] = await tx.select({ id: purchaseOrderLines.id }).from(purchaseOrderLines).where(eq(purchaseOrderLines.partId, partId)).limit(1);
+    const [ordered] = await tx
+      .select({ id: purchaseOrderLines.id })
+      .from(purchaseOrderLines)
+      .where(eq(purchaseOrderLines.partId, partId))
+      .limit(1);
     if (moved || ordered) throw conflict(`${before.code} has stock movements or order lines, so it stays in the catalogue for the record.`);
     const settings = await loadWorkshopSettings(tx, projectId);
-    if (JSON.stringify(settings.boms).includes(partId)) throw conflict(`${before.code} is in the workshop bills of materials: take it out there first.`);
+    if (JSON.stringify(settings.boms).includes(partId))
+      throw conflict(`${before.code} is in the workshop bills of materials: take it out there first.`);
     await tx.delete(parts).where(eq(parts.id, partId));
     await audit(tx, { userId: me.id, projectId, entity: 'part', entityId: partId, action: 'delete', before });
   });
@@ -217,7 +330,15 @@ partsRouter.post('/:partId/count', requireProject('parts.edit'), async (req, res
     if (difference !== 0) {
       await tx.insert(stockMovements).values({ projectId, partId, qty: difference, kind: 'count', note: input.note, userId: me.id });
     }
-    await audit(tx, { userId: me.id, projectId, entity: 'part', entityId: partId, action: 'count', before: { onHand: stock.onHand }, after: { onHand: input.countedQty, difference, note: input.note } });
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'part',
+      entityId: partId,
+      action: 'count',
+      before: { onHand: stock.onHand },
+      after: { onHand: input.countedQty, difference, note: input.note },
+    });
     return { partId, onHand: input.countedQty, difference };
   });
   res.json(result);
@@ -227,8 +348,16 @@ partsRouter.post('/:partId/count', requireProject('parts.edit'), async (req, res
 partsRouter.get('/:partId/movements', requireProject('parts.read'), async (req, res) => {
   const projectId = projectOf(req.params);
   const partId = idParam(req.params, 'partId', 'That part');
-  const [part] = await db.select().from(parts).where(and(eq(parts.id, partId), eq(parts.projectId, projectId)));
+  const [part] = await db
+    .select()
+    .from(parts)
+    .where(and(eq(parts.id, partId), eq(parts.projectId, projectId)));
   if (!part) throw notFound('That part');
-  const movements = await db.select().from(stockMovements).where(eq(stockMovements.partId, partId)).orderBy(desc(stockMovements.at), desc(stockMovements.id)).limit(200);
+  const movements = await db
+    .select()
+    .from(stockMovements)
+    .where(eq(stockMovements.partId, partId))
+    .orderBy(desc(stockMovements.at), desc(stockMovements.id))
+    .limit(200);
   res.json({ part: { ...part, unitCost: Number(part.unitCost) }, movements });
 });

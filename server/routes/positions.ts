@@ -26,10 +26,14 @@ function layoutIssues(list: PositionInput[], excavatedDiameterM: number, rowLabe
   const seen = new Map<number, number>();
   list.forEach((p, i) => {
     const first = seen.get(p.number);
-    if (first !== undefined) issues.push({ path: `${rowLabel(i)}.number`, message: `Position ${p.number} appears twice (also ${rowLabel(first)}).` });
+    if (first !== undefined)
+      issues.push({ path: `${rowLabel(i)}.number`, message: `Position ${p.number} appears twice (also ${rowLabel(first)}).` });
     else seen.set(p.number, i);
     if (p.trackRadiusMm > maxRadiusMm) {
-      issues.push({ path: `${rowLabel(i)}.trackRadiusMm`, message: `Track radius ${p.trackRadiusMm} mm is beyond the excavated radius (${maxRadiusMm} mm).` });
+      issues.push({
+        path: `${rowLabel(i)}.trackRadiusMm`,
+        message: `Track radius ${p.trackRadiusMm} mm is beyond the excavated radius (${maxRadiusMm} mm).`,
+      });
     }
   });
   return issues;
@@ -48,19 +52,31 @@ async function saveLayout(projectId: string, userId: string, list: PositionInput
     for (const p of list) {
       const before = byNumber.get(p.number);
       if (!before) {
-        const [row] = await tx.insert(positions).values({ ...p, projectId }).returning();
+        const [row] = await tx
+          .insert(positions)
+          .values({ ...p, projectId })
+          .returning();
         await audit(tx, { userId, projectId, entity: 'position', entityId: row.id, action: 'create', after: row });
         created++;
         continue;
       }
       const changed = (Object.keys(p) as (keyof PositionInput)[]).some((k) => p[k] !== before[k]);
       if (!changed) continue;
-      const [after] = await tx.update(positions).set({ ...p, updatedAt: sql`now()` }).where(eq(positions.id, before.id)).returning();
+      const [after] = await tx
+        .update(positions)
+        .set({ ...p, updatedAt: sql`now()` })
+        .where(eq(positions.id, before.id))
+        .returning();
       // A new radius changes every distance the position's discs have rolled.
       if (before.trackRadiusMm !== p.trackRadiusMm) await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: false });
       await audit(tx, {
-        userId, projectId, entity: 'position', entityId: before.id,
-        action: before.wearLimitMm !== p.wearLimitMm ? 'change_wear_limit' : 'update', before, after,
+        userId,
+        projectId,
+        entity: 'position',
+        entityId: before.id,
+        action: before.wearLimitMm !== p.wearLimitMm ? 'change_wear_limit' : 'update',
+        before,
+        after,
       });
       updated++;
     }
@@ -87,11 +103,18 @@ positionsRouter.post('/import', requireProject('layout.edit'), async (req, res) 
   const fieldOf = new Map(Object.entries(result.detected.mapping).map(([field, header]) => [header, field]));
   if (!result.ok) {
     const refusal = csvRefusal(result.errors, result.errorCount, result.detected);
-    const issues = refusal.issues.map((issue) => (issue.row ? { ...issue, path: `row ${issue.row}${issue.column ? `.${fieldOf.get(issue.column) ?? issue.column}` : ''}` } : issue));
+    const issues = refusal.issues.map((issue) =>
+      issue.row ? { ...issue, path: `row ${issue.row}${issue.column ? `.${fieldOf.get(issue.column) ?? issue.column}` : ''}` } : issue,
+    );
     throw new HttpError(refusal.status, refusal.message, issues, refusal.details);
   }
   const rows = result.rows;
-  const saved = await saveLayout(projectId, requireUser(req).id, rows.map((r) => r.data), (i) => `row ${rows[i].line}`);
+  const saved = await saveLayout(
+    projectId,
+    requireUser(req).id,
+    rows.map((r) => r.data),
+    (i) => `row ${rows[i].line}`,
+  );
   res.json({ ...saved, warnings: unusedColumnWarnings(result.unusedColumns, { what: 'a cutterhead layout', canMap: false }) });
 });
 
@@ -99,7 +122,10 @@ positionsRouter.post('/import', requireProject('layout.edit'), async (req, res) 
 positionsRouter.get('/:positionId', requireProject('layout.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const positionId = idParam(req.params, 'positionId', 'That position');
-  const [position] = await db.select().from(positions).where(and(eq(positions.id, positionId), eq(positions.projectId, projectId)));
+  const [position] = await db
+    .select()
+    .from(positions)
+    .where(and(eq(positions.id, positionId), eq(positions.projectId, projectId)));
   if (!position) throw notFound('That position');
   const periods = await db
     .select({ fitting: fittings, serial: cutters.serial })

@@ -20,7 +20,11 @@ projectsRouter.get('/', requireSignedIn, async (req, res) => {
 });
 
 projectsRouter.get('/:projectId', requireProject('project.read'), async (req, res) => {
-  const [project] = await db.select().from(projects).where(eq(projects.id, String(req.params.projectId))).limit(1);
+  const [project] = await db
+    .select()
+    .from(projects)
+    .where(eq(projects.id, String(req.params.projectId)))
+    .limit(1);
   if (!project) throw notFound('That project');
   res.json({ ...project, role: req.projectRole });
 });

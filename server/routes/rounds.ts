@@ -37,12 +37,23 @@ roundsRouter.post('/', requireProject('rounds.record'), async (req, res) => {
 roundsRouter.get('/:roundId', requireProject('rounds.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const roundId = idParam(req.params, 'roundId', 'That inspection round');
-  const [round] = await db.select().from(inspectionRounds).where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId)));
+  const [round] = await db
+    .select()
+    .from(inspectionRounds)
+    .where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId)));
   if (!round) throw notFound('That inspection round');
   const positionList = await listPositions(projectId);
   const limits = new Map(positionList.map((p) => [p.id, p.wearLimitMm]));
-  const entries = await db.select().from(inspectionEntries).where(eq(inspectionEntries.roundId, roundId)).orderBy(asc(inspectionEntries.recordedAt));
-  const photoRows = await db.select({ id: photos.id, entryId: photos.entryId }).from(photos).innerJoin(inspectionEntries, eq(inspectionEntries.id, photos.entryId)).where(eq(inspectionEntries.roundId, roundId));
+  const entries = await db
+    .select()
+    .from(inspectionEntries)
+    .where(eq(inspectionEntries.roundId, roundId))
+    .orderBy(asc(inspectionEntries.recordedAt));
+  const photoRows = await db
+    .select({ id: photos.id, entryId: photos.entryId })
+    .from(photos)
+    .innerJoin(inspectionEntries, eq(inspectionEntries.id, photos.entryId))
+    .where(eq(inspectionEntries.roundId, roundId));
   const [previous] = await db
     .select({ id: inspectionRounds.id })
     .from(inspectionRounds)
@@ -50,12 +61,22 @@ roundsRouter.get('/:roundId', requireProject('rounds.read'), async (req, res) =>
     .orderBy(desc(inspectionRounds.startedAt))
     .limit(1);
   const lastOrder = previous
-    ? (await db.select({ positionId: inspectionEntries.positionId }).from(inspectionEntries).where(eq(inspectionEntries.roundId, previous.id)).orderBy(asc(inspectionEntries.recordedAt))).map((r) => r.positionId)
+    ? (
+        await db
+          .select({ positionId: inspectionEntries.positionId })
+          .from(inspectionEntries)
+          .where(eq(inspectionEntries.roundId, previous.id))
+          .orderBy(asc(inspectionEntries.recordedAt))
+      ).map((r) => r.positionId)
     : [];
   res.json({
     round,
     positions: positionList,
-    entries: entries.map((e) => ({ ...e, ...entryFlags(e, limits.get(e.positionId) ?? Infinity), photoIds: photoRows.filter((p) => p.entryId === e.id).map((p) => p.id) })),
+    entries: entries.map((e) => ({
+      ...e,
+      ...entryFlags(e, limits.get(e.positionId) ?? Infinity),
+      photoIds: photoRows.filter((p) => p.entryId === e.id).map((p) => p.id),
+    })),
     lastRoundOrder: lastOrder,
   });
 });
@@ -74,10 +95,18 @@ roundsRouter.post('/:roundId/close', requireProject('rounds.record'), async (req
   const roundId = idParam(req.params, 'roundId', 'That inspection round');
   const me = requireUser(req);
   const round = await db.transaction(async (tx) => {
-    const [before] = await tx.select().from(inspectionRounds).where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId))).for('update');
+    const [before] = await tx
+      .select()
+      .from(inspectionRounds)
+      .where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId)))
+      .for('update');
     if (!before) throw notFound('That inspection round');
     if (before.closedAt) throw conflict('This round is already closed.');
-    const [after] = await tx.update(inspectionRounds).set({ closedAt: sql`now()` }).where(eq(inspectionRounds.id, roundId)).returning();
+    const [after] = await tx
+      .update(inspectionRounds)
+      .set({ closedAt: sql`now()` })
+      .where(eq(inspectionRounds.id, roundId))
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'inspection_round', entityId: roundId, action: 'close', before, after });
     return after;
   });
@@ -98,4 +127,3 @@ roundsRouter.get('/:roundId/history', requireProject('rounds.read'), async (req,
     order by a.at`);
   res.json(rows.rows);
 });
-

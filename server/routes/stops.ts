@@ -1,8 +1,15 @@
 import { and, eq, inArray } from 'drizzle-orm';
 import { Router, type Request } from 'express';
 import {
-  cancelStopInputSchema, canStop, completeStopInputSchema, createStopInputSchema, scheduleStopInputSchema, startStopInputSchema, stopListQuerySchema,
-  stopPlanQuerySchema, type StopAction,
+  cancelStopInputSchema,
+  canStop,
+  completeStopInputSchema,
+  createStopInputSchema,
+  scheduleStopInputSchema,
+  startStopInputSchema,
+  stopListQuerySchema,
+  stopPlanQuerySchema,
+  type StopAction,
 } from '../../shared/schemas/stop';
 import { formatChainage } from '../../shared/domain/chainage';
 import { workPackText } from '../../shared/domain/work-pack';
@@ -24,9 +31,18 @@ export const stopsRouter = Router({ mergeParams: true });
 type Stop = typeof stops.$inferSelect;
 type Project = typeof projects.$inferSelect;
 
-const ids = (req: Request) => ({ projectId: idParam(req.params, 'projectId', 'That project'), stopId: idParam(req.params, 'stopId', 'That stop') });
+const ids = (req: Request) => ({
+  projectId: idParam(req.params, 'projectId', 'That project'),
+  stopId: idParam(req.params, 'stopId', 'That stop'),
+});
 
-const pastTense: Record<StopAction, string> = { schedule: 'scheduled', publish: 'published', start: 'started', complete: 'completed', cancel: 'cancelled' };
+const pastTense: Record<StopAction, string> = {
+  schedule: 'scheduled',
+  publish: 'published',
+  start: 'started',
+  complete: 'completed',
+  cancel: 'cancelled',
+};
 
 /** Why `action` cannot happen to the stop in its present state, in words that say what to do instead. */
 function refusal(action: StopAction, stop: Stop, timeZone: string): string {
@@ -49,7 +65,11 @@ function refusal(action: StopAction, stop: Stop, timeZone: string): string {
 
 /** The stop and its project, the stop row locked for the rest of the transaction; 409 when `action` does not fit its state. */
 async function lockStop(tx: DbOrTx, projectId: string, stopId: string, action: StopAction): Promise<{ stop: Stop; project: Project }> {
-  const [stop] = await tx.select().from(stops).where(and(eq(stops.id, stopId), eq(stops.projectId, projectId))).for('update');
+  const [stop] = await tx
+    .select()
+    .from(stops)
+    .where(and(eq(stops.id, stopId), eq(stops.projectId, projectId)))
+    .for('update');
   if (!stop) throw notFound('That stop');
   const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
   if (!canStop(action, stop.status)) throw conflict(refusal(action, stop, project.siteTimeZone));
@@ -87,26 +107,74 @@ stopsRouter.post('/', requireProject('stops.plan'), async (req, res) => {
   const pack = await db.transaction(async (tx) => {
     const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
     const wanted = input.positions.map((p) => p.positionId);
-    const known = new Set((await tx.select({ id: positions.id }).from(positions).where(and(eq(positions.projectId, projectId), inArray(positions.id, wanted)))).map((p) => p.id));
-    const unknown = wanted.flatMap((id, i) => (known.has(id) ? [] : [{ path: `positions.${i}.positionId`, message: 'Not a position of this drive’s cutterhead.' }]));
-    if (unknown.length > 0) throw badRequest(`${unknown.length} of the positions are not on this drive’s cutterhead. Reload the plan and propose the stop again.`, unknown);
+    const known = new Set(
+      (
+        await tx
+          .select({ id: positions.id })
+          .from(positions)
+          .where(and(eq(positions.projectId, projectId), inArray(positions.id, wanted)))
+      ).map((p) => p.id),
+    );
+    const unknown = wanted.flatMap((id, i) =>
+      known.has(id) ? [] : [{ path: `positions.${i}.positionId`, message: 'Not a position of this drive’s cutterhead.' }],
+    );
+    if (unknown.length > 0)
+      throw badRequest(
+        `${unknown.length} of the positions are not on this drive’s cutterhead. Reload the plan and propose the stop again.`,
+        unknown,
+      );
     const place = await describeStopPlace(tx, project, input.chainageM);
     const at = formatChainage(input.chainageM);
-    if (!place.allowed) throw badRequest(`No stop may be made at ${at}: ${place.reason}. Choose a chainage in a section where stops are allowed.`, [{ path: 'chainageM', message: `No stop allowed at ${at}.` }]);
+    if (!place.allowed)
+      throw badRequest(`No stop may be made at ${at}: ${place.reason}. Choose a chainage in a section where stops are allowed.`, [
+        { path: 'chainageM', message: `No stop allowed at ${at}.` },
+      ]);
     if (place.machine && place.aheadM != null && place.aheadM < -1e-6) {
-      throw badRequest(`${at} is behind the machine (now at ${formatChainage(place.machine.chainageM)}): a stop can only be made where the machine has yet to reach.`, [{ path: 'chainageM', message: 'Behind the machine.' }]);
+      throw badRequest(
+        `${at} is behind the machine (now at ${formatChainage(place.machine.chainageM)}): a stop can only be made where the machine has yet to reach.`,
+        [{ path: 'chainageM', message: 'Behind the machine.' }],
+      );
     }
     const [same] = await tx
       .select({ id: stops.id, status: stops.status })
       .from(stops)
-      .where(and(eq(stops.projectId, projectId), eq(stops.chainageM, input.chainageM), inArray(stops.status, ['proposed', 'scheduled', 'in_progress'])));
-    if (same) throw conflict(`There is already an open stop at ${at} (${same.status.replace('_', ' ')}). Open that stop instead of proposing another.`);
-    const [stop] = await tx.insert(stops).values({
-      projectId, source: 'planner', status: 'proposed', chainageM: input.chainageM, ringNumber: place.ringNumber, compressedAir: input.compressedAir,
-      workingPressureBar: place.workingPressureBar, expectedHours: input.expectedHours, notes: input.notes, createdBy: me.id,
-    }).returning();
-    await tx.insert(stopPositions).values(input.positions.map((p) => ({ stopId: stop.id, positionId: p.positionId, expectedWearMm: p.expectedWearMm })));
-    await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stop.id, action: 'create', after: { ...stop, positions: input.positions } });
+      .where(
+        and(
+          eq(stops.projectId, projectId),
+          eq(stops.chainageM, input.chainageM),
+          inArray(stops.status, ['proposed', 'scheduled', 'in_progress']),
+        ),
+      );
+    if (same)
+      throw conflict(
+        `There is already an open stop at ${at} (${same.status.replace('_', ' ')}). Open that stop instead of proposing another.`,
+      );
+    const [stop] = await tx
+      .insert(stops)
+      .values({
+        projectId,
+        source: 'planner',
+        status: 'proposed',
+        chainageM: input.chainageM,
+        ringNumber: place.ringNumber,
+        compressedAir: input.compressedAir,
+        workingPressureBar: place.workingPressureBar,
+        expectedHours: input.expectedHours,
+        notes: input.notes,
+        createdBy: me.id,
+      })
+      .returning();
+    await tx
+      .insert(stopPositions)
+      .values(input.positions.map((p) => ({ stopId: stop.id, positionId: p.positionId, expectedWearMm: p.expectedWearMm })));
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'stop',
+      entityId: stop.id,
+      action: 'create',
+      after: { ...stop, positions: input.positions },
+    });
     return loadWorkPack(tx, projectId, stop.id);
   });
   res.status(201).json(pack);
@@ -125,15 +193,29 @@ stopsRouter.post('/:stopId/schedule', requireProject('stops.plan'), async (req, 
   const input = scheduleStopInputSchema.parse(req.body);
   const pack = await db.transaction(async (tx) => {
     const { stop: before } = await lockStop(tx, projectId, stopId, 'schedule');
-    const [crew] = await tx.select({ id: crews.id }).from(crews).where(and(eq(crews.id, input.crewId), eq(crews.projectId, projectId)));
-    if (!crew) throw badRequest('That crew is not a crew of this drive. Choose one from the list.', [{ path: 'crewId', message: 'Not a crew of this drive.' }]);
+    const [crew] = await tx
+      .select({ id: crews.id })
+      .from(crews)
+      .where(and(eq(crews.id, input.crewId), eq(crews.projectId, projectId)));
+    if (!crew)
+      throw badRequest('That crew is not a crew of this drive. Choose one from the list.', [
+        { path: 'crewId', message: 'Not a crew of this drive.' },
+      ]);
     const plannedStart = new Date(input.plannedStart);
-    const changed = before.plannedStart?.getTime() !== plannedStart.getTime() || before.crewId !== input.crewId
-      || before.expectedHours !== input.expectedHours || before.compressedAir !== input.compressedAir;
+    const changed =
+      before.plannedStart?.getTime() !== plannedStart.getTime() ||
+      before.crewId !== input.crewId ||
+      before.expectedHours !== input.expectedHours ||
+      before.compressedAir !== input.compressedAir;
     const [after] = await tx
       .update(stops)
       .set({
-        status: 'scheduled', plannedStart, expectedHours: input.expectedHours, crewId: input.crewId, compressedAir: input.compressedAir, updatedAt: new Date(),
+        status: 'scheduled',
+        plannedStart,
+        expectedHours: input.expectedHours,
+        crewId: input.crewId,
+        compressedAir: input.compressedAir,
+        updatedAt: new Date(),
         ...(changed ? { publishedAt: null } : {}),
       })
       .where(eq(stops.id, stopId))
@@ -153,20 +235,33 @@ stopsRouter.post('/:stopId/publish', requireProject('stops.plan'), async (req, r
   const pack = await db.transaction(async (tx) => {
     const { stop: before, project } = await lockStop(tx, projectId, stopId, 'publish');
     if (before.publishedAt) {
-      throw conflict(`This stop was already published on ${formatSiteDateTime(before.publishedAt, project.siteTimeZone)}; the crew has the work pack. Change its schedule to publish it again.`);
+      throw conflict(
+        `This stop was already published on ${formatSiteDateTime(before.publishedAt, project.siteTimeZone)}; the crew has the work pack. Change its schedule to publish it again.`,
+      );
     }
     const draft = await loadWorkPack(tx, projectId, stopId);
     if (!draft.crew) throw conflict('This stop has no crew (the crew may have been removed). Schedule it with a crew, then publish it.');
-    if (draft.crew.members.length === 0) throw conflict(`${draft.crew.name} has no members to tell. Ask the administrator to add the crew’s e-mail addresses, then publish.`);
+    if (draft.crew.members.length === 0)
+      throw conflict(`${draft.crew.name} has no members to tell. Ask the administrator to add the crew’s e-mail addresses, then publish.`);
     const [after] = await tx.update(stops).set({ publishedAt: new Date(), updatedAt: new Date() }).where(eq(stops.id, stopId)).returning();
     const published = await loadWorkPack(tx, projectId, stopId);
     const when = after.plannedStart ? formatSiteDateTime(after.plannedStart, project.siteTimeZone, { withZone: true }) : '';
     const to = await mailCrew(
-      tx, project, published,
+      tx,
+      project,
+      published,
       `${project.name}: cutter stop at ${formatChainage(after.chainageM)}, ${when}`,
       `You are on the crew of this intervention stop.\n\n${workPackText(published, project, stopUrl(req, projectId, stopId))}`,
     );
-    await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'publish', before, after: { ...after, mailedTo: to } });
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'stop',
+      entityId: stopId,
+      action: 'publish',
+      before,
+      after: { ...after, mailedTo: to },
+    });
     return published;
   });
   kickMailDelivery();
@@ -180,7 +275,11 @@ stopsRouter.post('/:stopId/start', requireProject('stops.run'), async (req, res)
   const pack = await db.transaction(async (tx) => {
     const { stop: before } = await lockStop(tx, projectId, stopId, 'start');
     const actualStart = input.actualStart ? new Date(input.actualStart) : new Date();
-    const [after] = await tx.update(stops).set({ status: 'in_progress', actualStart, updatedAt: new Date() }).where(eq(stops.id, stopId)).returning();
+    const [after] = await tx
+      .update(stops)
+      .set({ status: 'in_progress', actualStart, updatedAt: new Date() })
+      .where(eq(stops.id, stopId))
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'start', before, after });
     return loadWorkPack(tx, projectId, stopId);
   });
@@ -195,14 +294,27 @@ stopsRouter.post('/:stopId/complete', requireProject('stops.run'), async (req, r
   const pack = await db.transaction(async (tx) => {
     const { stop: before, project } = await lockStop(tx, projectId, stopId, 'complete');
     if (input.roundId) {
-      const [round] = await tx.select({ id: inspectionRounds.id }).from(inspectionRounds).where(and(eq(inspectionRounds.id, input.roundId), eq(inspectionRounds.projectId, projectId)));
-      if (!round) throw badRequest('That inspection round is not a round of this drive. Choose one from the list.', [{ path: 'roundId', message: 'Not a round of this drive.' }]);
+      const [round] = await tx
+        .select({ id: inspectionRounds.id })
+        .from(inspectionRounds)
+        .where(and(eq(inspectionRounds.id, input.roundId), eq(inspectionRounds.projectId, projectId)));
+      if (!round)
+        throw badRequest('That inspection round is not a round of this drive. Choose one from the list.', [
+          { path: 'roundId', message: 'Not a round of this drive.' },
+        ]);
     }
     const actualEnd = input.actualEnd ? new Date(input.actualEnd) : new Date();
     if (before.actualStart && actualEnd < before.actualStart) {
-      throw badRequest(`The end is before the start (${formatSiteDateTime(before.actualStart, project.siteTimeZone)}). Check the date and time.`, [{ path: 'actualEnd', message: 'Before the start.' }]);
+      throw badRequest(
+        `The end is before the start (${formatSiteDateTime(before.actualStart, project.siteTimeZone)}). Check the date and time.`,
+        [{ path: 'actualEnd', message: 'Before the start.' }],
+      );
     }
-    const [after] = await tx.update(stops).set({ status: 'done', actualEnd, roundId: input.roundId, updatedAt: new Date() }).where(eq(stops.id, stopId)).returning();
+    const [after] = await tx
+      .update(stops)
+      .set({ status: 'done', actualEnd, roundId: input.roundId, updatedAt: new Date() })
+      .where(eq(stops.id, stopId))
+      .returning();
     await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'complete', before, after });
     return loadWorkPack(tx, projectId, stopId);
   });
@@ -217,17 +329,31 @@ stopsRouter.post('/:stopId/cancel', requireProject('stops.plan'), async (req, re
   let mailed = false;
   const pack = await db.transaction(async (tx) => {
     const { stop: before, project } = await lockStop(tx, projectId, stopId, 'cancel');
-    const [after] = await tx.update(stops).set({ status: 'cancelled', cancelReason: input.reason, updatedAt: new Date() }).where(eq(stops.id, stopId)).returning();
+    const [after] = await tx
+      .update(stops)
+      .set({ status: 'cancelled', cancelReason: input.reason, updatedAt: new Date() })
+      .where(eq(stops.id, stopId))
+      .returning();
     const cancelled = await loadWorkPack(tx, projectId, stopId);
     const to = before.publishedAt
       ? await mailCrew(
-        tx, project, cancelled,
-        `${project.name}: cutter stop at ${formatChainage(after.chainageM)} CANCELLED`,
-        `The intervention stop at ${formatChainage(after.chainageM)}${before.plannedStart ? ` planned for ${formatSiteDateTime(before.plannedStart, project.siteTimeZone, { withZone: true })}` : ''} is cancelled.\n\nReason: ${input.reason}\n\n${stopUrl(req, projectId, stopId)}\n`,
-      )
+          tx,
+          project,
+          cancelled,
+          `${project.name}: cutter stop at ${formatChainage(after.chainageM)} CANCELLED`,
+          `The intervention stop at ${formatChainage(after.chainageM)}${before.plannedStart ? ` planned for ${formatSiteDateTime(before.plannedStart, project.siteTimeZone, { withZone: true })}` : ''} is cancelled.\n\nReason: ${input.reason}\n\n${stopUrl(req, projectId, stopId)}\n`,
+        )
       : [];
     mailed = to.length > 0;
-    await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'cancel', before, after: { ...after, mailedTo: to } });
+    await audit(tx, {
+      userId: me.id,
+      projectId,
+      entity: 'stop',
+      entityId: stopId,
+      action: 'cancel',
+      before,
+      after: { ...after, mailedTo: to },
+    });
     return cancelled;
   });
   if (mailed) kickMailDelivery();

@@ -17,8 +17,14 @@ import { importAdvanceLog } from '../services/advance-log-import';
 export const strokesRouter = Router({ mergeParams: true });
 
 const sortable = {
-  ringNumber: strokes.ringNumber, startTime: strokes.startTime, chainageStartM: strokes.chainageStartM, penetrationMmPerRev: strokes.penetrationMmPerRev,
-  revolutions: strokes.revolutions, thrustKn: strokes.thrustKn, torqueKnm: strokes.torqueKnm, rpm: strokes.rpm,
+  ringNumber: strokes.ringNumber,
+  startTime: strokes.startTime,
+  chainageStartM: strokes.chainageStartM,
+  penetrationMmPerRev: strokes.penetrationMmPerRev,
+  revolutions: strokes.revolutions,
+  thrustKn: strokes.thrustKn,
+  torqueKnm: strokes.torqueKnm,
+  rpm: strokes.rpm,
 };
 
 async function siteTimeZone(projectId: string) {
@@ -44,7 +50,13 @@ strokesRouter.get('/', requireProject('drive.read'), async (req, res) => {
   const where = filters(projectId, q, await siteTimeZone(projectId));
   const column = sortable[q.sort];
   const [rows, [{ total }]] = await Promise.all([
-    db.select().from(strokes).where(where).orderBy(q.dir === 'asc' ? asc(column) : desc(column), asc(strokes.ringNumber)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+    db
+      .select()
+      .from(strokes)
+      .where(where)
+      .orderBy(q.dir === 'asc' ? asc(column) : desc(column), asc(strokes.ringNumber))
+      .limit(q.pageSize)
+      .offset((q.page - 1) * q.pageSize),
     db.select({ total: count() }).from(strokes).where(where),
   ]);
   res.json({ rows, total, page: q.page, pageSize: q.pageSize });
@@ -55,13 +67,39 @@ strokesRouter.get('/export.csv', requireProject('drive.read'), async (req, res) 
   const projectId = idParam(req.params, 'projectId', 'That project');
   const q = strokeListQuerySchema.parse(req.query);
   const tz = await siteTimeZone(projectId);
-  const rows = await db.select().from(strokes).where(filters(projectId, q, tz)).orderBy(asc(strokes.ringNumber));
+  const rows = await db
+    .select()
+    .from(strokes)
+    .where(filters(projectId, q, tz))
+    .orderBy(asc(strokes.ringNumber));
   res.set({ 'Content-Type': 'text/csv; charset=utf-8', 'Content-Disposition': 'attachment; filename="advance-log.csv"' });
   // Numbers in full (no `decimals`): this file is read back by the import and must change nothing.
-  let chunk = csvHead(['ring', 'start_time', 'end_time', 'chainage_start_m', 'chainage_end_m', 'revolutions', 'penetration_mm_per_rev', 'rpm', 'thrust_kn', 'torque_knm']);
+  let chunk = csvHead([
+    'ring',
+    'start_time',
+    'end_time',
+    'chainage_start_m',
+    'chainage_end_m',
+    'revolutions',
+    'penetration_mm_per_rev',
+    'rpm',
+    'thrust_kn',
+    'torque_knm',
+  ]);
   for (const r of rows) {
     // Site time with its offset: what the site reads, unambiguous, and read back by the import.
-    chunk += csvRecord([r.ringNumber, isoWithSiteOffset(r.startTime, tz), isoWithSiteOffset(r.endTime, tz), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm]);
+    chunk += csvRecord([
+      r.ringNumber,
+      isoWithSiteOffset(r.startTime, tz),
+      isoWithSiteOffset(r.endTime, tz),
+      r.chainageStartM,
+      r.chainageEndM,
+      r.revolutions,
+      r.penetrationMmPerRev,
+      r.rpm,
+      r.thrustKn,
+      r.torqueKnm,
+    ]);
     if (chunk.length > 64 * 1024) {
       res.write(chunk);
       chunk = '';
@@ -83,7 +121,10 @@ strokesRouter.get('/daily', requireProject('drive.read'), async (req, res) => {
 });
 
 const importQuerySchema = z.object({
-  replace: z.enum(['true', 'false']).default('false').transform((v) => v === 'true'),
+  replace: z
+    .enum(['true', 'false'])
+    .default('false')
+    .transform((v) => v === 'true'),
   /** JSON object: field → header, chosen on the mapping screen; the stored mapping is used when absent. */
   mapping: z.string().max(4000).optional(),
 });
@@ -97,14 +138,27 @@ strokesRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
   const me = requireUser(req);
   const query = importQuerySchema.parse(req.query);
   requireRawCsv(req);
-  const columns = await chosenMapping(projectId, 'advance_log', query.mapping, advanceLogColumnMappingSchema as z.ZodType<Record<string, string>>);
+  const columns = await chosenMapping(
+    projectId,
+    'advance_log',
+    query.mapping,
+    advanceLogColumnMappingSchema as z.ZodType<Record<string, string>>,
+  );
   const [project] = await db.select().from(projects).where(eq(projects.id, projectId));
   const upload = uploadStream(req);
   const result = await readAdvanceLogCsv(upload.body, { timeZone: project.siteTimeZone, direction: project.driveDirection, ...columns });
   await upload.drain();
   if (!result.ok) throw csvRefusal(result.errors, result.errorCount, result.detected);
-  const outcome = await db.transaction((tx) => importAdvanceLog(tx, projectId, me.id, result.rows, { replace: query.replace, mapping: result.detected.mapping as Record<string, string> }));
-  const warnings = [...unusedColumnWarnings(result.unusedColumns, { what: 'the advance log', keptAs: 'with each ring as extra data', canMap: true }), ...result.warnings];
+  const outcome = await db.transaction((tx) =>
+    importAdvanceLog(tx, projectId, me.id, result.rows, {
+      replace: query.replace,
+      mapping: result.detected.mapping as Record<string, string>,
+    }),
+  );
+  const warnings = [
+    ...unusedColumnWarnings(result.unusedColumns, { what: 'the advance log', keptAs: 'with each ring as extra data', canMap: true }),
+    ...result.warnings,
+  ];
   res.status(outcome.inserted + outcome.replaced > 0 ? 201 : 200).json({ ...outcome, warnings, detected: result.detected });
 });
 

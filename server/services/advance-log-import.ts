@@ -64,11 +64,14 @@ export async function importAdvanceLog(
   const rings = rows.map((r) => r.data.ringNumber);
   const stored = new Map<number, StoredStroke>();
   for (let i = 0; i < rings.length; i += 5000) {
-    const found = await tx.select().from(strokes).where(and(eq(strokes.projectId, projectId), inArray(strokes.ringNumber, rings.slice(i, i + 5000))));
+    const found = await tx
+      .select()
+      .from(strokes)
+      .where(and(eq(strokes.projectId, projectId), inArray(strokes.ringNumber, rings.slice(i, i + 5000))));
     for (const s of found) stored.set(s.ringNumber, s);
   }
   const fresh: typeof rows = [];
-  const conflicts: (typeof rows[number] & { diffs: string[]; stored: StoredStroke })[] = [];
+  const conflicts: ((typeof rows)[number] & { diffs: string[]; stored: StoredStroke })[] = [];
   let unchanged = 0;
   for (const r of rows) {
     const s = stored.get(r.data.ringNumber);
@@ -81,10 +84,16 @@ export async function importAdvanceLog(
   }
   if (conflicts.length > 0 && !options.replace) {
     const issues: Issue[] = conflicts.slice(0, 200).map((c) => ({
-      path: `row ${c.line}`, row: c.line, column: 'ring',
+      path: `row ${c.line}`,
+      row: c.line,
+      column: 'ring',
       message: `Ring ${c.data.ringNumber} is already stored with a different ${c.diffs.join(', ')}. Import with "replace" to overwrite it.`,
     }));
-    throw new ConflictError(`${conflicts.length} ring(s) of the file differ from the stored ones; nothing was imported. Check them, then import again with "replace" to overwrite.`, issues, { conflictCount: conflicts.length });
+    throw new ConflictError(
+      `${conflicts.length} ring(s) of the file differ from the stored ones; nothing was imported. Check them, then import again with "replace" to overwrite.`,
+      issues,
+      { conflictCount: conflicts.length },
+    );
   }
 
   // New rings may not overlap stored strokes in chainage (the engine checked the file itself).
@@ -94,30 +103,65 @@ export async function importAdvanceLog(
     const near = await tx
       .select({ ringNumber: strokes.ringNumber, a: strokes.chainageStartM, b: strokes.chainageEndM })
       .from(strokes)
-      .where(and(eq(strokes.projectId, projectId), sql`least(${strokes.chainageStartM}, ${strokes.chainageEndM}) < ${hi}`, sql`greatest(${strokes.chainageStartM}, ${strokes.chainageEndM}) > ${lo}`));
+      .where(
+        and(
+          eq(strokes.projectId, projectId),
+          sql`least(${strokes.chainageStartM}, ${strokes.chainageEndM}) < ${hi}`,
+          sql`greatest(${strokes.chainageStartM}, ${strokes.chainageEndM}) > ${lo}`,
+        ),
+      );
     const issues: Issue[] = [];
     for (const r of fresh) {
       const a = Math.min(r.data.chainageStartM, r.data.chainageEndM);
       const b = Math.max(r.data.chainageStartM, r.data.chainageEndM);
       const hit = near.find((n) => n.ringNumber !== r.data.ringNumber && Math.min(n.a, n.b) < b - 0.001 && Math.max(n.a, n.b) > a + 0.001);
-      if (hit) issues.push({ path: `row ${r.line}`, row: r.line, column: 'chainage start', message: `Ring ${r.data.ringNumber} overlaps the stored ring ${hit.ringNumber} (${Math.min(hit.a, hit.b)}–${Math.max(hit.a, hit.b)} m).` });
+      if (hit)
+        issues.push({
+          path: `row ${r.line}`,
+          row: r.line,
+          column: 'chainage start',
+          message: `Ring ${r.data.ringNumber} overlaps the stored ring ${hit.ringNumber} (${Math.min(hit.a, hit.b)}–${Math.max(hit.a, hit.b)} m).`,
+        });
     }
-    if (issues.length > 0) throw new InvalidInputError(`${issues.length} row(s) overlap strokes already stored; nothing was imported.`, issues.slice(0, 200));
+    if (issues.length > 0)
+      throw new InvalidInputError(`${issues.length} row(s) overlap strokes already stored; nothing was imported.`, issues.slice(0, 200));
   }
 
   const values = (r: AdvanceLogRow) => ({
-    ringNumber: r.ringNumber, startTime: new Date(r.startTime), endTime: new Date(r.endTime), chainageStartM: r.chainageStartM, chainageEndM: r.chainageEndM,
-    revolutions: r.revolutions, penetrationMmPerRev: r.penetrationMmPerRev, rpm: r.rpm, thrustKn: r.thrustKn, torqueKnm: r.torqueKnm, extra: r.extra,
+    ringNumber: r.ringNumber,
+    startTime: new Date(r.startTime),
+    endTime: new Date(r.endTime),
+    chainageStartM: r.chainageStartM,
+    chainageEndM: r.chainageEndM,
+    revolutions: r.revolutions,
+    penetrationMmPerRev: r.penetrationMmPerRev,
+    rpm: r.rpm,
+    thrustKn: r.thrustKn,
+    torqueKnm: r.torqueKnm,
+    extra: r.extra,
   });
-  await insertStrokes(tx, projectId, fresh.map((r) => r.data));
+  await insertStrokes(
+    tx,
+    projectId,
+    fresh.map((r) => r.data),
+  );
   for (const c of conflicts) {
     await tx.update(strokes).set(values(c.data)).where(eq(strokes.id, c.stored.id));
   }
   await rememberMapping(tx, projectId, 'advance_log', options.mapping);
   await audit(tx, {
-    userId, projectId, entity: 'advance_log', entityId: projectId, action: 'import',
+    userId,
+    projectId,
+    entity: 'advance_log',
+    entityId: projectId,
+    action: 'import',
     before: conflicts.length ? conflicts.map((c) => c.stored) : null,
-    after: { inserted: fresh.length, unchanged, replaced: conflicts.length, rings: rings.length ? [Math.min(...rings), Math.max(...rings)] : [] },
+    after: {
+      inserted: fresh.length,
+      unchanged,
+      replaced: conflicts.length,
+      rings: rings.length ? [Math.min(...rings), Math.max(...rings)] : [],
+    },
   });
   // Replaced rings change the past; new rings after the last computed one only add.
   if (fresh.length + conflicts.length > 0) await driveDataChanged(tx, projectId, { rewritesPast: conflicts.length > 0, refreshNow: true });

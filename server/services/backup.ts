@@ -91,7 +91,11 @@ export function findPgTools(serverMajor: number): string {
   if (process.env.PG_BIN) return process.env.PG_BIN;
   const root = '/usr/lib/postgresql';
   const versions = existsSync(root)
-    ? readdirSync(root).filter((v) => existsSync(path.join(root, v, 'bin', 'pg_dump'))).map(Number).filter((v) => v >= serverMajor).sort((a, b) => a - b)
+    ? readdirSync(root)
+        .filter((v) => existsSync(path.join(root, v, 'bin', 'pg_dump')))
+        .map(Number)
+        .filter((v) => v >= serverMajor)
+        .sort((a, b) => a - b)
     : [];
   if (versions.length === 0) {
     throw new Error(
@@ -159,10 +163,15 @@ export function knownMigrationCount(): number {
 async function migrationLevel(client: pg.Client): Promise<{ count: number; lastTag: string | null }> {
   const exists = await client.query(`select 1 from pg_tables where schemaname = 'drizzle' and tablename = '__drizzle_migrations'`);
   if (exists.rowCount === 0) return { count: 0, lastTag: null };
-  const { rows } = await client.query<{ n: string; last: string | null }>('select count(*) as n, max(created_at)::text as last from drizzle.__drizzle_migrations');
+  const { rows } = await client.query<{ n: string; last: string | null }>(
+    'select count(*) as n, max(created_at)::text as last from drizzle.__drizzle_migrations',
+  );
   const journal = JSON.parse(readFileSync(journalFile, 'utf8')) as { entries: { when: number; tag: string }[] };
   const last = rows[0].last === null ? null : Number(rows[0].last);
-  return { count: Number(rows[0].n), lastTag: journal.entries.find((e) => e.when === last)?.tag ?? (last === null ? null : `unknown (${last})`) };
+  return {
+    count: Number(rows[0].n),
+    lastTag: journal.entries.find((e) => e.when === last)?.tag ?? (last === null ? null : `unknown (${last})`),
+  };
 }
 
 // --- Files ------------------------------------------------------------------------------------
@@ -170,7 +179,10 @@ async function migrationLevel(client: pg.Client): Promise<{ count: number; lastT
 export function sha256File(file: string): Promise<string> {
   return new Promise((resolve, reject) => {
     const hash = createHash('sha256');
-    createReadStream(file).on('data', (d) => hash.update(d)).on('error', reject).on('end', () => resolve(hash.digest('hex')));
+    createReadStream(file)
+      .on('data', (d) => hash.update(d))
+      .on('error', reject)
+      .on('end', () => resolve(hash.digest('hex')));
   });
 }
 
@@ -216,7 +228,9 @@ export async function createBackup(options: BackupOptions): Promise<BackupResult
     await rm(partialDir, { recursive: true, force: true });
     await mkdir(partialDir);
   } catch (err) {
-    throw new Error(`The backup folder ${backupDir} cannot be written to (${err instanceof Error ? err.message : String(err)}). Check BACKUP_DIR, its permissions and the free space.`);
+    throw new Error(
+      `The backup folder ${backupDir} cannot be written to (${err instanceof Error ? err.message : String(err)}). Check BACKUP_DIR, its permissions and the free space.`,
+    );
   }
   try {
     // One snapshot for the row counts and pg_dump: the transaction exports it, pg_dump uses it.
@@ -232,7 +246,11 @@ export async function createBackup(options: BackupOptions): Promise<BackupResult
       counts = await rowCounts(client);
       level = await migrationLevel(client);
       const { env, dbname } = libpqEnv(options.databaseUrl);
-      await runTool(path.join(findPgTools(facts.major), 'pg_dump'), ['--format=custom', `--snapshot=${rows[0].id}`, `--file=${path.join(partialDir, DUMP_FILE)}`, `--dbname=${dbname}`], env);
+      await runTool(
+        path.join(findPgTools(facts.major), 'pg_dump'),
+        ['--format=custom', `--snapshot=${rows[0].id}`, `--file=${path.join(partialDir, DUMP_FILE)}`, `--dbname=${dbname}`],
+        env,
+      );
       await client.query('commit');
     } finally {
       await client.end().catch(() => {});
@@ -289,13 +307,18 @@ export async function listBackups(backupDir: string): Promise<StoredBackup[]> {
   const out: StoredBackup[] = [];
   for (const entry of await readdir(dir, { withFileTypes: true })) {
     const takenAt = entry.isDirectory() ? backupTime(entry.name) : null;
-    if (takenAt && existsSync(path.join(dir, entry.name, MANIFEST_FILE))) out.push({ name: entry.name, dir: path.join(dir, entry.name), takenAt });
+    if (takenAt && existsSync(path.join(dir, entry.name, MANIFEST_FILE)))
+      out.push({ name: entry.name, dir: path.join(dir, entry.name), takenAt });
   }
   return out.sort((a, b) => a.takenAt.getTime() - b.takenAt.getTime());
 }
 
 /** Deletes the backups the retention does not keep, and partial folders older than a day. */
-export async function pruneBackups(backupDir: string, now: Date, retention: BackupRetention): Promise<{ kept: string[]; removed: string[] }> {
+export async function pruneBackups(
+  backupDir: string,
+  now: Date,
+  retention: BackupRetention,
+): Promise<{ kept: string[]; removed: string[] }> {
   const all = await listBackups(backupDir);
   const keep = backupsToKeep(all, now, retention);
   const removed: string[] = [];
@@ -335,7 +358,8 @@ export async function verifyBackup(backupDir: string): Promise<string[]> {
       continue;
     }
     const actual = await describe(backupDir, f.path);
-    if (actual.sizeBytes !== f.sizeBytes || actual.sha256 !== f.sha256) problems.push(`${f.path} has changed since the backup (size or SHA-256 differs).`);
+    if (actual.sizeBytes !== f.sizeBytes || actual.sha256 !== f.sha256)
+      problems.push(`${f.path} has changed since the backup (size or SHA-256 differs).`);
   }
   return problems;
 }
@@ -367,7 +391,8 @@ export async function restoreBackup(options: RestoreOptions): Promise<RestoreRes
   const backupDir = path.resolve(options.backupDir);
   const manifest = await readManifest(backupDir);
   const problems = await verifyBackup(backupDir);
-  if (problems.length > 0) throw new RestoreRefused(`The backup ${manifest.name} is damaged; nothing was restored.\n  ${problems.join('\n  ')}`);
+  if (problems.length > 0)
+    throw new RestoreRefused(`The backup ${manifest.name} is damaged; nothing was restored.\n  ${problems.join('\n  ')}`);
 
   const storageDir = path.resolve(options.storageDir);
   const existingFiles = await listFiles(storageDir);
@@ -384,7 +409,9 @@ export async function restoreBackup(options: RestoreOptions): Promise<RestoreRes
         );
       }
       if (existingFiles.length > 0) {
-        throw new RestoreRefused(`The storage folder ${storageDir} already holds ${existingFiles.length} files. Empty it, or add --force to add the backup's files to it.`);
+        throw new RestoreRefused(
+          `The storage folder ${storageDir} already holds ${existingFiles.length} files. Empty it, or add --force to add the backup's files to it.`,
+        );
       }
     }
     if (tables.length > 0) {

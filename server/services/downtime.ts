@@ -7,17 +7,28 @@
 import { and, asc, eq, gt, gte, lt, max, sql } from 'drizzle-orm';
 import { cutterCostBy, faceAreaM2, type CutterCostEntry } from '../../shared/domain/cutter-cost';
 import {
-  cutterWorkShare, downtimeHoursByCauseAndShift, downtimeHoursByCauseAndWeek, isoWeeksTouching, metresPerDay, proposeDowntimeFromGaps, uncoveredParts, utilisation,
+  cutterWorkShare,
+  downtimeHoursByCauseAndShift,
+  downtimeHoursByCauseAndWeek,
+  isoWeeksTouching,
+  metresPerDay,
+  proposeDowntimeFromGaps,
+  uncoveredParts,
+  utilisation,
   type DowntimeEvent,
 } from '../../shared/domain/downtime';
 import {
-  NO_CAUSE_LABEL, type CutterCostReport, type DowntimeCause, type DowntimeReport, type ProposeFromGapsResult, type ReportPeriod, type SiteSettings,
+  NO_CAUSE_LABEL,
+  type CutterCostReport,
+  type DowntimeCause,
+  type DowntimeReport,
+  type ProposeFromGapsResult,
+  type ReportPeriod,
+  type SiteSettings,
 } from '../../shared/schemas/downtime';
 import { addSiteDays, siteDay, siteIsoWeek, siteMidnight, siteWeekStart } from '../../shared/site-time';
 import type { DbOrTx } from '../db/client';
-import {
-  downtimeCauses, downtimeEvents, geologySections, groundTypes, parts, projects, siteSettings, strokes,
-} from '../db/schema';
+import { downtimeCauses, downtimeEvents, geologySections, groundTypes, parts, projects, siteSettings, strokes } from '../db/schema';
 import { audit } from '../lib/audit';
 
 type Project = typeof projects.$inferSelect;
@@ -43,7 +54,10 @@ export const DEFAULT_CAUSES: readonly { name: string; cutterWork: boolean }[] = 
 
 /** Settings until the site manager saves its own: two 12-hour shifts; 90 min is the schema's default gap. */
 export const DEFAULT_SITE_SETTINGS = {
-  shifts: [{ name: 'Day', start: '06:00' }, { name: 'Night', start: '18:00' }],
+  shifts: [
+    { name: 'Day', start: '06:00' },
+    { name: 'Night', start: '18:00' },
+  ],
   labourRatePerHour: 0,
   gapMinutes: 90,
 };
@@ -62,7 +76,13 @@ export async function ensureDefaultCauses(tx: DbOrTx, projectId: string, userId:
 
 export async function listCauses(tx: DbOrTx, projectId: string): Promise<DowntimeCause[]> {
   return tx
-    .select({ id: downtimeCauses.id, name: downtimeCauses.name, cutterWork: downtimeCauses.cutterWork, sortOrder: downtimeCauses.sortOrder, active: downtimeCauses.active })
+    .select({
+      id: downtimeCauses.id,
+      name: downtimeCauses.name,
+      cutterWork: downtimeCauses.cutterWork,
+      sortOrder: downtimeCauses.sortOrder,
+      active: downtimeCauses.active,
+    })
     .from(downtimeCauses)
     .where(eq(downtimeCauses.projectId, projectId))
     .orderBy(asc(downtimeCauses.sortOrder), asc(downtimeCauses.name));
@@ -99,7 +119,16 @@ export async function proposeGapEvents(tx: DbOrTx, projectId: string, userId: st
   if (pieces.length === 0) return { created: 0, hours: 0, gapMinutes };
   const rows = await tx
     .insert(downtimeEvents)
-    .values(pieces.map((p) => ({ projectId, startAt: p.start, endAt: p.end, source: 'gap', createdBy: userId, note: 'Standstill between strokes in the advance log' })))
+    .values(
+      pieces.map((p) => ({
+        projectId,
+        startAt: p.start,
+        endAt: p.end,
+        source: 'gap',
+        createdBy: userId,
+        note: 'Standstill between strokes in the advance log',
+      })),
+    )
     .returning();
   for (const row of rows) await audit(tx, { userId, projectId, entity: 'downtime_event', entityId: row.id, action: 'create', after: row });
   const hours = pieces.reduce((s, p) => s + (p.end.getTime() - p.start.getTime()) / 3_600_000, 0);
@@ -126,7 +155,14 @@ export function periodOfDays(from: string, to: string, timeZone: string): Period
 export function previousIsoWeek(now: Date, timeZone: string): Period & { isoWeek: string } {
   const end = siteWeekStart(now, timeZone);
   const start = siteWeekStart(now, timeZone, -1);
-  return { from: siteDay(start, timeZone), to: addSiteDays(siteDay(end, timeZone), -1, timeZone), start, end, timeZone, isoWeek: siteIsoWeek(start, timeZone) };
+  return {
+    from: siteDay(start, timeZone),
+    to: addSiteDays(siteDay(end, timeZone), -1, timeZone),
+    start,
+    end,
+    timeZone,
+    isoWeek: siteIsoWeek(start, timeZone),
+  };
 }
 
 /**
@@ -138,8 +174,14 @@ export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: st
   let to = q.to;
   if (!to) {
     // One query at a time: `tx` may be a transaction's single connection.
-    const [s] = await tx.select({ at: max(strokes.endTime) }).from(strokes).where(eq(strokes.projectId, project.id));
-    const [e] = await tx.select({ at: max(downtimeEvents.endAt) }).from(downtimeEvents).where(eq(downtimeEvents.projectId, project.id));
+    const [s] = await tx
+      .select({ at: max(strokes.endTime) })
+      .from(strokes)
+      .where(eq(strokes.projectId, project.id));
+    const [e] = await tx
+      .select({ at: max(downtimeEvents.endAt) })
+      .from(downtimeEvents)
+      .where(eq(downtimeEvents.projectId, project.id));
     const latest = [s?.at, e?.at].flatMap((d) => (d ? [new Date(d)] : [])).sort((a, b) => b.getTime() - a.getTime())[0];
     // An event ending exactly at midnight belongs to the day before.
     to = siteDay(latest ? new Date(latest.getTime() - 1) : now, tz);
@@ -150,13 +192,26 @@ export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: st
 }
 
 function periodFields(p: Period): ReportPeriod {
-  return { from: p.from, to: p.to, timeZone: p.timeZone, startAt: p.start.toISOString(), endAt: p.end.toISOString(), hours: (p.end.getTime() - p.start.getTime()) / 3_600_000 };
+  return {
+    from: p.from,
+    to: p.to,
+    timeZone: p.timeZone,
+    startAt: p.start.toISOString(),
+    endAt: p.end.toISOString(),
+    hours: (p.end.getTime() - p.start.getTime()) / 3_600_000,
+  };
 }
 
 /** Events overlapping the period, clipped to it, each with its cause's label and cutter-work flag. */
 async function eventsIn(tx: DbOrTx, projectId: string, p: Period) {
   const rows = await tx
-    .select({ id: downtimeEvents.id, start: downtimeEvents.startAt, end: downtimeEvents.endAt, cause: downtimeCauses.name, cutterWork: downtimeCauses.cutterWork })
+    .select({
+      id: downtimeEvents.id,
+      start: downtimeEvents.startAt,
+      end: downtimeEvents.endAt,
+      cause: downtimeCauses.name,
+      cutterWork: downtimeCauses.cutterWork,
+    })
     .from(downtimeEvents)
     .leftJoin(downtimeCauses, eq(downtimeCauses.id, downtimeEvents.causeId))
     .where(and(eq(downtimeEvents.projectId, projectId), lt(downtimeEvents.startAt, p.end), gt(downtimeEvents.endAt, p.start)));
@@ -204,15 +259,21 @@ export async function buildDowntimeReport(tx: DbOrTx, project: Project, p: Perio
     weeks: isoWeeksTouching(p.start, p.end, p.timeZone),
     shifts: settings.shifts.map((s) => s.name),
     byWeek: downtimeHoursByCauseAndWeek(events, tz).map((r) => ({ ...r, cutterWork: flag.get(r.cause) ?? false })),
-    byShift: downtimeHoursByCauseAndShift(events, settings.shifts.map((s) => ({ name: s.name, startLocal: s.start })), tz)
-      .map((r) => ({ ...r, cutterWork: flag.get(r.cause) ?? false })),
+    byShift: downtimeHoursByCauseAndShift(
+      events,
+      settings.shifts.map((s) => ({ name: s.name, startLocal: s.start })),
+      tz,
+    ).map((r) => ({ ...r, cutterWork: flag.get(r.cause) ?? false })),
     pareto,
     downtimeHours,
     unexplainedHours: unexplained.reduce((s, e) => s + eventHours(e), 0),
     unexplainedEvents: unexplained.length,
     boringHours: used * periodHours,
     utilisation: used,
-    cutterWorkShare: cutterWorkShare(events, [...flag].filter(([, cutter]) => cutter).map(([cause]) => cause)),
+    cutterWorkShare: cutterWorkShare(
+      events,
+      [...flag].filter(([, cutter]) => cutter).map(([cause]) => cause),
+    ),
     advanceM,
     metresPerDay: metresPerDay(advanceM, p.start, p.end),
   };
@@ -246,7 +307,12 @@ export async function buildCutterCost(tx: DbOrTx, project: Project, p: Period): 
     .from(geologySections)
     .innerJoin(groundTypes, eq(groundTypes.id, geologySections.groundTypeId))
     .where(eq(geologySections.projectId, project.id));
-  const [first] = await tx.select({ m: strokes.chainageStartM }).from(strokes).where(eq(strokes.projectId, project.id)).orderBy(asc(strokes.startTime)).limit(1);
+  const [first] = await tx
+    .select({ m: strokes.chainageStartM })
+    .from(strokes)
+    .where(eq(strokes.projectId, project.id))
+    .orderBy(asc(strokes.startTime))
+    .limit(1);
   const groundAt = (m: number | null) => {
     const at = m ?? first?.m ?? project.startChainageM;
     return sections.find((s) => at >= s.fromM && at < s.toM)?.ground ?? UNKNOWN_GROUND;
@@ -259,19 +325,39 @@ export async function buildCutterCost(tx: DbOrTx, project: Project, p: Period): 
     .select({ end: strokes.endTime, fromM: strokes.chainageStartM, toM: strokes.chainageEndM })
     .from(strokes)
     .where(and(eq(strokes.projectId, project.id), gte(strokes.endTime, p.start), lt(strokes.endTime, p.end)));
-  for (const s of bored) entries.push({ ...zero, week: siteIsoWeek(s.end, tz), groundType: groundAt((s.fromM + s.toM) / 2), advanceM: Math.abs(s.toM - s.fromM) });
+  for (const s of bored)
+    entries.push({
+      ...zero,
+      week: siteIsoWeek(s.end, tz),
+      groundType: groundAt((s.fromM + s.toM) / 2),
+      advanceM: Math.abs(s.toM - s.fromM),
+    });
 
   // Labour: cutter-work downtime, split at local Mondays, in the ground where the machine stood.
   const cutterWork = (await eventsIn(tx, project.id, p)).filter((e) => e.cutterWork);
-  const standing = await chainagesAt(tx, project.id, cutterWork.map((e) => e.start));
-  const labour = downtimeHoursByCauseAndWeek(cutterWork.map((e, i) => ({ ...e, cause: groundAt(standing[i]) })), tz);
+  const standing = await chainagesAt(
+    tx,
+    project.id,
+    cutterWork.map((e) => e.start),
+  );
+  const labour = downtimeHoursByCauseAndWeek(
+    cutterWork.map((e, i) => ({ ...e, cause: groundAt(standing[i]) })),
+    tz,
+  );
   for (const l of labour) entries.push({ ...zero, week: l.isoWeek, groundType: l.cause, labourHours: l.hours });
 
   // Parts: workshop outcomes, charged to the removal that sent the cutter there.
   const catalogue = await tx.select().from(parts).where(eq(parts.projectId, project.id)).orderBy(asc(parts.code));
   const partFor = (kind: string, discSizeIn: number) =>
     catalogue.find((x) => x.kind === kind && x.discSizeIn === discSizeIn) ?? catalogue.find((x) => x.kind === kind && x.discSizeIn == null);
-  const { rows: outcomes } = await tx.execute<{ kind: string; details: Record<string, unknown>; at: Date; disc_size_in: number; removed_at: Date | null; removed_chainage_m: number | null }>(sql`
+  const { rows: outcomes } = await tx.execute<{
+    kind: string;
+    details: Record<string, unknown>;
+    at: Date;
+    disc_size_in: number;
+    removed_at: Date | null;
+    removed_chainage_m: number | null;
+  }>(sql`
     select e.kind, e.details, e.at, c.disc_size_in, r.at as removed_at, (r.details->>'chainageM')::float8 as removed_chainage_m
     from cutter_events e
     join cutters c on c.id = e.cutter_id
@@ -282,12 +368,21 @@ export async function buildCutterCost(tx: DbOrTx, project: Project, p: Period): 
     where e.project_id = ${project.id} and e.kind in ('rebuilt', 'scrapped')
       and coalesce(r.at, e.at) >= ${p.start.toISOString()}::timestamptz and coalesce(r.at, e.at) < ${p.end.toISOString()}::timestamptz`);
   const missingChainage = outcomes.filter((o) => o.removed_chainage_m == null);
-  const machineAt = await chainagesAt(tx, project.id, missingChainage.map((o) => new Date(o.removed_at ?? o.at)));
+  const machineAt = await chainagesAt(
+    tx,
+    project.id,
+    missingChainage.map((o) => new Date(o.removed_at ?? o.at)),
+  );
   let unpricedParts = 0;
   for (const o of outcomes) {
-    const needs = o.kind === 'scrapped'
-      ? ['cutter-assembly']
-      : [o.details.newRing !== false && 'ring', o.details.newBearings === true && 'bearing-kit', o.details.newSeals === true && 'seal-kit'].filter((k): k is string => !!k);
+    const needs =
+      o.kind === 'scrapped'
+        ? ['cutter-assembly']
+        : [
+            o.details.newRing !== false && 'ring',
+            o.details.newBearings === true && 'bearing-kit',
+            o.details.newSeals === true && 'seal-kit',
+          ].filter((k): k is string => !!k);
     let partsCost = 0;
     for (const kind of needs) {
       const part = partFor(kind, o.disc_size_in);
@@ -307,7 +402,12 @@ export async function buildCutterCost(tx: DbOrTx, project: Project, p: Period): 
 
   const { labourRatePerHour } = await readSiteSettings(tx, project.id);
   const d = project.excavatedDiameterM;
-  const [total] = cutterCostBy([{ ...zero, week: 'Total', groundType: '' }, ...entries.map((e) => ({ ...e, week: 'Total' }))], 'week', d, labourRatePerHour);
+  const [total] = cutterCostBy(
+    [{ ...zero, week: 'Total', groundType: '' }, ...entries.map((e) => ({ ...e, week: 'Total' }))],
+    'week',
+    d,
+    labourRatePerHour,
+  );
   return {
     ...periodFields(p),
     diameterM: d,

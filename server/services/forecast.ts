@@ -9,12 +9,28 @@ import { and, asc, eq, sql } from 'drizzle-orm';
 import { discConditions, type PositionClass } from '../../shared/cutters';
 import { cautiousRates, relativeScatter, type CautiousRate } from '../../shared/domain/cautious-rates';
 import { classifyCai } from '../../shared/domain/cerchar';
-import { estimateDriveRates, forecastChangeOut, modelledWearSinceMm, type ChangeOutForecast, type WearRateSet } from '../../shared/domain/forecast';
+import {
+  estimateDriveRates,
+  forecastChangeOut,
+  modelledWearSinceMm,
+  type ChangeOutForecast,
+  type WearRateSet,
+} from '../../shared/domain/forecast';
 import { gehringPriorRateMmPerKm } from '../../shared/domain/gehring-prior';
 import { findSectionAt } from '../../shared/domain/geology';
 import { fitWearRates, suddenFailureRatesPer1000Km, type NormalWearObservation, type WearFit } from '../../shared/domain/wear-fit';
 import type { DbOrTx } from '../db/client';
-import { fittingRolledKm, forecastSettings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, projects, strokes } from '../db/schema';
+import {
+  fittingRolledKm,
+  forecastSettings,
+  geologySections,
+  groundTypes,
+  inspectionEntries,
+  inspectionRounds,
+  positions,
+  projects,
+  strokes,
+} from '../db/schema';
 import { refreshRolledDistance, UNKNOWN_GROUND } from './rolled-distance';
 
 export const defaultForecastSettings = {
@@ -46,15 +62,30 @@ export async function loadForecastData(tx: DbOrTx, projectId: string) {
   const grounds = await tx.select().from(groundTypes).where(eq(groundTypes.projectId, projectId)).orderBy(asc(groundTypes.name));
   const sections = await tx.select().from(geologySections).where(eq(geologySections.projectId, projectId));
   const strokeRows = await tx
-    .select({ ringNumber: strokes.ringNumber, endTime: strokes.endTime, from: strokes.chainageStartM, to: strokes.chainageEndM, revolutions: strokes.revolutions, penetration: strokes.penetrationMmPerRev })
+    .select({
+      ringNumber: strokes.ringNumber,
+      endTime: strokes.endTime,
+      from: strokes.chainageStartM,
+      to: strokes.chainageEndM,
+      revolutions: strokes.revolutions,
+      penetration: strokes.penetrationMmPerRev,
+    })
     .from(strokes)
     .where(eq(strokes.projectId, projectId))
     .orderBy(asc(strokes.ringNumber));
   const inspections = await tx
     .select({
-      entryId: inspectionEntries.id, wearMm: inspectionEntries.wearMm, conditions: inspectionEntries.conditions, positionClass: positions.positionClass,
-      positionNumber: positions.number, at: inspectionRounds.startedAt, chainageM: inspectionRounds.chainageM,
-      exposure: sql<Record<string, number> | null>`(select jsonb_object_agg(k.ground_key, k.rolled_km) from entry_rolled_km k where k.entry_id = ${inspectionEntries.id})`,
+      entryId: inspectionEntries.id,
+      wearMm: inspectionEntries.wearMm,
+      conditions: inspectionEntries.conditions,
+      positionClass: positions.positionClass,
+      positionNumber: positions.number,
+      at: inspectionRounds.startedAt,
+      chainageM: inspectionRounds.chainageM,
+      exposure: sql<Record<
+        string,
+        number
+      > | null>`(select jsonb_object_agg(k.ground_key, k.rolled_km) from entry_rolled_km k where k.entry_id = ${inspectionEntries.id})`,
     })
     .from(inspectionEntries)
     .innerJoin(positions, eq(positions.id, inspectionEntries.positionId))
@@ -66,9 +97,21 @@ export async function loadForecastData(tx: DbOrTx, projectId: string) {
     .where(eq(fittingRolledKm.projectId, projectId))
     .groupBy(fittingRolledKm.groundKey);
   const current = await tx.execute<{
-    position_id: string; number: number; position_class: PositionClass; track_radius_mm: number; twin_disc: boolean; wear_limit_mm: number; tilt_deg: number | null;
-    disc_size_in: number; fitting_id: string | null; serial: string | null; fitted_chainage_m: number | null; last_entry_id: string | null; last_wear_mm: number | null;
-    last_chainage_m: number | null; last_at: Date | null;
+    position_id: string;
+    number: number;
+    position_class: PositionClass;
+    track_radius_mm: number;
+    twin_disc: boolean;
+    wear_limit_mm: number;
+    tilt_deg: number | null;
+    disc_size_in: number;
+    fitting_id: string | null;
+    serial: string | null;
+    fitted_chainage_m: number | null;
+    last_entry_id: string | null;
+    last_wear_mm: number | null;
+    last_chainage_m: number | null;
+    last_at: Date | null;
   }>(sql`
     select p.id as position_id, p.number, p.position_class, p.track_radius_mm, p.twin_disc, p.wear_limit_mm, p.tilt_deg, p.disc_size_in,
            f.id as fitting_id, c.serial, f.fitted_chainage_m, w.id as last_entry_id, w.wear_mm as last_wear_mm, w.chainage_m as last_chainage_m, w.started_at as last_at
@@ -89,7 +132,17 @@ export async function loadForecastData(tx: DbOrTx, projectId: string) {
       join (select distinct on (e.position_id) e.id from inspection_entries e join inspection_rounds r on r.id = e.round_id
             where e.project_id = ${projectId} and e.wear_mm is not null and e.action = 'none'
             order by e.position_id, r.started_at desc, e.recorded_at desc) latest on latest.id = k.entry_id`);
-  return { settings, project, grounds, sections, strokes: strokeRows, inspections, kmByGroundTotal, positions: current.rows, rolled: rolled.rows };
+  return {
+    settings,
+    project,
+    grounds,
+    sections,
+    strokes: strokeRows,
+    inspections,
+    kmByGroundTotal,
+    positions: current.rows,
+    rolled: rolled.rows,
+  };
 }
 export type ForecastData = Awaited<ReturnType<typeof loadForecastData>>;
 
@@ -111,7 +164,13 @@ export function buildWearFit(data: ForecastData): WearFitReport {
   const priors: Record<string, number> = {};
   for (const g of grounds) {
     // A site factor of 0 (refused since, maybe stored before) would make a 0 mm/km prior: no prior then.
-    if (g.cai != null && settings.gehringSiteFactor > 0) priors[g.id] = gehringPriorRateMmPerKm({ cai: g.cai, ringDiameterMm, tipWidthMm: settings.tipWidthMm, siteFactor: settings.gehringSiteFactor });
+    if (g.cai != null && settings.gehringSiteFactor > 0)
+      priors[g.id] = gehringPriorRateMmPerKm({
+        cai: g.cai,
+        ringDiameterMm,
+        tipWidthMm: settings.tipWidthMm,
+        siteFactor: settings.gehringSiteFactor,
+      });
   }
   const observations: NormalWearObservation[] = [];
   const abnormalEvents: WearFitReport['abnormalEvents'] = [];
@@ -119,7 +178,13 @@ export function buildWearFit(data: ForecastData): WearFitReport {
   for (const r of data.inspections) {
     const exposure = Object.fromEntries(Object.entries(r.exposure ?? {}).filter(([k, km]) => k !== UNKNOWN_GROUND && km > 0));
     if (r.conditions.some((c) => abnormalKeys.has(c))) {
-      abnormalEvents.push({ entryId: r.entryId, at: r.at, positionNumber: r.positionNumber, conditions: r.conditions, chainageM: r.chainageM });
+      abnormalEvents.push({
+        entryId: r.entryId,
+        at: r.at,
+        positionNumber: r.positionNumber,
+        conditions: r.conditions,
+        chainageM: r.chainageM,
+      });
       // Counted in the ground the disc rolled most in since it was fitted (DEVELOPERS.md, decision 13).
       const main = Object.entries(exposure).sort((a, b) => b[1] - a[1])[0]?.[0];
       if (main) eventsByGround[main] = (eventsByGround[main] ?? 0) + 1;
@@ -135,7 +200,13 @@ export function buildWearFit(data: ForecastData): WearFitReport {
   const kmByGround = Object.fromEntries(data.kmByGroundTotal.filter((t) => t.groundKey !== UNKNOWN_GROUND).map((t) => [t.groundKey, t.km]));
   return {
     fit,
-    grounds: grounds.map((g) => ({ id: g.id, name: g.name, cai: g.cai, caiClass: g.cai == null ? null : classifyCai(g.cai), priorMmPerKm: priors[g.id] ?? null })),
+    grounds: grounds.map((g) => ({
+      id: g.id,
+      name: g.name,
+      cai: g.cai,
+      caiClass: g.cai == null ? null : classifyCai(g.cai),
+      priorMmPerKm: priors[g.id] ?? null,
+    })),
     failures: suddenFailureRatesPer1000Km(kmByGround, eventsByGround),
     abnormalEvents,
     observations,
@@ -153,7 +224,8 @@ export function forecastRates(report: WearFitReport): ForecastRates {
   const scatter = relativeScatter(
     observations.map((o) => ({
       measuredMm: o.wearMm,
-      predictedMm: fit.classFactors[o.positionClass] * Object.entries(o.rolledKmByGround).reduce((sum, [g, km]) => sum + (rate.get(g) ?? 0) * km, 0),
+      predictedMm:
+        fit.classFactors[o.positionClass] * Object.entries(o.rolledKmByGround).reduce((sum, [g, km]) => sum + (rate.get(g) ?? 0) * km, 0),
     })),
     cautiousRateOptions.minPredictedMm,
   );
@@ -184,7 +256,11 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
   const domainSections = data.sections.map((s) => ({ ...s, stopReason: s.stopReason || null }));
   const driveRates = estimateDriveRates(
     data.strokes.map((s) => ({
-      endedAt: s.endTime, fromChainageM: s.from, toChainageM: s.to, cutterheadRevolutions: s.revolutions, penetrationMmPerRev: s.penetration,
+      endedAt: s.endTime,
+      fromChainageM: s.from,
+      toChainageM: s.to,
+      cutterheadRevolutions: s.revolutions,
+      penetrationMmPerRev: s.penetration,
       groundTypeId: findSectionAt(domainSections, (s.from + s.to) / 2)?.groundTypeId ?? null,
     })),
     settings.overrides,
@@ -194,8 +270,10 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
   const problems: string[] = [];
   const base = { now, currentChainageM: last?.to ?? null, currentRingNumber: last?.ringNumber ?? null, rates, driveRates, wearFit };
   if (!last) return { ...base, positions: [], problems: ['No advance log yet: import the machine’s strokes to forecast.'] };
-  if (Object.keys(rates.byGround).length === 0) return { ...base, positions: [], problems: ['No wear rate yet: give the ground types a CAI or record inspections.'] };
-  if (Object.keys(driveRates.penetrationMmPerRevByGround).length === 0) return { ...base, positions: [], problems: ['No penetration known yet: the advance log has no strokes in mapped ground.'] };
+  if (Object.keys(rates.byGround).length === 0)
+    return { ...base, positions: [], problems: ['No wear rate yet: give the ground types a CAI or record inspections.'] };
+  if (Object.keys(driveRates.penetrationMmPerRevByGround).length === 0)
+    return { ...base, positions: [], problems: ['No penetration known yet: the advance log has no strokes in mapped ground.'] };
 
   const km = new Map<string, Record<string, number>>();
   for (const r of data.rolled) km.set(r.key, { ...km.get(r.key), [r.ground_key]: r.km });
@@ -207,15 +285,27 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
       continue;
     }
     const sinceFit = km.get(p.fitting_id) ?? {};
-    const atEntry = p.last_entry_id ? km.get(p.last_entry_id) ?? {} : {};
-    const since = Object.entries(sinceFit).map(([g, total]) => ({ groundTypeId: g === UNKNOWN_GROUND ? null : g, rolledKm: Math.max(0, total - (atEntry[g] ?? 0)) }));
+    const atEntry = p.last_entry_id ? (km.get(p.last_entry_id) ?? {}) : {};
+    const since = Object.entries(sinceFit).map(([g, total]) => ({
+      groundTypeId: g === UNKNOWN_GROUND ? null : g,
+      rolledKm: Math.max(0, total - (atEntry[g] ?? 0)),
+    }));
     const modelled = modelledWearSinceMm(since, rates, p.position_class);
     const forecast = forecastChangeOut({
       position: {
-        positionId: p.position_id, positionNumber: p.number, positionClass: p.position_class, trackRadiusMm: p.track_radius_mm,
-        discsPerPosition: p.twin_disc ? 2 : 1, allowableWearMm: p.wear_limit_mm, gaugeTiltDeg: p.position_class === 'gauge' ? p.tilt_deg ?? 0 : null,
+        positionId: p.position_id,
+        positionNumber: p.number,
+        positionClass: p.position_class,
+        trackRadiusMm: p.track_radius_mm,
+        discsPerPosition: p.twin_disc ? 2 : 1,
+        allowableWearMm: p.wear_limit_mm,
+        gaugeTiltDeg: p.position_class === 'gauge' ? (p.tilt_deg ?? 0) : null,
       },
-      wearNow: { lastMeasuredWearMm: p.last_wear_mm ?? 0, measuredAtChainageM: p.last_chainage_m ?? p.fitted_chainage_m ?? last.to, modelledSinceMm: modelled.wearMm },
+      wearNow: {
+        lastMeasuredWearMm: p.last_wear_mm ?? 0,
+        measuredAtChainageM: p.last_chainage_m ?? p.fitted_chainage_m ?? last.to,
+        modelledSinceMm: modelled.wearMm,
+      },
       currentChainageM: last.to,
       currentRingNumber: last.ringNumber,
       ringLengthM: project.ringLengthM,

@@ -8,7 +8,17 @@ import { conditionNeedsChange, type DiscCondition } from '../../shared/cutters';
 import type { EntryInput, StartRoundInput } from '../../shared/schemas/inspection';
 import { formatSiteDate } from '../../shared/site-time';
 import type { DbOrTx } from '../db/client';
-import { cutterEvents, cutters, entrySubmissions, fittings, inspectionEntries, inspectionRounds, positions, projects, strokes } from '../db/schema';
+import {
+  cutterEvents,
+  cutters,
+  entrySubmissions,
+  fittings,
+  inspectionEntries,
+  inspectionRounds,
+  positions,
+  projects,
+  strokes,
+} from '../db/schema';
 import { driveDataChanged } from './drive-data';
 import { recordEntryExposure } from './rolled-distance';
 import { audit } from '../lib/audit';
@@ -19,7 +29,15 @@ type Entry = typeof inspectionEntries.$inferSelect;
 export async function startRound(tx: DbOrTx, projectId: string, userId: string | null, input: StartRoundInput) {
   const [round] = await tx
     .insert(inspectionRounds)
-    .values({ projectId, createdBy: userId, startedAt: new Date(input.startedAt), chainageM: input.chainageM, ringNumber: input.ringNumber, crew: input.crew, notes: input.notes })
+    .values({
+      projectId,
+      createdBy: userId,
+      startedAt: new Date(input.startedAt),
+      chainageM: input.chainageM,
+      ringNumber: input.ringNumber,
+      crew: input.crew,
+      notes: input.notes,
+    })
     .returning();
   await audit(tx, { userId, projectId, entity: 'inspection_round', entityId: round.id, action: 'create', after: round });
   return round;
@@ -32,9 +50,15 @@ async function siteTimeZoneOf(tx: DbOrTx, projectId: string): Promise<string> {
 }
 
 const wearFell = (wearMm: number, last: { wearMm: number; at: Date; serial: string }, timeZone: string) =>
-  new ConflictError(`Wear ${wearMm} mm is less than the ${last.wearMm} mm measured on ${formatSiteDate(last.at, timeZone)} on the same disc (serial ${last.serial}), with no change in between. Check the value; if the earlier one was wrong, confirm this one as re-measured.`, [
-    { path: 'wearMm', message: `Less than the last ${last.wearMm} mm on this disc. Confirm as re-measured if the earlier value was wrong.` },
-  ]);
+  new ConflictError(
+    `Wear ${wearMm} mm is less than the ${last.wearMm} mm measured on ${formatSiteDate(last.at, timeZone)} on the same disc (serial ${last.serial}), with no change in between. Check the value; if the earlier one was wrong, confirm this one as re-measured.`,
+    [
+      {
+        path: 'wearMm',
+        message: `Less than the last ${last.wearMm} mm on this disc. Confirm as re-measured if the earlier value was wrong.`,
+      },
+    ],
+  );
 
 /** Flags the fitter sees at a glance. */
 export function entryFlags(entry: Pick<Entry, 'wearMm' | 'conditions' | 'action'>, wearLimitMm: number) {
@@ -62,10 +86,17 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
     return { entry: replay, replayed: true, ...entryFlags(replay, pos.wearLimitMm) };
   }
 
-  const [round] = await tx.select().from(inspectionRounds).where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId))).for('update');
+  const [round] = await tx
+    .select()
+    .from(inspectionRounds)
+    .where(and(eq(inspectionRounds.id, roundId), eq(inspectionRounds.projectId, projectId)))
+    .for('update');
   if (!round) throw new NotFoundError('That inspection round');
   if (round.closedAt) throw new ConflictError('This round is closed. Start a new round to record more.');
-  const [position] = await tx.select().from(positions).where(and(eq(positions.id, input.positionId), eq(positions.projectId, projectId)));
+  const [position] = await tx
+    .select()
+    .from(positions)
+    .where(and(eq(positions.id, input.positionId), eq(positions.projectId, projectId)));
   if (!position) throw new NotFoundError('That position');
 
   const [current] = await tx
@@ -74,13 +105,18 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
     .innerJoin(cutters, eq(cutters.id, fittings.cutterId))
     .where(and(eq(fittings.positionId, position.id), isNull(fittings.removedAt)))
     .for('update');
-  const [prior] = await tx.select().from(inspectionEntries).where(and(eq(inspectionEntries.roundId, round.id), eq(inspectionEntries.positionId, position.id)));
+  const [prior] = await tx
+    .select()
+    .from(inspectionEntries)
+    .where(and(eq(inspectionEntries.roundId, round.id), eq(inspectionEntries.positionId, position.id)));
   if (prior?.action === 'changed' && input.action === 'none') {
-    throw new ConflictError(`Position ${position.number} was recorded as changed in this round. A change cannot be undone by an edit; ask the planner to correct it.`);
+    throw new ConflictError(
+      `Position ${position.number} was recorded as changed in this round. A change cannot be undone by an edit; ask the planner to correct it.`,
+    );
   }
 
   // The disc the fitter measured: the one on the position when they came to it.
-  const measuredFittingId = prior ? prior.fittingId : current?.fitting.id ?? null;
+  const measuredFittingId = prior ? prior.fittingId : (current?.fitting.id ?? null);
 
   if (input.wearMm != null && measuredFittingId) {
     const [last] = await tx
@@ -89,19 +125,27 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
       .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
       .innerJoin(fittings, eq(fittings.id, inspectionEntries.fittingId))
       .innerJoin(cutters, eq(cutters.id, fittings.cutterId))
-      .where(and(
-        eq(inspectionEntries.fittingId, measuredFittingId),
-        sql`${inspectionEntries.wearMm} is not null`,
-        sql`${inspectionRounds.startedAt} <= ${round.startedAt}`,
-        prior ? ne(inspectionEntries.id, prior.id) : undefined,
-      ))
+      .where(
+        and(
+          eq(inspectionEntries.fittingId, measuredFittingId),
+          sql`${inspectionEntries.wearMm} is not null`,
+          sql`${inspectionRounds.startedAt} <= ${round.startedAt}`,
+          prior ? ne(inspectionEntries.id, prior.id) : undefined,
+        ),
+      )
       .orderBy(desc(inspectionRounds.startedAt), desc(inspectionEntries.recordedAt))
       .limit(1);
     if (last?.wearMm != null && input.wearMm < last.wearMm) {
-      if (!input.remeasured) throw wearFell(input.wearMm, { wearMm: last.wearMm, at: last.at, serial: last.serial }, await siteTimeZoneOf(tx, projectId));
+      if (!input.remeasured)
+        throw wearFell(input.wearMm, { wearMm: last.wearMm, at: last.at, serial: last.serial }, await siteTimeZoneOf(tx, projectId));
       await audit(tx, {
-        userId, projectId, entity: 'inspection_entry', entityId: input.clientKey, action: 'remeasured_correction',
-        before: { lastWearMm: last.wearMm, lastMeasuredAt: last.at }, after: { wearMm: input.wearMm, positionNumber: position.number },
+        userId,
+        projectId,
+        entity: 'inspection_entry',
+        entityId: input.clientKey,
+        action: 'remeasured_correction',
+        before: { lastWearMm: last.wearMm, lastMeasuredAt: last.at },
+        after: { wearMm: input.wearMm, positionNumber: position.number },
       });
     }
   }
@@ -111,7 +155,9 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
   if (input.action === 'changed' && prior?.action === 'changed') {
     const [fittedBefore] = await tx.select({ serial: cutters.serial }).from(cutters).where(eq(cutters.id, prior.fittedCutterId!));
     if (input.fitted && fittedBefore && input.fitted.serial !== fittedBefore.serial) {
-      throw new ConflictError(`Position ${position.number} already has serial ${fittedBefore.serial} recorded as fitted in this round. Correcting the serial needs the planner.`);
+      throw new ConflictError(
+        `Position ${position.number} already has serial ${fittedBefore.serial} recorded as fitted in this round. Correcting the serial needs the planner.`,
+      );
     }
   } else if (input.action === 'changed') {
     ({ removedCutterId, fittedCutterId } = await changeCutter(tx, { projectId, userId, round, position, current, input }));
@@ -129,14 +175,24 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
   };
   let entry: Entry;
   if (prior) {
-    [entry] = await tx.update(inspectionEntries).set({ ...values, recordedBy: userId, updatedAt: sql`now()` }).where(eq(inspectionEntries.id, prior.id)).returning();
+    [entry] = await tx
+      .update(inspectionEntries)
+      .set({ ...values, recordedBy: userId, updatedAt: sql`now()` })
+      .where(eq(inspectionEntries.id, prior.id))
+      .returning();
     await audit(tx, { userId, projectId, entity: 'inspection_entry', entityId: entry.id, action: 'update', before: prior, after: entry });
   } else {
     [entry] = await tx
       .insert(inspectionEntries)
       .values({
-        ...values, projectId, roundId: round.id, positionId: position.id, clientKey: input.clientKey, fittingId: measuredFittingId,
-        recordedBy: userId, recordedAt: input.recordedAt ? new Date(input.recordedAt) : undefined,
+        ...values,
+        projectId,
+        roundId: round.id,
+        positionId: position.id,
+        clientKey: input.clientKey,
+        fittingId: measuredFittingId,
+        recordedBy: userId,
+        recordedAt: input.recordedAt ? new Date(input.recordedAt) : undefined,
       })
       .returning();
     await audit(tx, { userId, projectId, entity: 'inspection_entry', entityId: entry.id, action: 'create', after: entry });
@@ -158,48 +214,117 @@ interface ChangeContext {
 /** Closes the removed serial's fitted period and opens the fitted one's, at the round's place and time. */
 async function changeCutter(tx: DbOrTx, { projectId, userId, round, position, current, input }: ChangeContext) {
   if (input.removedSerial && !current) {
-    throw new ConflictError(`Kerfwise has no cutter on position ${position.number}, so ${input.removedSerial} cannot be taken off it. Check the position number.`);
+    throw new ConflictError(
+      `Kerfwise has no cutter on position ${position.number}, so ${input.removedSerial} cannot be taken off it. Check the position number.`,
+    );
   }
   if (input.removedSerial && current && input.removedSerial !== current.serial) {
-    throw new ConflictError(`Kerfwise has serial ${current.serial} on position ${position.number}, not ${input.removedSerial}. Check the serial stamped on the hub.`);
+    throw new ConflictError(
+      `Kerfwise has serial ${current.serial} on position ${position.number}, not ${input.removedSerial}. Check the serial stamped on the hub.`,
+    );
   }
   const fittedSerial = input.fitted!.serial;
-  let [fitted] = await tx.select().from(cutters).where(and(eq(cutters.projectId, projectId), eq(cutters.serial, fittedSerial))).for('update');
+  let [fitted] = await tx
+    .select()
+    .from(cutters)
+    .where(and(eq(cutters.projectId, projectId), eq(cutters.serial, fittedSerial)))
+    .for('update');
   if (!fitted) {
     if (!input.fitted!.isNew) throw new NotFoundError(`Serial ${fittedSerial}`);
-    [fitted] = await tx.insert(cutters).values({ projectId, serial: fittedSerial, discSizeIn: position.discSizeIn, status: 'in_store' }).returning();
-    await tx.insert(cutterEvents).values({ projectId, cutterId: fitted.id, kind: 'received', userId, at: round.startedAt, details: { enteredAtFace: true } });
+    [fitted] = await tx
+      .insert(cutters)
+      .values({ projectId, serial: fittedSerial, discSizeIn: position.discSizeIn, status: 'in_store' })
+      .returning();
+    await tx
+      .insert(cutterEvents)
+      .values({ projectId, cutterId: fitted.id, kind: 'received', userId, at: round.startedAt, details: { enteredAtFace: true } });
     await audit(tx, { userId, projectId, entity: 'cutter', entityId: fitted.id, action: 'create', after: fitted });
   }
   if (fitted.status === 'fitted') {
-    const [where] = await tx.select({ number: positions.number, since: fittings.fittedAt }).from(fittings).innerJoin(positions, eq(positions.id, fittings.positionId)).where(and(eq(fittings.cutterId, fitted.id), isNull(fittings.removedAt)));
-    throw new ConflictError(`Serial ${fittedSerial} is already fitted at position ${where?.number ?? '?'}${where ? ` since ${formatSiteDate(where.since, await siteTimeZoneOf(tx, projectId))}` : ''}. A cutter cannot be in two places; check the serial.`);
+    const [where] = await tx
+      .select({ number: positions.number, since: fittings.fittedAt })
+      .from(fittings)
+      .innerJoin(positions, eq(positions.id, fittings.positionId))
+      .where(and(eq(fittings.cutterId, fitted.id), isNull(fittings.removedAt)));
+    throw new ConflictError(
+      `Serial ${fittedSerial} is already fitted at position ${where?.number ?? '?'}${where ? ` since ${formatSiteDate(where.since, await siteTimeZoneOf(tx, projectId))}` : ''}. A cutter cannot be in two places; check the serial.`,
+    );
   }
   if (fitted.status === 'scrapped') throw new ConflictError(`Serial ${fittedSerial} was scrapped and cannot be fitted.`);
-  if (fitted.status === 'workshop') throw new ConflictError(`Serial ${fittedSerial} is in the workshop. Record its rebuild (Cutters → ${fittedSerial}) before fitting it.`);
+  if (fitted.status === 'workshop')
+    throw new ConflictError(`Serial ${fittedSerial} is in the workshop. Record its rebuild (Cutters → ${fittedSerial}) before fitting it.`);
   if (fitted.discSizeIn !== position.discSizeIn) {
-    throw new ConflictError(`Serial ${fittedSerial} is a ${fitted.discSizeIn}″ cutter; position ${position.number} takes ${position.discSizeIn}″.`);
+    throw new ConflictError(
+      `Serial ${fittedSerial} is a ${fitted.discSizeIn}″ cutter; position ${position.number} takes ${position.discSizeIn}″.`,
+    );
   }
 
   const at = round.startedAt;
   // A change recorded back in time re-divides strokes already counted: recompute the drive next time.
-  const [later] = await tx.select({ id: strokes.id }).from(strokes).where(and(eq(strokes.projectId, projectId), sql`${strokes.startTime} > ${at}`)).limit(1);
+  const [later] = await tx
+    .select({ id: strokes.id })
+    .from(strokes)
+    .where(and(eq(strokes.projectId, projectId), sql`${strokes.startTime} > ${at}`))
+    .limit(1);
   // (Not refreshed now: the fittings below are not changed yet.)
   if (later) await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: false });
   let removedCutterId: string | null = null;
   if (current) {
     removedCutterId = current.fitting.cutterId;
-    await tx.update(fittings).set({
-      removedAt: at, removedChainageM: round.chainageM, removedRing: round.ringNumber, removalReason: input.changeReason, removalConditions: input.conditions,
-    }).where(eq(fittings.id, current.fitting.id));
-    await tx.update(cutters).set({ status: 'workshop', updatedAt: sql`now()` }).where(eq(cutters.id, removedCutterId));
+    await tx
+      .update(fittings)
+      .set({
+        removedAt: at,
+        removedChainageM: round.chainageM,
+        removedRing: round.ringNumber,
+        removalReason: input.changeReason,
+        removalConditions: input.conditions,
+      })
+      .where(eq(fittings.id, current.fitting.id));
+    await tx
+      .update(cutters)
+      .set({ status: 'workshop', updatedAt: sql`now()` })
+      .where(eq(cutters.id, removedCutterId));
     await tx.insert(cutterEvents).values({
-      projectId, cutterId: removedCutterId, kind: 'removed', positionId: position.id, userId, at,
-      details: { reason: input.changeReason, conditions: input.conditions, wearMm: input.wearMm, chainageM: round.chainageM, ringNumber: round.ringNumber },
+      projectId,
+      cutterId: removedCutterId,
+      kind: 'removed',
+      positionId: position.id,
+      userId,
+      at,
+      details: {
+        reason: input.changeReason,
+        conditions: input.conditions,
+        wearMm: input.wearMm,
+        chainageM: round.chainageM,
+        ringNumber: round.ringNumber,
+      },
     });
   }
-  await tx.insert(fittings).values({ projectId, cutterId: fitted.id, positionId: position.id, fittedAt: at, fittedChainageM: round.chainageM, fittedRing: round.ringNumber });
-  await tx.update(cutters).set({ status: 'fitted', updatedAt: sql`now()` }).where(eq(cutters.id, fitted.id));
-  await tx.insert(cutterEvents).values({ projectId, cutterId: fitted.id, kind: 'fitted', positionId: position.id, userId, at, details: { chainageM: round.chainageM, ringNumber: round.ringNumber } });
+  await tx
+    .insert(fittings)
+    .values({
+      projectId,
+      cutterId: fitted.id,
+      positionId: position.id,
+      fittedAt: at,
+      fittedChainageM: round.chainageM,
+      fittedRing: round.ringNumber,
+    });
+  await tx
+    .update(cutters)
+    .set({ status: 'fitted', updatedAt: sql`now()` })
+    .where(eq(cutters.id, fitted.id));
+  await tx
+    .insert(cutterEvents)
+    .values({
+      projectId,
+      cutterId: fitted.id,
+      kind: 'fitted',
+      positionId: position.id,
+      userId,
+      at,
+      details: { chainageM: round.chainageM, ringNumber: round.ringNumber },
+    });
   return { removedCutterId, fittedCutterId: fitted.id };
 }

@@ -62,13 +62,18 @@ const MINUTE_MS = 60_000;
 export function slotAtOrBefore(cron: string, at: Date): Date {
   const f = parseCron(cron);
   const nums = (xs: (number | string)[]) => new Set(xs.filter((x): x is number => typeof x === 'number'));
-  const minutes = nums(f.minute), hours = nums(f.hour), doms = nums(f.dayOfMonth), months = nums(f.month);
+  const minutes = nums(f.minute),
+    hours = nums(f.hour),
+    doms = nums(f.dayOfMonth),
+    months = nums(f.month);
   const dows = nums(f.dayOfWeek.map((d) => (d === 7 ? 0 : d)));
-  const anyDom = doms.size >= 31, anyDow = dows.size >= 7;
+  const anyDom = doms.size >= 31,
+    anyDow = dows.size >= 7;
   const t = new Date(Math.floor(at.getTime() / MINUTE_MS) * MINUTE_MS);
   for (let i = 0; i < 366 * 24 * 60; i++, t.setTime(t.getTime() - MINUTE_MS)) {
     if (!minutes.has(t.getMinutes()) || !hours.has(t.getHours()) || !months.has(t.getMonth() + 1)) continue;
-    const dom = doms.has(t.getDate()), dow = dows.has(t.getDay());
+    const dom = doms.has(t.getDate()),
+      dow = dows.has(t.getDay());
     // Classic cron: with both day fields restricted, either one matching is enough.
     if (anyDom && anyDow ? true : anyDom ? dow : anyDow ? dom : dom || dow) return t;
   }
@@ -104,10 +109,16 @@ export function createJobRunner(pool: pg.Pool) {
       const u = unrecorded[0];
       const values = { outcome: 'failed', error: u.error, finishedAt: u.finishedAt };
       const updated = u.runId
-        ? await db.update(jobRuns).set(values).where(and(eq(jobRuns.id, u.runId), eq(jobRuns.outcome, 'running'))).returning({ id: jobRuns.id })
+        ? await db
+            .update(jobRuns)
+            .set(values)
+            .where(and(eq(jobRuns.id, u.runId), eq(jobRuns.outcome, 'running')))
+            .returning({ id: jobRuns.id })
         : [];
       if (!u.runId) {
-        await db.insert(jobRuns).values({ ...values, job: u.job, trigger: u.trigger, startedAt: u.startedAt, slotAt: u.slotAt, triggeredBy: u.userId });
+        await db
+          .insert(jobRuns)
+          .values({ ...values, job: u.job, trigger: u.trigger, startedAt: u.startedAt, slotAt: u.slotAt, triggeredBy: u.userId });
       }
       unrecorded.shift();
       if (!u.runId || updated.length > 0) written++;
@@ -132,13 +143,24 @@ export function createJobRunner(pool: pg.Pool) {
     unrecorded.push(u);
     scheduleFlush();
     return {
-      id: u.runId ?? 0, job: u.job, trigger: u.trigger, startedAt: u.startedAt, finishedAt: u.finishedAt,
-      outcome: 'failed', summary: null, error: u.error, triggeredBy: u.userId, slotAt: u.slotAt,
+      id: u.runId ?? 0,
+      job: u.job,
+      trigger: u.trigger,
+      startedAt: u.startedAt,
+      finishedAt: u.finishedAt,
+      outcome: 'failed',
+      summary: null,
+      error: u.error,
+      triggeredBy: u.userId,
+      slotAt: u.slotAt,
     };
   }
 
   async function recordSkipped(job: JobDefinition, trigger: JobTrigger, slotAt: Date | null, userId: string | null, summary: string) {
-    const [skipped] = await db.insert(jobRuns).values({ job: job.name, trigger, outcome: 'skipped', finishedAt: sql`now()`, summary, slotAt, triggeredBy: userId }).returning();
+    const [skipped] = await db
+      .insert(jobRuns)
+      .values({ job: job.name, trigger, outcome: 'skipped', finishedAt: sql`now()`, summary, slotAt, triggeredBy: userId })
+      .returning();
     return skipped;
   }
 
@@ -162,11 +184,23 @@ export function createJobRunner(pool: pg.Pool) {
         if (!rows[0].locked) return await recordSkipped(job, trigger, slotAt, userId, 'Another server was running this job.');
         try {
           // We hold the lock, so a run still marked 'running' belongs to a process that died mid-run.
-          await db.update(jobRuns)
+          await db
+            .update(jobRuns)
             .set({ outcome: 'failed', error: 'The server stopped during this run; it did not finish.', finishedAt: sql`now()` })
             .where(and(eq(jobRuns.job, job.name), eq(jobRuns.outcome, 'running')));
-          const [run] = await db.insert(jobRuns).values({ job: job.name, trigger, triggeredBy: userId, slotAt }).onConflictDoNothing().returning();
-          if (!run) return await recordSkipped(job, trigger, slotAt, userId, `The run for ${slotAt?.toISOString()} was already done by another server.`);
+          const [run] = await db
+            .insert(jobRuns)
+            .values({ job: job.name, trigger, triggeredBy: userId, slotAt })
+            .onConflictDoNothing()
+            .returning();
+          if (!run)
+            return await recordSkipped(
+              job,
+              trigger,
+              slotAt,
+              userId,
+              `The run for ${slotAt?.toISOString()} was already done by another server.`,
+            );
           runId = run.id;
           let summary: string;
           try {
@@ -174,10 +208,18 @@ export function createJobRunner(pool: pg.Pool) {
           } catch (err) {
             logger.error({ err, job: job.name }, 'job failed');
             // Failing frees the slot (the unique key covers running and good runs only): a catch-up may redo it.
-            const [failed] = await db.update(jobRuns).set({ outcome: 'failed', error: message(err), finishedAt: sql`now()` }).where(eq(jobRuns.id, run.id)).returning();
+            const [failed] = await db
+              .update(jobRuns)
+              .set({ outcome: 'failed', error: message(err), finishedAt: sql`now()` })
+              .where(eq(jobRuns.id, run.id))
+              .returning();
             return failed;
           }
-          const [done] = await db.update(jobRuns).set({ outcome: 'ok', summary, finishedAt: sql`now()` }).where(eq(jobRuns.id, run.id)).returning();
+          const [done] = await db
+            .update(jobRuns)
+            .set({ outcome: 'ok', summary, finishedAt: sql`now()` })
+            .where(eq(jobRuns.id, run.id))
+            .returning();
           return done;
         } finally {
           await client.query('select pg_advisory_unlock(hashtext($1))', [lockKey]).catch((err: Error) => {
@@ -189,14 +231,31 @@ export function createJobRunner(pool: pg.Pool) {
       }
     } catch (err) {
       // The database went away before the run could be recorded, or while recording its end.
-      logger.error({ err: message(err), job: job.name, trigger }, 'job run could not be recorded; kept as failed until the database is back');
-      return remember({ runId, job: job.name, trigger, startedAt, finishedAt: new Date(), error: `The database could not be reached: ${message(err)}`, slotAt, userId });
+      logger.error(
+        { err: message(err), job: job.name, trigger },
+        'job run could not be recorded; kept as failed until the database is back',
+      );
+      return remember({
+        runId,
+        job: job.name,
+        trigger,
+        startedAt,
+        finishedAt: new Date(),
+        error: `The database could not be reached: ${message(err)}`,
+        slotAt,
+        userId,
+      });
     }
   }
 
   /** The last good run of a job, if any. */
   async function lastGoodRun(name: string): Promise<JobRun | undefined> {
-    const [row] = await db.select().from(jobRuns).where(and(eq(jobRuns.job, name), eq(jobRuns.outcome, 'ok'))).orderBy(desc(jobRuns.startedAt)).limit(1);
+    const [row] = await db
+      .select()
+      .from(jobRuns)
+      .where(and(eq(jobRuns.job, name), eq(jobRuns.outcome, 'ok')))
+      .orderBy(desc(jobRuns.startedAt))
+      .limit(1);
     return row;
   }
 
@@ -213,7 +272,17 @@ export function createJobRunner(pool: pg.Pool) {
         due = !last || now.getTime() - last.startedAt.getTime() > job.periodMs;
       } catch (err) {
         logger.error({ err: message(err), job: job.name }, 'catch-up check failed');
-        runs.push(remember({ job: job.name, trigger: 'catch-up', startedAt: now, finishedAt: new Date(), error: `Catch-up check failed; the database could not be reached: ${message(err)}`, slotAt: null, userId: null }));
+        runs.push(
+          remember({
+            job: job.name,
+            trigger: 'catch-up',
+            startedAt: now,
+            finishedAt: new Date(),
+            error: `Catch-up check failed; the database could not be reached: ${message(err)}`,
+            slotAt: null,
+            userId: null,
+          }),
+        );
         continue;
       }
       if (due) runs.push(await runJob(job, 'catch-up', { now }));

@@ -27,12 +27,31 @@ import { advanceAheadByWeek, weightedRolledKm } from '../../shared/domain/advanc
 import { formatChainage } from '../../shared/domain/chainage';
 import { reorderPointUnits, safetyStockUnits, serviceLevelZ, suggestOrder } from '../../shared/domain/inventory';
 import {
-  projectParts, weekIndexOf, type CutterRebuildSpec, type ExpectedChange, type ExpectedFailure, type OpenOrder, type PartWeek, type RebuildInProgress, type RebuildOutcome,
+  projectParts,
+  weekIndexOf,
+  type CutterRebuildSpec,
+  type ExpectedChange,
+  type ExpectedFailure,
+  type OpenOrder,
+  type PartWeek,
+  type RebuildInProgress,
+  type RebuildOutcome,
 } from '../../shared/domain/parts-projection';
 import type { DemandSource, OrderSuggestion, WorkshopSettingsInput } from '../../shared/schemas/parts';
 import { siteDay } from '../../shared/site-time';
 import type { DbOrTx } from '../db/client';
-import { geologySections, parts, positions, projects, purchaseOrderLines, purchaseOrders, stockMovements, stopPositions, stops, workshopSettings } from '../db/schema';
+import {
+  geologySections,
+  parts,
+  positions,
+  projects,
+  purchaseOrderLines,
+  purchaseOrders,
+  stockMovements,
+  stopPositions,
+  stops,
+  workshopSettings,
+} from '../db/schema';
 import { computeForecast } from './forecast';
 
 /** Until the buyer saves settings: two weeks in the workshop, three rebuilds, 95 % service (common practice, no source). */
@@ -44,7 +63,9 @@ const openStopStatuses = ['proposed', 'scheduled', 'in_progress'] as const;
 
 export async function loadWorkshopSettings(tx: DbOrTx, projectId: string): Promise<WorkshopSettingsInput> {
   const [row] = await tx.select().from(workshopSettings).where(eq(workshopSettings.projectId, projectId));
-  return row ? { turnaroundDays: row.turnaroundDays, maxRebuilds: row.maxRebuilds, serviceLevel: row.serviceLevel, boms: row.boms } : defaultWorkshopSettings;
+  return row
+    ? { turnaroundDays: row.turnaroundDays, maxRebuilds: row.maxRebuilds, serviceLevel: row.serviceLevel, boms: row.boms }
+    : defaultWorkshopSettings;
 }
 
 export type CataloguePart = Omit<typeof parts.$inferSelect, 'unitCost'> & {
@@ -72,7 +93,11 @@ export async function listCatalogue(tx: DbOrTx, projectId: string): Promise<Cata
 /** Order lines with quantity still to come. */
 async function openOrderLines(tx: DbOrTx, projectId: string) {
   return tx
-    .select({ partId: purchaseOrderLines.partId, dueDate: purchaseOrderLines.dueDate, qty: sql<number>`${purchaseOrderLines.qtyOrdered} - ${purchaseOrderLines.qtyReceived}` })
+    .select({
+      partId: purchaseOrderLines.partId,
+      dueDate: purchaseOrderLines.dueDate,
+      qty: sql<number>`${purchaseOrderLines.qtyOrdered} - ${purchaseOrderLines.qtyReceived}`,
+    })
     .from(purchaseOrderLines)
     .innerJoin(purchaseOrders, eq(purchaseOrders.id, purchaseOrderLines.purchaseOrderId))
     .where(and(eq(purchaseOrders.projectId, projectId), gt(purchaseOrderLines.qtyOrdered, purchaseOrderLines.qtyReceived)));
@@ -102,7 +127,6 @@ export interface DemandStop {
   label: string;
 }
 
-
 export interface PartsDemand {
   now: Date;
   startDate: string;
@@ -123,7 +147,12 @@ export interface PartsDemand {
 }
 
 /** Demand per part and week over `weeks` weeks from `now`, with order suggestions at `serviceLevel` (default: the workshop setting). */
-export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Date, options: { weeks: number; serviceLevel?: number }): Promise<PartsDemand> {
+export async function computePartsDemand(
+  tx: DbOrTx,
+  projectId: string,
+  now: Date,
+  options: { weeks: number; serviceLevel?: number },
+): Promise<PartsDemand> {
   const horizonWeeks = options.weeks;
   const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
   const settings = await loadWorkshopSettings(tx, projectId);
@@ -139,7 +168,8 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
   const assemblyForSize = (discSizeIn: number) => assemblies.find((a) => a.discSizeIn === discSizeIn);
 
   // Workshop specs; an assembly without a bill of materials scraps every removed cutter (said as a problem).
-  const bomCost = (outcome: RebuildOutcome) => (outcome === 'scrap' ? Infinity : outcome.reduce((s, l) => s + l.qty * (partById.get(l.partId)?.unitCost ?? 0), 0));
+  const bomCost = (outcome: RebuildOutcome) =>
+    outcome === 'scrap' ? Infinity : outcome.reduce((s, l) => s + l.qty * (partById.get(l.partId)?.unitCost ?? 0), 0);
   const specs: CutterRebuildSpec[] = assemblies.map((a) => {
     const saved = settings.boms[a.id];
     if (!saved) problems.push(`The workshop settings have no bill of materials for ${a.code}: its removed cutters count as scrapped.`);
@@ -161,27 +191,42 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
   const forecast = await computeForecast(tx, projectId, now);
   problems.push(...forecast.problems);
   const positionRows = await tx
-    .select({ id: positions.id, number: positions.number, trackRadiusMm: positions.trackRadiusMm, positionClass: positions.positionClass, discSizeIn: positions.discSizeIn,
-      twinDisc: positions.twinDisc, wearLimitMm: positions.wearLimitMm,
-      rebuildCount: sql<number | null>`(select c.rebuild_count from fittings f join cutters c on c.id = f.cutter_id where f.position_id = positions.id and f.removed_at is null)` })
+    .select({
+      id: positions.id,
+      number: positions.number,
+      trackRadiusMm: positions.trackRadiusMm,
+      positionClass: positions.positionClass,
+      discSizeIn: positions.discSizeIn,
+      twinDisc: positions.twinDisc,
+      wearLimitMm: positions.wearLimitMm,
+      rebuildCount: sql<
+        number | null
+      >`(select c.rebuild_count from fittings f join cutters c on c.id = f.cutter_id where f.position_id = positions.id and f.removed_at is null)`,
+    })
     .from(positions)
     .where(eq(positions.projectId, projectId))
     .orderBy(asc(positions.number));
   const missingSizes = [...new Set(positionRows.map((p) => p.discSizeIn))].filter((s) => !assemblyForSize(s));
-  for (const size of missingSizes) problems.push(`The catalogue has no ${size}″ cutter assembly: changes and failures of ${size}″ positions are not counted.`);
+  for (const size of missingSizes)
+    problems.push(`The catalogue has no ${size}″ cutter assembly: changes and failures of ${size}″ positions are not counted.`);
 
   // Expected advance and rolled km ahead; sudden failures and the wear of discs fitted at a change.
   const sections = await tx.select().from(geologySections).where(eq(geologySections.projectId, projectId));
-  const advance = forecast.currentChainageM == null ? null : advanceAheadByWeek({
-    currentChainageM: forecast.currentChainageM,
-    direction: project.driveDirection,
-    sections: sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
-    penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
-    advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
-    weeks: horizonWeeks,
-  });
-  if (forecast.currentChainageM != null && !advance) problems.push('No advance or penetration is known yet: sudden failures and repeat changes are not forecast.');
-  if (advance?.geologyEndsWeek != null) problems.push(`The mapped geology ends in week ${advance.geologyEndsWeek + 1}: no failures or repeat changes are forecast after it.`);
+  const advance =
+    forecast.currentChainageM == null
+      ? null
+      : advanceAheadByWeek({
+          currentChainageM: forecast.currentChainageM,
+          direction: project.driveDirection,
+          sections: sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
+          penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
+          advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
+          weeks: horizonWeeks,
+        });
+  if (forecast.currentChainageM != null && !advance)
+    problems.push('No advance or penetration is known yet: sudden failures and repeat changes are not forecast.');
+  if (advance?.geologyEndsWeek != null)
+    problems.push(`The mapped geology ends in week ${advance.geologyEndsWeek + 1}: no failures or repeat changes are forecast after it.`);
   const failuresPerKm: Record<string, number> = {};
   for (const f of forecast.wearFit.failures) if (f.ratePer1000Km != null) failuresPerKm[f.groundTypeId] = f.ratePer1000Km / 1000;
   const p50PerKm: Record<string, number> = Object.fromEntries(Object.entries(forecast.rates.byGround).map(([g, r]) => [g, r.p50MmPerKm]));
@@ -196,7 +241,14 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
     const position = positionRows.find((p) => p.id === positionId)!;
     const assembly = assemblyForSize(position.discSizeIn);
     if (!assembly || week >= horizonWeeks) return;
-    changes.push({ week, assemblyPartId: assembly.id, count: 1, conditionMix: { [worstCondition(assembly.id, [])]: 1 }, stopId: source, priorRebuilds });
+    changes.push({
+      week,
+      assemblyPartId: assembly.id,
+      count: 1,
+      conditionMix: { [worstCondition(assembly.id, [])]: 1 },
+      stopId: source,
+      priorRebuilds,
+    });
   };
 
   // Open stops: their positions change in the stop's week, or each at its own P90 date.
@@ -210,12 +262,18 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
   const p90Of = new Map(forecast.positions.map((p) => [p.position.positionId, p.p90]));
   const demandStops = new Map<string, DemandStop>();
   for (const { stop, positionId, positionNumber } of openStops) {
-    const dated = stop.status === 'in_progress' ? stop.actualStart ?? stop.plannedStart ?? now : stop.plannedStart;
+    const dated = stop.status === 'in_progress' ? (stop.actualStart ?? stop.plannedStart ?? now) : stop.plannedStart;
     let ds = demandStops.get(stop.id);
     if (!ds) {
       const when = dated ? ` on ${siteDay(dated, project.siteTimeZone)}` : ' (no date yet: at the positions’ P90 dates)';
       ds = {
-        id: stop.id, status: stop.status, chainageM: stop.chainageM, ringNumber: stop.ringNumber, plannedStart: dated, dateBasis: dated ? 'planned' : 'p90', positionNumbers: [],
+        id: stop.id,
+        status: stop.status,
+        chainageM: stop.chainageM,
+        ringNumber: stop.ringNumber,
+        plannedStart: dated,
+        dateBasis: dated ? 'planned' : 'p90',
+        positionNumbers: [],
         label: `Stop at ${formatChainage(stop.chainageM)}${stop.ringNumber != null ? ` (ring ${stop.ringNumber})` : ''}, ${stop.status.replace('_', ' ')}${when}`,
       };
       demandStops.set(stop.id, ds);
@@ -224,7 +282,9 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
     const p90 = p90Of.get(positionId);
     const at = dated ?? (p90 && p90.status !== 'beyond_known_ground' ? p90.date : null);
     if (!at) {
-      problems.push(`Position ${positionNumber} is on the stop at ${formatChainage(stop.chainageM)}, which has no date, and the forecast gives it no change-out date: its change is not counted.`);
+      problems.push(
+        `Position ${positionNumber} is on the stop at ${formatChainage(stop.chainageM)}, which has no date, and the forecast gives it no change-out date: its change is not counted.`,
+      );
       continue;
     }
     if (firstChangeWeek.has(positionId)) continue; // on two open stops: counted once, at the first
@@ -263,7 +323,13 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
         const failures = discs * weightedRolledKm(segments, p.trackRadiusMm, (g) => perGround(failuresPerKm, g));
         if (failures > 0 && assembly && Object.keys(mix).length > 0) {
           suddenFailuresPerWeek[week] += failures;
-          suddenFailures.push({ week, assemblyPartId: assembly.id, count: failures, conditionMix: mix, priorRebuilds: p.rebuildCount ?? 0 });
+          suddenFailures.push({
+            week,
+            assemblyPartId: assembly.id,
+            count: failures,
+            conditionMix: mix,
+            priorRebuilds: p.rebuildCount ?? 0,
+          });
         }
         // Repeat changes: the disc fitted at the first change wears from the next week on at the central rate.
         const first = firstChangeWeek.get(p.id);
@@ -278,7 +344,12 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
   }
 
   // Cutters in the workshop now come back after the turnaround, unless their condition or age scraps them.
-  const inWorkshop = await tx.execute<{ disc_size_in: number; rebuild_count: number; removed_at: Date | string; removal_conditions: string[] | null }>(sql`
+  const inWorkshop = await tx.execute<{
+    disc_size_in: number;
+    rebuild_count: number;
+    removed_at: Date | string;
+    removal_conditions: string[] | null;
+  }>(sql`
     select c.disc_size_in, c.rebuild_count, coalesce(f.removed_at, c.updated_at) as removed_at, f.removal_conditions
     from cutters c
     left join lateral (select removed_at, removal_conditions from fittings where cutter_id = c.id and removed_at is not null order by removed_at desc limit 1) f on true
@@ -289,15 +360,28 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
     if (!assembly || c.rebuild_count >= settings.maxRebuilds) continue;
     if (specOf.get(assembly.id)!.bomByCondition[worstCondition(assembly.id, c.removal_conditions ?? [])] === 'scrap') continue;
     const ready = new Date(new Date(c.removed_at).getTime() + settings.turnaroundDays * 86_400_000);
-    rebuildsInProgress.push({ assemblyPartId: assembly.id, readyWeek: Math.max(0, weekIndexOf(siteDay(ready, project.siteTimeZone), startDate)), qty: 1 });
+    rebuildsInProgress.push({
+      assemblyPartId: assembly.id,
+      readyWeek: Math.max(0, weekIndexOf(siteDay(ready, project.siteTimeZone), startDate)),
+      qty: 1,
+    });
   }
 
-  const openOrders: OpenOrder[] = (await openOrderLines(tx, projectId)).map((l) => ({ partId: l.partId, dueWeek: weekIndexOf(l.dueDate, startDate), qty: l.qty }));
+  const openOrders: OpenOrder[] = (await openOrderLines(tx, projectId)).map((l) => ({
+    partId: l.partId,
+    dueWeek: weekIndexOf(l.dueDate, startDate),
+    qty: l.qty,
+  }));
   const projected = projectParts({
-    startDate, horizonWeeks,
+    startDate,
+    horizonWeeks,
     parts: catalogue.map((p) => ({ partId: p.id, kind: p.kind, discSizeIn: p.discSizeIn ?? undefined })),
     onHand: Object.fromEntries(catalogue.map((p) => [p.id, p.onHand])),
-    rebuildSpecs: specs, changes, suddenFailures, openOrders, rebuildsInProgress,
+    rebuildSpecs: specs,
+    changes,
+    suddenFailures,
+    openOrders,
+    rebuildsInProgress,
   });
   const weeks: DemandWeek[] = projected.map(({ demandSources, ...w }) => ({
     ...w,
@@ -308,9 +392,23 @@ export async function computePartsDemand(tx: DbOrTx, projectId: string, now: Dat
     })),
   }));
 
-  const suggestions = catalogue.map((part) => suggestionFor(part, weeks.filter((w) => w.partId === part.id), z));
+  const suggestions = catalogue.map((part) =>
+    suggestionFor(
+      part,
+      weeks.filter((w) => w.partId === part.id),
+      z,
+    ),
+  );
   return {
-    now, startDate, horizonWeeks, serviceLevel, z, parts: catalogue, weeks, suggestions, stops: [...demandStops.values()],
+    now,
+    startDate,
+    horizonWeeks,
+    serviceLevel,
+    z,
+    parts: catalogue,
+    weeks,
+    suggestions,
+    stops: [...demandStops.values()],
     estimate: { rolledKmPerWeek, suddenFailuresPerWeek, geologyEndsWeek: advance?.geologyEndsWeek ?? null },
     problems,
   };
@@ -343,16 +441,44 @@ function suggestionFor(part: CataloguePart, rows: DemandWeek[], z: number): Orde
   const inWindow = rows.slice(0, window);
   const leadTimeDemand = inWindow.reduce((s, r) => s + r.demand, 0) + Math.max(0, window - n) * mean;
   const dueWithinLeadTime = inWindow.reduce((s, r) => s + r.receipts + r.rebuildReturns, 0);
-  const s = suggestOrder({ onHandUnits: part.onHand, onOrderUnits: dueWithinLeadTime, projectedDemandUnits: leadTimeDemand, safetyStockUnits: safetyStock, minOrderUnits: part.minOrderQty });
+  const s = suggestOrder({
+    onHandUnits: part.onHand,
+    onOrderUnits: dueWithinLeadTime,
+    projectedDemandUnits: leadTimeDemand,
+    safetyStockUnits: safetyStock,
+    minOrderUnits: part.minOrderQty,
+  });
   const shortage = rows.find((r) => r.projectedStock < -1e-9);
   const sources: DemandSource[] = [];
   for (const r of inWindow) addSources(sources, r.sources);
   return {
-    partId: part.id, code: part.code, name: part.name, kind: part.kind, supplier: part.supplier, currency: part.currency, unitCost: part.unitCost, minOrderQty: part.minOrderQty,
-    onHand: part.onHand, onOrder: part.onOrder, leadTimeWeeks, leadTimeSdWeeks, meanWeeklyDemand: mean, weeklyDemandSd: sd, safetyStock,
-    reorderPoint: reorderPointUnits(demand, z), leadTimeWindowWeeks: window, leadTimeDemand, dueWithinLeadTime, inventoryPosition: s.inventoryPositionUnits,
-    orderQty: s.orderUnits, orderNow: s.orderUnits > 0, orderValue: s.orderUnits * part.unitCost, weeksOfCover: mean > 1e-9 ? part.onHand / mean : null,
-    firstShortageWeek: shortage?.week ?? null, firstShortageDate: shortage?.weekStartDate ?? null, sources: sources.filter((x) => x.qty > 1e-9),
+    partId: part.id,
+    code: part.code,
+    name: part.name,
+    kind: part.kind,
+    supplier: part.supplier,
+    currency: part.currency,
+    unitCost: part.unitCost,
+    minOrderQty: part.minOrderQty,
+    onHand: part.onHand,
+    onOrder: part.onOrder,
+    leadTimeWeeks,
+    leadTimeSdWeeks,
+    meanWeeklyDemand: mean,
+    weeklyDemandSd: sd,
+    safetyStock,
+    reorderPoint: reorderPointUnits(demand, z),
+    leadTimeWindowWeeks: window,
+    leadTimeDemand,
+    dueWithinLeadTime,
+    inventoryPosition: s.inventoryPositionUnits,
+    orderQty: s.orderUnits,
+    orderNow: s.orderUnits > 0,
+    orderValue: s.orderUnits * part.unitCost,
+    weeksOfCover: mean > 1e-9 ? part.onHand / mean : null,
+    firstShortageWeek: shortage?.week ?? null,
+    firstShortageDate: shortage?.weekStartDate ?? null,
+    sources: sources.filter((x) => x.qty > 1e-9),
   };
 }
 
@@ -360,7 +486,10 @@ function suggestionFor(part: CataloguePart, rows: DemandWeek[], z: number): Orde
 export function sourcesText(sources: readonly DemandSource[], stopsById: ReadonlyMap<string, DemandStop>): string {
   const qty = (q: number) => (Number.isInteger(q) ? String(q) : q.toFixed(1));
   return sources
-    .map((s) => `${s.kind === 'stop' ? stopsById.get(s.stopId!)?.label ?? 'a stop' : s.kind === 'forecast' ? 'positions due without a stop' : 'sudden failures'}: ${qty(s.qty)}`)
+    .map(
+      (s) =>
+        `${s.kind === 'stop' ? (stopsById.get(s.stopId!)?.label ?? 'a stop') : s.kind === 'forecast' ? 'positions due without a stop' : 'sudden failures'}: ${qty(s.qty)}`,
+    )
     .join('; ');
 }
 
@@ -369,19 +498,58 @@ export function suggestionsCsvRows(demand: PartsDemand): (string | number)[][] {
   const stopsById = new Map(demand.stops.map((s) => [s.id, s]));
   const round = (v: number, d = 2) => Number(v.toFixed(d));
   return [
-    ['code', 'name', 'supplier', 'on_hand', 'on_order', 'lead_time_weeks', 'mean_weekly_demand', 'safety_stock', 'reorder_point', 'lead_time_demand',
-      'order_now', 'order_qty', 'unit_cost', 'currency', 'order_value', 'first_shortage_week_starting', 'demand_from'],
+    [
+      'code',
+      'name',
+      'supplier',
+      'on_hand',
+      'on_order',
+      'lead_time_weeks',
+      'mean_weekly_demand',
+      'safety_stock',
+      'reorder_point',
+      'lead_time_demand',
+      'order_now',
+      'order_qty',
+      'unit_cost',
+      'currency',
+      'order_value',
+      'first_shortage_week_starting',
+      'demand_from',
+    ],
     ...demand.suggestions.map((s) => [
-      s.code, s.name, s.supplier, s.onHand, s.onOrder, round(s.leadTimeWeeks), round(s.meanWeeklyDemand), round(s.safetyStock), round(s.reorderPoint), round(s.leadTimeDemand),
-      s.orderNow ? 'yes' : 'no', s.orderQty, round(s.unitCost), s.currency, round(s.orderValue), s.firstShortageDate ?? '', sourcesText(s.sources, stopsById),
+      s.code,
+      s.name,
+      s.supplier,
+      s.onHand,
+      s.onOrder,
+      round(s.leadTimeWeeks),
+      round(s.meanWeeklyDemand),
+      round(s.safetyStock),
+      round(s.reorderPoint),
+      round(s.leadTimeDemand),
+      s.orderNow ? 'yes' : 'no',
+      s.orderQty,
+      round(s.unitCost),
+      s.currency,
+      round(s.orderValue),
+      s.firstShortageDate ?? '',
+      sourcesText(s.sources, stopsById),
     ]),
   ];
 }
 
 /** Stock on hand of one part (sum of movements), with the part row locked for the rest of the transaction. */
 export async function lockPartStock(tx: DbOrTx, projectId: string, partId: string) {
-  const [part] = await tx.select().from(parts).where(and(eq(parts.id, partId), eq(parts.projectId, projectId))).for('update');
+  const [part] = await tx
+    .select()
+    .from(parts)
+    .where(and(eq(parts.id, partId), eq(parts.projectId, projectId)))
+    .for('update');
   if (!part) return null;
-  const [{ onHand }] = await tx.select({ onHand: sql<number>`coalesce(sum(${stockMovements.qty}), 0)::int` }).from(stockMovements).where(eq(stockMovements.partId, partId));
+  const [{ onHand }] = await tx
+    .select({ onHand: sql<number>`coalesce(sum(${stockMovements.qty}), 0)::int` })
+    .from(stockMovements)
+    .where(eq(stockMovements.partId, partId));
   return { part, onHand };
 }

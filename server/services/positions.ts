@@ -5,9 +5,22 @@ import { db } from '../db/client';
 /** Positions with the serial on each now and the last wear measured on that disc. */
 export async function listPositions(projectId: string) {
   const rows = await db.execute<{
-    id: string; number: number; track_radius_mm: number; position_class: string; disc_size_in: number; tilt_deg: number | null;
-    wear_limit_mm: number; twin_disc: boolean; angle_deg: number | null; fitting_id: string | null; serial: string | null;
-    cutter_id: string | null; fitted_at: Date | null; fitted_chainage_m: number | null; last_wear_mm: number | null; last_measured_at: Date | null;
+    id: string;
+    number: number;
+    track_radius_mm: number;
+    position_class: string;
+    disc_size_in: number;
+    tilt_deg: number | null;
+    wear_limit_mm: number;
+    twin_disc: boolean;
+    angle_deg: number | null;
+    fitting_id: string | null;
+    serial: string | null;
+    cutter_id: string | null;
+    fitted_at: Date | null;
+    fitted_chainage_m: number | null;
+    last_wear_mm: number | null;
+    last_measured_at: Date | null;
     last_conditions: string[] | null;
   }>(sql`
     select p.id, p.number, p.track_radius_mm, p.position_class, p.disc_size_in, p.tilt_deg, p.wear_limit_mm, p.twin_disc, p.angle_deg,

@@ -25,7 +25,12 @@ const crewKinds: ReadonlySet<NotificationKind> = new Set(['stop_published', 'sto
  * The people of `projectId` to mail about `kind`, without those who turned it off. Crew kinds
  * need the stop's `crewId` (none: nobody).
  */
-export async function recipientsFor(tx: DbOrTx, projectId: string, kind: NotificationKind, options: { crewId?: string | null } = {}): Promise<Recipient[]> {
+export async function recipientsFor(
+  tx: DbOrTx,
+  projectId: string,
+  kind: NotificationKind,
+  options: { crewId?: string | null } = {},
+): Promise<Recipient[]> {
   let people: Recipient[];
   if (crewKinds.has(kind)) {
     if (!options.crewId) return [];
@@ -43,6 +48,10 @@ export async function recipientsFor(tx: DbOrTx, projectId: string, kind: Notific
       .where(and(eq(memberships.projectId, projectId), inArray(memberships.role, roles), eq(users.active, true)))
       .orderBy(asc(users.email));
   }
-  const off = await optedOut(tx, people.flatMap((p) => (p.userId ? [p.userId] : [])), kind);
+  const off = await optedOut(
+    tx,
+    people.flatMap((p) => (p.userId ? [p.userId] : [])),
+    kind,
+  );
   return people.filter((p) => !p.userId || !off.has(p.userId));
 }

@@ -7,9 +7,25 @@
  */
 import { and, asc, eq, gt, sql } from 'drizzle-orm';
 import type { GeologySection } from '../../shared/domain/geology';
-import { revolutionsByGround, sumRolledKmForPeriods, type PeriodRolledKm, type RadiusPeriod, type Stroke } from '../../shared/domain/rolled-distance';
+import {
+  revolutionsByGround,
+  sumRolledKmForPeriods,
+  type PeriodRolledKm,
+  type RadiusPeriod,
+  type Stroke,
+} from '../../shared/domain/rolled-distance';
 import type { DbOrTx } from '../db/client';
-import { entryRolledKm, fittingRolledKm, fittings, geologySections, inspectionEntries, inspectionRounds, positions, rolledDistanceState, strokes } from '../db/schema';
+import {
+  entryRolledKm,
+  fittingRolledKm,
+  fittings,
+  geologySections,
+  inspectionEntries,
+  inspectionRounds,
+  positions,
+  rolledDistanceState,
+  strokes,
+} from '../db/schema';
 
 export const UNKNOWN_GROUND = 'unknown';
 
@@ -51,13 +67,22 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
   const fittingRows = await tx.select().from(fittings).where(eq(fittings.projectId, projectId));
 
   const sections: GeologySection[] = sectionRows.map((s) => ({
-    chainageFromM: s.chainageFromM, chainageToM: s.chainageToM, groundTypeId: s.groundTypeId, waterHeadM: s.waterHeadM, stopAllowed: s.stopAllowed, stopReason: s.stopReason,
+    chainageFromM: s.chainageFromM,
+    chainageToM: s.chainageToM,
+    groundTypeId: s.groundTypeId,
+    waterHeadM: s.waterHeadM,
+    stopAllowed: s.stopAllowed,
+    stopReason: s.stopReason,
   }));
   const domainStrokes = strokeRows.map(toStroke);
   const { pieces, errors } = revolutionsByGround(domainStrokes, sections);
   const radius = new Map(positionRows.map((p) => [p.id, p.trackRadiusMm]));
   const periods: RadiusPeriod[] = fittingRows.map((f) => ({
-    id: f.id, positionId: f.positionId, trackRadiusMm: radius.get(f.positionId)!, fromTime: f.fittedAt.toISOString(), toTime: f.removedAt?.toISOString() ?? null,
+    id: f.id,
+    positionId: f.positionId,
+    trackRadiusMm: radius.get(f.positionId)!,
+    fromTime: f.fittedAt.toISOString(),
+    toTime: f.removedAt?.toISOString() ?? null,
   }));
   // An inspection's exposure is a window too: from its disc's fitting to the round.
   const fittingById = new Map(fittingRows.map((f) => [f.id, f]));
@@ -68,7 +93,17 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
   const entryWindows: RadiusPeriod[] = entryRows.flatMap((e) => {
     const f = fittingById.get(e.fittingId!);
-    return f ? [{ id: e.id, positionId: f.positionId, trackRadiusMm: radius.get(f.positionId)!, fromTime: f.fittedAt.toISOString(), toTime: e.at.toISOString() }] : [];
+    return f
+      ? [
+          {
+            id: e.id,
+            positionId: f.positionId,
+            trackRadiusMm: radius.get(f.positionId)!,
+            fromTime: f.fittedAt.toISOString(),
+            toTime: e.at.toISOString(),
+          },
+        ]
+      : [];
   });
   const totals = sumRolledKmForPeriods(periods, pieces);
   const entryTotals = sumRolledKmForPeriods(entryWindows, pieces);
@@ -78,7 +113,11 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     await tx.delete(entryRolledKm).where(eq(entryRolledKm.projectId, projectId));
   }
   await writeTotals(tx, projectId, totals, full ? 'replace' : 'add');
-  await writeEntryTotals(tx, projectId, entryTotals.filter((t) => t.rolledKm > 0));
+  await writeEntryTotals(
+    tx,
+    projectId,
+    entryTotals.filter((t) => t.rolledKm > 0),
+  );
 
   const throughRing = Math.max(state?.throughRing ?? -1, ...strokeRows.map((s) => s.ringNumber));
   await tx
@@ -86,11 +125,20 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     .values({ projectId, throughRing })
     .onConflictDoUpdate({ target: rolledDistanceState.projectId, set: { throughRing, computedAt: sql`now()` } });
   const ringOf = new Map(domainStrokes.map((s) => [s.id, s.ringNumber]));
-  return { mode: full ? 'full' : 'incremental', strokes: strokeRows.length, errors: errors.map((e) => ({ ringNumber: ringOf.get(e.strokeId) ?? e.ringNumber, reason: e.reason })) };
+  return {
+    mode: full ? 'full' : 'incremental',
+    strokes: strokeRows.length,
+    errors: errors.map((e) => ({ ringNumber: ringOf.get(e.strokeId) ?? e.ringNumber, reason: e.reason })),
+  };
 }
 
 async function writeTotals(tx: DbOrTx, projectId: string, totals: PeriodRolledKm[], how: 'replace' | 'add') {
-  const values = totals.map((t) => ({ fittingId: t.periodId, projectId, groundKey: t.groundTypeId ?? UNKNOWN_GROUND, rolledKm: t.rolledKm }));
+  const values = totals.map((t) => ({
+    fittingId: t.periodId,
+    projectId,
+    groundKey: t.groundTypeId ?? UNKNOWN_GROUND,
+    rolledKm: t.rolledKm,
+  }));
   for (let i = 0; i < values.length; i += 2000) {
     const chunk = values.slice(i, i + 2000);
     await tx
@@ -109,7 +157,10 @@ async function writeEntryTotals(tx: DbOrTx, projectId: string, totals: PeriodRol
     await tx
       .insert(entryRolledKm)
       .values(values.slice(i, i + 2000))
-      .onConflictDoUpdate({ target: [entryRolledKm.entryId, entryRolledKm.groundKey], set: { rolledKm: sql`${entryRolledKm.rolledKm} + excluded.rolled_km` } });
+      .onConflictDoUpdate({
+        target: [entryRolledKm.entryId, entryRolledKm.groundKey],
+        set: { rolledKm: sql`${entryRolledKm.rolledKm} + excluded.rolled_km` },
+      });
   }
 }
 
@@ -120,7 +171,11 @@ async function writeEntryTotals(tx: DbOrTx, projectId: string, totals: PeriodRol
 export async function recordEntryExposure(tx: DbOrTx, projectId: string, entryId: string, fittingId: string, at: Date): Promise<void> {
   const [state] = await tx.select().from(rolledDistanceState).where(eq(rolledDistanceState.projectId, projectId));
   if (!state) return;
-  const [later] = await tx.select({ id: strokes.id }).from(strokes).where(and(eq(strokes.projectId, projectId), sql`${strokes.startTime} > ${at}`)).limit(1);
+  const [later] = await tx
+    .select({ id: strokes.id })
+    .from(strokes)
+    .where(and(eq(strokes.projectId, projectId), sql`${strokes.startTime} > ${at}`))
+    .limit(1);
   if (later) {
     await invalidateRolledDistance(tx, projectId);
     return;

@@ -8,12 +8,32 @@ import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
 import { aheadM, chainageAhead, formatChainage, ringAtAhead } from '../../shared/domain/chainage';
 import { COMPRESSED_AIR_CAUTION, needsCompressedAir, workingPressureFromHead } from '../../shared/domain/compressed-air';
 import type { PositionClass } from '../../shared/domain/forecast';
-import { buildStopPlanInput, expectedAtAhead, knownGroundAheadM, PLACE_EPS_M, stopPlaceAt, type DriveGeology } from '../../shared/domain/stop-plan-input';
+import {
+  buildStopPlanInput,
+  expectedAtAhead,
+  knownGroundAheadM,
+  PLACE_EPS_M,
+  stopPlaceAt,
+  type DriveGeology,
+} from '../../shared/domain/stop-plan-input';
 import { planStops, type StopPlan } from '../../shared/domain/stop-planner';
 import { partsKit } from '../../shared/domain/work-pack';
 import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
 import type { DbOrTx } from '../db/client';
-import { crewMembers, crews, cutters, fittings, geologySections, groundTypes, inspectionRounds, positions, projects, stopPositions, stops, strokes } from '../db/schema';
+import {
+  crewMembers,
+  crews,
+  cutters,
+  fittings,
+  geologySections,
+  groundTypes,
+  inspectionRounds,
+  positions,
+  projects,
+  stopPositions,
+  stops,
+  strokes,
+} from '../db/schema';
 import { NotFoundError } from '../lib/errors';
 import { computeForecast } from './forecast';
 
@@ -41,18 +61,18 @@ export const defaultStopPlanSettings = {
   fixedIntervalM: 250,
 };
 
-
-
 /** Chainage tolerance, m: absorbs rounding when a stop is matched to a plan place. */
 const EPS_M = PLACE_EPS_M;
 
 /** Indicative working pressure (bar) from the water head; null where there is no head above the axis. */
-const pressureBar = (waterHeadM: number | null) => (waterHeadM != null && waterHeadM > 0 ? workingPressureFromHead(waterHeadM).pressureBar : null);
+const pressureBar = (waterHeadM: number | null) =>
+  waterHeadM != null && waterHeadM > 0 ? workingPressureFromHead(waterHeadM).pressureBar : null;
 
 export type ProjectStopPlan = StopPlanView<Date>;
 
 /** The cautions of work in the cutterhead, and of compressed air when it is needed. */
-export const stopCautions = (compressedAir: boolean) => (compressedAir ? [CUTTERHEAD_ENTRY_CAUTION, COMPRESSED_AIR_CAUTION] : [CUTTERHEAD_ENTRY_CAUTION]);
+export const stopCautions = (compressedAir: boolean) =>
+  compressedAir ? [CUTTERHEAD_ENTRY_CAUTION, COMPRESSED_AIR_CAUTION] : [CUTTERHEAD_ENTRY_CAUTION];
 
 const openStatuses: StopStatus[] = ['proposed', 'scheduled', 'in_progress'];
 
@@ -76,7 +96,11 @@ function planSettings(project: { compressedAirAboveHeadM: number }, overrides: S
 }
 
 async function loadDriveGeology(tx: DbOrTx, project: typeof projects.$inferSelect): Promise<DriveGeology> {
-  const sections = await tx.select().from(geologySections).where(eq(geologySections.projectId, project.id)).orderBy(asc(geologySections.chainageFromM));
+  const sections = await tx
+    .select()
+    .from(geologySections)
+    .where(eq(geologySections.projectId, project.id))
+    .orderBy(asc(geologySections.chainageFromM));
   return { sections, ringLengthM: project.ringLengthM, direction: project.driveDirection };
 }
 
@@ -92,12 +116,28 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const forecast = await computeForecast(tx, projectId, now);
   const geology = await loadDriveGeology(tx, project);
   const empty: ProjectStopPlan = {
-    now, currentChainageM: forecast.currentChainageM, currentRingNumber: forecast.currentRingNumber, settings, horizonEndChainageM: null,
-    candidatePlaceCount: 0, longSection: [], compressedAirAboveHeadM: settings.compressedAirAboveHeadM, problems: [...forecast.problems], infeasible: [], optimised: null, certificate: null, practice: null, fixedInterval: null, savingVsPracticeH: null, savingVsIntervalH: null, cautions: [CUTTERHEAD_ENTRY_CAUTION],
+    now,
+    currentChainageM: forecast.currentChainageM,
+    currentRingNumber: forecast.currentRingNumber,
+    settings,
+    horizonEndChainageM: null,
+    candidatePlaceCount: 0,
+    longSection: [],
+    compressedAirAboveHeadM: settings.compressedAirAboveHeadM,
+    problems: [...forecast.problems],
+    infeasible: [],
+    optimised: null,
+    certificate: null,
+    practice: null,
+    fixedInterval: null,
+    savingVsPracticeH: null,
+    savingVsIntervalH: null,
+    cautions: [CUTTERHEAD_ENTRY_CAUTION],
   };
   if (forecast.currentChainageM == null || forecast.positions.length === 0) return empty;
   const knownM = knownGroundAheadM(geology, forecast.currentChainageM);
-  if (knownM <= 0) return { ...empty, problems: [...empty.problems, 'No geology is known ahead of the machine: import the long section to plan stops.'] };
+  if (knownM <= 0)
+    return { ...empty, problems: [...empty.problems, 'No geology is known ahead of the machine: import the long section to plan stops.'] };
   const fullInput = buildStopPlanInput(forecast, geology, settings);
   const problems0: string[] = [];
   const byId = new Map(forecast.positions.map((p) => [p.position.positionId, p.position]));
@@ -112,8 +152,13 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const infeasible = first.feasible
     ? []
     : first.problems
-      .map((p) => ({ positionId: p.positionId, positionNumber: byId.get(p.positionId)!.positionNumber, dueChainageM: p.dueChainageM, reason: p.reason }))
-      .sort((a, b) => a.positionNumber - b.positionNumber);
+        .map((p) => ({
+          positionId: p.positionId,
+          positionNumber: byId.get(p.positionId)!.positionNumber,
+          dueChainageM: p.dueChainageM,
+          reason: p.reason,
+        }))
+        .sort((a, b) => a.positionNumber - b.positionNumber);
   // When no plan covers the horizon, plan up to the first point no plan can pass: the crews still
   // need the stops before it, and the problem is shown beside them.
   const reachM = first.feasible ? fullInput.horizonM : Math.min(...first.problems.map((p) => p.dueAheadM)) - 1e-3;
@@ -121,52 +166,81 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const result = first.feasible ? first : reachM > 0 ? planStops(input, options) : first;
   const horizonEndChainageM = chainageAhead(forecast.currentChainageM, Math.max(0, input.horizonM), geology.direction);
   const problems = [...empty.problems, ...problems0];
-  if (knownM < settings.horizonM) problems.push(`The long section ends ${knownM.toFixed(0)} m ahead of the machine: the plan stops there, short of the ${settings.horizonM} m horizon.`);
+  if (knownM < settings.horizonM)
+    problems.push(
+      `The long section ends ${knownM.toFixed(0)} m ahead of the machine: the plan stops there, short of the ${settings.horizonM} m horizon.`,
+    );
   if (infeasible.length > 0) {
     problems.push(
       `No plan keeps position${infeasible.length === 1 ? '' : 's'} ${infeasible.map((p) => p.positionNumber).join(', ')} within the cautious wear limit ` +
-      `past ${formatChainage(horizonEndChainageM)} (why, below). ` +
-      (result.feasible ? 'The plan stops short of that point; decide with the site how to pass it.' : 'Decide with the site how to pass it.'),
+        `past ${formatChainage(horizonEndChainageM)} (why, below). ` +
+        (result.feasible
+          ? 'The plan stops short of that point; decide with the site how to pass it.'
+          : 'Decide with the site how to pass it.'),
     );
   }
-  const candidatePlaceCount = input.stopPlaces.filter((p) => aheadM(forecast.currentChainageM!, p.chainageM, geology.direction) <= input.horizonM).length;
-  const names = new Map((await tx.select({ id: groundTypes.id, name: groundTypes.name }).from(groundTypes).where(eq(groundTypes.projectId, projectId))).map((g) => [g.id, g.name]));
-  const [lowM, highM] = [Math.min(forecast.currentChainageM, horizonEndChainageM), Math.max(forecast.currentChainageM, horizonEndChainageM)];
+  const candidatePlaceCount = input.stopPlaces.filter(
+    (p) => aheadM(forecast.currentChainageM!, p.chainageM, geology.direction) <= input.horizonM,
+  ).length;
+  const names = new Map(
+    (await tx.select({ id: groundTypes.id, name: groundTypes.name }).from(groundTypes).where(eq(groundTypes.projectId, projectId))).map(
+      (g) => [g.id, g.name],
+    ),
+  );
+  const [lowM, highM] = [
+    Math.min(forecast.currentChainageM, horizonEndChainageM),
+    Math.max(forecast.currentChainageM, horizonEndChainageM),
+  ];
   const longSection = geology.sections
     .filter((s) => s.chainageToM > lowM && s.chainageFromM < highM)
     .map((s) => ({
-      chainageFromM: Math.max(s.chainageFromM, lowM), chainageToM: Math.min(s.chainageToM, highM), groundName: s.groundTypeId ? names.get(s.groundTypeId) ?? null : null,
-      waterHeadM: s.waterHeadM, stopAllowed: s.stopAllowed, stopReason: s.stopReason,
+      chainageFromM: Math.max(s.chainageFromM, lowM),
+      chainageToM: Math.min(s.chainageToM, highM),
+      groundName: s.groundTypeId ? (names.get(s.groundTypeId) ?? null) : null,
+      waterHeadM: s.waterHeadM,
+      stopAllowed: s.stopAllowed,
+      stopReason: s.stopReason,
     }));
   const base = { ...empty, horizonEndChainageM, candidatePlaceCount, longSection, problems, infeasible };
   if (!result.feasible) return base;
 
-  const open = await tx.select({ id: stops.id, chainageM: stops.chainageM }).from(stops).where(and(eq(stops.projectId, projectId), inArray(stops.status, openStatuses)));
-  const view = (plan: StopPlan | null): PlanView | null => plan && ({
-    cost: plan.cost,
-    stops: plan.stops.map((s) => {
-      const { waterHeadM } = stopPlaceAt(geology.sections, s.chainageM);
-      return {
-        chainageM: s.chainageM,
-        aheadM: s.aheadM,
-        ringNumber: ringAtAhead(forecast.currentRingNumber!, s.aheadM, geology.ringLengthM),
-        compressedAir: s.compressedAir,
-        waterHeadM,
-        workingPressureBar: pressureBar(waterHeadM),
-        stopH: s.stopH,
-        changeH: s.changeH,
-        wastedRingLifeH: s.wastedRingLifeH,
-        changes: s.changes
-          .map((c) => {
-            const p = byId.get(c.positionId)!;
-            return { positionId: c.positionId, positionNumber: p.positionNumber, positionClass: p.positionClass, limitMm: p.allowableWearMm, wearAtChangeMm: c.wearAtChangeMm, unusedWearMm: c.unusedWearMm };
-          })
-          .sort((a, b) => a.positionNumber - b.positionNumber),
-        existingStopId: open.find((o) => Math.abs(o.chainageM - s.chainageM) < EPS_M)?.id ?? null,
-        expectedAt: expectedAtAhead(forecast, geology, s.aheadM)?.toISOString() ?? null,
-      };
-    }),
-  });
+  const open = await tx
+    .select({ id: stops.id, chainageM: stops.chainageM })
+    .from(stops)
+    .where(and(eq(stops.projectId, projectId), inArray(stops.status, openStatuses)));
+  const view = (plan: StopPlan | null): PlanView | null =>
+    plan && {
+      cost: plan.cost,
+      stops: plan.stops.map((s) => {
+        const { waterHeadM } = stopPlaceAt(geology.sections, s.chainageM);
+        return {
+          chainageM: s.chainageM,
+          aheadM: s.aheadM,
+          ringNumber: ringAtAhead(forecast.currentRingNumber!, s.aheadM, geology.ringLengthM),
+          compressedAir: s.compressedAir,
+          waterHeadM,
+          workingPressureBar: pressureBar(waterHeadM),
+          stopH: s.stopH,
+          changeH: s.changeH,
+          wastedRingLifeH: s.wastedRingLifeH,
+          changes: s.changes
+            .map((c) => {
+              const p = byId.get(c.positionId)!;
+              return {
+                positionId: c.positionId,
+                positionNumber: p.positionNumber,
+                positionClass: p.positionClass,
+                limitMm: p.allowableWearMm,
+                wearAtChangeMm: c.wearAtChangeMm,
+                unusedWearMm: c.unusedWearMm,
+              };
+            })
+            .sort((a, b) => a.positionNumber - b.positionNumber),
+          existingStopId: open.find((o) => Math.abs(o.chainageM - s.chainageM) < EPS_M)?.id ?? null,
+          expectedAt: expectedAtAhead(forecast, geology, s.aheadM)?.toISOString() ?? null,
+        };
+      }),
+    };
   const optimised = view(result.optimised)!;
   const practice = view(result.practice);
   const fixedInterval = view(result.fixedInterval);
@@ -230,7 +304,11 @@ export async function proposalStopPlace(tx: DbOrTx, project: typeof projects.$in
     }
   }
   const place = await describeStopPlace(tx, project, chainageM);
-  return { ...place, chainageM, compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: project.compressedAirAboveHeadM }) };
+  return {
+    ...place,
+    chainageM,
+    compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: project.compressedAirAboveHeadM }),
+  };
 }
 
 const hoursBetween = (from: Date | null, to: Date | null) => (from && to ? (to.getTime() - from.getTime()) / 3_600_000 : null);
@@ -242,12 +320,21 @@ const hoursBetween = (from: Date | null, to: Date | null) => (from && to ? (to.g
  * parts kit, the crew, the linked inspection round and the cautions.
  */
 export async function loadWorkPack(tx: DbOrTx, projectId: string, stopId: string) {
-  const [stop] = await tx.select().from(stops).where(and(eq(stops.id, stopId), eq(stops.projectId, projectId)));
+  const [stop] = await tx
+    .select()
+    .from(stops)
+    .where(and(eq(stops.id, stopId), eq(stops.projectId, projectId)));
   if (!stop) throw new NotFoundError('That stop');
   const changes = await tx
     .select({
-      positionId: positions.id, number: positions.number, positionClass: positions.positionClass, trackRadiusMm: positions.trackRadiusMm,
-      discSizeIn: positions.discSizeIn, twinDisc: positions.twinDisc, wearLimitMm: positions.wearLimitMm, expectedWearMm: stopPositions.expectedWearMm,
+      positionId: positions.id,
+      number: positions.number,
+      positionClass: positions.positionClass,
+      trackRadiusMm: positions.trackRadiusMm,
+      discSizeIn: positions.discSizeIn,
+      twinDisc: positions.twinDisc,
+      wearLimitMm: positions.wearLimitMm,
+      expectedWearMm: stopPositions.expectedWearMm,
       fittedSerial: cutters.serial,
     })
     .from(stopPositions)
@@ -260,24 +347,39 @@ export async function loadWorkPack(tx: DbOrTx, projectId: string, stopId: string
   const bySize = new Map<number, number>();
   for (const c of changes) bySize.set(c.discSizeIn, (bySize.get(c.discSizeIn) ?? 0) + 1);
   const isOpen = openStatuses.includes(stop.status);
-  const inStore = isOpen && bySize.size > 0
-    ? await tx
-      .select({ cutterId: cutters.id, serial: cutters.serial, discSizeIn: cutters.discSizeIn, rebuildCount: cutters.rebuildCount })
-      .from(cutters)
-      .where(and(eq(cutters.projectId, projectId), eq(cutters.status, 'in_store'), inArray(cutters.discSizeIn, [...bySize.keys()])))
-      .orderBy(asc(cutters.rebuildCount), asc(cutters.createdAt), asc(cutters.serial))
-    : [];
+  const inStore =
+    isOpen && bySize.size > 0
+      ? await tx
+          .select({ cutterId: cutters.id, serial: cutters.serial, discSizeIn: cutters.discSizeIn, rebuildCount: cutters.rebuildCount })
+          .from(cutters)
+          .where(and(eq(cutters.projectId, projectId), eq(cutters.status, 'in_store'), inArray(cutters.discSizeIn, [...bySize.keys()])))
+          .orderBy(asc(cutters.rebuildCount), asc(cutters.createdAt), asc(cutters.serial))
+      : [];
   const storeSerials = [...bySize.entries()].flatMap(([size, n]) => inStore.filter((c) => c.discSizeIn === size).slice(0, n));
   const shortages = isOpen
-    ? [...bySize.entries()].map(([discSizeIn, needed]) => ({ discSizeIn, needed, inStore: inStore.filter((c) => c.discSizeIn === discSizeIn).length })).filter((s) => s.inStore < s.needed)
+    ? [...bySize.entries()]
+        .map(([discSizeIn, needed]) => ({ discSizeIn, needed, inStore: inStore.filter((c) => c.discSizeIn === discSizeIn).length }))
+        .filter((s) => s.inStore < s.needed)
     : [];
 
   const [crew] = stop.crewId ? await tx.select({ id: crews.id, name: crews.name }).from(crews).where(eq(crews.id, stop.crewId)) : [];
   const members = crew
-    ? await tx.select({ name: crewMembers.name, email: crewMembers.email, userId: crewMembers.userId }).from(crewMembers).where(eq(crewMembers.crewId, crew.id)).orderBy(asc(crewMembers.name))
+    ? await tx
+        .select({ name: crewMembers.name, email: crewMembers.email, userId: crewMembers.userId })
+        .from(crewMembers)
+        .where(eq(crewMembers.crewId, crew.id))
+        .orderBy(asc(crewMembers.name))
     : [];
   const [round] = stop.roundId
-    ? await tx.select({ id: inspectionRounds.id, startedAt: inspectionRounds.startedAt, chainageM: inspectionRounds.chainageM, ringNumber: inspectionRounds.ringNumber }).from(inspectionRounds).where(eq(inspectionRounds.id, stop.roundId))
+    ? await tx
+        .select({
+          id: inspectionRounds.id,
+          startedAt: inspectionRounds.startedAt,
+          chainageM: inspectionRounds.chainageM,
+          ringNumber: inspectionRounds.ringNumber,
+        })
+        .from(inspectionRounds)
+        .where(eq(inspectionRounds.id, stop.roundId))
     : [];
 
   return {
@@ -306,5 +408,10 @@ export async function listStops(tx: DbOrTx, projectId: string, status?: StopStat
     .leftJoin(crews, eq(crews.id, stops.crewId))
     .where(and(eq(stops.projectId, projectId), status ? eq(stops.status, status) : undefined))
     .orderBy(project?.direction === 'decreasing' ? desc(stops.chainageM) : asc(stops.chainageM), asc(stops.createdAt));
-  return rows.map((r) => ({ ...r.stop, crewName: r.crewName, positionCount: r.positionCount, actualHours: hoursBetween(r.stop.actualStart, r.stop.actualEnd) }));
+  return rows.map((r) => ({
+    ...r.stop,
+    crewName: r.crewName,
+    positionCount: r.positionCount,
+    actualHours: hoursBetween(r.stop.actualStart, r.stop.actualEnd),
+  }));
 }

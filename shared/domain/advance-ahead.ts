@@ -52,8 +52,12 @@ export function advanceAheadByWeek(input: AdvanceAheadInput): { weeks: AdvanceSe
       const section = ahead.find((s) => s.from <= atM + 1e-9 && s.to > atM + 1e-9);
       const ground = section?.groundTypeId ?? null;
       const nextBoundaryM = section ? section.to : Math.min(...ahead.filter((s) => s.from > atM).map((s) => s.from));
-      const pen = ground !== null && Object.hasOwn(input.penetrationMmPerRevByGround, ground) ? input.penetrationMmPerRevByGround[ground] : Math.min(...pens);
-      const adv = ground !== null && Object.hasOwn(input.advanceMPerDayByGround, ground) ? input.advanceMPerDayByGround[ground] : Math.max(...advs);
+      const pen =
+        ground !== null && Object.hasOwn(input.penetrationMmPerRevByGround, ground)
+          ? input.penetrationMmPerRevByGround[ground]
+          : Math.min(...pens);
+      const adv =
+        ground !== null && Object.hasOwn(input.advanceMPerDayByGround, ground) ? input.advanceMPerDayByGround[ground] : Math.max(...advs);
       const metres = Math.min(adv * days, nextBoundaryM - atM);
       days -= metres / adv;
       atM += metres;
@@ -71,6 +75,10 @@ export function advanceAheadByWeek(input: AdvanceAheadInput): { weeks: AdvanceSe
  * Km rolled per disc at track radius `trackRadiusMm` over the segments, weighted per ground by
  * `perKm` (e.g. failures per km or mm of wear per km): Σ weight_g · metres · 2·π·r/p.
  */
-export function weightedRolledKm(segments: readonly AdvanceSegment[], trackRadiusMm: number, perKm: (groundTypeId: string | null) => number): number {
+export function weightedRolledKm(
+  segments: readonly AdvanceSegment[],
+  trackRadiusMm: number,
+  perKm: (groundTypeId: string | null) => number,
+): number {
   return segments.reduce((sum, s) => sum + perKm(s.groundTypeId) * s.metres * rolledKmPerMetre(trackRadiusMm, s.penetrationMmPerRev), 0);
 }

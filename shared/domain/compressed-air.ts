@@ -33,9 +33,13 @@ export interface WorkingPressure {
  * the tunnel axis: ρ·g·h with ρ = `waterDensityKgPerM3`. A water table below the axis
  * (head ≤ 0) gives 0.
  */
-export function workingPressureFromHead(headAboveAxisM: number, waterDensityKgPerM3: number = FRESH_WATER_DENSITY_KG_PER_M3): WorkingPressure {
+export function workingPressureFromHead(
+  headAboveAxisM: number,
+  waterDensityKgPerM3: number = FRESH_WATER_DENSITY_KG_PER_M3,
+): WorkingPressure {
   if (!Number.isFinite(headAboveAxisM)) throw new RangeError(`water head must be a finite number of metres, got ${headAboveAxisM}`);
-  if (!(waterDensityKgPerM3 > 0 && Number.isFinite(waterDensityKgPerM3))) throw new RangeError(`water density must be > 0 kg/m³, got ${waterDensityKgPerM3}`);
+  if (!(waterDensityKgPerM3 > 0 && Number.isFinite(waterDensityKgPerM3)))
+    throw new RangeError(`water density must be > 0 kg/m³, got ${waterDensityKgPerM3}`);
   const pa = waterDensityKgPerM3 * STANDARD_GRAVITY_M_PER_S2 * Math.max(0, headAboveAxisM);
   return { pressureKPa: pa / 1000, pressureBar: pa / PA_PER_BAR };
 }

@@ -147,9 +147,11 @@ export function isoWeeksTouching(start: Date, end: Date, timeZone: string): stri
  * (IANA); events crossing Monday 00:00 local are split there.
  */
 export function downtimeHoursByCauseAndWeek(events: readonly DowntimeEvent[], timeZone: string): CauseWeekHours[] {
-  return hoursByCauseAndLabel(events, (startMs, endMs) => weekCuts(startMs, endMs, timeZone)).map(
-    ({ cause, label, hours }) => ({ cause, isoWeek: label, hours }),
-  );
+  return hoursByCauseAndLabel(events, (startMs, endMs) => weekCuts(startMs, endMs, timeZone)).map(({ cause, label, hours }) => ({
+    cause,
+    isoWeek: label,
+    hours,
+  }));
 }
 
 /**
@@ -162,9 +164,11 @@ export function downtimeHoursByCauseAndShift(
   timeZone: string,
 ): CauseShiftHours[] {
   const shifts = parseShifts(pattern);
-  return hoursByCauseAndLabel(events, (startMs, endMs) => shiftCuts(startMs, endMs, shifts, timeZone)).map(
-    ({ cause, label, hours }) => ({ cause, shift: label, hours }),
-  );
+  return hoursByCauseAndLabel(events, (startMs, endMs) => shiftCuts(startMs, endMs, shifts, timeZone)).map(({ cause, label, hours }) => ({
+    cause,
+    shift: label,
+    hours,
+  }));
 }
 
 /** Utilisation (fraction 0–1): boring time inside [periodStart, periodEnd) / calendar time of the period. */
@@ -172,10 +176,7 @@ export function utilisation(boring: readonly BoringInterval[], periodStart: Date
   const fromMs = periodStart.getTime();
   const toMs = periodEnd.getTime();
   if (!(toMs > fromMs)) throw new RangeError('the period must end after it starts');
-  const boringMs = boring.reduce(
-    (sum, b) => sum + Math.max(0, Math.min(toMs, b.end.getTime()) - Math.max(fromMs, b.start.getTime())),
-    0,
-  );
+  const boringMs = boring.reduce((sum, b) => sum + Math.max(0, Math.min(toMs, b.end.getTime()) - Math.max(fromMs, b.start.getTime())), 0);
   return boringMs / (toMs - fromMs);
 }
 
@@ -238,7 +239,10 @@ export function findOverlappingEvents(events: readonly DowntimeEvent[]): EventOv
 }
 
 /** The parts of `gap` that none of `covered` (sorted by start) covers, in order; e.g. the unexplained rest of a standstill. */
-export function uncoveredParts(gap: { start: Date; end: Date }, covered: readonly { start: Date; end: Date }[]): { start: Date; end: Date }[] {
+export function uncoveredParts(
+  gap: { start: Date; end: Date },
+  covered: readonly { start: Date; end: Date }[],
+): { start: Date; end: Date }[] {
   const pieces: { start: Date; end: Date }[] = [];
   let cursor = gap.start.getTime();
   for (const c of covered) {

@@ -362,14 +362,16 @@ export function estimateDriveRates(
   overrides: Record<string, { penetrationMmPerRev?: number; advanceMPerDay?: number }>,
   windowStrokes: number = DEFAULT_WINDOW_STROKES,
 ): DriveRateEstimate {
-  if (!(Number.isInteger(windowStrokes) && windowStrokes >= 1)) throw new RangeError(`window must be a whole number of strokes >= 1, got ${windowStrokes}`);
+  if (!(Number.isInteger(windowStrokes) && windowStrokes >= 1))
+    throw new RangeError(`window must be a whole number of strokes >= 1, got ${windowStrokes}`);
   const ordered = [...strokes].sort((a, b) => a.endedAt.getTime() - b.endedAt.getTime());
   const byGround = new Map<string, { advanceM: number; revolutions: number | null; days: number | null }[]>();
   ordered.forEach((s, i) => {
     if (s.groundTypeId === null) return;
     const advanceM = Math.abs(s.toChainageM - s.fromChainageM);
     const revolutions =
-      s.cutterheadRevolutions ?? (s.penetrationMmPerRev !== null && s.penetrationMmPerRev > 0 ? (advanceM * 1000) / s.penetrationMmPerRev : null);
+      s.cutterheadRevolutions ??
+      (s.penetrationMmPerRev !== null && s.penetrationMmPerRev > 0 ? (advanceM * 1000) / s.penetrationMmPerRev : null);
     const days = i > 0 ? (s.endedAt.getTime() - ordered[i - 1].endedAt.getTime()) / MS_PER_DAY : null;
     const list = byGround.get(s.groundTypeId) ?? [];
     list.push({ advanceM, revolutions, days });

@@ -137,7 +137,13 @@ export function splitChainageBySection(sections: readonly GeologySection[], from
   const hiM = Math.max(fromM, toM);
   const pieces: ChainagePiece[] = [];
   const push = (a: number, b: number, sectionIndex: number | null) => {
-    pieces.push({ fromM: a, toM: b, lengthM: b - a, groundTypeId: sectionIndex === null ? null : sections[sectionIndex].groundTypeId, sectionIndex });
+    pieces.push({
+      fromM: a,
+      toM: b,
+      lengthM: b - a,
+      groundTypeId: sectionIndex === null ? null : sections[sectionIndex].groundTypeId,
+      sectionIndex,
+    });
   };
   let cursorM = loM;
   for (const i of sortedValidIndices(sections)) {

@@ -65,9 +65,7 @@ export function fitNonNegative(
   const residualSd = residualDof > 0 ? Math.sqrt(sse / residualDof) : null;
 
   const covariance = residualSd === null ? null : freeSetCovariance(rows, freeInformed, residualSd ** 2, columnCount);
-  const standardErrors = coefficients.map((_, j) =>
-    covariance && freeInformed.includes(j) ? Math.sqrt(covariance[j][j]) : null,
-  );
+  const standardErrors = coefficients.map((_, j) => (covariance && freeInformed.includes(j) ? Math.sqrt(covariance[j][j]) : null));
   return { coefficients, atBound, informed, residualDof, residualSd, covariance, standardErrors };
 }
 

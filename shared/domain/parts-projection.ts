@@ -173,10 +173,7 @@ export function projectParts(input: PartsProjectionInput): PartWeek[] {
     f.sources[week].set(stopId, (f.sources[week].get(stopId) ?? 0) + qty);
   };
 
-  const removals = [
-    ...input.changes,
-    ...input.suddenFailures.map((failure) => ({ ...failure, stopId: null })),
-  ];
+  const removals = [...input.changes, ...input.suddenFailures.map((failure) => ({ ...failure, stopId: null }))];
   for (const r of removals) {
     if (!Number.isInteger(r.week) || r.week < 0) throw new RangeError(`week must be a non-negative integer, got ${r.week}`);
     if (!(r.count >= 0)) throw new RangeError(`count must be non-negative, got ${r.count}`);

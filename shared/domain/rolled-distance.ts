@@ -42,9 +42,7 @@ export interface StrokeError {
   reason: StrokeErrorReason;
 }
 
-export type StrokeRevolutions =
-  | { revolutions: number; source: 'measured' | 'penetration' }
-  | { error: StrokeErrorReason };
+export type StrokeRevolutions = { revolutions: number; source: 'measured' | 'penetration' } | { error: StrokeErrorReason };
 
 /** Distance per disc of one position in one ground type over one stroke, in km. */
 export interface StrokeRolledKm {
@@ -148,7 +146,12 @@ export function rolledKmByStroke(
   const rows: StrokeRolledKm[] = [];
   for (const piece of pieces) {
     for (const position of positions) {
-      rows.push({ strokeId: piece.strokeId, positionId: position.id, groundTypeId: piece.groundTypeId, rolledKm: rolledKm(position.trackRadiusMm / 1000, piece.revolutions) });
+      rows.push({
+        strokeId: piece.strokeId,
+        positionId: position.id,
+        groundTypeId: piece.groundTypeId,
+        rolledKm: rolledKm(position.trackRadiusMm / 1000, piece.revolutions),
+      });
     }
   }
   return { rows, errors };
@@ -234,7 +237,9 @@ export function sumRolledKmForPeriods(
       if (revolutions !== 0) add(p.id, groundTypeId, rolledKm(p.trackRadiusMm / 1000, revolutions));
     }
   }
-  return [...totals].flatMap(([periodId, forPeriod]) => [...forPeriod].map(([groundTypeId, km]) => ({ periodId, groundTypeId, rolledKm: km })));
+  return [...totals].flatMap(([periodId, forPeriod]) =>
+    [...forPeriod].map(([groundTypeId, km]) => ({ periodId, groundTypeId, rolledKm: km })),
+  );
 }
 
 /**

@@ -9,7 +9,14 @@ import type { StopPlanInput, WearStretch } from './stop-planner';
 
 /** The long section as the planner reads it, and how chainage turns into rings. */
 export interface DriveGeology {
-  sections: { chainageFromM: number; chainageToM: number; groundTypeId: string | null; waterHeadM: number; stopAllowed: boolean; stopReason: string }[];
+  sections: {
+    chainageFromM: number;
+    chainageToM: number;
+    groundTypeId: string | null;
+    waterHeadM: number;
+    stopAllowed: boolean;
+    stopReason: string;
+  }[];
   ringLengthM: number;
   direction: DriveDirection;
 }
@@ -41,7 +48,10 @@ export const PLACE_EPS_M = 1e-6;
  * Whether a stop may be made at `chainageM`, and the water head there (m). On a boundary between
  * two sections both must allow a stop, and the higher head counts (cautious).
  */
-export function stopPlaceAt(sections: DriveGeology['sections'], chainageM: number): { allowed: boolean; waterHeadM: number | null; reason: string | null } {
+export function stopPlaceAt(
+  sections: DriveGeology['sections'],
+  chainageM: number,
+): { allowed: boolean; waterHeadM: number | null; reason: string | null } {
   const touching = sections.filter((s) => s.chainageFromM - PLACE_EPS_M <= chainageM && chainageM <= s.chainageToM + PLACE_EPS_M);
   if (touching.length === 0) return { allowed: false, waterHeadM: null, reason: 'it lies outside the geology long section' };
   const waterHeadM = Math.max(...touching.map((s) => s.waterHeadM));
@@ -55,7 +65,12 @@ export function stopPlaceAt(sections: DriveGeology['sections'], chainageM: numbe
  * horizon is cut there, as no stop place or wear rate is known beyond.
  */
 export function knownGroundAheadM(geology: DriveGeology, currentChainageM: number): number {
-  return Math.max(0, ...geology.sections.map((s) => Math.max(aheadM(currentChainageM, s.chainageFromM, geology.direction), aheadM(currentChainageM, s.chainageToM, geology.direction))));
+  return Math.max(
+    0,
+    ...geology.sections.map((s) =>
+      Math.max(aheadM(currentChainageM, s.chainageFromM, geology.direction), aheadM(currentChainageM, s.chainageToM, geology.direction)),
+    ),
+  );
 }
 
 /**
@@ -63,7 +78,11 @@ export function knownGroundAheadM(geology: DriveGeology, currentChainageM: numbe
  * forecast's own explanation stops at the position's limit point; a ring fitted later wears on
  * through the ground beyond, so the same forecast walk is repeated with the limit lifted.
  */
-export function p90WearStretches(position: PlannerForecast['positions'][number], forecast: PlannerForecast, geology: DriveGeology): WearStretch[] {
+export function p90WearStretches(
+  position: PlannerForecast['positions'][number],
+  forecast: PlannerForecast,
+  geology: DriveGeology,
+): WearStretch[] {
   const walk = forecastChangeOut({
     position: { ...position.position, allowableWearMm: Infinity },
     wearNow: position.explanation.wearNow,
@@ -94,13 +113,18 @@ export function p90WearStretches(position: PlannerForecast['positions'][number],
  */
 export function buildStopPlanInput(forecast: PlannerForecast, geology: DriveGeology, settings: PlanInputSettings): StopPlanInput {
   const currentChainageM = forecast.currentChainageM;
-  if (currentChainageM == null || forecast.currentRingNumber == null) throw new RangeError('the machine position is not known: no advance log');
+  if (currentChainageM == null || forecast.currentRingNumber == null)
+    throw new RangeError('the machine position is not known: no advance log');
   const horizonM = Math.min(settings.horizonM, knownGroundAheadM(geology, currentChainageM));
   const stopPlaces: StopPlanInput['stopPlaces'] = [];
   for (let k = 0; k * geology.ringLengthM <= horizonM + PLACE_EPS_M; k++) {
     const chainageM = chainageAhead(currentChainageM, k * geology.ringLengthM, geology.direction);
     const place = stopPlaceAt(geology.sections, chainageM);
-    if (place.allowed) stopPlaces.push({ chainageM, compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: settings.compressedAirAboveHeadM }) });
+    if (place.allowed)
+      stopPlaces.push({
+        chainageM,
+        compressedAir: needsCompressedAir(place.waterHeadM ?? 0, { headAboveAxisM: settings.compressedAirAboveHeadM }),
+      });
   }
   return {
     currentChainageM,
@@ -145,7 +169,8 @@ export function expectedAtAhead(forecast: PlannerForecast, geology: DriveGeology
   let fromM = 0;
   let days = 0;
   for (const s of walk.explanation.sections) {
-    if (aheadByM <= fromM + s.lengthM) return new Date(forecast.now.getTime() + (days + (aheadByM - fromM) / s.advanceMPerDay) * 86_400_000);
+    if (aheadByM <= fromM + s.lengthM)
+      return new Date(forecast.now.getTime() + (days + (aheadByM - fromM) / s.advanceMPerDay) * 86_400_000);
     fromM += s.lengthM;
     days += s.days;
   }

@@ -219,7 +219,13 @@ export interface PlanStopsOptions {
  * comparison, or the positions that no plan can keep within their limit.
  */
 export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}): StopPlanResult {
-  const { quickPassStates = QUICK_PASS_STATES, maxStates = Infinity, boundIterations = BOUND_ITERATIONS, targetGap = TARGET_GAP, rules = DEFAULT_COMPARISON_RULES } = options;
+  const {
+    quickPassStates = QUICK_PASS_STATES,
+    maxStates = Infinity,
+    boundIterations = BOUND_ITERATIONS,
+    targetGap = TARGET_GAP,
+    rules = DEFAULT_COMPARISON_RULES,
+  } = options;
   if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
   if (!(rules.intervalM > 0)) throw new RangeError(`interval must be > 0 m, got ${rules.intervalM}`);
   // Step 1: prepare.
@@ -236,7 +242,10 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     .filter((p): p is StopPlan => p !== null)
     .reduce((a, b) => (b.cost.totalH < a.cost.totalH ? b : a));
   // Step 3: the lower bound, and plans found from it.
-  const relaxed = best.cost.totalH > 0 && boundIterations > 0 ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap }) : null;
+  const relaxed =
+    best.cost.totalH > 0 && boundIterations > 0
+      ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap })
+      : null;
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
   // Step 4: the exact search, bounded by the best plan so far.
   const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);

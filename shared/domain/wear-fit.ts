@@ -191,7 +191,10 @@ function siteOnlyRates(design: number[][], response: number[], counts: number[],
   const exposed = counts.map((_, j) => j).filter((j) => counts[j] > 0);
   const out = counts.map((): number | null => null);
   if (exposed.length === 0) return out;
-  const coefficients = fitNonNegative(design.map((row) => exposed.map((j) => row[j])), response).coefficients;
+  const coefficients = fitNonNegative(
+    design.map((row) => exposed.map((j) => row[j])),
+    response,
+  ).coefficients;
   exposed.forEach((j, a) => (out[j] = coefficients[a]));
   return out;
 }
@@ -210,7 +213,11 @@ function effectiveWeight(rate: number, site: number, prior: number, closedForm: 
 }
 
 /** For each rate held at 0: √ of its diagonal in s²·(XᵀX)⁻¹ over the free set plus its column (prior rows included). */
-function heldStandardErrors(design: number[][], prior: { values: number[]; weights: number[] } | undefined, fit: ReturnType<typeof fitNonNegative>): (number | null)[] {
+function heldStandardErrors(
+  design: number[][],
+  prior: { values: number[]; weights: number[] } | undefined,
+  fit: ReturnType<typeof fitNonNegative>,
+): (number | null)[] {
   const columnCount = fit.coefficients.length;
   const rows = design.map((row) => [...row]);
   prior?.weights.forEach((weight, j) => {
@@ -252,13 +259,21 @@ export function predictWear(
     }
   }
   const x0 = fit.rates.map((rate) => fit.classFactors[positionClass] * (rolledKmByGround[rate.groundTypeId] ?? 0));
-  const predictedWearMm = dot(x0, fit.rates.map((rate) => rate.rateMmPerKm));
+  const predictedWearMm = dot(
+    x0,
+    fit.rates.map((rate) => rate.rateMmPerKm),
+  );
 
   const touchesPriorOnly = fit.rates.some((rate, j) => rate.source === 'prior' && x0[j] > 0);
   const { residualSdMm, rateCovariance } = fit;
   if (residualSdMm === null || rateCovariance === null || touchesPriorOnly) return { predictedWearMm, upperWearMm: null };
 
-  const variance = residualSdMm ** 2 + dot(x0, rateCovariance.map((row) => dot(row, x0)));
+  const variance =
+    residualSdMm ** 2 +
+    dot(
+      x0,
+      rateCovariance.map((row) => dot(row, x0)),
+    );
   const t = jStat.studentt.inv(probability, fit.residualDof);
   return { predictedWearMm, upperWearMm: predictedWearMm + t * Math.sqrt(variance) };
 }

@@ -28,10 +28,16 @@ export interface KitLine {
 
 /** The parts kit for `changesBySize` changes per disc size (in): assemblies one per change, spares per `kitSpares`. */
 export function partsKit(changesBySize: ReadonlyMap<number, number>): KitLine[] {
-  return [...changesBySize.entries()].sort((a, b) => a[0] - b[0]).flatMap(([sizeIn, n]) => [
-    { item: `${inches(sizeIn)} disc cutter assembly`, quantity: n, basis: 'one per position changed' },
-    ...kitSpares.map((s) => ({ item: `${inches(sizeIn)} ${s.item}`, quantity: Math.ceil(n / s.perChanges), basis: `one per ${s.perChanges} changes, rounded up` })),
-  ]);
+  return [...changesBySize.entries()]
+    .sort((a, b) => a[0] - b[0])
+    .flatMap(([sizeIn, n]) => [
+      { item: `${inches(sizeIn)} disc cutter assembly`, quantity: n, basis: 'one per position changed' },
+      ...kitSpares.map((s) => ({
+        item: `${inches(sizeIn)} ${s.item}`,
+        quantity: Math.ceil(n / s.perChanges),
+        basis: `one per ${s.perChanges} changes, rounded up`,
+      })),
+    ]);
 }
 
 /** What the work-pack text reads of a stop's work pack (server/services/stops.ts loadWorkPack). */
@@ -76,8 +82,11 @@ export function workPackText(pack: WorkPackForText, project: { name: string; sit
     stop.compressedAir ? `Worked in COMPRESSED AIR${pressure}.` : 'Worked in free air.',
     '',
     `Positions to change (${pack.positions.length}):`,
-    ...pack.positions.map((p) => `  - position ${p.number} (${p.positionClass}${p.twinDisc ? ', twin' : ''}), ${p.fittedSerial ?? 'no serial'} off` +
-      (p.expectedWearMm != null ? `, expected wear ${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm` : '')),
+    ...pack.positions.map(
+      (p) =>
+        `  - position ${p.number} (${p.positionClass}${p.twinDisc ? ', twin' : ''}), ${p.fittedSerial ?? 'no serial'} off` +
+        (p.expectedWearMm != null ? `, expected wear ${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm` : ''),
+    ),
     '',
     `From the store: ${pack.storeSerials.map((c) => c.serial).join(', ') || 'none'}.`,
     ...pack.shortages.map((s) => `SHORT: ${s.needed} ${inches(s.discSizeIn)} cutters needed, ${s.inStore} in store.`),

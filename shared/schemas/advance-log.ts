@@ -31,8 +31,7 @@ const whenValid =
   (payload: { issues: readonly { path?: readonly PropertyKey[] }[] }) =>
     !payload.issues.some((issue) => fields.includes(String(issue.path?.[0])));
 
-const isoWithOffset = (what: string) =>
-  instant(what, `${what} is missing or is not a date and time with its UTC offset.`);
+const isoWithOffset = (what: string) => instant(what, `${what} is missing or is not a date and time with its UTC offset.`);
 
 const nullableAtLeastZero = (what: string) =>
   z.number().min(0, `${what} cannot be negative; leave the cell empty when it was not recorded.`).nullable();
@@ -47,8 +46,14 @@ export const advanceLogRowSchema = z
     /** ISO 8601 with offset, in the project's time zone. */
     startTime: isoWithOffset('The start time'),
     endTime: isoWithOffset('The end time'),
-    chainageStartM: chainageM('The chainage at the start of the stroke', 'The chainage at the start of the stroke is empty; every row needs one.'),
-    chainageEndM: chainageM('The chainage at the end of the stroke', 'The chainage at the end of the stroke is empty; every row needs one.'),
+    chainageStartM: chainageM(
+      'The chainage at the start of the stroke',
+      'The chainage at the start of the stroke is empty; every row needs one.',
+    ),
+    chainageEndM: chainageM(
+      'The chainage at the end of the stroke',
+      'The chainage at the end of the stroke is empty; every row needs one.',
+    ),
     /** Measured cutterhead revolutions over the stroke; null when only penetration is logged. */
     revolutions: nullableAtLeastZero('Cutterhead revolutions'),
     penetrationMmPerRev: z
@@ -73,7 +78,10 @@ export const advanceLogRowSchema = z
   });
 export type AdvanceLogRow = z.infer<typeof advanceLogRowSchema>;
 
-export const advanceLogColumnMappingSchema = z.partialRecord(z.enum(advanceLogFieldNames), requiredLine('A column name', 200, 'Choose a column of the file.'));
+export const advanceLogColumnMappingSchema = z.partialRecord(
+  z.enum(advanceLogFieldNames),
+  requiredLine('A column name', 200, 'Choose a column of the file.'),
+);
 export type AdvanceLogColumnMapping = ColumnMapping<AdvanceLogField>;
 
 // ----- geology long section -----
@@ -108,8 +116,18 @@ export const geologySectionRowSchema = z
      * Properties of the section's ground type when the file gives them (limits as in
      * shared/schemas/geology.ts); undefined, not null, when it does not.
      */
-    ucsMpa: z.number().min(0, 'UCS cannot be negative.').max(500, 'UCS must be at most 500 MPa.').nullable().transform((v) => v ?? undefined),
-    cai: z.number().min(0, 'CAI cannot be negative.').max(7, 'CAI must be at most 7 (the Cerchar scale ends there).').nullable().transform((v) => v ?? undefined),
+    ucsMpa: z
+      .number()
+      .min(0, 'UCS cannot be negative.')
+      .max(500, 'UCS must be at most 500 MPa.')
+      .nullable()
+      .transform((v) => v ?? undefined),
+    cai: z
+      .number()
+      .min(0, 'CAI cannot be negative.')
+      .max(7, 'CAI must be at most 7 (the Cerchar scale ends there).')
+      .nullable()
+      .transform((v) => v ?? undefined),
   })
   .refine((row) => row.chainageToM > row.chainageFromM, {
     path: ['chainageToM'],
@@ -123,7 +141,10 @@ export const geologySectionRowSchema = z
   });
 export type GeologySectionRow = z.infer<typeof geologySectionRowSchema>;
 
-export const geologySectionColumnMappingSchema = z.partialRecord(z.enum(geologySectionFieldNames), requiredLine('A column name', 200, 'Choose a column of the file.'));
+export const geologySectionColumnMappingSchema = z.partialRecord(
+  z.enum(geologySectionFieldNames),
+  requiredLine('A column name', 200, 'Choose a column of the file.'),
+);
 export type GeologySectionColumnMapping = ColumnMapping<GeologySectionField>;
 
 /** One ring or stroke of the advance log as GET /strokes sends it. */

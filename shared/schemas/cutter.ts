@@ -12,7 +12,10 @@ export const serialSchema = z
 
 export const receiveCutterInputSchema = z.object({
   serial: serialSchema,
-  discSizeIn: z.coerce.number({ message: 'The disc size must be a number of inches.' }).min(10, 'Disc sizes run from 10″ to 24″.').max(24, 'Disc sizes run from 10″ to 24″.'),
+  discSizeIn: z.coerce
+    .number({ message: 'The disc size must be a number of inches.' })
+    .min(10, 'Disc sizes run from 10″ to 24″.')
+    .max(24, 'Disc sizes run from 10″ to 24″.'),
   notes: freeText('The notes', 500).default(''),
 });
 export type ReceiveCutterInput = z.infer<typeof receiveCutterInputSchema>;
@@ -31,7 +34,10 @@ export const workshopInputSchema = z.discriminatedUnion('outcome', [
     newSeals: z.boolean().default(false),
     note: freeText('The note', 500).default(''),
   }),
-  z.object({ outcome: z.literal('scrapped'), reason: freeText('The reason', 500, 'Say why the cutter is scrapped.').refine((s) => s.length > 0, 'Say why the cutter is scrapped.') }),
+  z.object({
+    outcome: z.literal('scrapped'),
+    reason: freeText('The reason', 500, 'Say why the cutter is scrapped.').refine((s) => s.length > 0, 'Say why the cutter is scrapped.'),
+  }),
 ]);
 export type WorkshopInput = z.infer<typeof workshopInputSchema>;
 

@@ -25,7 +25,6 @@ export const downtimeCauseUpdateSchema = z
   .refine((u) => Object.keys(u).length > 0, 'Say what to change.');
 export type DowntimeCauseUpdate = z.infer<typeof downtimeCauseUpdateSchema>;
 
-
 export const downtimeEventInputSchema = z
   .object({
     startAt: instant('The start'),
@@ -42,10 +41,12 @@ const hhmm = /^([01]\d|2[0-3]):[0-5]\d$/;
 export const siteSettingsInputSchema = z.object({
   /** Shift starts in site-local time; each shift runs until the next one starts. */
   shifts: z
-    .array(z.object({
-      name: requiredLine('The shift name', 40, 'Name the shift.'),
-      start: z.string().regex(hhmm, 'A shift start is a time like 06:00.'),
-    }))
+    .array(
+      z.object({
+        name: requiredLine('The shift name', 40, 'Name the shift.'),
+        start: z.string().regex(hhmm, 'A shift start is a time like 06:00.'),
+      }),
+    )
     .min(1, 'Give at least one shift.')
     .max(6, 'At most 6 shifts a day.')
     .refine((s) => new Set(s.map((x) => x.name)).size === s.length, 'Two shifts have the same name.')
@@ -53,7 +54,11 @@ export const siteSettingsInputSchema = z.object({
   /** Cost of one hour of cutter work by the crew, in the drive's currency. */
   labourRatePerHour: z.number({ message: 'The labour rate must be a number.' }).min(0, 'The labour rate cannot be negative.').max(100_000),
   /** Standstills between strokes longer than this are proposed as downtime. */
-  gapMinutes: z.number({ message: 'The gap must be a number of minutes.' }).int('Whole minutes only.').min(5, 'At least 5 minutes.').max(1440, 'At most 1440 minutes (a day).'),
+  gapMinutes: z
+    .number({ message: 'The gap must be a number of minutes.' })
+    .int('Whole minutes only.')
+    .min(5, 'At least 5 minutes.')
+    .max(1440, 'At most 1440 minutes (a day).'),
 });
 export type SiteSettingsInput = z.infer<typeof siteSettingsInputSchema>;
 
@@ -64,23 +69,32 @@ export const downtimePeriodQuerySchema = z
   .object({ from: day('from').optional(), to: day('to').optional() })
   .refine((q) => !q.from || !q.to || q.from <= q.to, { path: ['to'], message: 'to must not be before from.' });
 
-export const reportQuerySchema = downtimePeriodQuerySchema.and(z.object({
-  format: z.enum(['json', 'csv']).default('json'),
-  /** Which table the CSV holds. */
-  table: z.enum(['week', 'shift', 'pareto']).default('week'),
-}));
+export const reportQuerySchema = downtimePeriodQuerySchema.and(
+  z.object({
+    format: z.enum(['json', 'csv']).default('json'),
+    /** Which table the CSV holds. */
+    table: z.enum(['week', 'shift', 'pareto']).default('week'),
+  }),
+);
 
-export const costQuerySchema = downtimePeriodQuerySchema.and(z.object({
-  format: z.enum(['json', 'csv']).default('json'),
-  table: z.enum(['week', 'ground']).default('week'),
-}));
+export const costQuerySchema = downtimePeriodQuerySchema.and(
+  z.object({
+    format: z.enum(['json', 'csv']).default('json'),
+    table: z.enum(['week', 'ground']).default('week'),
+  }),
+);
 
-export const eventListQuerySchema = downtimePeriodQuerySchema.and(z.object({
-  causeId: z.uuid({ message: 'Unknown cause.' }).optional(),
-  /** Only events whose cause is still to give. */
-  unexplained: z.enum(['true', 'false']).optional().transform((v) => v === 'true'),
-  format: z.enum(['json', 'csv']).default('json'),
-}));
+export const eventListQuerySchema = downtimePeriodQuerySchema.and(
+  z.object({
+    causeId: z.uuid({ message: 'Unknown cause.' }).optional(),
+    /** Only events whose cause is still to give. */
+    unexplained: z
+      .enum(['true', 'false'])
+      .optional()
+      .transform((v) => v === 'true'),
+    format: z.enum(['json', 'csv']).default('json'),
+  }),
+);
 export type EventListQuery = z.input<typeof eventListQuerySchema>;
 
 // The API's answers (the server builds them, the client reads them).

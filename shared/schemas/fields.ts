@@ -24,15 +24,11 @@ const windowText = `between ${DATE_WINDOW.from.slice(0, 4)} and ${DATE_WINDOW.to
 
 /** A calendar date YYYY-MM-DD between 1990 and 2100. */
 export const calendarDate = (label: string, message = `${label} must be a date like 2026-11-30.`) =>
-  z.iso
-    .date({ message })
-    .refine((d) => d >= DATE_WINDOW.from && d <= DATE_WINDOW.to, `${label} must be ${windowText}.`);
+  z.iso.date({ message }).refine((d) => d >= DATE_WINDOW.from && d <= DATE_WINDOW.to, `${label} must be ${windowText}.`);
 
 /** An instant in ISO 8601 with its UTC offset (e.g. 2026-03-29T06:00:00+02:00), between 1990 and 2100. */
 export const instant = (label: string, message = `${label} must be a date and time with its UTC offset, e.g. 2026-03-29T06:00:00+02:00.`) =>
-  z.iso
-    .datetime({ offset: true, message })
-    .refine((t) => inWindow(Date.parse(t)), `${label} must be ${windowText}.`);
+  z.iso.datetime({ offset: true, message }).refine((t) => inWindow(Date.parse(t)), `${label} must be ${windowText}.`);
 
 /** A whole number from 0 to 2^31 − 1 (ring numbers, counts, quantities); a lower `max` where the trade has one. */
 export const wholeNumber = (label: string, max: number = INT32_MAX, message = `${label} must be a whole number.`) =>
@@ -43,7 +39,8 @@ export const wholeNumber = (label: string, max: number = INT32_MAX, message = `$
     .max(max, `${label} must be at most ${max.toLocaleString('en')}.`);
 
 /** The same, read from a query string or form text. */
-export const wholeNumberText = (label: string, max: number = INT32_MAX) => z.coerce.number({ message: `${label} must be a whole number.` }).pipe(wholeNumber(label, max));
+export const wholeNumberText = (label: string, max: number = INT32_MAX) =>
+  z.coerce.number({ message: `${label} must be a whole number.` }).pipe(wholeNumber(label, max));
 
 /** A ring number. */
 export const ringNumber = (label = 'The ring number') => wholeNumber(label);

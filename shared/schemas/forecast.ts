@@ -6,28 +6,50 @@ import type { ChangeOutForecast, DriveRateEstimate, WearRateSet } from '../domai
 import type { ClassFactors, GroundWearRate, SuddenFailureRate } from '../domain/wear-fit';
 import type { Wire } from './wire';
 
-const factor = (label: string) => z.number({ message: `${label} must be a number.` }).gt(0, `${label} must be more than 0.`).max(5, `${label} must be at most 5.`);
+const factor = (label: string) =>
+  z
+    .number({ message: `${label} must be a number.` })
+    .gt(0, `${label} must be more than 0.`)
+    .max(5, `${label} must be at most 5.`);
 
 export const forecastSettingsInputSchema = z.object({
-  classFactors: z.object({ centre: factor('The centre factor'), face: z.literal(1, { message: 'Face discs are the reference: their factor is 1.' }), gauge: factor('The gauge factor') }),
-  gehringSiteFactor: z.number().gt(0, 'The site factor must be more than 0. To leave the prior out, set the prior weight to 0.').max(10, 'The site factor must be at most 10.'),
-  priorStrength: z.number().min(0, 'The prior weight cannot be negative; 0 leaves the prior out.').max(1000, 'The prior weight must be at most 1000 inspections.'),
+  classFactors: z.object({
+    centre: factor('The centre factor'),
+    face: z.literal(1, { message: 'Face discs are the reference: their factor is 1.' }),
+    gauge: factor('The gauge factor'),
+  }),
+  gehringSiteFactor: z
+    .number()
+    .gt(0, 'The site factor must be more than 0. To leave the prior out, set the prior weight to 0.')
+    .max(10, 'The site factor must be at most 10.'),
+  priorStrength: z
+    .number()
+    .min(0, 'The prior weight cannot be negative; 0 leaves the prior out.')
+    .max(1000, 'The prior weight must be at most 1000 inspections.'),
   tipWidthMm: z.number().min(5, 'Tip width must be at least 5 mm.').max(40, 'Tip width must be at most 40 mm.'),
   overcutMarginMm: z.number().min(0).max(200),
   windowStrokes: z.number().int().min(5, 'Use at least 5 strokes.').max(2000),
-  overrides: z.record(
-    z.string(),
-    z.object({
-      penetrationMmPerRev: z.number().gt(0, 'Penetration must be more than 0 mm/rev.').max(50).optional(),
-      advanceMPerDay: z.number().gt(0, 'Advance per day must be more than 0 m.').max(200).optional(),
+  overrides: z
+    .record(
+      z.string(),
+      z.object({
+        penetrationMmPerRev: z.number().gt(0, 'Penetration must be more than 0 mm/rev.').max(50).optional(),
+        advanceMPerDay: z.number().gt(0, 'Advance per day must be more than 0 m.').max(200).optional(),
+      }),
+    )
+    .superRefine((overrides, ctx) => {
+      // Keys are cutter position ids; the server also checks that they are this drive's positions.
+      for (const key of Object.keys(overrides)) {
+        if (key.trim() === '')
+          ctx.addIssue({ code: 'custom', path: [key], message: 'An override has no cutter position; choose the position it is for.' });
+        else if (!z.uuid().safeParse(key).success)
+          ctx.addIssue({
+            code: 'custom',
+            path: [key],
+            message: `"${key}" is not a cutter position of this drive; choose one from the list.`,
+          });
+      }
     }),
-  ).superRefine((overrides, ctx) => {
-    // Keys are cutter position ids; the server also checks that they are this drive's positions.
-    for (const key of Object.keys(overrides)) {
-      if (key.trim() === '') ctx.addIssue({ code: 'custom', path: [key], message: 'An override has no cutter position; choose the position it is for.' });
-      else if (!z.uuid().safeParse(key).success) ctx.addIssue({ code: 'custom', path: [key], message: `"${key}" is not a cutter position of this drive; choose one from the list.` });
-    }
-  }),
 });
 export type ForecastSettingsInput = z.infer<typeof forecastSettingsInputSchema>;
 

@@ -4,7 +4,12 @@ import type { CercharClassification } from '../domain/cerchar';
 import type { GeologyGapWarning } from '../domain/geology';
 
 const optionalNumber = (label: string, min: number, max: number) =>
-  z.number({ message: `${label} must be a number.` }).min(min, `${label} must be at least ${min}.`).max(max, `${label} must be at most ${max}.`).nullable().default(null);
+  z
+    .number({ message: `${label} must be a number.` })
+    .min(min, `${label} must be at least ${min}.`)
+    .max(max, `${label} must be at most ${max}.`)
+    .nullable()
+    .default(null);
 
 export const groundTypeInputSchema = z.object({
   name: requiredLine('The ground type name', 80, 'Name the ground type.'),
@@ -26,7 +31,10 @@ export const sectionInputSchema = z
     stopReason: freeText('The stop reason', 300).default(''),
   })
   .refine((s) => s.chainageToM > s.chainageFromM, { path: ['chainageToM'], message: 'Chainage to must be greater than chainage from.' })
-  .refine((s) => s.stopAllowed || s.stopReason !== '', { path: ['stopReason'], message: 'Say why no stop is allowed here (e.g. fault zone).' });
+  .refine((s) => s.stopAllowed || s.stopReason !== '', {
+    path: ['stopReason'],
+    message: 'Say why no stop is allowed here (e.g. fault zone).',
+  });
 export type SectionInput = z.infer<typeof sectionInputSchema>;
 
 export const longSectionInputSchema = z.object({ sections: z.array(sectionInputSchema).max(2000) });
@@ -34,7 +42,9 @@ export const longSectionInputSchema = z.object({ sections: z.array(sectionInputS
 export const strokeListQuerySchema = z.object({
   page: wholeNumberText('The page').pipe(z.number().min(1, 'The page must be at least 1.')).default(1),
   pageSize: z.coerce.number().int().min(10).max(500).default(50),
-  sort: z.enum(['ringNumber', 'startTime', 'chainageStartM', 'penetrationMmPerRev', 'revolutions', 'thrustKn', 'torqueKnm', 'rpm']).default('ringNumber'),
+  sort: z
+    .enum(['ringNumber', 'startTime', 'chainageStartM', 'penetrationMmPerRev', 'revolutions', 'thrustKn', 'torqueKnm', 'rpm'])
+    .default('ringNumber'),
   dir: z.enum(['asc', 'desc']).default('desc'),
   ringFrom: wholeNumberText('ringFrom').optional(),
   ringTo: wholeNumberText('ringTo').optional(),

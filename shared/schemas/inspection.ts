@@ -5,7 +5,9 @@ import type { DiscCondition } from '../cutters';
 
 export const startRoundInputSchema = z.object({
   startedAt: instant('The start of the round', 'Give the date and time of the round.'),
-  chainageM: z.coerce.number({ message: 'Give the chainage where the machine stands, in metres.' }).pipe(chainageM('The chainage', 'Give the chainage where the machine stands, in metres.')),
+  chainageM: z.coerce
+    .number({ message: 'Give the chainage where the machine stands, in metres.' })
+    .pipe(chainageM('The chainage', 'Give the chainage where the machine stands, in metres.')),
   ringNumber: z.coerce.number({ message: 'The ring number must be a whole number.' }).pipe(ringNumber()).nullable().default(null),
   crew: singleLine('The crew', 300).default(''),
   notes: freeText('The notes', 2000).default(''),
@@ -38,8 +40,14 @@ export const entryInputSchema = z
     /** When the fitter entered it (offline entries arrive later). */
     recordedAt: instant('The time recorded').optional(),
   })
-  .refine((e) => e.action !== 'changed' || e.fitted !== null, { path: ['fitted'], message: 'A change needs the serial of the cutter put on.' })
-  .refine((e) => e.action !== 'changed' || (e.changeReason ?? '') !== '', { path: ['changeReason'], message: 'Give the reason for the change.' });
+  .refine((e) => e.action !== 'changed' || e.fitted !== null, {
+    path: ['fitted'],
+    message: 'A change needs the serial of the cutter put on.',
+  })
+  .refine((e) => e.action !== 'changed' || (e.changeReason ?? '') !== '', {
+    path: ['changeReason'],
+    message: 'Give the reason for the change.',
+  });
 export type EntryInput = z.infer<typeof entryInputSchema>;
 
 export interface Round {

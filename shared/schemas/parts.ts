@@ -27,7 +27,10 @@ export type WorkshopCondition = (typeof workshopConditions)[number]['key'];
 export const workshopConditionKeys = workshopConditions.map((c) => c.key) as [WorkshopCondition, ...WorkshopCondition[]];
 
 const days = (label: string, max: number) =>
-  z.number({ message: `${label} must be a number of days.` }).min(0, `${label} cannot be negative.`).max(max, `${label} must be at most ${max} days.`);
+  z
+    .number({ message: `${label} must be a number of days.` })
+    .min(0, `${label} cannot be negative.`)
+    .max(max, `${label} must be at most ${max} days.`);
 
 /** A catalogue part as the buyer enters it. Rings and complete assemblies are catalogued per disc size. */
 export const partInputSchema = z
@@ -35,13 +38,31 @@ export const partInputSchema = z
     code: requiredLine('A part code', 40, 'Enter the part code.'),
     name: requiredLine('The part name', 200, 'Enter a name for the part.'),
     kind: z.enum(partKinds, { message: 'Choose the kind of part.' }),
-    discSizeIn: z.number({ message: 'The disc size must be a number of inches.' }).min(10, 'Disc sizes run from 10″ to 24″.').max(24, 'Disc sizes run from 10″ to 24″.').nullable().default(null),
-    unitCost: z.number({ message: 'The unit cost must be a number.' }).min(0, 'The unit cost cannot be negative.').max(1e8).multipleOf(0.01, 'The unit cost has at most 2 decimals.'),
-    currency: z.string().trim().regex(/^[A-Z]{3}$/, 'The currency is a three-letter code such as EUR.').default('EUR'),
+    discSizeIn: z
+      .number({ message: 'The disc size must be a number of inches.' })
+      .min(10, 'Disc sizes run from 10″ to 24″.')
+      .max(24, 'Disc sizes run from 10″ to 24″.')
+      .nullable()
+      .default(null),
+    unitCost: z
+      .number({ message: 'The unit cost must be a number.' })
+      .min(0, 'The unit cost cannot be negative.')
+      .max(1e8)
+      .multipleOf(0.01, 'The unit cost has at most 2 decimals.'),
+    currency: z
+      .string()
+      .trim()
+      .regex(/^[A-Z]{3}$/, 'The currency is a three-letter code such as EUR.')
+      .default('EUR'),
     supplier: singleLine('The supplier', 200).default(''),
     leadTimeMeanDays: days('The lead time', 730).gt(0, 'The lead time must be more than 0 days.'),
     leadTimeSdDays: days('The lead-time spread', 365).default(0),
-    minOrderQty: z.number({ message: 'The minimum order quantity must be a whole number.' }).int('The minimum order quantity must be a whole number.').min(1, 'The minimum order quantity is at least 1.').max(100_000).default(1),
+    minOrderQty: z
+      .number({ message: 'The minimum order quantity must be a whole number.' })
+      .int('The minimum order quantity must be a whole number.')
+      .min(1, 'The minimum order quantity is at least 1.')
+      .max(100_000)
+      .default(1),
   })
   .refine((p) => !(p.kind === 'ring' || p.kind === 'cutter-assembly') || p.discSizeIn != null, {
     path: ['discSizeIn'],
@@ -60,8 +81,13 @@ export const stockCountInputSchema = z.object({
 });
 export type StockCountInput = z.infer<typeof stockCountInputSchema>;
 
-const isoDate = z.string({ message: 'Enter a date.' }).regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.')
-  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s), 'That date does not exist.')
+const isoDate = z
+  .string({ message: 'Enter a date.' })
+  .regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.')
+  .refine(
+    (s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s),
+    'That date does not exist.',
+  )
   .pipe(calendarDate('The due date'));
 
 export const purchaseOrderInputSchema = z.object({
@@ -69,11 +95,17 @@ export const purchaseOrderInputSchema = z.object({
   supplier: singleLine('The supplier', 200).default(''),
   note: freeText('The note', 1000).default(''),
   lines: z
-    .array(z.object({
-      partId: z.uuid({ message: 'Choose a part from the catalogue.' }),
-      qtyOrdered: z.number({ message: 'The quantity must be a whole number.' }).int('The quantity must be a whole number.').min(1, 'Order at least 1.').max(1_000_000),
-      dueDate: isoDate,
-    }))
+    .array(
+      z.object({
+        partId: z.uuid({ message: 'Choose a part from the catalogue.' }),
+        qtyOrdered: z
+          .number({ message: 'The quantity must be a whole number.' })
+          .int('The quantity must be a whole number.')
+          .min(1, 'Order at least 1.')
+          .max(1_000_000),
+        dueDate: isoDate,
+      }),
+    )
     .min(1, 'An order needs at least one line.')
     .max(200),
 });
@@ -95,17 +127,36 @@ export type RebuildOutcomeInput = z.infer<typeof rebuildOutcomeSchema>;
 /** The workshop loop: turnaround, most rebuilds, and per cutter assembly what every condition needs (or scrap). */
 export const workshopSettingsInputSchema = z.object({
   turnaroundDays: days('The turnaround', 365),
-  maxRebuilds: z.number({ message: 'The number of rebuilds must be a whole number.' }).int('The number of rebuilds must be a whole number.').min(0, 'The number of rebuilds cannot be negative.').max(20),
-  serviceLevel: z.number({ message: 'The service level must be a number.' }).min(0.5, 'The service level is at least 50 %.').max(0.999, 'The service level is at most 99.9 %.'),
+  maxRebuilds: z
+    .number({ message: 'The number of rebuilds must be a whole number.' })
+    .int('The number of rebuilds must be a whole number.')
+    .min(0, 'The number of rebuilds cannot be negative.')
+    .max(20),
+  serviceLevel: z
+    .number({ message: 'The service level must be a number.' })
+    .min(0.5, 'The service level is at least 50 %.')
+    .max(0.999, 'The service level is at most 99.9 %.'),
   /** Assembly part id → condition → bill of materials or 'scrap'; every condition must be given. */
-  boms: z.record(z.uuid({ message: 'Bills of materials are keyed by the cutter assembly part.' }), z.record(z.enum(workshopConditionKeys), rebuildOutcomeSchema)),
+  boms: z.record(
+    z.uuid({ message: 'Bills of materials are keyed by the cutter assembly part.' }),
+    z.record(z.enum(workshopConditionKeys), rebuildOutcomeSchema),
+  ),
 });
 export type WorkshopSettingsInput = z.infer<typeof workshopSettingsInputSchema>;
 
 /** Query of GET /parts/demand: horizon in weeks and, optionally, another service level than the workshop setting. */
 export const demandQuerySchema = z.object({
-  weeks: z.coerce.number({ message: 'The horizon must be a whole number of weeks.' }).int('The horizon must be a whole number of weeks.').min(1, 'Look at least 1 week ahead.').max(52, 'Look at most 52 weeks ahead.').default(12),
-  serviceLevel: z.coerce.number({ message: 'The service level must be a number.' }).min(0.5, 'The service level is at least 0.5.').max(0.999, 'The service level is at most 0.999.').optional(),
+  weeks: z.coerce
+    .number({ message: 'The horizon must be a whole number of weeks.' })
+    .int('The horizon must be a whole number of weeks.')
+    .min(1, 'Look at least 1 week ahead.')
+    .max(52, 'Look at most 52 weeks ahead.')
+    .default(12),
+  serviceLevel: z.coerce
+    .number({ message: 'The service level must be a number.' })
+    .min(0.5, 'The service level is at least 0.5.')
+    .max(0.999, 'The service level is at most 0.999.')
+    .optional(),
 });
 export type DemandQuery = z.infer<typeof demandQuerySchema>;
 

@@ -13,7 +13,10 @@ export const newPasswordSchema = z
   .string({ message: 'Enter a password.' })
   .min(12, 'Use at least 12 characters for the password.')
   .max(200, 'Use at most 200 characters for the password.')
-  .refine((p) => !isCommonPassword(p), 'That password is one of the most commonly used ones, which are tried first by anyone guessing. Choose another.');
+  .refine(
+    (p) => !isCommonPassword(p),
+    'That password is one of the most commonly used ones, which are tried first by anyone guessing. Choose another.',
+  );
 
 /** Used by both the password-reset link and the invitation link. */
 export const setPasswordInputSchema = z.object({

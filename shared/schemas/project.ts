@@ -14,15 +14,23 @@ const isTimeZone = (tz: string) => {
 export const driveDirections = ['increasing', 'decreasing'] as const;
 
 export const projectInputSchema = z.object({
-  name: singleLine('The drive name', 120, 'Give the drive a name of at least 2 characters.').refine((s) => s.length >= 2, 'Give the drive a name of at least 2 characters.'),
+  name: singleLine('The drive name', 120, 'Give the drive a name of at least 2 characters.').refine(
+    (s) => s.length >= 2,
+    'Give the drive a name of at least 2 characters.',
+  ),
   machineDescription: freeText('The machine description', 500).default(''),
   excavatedDiameterM: z.coerce
     .number({ message: 'Enter the excavated diameter in metres.' })
     .min(1, 'The excavated diameter must be at least 1 m.')
     .max(20, 'The excavated diameter must be at most 20 m.'),
-  startChainageM: z.coerce.number({ message: 'Enter the start chainage in metres.' }).pipe(chainageM('The start chainage', 'Enter the start chainage in metres.')),
+  startChainageM: z.coerce
+    .number({ message: 'Enter the start chainage in metres.' })
+    .pipe(chainageM('The start chainage', 'Enter the start chainage in metres.')),
   driveDirection: z.enum(driveDirections, { message: 'Choose whether chainage increases or decreases as the machine advances.' }),
-  siteTimeZone: z.string({ message: 'Choose a time zone from the list, like Europe/Zurich.' }).max(64, 'Choose a time zone from the list, like Europe/Zurich.').refine(isTimeZone, 'Choose a time zone from the list, like Europe/Zurich.'),
+  siteTimeZone: z
+    .string({ message: 'Choose a time zone from the list, like Europe/Zurich.' })
+    .max(64, 'Choose a time zone from the list, like Europe/Zurich.')
+    .refine(isTimeZone, 'Choose a time zone from the list, like Europe/Zurich.'),
   ringLengthM: z.coerce
     .number({ message: 'Enter the ring length in metres.' })
     .min(0.3, 'The ring length must be at least 0.3 m.')

@@ -28,26 +28,48 @@ export type StopAction = keyof typeof stopActionFrom;
 export const canStop = (action: StopAction, status: StopStatus) => (stopActionFrom[action] as readonly StopStatus[]).includes(status);
 
 const hours = (label: string, max: number) =>
-  z.coerce.number({ message: `${label} must be a number of hours.` }).min(0, `${label} cannot be negative.`).max(max, `${label} must be at most ${max} h.`);
+  z.coerce
+    .number({ message: `${label} must be a number of hours.` })
+    .min(0, `${label} cannot be negative.`)
+    .max(max, `${label} must be at most ${max} h.`);
 
 /** Overrides of the plan's assumptions (query string of GET /stops/plan); anything left out takes the default. */
 export const stopPlanQuerySchema = z.object({
-  horizonM: z.coerce.number({ message: 'The horizon must be a number of metres.' }).gt(0, 'The horizon must be more than 0 m.').max(20_000, 'Plan at most 20 km ahead.').optional(),
+  horizonM: z.coerce
+    .number({ message: 'The horizon must be a number of metres.' })
+    .gt(0, 'The horizon must be more than 0 m.')
+    .max(20_000, 'Plan at most 20 km ahead.')
+    .optional(),
   freeAirStopH: hours('Hours per free-air stop', 500).optional(),
   compressedAirStopH: hours('Hours per compressed-air stop', 500).optional(),
   changeHCentre: hours('Hours per centre cutter change', 50).optional(),
   changeHFace: hours('Hours per face cutter change', 50).optional(),
   changeHGauge: hours('Hours per gauge cutter change', 50).optional(),
   wastedRingLifeHPerMm: hours('Hours per mm of ring life thrown away', 50).optional(),
-  compressedAirAboveHeadM: z.coerce.number({ message: 'The compressed-air head must be a number of metres.' }).min(0, 'The head cannot be negative.').max(300).optional(),
+  compressedAirAboveHeadM: z.coerce
+    .number({ message: 'The compressed-air head must be a number of metres.' })
+    .min(0, 'The head cannot be negative.')
+    .max(300)
+    .optional(),
   /** Site-practice rule: at a stop, change every disc worn to at least this share of its limit (%). */
-  practiceChangeSharePercent: z.coerce.number({ message: 'The change share must be a percentage of the limit.' }).min(50, 'Change discs at 50 % of their limit or more.').max(100, 'The change share cannot pass 100 % of the limit.').optional(),
+  practiceChangeSharePercent: z.coerce
+    .number({ message: 'The change share must be a percentage of the limit.' })
+    .min(50, 'Change discs at 50 % of their limit or more.')
+    .max(100, 'The change share cannot pass 100 % of the limit.')
+    .optional(),
   /** Fixed-interval rule: a stop every this many metres. */
-  fixedIntervalM: z.coerce.number({ message: 'The interval must be a number of metres.' }).min(10, 'Stop at most every 10 m.').max(5000, 'The interval must be at most 5,000 m.').optional(),
+  fixedIntervalM: z.coerce
+    .number({ message: 'The interval must be a number of metres.' })
+    .min(10, 'Stop at most every 10 m.')
+    .max(5000, 'The interval must be at most 5,000 m.')
+    .optional(),
 });
 export type StopPlanQuery = z.infer<typeof stopPlanQuerySchema>;
 
-const expectedHoursSchema = z.number({ message: 'Expected hours must be a number.' }).gt(0, 'Expected hours must be more than 0.').max(500, 'A stop of more than 500 h is not plausible; check the value.');
+const expectedHoursSchema = z
+  .number({ message: 'Expected hours must be a number.' })
+  .gt(0, 'Expected hours must be more than 0.')
+  .max(500, 'A stop of more than 500 h is not plausible; check the value.');
 
 /** A proposed stop, taken from a stop of the plan. */
 export const createStopInputSchema = z.object({
@@ -55,10 +77,17 @@ export const createStopInputSchema = z.object({
   compressedAir: z.boolean().default(false),
   expectedHours: expectedHoursSchema.nullable().default(null),
   positions: z
-    .array(z.object({
-      positionId: z.uuid({ message: 'Each position must be given by its id.' }),
-      expectedWearMm: z.number().min(0, 'Expected wear cannot be negative.').max(100, 'Expected wear above 100 mm is not possible.').nullable().default(null),
-    }))
+    .array(
+      z.object({
+        positionId: z.uuid({ message: 'Each position must be given by its id.' }),
+        expectedWearMm: z
+          .number()
+          .min(0, 'Expected wear cannot be negative.')
+          .max(100, 'Expected wear above 100 mm is not possible.')
+          .nullable()
+          .default(null),
+      }),
+    )
     .min(1, 'A stop needs at least one position to change.')
     .max(300)
     .refine((p) => new Set(p.map((x) => x.positionId)).size === p.length, 'The same position is listed twice.'),
@@ -223,8 +252,15 @@ export interface StopListItem extends Stop {
 export interface WorkPack {
   stop: Stop;
   positions: {
-    positionId: string; number: number; positionClass: PositionClass; trackRadiusMm: number; discSizeIn: number; twinDisc: boolean; wearLimitMm: number;
-    expectedWearMm: number | null; fittedSerial: string | null;
+    positionId: string;
+    number: number;
+    positionClass: PositionClass;
+    trackRadiusMm: number;
+    discSizeIn: number;
+    twinDisc: boolean;
+    wearLimitMm: number;
+    expectedWearMm: number | null;
+    fittedSerial: string | null;
   }[];
   storeSerials: { cutterId: string; serial: string; discSizeIn: number; rebuildCount: number }[];
   shortages: { discSizeIn: number; needed: number; inStore: number }[];

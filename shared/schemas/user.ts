@@ -9,9 +9,7 @@ export const inviteUserInputSchema = z.object({
   email: emailSchema,
   name: requiredLine('The name', 120, 'Enter the person’s name.'),
   isAdmin: z.boolean().default(false),
-  memberships: z
-    .array(z.object({ projectId: z.uuid({ message: 'Choose a project.' }), role: projectRoleSchema }))
-    .default([]),
+  memberships: z.array(z.object({ projectId: z.uuid({ message: 'Choose a project.' }), role: projectRoleSchema })).default([]),
 });
 export type InviteUserInput = z.infer<typeof inviteUserInputSchema>;
 

@@ -45,7 +45,8 @@ function page(pattern: string, load: () => Promise<ComponentType>, queries?: Pag
 }
 
 const project = (params: Params) => projectQueries.detail(params.projectId ?? '');
-const withProject = (more: (projectId: string, params: Params) => Prefetch[]): PageQueries =>
+const withProject =
+  (more: (projectId: string, params: Params) => Prefetch[]): PageQueries =>
   (params) => [project(params), ...more(params.projectId ?? '', params)];
 
 /** Every route; patterns come from `paths` (src/config/paths.ts), never written here. */
@@ -62,39 +63,132 @@ export const router = createBrowserRouter([
         Component: AppShell,
         errorElement: <RouteError />,
         children: [
-          { index: true, lazy: async () => ({ Component: (await import('../features/projects/routes/project-picker')).ProjectPickerRoute }) },
+          {
+            index: true,
+            lazy: async () => ({ Component: (await import('../features/projects/routes/project-picker')).ProjectPickerRoute }),
+          },
           page(paths.account, async () => (await import('../features/auth/routes/account')).AccountRoute),
-          page(paths.project.pattern, async () => (await import('../features/projects/routes/project-home')).ProjectHomeRoute, withProject(() => [])),
-          page(paths.cutterhead.pattern, async () => (await import('../features/layout/routes/cutterhead')).CutterheadRoute, withProject((id) => [layoutQueries.list(id)])),
-          page(paths.layout.pattern, async () => (await import('../features/layout/routes/layout')).LayoutRoute, withProject((id) => [layoutQueries.list(id)])),
-          page(paths.position.pattern, async () => (await import('../features/layout/routes/position')).PositionRoute,
-            withProject((id, p) => [layoutQueries.detail(id, p.positionId ?? '')])),
-          page(paths.cutters.pattern, async () => (await import('../features/cutters/routes/cutters')).CuttersRoute, withProject(() => [])),
-          page(paths.cutter.pattern, async () => (await import('../features/cutters/routes/cutter')).CutterRoute,
-            withProject((id, p) => [cutterQueries.detail(id, p.cutterId ?? '')])),
-          page(paths.rounds.pattern, async () => (await import('../features/rounds/routes/rounds')).RoundsRoute, withProject((id) => [roundQueries.list(id)])),
-          page(paths.round.pattern, async () => (await import('../features/rounds/routes/round')).RoundRoute,
-            withProject((id, p) => [roundQueries.detail(id, p.roundId ?? '')])),
-          page(paths.forecast.pattern, async () => (await import('../features/forecast/routes/forecast')).ForecastRoute,
-            withProject((id) => [forecastQueries.forecast(id), geologyQueries.geology(id), geologyQueries.groundTypes(id), forecastQueries.settings(id)])),
-          page(paths.wearFits.pattern, async () => (await import('../features/forecast/routes/wear-fits')).WearFitsRoute, withProject((id) => [forecastQueries.wearFit(id)])),
-          page(paths.advanceLog.pattern, async () => (await import('../features/drive-data/routes/advance-log')).AdvanceLogRoute,
-            withProject((id) => [driveDataQueries.daily(id), driveDataQueries.mapping(id)])),
-          page(paths.geology.pattern, async () => (await import('../features/drive-data/routes/geology')).GeologyRoute,
-            withProject((id) => [geologyQueries.geology(id), geologyQueries.groundTypes(id)])),
-          page(paths.parts.pattern, async () => (await import('../features/parts/routes/parts')).PartsRoute, withProject(() => [])),
-          page(paths.downtime.pattern, async () => (await import('../features/downtime/routes/downtime-events')).DowntimeEventsRoute, withProject(() => [])),
-          page(paths.downtimeReport.pattern, async () => (await import('../features/downtime/routes/downtime-report')).DowntimeReportRoute, withProject(() => [])),
-          page(paths.cutterCost.pattern, async () => (await import('../features/downtime/routes/cutter-cost')).CutterCostRoute, withProject(() => [])),
-          page(paths.stops.pattern, async () => (await import('../features/stops/routes/stops')).StopsRoute, withProject(() => [])),
-          page(paths.stopPlan.pattern, async () => (await import('../features/stops/routes/plan')).StopPlanRoute, withProject(() => [])),
-          page(paths.stop.pattern, async () => (await import('../features/stops/routes/stop')).StopRoute,
-            withProject((id, p) => [stopQueries.detail(id, p.stopId ?? ''), stopQueries.crews(id), stopQueries.rounds(id)])),
+          page(
+            paths.project.pattern,
+            async () => (await import('../features/projects/routes/project-home')).ProjectHomeRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.cutterhead.pattern,
+            async () => (await import('../features/layout/routes/cutterhead')).CutterheadRoute,
+            withProject((id) => [layoutQueries.list(id)]),
+          ),
+          page(
+            paths.layout.pattern,
+            async () => (await import('../features/layout/routes/layout')).LayoutRoute,
+            withProject((id) => [layoutQueries.list(id)]),
+          ),
+          page(
+            paths.position.pattern,
+            async () => (await import('../features/layout/routes/position')).PositionRoute,
+            withProject((id, p) => [layoutQueries.detail(id, p.positionId ?? '')]),
+          ),
+          page(
+            paths.cutters.pattern,
+            async () => (await import('../features/cutters/routes/cutters')).CuttersRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.cutter.pattern,
+            async () => (await import('../features/cutters/routes/cutter')).CutterRoute,
+            withProject((id, p) => [cutterQueries.detail(id, p.cutterId ?? '')]),
+          ),
+          page(
+            paths.rounds.pattern,
+            async () => (await import('../features/rounds/routes/rounds')).RoundsRoute,
+            withProject((id) => [roundQueries.list(id)]),
+          ),
+          page(
+            paths.round.pattern,
+            async () => (await import('../features/rounds/routes/round')).RoundRoute,
+            withProject((id, p) => [roundQueries.detail(id, p.roundId ?? '')]),
+          ),
+          page(
+            paths.forecast.pattern,
+            async () => (await import('../features/forecast/routes/forecast')).ForecastRoute,
+            withProject((id) => [
+              forecastQueries.forecast(id),
+              geologyQueries.geology(id),
+              geologyQueries.groundTypes(id),
+              forecastQueries.settings(id),
+            ]),
+          ),
+          page(
+            paths.wearFits.pattern,
+            async () => (await import('../features/forecast/routes/wear-fits')).WearFitsRoute,
+            withProject((id) => [forecastQueries.wearFit(id)]),
+          ),
+          page(
+            paths.advanceLog.pattern,
+            async () => (await import('../features/drive-data/routes/advance-log')).AdvanceLogRoute,
+            withProject((id) => [driveDataQueries.daily(id), driveDataQueries.mapping(id)]),
+          ),
+          page(
+            paths.geology.pattern,
+            async () => (await import('../features/drive-data/routes/geology')).GeologyRoute,
+            withProject((id) => [geologyQueries.geology(id), geologyQueries.groundTypes(id)]),
+          ),
+          page(
+            paths.parts.pattern,
+            async () => (await import('../features/parts/routes/parts')).PartsRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.downtime.pattern,
+            async () => (await import('../features/downtime/routes/downtime-events')).DowntimeEventsRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.downtimeReport.pattern,
+            async () => (await import('../features/downtime/routes/downtime-report')).DowntimeReportRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.cutterCost.pattern,
+            async () => (await import('../features/downtime/routes/cutter-cost')).CutterCostRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.stops.pattern,
+            async () => (await import('../features/stops/routes/stops')).StopsRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.stopPlan.pattern,
+            async () => (await import('../features/stops/routes/plan')).StopPlanRoute,
+            withProject(() => []),
+          ),
+          page(
+            paths.stop.pattern,
+            async () => (await import('../features/stops/routes/stop')).StopRoute,
+            withProject((id, p) => [stopQueries.detail(id, p.stopId ?? ''), stopQueries.crews(id), stopQueries.rounds(id)]),
+          ),
           { path: paths.admin.home, element: <Navigate to={paths.admin.users} replace /> },
-          page(paths.admin.users, async () => (await import('../features/admin/routes/users')).AdminUsersRoute, () => [adminQueries.users(), adminQueries.projects()]),
-          page(paths.admin.projects, async () => (await import('../features/admin/routes/projects')).AdminProjectsRoute, () => [adminQueries.projects()]),
-          page(paths.admin.jobs, async () => (await import('../features/admin/routes/jobs')).AdminJobsRoute, () => [adminQueries.jobs(), adminQueries.projects()]),
-          page(paths.admin.mail, async () => (await import('../features/admin/routes/mail')).AdminMailRoute, () => [adminQueries.mail(), adminQueries.projects()]),
+          page(
+            paths.admin.users,
+            async () => (await import('../features/admin/routes/users')).AdminUsersRoute,
+            () => [adminQueries.users(), adminQueries.projects()],
+          ),
+          page(
+            paths.admin.projects,
+            async () => (await import('../features/admin/routes/projects')).AdminProjectsRoute,
+            () => [adminQueries.projects()],
+          ),
+          page(
+            paths.admin.jobs,
+            async () => (await import('../features/admin/routes/jobs')).AdminJobsRoute,
+            () => [adminQueries.jobs(), adminQueries.projects()],
+          ),
+          page(
+            paths.admin.mail,
+            async () => (await import('../features/admin/routes/mail')).AdminMailRoute,
+            () => [adminQueries.mail(), adminQueries.projects()],
+          ),
           { path: '*', element: <RouteError /> },
         ],
       },

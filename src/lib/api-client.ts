@@ -26,7 +26,12 @@ export function apiErrorFrom(status: number, data: unknown): ApiError {
   if (!err || typeof err.message !== 'string') return new ApiError(status, `The server answered ${status}.`);
   const { message, issues, ...details } = err;
   const kept = Array.isArray(issues)
-    ? issues.map((i) => ({ path: String(i.path ?? ''), message: String(i.message ?? ''), ...(typeof i.row === 'number' ? { row: i.row } : {}), ...(typeof i.column === 'string' ? { column: i.column } : {}) }))
+    ? issues.map((i) => ({
+        path: String(i.path ?? ''),
+        message: String(i.message ?? ''),
+        ...(typeof i.row === 'number' ? { row: i.row } : {}),
+        ...(typeof i.column === 'string' ? { column: i.column } : {}),
+      }))
     : [];
   return new ApiError(status, message, kept, details);
 }

@@ -12,6 +12,8 @@ export const getGeology = (projectId: string) => apiGet<Geology>(`/api/projects/
 
 export const geologyQueries = {
   all: (projectId: string) => ['projects', projectId, 'drive-data'] as const,
-  groundTypes: (projectId: string) => queryOptions({ queryKey: [...geologyQueries.all(projectId), 'ground-types'], queryFn: () => getGroundTypes(projectId) }),
-  geology: (projectId: string) => queryOptions({ queryKey: [...geologyQueries.all(projectId), 'geology'], queryFn: () => getGeology(projectId) }),
+  groundTypes: (projectId: string) =>
+    queryOptions({ queryKey: [...geologyQueries.all(projectId), 'ground-types'], queryFn: () => getGroundTypes(projectId) }),
+  geology: (projectId: string) =>
+    queryOptions({ queryKey: [...geologyQueries.all(projectId), 'geology'], queryFn: () => getGeology(projectId) }),
 };

@@ -28,13 +28,22 @@ describe('sign-in', () => {
   });
 
   it('marks the cookie Secure when served over HTTPS (behind a trusted proxy)', async () => {
-    const res = await request(app).post('/api/auth/sign-in').set('X-Forwarded-Proto', 'https').send({ email: user.email, password: PASSWORD });
+    const res = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-Proto', 'https')
+      .send({ email: user.email, password: PASSWORD });
     expect(String(res.headers['set-cookie'])).toMatch(/Secure/);
   });
 
   it('gives the same answer for a wrong password and for an unknown user', async () => {
-    const wrong = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', '198.51.100.7').send({ email: user.email, password: 'not the password' });
-    const unknown = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', '198.51.100.7').send({ email: `${uniq('nobody')}@kerfwise.test`, password: 'whatever-it-is' });
+    const wrong = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '198.51.100.7')
+      .send({ email: user.email, password: 'not the password' });
+    const unknown = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '198.51.100.7')
+      .send({ email: `${uniq('nobody')}@kerfwise.test`, password: 'whatever-it-is' });
     expect(wrong.status).toBe(401);
     expect(unknown.status).toBe(401);
     expect(unknown.body).toEqual(wrong.body);
@@ -62,53 +71,90 @@ describe('sign-in', () => {
     const victim = await makeUser();
     const ip = '203.0.113.7';
     for (let i = 0; i < signInThrottle.freeFailures; i++) {
-      const r = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', ip).send({ email: victim.email, password: 'guess-guess-guess' });
+      const r = await request(app)
+        .post('/api/auth/sign-in')
+        .set('X-Forwarded-For', ip)
+        .send({ email: victim.email, password: 'guess-guess-guess' });
       expect(r.status).toBe(401);
     }
-    const blocked = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', ip).send({ email: victim.email, password: PASSWORD });
+    const blocked = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', ip)
+      .send({ email: victim.email, password: PASSWORD });
     expect(blocked.status).toBe(429);
     expect(Number(blocked.headers['retry-after'])).toBeGreaterThan(0);
     expect(Number(blocked.headers['retry-after'])).toBeLessThanOrEqual(signInThrottle.firstDelayS);
-    const elsewhere = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', '203.0.113.8').send({ email: victim.email, password: PASSWORD });
+    const elsewhere = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '203.0.113.8')
+      .send({ email: victim.email, password: PASSWORD });
     expect(elsewhere.status).toBe(200);
   });
 
   it('a burst of 40 parallel attempts gets no more tries than the limit: the right password as guess 25 is refused', async () => {
     const victim = await makeUser();
     const ip = '203.0.113.40';
-    const burst = await Promise.all(Array.from({ length: 40 }, (_, i) =>
-      request(app).post('/api/auth/sign-in').set('X-Forwarded-For', ip).send({ email: victim.email, password: i === 24 ? PASSWORD : `wrong guess number ${i}` })));
+    const burst = await Promise.all(
+      Array.from({ length: 40 }, (_, i) =>
+        request(app)
+          .post('/api/auth/sign-in')
+          .set('X-Forwarded-For', ip)
+          .send({ email: victim.email, password: i === 24 ? PASSWORD : `wrong guess number ${i}` }),
+      ),
+    );
     const processed = burst.filter((r) => r.status === 401 || r.status === 200);
     expect(processed.length).toBeLessThanOrEqual(signInThrottle.freeFailures + 1);
     expect(burst.filter((r) => r.status === 429).length).toBeGreaterThanOrEqual(40 - signInThrottle.freeFailures - 1);
-    const [{ n }] = await db.select({ n: sql<number>`count(*)::int` }).from(signInAttempts).where(eq(signInAttempts.email, victim.email));
+    const [{ n }] = await db
+      .select({ n: sql<number>`count(*)::int` })
+      .from(signInAttempts)
+      .where(eq(signInAttempts.email, victim.email));
     expect(n).toBe(processed.length); // every verified attempt is recorded, and only those
   });
 
   it('an attack from elsewhere does not lock the owner out of their usual device (device cookie, OWASP)', async () => {
     const owner = await makeUser();
     // The owner signed in on their tablet before: it carries a device cookie for the account.
-    const first = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', '198.51.100.5').send({ email: owner.email, password: PASSWORD });
+    const first = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '198.51.100.5')
+      .send({ email: owner.email, password: PASSWORD });
     expect(first.status).toBe(200);
     const device = (first.headers['set-cookie'] as unknown as string[]).find((c) => c.startsWith('kerfwise_device='))!.split(';')[0];
     // Someone else tries from many addresses until unknown devices are slowed for the account.
     for (let i = 0; i < signInThrottle.accountUnknownFailures; i++) {
-      await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', `192.0.2.${i + 1}`).send({ email: owner.email, password: `attacker guess ${i}` });
+      await request(app)
+        .post('/api/auth/sign-in')
+        .set('X-Forwarded-For', `192.0.2.${i + 1}`)
+        .send({ email: owner.email, password: `attacker guess ${i}` });
     }
-    const stranger = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', '192.0.2.200').send({ email: owner.email, password: PASSWORD });
+    const stranger = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '192.0.2.200')
+      .send({ email: owner.email, password: PASSWORD });
     expect(stranger.status).toBe(429);
-    const tablet = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', '198.51.100.5').set('Cookie', device).send({ email: owner.email, password: PASSWORD });
+    const tablet = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '198.51.100.5')
+      .set('Cookie', device)
+      .send({ email: owner.email, password: PASSWORD });
     expect(tablet.status).toBe(200);
   });
 
   it('trips the per-address limit across many accounts', async () => {
     const ip = '203.0.113.200';
     for (let i = 0; i < signInThrottle.perAddressFailures; i++) {
-      await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', ip).send({ email: `${uniq('spray')}@kerfwise.test`, password: 'guess-guess-guess' });
+      await request(app)
+        .post('/api/auth/sign-in')
+        .set('X-Forwarded-For', ip)
+        .send({ email: `${uniq('spray')}@kerfwise.test`, password: 'guess-guess-guess' });
     }
     const blocked = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', ip).send({ email: user.email, password: PASSWORD });
     expect(blocked.status).toBe(429);
-    const elsewhere = await request(app).post('/api/auth/sign-in').set('X-Forwarded-For', '203.0.113.201').send({ email: user.email, password: PASSWORD });
+    const elsewhere = await request(app)
+      .post('/api/auth/sign-in')
+      .set('X-Forwarded-For', '203.0.113.201')
+      .send({ email: user.email, password: PASSWORD });
     expect(elsewhere.status).toBe(200);
   });
 });
@@ -137,7 +183,9 @@ describe('sessions', () => {
     expect((await tablet.post('/api/auth/change-password').send({ currentPassword: PASSWORD, newPassword })).status).toBe(204);
     expect((await phone.get('/api/auth/me')).status).toBe(401);
     expect((await tablet.get('/api/auth/me')).status).toBe(200);
-    const wrongCurrent = await tablet.post('/api/auth/change-password').send({ currentPassword: 'nope', newPassword: 'another long password' });
+    const wrongCurrent = await tablet
+      .post('/api/auth/change-password')
+      .send({ currentPassword: 'nope', newPassword: 'another long password' });
     expect(wrongCurrent.status).toBe(400);
   });
 
@@ -172,7 +220,10 @@ describe('password reset by e-mail', () => {
     const u = await makeUser();
     await request(app).post('/api/auth/password-reset').send({ email: u.email });
     const token = tokenFromLink((await waitForMail(u.email, 'new password')).textBody);
-    await db.update(oneTimeTokens).set({ expiresAt: sql`now() - interval '1 second'` }).where(eq(oneTimeTokens.userId, u.id));
+    await db
+      .update(oneTimeTokens)
+      .set({ expiresAt: sql`now() - interval '1 second'` })
+      .where(eq(oneTimeTokens.userId, u.id));
     const res = await request(app).post('/api/auth/set-password').send({ token, password: 'too late password' });
     expect(res.status).toBe(400);
     await signedInAgent(app, u.email, PASSWORD);
@@ -180,7 +231,11 @@ describe('password reset by e-mail', () => {
 
   it('links are built from APP_URL, never from the Host or X-Forwarded-Host the caller sent', async () => {
     const u = await makeUser();
-    const ask = await request(app).post('/api/auth/password-reset').set('Host', 'attacker.example').set('X-Forwarded-Host', 'attacker.example').send({ email: u.email });
+    const ask = await request(app)
+      .post('/api/auth/password-reset')
+      .set('Host', 'attacker.example')
+      .set('X-Forwarded-Host', 'attacker.example')
+      .send({ email: u.email });
     expect(ask.status).toBe(202);
     const mail = await waitForMail(u.email, 'new password');
     expect(mail.textBody).toContain('http://kerfwise.test/set-password?token=');
@@ -195,7 +250,10 @@ describe('password reset by e-mail', () => {
       await client.query('LOCK TABLE users IN ACCESS EXCLUSIVE MODE');
       // Were the lookup or the mail done before answering, this request would wait for the lock.
       const ask = await Promise.race([
-        request(app).post('/api/auth/password-reset').send({ email: u.email }).then((r) => r.status),
+        request(app)
+          .post('/api/auth/password-reset')
+          .send({ email: u.email })
+          .then((r) => r.status),
         new Promise((resolve) => setTimeout(() => resolve('still waiting'), 5_000)),
       ]);
       expect(ask).toBe(202);
@@ -212,7 +270,14 @@ describe('password reset by e-mail', () => {
     for (const email of [known.email, unknown]) {
       const answers: number[] = [];
       for (let i = 0; i <= resetLimits.perAccount; i++) {
-        answers.push((await request(app).post('/api/auth/password-reset').set('X-Forwarded-For', `198.51.100.${60 + i}`).send({ email })).status);
+        answers.push(
+          (
+            await request(app)
+              .post('/api/auth/password-reset')
+              .set('X-Forwarded-For', `198.51.100.${60 + i}`)
+              .send({ email })
+          ).status,
+        );
       }
       expect(answers).toEqual([...Array(resetLimits.perAccount).fill(202), 429]);
     }

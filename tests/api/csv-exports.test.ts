@@ -15,7 +15,7 @@ import { addMember, makeProject, makeUser, signedInAgent, uniq } from '../suppor
 
 const app: Express = createApp();
 const CAUSE = '=HYPERLINK("http://attacker.example","open")';
-const NOTE = '+cmd|\' /C calc\'!A0';
+const NOTE = "+cmd|' /C calc'!A0";
 const SHIFT = '-Night';
 const PART = '@SUM(A1)';
 let agent: Awaited<ReturnType<typeof signedInAgent>>;
@@ -29,21 +29,42 @@ beforeAll(async () => {
   await addMember(project.id, manager.id, 'site_manager');
   agent = await signedInAgent(app, manager.email);
   base = `/api/projects/${project.id}`;
-  expect((await agent.put(`${base}/downtime/settings`).send({ shifts: [{ name: 'Day', start: '06:00' }, { name: SHIFT, start: '18:00' }], labourRatePerHour: 80, gapMinutes: 90 })).status).toBe(200);
+  expect(
+    (
+      await agent.put(`${base}/downtime/settings`).send({
+        shifts: [
+          { name: 'Day', start: '06:00' },
+          { name: SHIFT, start: '18:00' },
+        ],
+        labourRatePerHour: 80,
+        gapMinutes: 90,
+      })
+    ).status,
+  ).toBe(200);
   const cause = await agent.post(`${base}/downtime/causes`).send({ name: CAUSE, cutterWork: false });
   expect(cause.status, JSON.stringify(cause.body)).toBe(201);
   // 3 h in the day shift of Tue 2026-03-24 (CET, UTC+1).
-  const event = await agent.post(`${base}/downtime/events`).send({ startAt: '2026-03-24T08:00:00+01:00', endAt: '2026-03-24T11:00:00+01:00', causeId: cause.body.id, note: NOTE });
+  const event = await agent
+    .post(`${base}/downtime/events`)
+    .send({ startAt: '2026-03-24T08:00:00+01:00', endAt: '2026-03-24T11:00:00+01:00', causeId: cause.body.id, note: NOTE });
   expect(event.status, JSON.stringify(event.body)).toBe(201);
   groundName = `-${uniq('Granite')}`;
   const [ground] = await db.insert(groundTypes).values({ projectId: project.id, name: groundName }).returning();
   await db.insert(geologySections).values({ projectId: project.id, chainageFromM: 0, chainageToM: 1000, groundTypeId: ground.id });
   // 4 strokes of 2.5 m on 2026-03-24, chainage 100 → 110 m.
-  await db.insert(strokes).values([0, 1, 2, 3].map((i) => ({
-    projectId: project.id, ringNumber: i + 1, startTime: new Date(`2026-03-24T0${i * 2}:00:00Z`), endTime: new Date(`2026-03-24T0${i * 2 + 1}:00:00Z`),
-    chainageStartM: 100 + i * 2.5, chainageEndM: 102.5 + i * 2.5,
-  })));
-  await db.insert(parts).values({ projectId: project.id, code: 'SK-X', name: PART, kind: 'seal-kit', unitCost: '150.00', leadTimeMeanDays: 30 });
+  await db.insert(strokes).values(
+    [0, 1, 2, 3].map((i) => ({
+      projectId: project.id,
+      ringNumber: i + 1,
+      startTime: new Date(`2026-03-24T0${i * 2}:00:00Z`),
+      endTime: new Date(`2026-03-24T0${i * 2 + 1}:00:00Z`),
+      chainageStartM: 100 + i * 2.5,
+      chainageEndM: 102.5 + i * 2.5,
+    })),
+  );
+  await db
+    .insert(parts)
+    .values({ projectId: project.id, code: 'SK-X', name: PART, kind: 'seal-kit', unitCost: '150.00', leadTimeMeanDays: 30 });
 });
 
 const period = 'from=2026-03-23&to=2026-03-29';
@@ -58,7 +79,9 @@ describe('formula cells are neutralised in every CSV export', () => {
   it('downtime events: cause and note', async () => {
     const lines = await get(`/downtime/events?format=csv&${period}`);
     // derived: 08:00–11:00 is 3 h, shown with 2 decimals on the events screen.
-    expect(lines).toContain(`2026-03-24T08:00:00+01:00,2026-03-24T11:00:00+01:00,3.00,"'=HYPERLINK(""http://attacker.example"",""open"")",no,manual,,'${NOTE}`);
+    expect(lines).toContain(
+      `2026-03-24T08:00:00+01:00,2026-03-24T11:00:00+01:00,3.00,"'=HYPERLINK(""http://attacker.example"",""open"")",no,manual,,'${NOTE}`,
+    );
   });
 
   it('downtime report by week, by shift (shift name in the header) and Pareto', async () => {
@@ -89,7 +112,9 @@ describe('formula cells are neutralised in every CSV export', () => {
 
   it('advance log: BOM, and numbers (never neutralised) written in full for re-import', async () => {
     const lines = await get('/strokes/export.csv');
-    expect(lines[0]).toBe('ring,start_time,end_time,chainage_start_m,chainage_end_m,revolutions,penetration_mm_per_rev,rpm,thrust_kn,torque_knm');
+    expect(lines[0]).toBe(
+      'ring,start_time,end_time,chainage_start_m,chainage_end_m,revolutions,penetration_mm_per_rev,rpm,thrust_kn,torque_knm',
+    );
     // 2026-03-24T02:00Z is 03:00 at UTC+1 (CET) in Zurich.
     expect(lines[2]).toBe('2,2026-03-24T03:00:00+01:00,2026-03-24T04:00:00+01:00,102.5,105,,,,,');
   });

@@ -23,7 +23,10 @@ const logFile = `${dataDir}-run/server.log`;
 function pgCtl(...args: string[]) {
   const bin = path.join(findPgBin(), 'pg_ctl');
   const asRoot = process.getuid?.() === 0;
-  const r = spawnSync(asRoot ? 'runuser' : bin, [...(asRoot ? ['-u', 'postgres', '--', bin] : []), '-D', dataDir, ...args], { cwd: '/', encoding: 'utf8' });
+  const r = spawnSync(asRoot ? 'runuser' : bin, [...(asRoot ? ['-u', 'postgres', '--', bin] : []), '-D', dataDir, ...args], {
+    cwd: '/',
+    encoding: 'utf8',
+  });
   if (r.status !== 0) throw new Error(`pg_ctl ${args.join(' ')} failed: ${r.stdout}${r.stderr}`);
 }
 
@@ -97,7 +100,9 @@ describe('database restart and outage', () => {
       const agent = request.agent(base);
       const signIn = await agent.post('/api/auth/sign-in').send({ email: u.email, password: PASSWORD });
       expect(signIn.status, JSON.stringify(signIn.body) + childOutput).toBe(200);
-      const round = await agent.post(`/api/projects/${project.id}/rounds`).send({ startedAt: '2026-11-02T08:00:00Z', chainageM: 400 + i, ringNumber: 267 + i, crew: `crew ${i}` });
+      const round = await agent
+        .post(`/api/projects/${project.id}/rounds`)
+        .send({ startedAt: '2026-11-02T08:00:00Z', chainageM: 400 + i, ringNumber: 267 + i, crew: `crew ${i}` });
       expect(round.status).toBe(201);
       clients.push({ agent, roundId: round.body.id as string });
     }
@@ -111,7 +116,11 @@ describe('database restart and outage', () => {
         const body = { clientKey: randomUUID(), positionId: position.id, wearMm: 5, conditions: ['even_wear'], action: 'none' };
         for (let attempt = 0; ; attempt++) {
           if (attempt > 300) throw new Error('an entry was never acknowledged');
-          const res = await agent.post(`/api/projects/${project.id}/rounds/${roundId}/entries`).send(body).timeout(10_000).catch(() => null);
+          const res = await agent
+            .post(`/api/projects/${project.id}/rounds/${roundId}/entries`)
+            .send(body)
+            .timeout(10_000)
+            .catch(() => null);
           const status = res?.status ?? 0;
           statuses.set(status, (statuses.get(status) ?? 0) + 1);
           if (status === 200 || status === 201) {
@@ -146,7 +155,9 @@ describe('database restart and outage', () => {
     expect(entries).toHaveLength(10 * perClient);
     expect(new Set(entries.map((e) => `${e.roundId}:${e.positionId}`)).size).toBe(entries.length);
     expect(new Set(entries.map((e) => e.clientKey))).toEqual(new Set(acknowledged));
-    console.info(`restart took ${restartMs} ms; health back ${backWithinMs} ms later; answers: ${JSON.stringify(Object.fromEntries(statuses))}`);
+    console.info(
+      `restart took ${restartMs} ms; health back ${backWithinMs} ms later; answers: ${JSON.stringify(Object.fromEntries(statuses))}`,
+    );
   }, 120_000);
 
   it('survives a job tick while PostgreSQL is stopped, answers 503 meanwhile, and records the run as failed', async () => {
@@ -178,7 +189,10 @@ describe('database restart and outage', () => {
     const { and, eq } = drizzleOrm;
     let runs: (typeof schema.jobRuns.$inferSelect)[] = [];
     for (let i = 0; i < 150 && runs.length === 0; i++) {
-      runs = await db.select().from(schema.jobRuns).where(and(eq(schema.jobRuns.job, 'deliver-mail'), eq(schema.jobRuns.slotAt, new Date('2027-06-07T05:00:00Z'))));
+      runs = await db
+        .select()
+        .from(schema.jobRuns)
+        .where(and(eq(schema.jobRuns.job, 'deliver-mail'), eq(schema.jobRuns.slotAt, new Date('2027-06-07T05:00:00Z'))));
       if (runs.length === 0) await sleep(100);
     }
     expect(runs).toHaveLength(1);

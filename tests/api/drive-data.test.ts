@@ -24,14 +24,26 @@ let planner: Awaited<ReturnType<typeof signedInAgent>>;
 
 /** A fingerprint of everything an import may touch. */
 async function snapshot() {
-  const [s] = await db.execute<{ n: number; h: string | null }>(sql`select count(*)::int as n, md5(string_agg(ring_number::text || start_time::text || chainage_start_m::text, ',' order by ring_number)) as h from strokes where project_id = ${projectId}`).then((r) => r.rows);
-  const [g] = await db.execute<{ n: number; h: string | null }>(sql`select count(*)::int as n, md5(string_agg(chainage_from_m::text || ground_type_id::text, ',' order by chainage_from_m)) as h from geology_sections where project_id = ${projectId}`).then((r) => r.rows);
+  const [s] = await db
+    .execute<{ n: number; h: string | null }>(
+      sql`select count(*)::int as n, md5(string_agg(ring_number::text || start_time::text || chainage_start_m::text, ',' order by ring_number)) as h from strokes where project_id = ${projectId}`,
+    )
+    .then((r) => r.rows);
+  const [g] = await db
+    .execute<{ n: number; h: string | null }>(
+      sql`select count(*)::int as n, md5(string_agg(chainage_from_m::text || ground_type_id::text, ',' order by chainage_from_m)) as h from geology_sections where project_id = ${projectId}`,
+    )
+    .then((r) => r.rows);
   const grounds = (await db.select().from(groundTypes).where(eq(groundTypes.projectId, projectId))).length;
   const rolled = (await db.select().from(fittingRolledKm).where(eq(fittingRolledKm.projectId, projectId))).length;
   return { strokes: s, geology: g, grounds, rolled };
 }
 
-const post = (url: string, body: Buffer | string) => planner.post(url).set('Content-Type', 'text/csv').send(Buffer.isBuffer(body) ? body : Buffer.from(body));
+const post = (url: string, body: Buffer | string) =>
+  planner
+    .post(url)
+    .set('Content-Type', 'text/csv')
+    .send(Buffer.isBuffer(body) ? body : Buffer.from(body));
 
 beforeAll(async () => {
   const p = await makeProject();
@@ -40,12 +52,19 @@ beforeAll(async () => {
   await db.update(projects).set({ startChainageM: 2400 }).where(eq(projects.id, projectId));
   await makeCutterhead(projectId, 3);
   // The fixtures' strokes are from March 2026: the discs were fitted before that.
-  await db.update(fittings).set({ fittedAt: new Date('2026-01-05T06:00:00Z') }).where(eq(fittings.projectId, projectId));
+  await db
+    .update(fittings)
+    .set({ fittedAt: new Date('2026-01-05T06:00:00Z') })
+    .where(eq(fittings.projectId, projectId));
   const u = await makeUser();
   await addMember(projectId, u.id, 'planner');
   planner = await signedInAgent(app, u.email);
-  expect((await post(`/api/projects/${projectId}/geology/import`, readFileSync(path.join(goodDir, 'geology-long-section.csv')))).status).toBe(201);
-  expect((await post(`/api/projects/${projectId}/strokes/import`, readFileSync(path.join(goodDir, 'advance-log-comma-iso.csv')))).status).toBe(201);
+  expect(
+    (await post(`/api/projects/${projectId}/geology/import`, readFileSync(path.join(goodDir, 'geology-long-section.csv')))).status,
+  ).toBe(201);
+  expect(
+    (await post(`/api/projects/${projectId}/strokes/import`, readFileSync(path.join(goodDir, 'advance-log-comma-iso.csv')))).status,
+  ).toBe(201);
 });
 
 describe('bad files change nothing', () => {
@@ -81,7 +100,10 @@ describe('bad files change nothing', () => {
     const before = await snapshot();
     // Long remarks, so the 50 MB limit is reached before the 50,000-row limit.
     const line = `101,2026-03-14T06:00:00+01:00,2026-03-14T06:50:00+01:00,2450,2451.5,187.5,8,5.5,12000,2500,${'x'.repeat(1600)}\n`;
-    const big = Buffer.from('Ring,Start time,End time,Chainage start (m),Chainage end (m),Cutterhead revolutions,Penetration (mm/rev),RPM,Thrust (kN),Torque (kNm),Remarks\n' + line.repeat(Math.ceil((60 * 1024 * 1024) / line.length)));
+    const big = Buffer.from(
+      'Ring,Start time,End time,Chainage start (m),Chainage end (m),Cutterhead revolutions,Penetration (mm/rev),RPM,Thrust (kN),Torque (kNm),Remarks\n' +
+        line.repeat(Math.ceil((60 * 1024 * 1024) / line.length)),
+    );
     const res = await post(`/api/projects/${projectId}/strokes/import`, big);
     expect(res.status, JSON.stringify(res.body).slice(0, 500)).toBe(413);
     expect(res.body.error.message).toMatch(/50 MB/);
@@ -124,7 +146,10 @@ describe('good files', () => {
     const u = await makeUser();
     await addMember(other.id, u.id, 'planner');
     const agent = await signedInAgent(app, u.email);
-    const res = await agent.post(`/api/projects/${other.id}/strokes/import`).set('Content-Type', 'text/csv').send(readFileSync(path.join(goodDir, 'advance-log-bom-semicolon-decimal-comma.csv')));
+    const res = await agent
+      .post(`/api/projects/${other.id}/strokes/import`)
+      .set('Content-Type', 'text/csv')
+      .send(readFileSync(path.join(goodDir, 'advance-log-bom-semicolon-decimal-comma.csv')));
     expect(res.status, JSON.stringify(res.body).slice(0, 400)).toBe(201);
     expect(res.body.detected).toMatchObject({ bom: true, delimiter: ';', decimalComma: true });
     const mapping = await agent.get(`/api/projects/${other.id}/strokes/mapping`);
@@ -153,9 +178,12 @@ describe('good files', () => {
   it('geology sections that overlap are refused from the table form too', async () => {
     const [g] = await db.select().from(groundTypes).where(eq(groundTypes.projectId, projectId)).limit(1);
     const before = await snapshot();
-    const res = await planner.put(`/api/projects/${projectId}/geology`).send({ sections: [
-      { chainageFromM: 0, chainageToM: 100, groundTypeId: g.id }, { chainageFromM: 90, chainageToM: 200, groundTypeId: g.id },
-    ] });
+    const res = await planner.put(`/api/projects/${projectId}/geology`).send({
+      sections: [
+        { chainageFromM: 0, chainageToM: 100, groundTypeId: g.id },
+        { chainageFromM: 90, chainageToM: 200, groundTypeId: g.id },
+      ],
+    });
     expect(res.status).toBe(400);
     expect(res.body.error.issues[0].path).toBe('sections.1.chainageFromM');
     expect(await snapshot()).toEqual(before);

@@ -11,7 +11,15 @@ import { addMember, makeUser, signedInAgent } from '../support/fixtures';
 import { makeStopsDrive } from '../support/stops-fixtures';
 
 const app: Express = createApp();
-const settings = { classFactors: { centre: 0.8, face: 1, gauge: 1.5 }, gehringSiteFactor: 1, priorStrength: 5, tipWidthMm: 19, overcutMarginMm: 20, windowStrokes: 30, overrides: {} };
+const settings = {
+  classFactors: { centre: 0.8, face: 1, gauge: 1.5 },
+  gehringSiteFactor: 1,
+  priorStrength: 5,
+  tipWidthMm: 19,
+  overcutMarginMm: 20,
+  windowStrokes: 30,
+  overrides: {},
+};
 
 describe('forecast settings: the prior blend', () => {
   let agent: Awaited<ReturnType<typeof signedInAgent>>;

@@ -15,7 +15,15 @@ import { addMember, makeUser, signedInAgent } from '../support/fixtures';
 import { makeStopsDrive } from '../support/stops-fixtures';
 
 const app: Express = createApp();
-const settings = { classFactors: { centre: 0.8, face: 1, gauge: 1.5 }, gehringSiteFactor: 1, priorStrength: 5, tipWidthMm: 19, overcutMarginMm: 20, windowStrokes: 30, overrides: {} };
+const settings = {
+  classFactors: { centre: 0.8, face: 1, gauge: 1.5 },
+  gehringSiteFactor: 1,
+  priorStrength: 5,
+  tipWidthMm: 19,
+  overcutMarginMm: 20,
+  windowStrokes: 30,
+  overrides: {},
+};
 
 let mine: Awaited<ReturnType<typeof makeStopsDrive>>;
 let theirs: Awaited<ReturnType<typeof makeStopsDrive>>;
@@ -52,7 +60,13 @@ describe('another project’s ground type', () => {
 });
 
 describe('forecast overrides', () => {
-  const saved = async () => (await db.select().from(forecastSettings).where(and(eq(forecastSettings.projectId, mine.project.id))))[0]?.overrides ?? null;
+  const saved = async () =>
+    (
+      await db
+        .select()
+        .from(forecastSettings)
+        .where(and(eq(forecastSettings.projectId, mine.project.id)))
+    )[0]?.overrides ?? null;
 
   it('refuses a key that is another drive’s position, naming the key, and saves nothing', async () => {
     const before = await saved();

@@ -78,7 +78,10 @@ describe('body types', () => {
     const stopId = await stopIn(projectId, crewId, 'scheduled');
     const publish = await agent.post(`/api/projects/${projectId}/stops/${stopId}/publish`);
     expect(publish.status).toBe(200);
-    const [row] = await db.select().from(stops).where(and(eq(stops.id, stopId), eq(stops.projectId, projectId)));
+    const [row] = await db
+      .select()
+      .from(stops)
+      .where(and(eq(stops.id, stopId), eq(stops.projectId, projectId)));
     expect(row.publishedAt).not.toBeNull();
   });
 

@@ -11,7 +11,12 @@ const app = createApp();
 type Agent = Awaited<ReturnType<typeof signedInAgent>>;
 
 // The smallest valid PNG: 1×1 pixel (PNG signature per ISO/IEC 15948 / RFC 2083; bytes from memory, checked by the server's own detection).
-const PNG_1x1 = Buffer.from('89504e470d0a1a0a0000000d4948445200000001000000010806000000' + '1f15c4890000000d49444154789c6360000002000100' + '05fe02fea7d6a3a30000000049454e44ae426082', 'hex');
+const PNG_1x1 = Buffer.from(
+  '89504e470d0a1a0a0000000d4948445200000001000000010806000000' +
+    '1f15c4890000000d49444154789c6360000002000100' +
+    '05fe02fea7d6a3a30000000049454e44ae426082',
+  'hex',
+);
 
 let projectId: string;
 let fitter: Agent;
@@ -21,7 +26,9 @@ let roundId: string;
 const entry = (over: Record<string, unknown>) => ({ clientKey: randomUUID(), wearMm: null, conditions: [], action: 'none', ...over });
 
 async function newRound(agent: Agent, startedAt: string, chainageM: number) {
-  const res = await agent.post(`/api/projects/${projectId}/rounds`).send({ startedAt, chainageM, ringNumber: Math.round(chainageM / 1.5), crew: 'A shift' });
+  const res = await agent
+    .post(`/api/projects/${projectId}/rounds`)
+    .send({ startedAt, chainageM, ringNumber: Math.round(chainageM / 1.5), crew: 'A shift' });
   expect(res.status).toBe(201);
   return res.body.id as string;
 }
@@ -39,7 +46,9 @@ beforeAll(async () => {
 describe('inspection entries', () => {
   it('stores a measured position and flags wear over the limit without refusing it', async () => {
     const gauge = drive.positions[3]; // limit 12 mm
-    const res = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: gauge.id, wearMm: 13.5, conditions: ['even_wear'] }));
+    const res = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(entry({ positionId: gauge.id, wearMm: 13.5, conditions: ['even_wear'] }));
     expect(res.status).toBe(201);
     expect(res.body.overLimit).toBe(true);
     expect(res.body.needsChange).toBe(true);
@@ -59,12 +68,18 @@ describe('inspection entries', () => {
 
   it('refuses negative wear, a second decimal and an unknown position, storing nothing', async () => {
     const before = (await db.select().from(inspectionEntries).where(eq(inspectionEntries.projectId, projectId))).length;
-    const negative = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: drive.positions[0].id, wearMm: -1 }));
+    const negative = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(entry({ positionId: drive.positions[0].id, wearMm: -1 }));
     expect(negative.status).toBe(400);
     expect(negative.body.error.issues[0]).toMatchObject({ path: 'wearMm', message: 'Wear cannot be negative.' });
-    const decimals = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: drive.positions[0].id, wearMm: 3.25 }));
+    const decimals = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(entry({ positionId: drive.positions[0].id, wearMm: 3.25 }));
     expect(decimals.status).toBe(400);
-    const unknown = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: randomUUID(), wearMm: 3 }));
+    const unknown = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(entry({ positionId: randomUUID(), wearMm: 3 }));
     expect(unknown.status).toBe(404);
     expect(unknown.body.error.message).toMatch(/position/);
     expect((await db.select().from(inspectionEntries).where(eq(inspectionEntries.projectId, projectId))).length).toBe(before);
@@ -72,15 +87,23 @@ describe('inspection entries', () => {
 
   it('wear of the same disc may not fall without a change, unless confirmed as re-measured (audited)', async () => {
     const face = drive.positions[2];
-    await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: face.id, wearMm: 9.0 })).expect(201);
+    await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(entry({ positionId: face.id, wearMm: 9.0 }))
+      .expect(201);
     const later = await newRound(fitter, '2026-11-09T08:00:00Z', 520);
     const fell = await fitter.post(`/api/projects/${projectId}/rounds/${later}/entries`).send(entry({ positionId: face.id, wearMm: 7.5 }));
     expect(fell.status).toBe(409);
     expect(fell.body.error.message).toMatch(/less than the 9 mm measured on 2026-11-02/);
     expect(fell.body.error.issues[0].path).toBe('wearMm');
-    const confirmed = await fitter.post(`/api/projects/${projectId}/rounds/${later}/entries`).send(entry({ positionId: face.id, wearMm: 7.5, remeasured: true }));
+    const confirmed = await fitter
+      .post(`/api/projects/${projectId}/rounds/${later}/entries`)
+      .send(entry({ positionId: face.id, wearMm: 7.5, remeasured: true }));
     expect(confirmed.status).toBe(201);
-    const trail = await db.select().from(auditLog).where(and(eq(auditLog.projectId, projectId), eq(auditLog.action, 'remeasured_correction')));
+    const trail = await db
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.projectId, projectId), eq(auditLog.action, 'remeasured_correction')));
     expect(trail).toHaveLength(1);
     expect(trail[0].before).toMatchObject({ lastWearMm: 9 });
   });
@@ -89,9 +112,17 @@ describe('inspection entries', () => {
     const centre = drive.positions[0];
     const removed = drive.fitted[0];
     const fitted = drive.store[0];
-    const res = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({
-      positionId: centre.id, wearMm: 21.0, conditions: ['even_wear'], action: 'changed', removedSerial: removed.serial, fitted: { serial: fitted.serial }, changeReason: 'Worn to limit',
-    }));
+    const res = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(
+      entry({
+        positionId: centre.id,
+        wearMm: 21.0,
+        conditions: ['even_wear'],
+        action: 'changed',
+        removedSerial: removed.serial,
+        fitted: { serial: fitted.serial },
+        changeReason: 'Worn to limit',
+      }),
+    );
     expect(res.status, JSON.stringify(res.body)).toBe(201);
     const periods = await db.select().from(fittings).where(eq(fittings.positionId, centre.id));
     expect(periods).toHaveLength(2);
@@ -109,23 +140,55 @@ describe('inspection entries', () => {
   it('a serial is never fitted in two places at once', async () => {
     const other = drive.positions[1];
     const alreadyFitted = drive.store[0]; // fitted at position 1 by the test above
-    const res = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({
-      positionId: other.id, wearMm: null, action: 'changed', fitted: { serial: alreadyFitted.serial }, changeReason: 'Seal leaking',
-    }));
+    const res = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(
+      entry({
+        positionId: other.id,
+        wearMm: null,
+        action: 'changed',
+        fitted: { serial: alreadyFitted.serial },
+        changeReason: 'Seal leaking',
+      }),
+    );
     expect(res.status).toBe(409);
     expect(res.body.error.message).toMatch(/already fitted at position 1/);
-    const open = await db.select().from(fittings).where(and(eq(fittings.cutterId, alreadyFitted.id), isNull(fittings.removedAt)));
+    const open = await db
+      .select()
+      .from(fittings)
+      .where(and(eq(fittings.cutterId, alreadyFitted.id), isNull(fittings.removedAt)));
     expect(open).toHaveLength(1);
   });
 
   it('a wrong removed serial or an unknown fitted serial is refused with the serial named', async () => {
     const pos = drive.positions[2];
-    const wrong = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: pos.id, action: 'changed', removedSerial: 'NOT-ON-HUB', fitted: { serial: drive.store[1].serial }, changeReason: 'x' }));
+    const wrong = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(
+        entry({
+          positionId: pos.id,
+          action: 'changed',
+          removedSerial: 'NOT-ON-HUB',
+          fitted: { serial: drive.store[1].serial },
+          changeReason: 'x',
+        }),
+      );
     expect(wrong.status).toBe(409);
     expect(wrong.body.error.message).toMatch(/not NOT-ON-HUB/);
-    const unknown = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: pos.id, action: 'changed', fitted: { serial: 'NEVER-SEEN-1' }, changeReason: 'x' }));
+    const unknown = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(entry({ positionId: pos.id, action: 'changed', fitted: { serial: 'NEVER-SEEN-1' }, changeReason: 'x' }));
     expect(unknown.status).toBe(404);
-    const asNew = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(entry({ positionId: pos.id, wearMm: 10.0, action: 'changed', fitted: { serial: 'NEW-AT-FACE-1', isNew: true }, changeReason: 'Chipped ring', conditions: ['chipped_ring'] }));
+    const asNew = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send(
+        entry({
+          positionId: pos.id,
+          wearMm: 10.0,
+          action: 'changed',
+          fitted: { serial: 'NEW-AT-FACE-1', isNew: true },
+          changeReason: 'Chipped ring',
+          conditions: ['chipped_ring'],
+        }),
+      );
     expect(asNew.status, JSON.stringify(asNew.body)).toBe(201);
   });
 
@@ -141,8 +204,13 @@ describe('inspection entries', () => {
   it('editing an entry after the fact keeps the previous values in the audit log', async () => {
     const pos = drive.positions[1];
     const r = await newRound(fitter, '2026-11-16T08:00:00Z', 640);
-    await fitter.post(`/api/projects/${projectId}/rounds/${r}/entries`).send(entry({ positionId: pos.id, wearMm: 6.0, note: 'first look' })).expect(201);
-    const edit = await fitter.post(`/api/projects/${projectId}/rounds/${r}/entries`).send(entry({ positionId: pos.id, wearMm: 6.5, note: 'measured again with gauge' }));
+    await fitter
+      .post(`/api/projects/${projectId}/rounds/${r}/entries`)
+      .send(entry({ positionId: pos.id, wearMm: 6.0, note: 'first look' }))
+      .expect(201);
+    const edit = await fitter
+      .post(`/api/projects/${projectId}/rounds/${r}/entries`)
+      .send(entry({ positionId: pos.id, wearMm: 6.5, note: 'measured again with gauge' }));
     expect(edit.status).toBe(201);
     const history = await fitter.get(`/api/projects/${projectId}/rounds/${r}/history`);
     const update = history.body.find((h: { action: string }) => h.action === 'update');
@@ -157,17 +225,27 @@ describe('photos', () => {
   beforeAll(async () => {
     entryKey = randomUUID();
     // An edit of position 2's entry is a new submission; its key names the same entry.
-    const res = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send({ clientKey: entryKey, positionId: drive.positions[1].id, wearMm: 4.4, conditions: ['chipped_ring'] });
+    const res = await fitter
+      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
+      .send({ clientKey: entryKey, positionId: drive.positions[1].id, wearMm: 4.4, conditions: ['chipped_ring'] });
     expect(res.status).toBe(201);
   });
   const countPhotos = async () => (await db.select().from(photos).where(eq(photos.projectId, projectId))).length;
 
   it('accepts a PNG by its bytes, serves it to members only, and stores a resend once', async () => {
     const key = randomUUID();
-    const up = await fitter.post(`/api/projects/${projectId}/photos`).field('entryClientKey', entryKey).field('clientKey', key).attach('photo', PNG_1x1, { filename: 'chip.png', contentType: 'image/png' });
+    const up = await fitter
+      .post(`/api/projects/${projectId}/photos`)
+      .field('entryClientKey', entryKey)
+      .field('clientKey', key)
+      .attach('photo', PNG_1x1, { filename: 'chip.png', contentType: 'image/png' });
     expect(up.status, JSON.stringify(up.body)).toBe(201);
     expect(up.body.storedName).not.toContain('chip');
-    const again = await fitter.post(`/api/projects/${projectId}/photos`).field('entryClientKey', entryKey).field('clientKey', key).attach('photo', PNG_1x1, 'chip.png');
+    const again = await fitter
+      .post(`/api/projects/${projectId}/photos`)
+      .field('entryClientKey', entryKey)
+      .field('clientKey', key)
+      .attach('photo', PNG_1x1, 'chip.png');
     expect(again.status).toBe(200);
     const got = await fitter.get(`/api/projects/${projectId}/photos/${up.body.id}`);
     expect(got.status).toBe(200);
@@ -183,7 +261,10 @@ describe('photos', () => {
 
   it('refuses a text file renamed to .jpg, storing nothing', async () => {
     const before = await countPhotos();
-    const res = await fitter.post(`/api/projects/${projectId}/photos`).field('entryClientKey', entryKey).field('clientKey', randomUUID())
+    const res = await fitter
+      .post(`/api/projects/${projectId}/photos`)
+      .field('entryClientKey', entryKey)
+      .field('clientKey', randomUUID())
       .attach('photo', Buffer.from('this is not a picture, just text\n'.repeat(20)), { filename: 'disc.jpg', contentType: 'image/jpeg' });
     expect(res.status).toBe(415);
     expect(res.body.error.message).toMatch(/JPEG, PNG or WebP/);
@@ -193,7 +274,11 @@ describe('photos', () => {
   it('refuses a photo over 10 MB, storing nothing', async () => {
     const before = await countPhotos();
     const big = Buffer.concat([PNG_1x1, Buffer.alloc(10 * 1024 * 1024)]);
-    const res = await fitter.post(`/api/projects/${projectId}/photos`).field('entryClientKey', entryKey).field('clientKey', randomUUID()).attach('photo', big, 'big.png');
+    const res = await fitter
+      .post(`/api/projects/${projectId}/photos`)
+      .field('entryClientKey', entryKey)
+      .field('clientKey', randomUUID())
+      .attach('photo', big, 'big.png');
     expect(res.status).toBe(413);
     expect(res.body.error.message).toMatch(/10 MB/);
     expect(await countPhotos()).toBe(before);
@@ -209,7 +294,10 @@ describe('photos', () => {
       Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="photo"; filename="cut.png"\r\nContent-Type: image/png\r\n\r\n`),
       PNG_1x1.subarray(0, 20),
     ]);
-    const res = await fitter.post(`/api/projects/${projectId}/photos`).set('Content-Type', `multipart/form-data; boundary=${boundary}`).send(body);
+    const res = await fitter
+      .post(`/api/projects/${projectId}/photos`)
+      .set('Content-Type', `multipart/form-data; boundary=${boundary}`)
+      .send(body);
     expect(res.status).toBe(400);
     expect(res.body.error.message).toMatch(/did not arrive whole.*send it again/);
     expect(await countPhotos()).toBe(before);

@@ -45,8 +45,25 @@ describe('demand and order suggestions, worked by hand', () => {
     const drive = await makeCutterhead(projectId, 4); // four 17″ positions with fitted cutters, rebuilt 0 times
     agent = await buyerOf(projectId);
     const catalogue = [
-      { code: 'ASM17', name: '17″ disc cutter, complete', kind: 'cutter-assembly', discSizeIn: 17, unitCost: 2500, leadTimeMeanDays: 42, minOrderQty: 1 },
-      { code: 'RING17', name: '17″ ring', kind: 'ring', discSizeIn: 17, unitCost: 380, leadTimeMeanDays: 14, leadTimeSdDays: 7, minOrderQty: 10 },
+      {
+        code: 'ASM17',
+        name: '17″ disc cutter, complete',
+        kind: 'cutter-assembly',
+        discSizeIn: 17,
+        unitCost: 2500,
+        leadTimeMeanDays: 42,
+        minOrderQty: 1,
+      },
+      {
+        code: 'RING17',
+        name: '17″ ring',
+        kind: 'ring',
+        discSizeIn: 17,
+        unitCost: 380,
+        leadTimeMeanDays: 14,
+        leadTimeSdDays: 7,
+        minOrderQty: 10,
+      },
       { code: 'SEAL', name: 'Seal kit', kind: 'seal-kit', unitCost: 95, leadTimeMeanDays: 21, minOrderQty: 5 },
       { code: 'BOLT', name: 'Hub bolt M20', kind: 'small-part', unitCost: 4.5, leadTimeMeanDays: 7, minOrderQty: 50 },
     ];
@@ -56,20 +73,42 @@ describe('demand and order suggestions, worked by hand', () => {
       id[part.code] = res.body.id;
     }
     const settings = await agent.put(`/api/projects/${projectId}/parts/workshop`).send({
-      turnaroundDays: 10, maxRebuilds: 3, serviceLevel: 0.95,
-      boms: { [id.ASM17]: bomFor({ worn: [{ partId: id.RING17, qty: 1 }, { partId: id.BOLT, qty: 4 }], seal_leaking: [{ partId: id.RING17, qty: 1 }, { partId: id.SEAL, qty: 1 }] }) },
+      turnaroundDays: 10,
+      maxRebuilds: 3,
+      serviceLevel: 0.95,
+      boms: {
+        [id.ASM17]: bomFor({
+          worn: [
+            { partId: id.RING17, qty: 1 },
+            { partId: id.BOLT, qty: 4 },
+          ],
+          seal_leaking: [
+            { partId: id.RING17, qty: 1 },
+            { partId: id.SEAL, qty: 1 },
+          ],
+        }),
+      },
     });
     expect(settings.status, JSON.stringify(settings.body)).toBe(200);
-    for (const [code, countedQty] of [['ASM17', 3], ['RING17', 3], ['BOLT', 20]] as const) {
+    for (const [code, countedQty] of [
+      ['ASM17', 3],
+      ['RING17', 3],
+      ['BOLT', 20],
+    ] as const) {
       expect((await agent.post(`/api/projects/${projectId}/parts/${id[code]}/count`).send({ countedQty })).status).toBe(200);
     }
     // 10 rings due 15 days from today (site date): week 2.
     const today = siteDay(new Date(), 'Europe/Zurich');
     const due = new Date(Date.parse(`${today}T00:00:00Z`) + 15 * DAY).toISOString().slice(0, 10);
-    const order = await agent.post(`/api/projects/${projectId}/parts/orders`).send({ number: 'PO-HAND-1', lines: [{ partId: id.RING17, qtyOrdered: 10, dueDate: due }] });
+    const order = await agent
+      .post(`/api/projects/${projectId}/parts/orders`)
+      .send({ number: 'PO-HAND-1', lines: [{ partId: id.RING17, qtyOrdered: 10, dueDate: due }] });
     expect(order.status, JSON.stringify(order.body)).toBe(201);
     // A scheduled stop 8.5 days ahead (site date 8 or 9 days on: week 1) changing positions 2 and 3.
-    const stop = await insertStop(projectId, { status: 'scheduled', plannedStart: new Date(Date.now() + 8.5 * DAY) }, [drive.positions[1].id, drive.positions[2].id]);
+    const stop = await insertStop(projectId, { status: 'scheduled', plannedStart: new Date(Date.now() + 8.5 * DAY) }, [
+      drive.positions[1].id,
+      drive.positions[2].id,
+    ]);
     stopId = stop.id;
   });
 
@@ -105,11 +144,20 @@ describe('demand and order suggestions, worked by hand', () => {
     // L = 14/7 = 2 weeks, σ_L = 7/7 = 1 week → SS = z·√(L·σ_d² + d̄²·σ_L²) = z·√1.75 (DOMAIN.md §6), ROP = d̄·L + SS = 1 + SS.
     const ringSs = z95 * Math.sqrt(1.75);
     expect(s('RING17').safetyStock).toBeCloseTo(ringSs, 9);
-    expect(s('RING17').safetyStock).toBeCloseTo(2.1760, 3);
+    expect(s('RING17').safetyStock).toBeCloseTo(2.176, 3);
     expect(s('RING17').reorderPoint).toBeCloseTo(1 + ringSs, 9);
     // Window 2 weeks: demand 2, nothing due in it (the order comes in week 2) → 3 on hand < 2 + 2.176:
     // short by 1.18 → 2 units, raised to the minimum order of 10.
-    expect(s('RING17')).toMatchObject({ leadTimeWindowWeeks: 2, leadTimeDemand: 2, dueWithinLeadTime: 0, inventoryPosition: 3, orderQty: 10, orderNow: true, orderValue: 3800, weeksOfCover: 6 });
+    expect(s('RING17')).toMatchObject({
+      leadTimeWindowWeeks: 2,
+      leadTimeDemand: 2,
+      dueWithinLeadTime: 0,
+      inventoryPosition: 3,
+      orderQty: 10,
+      orderNow: true,
+      orderValue: 3800,
+      weeksOfCover: 6,
+    });
     expect(s('RING17').sources).toEqual([{ kind: 'stop', stopId, qty: 2 }]);
     // Assemblies: same weekly demand, L = 6 weeks → SS = z·√(6·0.75) = z·√4.5 = 3.489; window 6 weeks beyond the
     // 4-week horizon: 2 + 2 × d̄ = 3 demand; 2 rebuilt come back in it → position 5 < 3 + 3.489 → order 2.
@@ -144,7 +192,8 @@ describe('demand and order suggestions, worked by hand', () => {
 
   it('refuses bad input with a clear 4xx and changes nothing', async () => {
     const base = `/api/projects/${projectId}/parts`;
-    const movements = async () => (await db.select({ n: count() }).from(stockMovements).where(eq(stockMovements.projectId, projectId)))[0].n;
+    const movements = async () =>
+      (await db.select({ n: count() }).from(stockMovements).where(eq(stockMovements.projectId, projectId)))[0].n;
     const audits = async () => (await db.select({ n: count() }).from(auditLog).where(eq(auditLog.projectId, projectId)))[0].n;
     const before = { movements: await movements(), audits: await audits() };
 
@@ -158,24 +207,46 @@ describe('demand and order suggestions, worked by hand', () => {
     const line = order.lines[0];
     const tooMany = await agent.post(`${base}/orders/${order.id}/lines/${line.id}/receive`).send({ qty: 11 });
     expect(tooMany.status).toBe(400);
-    expect(tooMany.body.error.message).toMatch(/^Receiving more than ordered: order PO-HAND-1 has 10 × RING17, 0 received so far, so at most 10 more/);
+    expect(tooMany.body.error.message).toMatch(
+      /^Receiving more than ordered: order PO-HAND-1 has 10 × RING17, 0 received so far, so at most 10 more/,
+    );
 
     // Unknown part: on an order line, in a count, in an edit, in a bill of materials.
     const unknown = randomUUID();
-    const badLine = await agent.post(`${base}/orders`).send({ number: 'PO-BAD', lines: [{ partId: unknown, qtyOrdered: 1, dueDate: '2030-01-01' }] });
+    const badLine = await agent
+      .post(`${base}/orders`)
+      .send({ number: 'PO-BAD', lines: [{ partId: unknown, qtyOrdered: 1, dueDate: '2030-01-01' }] });
     expect(badLine.status).toBe(400);
     expect(badLine.body.error.issues[0].path).toBe('lines.0.partId');
     expect((await agent.post(`${base}/${unknown}/count`).send({ countedQty: 1 })).status).toBe(404);
-    expect((await agent.put(`${base}/${unknown}`).send({ code: 'X', name: 'X', kind: 'hub', unitCost: 1, leadTimeMeanDays: 1 })).status).toBe(404);
-    const badBom = await agent.put(`${base}/workshop`).send({ turnaroundDays: 10, maxRebuilds: 3, serviceLevel: 0.95, boms: { [id.ASM17]: bomFor({ worn: [{ partId: unknown, qty: 1 }] }) } });
+    expect(
+      (await agent.put(`${base}/${unknown}`).send({ code: 'X', name: 'X', kind: 'hub', unitCost: 1, leadTimeMeanDays: 1 })).status,
+    ).toBe(404);
+    const badBom = await agent
+      .put(`${base}/workshop`)
+      .send({
+        turnaroundDays: 10,
+        maxRebuilds: 3,
+        serviceLevel: 0.95,
+        boms: { [id.ASM17]: bomFor({ worn: [{ partId: unknown, qty: 1 }] }) },
+      });
     expect(badBom.status).toBe(400);
     // A ring without its disc size, and a duplicate code.
-    expect((await agent.post(base).send({ code: 'R2', name: 'Ring', kind: 'ring', unitCost: 1, leadTimeMeanDays: 1 })).body.error.issues[0].path).toBe('discSizeIn');
-    expect((await agent.post(base).send({ code: 'BOLT', name: 'Again', kind: 'small-part', unitCost: 1, leadTimeMeanDays: 1 })).status).toBe(409);
+    expect(
+      (await agent.post(base).send({ code: 'R2', name: 'Ring', kind: 'ring', unitCost: 1, leadTimeMeanDays: 1 })).body.error.issues[0].path,
+    ).toBe('discSizeIn');
+    expect(
+      (await agent.post(base).send({ code: 'BOLT', name: 'Again', kind: 'small-part', unitCost: 1, leadTimeMeanDays: 1 })).status,
+    ).toBe(409);
 
     expect(await movements()).toBe(before.movements);
     expect(await audits()).toBe(before.audits);
-    expect((await db.select().from(purchaseOrders).where(and(eq(purchaseOrders.projectId, projectId), eq(purchaseOrders.number, 'PO-BAD'))))).toHaveLength(0);
+    expect(
+      await db
+        .select()
+        .from(purchaseOrders)
+        .where(and(eq(purchaseOrders.projectId, projectId), eq(purchaseOrders.number, 'PO-BAD'))),
+    ).toHaveLength(0);
     const [unchanged] = await db.select().from(purchaseOrderLines).where(eq(purchaseOrderLines.id, line.id));
     expect(unchanged.qtyReceived).toBe(0);
     const ring = (await agent.get(base)).body.parts.find((p: { code: string }) => p.code === 'RING17');
@@ -189,9 +260,15 @@ describe('demand and order suggestions, worked by hand', () => {
     const res = await agent.post(`${base}/orders/${order.id}/lines/${line.id}/receive`).send({ qty: 4, note: 'First crate' });
     expect(res.status).toBe(200);
     expect(res.body.lines[0]).toMatchObject({ qtyReceived: 4, qtyOpen: 6 });
-    const receipts = await db.select().from(stockMovements).where(and(eq(stockMovements.purchaseOrderLineId, line.id), eq(stockMovements.kind, 'receipt')));
+    const receipts = await db
+      .select()
+      .from(stockMovements)
+      .where(and(eq(stockMovements.purchaseOrderLineId, line.id), eq(stockMovements.kind, 'receipt')));
     expect(receipts.map((m) => m.qty)).toEqual([4]);
-    const [audited] = await db.select().from(auditLog).where(and(eq(auditLog.entity, 'purchase_order_line'), eq(auditLog.entityId, line.id)));
+    const [audited] = await db
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.entity, 'purchase_order_line'), eq(auditLog.entityId, line.id)));
     expect(audited.action).toBe('receive');
     const list = (await agent.get(base)).body.parts;
     expect(list.find((p: { code: string }) => p.code === 'RING17')).toMatchObject({ onHand: 7, onOrder: 6 });
@@ -230,7 +307,10 @@ describe('stops without a date and positions due without a stop', () => {
       expect(assemblyRows[weekOf(f.p90.date)].sources.some((s) => s.kind === 'forecast')).toBe(true);
     }
     // The machine keeps boring after the first changes, so the discs fitted then are changed again within a year.
-    const forecastChanges = assemblyRows.flatMap((w) => w.sources).filter((s) => s.kind === 'forecast').reduce((sum, s) => sum + s.qty, 0);
+    const forecastChanges = assemblyRows
+      .flatMap((w) => w.sources)
+      .filter((s) => s.kind === 'forecast')
+      .reduce((sum, s) => sum + s.qty, 0);
     expect(forecastChanges).toBeGreaterThan(2);
     expect(res.body.estimate.rolledKmPerWeek[0]).toBeGreaterThan(0);
   });

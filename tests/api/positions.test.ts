@@ -8,8 +8,16 @@ import { addMember, makeProject, makeUser, signedInAgent } from '../support/fixt
 const app = createApp();
 
 /** Face positions for a 6.2 m bore (makeProject), radius and limit per DOMAIN.md §4 (common practice). */
-const face = (number: number, trackRadiusMm: number, wearLimitMm = 25) =>
-  ({ number, trackRadiusMm, positionClass: 'face', discSizeIn: 17, tiltDeg: null, wearLimitMm, twinDisc: false, angleDeg: null });
+const face = (number: number, trackRadiusMm: number, wearLimitMm = 25) => ({
+  number,
+  trackRadiusMm,
+  positionClass: 'face',
+  discSizeIn: 17,
+  tiltDeg: null,
+  wearLimitMm,
+  twinDisc: false,
+  angleDeg: null,
+});
 
 const csvHeader = 'number,track_radius_mm,class,disc_size_in,tilt_deg,wear_limit_mm,twin_disc,angle_deg';
 
@@ -49,13 +57,17 @@ describe('layout rules on PUT /positions', () => {
     const before = await snapshot();
     const res = await planner.put(`/api/projects/${projectId}/positions`).send({ positions: [face(1, 3100), face(5, 3100.5)] });
     expect(res.status).toBe(400);
-    expect(res.body.error.issues).toEqual([{ path: 'positions.1.trackRadiusMm', message: expect.stringMatching(/beyond the excavated radius \(3100 mm\)/) }]);
+    expect(res.body.error.issues).toEqual([
+      { path: 'positions.1.trackRadiusMm', message: expect.stringMatching(/beyond the excavated radius \(3100 mm\)/) },
+    ]);
     expect(await snapshot()).toEqual(before);
   });
 
   it('refuses a wear limit of 0 or below on every row that has one', async () => {
     const before = await snapshot();
-    const res = await planner.put(`/api/projects/${projectId}/positions`).send({ positions: [face(1, 500, 0), face(2, 1500, 20), face(3, 2500, -5)] });
+    const res = await planner
+      .put(`/api/projects/${projectId}/positions`)
+      .send({ positions: [face(1, 500, 0), face(2, 1500, 20), face(3, 2500, -5)] });
     expect(res.status).toBe(400);
     expect(res.body.error.issues).toEqual([
       { path: 'positions.0.wearLimitMm', message: 'The wear limit must be more than 0 mm.' },
@@ -65,10 +77,18 @@ describe('layout rules on PUT /positions', () => {
   });
 
   it('audits a wear-limit change with the limit before and after', async () => {
-    const res = await planner.put(`/api/projects/${projectId}/positions`).send({ positions: [face(1, 500), face(2, 1500, 22), face(3, 2500)] });
+    const res = await planner
+      .put(`/api/projects/${projectId}/positions`)
+      .send({ positions: [face(1, 500), face(2, 1500, 22), face(3, 2500)] });
     expect(res.body).toEqual({ created: 0, updated: 1, unchanged: 2 });
-    const [pos2] = await db.select().from(positions).where(and(eq(positions.projectId, projectId), eq(positions.number, 2)));
-    const trail = await db.select().from(auditLog).where(and(eq(auditLog.entity, 'position'), eq(auditLog.entityId, pos2.id), eq(auditLog.action, 'change_wear_limit')));
+    const [pos2] = await db
+      .select()
+      .from(positions)
+      .where(and(eq(positions.projectId, projectId), eq(positions.number, 2)));
+    const trail = await db
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.entity, 'position'), eq(auditLog.entityId, pos2.id), eq(auditLog.action, 'change_wear_limit')));
     expect(trail).toHaveLength(1);
     expect(trail[0].userId).not.toBeNull();
     expect(trail[0].before).toMatchObject({ number: 2, wearLimitMm: 25 });
@@ -92,14 +112,16 @@ describe('CSV import, all or nothing', () => {
   it('reports every row that breaks a field rule, by row and field, and imports none of the good ones', async () => {
     const before = await snapshot();
     // Row 1 is the header, so the data rows are 2…6.
-    const res = await post([
-      csvHeader,
-      '10,700,face,17,,25,no,',
-      '11,3200,face,17,,25,no,', // beyond the 3100 mm bore radius
-      '12,900,face,17,,0,no,', // limit 0
-      '10,1000,face,17,,25,no,', // duplicate of row 2
-      '13,1100,face,17,,25,yes,', // twin discs on a face position
-    ].join('\n'));
+    const res = await post(
+      [
+        csvHeader,
+        '10,700,face,17,,25,no,',
+        '11,3200,face,17,,25,no,', // beyond the 3100 mm bore radius
+        '12,900,face,17,,0,no,', // limit 0
+        '10,1000,face,17,,25,no,', // duplicate of row 2
+        '13,1100,face,17,,25,yes,', // twin discs on a face position
+      ].join('\n'),
+    );
     expect(res.status).toBe(400);
     expect(res.body.error.message).toMatch(/nothing was imported/);
     expect(res.body.error.issues.map((i: { path: string }) => i.path)).toEqual(['row 4.wearLimitMm', 'row 6.twinDisc']);
@@ -115,7 +137,11 @@ describe('CSV import, all or nothing', () => {
   });
 
   it('imports a good file in one go, updating by number and auditing the changed limit', async () => {
-    const res = await post([csvHeader, '1,500,face,17,,25,no,', '3,2500,face,17,,20,no,45', '4,3000,gauge,17,40,12,no,90', '5,60,centre,17,,25,yes,'].join('\r\n'));
+    const res = await post(
+      [csvHeader, '1,500,face,17,,25,no,', '3,2500,face,17,,20,no,45', '4,3000,gauge,17,40,12,no,90', '5,60,centre,17,,25,yes,'].join(
+        '\r\n',
+      ),
+    );
     expect(res.status).toBe(200);
     expect(res.body).toEqual({ created: 2, updated: 1, unchanged: 1, warnings: [] });
     const { rows } = await snapshot();
@@ -126,8 +152,13 @@ describe('CSV import, all or nothing', () => {
       [4, 'gauge', 12, false, 40, 90],
       [5, 'centre', 25, true, null, null],
     ]);
-    const trail = await db.select().from(auditLog).where(and(eq(auditLog.projectId, projectId), eq(auditLog.action, 'change_wear_limit')));
-    expect(trail.map((t) => [(t.before as { wearLimitMm: number }).wearLimitMm, (t.after as { wearLimitMm: number }).wearLimitMm])).toEqual([[25, 20]]);
+    const trail = await db
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.projectId, projectId), eq(auditLog.action, 'change_wear_limit')));
+    expect(trail.map((t) => [(t.before as { wearLimitMm: number }).wearLimitMm, (t.after as { wearLimitMm: number }).wearLimitMm])).toEqual(
+      [[25, 20]],
+    );
   });
 
   // Issue 10: every CSV import goes through the one reader, which names a column it does not read
@@ -135,7 +166,10 @@ describe('CSV import, all or nothing', () => {
   it('names an unknown column in a warning and imports the positions', async () => {
     const res = await post('number,track_radius_mm,class,disc_size_in,wear_limit_mm,colour\n9,800,face,17,25,red');
     expect(res.status).toBe(200);
-    expect(res.body).toMatchObject({ created: 1, warnings: [{ row: 1, column: 'colour', message: expect.stringMatching(/does not read 'colour' in a cutterhead layout/) }] });
+    expect(res.body).toMatchObject({
+      created: 1,
+      warnings: [{ row: 1, column: 'colour', message: expect.stringMatching(/does not read 'colour' in a cutterhead layout/) }],
+    });
   });
 
   it('refuses a bad layout file with errors by row and column, read by the CSV reader', async () => {
@@ -144,7 +178,12 @@ describe('CSV import, all or nothing', () => {
     const res = await post([csvHeader, '20,700,face,17,,25,no,', '21,abc,face,17,,25,no,', '22,900,middle,17,,25,no,'].join('\n'));
     expect(res.status).toBe(400);
     expect(res.body.error.issues).toEqual([
-      { path: 'row 3.trackRadiusMm', row: 3, column: 'track_radius_mm', message: expect.stringMatching(/must be a number; 'abc' is not one/) },
+      {
+        path: 'row 3.trackRadiusMm',
+        row: 3,
+        column: 'track_radius_mm',
+        message: expect.stringMatching(/must be a number; 'abc' is not one/),
+      },
       { path: 'row 4.positionClass', row: 4, column: 'class', message: expect.stringMatching(/centre, face or gauge/) },
     ]);
     expect(await snapshot()).toEqual(before);

@@ -44,17 +44,38 @@ beforeAll(async () => {
   foreignProjectId = foreign.id;
   const other = await makeUser();
   const drive = await makeCutterhead(project.id, 3);
-  const [round] = await db.insert(inspectionRounds).values({ projectId: project.id, startedAt: new Date('2026-11-19T06:00:00Z'), chainageM: 650 }).returning();
-  const [entry] = await db.insert(inspectionEntries).values({ projectId: project.id, roundId: round.id, positionId: drive.positions[1].id, clientKey: randomUUID(), wearMm: 3 }).returning();
+  const [round] = await db
+    .insert(inspectionRounds)
+    .values({ projectId: project.id, startedAt: new Date('2026-11-19T06:00:00Z'), chainageM: 650 })
+    .returning();
+  const [entry] = await db
+    .insert(inspectionEntries)
+    .values({ projectId: project.id, roundId: round.id, positionId: drive.positions[1].id, clientKey: randomUUID(), wearMm: 3 })
+    .returning();
   await db.insert(entrySubmissions).values({ projectId: project.id, clientKey: entry.clientKey, entryId: entry.id });
   const storedName = await storeFile('photos', 'png', Buffer.from('89504e470d0a1a0a', 'hex'));
-  const [photo] = await db.insert(photos).values({ projectId: project.id, entryId: entry.id, clientKey: randomUUID(), storedName, mimeType: 'image/png', sizeBytes: 8 }).returning();
+  const [photo] = await db
+    .insert(photos)
+    .values({ projectId: project.id, entryId: entry.id, clientKey: randomUUID(), storedName, mimeType: 'image/png', sizeBytes: 8 })
+    .returning();
   ctx = {
-    projectId: project.id, otherUserId: other.id, positionId: drive.positions[0].id, cutterId: drive.store[0].id, roundId: round.id, photoId: photo.id,
+    projectId: project.id,
+    otherUserId: other.id,
+    positionId: drive.positions[0].id,
+    cutterId: drive.store[0].id,
+    roundId: round.id,
+    photoId: photo.id,
     entryClientKey: entry.clientKey,
     ...(await stopContext(project.id)),
     // Made fresh by the rows that use them (route-table.ts, `prepare`); these name nothing.
-    memberUserId: nothing, groundTypeId: nothing, causeId: nothing, eventId: nothing, partId: nothing, orderId: nothing, lineId: nothing, outboxId: '999999999',
+    memberUserId: nothing,
+    groundTypeId: nothing,
+    causeId: nothing,
+    eventId: nothing,
+    partId: nothing,
+    orderId: nothing,
+    lineId: nothing,
+    outboxId: '999999999',
     jobName: 'deliver-mail',
   };
   agents.set('anonymous', request.agent(app));
@@ -79,13 +100,20 @@ const fill = (path: string, c: RouteContext) =>
   });
 
 /** A 1×1 PNG (the PNG signature, IHDR, one IDAT, IEND; ISO/IEC 15948), small enough to read in a test. */
-const onePixelPng = Buffer.from('iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNkYPhfDwAChwGA60e6kgAAAABJRU5ErkJggg==', 'base64');
+const onePixelPng = Buffer.from(
+  'iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNkYPhfDwAChwGA60e6kgAAAABJRU5ErkJggg==',
+  'base64',
+);
 
 /** Sends the row's request the way its route takes input: JSON, a raw CSV, or a multipart photo. */
 function send(agent: ReturnType<typeof request.agent>, route: RouteCase, c: RouteContext) {
   const req = agent[route.method](fill(route.path, c));
   if (route.csv) return req.set('Content-Type', 'text/csv').send(route.csv(c));
-  if (route.photo) return req.field('entryClientKey', c.entryClientKey).field('clientKey', randomUUID()).attach('photo', onePixelPng, { filename: 'matrix.png', contentType: 'image/png' });
+  if (route.photo)
+    return req
+      .field('entryClientKey', c.entryClientKey)
+      .field('clientKey', randomUUID())
+      .attach('photo', onePixelPng, { filename: 'matrix.png', contentType: 'image/png' });
   return req.send(route.body?.(c) as object);
 }
 
@@ -125,12 +153,22 @@ it('the project list shows only the caller’s drives', async () => {
 });
 
 /** Routes anyone may call (signing in, resetting a password, health); tests/api/auth.test.ts covers them. */
-const publicRoutes = ['post /api/auth/sign-in', 'post /api/auth/sign-out', 'post /api/auth/password-reset', 'post /api/auth/set-password', 'get /api/health'];
+const publicRoutes = [
+  'post /api/auth/sign-in',
+  'post /api/auth/sign-out',
+  'post /api/auth/password-reset',
+  'post /api/auth/set-password',
+  'get /api/health',
+];
 
 it('the route table names every route the server registers, and only those', () => {
   // Read from the source (Express 5 keeps no path strings): the mounts in server/app.ts and each
   // router's `xRouter.get('/path', …)` lines in server/routes/*.ts.
-  const norm = (p: string) => p.replace(/\?.*$/, '').replace(/:[A-Za-z]+/g, ':id').replace(/(.)\/$/, '$1');
+  const norm = (p: string) =>
+    p
+      .replace(/\?.*$/, '')
+      .replace(/:[A-Za-z]+/g, ':id')
+      .replace(/(.)\/$/, '$1');
   const app = readFileSync('server/app.ts', 'utf8');
   const mounts = new Map<string, string>();
   // A router is mounted by name (`api.use('/x', xRouter)`) or made by a factory (`createXRouter(…)` makes `xRouter`).

@@ -35,11 +35,13 @@ async function driveWithPeople() {
 
 /** Everything a stop request may change in a project: stops, their positions, audit rows, mail. */
 async function snapshot(projectId: string) {
-  const [row] = (await db.execute<{ stops: string; positions: number; audits: number; mails: number }>(sql`
+  const [row] = (
+    await db.execute<{ stops: string; positions: number; audits: number; mails: number }>(sql`
     select (select md5(coalesce(string_agg(row_to_json(s)::text, ',' order by s.id), '')) from stops s where s.project_id = ${projectId}) as stops,
            (select count(*)::int from stop_positions sp join stops s on s.id = sp.stop_id where s.project_id = ${projectId}) as positions,
            (select count(*)::int from audit_log where project_id = ${projectId}) as audits,
-           (select count(*)::int from outbox where project_id = ${projectId}) as mails`)).rows;
+           (select count(*)::int from outbox where project_id = ${projectId}) as mails`)
+  ).rows;
   return row;
 }
 
@@ -65,8 +67,14 @@ describe('the plan', () => {
     const plan = res.body;
     // The defaults (common practice, no source) with the override, and the project's compressed-air rule (30 m, its default).
     expect(plan.settings).toEqual({
-      horizonM: 600, freeAirStopH: 6, compressedAirStopH: 14, changeHByClass: { centre: 1.5, face: 1, gauge: 1.25 }, wastedRingLifeHPerMm: 0.2, compressedAirAboveHeadM: 30,
-      practiceChangeSharePercent: 80, fixedIntervalM: 250,
+      horizonM: 600,
+      freeAirStopH: 6,
+      compressedAirStopH: 14,
+      changeHByClass: { centre: 1.5, face: 1, gauge: 1.25 },
+      wastedRingLifeHPerMm: 0.2,
+      compressedAirAboveHeadM: 30,
+      practiceChangeSharePercent: 80,
+      fixedIntervalM: 250,
     });
     expect(plan.currentChainageM).toBe(ctx.drive.currentChainageM);
     expect(plan.horizonEndChainageM).toBe(800);
@@ -99,14 +107,19 @@ describe('the plan', () => {
     expect(plan.savingVsIntervalH).toBeCloseTo(plan.fixedInterval.cost.totalH - plan.optimised.cost.totalH, 9);
     expect(plan.savingVsPracticeH).toBeGreaterThanOrEqual(0);
     for (const which of ['optimised', 'practice', 'fixedInterval'] as const) {
-      const rowsH = plan[which].stops.reduce((t: number, s: { stopH: number; changeH: number; wastedRingLifeH: number }) => t + s.stopH + s.changeH + s.wastedRingLifeH, 0);
+      const rowsH = plan[which].stops.reduce(
+        (t: number, s: { stopH: number; changeH: number; wastedRingLifeH: number }) => t + s.stopH + s.changeH + s.wastedRingLifeH,
+        0,
+      );
       expect(rowsH).toBeCloseTo(plan[which].cost.totalH, 9);
     }
     // A small drive: the search runs to the end, so the plan is proven cheapest.
     expect(plan.certificate).toMatchObject({ proven: true, gapPercent: 0 });
     expect(plan.certificate.lowerBoundH).toBeCloseTo(plan.optimised.cost.totalH, 9);
     // The long section of the planned stretch, with the fault zone (230–260 m) where no stop is allowed.
-    expect(plan.longSection.some((s: { chainageFromM: number; stopAllowed: boolean }) => s.chainageFromM === 230 && !s.stopAllowed)).toBe(true);
+    expect(plan.longSection.some((s: { chainageFromM: number; stopAllowed: boolean }) => s.chainageFromM === 230 && !s.stopAllowed)).toBe(
+      true,
+    );
     expect(plan.compressedAirAboveHeadM).toBe(30);
     // A stop under 40 m of head: compressed air at 3.92266 bar (derived: 1000 · 9.80665 · 40 / 10⁵).
     const underHead = plan.optimised.stops.find((s: { chainageM: number }) => s.chainageM > 260);
@@ -155,30 +168,54 @@ describe('a stop from proposal to done', () => {
     expect(first.compressedAir).toBe(false);
 
     const created = await planner.post(url()).send({
-      chainageM: first.chainageM, compressedAir: first.compressedAir, expectedHours: first.stopH + first.changeH,
-      positions: first.changes.map((c: { positionId: string; wearAtChangeMm: number }) => ({ positionId: c.positionId, expectedWearMm: c.wearAtChangeMm })),
+      chainageM: first.chainageM,
+      compressedAir: first.compressedAir,
+      expectedHours: first.stopH + first.changeH,
+      positions: first.changes.map((c: { positionId: string; wearAtChangeMm: number }) => ({
+        positionId: c.positionId,
+        expectedWearMm: c.wearAtChangeMm,
+      })),
     });
     expect(created.status, JSON.stringify(created.body)).toBe(201);
     const stopId = created.body.stop.id;
-    expect(created.body.stop).toMatchObject({ status: 'proposed', source: 'planner', chainageM: first.chainageM, ringNumber: first.ringNumber, compressedAir: false });
+    expect(created.body.stop).toMatchObject({
+      status: 'proposed',
+      source: 'planner',
+      chainageM: first.chainageM,
+      ringNumber: first.ringNumber,
+      compressedAir: false,
+    });
     expect(created.body.stop.workingPressureBar).toBeCloseTo(barFromHead(10), 12);
-    expect(created.body.positions.map((p: { positionId: string }) => p.positionId)).toEqual(expect.arrayContaining(first.changes.map((c: { positionId: string }) => c.positionId)));
+    expect(created.body.positions.map((p: { positionId: string }) => p.positionId)).toEqual(
+      expect.arrayContaining(first.changes.map((c: { positionId: string }) => c.positionId)),
+    );
     // The plan now points at it, and a second proposal at the same place is refused.
     expect((await planner.get(url('/plan?horizonM=600'))).body.optimised.stops[0].existingStopId).toBe(stopId);
     const again = await planner.post(url()).send({ chainageM: first.chainageM, positions: [{ positionId: first.changes[0].positionId }] });
     expect(again.status).toBe(409);
     expect(again.body.error.message).toMatch(/already an open stop at 0\+228\.5 \(proposed\)/);
 
-    const scheduled = await planner.post(url(`/${stopId}/schedule`)).send({ plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 9, crewId: drive.crew.id, compressedAir: false });
+    const scheduled = await planner
+      .post(url(`/${stopId}/schedule`))
+      .send({ plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 9, crewId: drive.crew.id, compressedAir: false });
     expect(scheduled.status, JSON.stringify(scheduled.body)).toBe(200);
-    expect(scheduled.body.stop).toMatchObject({ status: 'scheduled', plannedStart: '2026-12-20T05:00:00.000Z', expectedHours: 9, crewId: drive.crew.id, publishedAt: null });
+    expect(scheduled.body.stop).toMatchObject({
+      status: 'scheduled',
+      plannedStart: '2026-12-20T05:00:00.000Z',
+      expectedHours: 9,
+      crewId: drive.crew.id,
+      publishedAt: null,
+    });
     expect(scheduled.body.crew.members).toHaveLength(3);
 
     const published = await planner.post(url(`/${stopId}/publish`));
     expect(published.status, JSON.stringify(published.body)).toBe(200);
     expect(published.body.stop.publishedAt).not.toBeNull();
     // One message per crew member, in the outbox of the same transaction; the member who turned stop mail off gets none.
-    const mails = await db.select().from(outbox).where(and(eq(outbox.projectId, drive.project.id), eq(outbox.kind, 'stop_published')));
+    const mails = await db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.projectId, drive.project.id), eq(outbox.kind, 'stop_published')));
     expect(mails.map((m) => m.toAddresses).sort()).toEqual(drive.memberEmails.map((e) => [e]).sort());
     const text = mails[0].textBody;
     expect(text).toContain('cutter stop at chainage 0+228.5, ring 152');
@@ -201,7 +238,12 @@ describe('a stop from proposal to done', () => {
     expect(started.body.stop).toMatchObject({ status: 'in_progress', actualStart: '2026-12-20T05:10:00.000Z' });
     const done = await fitter.post(url(`/${stopId}/complete`)).send({ actualEnd: '2026-12-20T16:40:00+01:00', roundId: drive.roundId });
     expect(done.status, JSON.stringify(done.body)).toBe(200);
-    expect(done.body.stop).toMatchObject({ status: 'done', actualEnd: '2026-12-20T15:40:00.000Z', roundId: drive.roundId, actualHours: 10.5 });
+    expect(done.body.stop).toMatchObject({
+      status: 'done',
+      actualEnd: '2026-12-20T15:40:00.000Z',
+      roundId: drive.roundId,
+      actualHours: 10.5,
+    });
     expect(done.body.round.id).toBe(drive.roundId);
     // A done stop no longer takes serials from the store.
     expect(done.body.storeSerials).toEqual([]);
@@ -209,20 +251,47 @@ describe('a stop from proposal to done', () => {
     const list = await fitter.get(url());
     expect(list.status).toBe(200);
     expect(list.body).toHaveLength(1);
-    expect(list.body[0]).toMatchObject({ id: stopId, status: 'done', chainageM: 228.5, expectedHours: 9, actualHours: 10.5, crewName: drive.crew.name, positionCount: first.changes.length });
+    expect(list.body[0]).toMatchObject({
+      id: stopId,
+      status: 'done',
+      chainageM: 228.5,
+      expectedHours: 9,
+      actualHours: 10.5,
+      crewName: drive.crew.name,
+      positionCount: first.changes.length,
+    });
     expect((await fitter.get(url('?status=scheduled'))).body).toEqual([]);
     expect((await fitter.get(url('?status=done'))).body).toHaveLength(1);
 
-    const trail = await db.select({ action: auditLog.action }).from(auditLog).where(and(eq(auditLog.entity, 'stop'), eq(auditLog.entityId, stopId))).orderBy(auditLog.id);
+    const trail = await db
+      .select({ action: auditLog.action })
+      .from(auditLog)
+      .where(and(eq(auditLog.entity, 'stop'), eq(auditLog.entityId, stopId)))
+      .orderBy(auditLog.id);
     expect(trail.map((a) => a.action)).toEqual(['create', 'schedule', 'publish', 'start', 'complete']);
   });
 
   it('rescheduling a published stop clears the publication, so the crew hears of the change', async () => {
     const { drive, planner, url } = await driveWithPeople();
-    const stop = await insertStop(drive.project.id, { status: 'scheduled', chainageM: 201.5, plannedStart: new Date('2026-12-20T05:00:00Z'), expectedHours: 8, crewId: drive.crew.id, publishedAt: new Date() }, [drive.drive.positions[0].id]);
-    const same = await planner.post(url(`/${stop.id}/schedule`)).send({ plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 8, crewId: drive.crew.id, compressedAir: false });
+    const stop = await insertStop(
+      drive.project.id,
+      {
+        status: 'scheduled',
+        chainageM: 201.5,
+        plannedStart: new Date('2026-12-20T05:00:00Z'),
+        expectedHours: 8,
+        crewId: drive.crew.id,
+        publishedAt: new Date(),
+      },
+      [drive.drive.positions[0].id],
+    );
+    const same = await planner
+      .post(url(`/${stop.id}/schedule`))
+      .send({ plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 8, crewId: drive.crew.id, compressedAir: false });
     expect(same.body.stop.publishedAt).not.toBeNull();
-    const moved = await planner.post(url(`/${stop.id}/schedule`)).send({ plannedStart: '2026-12-21T06:00:00+01:00', expectedHours: 8, crewId: drive.crew.id, compressedAir: false });
+    const moved = await planner
+      .post(url(`/${stop.id}/schedule`))
+      .send({ plannedStart: '2026-12-21T06:00:00+01:00', expectedHours: 8, crewId: drive.crew.id, compressedAir: false });
     expect(moved.status).toBe(200);
     expect(moved.body.stop.publishedAt).toBeNull();
     expect((await planner.post(url(`/${stop.id}/publish`))).status).toBe(200);
@@ -230,16 +299,35 @@ describe('a stop from proposal to done', () => {
 
   it('cancelling a published stop needs a reason and tells the crew', async () => {
     const { drive, planner, url } = await driveWithPeople();
-    const stop = await insertStop(drive.project.id, { status: 'scheduled', chainageM: 201.5, plannedStart: new Date('2026-12-20T05:00:00Z'), expectedHours: 8, crewId: drive.crew.id, publishedAt: new Date() }, [drive.drive.positions[0].id]);
+    const stop = await insertStop(
+      drive.project.id,
+      {
+        status: 'scheduled',
+        chainageM: 201.5,
+        plannedStart: new Date('2026-12-20T05:00:00Z'),
+        expectedHours: 8,
+        crewId: drive.crew.id,
+        publishedAt: new Date(),
+      },
+      [drive.drive.positions[0].id],
+    );
     const before = await snapshot(drive.project.id);
     const noReason = await planner.post(url(`/${stop.id}/cancel`)).send({ reason: '  ' });
     expect(noReason.status).toBe(400);
     expect(noReason.body.error.message).toBe('Give the reason for cancelling.');
     expect(await snapshot(drive.project.id)).toEqual(before);
-    const cancelled = await planner.post(url(`/${stop.id}/cancel`)).send({ reason: 'Machine stopped for a main bearing inspection instead' });
+    const cancelled = await planner
+      .post(url(`/${stop.id}/cancel`))
+      .send({ reason: 'Machine stopped for a main bearing inspection instead' });
     expect(cancelled.status).toBe(200);
-    expect(cancelled.body.stop).toMatchObject({ status: 'cancelled', cancelReason: 'Machine stopped for a main bearing inspection instead' });
-    const mails = await db.select().from(outbox).where(and(eq(outbox.projectId, drive.project.id), sql`${outbox.subject} like '%CANCELLED'`));
+    expect(cancelled.body.stop).toMatchObject({
+      status: 'cancelled',
+      cancelReason: 'Machine stopped for a main bearing inspection instead',
+    });
+    const mails = await db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.projectId, drive.project.id), sql`${outbox.subject} like '%CANCELLED'`));
     expect(mails.map((m) => m.toAddresses[0]).sort()).toEqual([...drive.memberEmails].sort());
     expect(mails[0].textBody).toContain('Reason: Machine stopped for a main bearing inspection instead');
   });
@@ -259,17 +347,37 @@ describe('wrong transitions are 409s that say what to do, and change nothing', (
     expect(res.body.error.message).toMatch(message);
     expect(await snapshot(ctx.drive.project.id)).toEqual(before);
   };
-  const schedule = () => ({ plannedStart: '2026-12-22T07:00:00+01:00', expectedHours: 10, crewId: ctx.drive.crew.id, compressedAir: false });
+  const schedule = () => ({
+    plannedStart: '2026-12-22T07:00:00+01:00',
+    expectedHours: 10,
+    crewId: ctx.drive.crew.id,
+    compressedAir: false,
+  });
 
   it('a proposed stop cannot be published, started or completed', async () => {
     const stop = await insertStop(ctx.drive.project.id, { chainageM: 203 }, [ctx.drive.drive.positions[1].id]);
-    await refused(stop.id, 'publish', {}, /^This stop is only proposed: schedule it \(date and time, crew, expected hours\) before it can be published\.$/);
+    await refused(
+      stop.id,
+      'publish',
+      {},
+      /^This stop is only proposed: schedule it \(date and time, crew, expected hours\) before it can be published\.$/,
+    );
     await refused(stop.id, 'start', {}, /only proposed: schedule it .* before it can be started/);
     await refused(stop.id, 'complete', {}, /only proposed: schedule it .* and start it before it can be completed/);
   });
 
   it('a scheduled stop cannot be completed; a started one cannot be started or rescheduled', async () => {
-    const stop = await insertStop(ctx.drive.project.id, { chainageM: 204.5, status: 'scheduled', plannedStart: new Date('2026-12-22T06:00:00Z'), expectedHours: 10, crewId: ctx.drive.crew.id }, [ctx.drive.drive.positions[1].id]);
+    const stop = await insertStop(
+      ctx.drive.project.id,
+      {
+        chainageM: 204.5,
+        status: 'scheduled',
+        plannedStart: new Date('2026-12-22T06:00:00Z'),
+        expectedHours: 10,
+        crewId: ctx.drive.crew.id,
+      },
+      [ctx.drive.drive.positions[1].id],
+    );
     await refused(stop.id, 'complete', {}, /has not started yet: start it when work begins/);
     expect((await ctx.fitter.post(ctx.url(`/${stop.id}/start`))).status).toBe(200);
     await refused(stop.id, 'start', {}, /already in progress \(started/);
@@ -278,8 +386,19 @@ describe('wrong transitions are 409s that say what to do, and change nothing', (
   });
 
   it('done and cancelled stops accept nothing more', async () => {
-    const done = await insertStop(ctx.drive.project.id, { chainageM: 206, status: 'done', actualStart: new Date('2026-12-01T06:00:00Z'), actualEnd: new Date('2026-12-01T16:00:00Z') });
-    for (const [action, body] of [['schedule', schedule()], ['publish', {}], ['start', {}], ['complete', {}], ['cancel', { reason: 'Too late' }]] as const) {
+    const done = await insertStop(ctx.drive.project.id, {
+      chainageM: 206,
+      status: 'done',
+      actualStart: new Date('2026-12-01T06:00:00Z'),
+      actualEnd: new Date('2026-12-01T16:00:00Z'),
+    });
+    for (const [action, body] of [
+      ['schedule', schedule()],
+      ['publish', {}],
+      ['start', {}],
+      ['complete', {}],
+      ['cancel', { reason: 'Too late' }],
+    ] as const) {
       await refused(done.id, action, body, /^This stop is done \(finished 2026-12-01 17:00\), so it cannot be \w+\. Propose a new stop/);
     }
     const cancelled = await insertStop(ctx.drive.project.id, { chainageM: 207.5, status: 'cancelled', cancelReason: 'Plan changed' });
@@ -306,26 +425,118 @@ describe('bad input is a 4xx and changes nothing', () => {
     ctx = await driveWithPeople();
     other = await makeStopsDrive();
     const p = ctx.drive.drive.positions;
-    scheduledId = (await insertStop(ctx.drive.project.id, { chainageM: 201.5, status: 'scheduled', plannedStart: new Date('2026-12-20T05:00:00Z'), expectedHours: 8, crewId: ctx.drive.crew.id }, [p[0].id])).id;
-    startedId = (await insertStop(ctx.drive.project.id, { chainageM: 203, status: 'in_progress', actualStart: new Date('2026-12-20T05:00:00Z') }, [p[1].id])).id;
+    scheduledId = (
+      await insertStop(
+        ctx.drive.project.id,
+        {
+          chainageM: 201.5,
+          status: 'scheduled',
+          plannedStart: new Date('2026-12-20T05:00:00Z'),
+          expectedHours: 8,
+          crewId: ctx.drive.crew.id,
+        },
+        [p[0].id],
+      )
+    ).id;
+    startedId = (
+      await insertStop(ctx.drive.project.id, { chainageM: 203, status: 'in_progress', actualStart: new Date('2026-12-20T05:00:00Z') }, [
+        p[1].id,
+      ])
+    ).id;
   });
 
   const positions = () => [{ positionId: ctx.drive.drive.positions[1].id, expectedWearMm: 21.5 }];
   const cases: [string, () => [string, string, object], number, RegExp][] = [
-    ['a position of another drive', () => ['post', '', { chainageM: 210.5, positions: [{ positionId: other.drive.positions[0].id }] }], 400, /1 of the positions are not on this drive’s cutterhead/],
-    ['a chainage in the fault zone', () => ['post', '', { chainageM: 245, positions: positions() }], 400, /^No stop may be made at 0\+245\.0: Fault zone: no stop\. Choose a chainage/],
-    ['a chainage on the fault zone’s edge', () => ['post', '', { chainageM: 260, positions: positions() }], 400, /No stop may be made at 0\+260\.0: Fault zone/],
-    ['a chainage behind the machine', () => ['post', '', { chainageM: 150, positions: positions() }], 400, /0\+150\.0 is behind the machine \(now at 0\+200\.0\)/],
-    ['a chainage beyond the long section', () => ['post', '', { chainageM: 3000, positions: positions() }], 400, /outside the geology long section/],
+    [
+      'a position of another drive',
+      () => ['post', '', { chainageM: 210.5, positions: [{ positionId: other.drive.positions[0].id }] }],
+      400,
+      /1 of the positions are not on this drive’s cutterhead/,
+    ],
+    [
+      'a chainage in the fault zone',
+      () => ['post', '', { chainageM: 245, positions: positions() }],
+      400,
+      /^No stop may be made at 0\+245\.0: Fault zone: no stop\. Choose a chainage/,
+    ],
+    [
+      'a chainage on the fault zone’s edge',
+      () => ['post', '', { chainageM: 260, positions: positions() }],
+      400,
+      /No stop may be made at 0\+260\.0: Fault zone/,
+    ],
+    [
+      'a chainage behind the machine',
+      () => ['post', '', { chainageM: 150, positions: positions() }],
+      400,
+      /0\+150\.0 is behind the machine \(now at 0\+200\.0\)/,
+    ],
+    [
+      'a chainage beyond the long section',
+      () => ['post', '', { chainageM: 3000, positions: positions() }],
+      400,
+      /outside the geology long section/,
+    ],
     ['no positions', () => ['post', '', { chainageM: 210.5, positions: [] }], 400, /^A stop needs at least one position to change\.$/],
-    ['a position twice', () => ['post', '', { chainageM: 210.5, positions: [...positions(), ...positions()] }], 400, /The same position is listed twice/],
-    ['a chainage that is not a number', () => ['post', '', { chainageM: 'near the shaft', positions: positions() }], 400, /Give the chainage of the stop, in metres/],
-    ['a crew of another drive', () => ['post', `/${scheduledId}/schedule`, { plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 8, crewId: other.crew.id, compressedAir: false }], 400, /not a crew of this drive/],
-    ['a start without a time-zone offset', () => ['post', `/${scheduledId}/schedule`, { plannedStart: '2026-12-20T06:00', expectedHours: 8, crewId: ctx.drive.crew.id, compressedAir: false }], 400, /Give the planned start as a date and time/],
-    ['zero expected hours', () => ['post', `/${scheduledId}/schedule`, { plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 0, crewId: ctx.drive.crew.id, compressedAir: false }], 400, /Expected hours must be more than 0/],
-    ['no air choice', () => ['post', `/${scheduledId}/schedule`, { plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 8, crewId: ctx.drive.crew.id }], 400, /free air or compressed air/],
+    [
+      'a position twice',
+      () => ['post', '', { chainageM: 210.5, positions: [...positions(), ...positions()] }],
+      400,
+      /The same position is listed twice/,
+    ],
+    [
+      'a chainage that is not a number',
+      () => ['post', '', { chainageM: 'near the shaft', positions: positions() }],
+      400,
+      /Give the chainage of the stop, in metres/,
+    ],
+    [
+      'a crew of another drive',
+      () => [
+        'post',
+        `/${scheduledId}/schedule`,
+        { plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 8, crewId: other.crew.id, compressedAir: false },
+      ],
+      400,
+      /not a crew of this drive/,
+    ],
+    [
+      'a start without a time-zone offset',
+      () => [
+        'post',
+        `/${scheduledId}/schedule`,
+        { plannedStart: '2026-12-20T06:00', expectedHours: 8, crewId: ctx.drive.crew.id, compressedAir: false },
+      ],
+      400,
+      /Give the planned start as a date and time/,
+    ],
+    [
+      'zero expected hours',
+      () => [
+        'post',
+        `/${scheduledId}/schedule`,
+        { plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 0, crewId: ctx.drive.crew.id, compressedAir: false },
+      ],
+      400,
+      /Expected hours must be more than 0/,
+    ],
+    [
+      'no air choice',
+      () => [
+        'post',
+        `/${scheduledId}/schedule`,
+        { plannedStart: '2026-12-20T06:00:00+01:00', expectedHours: 8, crewId: ctx.drive.crew.id },
+      ],
+      400,
+      /free air or compressed air/,
+    ],
     ['a round of another drive', () => ['post', `/${startedId}/complete`, { roundId: other.roundId }], 400, /not a round of this drive/],
-    ['an end before the start', () => ['post', `/${startedId}/complete`, { actualEnd: '2026-12-20T05:00:00+01:00' }], 400, /The end is before the start \(2026-12-20 06:00\)/],
+    [
+      'an end before the start',
+      () => ['post', `/${startedId}/complete`, { actualEnd: '2026-12-20T05:00:00+01:00' }],
+      400,
+      /The end is before the start \(2026-12-20 06:00\)/,
+    ],
     ['an unknown status filter', () => ['get', '?status=paused', {}], 400, /Unknown stop status/],
   ];
 
@@ -345,8 +556,13 @@ describe('the work pack', () => {
     const { drive, planner, url } = await driveWithPeople();
     const [centre, face, gauge] = drive.drive.positions;
     const created = await planner.post(url()).send({
-      chainageM: 201.5, compressedAir: true,
-      positions: [{ positionId: gauge.id, expectedWearMm: 11.6 }, { positionId: centre.id, expectedWearMm: 24.1 }, { positionId: face.id, expectedWearMm: null }],
+      chainageM: 201.5,
+      compressedAir: true,
+      positions: [
+        { positionId: gauge.id, expectedWearMm: 11.6 },
+        { positionId: centre.id, expectedWearMm: 24.1 },
+        { positionId: face.id, expectedWearMm: null },
+      ],
     });
     expect(created.status, JSON.stringify(created.body)).toBe(201);
     const res = await planner.get(url(`/${created.body.stop.id}`));
@@ -356,8 +572,16 @@ describe('the work pack', () => {
     expect(pack.stop.compressedAir).toBe(true);
     expect(pack.stop.workingPressureBar).toBeCloseTo(0.980665, 12);
     expect(pack.stop.ringNumber).toBe(134); // one ring past ring 133, which ends at 200 m
-    expect(pack.positions.map((p: { number: number; expectedWearMm: number | null; fittedSerial: string }) => [p.number, p.expectedWearMm, p.fittedSerial])).toEqual([
-      [1, 24.1, drive.drive.fitted[0].serial], [2, null, drive.drive.fitted[1].serial], [3, 11.6, drive.drive.fitted[2].serial],
+    expect(
+      pack.positions.map((p: { number: number; expectedWearMm: number | null; fittedSerial: string }) => [
+        p.number,
+        p.expectedWearMm,
+        p.fittedSerial,
+      ]),
+    ).toEqual([
+      [1, 24.1, drive.drive.fitted[0].serial],
+      [2, null, drive.drive.fitted[1].serial],
+      [3, 11.6, drive.drive.fitted[2].serial],
     ]);
     // Three 17″ cutters: the two never rebuilt, then the one rebuilt once; not the 19″ one nor the one in the workshop.
     const neverRebuilt = [drive.drive.store[0].serial, drive.drive.store[1].serial].sort();
@@ -375,7 +599,12 @@ describe('the work pack', () => {
     expect(pack.cautions[1]).toMatch(/does not compute decompression schedules/);
 
     // With one 17″ cutter left in store the pack says what is short.
-    await db.update(cutters).set({ status: 'workshop' }).where(and(eq(cutters.projectId, drive.project.id), eq(cutters.status, 'in_store'), sql`${cutters.serial} <> ${drive.extra[0].serial}`));
+    await db
+      .update(cutters)
+      .set({ status: 'workshop' })
+      .where(
+        and(eq(cutters.projectId, drive.project.id), eq(cutters.status, 'in_store'), sql`${cutters.serial} <> ${drive.extra[0].serial}`),
+      );
     const short = (await planner.get(url(`/${created.body.stop.id}`))).body;
     expect(short.storeSerials.map((c: { serial: string }) => c.serial)).toEqual([drive.extra[0].serial]);
     expect(short.shortages).toEqual([{ discSizeIn: 17, needed: 3, inStore: 1 }]);

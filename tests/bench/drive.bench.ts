@@ -5,7 +5,18 @@
  */
 import { eq, sql } from 'drizzle-orm';
 import { db } from '../../server/db/client';
-import { cutters, entrySubmissions, fittings, geologySections, groundTypes, inspectionEntries, inspectionRounds, positions, projects, strokes } from '../../server/db/schema';
+import {
+  cutters,
+  entrySubmissions,
+  fittings,
+  geologySections,
+  groundTypes,
+  inspectionEntries,
+  inspectionRounds,
+  positions,
+  projects,
+  strokes,
+} from '../../server/db/schema';
 import { buildForecast, loadForecastData } from '../../server/services/forecast';
 import { invalidateRolledDistance, refreshRolledDistance } from '../../server/services/rolled-distance';
 import { BENCH_RINGS, benchGeology, benchGroundTypes, benchLayout, benchStrokes } from './generate-drive';
@@ -27,24 +38,74 @@ async function timeIt<T>(runs: number, fn: () => Promise<T> | T): Promise<{ ms: 
 
 /** Loads the synthetic drive: layout, geology, strokes, a fitted cutter per position and rounds every ~250 m. */
 export async function loadBenchDrive(): Promise<string> {
-  const [project] = await db.insert(projects).values({ name: `Bench drive ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' }).returning();
+  const [project] = await db
+    .insert(projects)
+    .values({ name: `Bench drive ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' })
+    .returning();
   const projectId = project.id;
-  const grounds = await db.insert(groundTypes).values(benchGroundTypes.map((g) => ({ ...g, projectId }))).returning();
-  await db.insert(geologySections).values(benchGeology(START_M).map((s) => ({ projectId, chainageFromM: s.fromM, chainageToM: s.toM, groundTypeId: grounds[s.ground].id, stopAllowed: s.stopAllowed, stopReason: s.stopAllowed ? '' : 'bench no-stop' })));
-  const layout = await db.insert(positions).values(benchLayout().map((p) => ({ ...p, projectId }))).returning();
+  const grounds = await db
+    .insert(groundTypes)
+    .values(benchGroundTypes.map((g) => ({ ...g, projectId })))
+    .returning();
+  await db
+    .insert(geologySections)
+    .values(
+      benchGeology(START_M).map((s) => ({
+        projectId,
+        chainageFromM: s.fromM,
+        chainageToM: s.toM,
+        groundTypeId: grounds[s.ground].id,
+        stopAllowed: s.stopAllowed,
+        stopReason: s.stopAllowed ? '' : 'bench no-stop',
+      })),
+    );
+  const layout = await db
+    .insert(positions)
+    .values(benchLayout().map((p) => ({ ...p, projectId })))
+    .returning();
   const rows = benchStrokes(1, BENCH_RINGS, START_M, START_MS);
   for (let i = 0; i < rows.length; i += 1000) await db.insert(strokes).values(rows.slice(i, i + 1000).map((r) => ({ ...r, projectId })));
-  const serials = await db.insert(cutters).values(layout.map((p) => ({ projectId, serial: `B-${p.number}`, discSizeIn: 19, status: 'fitted' as const }))).returning();
-  const fitted = await db.insert(fittings).values(layout.map((p, i) => ({ projectId, positionId: p.id, cutterId: serials[i].id, fittedAt: new Date(START_MS - 3600_000), fittedChainageM: START_M }))).returning();
+  const serials = await db
+    .insert(cutters)
+    .values(layout.map((p) => ({ projectId, serial: `B-${p.number}`, discSizeIn: 19, status: 'fitted' as const })))
+    .returning();
+  const fitted = await db
+    .insert(fittings)
+    .values(
+      layout.map((p, i) => ({
+        projectId,
+        positionId: p.id,
+        cutterId: serials[i].id,
+        fittedAt: new Date(START_MS - 3600_000),
+        fittedChainageM: START_M,
+      })),
+    )
+    .returning();
   // ~37 rounds × 80 positions ≈ 3,000 inspections; wear grows with chainage, just enough to fit.
   for (let r = 1; r <= 37; r++) {
     const stroke = rows[Math.min(rows.length - 1, r * 180)];
-    const [round] = await db.insert(inspectionRounds).values({ projectId, startedAt: new Date(stroke.endTime.getTime() + 60_000), chainageM: stroke.chainageEndM, ringNumber: stroke.ringNumber }).returning();
+    const [round] = await db
+      .insert(inspectionRounds)
+      .values({
+        projectId,
+        startedAt: new Date(stroke.endTime.getTime() + 60_000),
+        chainageM: stroke.chainageEndM,
+        ringNumber: stroke.ringNumber,
+      })
+      .returning();
     const entries = layout.map((p, i) => ({
-      projectId, roundId: round.id, positionId: p.id, clientKey: randomUUIDLike(r, i), fittingId: fitted[i].id,
-      wearMm: Math.round(((p.trackRadiusMm / 4500) * r * 0.6 + 0.1) * 10) / 10, conditions: ['even_wear'],
+      projectId,
+      roundId: round.id,
+      positionId: p.id,
+      clientKey: randomUUIDLike(r, i),
+      fittingId: fitted[i].id,
+      wearMm: Math.round(((p.trackRadiusMm / 4500) * r * 0.6 + 0.1) * 10) / 10,
+      conditions: ['even_wear'],
     }));
-    const saved = await db.insert(inspectionEntries).values(entries).returning({ id: inspectionEntries.id, clientKey: inspectionEntries.clientKey });
+    const saved = await db
+      .insert(inspectionEntries)
+      .values(entries)
+      .returning({ id: inspectionEntries.id, clientKey: inspectionEntries.clientKey });
     await db.insert(entrySubmissions).values(saved.map((e) => ({ projectId, clientKey: e.clientKey, entryId: e.id })));
   }
   return projectId;
@@ -55,20 +116,30 @@ const randomUUIDLike = (r: number, i: number) => `00000000-0000-4000-8000-${Stri
 export async function benchDrive(): Promise<string[]> {
   const out: string[] = [];
   const projectId = await loadBenchDrive();
-  const [{ n: strokeCount }] = await db.select({ n: sql<number>`count(*)::int` }).from(strokes).where(eq(strokes.projectId, projectId));
-  const [{ n: entryCount }] = await db.select({ n: sql<number>`count(*)::int` }).from(inspectionEntries).where(eq(inspectionEntries.projectId, projectId));
+  const [{ n: strokeCount }] = await db
+    .select({ n: sql<number>`count(*)::int` })
+    .from(strokes)
+    .where(eq(strokes.projectId, projectId));
+  const [{ n: entryCount }] = await db
+    .select({ n: sql<number>`count(*)::int` })
+    .from(inspectionEntries)
+    .where(eq(inspectionEntries.projectId, projectId));
   out.push(`Synthetic drive: ${strokeCount} strokes, 80 positions, 40 geology sections, ${entryCount} inspections`);
 
-  const recompute = await timeIt(3, () => db.transaction(async (tx) => {
-    await invalidateRolledDistance(tx, projectId);
-    return refreshRolledDistance(tx, projectId);
-  }));
+  const recompute = await timeIt(3, () =>
+    db.transaction(async (tx) => {
+      await invalidateRolledDistance(tx, projectId);
+      return refreshRolledDistance(tx, projectId);
+    }),
+  );
   out.push(`Rolled distance, full recompute of the drive: ${recompute.ms.toFixed(0)} ms (median of 3)`);
 
   const read = await timeIt(5, () => db.transaction((tx) => loadForecastData(tx, projectId)));
   const compute = await timeIt(5, () => buildForecast(read.last, new Date(START_MS + 400 * 86400_000)));
   out.push(`Forecast, read its rows from PostgreSQL: ${read.ms.toFixed(0)} ms (median of 5)`);
-  out.push(`Forecast, compute (fit + ${compute.last.positions.length} positions): ${compute.ms.toFixed(0)} ms (median of 5) — target ≤ 150 ms`);
+  out.push(
+    `Forecast, compute (fit + ${compute.last.positions.length} positions): ${compute.ms.toFixed(0)} ms (median of 5) — target ≤ 150 ms`,
+  );
   out.push(`Forecast, compute / read: ${(compute.ms / read.ms).toFixed(2)}× — target ≤ 2×`);
   return out;
 }
@@ -91,22 +162,49 @@ export async function benchImport(): Promise<string[]> {
   const rows = benchStrokes(1, 10_000, START_M, START_MS);
   const csv = strokesCsv(rows);
 
-  const [project] = await db.insert(projects).values({ name: `Bench import ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' }).returning();
-  const grounds = await db.insert(groundTypes).values(benchGroundTypes.map((g) => ({ ...g, projectId: project.id }))).returning();
-  await db.insert(geologySections).values(benchGeology(START_M).map((s) => ({ projectId: project.id, chainageFromM: s.fromM, chainageToM: s.toM, groundTypeId: grounds[s.ground].id, stopAllowed: true })));
+  const [project] = await db
+    .insert(projects)
+    .values({ name: `Bench import ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' })
+    .returning();
+  const grounds = await db
+    .insert(groundTypes)
+    .values(benchGroundTypes.map((g) => ({ ...g, projectId: project.id })))
+    .returning();
+  await db
+    .insert(geologySections)
+    .values(
+      benchGeology(START_M).map((s) => ({
+        projectId: project.id,
+        chainageFromM: s.fromM,
+        chainageToM: s.toM,
+        groundTypeId: grounds[s.ground].id,
+        stopAllowed: true,
+      })),
+    );
   await db.insert(positions).values(benchLayout().map((p) => ({ ...p, projectId: project.id })));
   const email = `bench-${Date.now()}@kerfwise.test`;
-  const [user] = await db.insert(users).values({ email, name: 'Bench planner', passwordHash: await hashPassword('bench password 1') }).returning();
+  const [user] = await db
+    .insert(users)
+    .values({ email, name: 'Bench planner', passwordHash: await hashPassword('bench password 1') })
+    .returning();
   await db.insert(memberships).values({ projectId: project.id, userId: user.id, role: 'planner' });
 
   const server = createApp().listen(0, '127.0.0.1');
   await new Promise((r) => server.once('listening', r));
   const base = `http://127.0.0.1:${(server.address() as { port: number }).port}`;
   try {
-    const signIn = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: 'bench password 1' }) });
+    const signIn = await fetch(`${base}/api/auth/sign-in`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ email, password: 'bench password 1' }),
+    });
     const cookie = (signIn.headers.get('set-cookie') ?? '').split(';')[0];
     const t = performance.now();
-    const res = await fetch(`${base}/api/projects/${project.id}/strokes/import`, { method: 'POST', headers: { 'content-type': 'text/csv', cookie }, body: csv });
+    const res = await fetch(`${base}/api/projects/${project.id}/strokes/import`, {
+      method: 'POST',
+      headers: { 'content-type': 'text/csv', cookie },
+      body: csv,
+    });
     const apiMs = performance.now() - t;
     const body = (await res.json()) as { inserted?: number; error?: { message: string } };
     if (res.status !== 201) throw new Error(`import failed: ${res.status} ${JSON.stringify(body).slice(0, 300)}`);
@@ -116,15 +214,44 @@ export async function benchImport(): Promise<string[]> {
     let copyMs: number;
     try {
       await client.query('create temp table strokes_copy (like strokes including all)');
-      const lines = rows.map((r) => [project.id, r.ringNumber, r.startTime.toISOString(), r.endTime.toISOString(), r.chainageStartM, r.chainageEndM, r.revolutions, r.penetrationMmPerRev, r.rpm, r.thrustKn, r.torqueKnm, '{}'].join('\t')).join('\n') + '\n';
+      const lines =
+        rows
+          .map((r) =>
+            [
+              project.id,
+              r.ringNumber,
+              r.startTime.toISOString(),
+              r.endTime.toISOString(),
+              r.chainageStartM,
+              r.chainageEndM,
+              r.revolutions,
+              r.penetrationMmPerRev,
+              r.rpm,
+              r.thrustKn,
+              r.torqueKnm,
+              '{}',
+            ].join('\t'),
+          )
+          .join('\n') + '\n';
       const c = performance.now();
-      await pipeline(Readable.from([lines]), client.query(copyFrom('copy strokes_copy (project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra) from stdin')));
+      await pipeline(
+        Readable.from([lines]),
+        client.query(
+          copyFrom(
+            'copy strokes_copy (project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra) from stdin',
+          ),
+        ),
+      );
       copyMs = performance.now() - c;
     } finally {
       client.release();
     }
-    out.push(`Advance-log import of 10,000 rows through the API: ${apiMs.toFixed(0)} ms end to end (${body.inserted} inserted) — target ≤ 3,000 ms`);
-    out.push(`PostgreSQL COPY of the same 10,000 rows: ${copyMs.toFixed(0)} ms; API / COPY = ${(apiMs / copyMs).toFixed(1)}× — target ≤ 5×`);
+    out.push(
+      `Advance-log import of 10,000 rows through the API: ${apiMs.toFixed(0)} ms end to end (${body.inserted} inserted) — target ≤ 3,000 ms`,
+    );
+    out.push(
+      `PostgreSQL COPY of the same 10,000 rows: ${copyMs.toFixed(0)} ms; API / COPY = ${(apiMs / copyMs).toFixed(1)}× — target ≤ 5×`,
+    );
   } finally {
     server.close();
   }

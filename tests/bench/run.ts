@@ -5,7 +5,13 @@
 import { randomUUID } from 'node:crypto';
 import { bringUpLocalStack } from '../../server/devenv/local-stack';
 
-const stack = await bringUpLocalStack({ dataDir: '.data/pg-bench', pgPort: 54350, database: 'kerfwise_bench', fast: true, freshDatabase: true });
+const stack = await bringUpLocalStack({
+  dataDir: '.data/pg-bench',
+  pgPort: 54350,
+  database: 'kerfwise_bench',
+  fast: true,
+  freshDatabase: true,
+});
 process.env.DATABASE_URL = stack.databaseUrl;
 process.env.SMTP_URL = stack.smtpUrl;
 process.env.SESSION_SECRET = randomUUID() + randomUUID();

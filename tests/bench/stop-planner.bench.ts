@@ -40,7 +40,10 @@ function benchInput(wearFactor = 1): StopPlanInput {
       limitMm,
       // Spread of wear now without a random generator: a fixed permutation of 0…79.
       wearNowMm: (((k * 37) % 80) / 80) * 0.85 * limitMm,
-      wearStretches: GROUND_AHEAD.map((g) => ({ fromAheadM: g.fromAheadM, wearMmPerM: wearFactor * g.mmPerKm * CLASS_FACTOR[positionClass] * rolledKmPerM })),
+      wearStretches: GROUND_AHEAD.map((g) => ({
+        fromAheadM: g.fromAheadM,
+        wearMmPerM: wearFactor * g.mmPerKm * CLASS_FACTOR[positionClass] * rolledKmPerM,
+      })),
     };
   });
   // Every ring is an allowed place; 500–800 m ahead lies under high groundwater (compressed air).
@@ -68,8 +71,11 @@ export const benchInputForTests = (wearFactor: number) => benchInput(wearFactor)
 export function planFigures(name: string, ms: number, r: ReturnType<typeof planStops>): string {
   if (!r.feasible) return `${name}: infeasible (${r.problems.length} positions), ${ms.toFixed(0)} ms`;
   const gapPercent = 100 * r.certificate.gap;
-  const certificate = r.certificate.proven ? 'proven cheapest' : `at most ${gapPercent.toFixed(2)} % above the cheapest (lower bound ${r.certificate.lowerBoundH.toFixed(1)} h)`;
-  const saving = (p: typeof r.practice) => (p ? `${(p.cost.totalH - r.optimised.cost.totalH).toFixed(1)} h (${p.stops.length} stops, ${p.cost.totalH.toFixed(1)} h)` : 'rule stuck');
+  const certificate = r.certificate.proven
+    ? 'proven cheapest'
+    : `at most ${gapPercent.toFixed(2)} % above the cheapest (lower bound ${r.certificate.lowerBoundH.toFixed(1)} h)`;
+  const saving = (p: typeof r.practice) =>
+    p ? `${(p.cost.totalH - r.optimised.cost.totalH).toFixed(1)} h (${p.stops.length} stops, ${p.cost.totalH.toFixed(1)} h)` : 'rule stuck';
   const ok = ms <= TARGET_MS && (r.certificate.proven || gapPercent <= TARGET_GAP_PERCENT) ? 'OK' : 'OVER TARGET';
   return `${name}: ${ms.toFixed(0)} ms, ${r.optimised.stops.length} stops, ${r.optimised.cost.totalH.toFixed(1)} h, ${certificate}; saving vs practice ${saving(r.practice)}, vs fixed interval ${saving(r.fixedInterval)} (target ≤ ${TARGET_MS} ms, ≤ ${TARGET_GAP_PERCENT} %) ${ok}`;
 }

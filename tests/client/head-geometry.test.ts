@@ -19,7 +19,13 @@ describe('discPointMm', () => {
 describe('nearestSpacingMm', () => {
   it('gives each point the distance to its nearest neighbour', () => {
     // derived: 3-4-5 triangle; (0,0)–(3,0) = 3, (3,0)–(3,4) = 4, (0,0)–(3,4) = 5
-    expect(nearestSpacingMm([{ x: 0, y: 0 }, { x: 3, y: 0 }, { x: 3, y: 4 }])).toEqual([3, 3, 4]);
+    expect(
+      nearestSpacingMm([
+        { x: 0, y: 0 },
+        { x: 3, y: 0 },
+        { x: 3, y: 4 },
+      ]),
+    ).toEqual([3, 3, 4]);
     expect(nearestSpacingMm([{ x: 1, y: 1 }])).toEqual([Infinity]);
   });
 });
@@ -58,7 +64,10 @@ describe('layOutAnglesDeg', () => {
     const radii = [60, 150, 240, 330];
     for (let r = 420; r <= 2800; r += 85) radii.push(r);
     radii.push(2850, 2905, 2960, 3015, 3070);
-    const angles = layOutAnglesDeg(radii.map(open), radii.map((_, i) => i + 1));
+    const angles = layOutAnglesDeg(
+      radii.map(open),
+      radii.map((_, i) => i + 1),
+    );
     const points = radii.map((r, i) => discPointMm(r, angles[i]));
     // derived: the hubs at 60 and 150 mm can be at most 60 + 150 = 210 mm apart; the layout reaches it.
     expect(Math.min(...nearestSpacingMm(points))).toBeCloseTo(210, 6);

@@ -3,8 +3,25 @@ import { describe, expect, it } from 'vitest';
 import { drainQueue, type QueuedEntry, type QueuedItem, type QueueStorage, type SendError } from '../../src/features/rounds/offline-queue';
 
 const entry = (key: string, seq: number): QueuedEntry => ({
-  kind: 'entry', key, seq, projectId: 'p', roundId: 'r', positionId: `pos-${key}`, state: 'pending',
-  body: { clientKey: key, positionId: `pos-${key}`, wearMm: 10, conditions: [], action: 'none', removedSerial: null, fitted: null, changeReason: null, note: '', remeasured: false },
+  kind: 'entry',
+  key,
+  seq,
+  projectId: 'p',
+  roundId: 'r',
+  positionId: `pos-${key}`,
+  state: 'pending',
+  body: {
+    clientKey: key,
+    positionId: `pos-${key}`,
+    wearMm: 10,
+    conditions: [],
+    action: 'none',
+    removedSerial: null,
+    fitted: null,
+    changeReason: null,
+    note: '',
+    remeasured: false,
+  },
 });
 
 describe('one queue, two tabs', () => {
@@ -26,7 +43,11 @@ describe('one queue, two tabs', () => {
 
   it('still keeps a refusal while the item is queued', async () => {
     const map = new Map<string, QueuedItem>([['b', entry('b', 1)]]);
-    const storage: QueueStorage = { list: async () => [...map.values()], put: async (i) => void map.set(i.key, i), remove: async (k) => void map.delete(k) };
+    const storage: QueueStorage = {
+      list: async () => [...map.values()],
+      put: async (i) => void map.set(i.key, i),
+      remove: async (k) => void map.delete(k),
+    };
     await drainQueue(storage, async () => ({ status: 409, message: 'This round is closed.', issues: [] }));
     expect(map.get('b')?.state).toBe('attention');
   });

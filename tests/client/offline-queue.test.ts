@@ -1,14 +1,46 @@
 import { describe, expect, it } from 'vitest';
-import { drainQueue, outcomeOf, type QueuedEntry, type QueuedItem, type QueuedPhoto, type QueueStorage, type SendError } from '../../src/features/rounds/offline-queue';
+import {
+  drainQueue,
+  outcomeOf,
+  type QueuedEntry,
+  type QueuedItem,
+  type QueuedPhoto,
+  type QueueStorage,
+  type SendError,
+} from '../../src/features/rounds/offline-queue';
 
 const where = { projectId: 'p', roundId: 'r' };
 
 const entry = (key: string, seq: number, state: QueuedItem['state'] = 'pending'): QueuedEntry => ({
-  kind: 'entry', key, seq, ...where, positionId: `pos-${key}`, state,
-  body: { clientKey: key, positionId: `pos-${key}`, wearMm: 10, conditions: [], action: 'none', removedSerial: null, fitted: null, changeReason: null, note: '', remeasured: false },
+  kind: 'entry',
+  key,
+  seq,
+  ...where,
+  positionId: `pos-${key}`,
+  state,
+  body: {
+    clientKey: key,
+    positionId: `pos-${key}`,
+    wearMm: 10,
+    conditions: [],
+    action: 'none',
+    removedSerial: null,
+    fitted: null,
+    changeReason: null,
+    note: '',
+    remeasured: false,
+  },
 });
 const photo = (key: string, seq: number, entryClientKey: string): QueuedPhoto => ({
-  kind: 'photo', key, seq, ...where, positionId: `pos-${entryClientKey}`, state: 'pending', entryClientKey, blob: new Blob(['x']), fileName: 'x.png',
+  kind: 'photo',
+  key,
+  seq,
+  ...where,
+  positionId: `pos-${entryClientKey}`,
+  state: 'pending',
+  entryClientKey,
+  blob: new Blob(['x']),
+  fileName: 'x.png',
 });
 
 /** The queue in memory, standing in for IndexedDB. */
@@ -36,8 +68,21 @@ function server(statuses: Record<string, number> = {}) {
 describe('outcomeOf', () => {
   // derived: the rule of issue 3's client brief — 2xx (a 200 replay included) is stored; 408 (RFC 9110 §15.5.9)
   // and 429 (RFC 6585 §4) mean "try later", as do no answer (0) and 5xx; every other 4xx is for the fitter to fix.
-  it.each([[200, 'done'], [201, 'done'], [400, 'attention'], [401, 'attention'], [404, 'attention'], [409, 'attention'], [413, 'attention'], [415, 'attention'],
-    [408, 'retry'], [429, 'retry'], [0, 'retry'], [500, 'retry'], [503, 'retry']] as const)('%i → %s', (status, outcome) => {
+  it.each([
+    [200, 'done'],
+    [201, 'done'],
+    [400, 'attention'],
+    [401, 'attention'],
+    [404, 'attention'],
+    [409, 'attention'],
+    [413, 'attention'],
+    [415, 'attention'],
+    [408, 'retry'],
+    [429, 'retry'],
+    [0, 'retry'],
+    [500, 'retry'],
+    [503, 'retry'],
+  ] as const)('%i → %s', (status, outcome) => {
     expect(outcomeOf(status)).toBe(outcome);
   });
 });

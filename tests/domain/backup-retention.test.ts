@@ -53,7 +53,14 @@ describe('backupsToKeep (hand-worked calendar)', () => {
   it('daily only: 5 days', () => {
     const keep = backupsToKeep(all, now, { daily: 5, weekly: 0 });
     // Days with backups, newest first: 20, 19, 18, 16 Mar, 8 Mar — plus the future one.
-    expect([...keep].sort()).toEqual(['2026-03-08T02:15:00Z', '2026-03-16T02:15:00Z', '2026-03-18T02:15:00Z', '2026-03-19T14:00:00Z', '2026-03-20T02:15:00Z', '2026-03-21T02:15:00Z']);
+    expect([...keep].sort()).toEqual([
+      '2026-03-08T02:15:00Z',
+      '2026-03-16T02:15:00Z',
+      '2026-03-18T02:15:00Z',
+      '2026-03-19T14:00:00Z',
+      '2026-03-20T02:15:00Z',
+      '2026-03-21T02:15:00Z',
+    ]);
   });
 
   it('an ISO week that spans the new year counts once (2026 has 53 ISO weeks)', () => {
@@ -66,7 +73,9 @@ describe('backupsToKeep (hand-worked calendar)', () => {
   it('days are counted in the time zone given (Pacific/Auckland is UTC+13 in January)', () => {
     // 2027-01-03T20:00Z is already 4 Jan 09:00 in Auckland, the same day as 2027-01-04T02:15Z (15:15 there).
     const list = ['2027-01-03T20:00:00Z', '2027-01-04T02:15:00Z'].map(b);
-    expect([...backupsToKeep(list, new Date('2027-01-05T00:00:00Z'), { daily: 2, weekly: 0 }, 'Pacific/Auckland')]).toEqual(['2027-01-04T02:15:00Z']);
+    expect([...backupsToKeep(list, new Date('2027-01-05T00:00:00Z'), { daily: 2, weekly: 0 }, 'Pacific/Auckland')]).toEqual([
+      '2027-01-04T02:15:00Z',
+    ]);
     expect(backupsToKeep(list, new Date('2027-01-05T00:00:00Z'), { daily: 2, weekly: 0 }).size).toBe(2);
   });
 });

@@ -2,13 +2,38 @@ import { describe, expect, it } from 'vitest';
 import { cautiousRates, relativeScatter } from '../../shared/domain/cautious-rates';
 import { fitWearRates, type GroundWearRate, type NormalWearObservation, type WearFit } from '../../shared/domain/wear-fit';
 
-const extra = { priorRateMmPerKm: null, siteOnlyRateMmPerKm: null, effectiveSiteWeight: null, sharesInspections: false, heldStandardErrorMmPerKm: null };
+const extra = {
+  priorRateMmPerKm: null,
+  siteOnlyRateMmPerKm: null,
+  effectiveSiteWeight: null,
+  sharesInspections: false,
+  heldStandardErrorMmPerKm: null,
+};
 const options = { probability: 0.9, minPredictedMm: 5, priorMargin: 0.5 };
 
 const fit = (over: Partial<WearFit> = {}): WearFit => ({
   rates: [
-    { ...extra, groundTypeId: 'a', rateMmPerKm: 0.02, standardErrorMmPerKm: 0.0006, observationCount: 40, heldAtZero: false, source: 'blended', siteWeight: 0.9 },
-    { ...extra, groundTypeId: 'b', rateMmPerKm: 0.05, standardErrorMmPerKm: null, observationCount: 0, heldAtZero: false, source: 'prior', siteWeight: 0, priorRateMmPerKm: 0.05 },
+    {
+      ...extra,
+      groundTypeId: 'a',
+      rateMmPerKm: 0.02,
+      standardErrorMmPerKm: 0.0006,
+      observationCount: 40,
+      heldAtZero: false,
+      source: 'blended',
+      siteWeight: 0.9,
+    },
+    {
+      ...extra,
+      groundTypeId: 'b',
+      rateMmPerKm: 0.05,
+      standardErrorMmPerKm: null,
+      observationCount: 0,
+      heldAtZero: false,
+      source: 'prior',
+      siteWeight: 0,
+      priorRateMmPerKm: 0.05,
+    },
   ],
   residualSdMm: 0.5,
   residualDof: 38,
@@ -21,9 +46,15 @@ describe('relative scatter of discs about the fit', () => {
   it('is the sample SD of relative residuals, ignoring small predicted wear', () => {
     // Hand-worked: ratios (11−10)/10 = 0.1, (9−10)/10 = −0.1, (20−20)/20 = 0 → mean 0,
     // sample SD = √((0.01 + 0.01 + 0)/2) = 0.1. The 1 mm prediction is below the 5 mm floor.
-    const sd = relativeScatter([
-      { measuredMm: 11, predictedMm: 10 }, { measuredMm: 9, predictedMm: 10 }, { measuredMm: 20, predictedMm: 20 }, { measuredMm: 3, predictedMm: 1 },
-    ], 5);
+    const sd = relativeScatter(
+      [
+        { measuredMm: 11, predictedMm: 10 },
+        { measuredMm: 9, predictedMm: 10 },
+        { measuredMm: 20, predictedMm: 20 },
+        { measuredMm: 3, predictedMm: 1 },
+      ],
+      5,
+    );
     expect(sd).toBeCloseTo(0.1, 12);
   });
 
@@ -56,7 +87,11 @@ describe('cautious rates', () => {
 
   describe('of a ground whose rate is held at 0', () => {
     // The held-at-0 example of wear-fit.test.ts (invented): unconstrained least squares gives b < 0.
-    const face = (wearMm: number, rolledKmByGround: Record<string, number>): NormalWearObservation => ({ wearMm, positionClass: 'face', rolledKmByGround });
+    const face = (wearMm: number, rolledKmByGround: Record<string, number>): NormalWearObservation => ({
+      wearMm,
+      positionClass: 'face',
+      rolledKmByGround,
+    });
     const held = [face(1.0, { a: 100 }), face(2.1, { a: 200 }), face(0.9, { a: 100, b: 100 }), face(0.4, { a: 50, b: 150 })];
     const faceOnly = { centre: 1, face: 1, gauge: 1 };
 
@@ -82,7 +117,16 @@ describe('cautious rates', () => {
     it('fall back to the largest cautious rate of the other grounds when nothing else is known', () => {
       // derived: a zero rate without prior or standard error takes the largest P90 of the others (as
       // the forecast does for unmapped ground), here the prior-only b: 0.05·1.5.
-      const zero: GroundWearRate = { ...extra, groundTypeId: 'c', rateMmPerKm: 0, standardErrorMmPerKm: null, observationCount: 2, heldAtZero: true, source: 'site', siteWeight: 1 };
+      const zero: GroundWearRate = {
+        ...extra,
+        groundTypeId: 'c',
+        rateMmPerKm: 0,
+        standardErrorMmPerKm: null,
+        observationCount: 2,
+        heldAtZero: true,
+        source: 'site',
+        siteWeight: 1,
+      };
       const withZero = fit({ rates: [...fit().rates, zero] });
       expect(cautiousRates(withZero, 0.04, options).c).toEqual({ p50MmPerKm: 0, p90MmPerKm: 0.05 * 1.5, cautiousSource: 'largest-other' });
       expect(cautiousRates(fit({ rates: [zero] }), 0.04, options).c).toEqual({ p50MmPerKm: 0, p90MmPerKm: 0, cautiousSource: 'none' });

@@ -9,7 +9,9 @@ import { describe, expect, it } from 'vitest';
 import { isCommonPassword } from '../../shared/common-passwords';
 import { newPasswordSchema } from '../../shared/schemas/password';
 
-const published: string[] = JSON.parse(readFileSync(createRequire(import.meta.url).resolve('@zxcvbn-ts/language-common/src/passwords.json'), 'utf8'));
+const published: string[] = JSON.parse(
+  readFileSync(createRequire(import.meta.url).resolve('@zxcvbn-ts/language-common/src/passwords.json'), 'utf8'),
+);
 
 describe('commonly used passwords', () => {
   it('refuses the long ones among the 10,000 most common (e.g. "1qaz2wsx3edc", a keyboard walk), whatever the case', () => {

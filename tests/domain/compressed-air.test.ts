@@ -64,9 +64,19 @@ describe('needsCompressedAir', () => {
 describe('COMPRESSED_AIR_CAUTION (DOMAIN.md §7)', () => {
   it('says indicative only, names the governing rules and the people, and disclaims decompression', () => {
     for (const phrase of [
-      'Indicative only', 'earth pressure', 'Work in Compressed Air Regulations 1996', 'BS 6164', '29 CFR 1926.803',
-      'Druckluftverordnung', 'ITA/BTS', 'EN 16191', 'EN 12110', 'approved procedure', 'competent supervisor',
-      'medical adviser', 'does not compute decompression schedules',
+      'Indicative only',
+      'earth pressure',
+      'Work in Compressed Air Regulations 1996',
+      'BS 6164',
+      '29 CFR 1926.803',
+      'Druckluftverordnung',
+      'ITA/BTS',
+      'EN 16191',
+      'EN 12110',
+      'approved procedure',
+      'competent supervisor',
+      'medical adviser',
+      'does not compute decompression schedules',
     ]) {
       expect(COMPRESSED_AIR_CAUTION).toContain(phrase);
     }

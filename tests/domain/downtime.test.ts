@@ -179,10 +179,7 @@ describe('event validation', () => {
   ];
 
   it('finds events ending before (or when) they start', () => {
-    expect(findEventsEndingBeforeStart([...events, ev('g', 'breakdown', '2026-03-10T15:00Z', '2026-03-10T15:00Z')])).toEqual([
-      'f',
-      'g',
-    ]);
+    expect(findEventsEndingBeforeStart([...events, ev('g', 'breakdown', '2026-03-10T15:00Z', '2026-03-10T15:00Z')])).toEqual(['f', 'g']);
   });
 
   it('reports which events overlap and by how much', () => {
@@ -200,7 +197,11 @@ describe('report weeks and uncovered standstills', () => {
     // derived: Sunday 2026-03-22 23:30 CET (22:30 UTC) is in ISO week 12; Monday 30 March 00:00 CEST (29 March 22:00 UTC)
     // starts week 14 (ISO 8601 weeks; EU summer-time rule as above).
     expect(isoWeeksTouching(new Date('2026-03-22T22:30:00Z'), new Date('2026-03-29T22:00:00Z'), ZONE)).toEqual(['2026-W12', '2026-W13']);
-    expect(isoWeeksTouching(new Date('2026-03-22T22:30:00Z'), new Date('2026-03-29T22:00:01Z'), ZONE)).toEqual(['2026-W12', '2026-W13', '2026-W14']);
+    expect(isoWeeksTouching(new Date('2026-03-22T22:30:00Z'), new Date('2026-03-29T22:00:01Z'), ZONE)).toEqual([
+      '2026-W12',
+      '2026-W13',
+      '2026-W14',
+    ]);
     // derived: 2026-12-31 is a Thursday, so 2027-01-03 (Sunday) still belongs to 2026-W53 (ISO 8601: week 1 holds the first Thursday).
     expect(isoWeeksTouching(new Date('2027-01-03T10:00:00Z'), new Date('2027-01-04T10:00:00Z'), ZONE)).toEqual(['2026-W53', '2027-W01']);
   });
@@ -208,8 +209,15 @@ describe('report weeks and uncovered standstills', () => {
   it('keeps the parts of a standstill no recorded event covers', () => {
     const at = (h: number) => new Date(Date.UTC(2026, 2, 2, h));
     // derived by hand: gap 00–10 h less events 02–04 and 03–05 (overlapping) and 08–12 leaves 00–02 and 05–08.
-    const parts = uncoveredParts({ start: at(0), end: at(10) }, [{ start: at(2), end: at(4) }, { start: at(3), end: at(5) }, { start: at(8), end: at(12) }]);
-    expect(parts).toEqual([{ start: at(0), end: at(2) }, { start: at(5), end: at(8) }]);
+    const parts = uncoveredParts({ start: at(0), end: at(10) }, [
+      { start: at(2), end: at(4) },
+      { start: at(3), end: at(5) },
+      { start: at(8), end: at(12) },
+    ]);
+    expect(parts).toEqual([
+      { start: at(0), end: at(2) },
+      { start: at(5), end: at(8) },
+    ]);
     expect(uncoveredParts({ start: at(0), end: at(10) }, [])).toEqual([{ start: at(0), end: at(10) }]);
     expect(uncoveredParts({ start: at(1), end: at(3) }, [{ start: at(0), end: at(4) }])).toEqual([]);
   });

@@ -225,7 +225,7 @@ describe('forecastChangeOut', () => {
     //      so the limit falls 15 m into the gap: chainage 1065.
     const f = forecastChangeOut(
       input({
-        wearNow: { lastMeasuredWearMm: 20.2876110, measuredAtChainageM: 1000, modelledSinceMm: { p50: 0, p90: 0 } },
+        wearNow: { lastMeasuredWearMm: 20.287611, measuredAtChainageM: 1000, modelledSinceMm: { p50: 0, p90: 0 } },
         geology: [
           { fromChainageM: 900, toChainageM: 1050, groundTypeId: 'sandstone' },
           { fromChainageM: 1100, toChainageM: 2000, groundTypeId: 'schist' },

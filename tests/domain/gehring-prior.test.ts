@@ -6,7 +6,13 @@ describe('gehringSpecificWearMgPerM', () => {
   it('matches the check values of DOMAIN.md §2', () => {
     // Check values derived from v_s = 0.74·CAI^1.93 (DOMAIN.md §2; Gehring, Felsbau 13(6) 1995,
     // formula and units from memory), stated to 3 decimals.
-    const checks: [number, number][] = [[1, 0.74], [2, 2.82], [3, 6.167], [4, 10.745], [5, 16.529]];
+    const checks: [number, number][] = [
+      [1, 0.74],
+      [2, 2.82],
+      [3, 6.167],
+      [4, 10.745],
+      [5, 16.529],
+    ];
     for (const [cai, mgPerM] of checks) expect(gehringSpecificWearMgPerM(cai)).toBeCloseTo(mgPerM, 3);
   });
 
@@ -37,7 +43,10 @@ describe('radialWearRateMmPerKm', () => {
     // derived: the rate is linear in the site factor and inversely proportional to the density.
     const base = gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20 });
     expect(gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, siteFactor: 1.5 })).toBeCloseTo(1.5 * base, 12);
-    expect(gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, steelDensityGPerCm3: 7.85 / 2 })).toBeCloseTo(2 * base, 12);
+    expect(gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, steelDensityGPerCm3: 7.85 / 2 })).toBeCloseTo(
+      2 * base,
+      12,
+    );
     expect(() => gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, siteFactor: -1 })).toThrow(RangeError);
     // A factor of 0 would claim the ground does not wear; the prior is switched off by its weight instead.
     expect(() => gehringPriorRateMmPerKm({ cai: 3, ringDiameterMm: 483, tipWidthMm: 20, siteFactor: 0 })).toThrow(RangeError);

@@ -7,11 +7,7 @@ function section(chainageFromM: number, chainageToM: number, groundTypeId: strin
   return { chainageFromM, chainageToM, groundTypeId, waterHeadM: null, stopAllowed: true, stopReason: null };
 }
 
-const longSection = [
-  section(0, 100, 'marl'),
-  section(100, 250, 'sandstone'),
-  section(250, 400, 'granite'),
-];
+const longSection = [section(0, 100, 'marl'), section(100, 250, 'sandstone'), section(250, 400, 'granite')];
 
 describe('validateGeologySections', () => {
   it('accepts a continuous long section', () => {

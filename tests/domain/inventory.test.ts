@@ -39,9 +39,7 @@ describe('safety stock and reorder point', () => {
   });
 
   it('rejects negative inputs', () => {
-    expect(() => safetyStockUnits({ meanDemandPerPeriod: 4, demandSdPerPeriod: -1, leadTimePeriods: 4 }, 1.65)).toThrow(
-      RangeError,
-    );
+    expect(() => safetyStockUnits({ meanDemandPerPeriod: 4, demandSdPerPeriod: -1, leadTimePeriods: 4 }, 1.65)).toThrow(RangeError);
   });
 });
 

@@ -6,15 +6,51 @@ const relativeError = (actual: number, expected: number) => Math.abs(actual / ex
 
 // NIST Statistical Reference Datasets, linear regression, "Norris" (DOMAIN.md §5), pairs as (y, x).
 const norrisYX: [number, number][] = [
-  [0.1, 0.2], [338.8, 337.4], [118.1, 118.2], [888.0, 884.6], [9.2, 10.1], [228.1, 226.5],
-  [668.5, 666.3], [998.5, 996.3], [449.1, 448.6], [778.9, 777.0], [559.2, 558.2], [0.3, 0.4],
-  [0.1, 0.6], [778.1, 775.5], [668.8, 666.9], [339.3, 338.0], [448.9, 447.5], [10.8, 11.6],
-  [557.7, 556.0], [228.3, 228.1], [998.0, 995.8], [888.8, 887.6], [119.6, 120.2], [0.3, 0.3],
-  [0.6, 0.3], [557.6, 556.8], [339.3, 339.1], [888.0, 887.2], [998.5, 999.0], [778.9, 779.0],
-  [10.2, 11.1], [117.6, 118.3], [228.9, 229.2], [668.4, 669.1], [449.2, 448.9], [0.2, 0.5],
+  [0.1, 0.2],
+  [338.8, 337.4],
+  [118.1, 118.2],
+  [888.0, 884.6],
+  [9.2, 10.1],
+  [228.1, 226.5],
+  [668.5, 666.3],
+  [998.5, 996.3],
+  [449.1, 448.6],
+  [778.9, 777.0],
+  [559.2, 558.2],
+  [0.3, 0.4],
+  [0.1, 0.6],
+  [778.1, 775.5],
+  [668.8, 666.9],
+  [339.3, 338.0],
+  [448.9, 447.5],
+  [10.8, 11.6],
+  [557.7, 556.0],
+  [228.3, 228.1],
+  [998.0, 995.8],
+  [888.8, 887.6],
+  [119.6, 120.2],
+  [0.3, 0.3],
+  [0.6, 0.3],
+  [557.6, 556.8],
+  [339.3, 339.1],
+  [888.0, 887.2],
+  [998.5, 999.0],
+  [778.9, 779.0],
+  [10.2, 11.1],
+  [117.6, 118.3],
+  [228.9, 229.2],
+  [668.4, 669.1],
+  [449.2, 448.9],
+  [0.2, 0.5],
 ];
 /** Norris certified values (NIST StRD, DOMAIN.md §5), 15 significant digits. */
-const norrisCertified = { b0: -0.262323073774029, sdB0: 0.232818234301152, b1: 1.00211681802045, sdB1: 4.29796848199937e-4, residualSd: 0.884796396144373 };
+const norrisCertified = {
+  b0: -0.262323073774029,
+  sdB0: 0.232818234301152,
+  b1: 1.00211681802045,
+  sdB1: 4.29796848199937e-4,
+  residualSd: 0.884796396144373,
+};
 
 /**
  * Ordinary least squares for the reference, written out here so it shares nothing with the code
@@ -24,7 +60,9 @@ const norrisCertified = { b0: -0.262323073774029, sdB0: 0.232818234301152, b1: 1
  */
 function referenceOls(design: number[][], response: number[]) {
   const p = design[0].length;
-  const xtx = Array.from({ length: p }, (_, j) => Array.from({ length: p }, (_, k) => design.reduce((sum, row) => sum + row[j] * row[k], 0)));
+  const xtx = Array.from({ length: p }, (_, j) =>
+    Array.from({ length: p }, (_, k) => design.reduce((sum, row) => sum + row[j] * row[k], 0)),
+  );
   const xty = Array.from({ length: p }, (_, j) => design.reduce((sum, row, i) => sum + row[j] * response[i], 0));
   // Augment [XᵀX | I | Xᵀy] and reduce the left block to I: the middle becomes (XᵀX)⁻¹, the right b.
   const m = xtx.map((row, j) => [...row, ...Array.from({ length: p }, (_, k) => (j === k ? 1 : 0)), xty[j]]);
@@ -65,12 +103,20 @@ describe('linearTrend', () => {
 
   it('gives no standard errors for two points and rejects a vertical line', () => {
     // derived: two points fit exactly, leaving n − 2 = 0 residual degrees of freedom.
-    const trend = linearTrend([[0, 1], [2, 5]]);
+    const trend = linearTrend([
+      [0, 1],
+      [2, 5],
+    ]);
     expect(trend.slope).toBeCloseTo(2, 12);
     expect(trend.intercept).toBeCloseTo(1, 12);
     expect(trend.residualSd).toBeNull();
     expect(trend.slopeStandardError).toBeNull();
-    expect(() => linearTrend([[3, 1], [3, 2]])).toThrow(RangeError);
+    expect(() =>
+      linearTrend([
+        [3, 1],
+        [3, 2],
+      ]),
+    ).toThrow(RangeError);
   });
 });
 
@@ -91,7 +137,10 @@ describe('fitNonNegative', () => {
     // NIST StRD NoInt1 (DOMAIN.md §5): y = B1·x, x = 60…70, y = 130…140. One coefficient, positive,
     // so the constraint is inactive and NNLS is the certified OLS fit.
     const x = Array.from({ length: 11 }, (_, i) => 60 + i);
-    const fit = fitNonNegative(x.map((v) => [v]), x.map((v) => v + 70));
+    const fit = fitNonNegative(
+      x.map((v) => [v]),
+      x.map((v) => v + 70),
+    );
     expect(relativeError(fit.coefficients[0], 2.07438016528926)).toBeLessThan(1e-12);
     expect(relativeError(fit.standardErrors[0]!, 1.65289256198347e-2)).toBeLessThan(1e-12);
     expect(relativeError(fit.residualSd!, 3.56753034006338)).toBeLessThan(1e-12);
@@ -102,7 +151,10 @@ describe('fitNonNegative', () => {
     // Norris's certified intercept is negative; the column −1 turns it into +0.262323… so both
     // coefficients are free and the NNLS fit must equal the certified OLS one (signs flipped back).
     // Tolerance 1e-9: the covariance comes from XᵀX, whose condition number here is ≈ 1e6.
-    const fit = fitNonNegative(norrisYX.map(([, x]) => [-1, x]), norrisYX.map(([y]) => y));
+    const fit = fitNonNegative(
+      norrisYX.map(([, x]) => [-1, x]),
+      norrisYX.map(([y]) => y),
+    );
     expect(relativeError(-fit.coefficients[0], norrisCertified.b0)).toBeLessThan(1e-9);
     expect(relativeError(fit.coefficients[1], norrisCertified.b1)).toBeLessThan(1e-12);
     expect(relativeError(fit.standardErrors[0]!, norrisCertified.sdB0)).toBeLessThan(1e-9);
@@ -114,7 +166,14 @@ describe('fitNonNegative', () => {
   it('equals ordinary least squares when every coefficient comes out positive', () => {
     // derived: with no constraint active NNLS is OLS; the reference is referenceOls above
     // (normal equations by hand-written Gauss–Jordan, no library). Invented data.
-    const design = [[10, 0], [20, 5], [5, 30], [0, 40], [15, 15], [8, 2]];
+    const design = [
+      [10, 0],
+      [20, 5],
+      [5, 30],
+      [0, 40],
+      [15, 15],
+      [8, 2],
+    ];
     const response = [1.3, 2.6, 2.0, 2.1, 2.4, 1.0];
     const fit = fitNonNegative(design, response);
     const ols = referenceOls(design, response);
@@ -129,13 +188,22 @@ describe('fitNonNegative', () => {
     // derived: y = 2·x₁ − 1·x₂ exactly, so OLS gives b₂ < 0 (checked with referenceOls); NNLS
     // (Lawson & Hanson 1974, DOMAIN.md §5) sets b₂ = 0 and b₁ is the one-column fit
     // Σx₁y / Σx₁² of y on x₁ alone, checked with referenceOls on that column.
-    const design = [[1, 1], [2, 1], [3, 2], [4, 1], [5, 3]];
+    const design = [
+      [1, 1],
+      [2, 1],
+      [3, 2],
+      [4, 1],
+      [5, 3],
+    ];
     const response = design.map(([a, b]) => 2 * a - b);
     expect(referenceOls(design, response).b[1]).toBeLessThan(0);
     const fit = fitNonNegative(design, response);
     expect(fit.coefficients[1]).toBe(0);
     expect(fit.atBound).toEqual([false, true]);
-    const alone = referenceOls(design.map(([a]) => [a]), response);
+    const alone = referenceOls(
+      design.map(([a]) => [a]),
+      response,
+    );
     expect(relativeError(fit.coefficients[0], alone.b[0])).toBeLessThan(1e-12);
     expect(fit.residualDof).toBe(4);
     expect(fit.standardErrors[1]).toBeNull();
@@ -144,7 +212,15 @@ describe('fitNonNegative', () => {
   it('fixes a coefficient known only from its prior without spending residual dof on it', () => {
     // derived: column 2 is zero in every observation row, so its only row is the prior
     // (weight 1, value 0.5) and b₂ = 0.5 exactly; column 1 is y = 2x exactly.
-    const fit = fitNonNegative([[1, 0], [2, 0], [3, 0]], [2, 4, 6], { values: [0, 0.5], weights: [0, 1] });
+    const fit = fitNonNegative(
+      [
+        [1, 0],
+        [2, 0],
+        [3, 0],
+      ],
+      [2, 4, 6],
+      { values: [0, 0.5], weights: [0, 1] },
+    );
     expect(fit.coefficients[0]).toBeCloseTo(2, 14);
     expect(fit.coefficients[1]).toBeCloseTo(0.5, 14);
     expect(fit.informed).toEqual([true, false]);

@@ -1,8 +1,18 @@
 import { describe, expect, it } from 'vitest';
 import type { GeologySection } from '../../shared/domain/geology';
 import {
-  revolutionsByGround, rolledKm, rolledKmByStroke, rolledMPerAdvanceM, rolledMPerRevolution, strokeRevolutions, sumRolledKmByPeriod, sumRolledKmForPeriods,
-  type CutterheadPosition, type FittedPeriod, type PeriodRolledKm, type Stroke,
+  revolutionsByGround,
+  rolledKm,
+  rolledKmByStroke,
+  rolledMPerAdvanceM,
+  rolledMPerRevolution,
+  strokeRevolutions,
+  sumRolledKmByPeriod,
+  sumRolledKmForPeriods,
+  type CutterheadPosition,
+  type FittedPeriod,
+  type PeriodRolledKm,
+  type Stroke,
 } from '../../shared/domain/rolled-distance';
 
 // All data invented (no real project).
@@ -10,17 +20,30 @@ function section(chainageFromM: number, chainageToM: number, groundTypeId: strin
   return { chainageFromM, chainageToM, groundTypeId, waterHeadM: null, stopAllowed: true, stopReason: null };
 }
 
-function stroke(id: string, chainageStartM: number, chainageEndM: number, revolutions: number | null, penetrationMmPerRev: number | null, hour = 1): Stroke {
+function stroke(
+  id: string,
+  chainageStartM: number,
+  chainageEndM: number,
+  revolutions: number | null,
+  penetrationMmPerRev: number | null,
+  hour = 1,
+): Stroke {
   const hh = String(hour).padStart(2, '0');
   return {
-    id, ringNumber: Number(id.replace(/\D/g, '')) || 0, chainageStartM, chainageEndM, revolutions, penetrationMmPerRev,
-    startTime: `2027-03-01T${hh}:00:00Z`, endTime: `2027-03-01T${hh}:50:00Z`,
+    id,
+    ringNumber: Number(id.replace(/\D/g, '')) || 0,
+    chainageStartM,
+    chainageEndM,
+    revolutions,
+    penetrationMmPerRev,
+    startTime: `2027-03-01T${hh}:00:00Z`,
+    endTime: `2027-03-01T${hh}:50:00Z`,
   };
 }
 
 describe('rolled distance per revolution and per metre (DOMAIN.md §1, derived from 2πr)', () => {
   it('matches the worked check for r = 3.0 m', () => {
-    expect(rolledMPerRevolution(3.0)).toBeCloseTo(18.850, 3); // DOMAIN.md §1, derived from 2πr
+    expect(rolledMPerRevolution(3.0)).toBeCloseTo(18.85, 3); // DOMAIN.md §1, derived from 2πr
     expect(rolledMPerAdvanceM(3.0, 8)).toBeCloseTo(2356.19, 2); // DOMAIN.md §1, derived from 2πr·1000/p
     expect(rolledMPerAdvanceM(3.0, 5)).toBeCloseTo(3769.91, 2); // DOMAIN.md §1, derived from 2πr·1000/p
   });
@@ -57,8 +80,11 @@ describe('rolledKmByStroke', () => {
     { id: 'centre-1', trackRadiusMm: 250, discsPerPosition: 2 },
     { id: 'single-250', trackRadiusMm: 250, discsPerPosition: 1 },
   ];
-  const km = (rows: { positionId: string; groundTypeId: string | null; rolledKm: number }[], positionId: string, groundTypeId: string | null) =>
-    rows.find((r) => r.positionId === positionId && r.groundTypeId === groundTypeId)?.rolledKm;
+  const km = (
+    rows: { positionId: string; groundTypeId: string | null; rolledKm: number }[],
+    positionId: string,
+    groundTypeId: string | null,
+  ) => rows.find((r) => r.positionId === positionId && r.groundTypeId === groundTypeId)?.rolledKm;
 
   // Hand-worked: stroke 109.0 → 110.5 m, 300 measured revolutions. Advance 1.5 m: 1.0 m in
   // sandstone, 0.5 m in granite, so 200 and 100 revolutions. At r = 2.0 m one revolution rolls

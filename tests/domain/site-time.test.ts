@@ -5,17 +5,29 @@
  * ISO 8601 (2026-03-29, a Sunday, is in week 13).
  */
 import { describe, expect, test } from 'vitest';
-import { addSiteDays, formatSiteDateTime, fromSiteInput, isoWithSiteOffset, siteDay, siteIsoWeek, siteWallTimeToInstant } from '../../shared/site-time';
+import {
+  addSiteDays,
+  formatSiteDateTime,
+  fromSiteInput,
+  isoWithSiteOffset,
+  siteDay,
+  siteIsoWeek,
+  siteWallTimeToInstant,
+} from '../../shared/site-time';
 
 const ZONE = 'Europe/Zurich';
 
 describe('site time (IANA tzdb, EU directive 2000/84/EC)', () => {
   test('a wall time skipped by the spring change does not exist', () => {
     expect(siteWallTimeToInstant({ year: 2026, month: 3, day: 29, hour: 2, minute: 30 }, ZONE)).toBeNull();
-    expect(siteWallTimeToInstant({ year: 2026, month: 3, day: 29, hour: 3, minute: 30 }, ZONE)!.toISOString()).toBe('2026-03-29T01:30:00.000Z');
+    expect(siteWallTimeToInstant({ year: 2026, month: 3, day: 29, hour: 3, minute: 30 }, ZONE)!.toISOString()).toBe(
+      '2026-03-29T01:30:00.000Z',
+    );
   });
   test('an autumn wall time that happens twice resolves to standard time', () => {
-    expect(siteWallTimeToInstant({ year: 2026, month: 10, day: 25, hour: 2, minute: 30 }, ZONE)!.toISOString()).toBe('2026-10-25T01:30:00.000Z');
+    expect(siteWallTimeToInstant({ year: 2026, month: 10, day: 25, hour: 2, minute: 30 }, ZONE)!.toISOString()).toBe(
+      '2026-10-25T01:30:00.000Z',
+    );
   });
   test('a date that is not in the calendar is refused', () => {
     expect(siteWallTimeToInstant({ year: 2026, month: 2, day: 30 }, ZONE)).toBeNull();

@@ -30,7 +30,8 @@ function wearAddedMm(stretches: WearStretch[], aheadM: number): number {
   return mm;
 }
 
-const aheadOf = (input: StopPlanInput, chainageM: number) => (chainageM - input.currentChainageM) * (input.direction === 'increasing' ? 1 : -1);
+const aheadOf = (input: StopPlanInput, chainageM: number) =>
+  (chainageM - input.currentChainageM) * (input.direction === 'increasing' ? 1 : -1);
 
 /** Usable stop places as metres ahead, in order. */
 function placesAhead(input: StopPlanInput) {
@@ -129,7 +130,10 @@ function replay(input: StopPlanInput, plan: StopPlan) {
 }
 
 const everyM = (fromM: number, toM: number, stepM: number, compressedAirAt: (aheadM: number) => boolean = () => false) =>
-  Array.from({ length: Math.round((toM - fromM) / stepM) + 1 }, (_, k) => fromM + k * stepM).map((x) => ({ chainageM: 1000 + x, compressedAir: compressedAirAt(x) }));
+  Array.from({ length: Math.round((toM - fromM) / stepM) + 1 }, (_, k) => fromM + k * stepM).map((x) => ({
+    chainageM: 1000 + x,
+    compressedAir: compressedAirAt(x),
+  }));
 
 function base(overrides: Partial<StopPlanInput>): StopPlanInput {
   return {
@@ -147,7 +151,11 @@ function base(overrides: Partial<StopPlanInput>): StopPlanInput {
 }
 
 const pos = (positionId: string, positionClass: PositionClass, wearNowMm: number, limitMm: number, wearMmPerM: number) => ({
-  positionId, positionClass, wearNowMm, limitMm, wearStretches: [{ fromAheadM: 0, wearMmPerM }],
+  positionId,
+  positionClass,
+  wearNowMm,
+  limitMm,
+  wearStretches: [{ fromAheadM: 0, wearMmPerM }],
 });
 
 const stopsOf = (plan: StopPlan) => plan.stops.map((s) => [s.aheadM, s.changes.map((c) => c.positionId).join(' ')]);
@@ -160,7 +168,12 @@ describe('planStops: hand-worked cases', () => {
     const input = base({ horizonM: 300, stopPlaces: everyM(0, 300, 10), positions: [pos('F1', 'face', 5, 10, 0.125)] });
     const r = planStops(input);
     if (!r.feasible) throw new Error('expected a plan');
-    expect(stopsOf(r.optimised)).toEqual([[40, 'F1'], [120, 'F1'], [200, 'F1'], [280, 'F1']]);
+    expect(stopsOf(r.optimised)).toEqual([
+      [40, 'F1'],
+      [120, 'F1'],
+      [200, 'F1'],
+      [280, 'F1'],
+    ]);
     expect(r.optimised.cost).toEqual({ stopH: 20, changeH: 4, wastedRingLifeH: 0, totalH: 24 });
     expect(r.practice!.cost.totalH).toBe(24); // one disc: the practice rule changes it at its limit too
     replay(input, r.optimised);
@@ -176,9 +189,16 @@ describe('planStops: hand-worked cases', () => {
     if (!r.feasible) throw new Error('expected a plan');
     expect(stopsOf(r.optimised)).toEqual([[40, 'A B']]);
     expect(r.optimised.cost.totalH).toBeCloseTo(7.5, 12);
-    expect(r.optimised.stops[0].changes.find((c) => c.positionId === 'B')).toEqual({ positionId: 'B', wearAtChangeMm: 15, unusedWearMm: 5 });
+    expect(r.optimised.stops[0].changes.find((c) => c.positionId === 'B')).toEqual({
+      positionId: 'B',
+      wearAtChangeMm: 15,
+      unusedWearMm: 5,
+    });
     // Practice rule (80 %): at 40 B carries 15 of 20 mm (75 %), so it stays and needs its own stop.
-    expect(stopsOf(r.practice!)).toEqual([[40, 'A'], [60, 'B']]);
+    expect(stopsOf(r.practice!)).toEqual([
+      [40, 'A'],
+      [60, 'B'],
+    ]);
     expect(r.practice!.cost.totalH).toBeCloseTo(12, 12);
     replay(input, r.optimised);
     replay(input, r.practice!);
@@ -190,7 +210,11 @@ describe('planStops: hand-worked cases', () => {
     // practice rule's plan). At 30: 5 h + 2 h + (15 − 11.25) mm × 0.2 = 7.75 h. A new ring (60 m) lasts to 80 m.
     const input = base({
       horizonM: 80,
-      stopPlaces: [{ chainageM: 1030, compressedAir: false }, { chainageM: 1040, compressedAir: true }, { chainageM: 1070, compressedAir: false }],
+      stopPlaces: [
+        { chainageM: 1030, compressedAir: false },
+        { chainageM: 1040, compressedAir: true },
+        { chainageM: 1070, compressedAir: false },
+      ],
       positions: [pos('G1', 'gauge', 3.75, 15, 0.25)],
       wastedRingLifeHPerMm: 0.2,
     });
@@ -217,9 +241,15 @@ describe('planStops: hand-worked cases', () => {
     });
     const r = planStops(input);
     if (!r.feasible) throw new Error('expected a plan');
-    expect(stopsOf(r.optimised)).toEqual([[10, 'A'], [25, 'A B']]);
+    expect(stopsOf(r.optimised)).toEqual([
+      [10, 'A'],
+      [25, 'A B'],
+    ]);
     expect(r.optimised.cost.totalH).toBeCloseTo(25.25, 12);
-    expect(stopsOf(r.practice!)).toEqual([[10, 'A'], [25, 'A B']]);
+    expect(stopsOf(r.practice!)).toEqual([
+      [10, 'A'],
+      [25, 'A B'],
+    ]);
     expect(bruteForceMinH(input)).toBeCloseTo(25.25, 12);
   });
 
@@ -228,7 +258,18 @@ describe('planStops: hand-worked cases', () => {
     // 50 + 5 / 0.5 = 60 m. A new ring fitted at 60 reaches 15 mm at 90 m, past the 80 m horizon.
     const input = base({
       horizonM: 80,
-      positions: [{ positionId: 'F', positionClass: 'face', wearNowMm: 5, limitMm: 15, wearStretches: [{ fromAheadM: 0, wearMmPerM: 0.1 }, { fromAheadM: 50, wearMmPerM: 0.5 }] }],
+      positions: [
+        {
+          positionId: 'F',
+          positionClass: 'face',
+          wearNowMm: 5,
+          limitMm: 15,
+          wearStretches: [
+            { fromAheadM: 0, wearMmPerM: 0.1 },
+            { fromAheadM: 50, wearMmPerM: 0.5 },
+          ],
+        },
+      ],
     });
     const r = planStops(input);
     if (!r.feasible) throw new Error('expected a plan');
@@ -253,14 +294,24 @@ describe('planStops: hand-worked cases', () => {
 
   it('plans no stop when every ring lasts the horizon', () => {
     const r = planStops(base({ positions: [pos('A', 'face', 0, 25, 0.2)] })); // 0.2 × 100 = 20 mm < 25
-    expect(r).toMatchObject({ feasible: true, optimised: { stops: [], cost: { totalH: 0 } }, practice: { stops: [] }, certificate: { proven: true, gap: 0 } });
+    expect(r).toMatchObject({
+      feasible: true,
+      optimised: { stops: [], cost: { totalH: 0 } },
+      practice: { stops: [] },
+      certificate: { proven: true, gap: 0 },
+    });
   });
 });
 
 describe('planStops: infeasible instances', () => {
   it('reports a ring due before the first allowed place', () => {
     // derived: (10 − 5) / 1 = due at 5 m; the first place is at 8 m.
-    const r = planStops(base({ stopPlaces: [1008, 1020].map((chainageM) => ({ chainageM, compressedAir: false })), positions: [pos('A', 'face', 5, 10, 1), pos('B', 'face', 0, 25, 0.1)] }));
+    const r = planStops(
+      base({
+        stopPlaces: [1008, 1020].map((chainageM) => ({ chainageM, compressedAir: false })),
+        positions: [pos('A', 'face', 5, 10, 1), pos('B', 'face', 0, 25, 0.1)],
+      }),
+    );
     expect(r.feasible).toBe(false);
     if (r.feasible) return;
     expect(r.problems).toHaveLength(1);
@@ -270,14 +321,25 @@ describe('planStops: infeasible instances', () => {
 
   it('reports a new ring that cannot reach the next place', () => {
     // derived: due at 10 m, changed there; the new ring lasts 10 m (due at 20) but the next place is at 25.
-    const r = planStops(base({ horizonM: 30, stopPlaces: [1010, 1025].map((chainageM) => ({ chainageM, compressedAir: false })), positions: [pos('A', 'face', 0, 10, 1)] }));
+    const r = planStops(
+      base({
+        horizonM: 30,
+        stopPlaces: [1010, 1025].map((chainageM) => ({ chainageM, compressedAir: false })),
+        positions: [pos('A', 'face', 0, 10, 1)],
+      }),
+    );
     if (r.feasible) throw new Error('expected infeasible');
     expect(r.problems[0]).toMatchObject({ positionId: 'A', ringNumber: 1, dueAheadM: 20 });
     expect(r.problems[0].reason).toContain('the ring fitted at 10.0 m ahead');
   });
 
   it('reports a ring already past its limit, and a ring due with no place left in the horizon', () => {
-    const r = planStops(base({ stopPlaces: [{ chainageM: 1000, compressedAir: false }], positions: [pos('A', 'face', 12, 10, 0.1), pos('B', 'face', 0, 10, 0.2)] }));
+    const r = planStops(
+      base({
+        stopPlaces: [{ chainageM: 1000, compressedAir: false }],
+        positions: [pos('A', 'face', 12, 10, 0.1), pos('B', 'face', 0, 10, 0.2)],
+      }),
+    );
     if (r.feasible) throw new Error('expected infeasible');
     expect(r.problems.map((p) => p.positionId)).toEqual(['A', 'B']);
     expect(r.problems[0].reason).toContain('already past its limit');
@@ -288,7 +350,9 @@ describe('planStops: infeasible instances', () => {
 
   it('rejects malformed input', () => {
     expect(() => planStops(base({ horizonM: 0 }))).toThrow(RangeError);
-    expect(() => planStops(base({ positions: [{ ...pos('A', 'face', 0, 10, 0.1), wearStretches: [{ fromAheadM: 5, wearMmPerM: 0.1 }] }] }))).toThrow(RangeError);
+    expect(() =>
+      planStops(base({ positions: [{ ...pos('A', 'face', 0, 10, 0.1), wearStretches: [{ fromAheadM: 5, wearMmPerM: 0.1 }] }] })),
+    ).toThrow(RangeError);
     expect(() => planStops(base({ freeAirStopH: -1 }))).toThrow(RangeError);
   });
 });
@@ -300,7 +364,10 @@ function randomInstance(rng: () => number): StopPlanInput {
   const sign = direction === 'increasing' ? 1 : -1;
   const currentChainageM = 2000 + 3000 * rng();
   const m = 10 + Math.floor(21 * rng());
-  const stopPlaces = Array.from({ length: m }, () => ({ chainageM: currentChainageM + sign * horizonM * rng(), compressedAir: rng() < 0.3 }));
+  const stopPlaces = Array.from({ length: m }, () => ({
+    chainageM: currentChainageM + sign * horizonM * rng(),
+    compressedAir: rng() < 0.3,
+  }));
   stopPlaces.push({ chainageM: currentChainageM - sign * 5, compressedAir: false }); // behind the machine: not usable
   const classes: PositionClass[] = ['centre', 'face', 'gauge'];
   const positions = Array.from({ length: 2 + Math.floor(4 * rng()) }, (_, i) => {
@@ -317,7 +384,12 @@ function randomInstance(rng: () => number): StopPlanInput {
   });
   const freeAirStopH = 2 + 6 * rng();
   return {
-    currentChainageM, direction, horizonM, positions, stopPlaces, freeAirStopH,
+    currentChainageM,
+    direction,
+    horizonM,
+    positions,
+    stopPlaces,
+    freeAirStopH,
     compressedAirStopH: freeAirStopH + 12 * rng(),
     changeHByClass: { centre: 0.5 + 1.5 * rng(), face: 0.5 + rng(), gauge: 0.5 + 2 * rng() },
     wastedRingLifeHPerMm: 0.3 * rng(),
@@ -418,9 +490,16 @@ describe('comparison rules', () => {
     });
     const r = planStops(input, { rules: { changeShare: 0.8, intervalM: 50 } });
     if (!r.feasible) throw new Error('expected a plan');
-    expect(stopsOf(r.practice!)).toEqual([[40, 'A B'], [120, 'A C']]);
+    expect(stopsOf(r.practice!)).toEqual([
+      [40, 'A B'],
+      [120, 'A C'],
+    ]);
     expect(r.practice!.cost.totalH).toBeCloseTo(14.7, 9);
-    expect(stopsOf(r.fixedInterval!)).toEqual([[40, 'A B'], [100, 'A'], [150, 'C']]);
+    expect(stopsOf(r.fixedInterval!)).toEqual([
+      [40, 'A B'],
+      [100, 'A'],
+      [150, 'C'],
+    ]);
     expect(r.fixedInterval!.cost.totalH).toBeCloseTo(19.9, 9);
     replay(input, r.practice!);
     replay(input, r.fixedInterval!);

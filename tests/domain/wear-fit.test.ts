@@ -42,7 +42,12 @@ describe('fitWearRates', () => {
     // derived: wear = factor(class) · (0.012·km_granite + 0.030·km_schist), invented exposures.
     const rates = { granite: 0.012, schist: 0.03 };
     const exposures: [NormalWearObservation['positionClass'], number, number][] = [
-      ['face', 120, 0], ['face', 40, 80], ['gauge', 60, 60], ['centre', 0, 150], ['gauge', 200, 10], ['centre', 90, 30],
+      ['face', 120, 0],
+      ['face', 40, 80],
+      ['gauge', 60, 60],
+      ['centre', 0, 150],
+      ['gauge', 200, 10],
+      ['centre', 90, 30],
     ];
     const observations = exposures.map(([positionClass, granite, schist]) => ({
       positionClass,
@@ -68,7 +73,15 @@ describe('fitWearRates', () => {
       face(0.4, { a: 50, b: 150 }),
     ];
     // Unconstrained least squares (ml-matrix solve) gives rate_b ≈ −0.00096 mm/km.
-    const ols = solve(new Matrix([[100, 0], [200, 0], [100, 100], [50, 150]]), Matrix.columnVector([1.0, 2.1, 0.9, 0.4]));
+    const ols = solve(
+      new Matrix([
+        [100, 0],
+        [200, 0],
+        [100, 100],
+        [50, 150],
+      ]),
+      Matrix.columnVector([1.0, 2.1, 0.9, 0.4]),
+    );
     expect(ols.get(1, 0)).toBeLessThan(0);
 
     const fit = fitWearRates(observations, { classFactors: faceOnly });
@@ -116,11 +129,17 @@ describe('fitWearRates', () => {
     });
 
     it('marks a ground without a prior as site data next to a prior-only ground', () => {
-      const fit = fitWearRates(siteData(3).map((o) => face(o.wearMm, { basalt: o.rolledKmByGround.granite })), {
-        classFactors: faceOnly,
-        prior: prior(5),
-      });
-      expect(fit.rates.map((r) => [r.groundTypeId, r.source])).toEqual([['basalt', 'site'], ['granite', 'prior']]);
+      const fit = fitWearRates(
+        siteData(3).map((o) => face(o.wearMm, { basalt: o.rolledKmByGround.granite })),
+        {
+          classFactors: faceOnly,
+          prior: prior(5),
+        },
+      );
+      expect(fit.rates.map((r) => [r.groundTypeId, r.source])).toEqual([
+        ['basalt', 'site'],
+        ['granite', 'prior'],
+      ]);
       expect(fit.rates[0].rateMmPerKm).toBeCloseTo(siteRate, 14);
       expect(fit.rates[1].rateMmPerKm).toBeCloseTo(priorRate, 14);
       // derived: the site ground has a measured scatter, the prior-only ground has none.
@@ -136,23 +155,50 @@ describe('fitWearRates', () => {
     // Kuhn–Tucker conditions). Plain arithmetic; the 2×2 normal equations by Cramer's rule.
     const nnls2 = (rows: [number, number][], y: number[]): [number, number] => {
       const s = (f: (r: [number, number], yi: number) => number) => rows.reduce((sum, r, i) => sum + f(r, y[i]), 0);
-      const saa = s(([a]) => a * a), sab = s(([a, b]) => a * b), sbb = s(([, b]) => b * b);
-      const say = s(([a], yi) => a * yi), sby = s(([, b], yi) => b * yi);
+      const saa = s(([a]) => a * a),
+        sab = s(([a, b]) => a * b),
+        sbb = s(([, b]) => b * b);
+      const say = s(([a], yi) => a * yi),
+        sby = s(([, b], yi) => b * yi);
       const det = saa * sbb - sab * sab;
-      const candidates: [number, number][] = [[0, 0], [say / saa, 0], [0, sby / sbb], [(say * sbb - sby * sab) / det, (saa * sby - sab * say) / det]];
+      const candidates: [number, number][] = [
+        [0, 0],
+        [say / saa, 0],
+        [0, sby / sbb],
+        [(say * sbb - sby * sab) / det, (saa * sby - sab * say) / det],
+      ];
       const sse = ([ra, rb]: [number, number]) => s(([a, b], yi) => (yi - ra * a - rb * b) ** 2);
       return candidates.filter(([ra, rb]) => ra >= 0 && rb >= 0).sort((p, q) => sse(p) - sse(q))[0];
     };
-    const shared: [number, number, number][] = [[1.0, 100, 0], [2.1, 200, 0], [3.0, 100, 100], [3.9, 50, 150]]; // invented
-    const held: [number, number, number][] = [[1.0, 100, 0], [2.1, 200, 0], [0.9, 100, 100], [0.4, 50, 150]]; // invented; b goes negative unconstrained
+    const shared: [number, number, number][] = [
+      [1.0, 100, 0],
+      [2.1, 200, 0],
+      [3.0, 100, 100],
+      [3.9, 50, 150],
+    ]; // invented
+    const held: [number, number, number][] = [
+      [1.0, 100, 0],
+      [2.1, 200, 0],
+      [0.9, 100, 100],
+      [0.4, 50, 150],
+    ]; // invented; b goes negative unconstrained
     const asObservations = (data: [number, number, number][]) => data.map(([wear, a, b]) => face(wear, { a, b }));
     // Invented prior rates for the two grounds and a third, uninspected one (as from a CAI).
     const priors = { a: 0.03, b: 0.005, c: 0.012 };
 
-    for (const [name, data] of [['both rates free', shared], ['one rate held at 0', held]] as const) {
+    for (const [name, data] of [
+      ['both rates free', shared],
+      ['one rate held at 0', held],
+    ] as const) {
       it(`gives exactly the site-only NNLS fit with weight 0 (${name})`, () => {
-        const [ra, rb] = nnls2(data.map(([, a, b]) => [a, b]), data.map(([wear]) => wear));
-        const fit = fitWearRates(asObservations(data), { classFactors: faceOnly, prior: { rateMmPerKmByGround: priors, strengthObservations: 0 } });
+        const [ra, rb] = nnls2(
+          data.map(([, a, b]) => [a, b]),
+          data.map(([wear]) => wear),
+        );
+        const fit = fitWearRates(asObservations(data), {
+          classFactors: faceOnly,
+          prior: { rateMmPerKmByGround: priors, strengthObservations: 0 },
+        });
         const [a, b, c] = fit.rates;
         expect(relativeError(a.rateMmPerKm, ra)).toBeLessThan(1e-12);
         if (rb === 0) expect(b.rateMmPerKm).toBe(0);
@@ -162,13 +208,25 @@ describe('fitWearRates', () => {
         expect([a.siteOnlyRateMmPerKm, b.siteOnlyRateMmPerKm]).toEqual([a.rateMmPerKm, b.rateMmPerKm]);
         expect([a.priorRateMmPerKm, b.priorRateMmPerKm]).toEqual([0.03, 0.005]);
         // derived: nothing to blend for the uninspected ground, so it keeps its prior.
-        expect(c).toMatchObject({ groundTypeId: 'c', source: 'prior', rateMmPerKm: 0.012, siteOnlyRateMmPerKm: null, effectiveSiteWeight: 0 });
+        expect(c).toMatchObject({
+          groundTypeId: 'c',
+          source: 'prior',
+          rateMmPerKm: 0.012,
+          siteOnlyRateMmPerKm: null,
+          effectiveSiteWeight: 0,
+        });
       });
     }
 
     it('reports the site-only rate beside the blended one', () => {
-      const [ra, rb] = nnls2(shared.map(([, a, b]) => [a, b]), shared.map(([wear]) => wear));
-      const fit = fitWearRates(asObservations(shared), { classFactors: faceOnly, prior: { rateMmPerKmByGround: priors, strengthObservations: 5 } });
+      const [ra, rb] = nnls2(
+        shared.map(([, a, b]) => [a, b]),
+        shared.map(([wear]) => wear),
+      );
+      const fit = fitWearRates(asObservations(shared), {
+        classFactors: faceOnly,
+        prior: { rateMmPerKmByGround: priors, strengthObservations: 5 },
+      });
       expect(fit.rates.map((r) => r.source)).toEqual(['blended', 'blended', 'prior']);
       expect(relativeError(fit.rates[0].siteOnlyRateMmPerKm!, ra)).toBeLessThan(1e-12);
       expect(relativeError(fit.rates[1].siteOnlyRateMmPerKm!, rb)).toBeLessThan(1e-12);
@@ -209,18 +267,27 @@ describe('fitWearRates', () => {
       const n0 = 5;
       const rows = shared.map(([, a, b]) => [a, b] as [number, number]);
       const y = shared.map(([wear]) => wear);
-      const meanSq = (j: 0 | 1) => { const xs = rows.map((r) => r[j]).filter((x) => x > 0); return xs.reduce((t, x) => t + x * x, 0) / xs.length; };
+      const meanSq = (j: 0 | 1) => {
+        const xs = rows.map((r) => r[j]).filter((x) => x > 0);
+        return xs.reduce((t, x) => t + x * x, 0) / xs.length;
+      };
       const [a2, b2] = [n0 * meanSq(0), n0 * meanSq(1)];
       const sum = (f: (r: [number, number], yi: number) => number) => rows.reduce((t, r, i) => t + f(r, y[i]), 0);
-      const m11 = sum(([a]) => a * a) + a2, m12 = sum(([a, b]) => a * b), m22 = sum(([, b]) => b * b) + b2;
-      const v1 = sum(([a], yi) => a * yi) + a2 * p.a, v2 = sum(([, b], yi) => b * yi) + b2 * p.b;
+      const m11 = sum(([a]) => a * a) + a2,
+        m12 = sum(([a, b]) => a * b),
+        m22 = sum(([, b]) => b * b) + b2;
+      const v1 = sum(([a], yi) => a * yi) + a2 * p.a,
+        v2 = sum(([, b], yi) => b * yi) + b2 * p.b;
       const det = m11 * m22 - m12 * m12;
       const blended = { a: (v1 * m22 - v2 * m12) / det, b: (m11 * v2 - m12 * v1) / det };
       const [sa, sb] = nnls2(rows, y);
       const quotient = { a: (blended.a - p.a) / (sa - p.a), b: (blended.b - p.b) / (sb - p.b) };
       expect(quotient.a < 0 || quotient.a > 1).toBe(true); // the case this test is about
 
-      const fit = fitWearRates(asObservations(shared), { classFactors: faceOnly, prior: { rateMmPerKmByGround: p, strengthObservations: n0 } });
+      const fit = fitWearRates(asObservations(shared), {
+        classFactors: faceOnly,
+        prior: { rateMmPerKmByGround: p, strengthObservations: n0 },
+      });
       const [a, b] = fit.rates;
       expect(relativeError(a.rateMmPerKm, blended.a)).toBeLessThan(1e-10);
       expect(relativeError(b.rateMmPerKm, blended.b)).toBeLessThan(1e-10);
@@ -234,9 +301,16 @@ describe('fitWearRates', () => {
     });
 
     it('accepts a weight of 0 but refuses a negative weight and a prior of 0 mm/km', () => {
-      expect(() => fitWearRates(noInt1, { classFactors: faceOnly, prior: { rateMmPerKmByGround: { g1: 0.02 }, strengthObservations: -1 } })).toThrow(RangeError);
-      expect(() => fitWearRates(noInt1, { classFactors: faceOnly, prior: { rateMmPerKmByGround: { g1: 0 }, strengthObservations: 5 } })).toThrow(RangeError);
-      expect(fitWearRates(noInt1, { classFactors: faceOnly, prior: { rateMmPerKmByGround: { g1: 0.02 }, strengthObservations: 0 } }).rates[0].source).toBe('site');
+      expect(() =>
+        fitWearRates(noInt1, { classFactors: faceOnly, prior: { rateMmPerKmByGround: { g1: 0.02 }, strengthObservations: -1 } }),
+      ).toThrow(RangeError);
+      expect(() =>
+        fitWearRates(noInt1, { classFactors: faceOnly, prior: { rateMmPerKmByGround: { g1: 0 }, strengthObservations: 5 } }),
+      ).toThrow(RangeError);
+      expect(
+        fitWearRates(noInt1, { classFactors: faceOnly, prior: { rateMmPerKmByGround: { g1: 0.02 }, strengthObservations: 0 } }).rates[0]
+          .source,
+      ).toBe('site');
     });
   });
 
@@ -244,7 +318,9 @@ describe('fitWearRates', () => {
     // Hand computation on the held-at-0 example above: rate_a = 0.01008, rate_b = 0; residuals
     // −0.008, 0.084, −0.108, −0.104 → SSE = 0.0296, s² = 0.0296 / 3. With column b added to the
     // free set, XᵀX = [[62,500, 17,500], [17,500, 32,500]], det = 1.725e9, (XᵀX)⁻¹_bb = 62,500 / det.
-    const fit = fitWearRates([face(1.0, { a: 100 }), face(2.1, { a: 200 }), face(0.9, { a: 100, b: 100 }), face(0.4, { a: 50, b: 150 })], { classFactors: faceOnly });
+    const fit = fitWearRates([face(1.0, { a: 100 }), face(2.1, { a: 200 }), face(0.9, { a: 100, b: 100 }), face(0.4, { a: 50, b: 150 })], {
+      classFactors: faceOnly,
+    });
     const expected = Math.sqrt((0.0296 / 3) * (62500 / 1.725e9));
     expect(relativeError(fit.rates[1].heldStandardErrorMmPerKm!, expected)).toBeLessThan(1e-10);
     expect(fit.rates[0].heldStandardErrorMmPerKm).toBeNull();

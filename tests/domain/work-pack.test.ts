@@ -10,10 +10,21 @@ describe('parts kit', () => {
   it('packs one assembly per change and the spares per 10 and 20 changes, rounded up, per disc size', () => {
     // derived: 12 changes of 17″ → 12 assemblies, ⌈12/10⌉ = 2 rings and seal kits, ⌈12/20⌉ = 1 bearing kit;
     // 1 change of 19″ → 1 of each spare (rounded up from 0.1 and 0.05).
-    const kit = partsKit(new Map([[19, 1], [17, 12]]));
+    const kit = partsKit(
+      new Map([
+        [19, 1],
+        [17, 12],
+      ]),
+    );
     expect(kit.map((k) => [k.item, k.quantity])).toEqual([
-      ['17″ disc cutter assembly', 12], ['17″ spare ring', 2], ['17″ spare seal kit', 2], ['17″ spare bearing kit', 1],
-      ['19″ disc cutter assembly', 1], ['19″ spare ring', 1], ['19″ spare seal kit', 1], ['19″ spare bearing kit', 1],
+      ['17″ disc cutter assembly', 12],
+      ['17″ spare ring', 2],
+      ['17″ spare seal kit', 2],
+      ['17″ spare bearing kit', 1],
+      ['19″ disc cutter assembly', 1],
+      ['19″ spare ring', 1],
+      ['19″ spare seal kit', 1],
+      ['19″ spare bearing kit', 1],
     ]);
     expect(partsKit(new Map())).toEqual([]);
   });
@@ -21,7 +32,15 @@ describe('parts kit', () => {
 
 describe('work pack text', () => {
   const pack = (over: Partial<WorkPackForText['stop']> = {}): WorkPackForText => ({
-    stop: { chainageM: 5011.74, ringNumber: 3341, plannedStart: new Date('2026-03-29T01:30:00Z'), expectedHours: 12, compressedAir: true, workingPressureBar: 2.5, ...over },
+    stop: {
+      chainageM: 5011.74,
+      ringNumber: 3341,
+      plannedStart: new Date('2026-03-29T01:30:00Z'),
+      expectedHours: 12,
+      compressedAir: true,
+      workingPressureBar: 2.5,
+      ...over,
+    },
     crew: { name: 'Crew B', members: [{ name: 'Ana' }, { name: 'Ben' }] },
     positions: [{ number: 7, positionClass: 'face', twinDisc: false, fittedSerial: 'K-0107', expectedWearMm: 18.04, wearLimitMm: 20 }],
     storeSerials: [{ serial: 'K-0201' }],
@@ -45,7 +64,11 @@ describe('work pack text', () => {
   });
 
   it('says where the work pack is when no address is configured, and when a stop has no date yet', () => {
-    const text = workPackText(pack({ plannedStart: null, compressedAir: false, workingPressureBar: null }), { name: 'D', siteTimeZone: 'Europe/Zurich' }, null);
+    const text = workPackText(
+      pack({ plannedStart: null, compressedAir: false, workingPressureBar: null }),
+      { name: 'D', siteTimeZone: 'Europe/Zurich' },
+      null,
+    );
     expect(text).toContain('Not scheduled yet.');
     expect(text).toContain('Worked in free air.');
     expect(text).toContain('The work pack is on the stop’s page in Kerfwise.');

@@ -29,9 +29,9 @@ it('a planner imports a layout from CSV (a bad file first), sees it on the pictu
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent()).toBe('Cutterhead layout');
 
   // Row 3 of the file (the second position) has a wear limit of 0: the error names row and column, nothing is saved.
-  await page.getByLabel('Choose a CSV file').setInputFiles(csvFile('bad-layout.csv', [
-    '1,60,centre,17,,25,yes,', '2,900,face,17,,0,no,', '3,1800,face,17,,25,no,',
-  ]));
+  await page
+    .getByLabel('Choose a CSV file')
+    .setInputFiles(csvFile('bad-layout.csv', ['1,60,centre,17,,25,yes,', '2,900,face,17,,0,no,', '3,1800,face,17,,25,no,']));
   const problem = page.getByRole('row').filter({ hasText: 'The wear limit must be more than 0 mm.' });
   await expect.poll(() => problem.count()).toBe(1);
   expect(await problem.getByRole('cell').allTextContents()).toEqual(['3', 'wear_limit_mm', 'The wear limit must be more than 0 mm.']);
@@ -39,7 +39,13 @@ it('a planner imports a layout from CSV (a bad file first), sees it on the pictu
   const saved = await page.request.get(`${app.url}/api/projects/${project.id}/positions`);
   expect(await saved.json()).toEqual([]);
 
-  const good = ['1,60,centre,17,,25,yes,', '2,900,face,17,,25,no,', '3,1800,face,17,,25,no,', '4,2700,face,17,,25,no,', '5,3050,gauge,17,45,12,no,'];
+  const good = [
+    '1,60,centre,17,,25,yes,',
+    '2,900,face,17,,25,no,',
+    '3,1800,face,17,,25,no,',
+    '4,2700,face,17,,25,no,',
+    '5,3050,gauge,17,45,12,no,',
+  ];
   await page.getByLabel('Choose a CSV file').setInputFiles(csvFile('layout.csv', good));
   await expect.poll(() => page.getByText('layout.csv imported: 5 new, 0 changed, 0 unchanged.').count()).toBe(1);
   // The editor now holds the five rows; saved numbers are read-only.
@@ -53,7 +59,9 @@ it('a planner imports a layout from CSV (a bad file first), sees it on the pictu
   await page.getByRole('button', { name: 'Save layout' }).click();
   // Each message sits under its row, named by field, and again in the summary by row.
   await expect.poll(() => page.getByText('Position number: Position 3 appears twice (also positions.2).', { exact: true }).count()).toBe(1);
-  expect(await page.getByText('Track radius in mm: Track radius 5000 mm is beyond the excavated radius (3100 mm).', { exact: true }).count()).toBe(1);
+  expect(
+    await page.getByText('Track radius in mm: Track radius 5000 mm is beyond the excavated radius (3100 mm).', { exact: true }).count(),
+  ).toBe(1);
   expect(await page.getByLabel('Track radius in mm, row 6').getAttribute('aria-invalid')).toBe('true');
   expect(await page.getByText(/^Row 6 \(position 3\): Track radius 5000 mm/).count()).toBe(1);
   expect((await (await page.request.get(`${app.url}/api/projects/${project.id}/positions`)).json()).length).toBe(5);

@@ -23,13 +23,21 @@ afterAll(async () => {
 
 /** The table inside the panel headed `title` (the innermost block holding that heading). */
 const panelTable = (page: Page, title: string) =>
-  page.locator('div', { has: page.getByRole('heading', { name: title, exact: true }) }).last().getByRole('table');
+  page
+    .locator('div', { has: page.getByRole('heading', { name: title, exact: true }) })
+    .last()
+    .getByRole('table');
 
 /** The cells of the row whose first cell is `first`, by column header. */
 async function rowByHeader(page: Page, title: string, first: string): Promise<Record<string, string>> {
   const table = panelTable(page, title);
   const headers = (await table.locator('thead th').allTextContents()).map((h) => h.replace(/[▲▼]/g, '').trim());
-  const cells = await table.locator('tbody tr').filter({ has: page.locator('td:first-child', { hasText: first }) }).first().locator('td').allTextContents();
+  const cells = await table
+    .locator('tbody tr')
+    .filter({ has: page.locator('td:first-child', { hasText: first }) })
+    .first()
+    .locator('td')
+    .allTextContents();
   return Object.fromEntries(headers.map((h, i) => [h, cells[i]]));
 }
 
@@ -46,7 +54,12 @@ it('the site manager opens the weekly downtime table', async () => {
   await page.getByRole('link', { name: 'Downtime', exact: true }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Downtime');
   // The two events of the fixture, in site time.
-  expect(await page.getByRole('status').filter({ hasText: /event\(s\)/ }).textContent()).toBe('2 event(s), 23.0 h, from 2026-02-02 to 2026-03-29. Times in site time (Europe/Zurich).');
+  expect(
+    await page
+      .getByRole('status')
+      .filter({ hasText: /event\(s\)/ })
+      .textContent(),
+  ).toBe('2 event(s), 23.0 h, from 2026-02-02 to 2026-03-29. Times in site time (Europe/Zurich).');
 
   await page.getByRole('navigation', { name: 'Downtime' }).getByRole('link', { name: 'Report' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Downtime report');

@@ -64,11 +64,26 @@ it('a planner imports an advance log (a bad file first) and a long section, page
   const duplicate = problems.locator('tbody > tr').filter({ hasText: /103/ });
   expect(await duplicate.locator('td').nth(0).textContent()).toBe('5');
   expect(await duplicate.locator('td').nth(1).textContent()).toBe('Ring');
-  expect(await page.getByRole('status').filter({ hasText: /strokes?\b/ }).first().textContent()).toMatch(/^0 strokes/);
+  expect(
+    await page
+      .getByRole('status')
+      .filter({ hasText: /strokes?\b/ })
+      .first()
+      .textContent(),
+  ).toMatch(/^0 strokes/);
 
   // The good file: every row lands in the table.
   await importFile(page, goodLog);
-  await expect.poll(() => page.getByRole('status').filter({ hasText: /imported:/ }).count(), { timeout: 15_000 }).toBe(1);
+  await expect
+    .poll(
+      () =>
+        page
+          .getByRole('status')
+          .filter({ hasText: /imported:/ })
+          .count(),
+      { timeout: 15_000 },
+    )
+    .toBe(1);
   expect(await page.getByText(/imported: 12 new, 0 already stored and unchanged, 0 replaced/).count()).toBe(1);
   const table = page.getByRole('table', { name: 'Advance log' });
   await expect.poll(() => table.locator('tbody > tr').count()).toBe(12);
@@ -87,7 +102,14 @@ it('a planner imports an advance log (a bad file first) and a long section, page
   expect(await table.getByRole('columnheader', { name: /Penetration/ }).getAttribute('aria-sort')).toBe('ascending');
   expect(await page.getByText('Page 1 of 2').count()).toBe(1);
   await table.getByRole('button', { name: /Penetration/ }).click();
-  await expect.poll(() => penetrationColumn(page)).toEqual(penetrations.slice(-10).reverse().map((v) => v.toFixed(1)));
+  await expect
+    .poll(() => penetrationColumn(page))
+    .toEqual(
+      penetrations
+        .slice(-10)
+        .reverse()
+        .map((v) => v.toFixed(1)),
+    );
 
   // The long section: imported, drawn as a strip with its four ground types and the machine.
   await page.getByRole('link', { name: 'Geology' }).click();
@@ -108,9 +130,14 @@ it('a planner imports an advance log (a bad file first) and a long section, page
   expect(await strip.getByRole('img', { name: `Machine ${formatChainage(2468)}` }).count()).toBe(1);
   // Focus on the no-stop section tells its reason.
   await strip.getByRole('img', { name: /Fault zone/ }).focus();
-  expect(await page.getByText(/2\+610\.0 to 2\+655\.0: Fault zone, water head 24\.5 m above the axis, no stop allowed/).count()).toBeGreaterThanOrEqual(1);
+  expect(
+    await page.getByText(/2\+610\.0 to 2\+655\.0: Fault zone, water head 24\.5 m above the axis, no stop allowed/).count(),
+  ).toBeGreaterThanOrEqual(1);
   // The ground types came in by name.
-  const groundRows = page.getByRole('table').filter({ has: page.getByRole('columnheader', { name: 'CERCHAR class' }) }).locator('tbody > tr');
+  const groundRows = page
+    .getByRole('table')
+    .filter({ has: page.getByRole('columnheader', { name: 'CERCHAR class' }) })
+    .locator('tbody > tr');
   expect((await groundRows.locator('td:first-child').allTextContents()).sort()).toEqual(['Fault zone', 'Granite', 'Marl', 'Sandstone']);
   await page.close();
 }, 120_000);

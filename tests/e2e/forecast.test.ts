@@ -36,8 +36,9 @@ it('the planner reads the change-out forecast of the demo drive, how one was mad
   const headers = await table.getByRole('columnheader').allTextContents();
   const remainingColumn = headers.findIndex((h) => h.startsWith('Remaining (m)'));
   expect(remainingColumn).toBeGreaterThan(0);
-  const p90Remaining = (await rows.locator(`td:nth-child(${remainingColumn + 1})`).allTextContents())
-    .map((text) => Number(/P90\s*(?:≥\s*)?([\d.]+)/.exec(text)?.[1]));
+  const p90Remaining = (await rows.locator(`td:nth-child(${remainingColumn + 1})`).allTextContents()).map((text) =>
+    Number(/P90\s*(?:≥\s*)?([\d.]+)/.exec(text)?.[1]),
+  );
   expect(p90Remaining.every(Number.isFinite)).toBe(true);
   expect(p90Remaining).toEqual([...p90Remaining].sort((a, b) => a - b));
   // Demo drive (server/db/demo): the most worn discs are due within a few hundred metres.

@@ -25,7 +25,11 @@ it('the buyer sees an order suggestion caused by a scheduled stop and exports it
   const project = await makeProject();
   const drive = await makeCutterhead(project.id, 4);
   await makeSmallCatalogue(project.id);
-  await insertStop(project.id, { status: 'scheduled', chainageM: 612.3, ringNumber: 408, plannedStart: new Date(Date.now() + 3 * 86_400_000) }, [drive.positions[1].id, drive.positions[2].id]);
+  await insertStop(
+    project.id,
+    { status: 'scheduled', chainageM: 612.3, ringNumber: 408, plannedStart: new Date(Date.now() + 3 * 86_400_000) },
+    [drive.positions[1].id, drive.positions[2].id],
+  );
   const buyer = await makeUser();
   await addMember(project.id, buyer.id, 'buyer');
 

@@ -54,7 +54,10 @@ it('the planner proposes, schedules and publishes the first stop of the plan; th
   await first.getByRole('button', { name: 'Propose this stop' }).click();
   await expect.poll(() => heading(planner), { timeout: 20_000 }).toBe(`Stop at ${chainage}`);
   const workPack = planner.getByRole('article', { name: 'Work pack' });
-  const positionsShown = await workPack.getByRole('region', { name: /Positions to change/ }).locator('tbody > tr').count();
+  const positionsShown = await workPack
+    .getByRole('region', { name: /Positions to change/ })
+    .locator('tbody > tr')
+    .count();
   expect(positionsShown).toBeGreaterThan(0);
 
   // Schedule it for Crew A, three days ahead at 06:00 site time, in the air the plan chose.
@@ -62,14 +65,19 @@ it('the planner proposes, schedules and publishes the first stop of the plan; th
   await planner.getByLabel(/Planned start \(site time/).fill(`${day}T06:00`);
   await planner.getByLabel('Crew').selectOption({ label: 'Crew A (2 members)' });
   await planner.getByRole('button', { name: 'Schedule the stop' }).click();
-  await expect.poll(() => planner.getByRole('status').filter({ hasText: 'Scheduled. Publish it to tell the crew.' }).count(), { timeout: 15_000 }).toBe(1);
+  await expect
+    .poll(() => planner.getByRole('status').filter({ hasText: 'Scheduled. Publish it to tell the crew.' }).count(), { timeout: 15_000 })
+    .toBe(1);
   expect(await workPack.getByText('Crew A (Jonah Pell, Tomas Vella)').count()).toBe(1);
 
   await planner.getByRole('button', { name: 'Publish to the crew' }).click();
   await expect.poll(() => planner.getByRole('status').filter({ hasText: 'Published' }).count(), { timeout: 15_000 }).toBe(1);
   const stopId = /\/stops\/([0-9a-f-]{36})$/.exec(planner.url())![1];
   // Both members of Crew A have the work pack waiting in the outbox (or already sent).
-  const mails = await db.select().from(outbox).where(and(eq(outbox.kind, 'stop_published'), sql`${outbox.textBody} like ${`%/stops/${stopId}%`}`));
+  const mails = await db
+    .select()
+    .from(outbox)
+    .where(and(eq(outbox.kind, 'stop_published'), sql`${outbox.textBody} like ${`%/stops/${stopId}%`}`));
   expect(mails.flatMap((m) => m.toAddresses).sort()).toEqual(['crew-a@kerfwise.test', 'fitter@kerfwise.test']);
 
   // On paper: A4, one or two pages, without the navigation or the forms.
@@ -90,10 +98,19 @@ it('the planner proposes, schedules and publishes the first stop of the plan; th
   await deliverPendingMail();
   const admin = await signIn('admin@kerfwise.test');
   await admin.goto(`${app.url}/admin/mail`);
-  const reminder = admin.getByRole('button', { name: new RegExp(`Reminder \\(24 hours\\): cutter stop at ${chainage.replace('+', '\\+')}.*crew-a@kerfwise\\.test`) }).first();
+  const reminder = admin
+    .getByRole('button', {
+      name: new RegExp(`Reminder \\(24 hours\\): cutter stop at ${chainage.replace('+', '\\+')}.*crew-a@kerfwise\\.test`),
+    })
+    .first();
   await expect.poll(() => reminder.count(), { timeout: 20_000 }).toBeGreaterThan(0);
   await reminder.click();
-  expect(await admin.getByText(/does not compute decompression schedules|Entering the cutterhead/).first().isVisible()).toBe(true);
+  expect(
+    await admin
+      .getByText(/does not compute decompression schedules|Entering the cutterhead/)
+      .first()
+      .isVisible(),
+  ).toBe(true);
   await admin.close();
 
   // The fitter finds the stop in the list and opens its work pack.
@@ -103,9 +120,19 @@ it('the planner proposes, schedules and publishes the first stop of the plan; th
   await fitter.getByRole('link', { name: `Stop at ${chainage}` }).click();
   await expect.poll(() => heading(fitter), { timeout: 20_000 }).toBe(`Stop at ${chainage}`);
   const pack = fitter.getByRole('article', { name: 'Work pack' });
-  expect(await pack.getByRole('region', { name: /Positions to change/ }).locator('tbody > tr').count()).toBe(positionsShown);
+  expect(
+    await pack
+      .getByRole('region', { name: /Positions to change/ })
+      .locator('tbody > tr')
+      .count(),
+  ).toBe(positionsShown);
   expect(await pack.getByText('Scheduled · published').count()).toBe(1);
-  expect(await pack.getByRole('region', { name: /Take from the store/ }).locator('tbody > tr').count()).toBeGreaterThan(0);
+  expect(
+    await pack
+      .getByRole('region', { name: /Take from the store/ })
+      .locator('tbody > tr')
+      .count(),
+  ).toBeGreaterThan(0);
   expect(await pack.getByRole('note').filter({ hasText: 'Entering the cutterhead' }).count()).toBe(1);
   // The fitter runs the stop but does not plan it.
   expect(await fitter.getByRole('button', { name: 'Start the stop now' }).count()).toBe(1);

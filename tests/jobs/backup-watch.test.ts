@@ -18,9 +18,18 @@ it('mails the administrators when no backup is newer than 36 h, then not again f
   const start = new Date('2099-03-01T10:40:00Z');
   const at = (hours: number) => new Date(start.getTime() + hours * 3600_000);
   const mailsToAdmin = async () =>
-    (await db.select().from(outbox).where(and(eq(outbox.kind, 'backup_alert'), sql`${admin.email} = any(${outbox.toAddresses})`, gt(outbox.createdAt, sql`now() - interval '1 hour'`)))).filter((m) =>
-      m.subject.includes('MISSING'),
-    );
+    (
+      await db
+        .select()
+        .from(outbox)
+        .where(
+          and(
+            eq(outbox.kind, 'backup_alert'),
+            sql`${admin.email} = any(${outbox.toAddresses})`,
+            gt(outbox.createdAt, sql`now() - interval '1 hour'`),
+          ),
+        )
+    ).filter((m) => m.subject.includes('MISSING'));
 
   const first = await runJob(job, 'admin', { now: start });
   expect(first.outcome).toBe('ok');

@@ -83,7 +83,9 @@ afterAll(async () => {
 
 /** Every ordinary table of the application and of the migrator, by the catalogue. */
 const tablesOf = (c: pg.Client) =>
-  c.query<{ t: string }>(`select schemaname || '.' || tablename as t from pg_tables where schemaname in ('public', 'drizzle') order by 1`).then((r) => r.rows.map((x) => x.t));
+  c
+    .query<{ t: string }>(`select schemaname || '.' || tablename as t from pg_tables where schemaname in ('public', 'drizzle') order by 1`)
+    .then((r) => r.rows.map((x) => x.t));
 const countsOf = async (c: pg.Client) => {
   const out: Record<string, number> = {};
   for (const t of await tablesOf(c)) out[t] = Number((await c.query(`select count(*) as n from ${t}`)).rows[0].n);
@@ -91,7 +93,8 @@ const countsOf = async (c: pg.Client) => {
 };
 /** md5 over every row's text form, in a fixed order: equal only when every value is. */
 const checksumOf = async (c: pg.Client, table: string) =>
-  (await c.query<{ md5: string }>(`select md5(coalesce(string_agg(t::text, E'\\n' order by t::text), '')) as md5 from ${table} t`)).rows[0].md5;
+  (await c.query<{ md5: string }>(`select md5(coalesce(string_agg(t::text, E'\\n' order by t::text), '')) as md5 from ${table} t`)).rows[0]
+    .md5;
 
 async function backupJob() {
   const { jobs } = await import('../../jobs/index');
@@ -137,7 +140,18 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
       const storedName = `${randomUUID()}.jpg`;
       const bytes = randomBytes(20_000 + i * 777);
       await writeFile(path.join(storageDir, 'photos', storedName), bytes);
-      await db.insert(photos).values({ projectId: entry.projectId, entryId: entry.id, clientKey: randomUUID(), storedName, mimeType: 'image/jpeg', sizeBytes: bytes.length, originalName: `disc-${i}.jpg`, uploadedBy: fitter.id });
+      await db
+        .insert(photos)
+        .values({
+          projectId: entry.projectId,
+          entryId: entry.id,
+          clientKey: randomUUID(),
+          storedName,
+          mimeType: 'image/jpeg',
+          sizeBytes: bytes.length,
+          originalName: `disc-${i}.jpg`,
+          uploadedBy: fitter.id,
+        });
       photoNames.push(storedName);
     }
 
@@ -172,7 +186,9 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
       expect(await onDb(target, (c) => checksumOf(c, table)), table).toBe(await onDb(sourceDb, (c) => checksumOf(c, table)));
     }
     // Every photo a restored row names is there, byte for byte.
-    const restoredPhotos = await onDb(target, (c) => c.query<{ stored_name: string }>('select stored_name from photos').then((r) => r.rows.map((x) => x.stored_name)));
+    const restoredPhotos = await onDb(target, (c) =>
+      c.query<{ stored_name: string }>('select stored_name from photos').then((r) => r.rows.map((x) => x.stored_name)),
+    );
     expect(restoredPhotos.sort()).toEqual([...photoNames].sort());
     for (const name of restoredPhotos) {
       const original = await readFile(path.join(storageDir, 'photos', name));
@@ -185,8 +201,12 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
     const target = await freshDatabase();
     await runMigrations(urlFor(target));
     const storage = path.join(tmp, 'forced-storage');
-    await expect(restoreBackup({ backupDir: backupPath, databaseUrl: urlFor(target), storageDir: storage })).rejects.toThrow(RestoreRefused);
-    await expect(restoreBackup({ backupDir: backupPath, databaseUrl: urlFor(target), storageDir: storage })).rejects.toThrow(/not empty.*--force/s);
+    await expect(restoreBackup({ backupDir: backupPath, databaseUrl: urlFor(target), storageDir: storage })).rejects.toThrow(
+      RestoreRefused,
+    );
+    await expect(restoreBackup({ backupDir: backupPath, databaseUrl: urlFor(target), storageDir: storage })).rejects.toThrow(
+      /not empty.*--force/s,
+    );
     expect(await onDb(target, (c) => c.query('select count(*)::int as n from inspection_entries')).then((r) => r.rows[0].n)).toBe(0);
 
     await restoreBackup({ backupDir: backupPath, databaseUrl: urlFor(target), storageDir: storage, force: true });
@@ -202,7 +222,9 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
     bytes[100] ^= 0xff;
     await writeFile(photo, bytes);
     const target = await freshDatabase();
-    await expect(restoreBackup({ backupDir: damaged, databaseUrl: urlFor(target), storageDir: path.join(tmp, 'damaged-storage') })).rejects.toThrow(/damaged.*storage\/photos/s);
+    await expect(
+      restoreBackup({ backupDir: damaged, databaseUrl: urlFor(target), storageDir: path.join(tmp, 'damaged-storage') }),
+    ).rejects.toThrow(/damaged.*storage\/photos/s);
     expect(await onDb(target, tablesOf)).toEqual([]);
     expect(existsSync(path.join(tmp, 'damaged-storage'))).toBe(false);
   });
@@ -212,8 +234,16 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
     await rm(backupDir, { recursive: true, force: true });
     const at = (iso: string) => backupName(new Date(iso));
     const existing = [
-      '2026-02-20T02:15:00Z', '2026-02-27T02:15:00Z', '2026-03-01T02:15:00Z', '2026-03-03T02:15:00Z', '2026-03-08T02:15:00Z',
-      '2026-03-16T02:15:00Z', '2026-03-18T02:15:00Z', '2026-03-19T02:15:00Z', '2026-03-19T14:00:00Z', '2026-03-20T02:15:00Z',
+      '2026-02-20T02:15:00Z',
+      '2026-02-27T02:15:00Z',
+      '2026-03-01T02:15:00Z',
+      '2026-03-03T02:15:00Z',
+      '2026-03-08T02:15:00Z',
+      '2026-03-16T02:15:00Z',
+      '2026-03-18T02:15:00Z',
+      '2026-03-19T02:15:00Z',
+      '2026-03-19T14:00:00Z',
+      '2026-03-20T02:15:00Z',
       '2026-03-21T02:15:00Z',
     ];
     for (const iso of existing) {
@@ -229,16 +259,18 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
     const run = await runJob(await backupJob(), 'schedule', { now: new Date('2026-03-20T12:00:00Z') });
     expect(run.outcome).toBe('ok');
     expect(run.summary).toMatch(/6 backups kept, 6 removed\.$/);
-    expect((await readdir(backupDir)).sort()).toEqual([
-      `.partial-${at('2026-03-20T11:30:00Z')}`,
-      'copied-by-hand',
-      at('2026-03-01T02:15:00Z'), // weekly W09
-      at('2026-03-08T02:15:00Z'), // weekly W10
-      at('2026-03-18T02:15:00Z'), // daily
-      at('2026-03-19T14:00:00Z'), // daily
-      at('2026-03-20T12:00:00Z'), // daily and weekly W12: the backup just made
-      at('2026-03-21T02:15:00Z'), // after the clock: never deleted
-    ].sort());
+    expect((await readdir(backupDir)).sort()).toEqual(
+      [
+        `.partial-${at('2026-03-20T11:30:00Z')}`,
+        'copied-by-hand',
+        at('2026-03-01T02:15:00Z'), // weekly W09
+        at('2026-03-08T02:15:00Z'), // weekly W10
+        at('2026-03-18T02:15:00Z'), // daily
+        at('2026-03-19T14:00:00Z'), // daily
+        at('2026-03-20T12:00:00Z'), // daily and weekly W12: the backup just made
+        at('2026-03-21T02:15:00Z'), // after the clock: never deleted
+      ].sort(),
+    );
   });
 
   it('records a failed backup (folder not writable) and mails every active administrator', async () => {
@@ -272,7 +304,9 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
     const deadline = Date.now() + 10_000;
     let caught = 0;
     while (caught === 0 && Date.now() < deadline) {
-      caught = await onBase((c) => c.query(`select count(*)::int as n from caught_mail where $1 = any(to_addresses) and subject like '%backup FAILED%'`, [adminEmail])).then((r) => r.rows[0].n);
+      caught = await onBase((c) =>
+        c.query(`select count(*)::int as n from caught_mail where $1 = any(to_addresses) and subject like '%backup FAILED%'`, [adminEmail]),
+      ).then((r) => r.rows[0].n);
       if (caught === 0) await new Promise((r) => setTimeout(r, 100));
     }
     expect(caught).toBe(1);

@@ -36,9 +36,15 @@ describe('weekly downtime digest', () => {
     expect(mail.textBody).toContain('Utilisation 2.4 % (boring 4.0 h); 3.0 m advanced, 0.4 m a day.');
     expect(mail.subject).toBe(`${project.name}: downtime in week 2026-W13 — 15.0 h, cutter work 26.7 %`);
 
-    const others = await db.select().from(caughtMail).where(sql`(${quiet.email} = any(${caughtMail.toAddresses}) or ${planner.email} = any(${caughtMail.toAddresses}))`);
+    const others = await db
+      .select()
+      .from(caughtMail)
+      .where(sql`(${quiet.email} = any(${caughtMail.toAddresses}) or ${planner.email} = any(${caughtMail.toAddresses}))`);
     expect(others).toHaveLength(0);
-    const queued = await db.select().from(outbox).where(sql`${outbox.projectId} = ${project.id} and ${outbox.kind} = 'downtime_digest'`);
+    const queued = await db
+      .select()
+      .from(outbox)
+      .where(sql`${outbox.projectId} = ${project.id} and ${outbox.kind} = 'downtime_digest'`);
     expect(queued).toHaveLength(1);
   });
 });

@@ -6,12 +6,25 @@ import { jobRuns } from '../../server/db/schema';
 import { catchUpMissedRuns, runJob, type JobDefinition } from '../../server/services/job-runner';
 import { uniq } from '../support/fixtures';
 
-const job = (name: string, run: JobDefinition['run'], periodMs = 3600_000): JobDefinition => ({ name, label: name, cron: '* * * * *', periodMs, run });
+const job = (name: string, run: JobDefinition['run'], periodMs = 3600_000): JobDefinition => ({
+  name,
+  label: name,
+  cron: '* * * * *',
+  periodMs,
+  run,
+});
 
 describe('job runner', () => {
   it('records a run with its outcome and summary, and passes the injected clock', async () => {
     let seen: Date | undefined;
-    const run = await runJob(job(uniq('test-job'), async ({ now }) => { seen = now; return 'did 3 things'; }), 'admin', { now: new Date('2026-12-24T02:30:00Z') });
+    const run = await runJob(
+      job(uniq('test-job'), async ({ now }) => {
+        seen = now;
+        return 'did 3 things';
+      }),
+      'admin',
+      { now: new Date('2026-12-24T02:30:00Z') },
+    );
     expect(run.outcome).toBe('ok');
     expect(run.summary).toBe('did 3 things');
     expect(run.finishedAt).not.toBeNull();
@@ -19,7 +32,12 @@ describe('job runner', () => {
   });
 
   it('records a failure with its error message', async () => {
-    const run = await runJob(job(uniq('failing-job'), async () => { throw new Error('mail server said no'); }), 'schedule');
+    const run = await runJob(
+      job(uniq('failing-job'), async () => {
+        throw new Error('mail server said no');
+      }),
+      'schedule',
+    );
     expect(run.outcome).toBe('failed');
     expect(run.error).toBe('mail server said no');
   });
@@ -30,7 +48,13 @@ describe('job runner', () => {
     const other = await pool.connect();
     await other.query('select pg_advisory_lock(hashtext($1))', [`kerfwise-job:${name}`]);
     let ran = false;
-    const run = await runJob(job(name, async () => { ran = true; return ''; }), 'schedule');
+    const run = await runJob(
+      job(name, async () => {
+        ran = true;
+        return '';
+      }),
+      'schedule',
+    );
     await other.query('select pg_advisory_unlock(hashtext($1))', [`kerfwise-job:${name}`]);
     other.release();
     expect(run.outcome).toBe('skipped');

@@ -20,7 +20,13 @@ const otherPool = resilientPool({ connectionString: inject('databaseUrl'), max: 
 const otherServer = createJobRunner(otherPool);
 afterAll(() => otherPool.end());
 
-const job = (run: JobDefinition['run'], cron = '0 7 * * 1'): JobDefinition => ({ name: uniq('slot-job'), label: 'slot test', cron, periodMs: 7 * 24 * 3600_000, run });
+const job = (run: JobDefinition['run'], cron = '0 7 * * 1'): JobDefinition => ({
+  name: uniq('slot-job'),
+  label: 'slot test',
+  cron,
+  periodMs: 7 * 24 * 3600_000,
+  run,
+});
 
 describe('slots', () => {
   it('finds the last scheduled time at or before an instant (server time zone)', () => {
@@ -53,7 +59,11 @@ describe('slots', () => {
     let done = 0;
     const j = job(() => new Promise((resolve) => setTimeout(() => resolve(`slow (${++done})`), 200)));
     const slot = new Date('2027-06-07T05:00:00Z');
-    const runs = await Promise.all([runJob(j, 'schedule', { slot }), otherServer.runJob(j, 'schedule', { slot }), otherServer.runJob(j, 'catch-up', { slot })]);
+    const runs = await Promise.all([
+      runJob(j, 'schedule', { slot }),
+      otherServer.runJob(j, 'schedule', { slot }),
+      otherServer.runJob(j, 'catch-up', { slot }),
+    ]);
     expect(runs.map((r) => r.outcome).sort()).toEqual(['ok', 'skipped', 'skipped']);
     expect(done).toBe(1);
   });
@@ -81,15 +91,27 @@ describe('weekly digests', () => {
     await addMember(project.id, manager.id, 'site_manager');
     const registry = findJob('downtime-digest')!;
     // The registry's job, limited to this drive so other test files' drives are not mailed.
-    const digest: JobDefinition = { ...registry, name: uniq('downtime-digest'), run: (ctx) => downtimeDigestJob(ctx, { projectId: project.id }) };
-    const mails = async () => (await db.select().from(outbox).where(and(eq(outbox.kind, 'downtime_digest'), sql`${manager.email} = any(${outbox.toAddresses})`))).length;
+    const digest: JobDefinition = {
+      ...registry,
+      name: uniq('downtime-digest'),
+      run: (ctx) => downtimeDigestJob(ctx, { projectId: project.id }),
+    };
+    const mails = async () =>
+      (
+        await db
+          .select()
+          .from(outbox)
+          .where(and(eq(outbox.kind, 'downtime_digest'), sql`${manager.email} = any(${outbox.toAddresses})`))
+      ).length;
 
     // Monday 7 June 2027, 07:00 in Zurich (05:00Z): last week is 2027-W22 (ISO 8601 calendar).
     const monday = new Date('2027-06-07T05:00:00Z');
     expect((await runJob(digest, 'schedule', { now: monday, slot: monday })).outcome).toBe('ok');
     expect(await mails()).toBe(1);
     // A second server's late tick for the same slot: taken.
-    expect((await otherServer.runJob(digest, 'schedule', { now: new Date(monday.getTime() + 90_000), slot: monday })).outcome).toBe('skipped');
+    expect((await otherServer.runJob(digest, 'schedule', { now: new Date(monday.getTime() + 90_000), slot: monday })).outcome).toBe(
+      'skipped',
+    );
     // A server that starts on Tuesday catches up in another slot: runs, but the week is taken.
     const tuesday = new Date('2027-06-08T09:00:00Z');
     const catchUp = await otherServer.runJob(digest, 'catch-up', { now: tuesday, slot: tuesday });
@@ -105,7 +127,10 @@ describe('weekly digests', () => {
     // … and with the confirmation it goes out again, counted as re-sent.
     await runJob(digest, 'admin', { now: tuesday, again: true });
     expect(await mails()).toBe(2);
-    const [week] = await db.select().from(digestWeeks).where(and(eq(digestWeeks.projectId, project.id), eq(digestWeeks.digest, 'downtime_digest')));
+    const [week] = await db
+      .select()
+      .from(digestWeeks)
+      .where(and(eq(digestWeeks.projectId, project.id), eq(digestWeeks.digest, 'downtime_digest')));
     expect(week).toMatchObject({ isoWeek: '2027-W22', mails: 1, resent: 1 });
     // The next Monday covers the next week.
     const nextMonday = new Date('2027-06-14T05:00:00Z');
@@ -120,14 +145,21 @@ describe('weekly digests', () => {
     const buyer = await makeUser();
     await addMember(project.id, buyer.id, 'buyer');
     const { partsDigestJob } = await import('../../jobs/parts-digest');
-    const digest: JobDefinition = { ...findJob('parts-digest')!, name: uniq('parts-digest'), run: (ctx) => partsDigestJob(ctx, { projectId: project.id }) };
+    const digest: JobDefinition = {
+      ...findJob('parts-digest')!,
+      name: uniq('parts-digest'),
+      run: (ctx) => partsDigestJob(ctx, { projectId: project.id }),
+    };
     const monday = new Date('2027-06-07T04:00:00Z');
     // Different slots (as two servers with different clocks might compute): only the week record stops the second.
     await Promise.all([
       runJob(digest, 'schedule', { now: monday, slot: monday }),
       otherServer.runJob(digest, 'catch-up', { now: monday, slot: new Date(monday.getTime() + 60_000) }),
     ]);
-    const rows = await db.select().from(outbox).where(and(eq(outbox.kind, 'parts_digest'), sql`${buyer.email} = any(${outbox.toAddresses})`));
+    const rows = await db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.kind, 'parts_digest'), sql`${buyer.email} = any(${outbox.toAddresses})`));
     expect(rows).toHaveLength(1);
   });
 
@@ -152,7 +184,10 @@ describe('weekly digests', () => {
     expect(bad.body.error.message).toBe('again must be true or false');
     const confirmed = await agent.post('/api/admin/jobs/parts-digest/run?again=true');
     expect(confirmed.status).toBe(200);
-    const rows = await db.select().from(outbox).where(and(eq(outbox.kind, 'parts_digest'), sql`${buyer.email} = any(${outbox.toAddresses})`));
+    const rows = await db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.kind, 'parts_digest'), sql`${buyer.email} = any(${outbox.toAddresses})`));
     expect(rows).toHaveLength(2);
   });
 });

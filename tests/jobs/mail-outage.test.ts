@@ -37,7 +37,10 @@ describe('mail outbox during an SMTP outage', () => {
     const later = new Date(t0.getTime() + 5 * 60_000);
     expect(await deliverPendingMail({ transport: up, asOf: later, kind })).toEqual({ sent: 1, failed: 0 });
     expect(await deliverPendingMail({ transport: up, asOf: later, kind })).toEqual({ sent: 0, failed: 0 });
-    const caught = await db.select().from(caughtMail).where(sql`${to} = any(${caughtMail.toAddresses})`);
+    const caught = await db
+      .select()
+      .from(caughtMail)
+      .where(sql`${to} = any(${caughtMail.toAddresses})`);
     expect(caught).toHaveLength(1);
     expect(caught[0].subject).toBe('Stop reminder during outage');
   });
@@ -47,7 +50,10 @@ describe('mail outbox during an SMTP outage', () => {
     const to = `${uniq('crew')}@kerfwise.test`;
     await db.transaction((tx) => enqueueMail(tx, { kind, to: [to], subject: 'Sent when the server died?', text: 'hello' }));
     // A crash after the hand-over to SMTP and before the mark: the claim stays, 20 minutes ago.
-    await db.update(outbox).set({ claimedAt: new Date(Date.now() - 20 * 60_000), attempts: 1 }).where(eq(outbox.kind, kind));
+    await db
+      .update(outbox)
+      .set({ claimedAt: new Date(Date.now() - 20 * 60_000), attempts: 1 })
+      .where(eq(outbox.kind, kind));
     second ??= await startFakeSmtp({ databaseUrl: process.env.DATABASE_URL! });
     const up = nodemailer.createTransport(second.url);
     expect(await deliverPendingMail({ transport: up, kind })).toEqual({ sent: 0, failed: 0 });
@@ -63,7 +69,9 @@ describe('mail outbox during an SMTP outage', () => {
     expect((await admin.post(`/api/admin/outbox/${row.id}/release`)).status).toBe(404);
     // Released, it goes out once (the release starts a delivery pass; this one may find nothing left).
     await deliverPendingMail({ transport: up, kind });
-    await expect.poll(async () => (await db.select().from(outbox).where(eq(outbox.kind, kind)))[0].sentAt, { timeout: 10_000 }).not.toBeNull();
+    await expect
+      .poll(async () => (await db.select().from(outbox).where(eq(outbox.kind, kind)))[0].sentAt, { timeout: 10_000 })
+      .not.toBeNull();
     const [after] = await db.select().from(outbox).where(eq(outbox.kind, kind));
     expect(after.claimedAt).toBeNull();
     expect(after.attempts).toBe(2);

@@ -23,7 +23,11 @@ describe('weekly parts digest', () => {
     await makeSmallCatalogue(project.id); // 3 rings on hand, lead time 14 ± 7 days, minimum order 10
     // Injected clock: Monday 4 January 2027, 06:00 in Zurich. The stop three days later changes two positions.
     const now = new Date('2027-01-04T05:00:00Z');
-    await insertStop(project.id, { status: 'scheduled', chainageM: 812.4, ringNumber: 541, plannedStart: new Date('2027-01-07T06:00:00Z') }, [drive.positions[1].id, drive.positions[2].id]);
+    await insertStop(
+      project.id,
+      { status: 'scheduled', chainageM: 812.4, ringNumber: 541, plannedStart: new Date('2027-01-07T06:00:00Z') },
+      [drive.positions[1].id, drive.positions[2].id],
+    );
 
     const summary = await partsDigestJob({ now }, { projectId: project.id });
     expect(summary).toBe('1 drive(s) with a catalogue; 1 digest(s) queued.');
@@ -35,7 +39,9 @@ describe('weekly parts digest', () => {
     // derived: the stop draws 2 rings in week 0; weekly demand 2, 0, … over 12 weeks → d̄ = 1/6, σ_d = 0.553;
     // SS = 1.6449·√(2·0.3056 + (1/6)²·1) = 1.315 (DOMAIN.md §6); 3 on hand < 2 + 1.315 → 1 ring, raised to the
     // minimum order of 10 (3,800.00 EUR at 380).
-    expect(mail.textBody).toContain('• RING17 17″ ring, constant section: order 10 (minimum order) from Invented Forge, about 3,800.00 EUR.');
+    expect(mail.textBody).toContain(
+      '• RING17 17″ ring, constant section: order 10 (minimum order) from Invented Forge, about 3,800.00 EUR.',
+    );
     expect(mail.textBody).toContain('Demand from: Stop at 0+812.4 (ring 541), scheduled on 2027-01-07: 2.');
     // Assemblies: the 2 removed come back rebuilt in week 2, inside the 6-week lead time: 3 + 2 ≥ 2 + 2.23. Bolts: 20 ≥ 8 + 3.64.
     expect(mail.textBody).not.toContain('ASM17 17″ disc cutter, complete: order');
@@ -44,8 +50,18 @@ describe('weekly parts digest', () => {
 
     // Opted out, or not a buyer: nothing.
     for (const email of [quietBuyer.email, planner.email]) {
-      expect(await db.select().from(outbox).where(and(sql`${email} = any(${outbox.toAddresses})`, eq(outbox.kind, 'parts_digest')))).toHaveLength(0);
-      expect(await db.select().from(caughtMail).where(sql`${email} = any(${caughtMail.toAddresses})`)).toHaveLength(0);
+      expect(
+        await db
+          .select()
+          .from(outbox)
+          .where(and(sql`${email} = any(${outbox.toAddresses})`, eq(outbox.kind, 'parts_digest'))),
+      ).toHaveLength(0);
+      expect(
+        await db
+          .select()
+          .from(caughtMail)
+          .where(sql`${email} = any(${caughtMail.toAddresses})`),
+      ).toHaveLength(0);
     }
   });
 
@@ -53,7 +69,9 @@ describe('weekly parts digest', () => {
     const empty = await makeProject();
     const buyer = await makeUser();
     await addMember(empty.id, buyer.id, 'buyer');
-    expect(await partsDigestJob({ now: new Date('2027-01-04T05:00:00Z') }, { projectId: empty.id })).toBe('0 drive(s) with a catalogue; 0 digest(s) queued.');
+    expect(await partsDigestJob({ now: new Date('2027-01-04T05:00:00Z') }, { projectId: empty.id })).toBe(
+      '0 drive(s) with a catalogue; 0 digest(s) queued.',
+    );
 
     await makeCutterhead(empty.id, 2);
     await makeSmallCatalogue(empty.id); // no stop: no demand

@@ -37,7 +37,10 @@ describe('recipientsFor', () => {
     const quiet = await makeUser();
     const keen = await makeUser();
     await db.insert(notificationOptOuts).values({ userId: quiet.id, kind: 'stop_reminder' });
-    const [crew] = await db.insert(crews).values({ projectId: project.id, name: uniq('Crew') }).returning();
+    const [crew] = await db
+      .insert(crews)
+      .values({ projectId: project.id, name: uniq('Crew') })
+      .returning();
     const outsider = `${uniq('agency')}@kerfwise.test`;
     await db.insert(crewMembers).values([
       { crewId: crew.id, name: 'A Quiet', email: quiet.email, userId: quiet.id },
@@ -46,7 +49,11 @@ describe('recipientsFor', () => {
     ]);
     expect((await recipientsFor(db, project.id, 'stop_reminder', { crewId: crew.id })).map((r) => r.email)).toEqual([keen.email, outsider]);
     // The same person still gets the published work pack: only reminders were turned off.
-    expect((await recipientsFor(db, project.id, 'stop_published', { crewId: crew.id })).map((r) => r.email)).toEqual([quiet.email, keen.email, outsider]);
+    expect((await recipientsFor(db, project.id, 'stop_published', { crewId: crew.id })).map((r) => r.email)).toEqual([
+      quiet.email,
+      keen.email,
+      outsider,
+    ]);
     // No crew on the stop: nobody.
     expect(await recipientsFor(db, project.id, 'stop_reminder', { crewId: null })).toEqual([]);
   });

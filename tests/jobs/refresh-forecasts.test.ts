@@ -17,14 +17,30 @@ describe('nightly forecast refresh', () => {
     const [rock] = await db.insert(groundTypes).values({ projectId: project.id, name: 'Test quartzite', cai: 5 }).returning();
     await db.insert(geologySections).values([
       { projectId: project.id, chainageFromM: 0, chainageToM: 400, groundTypeId: rock.id, waterHeadM: 10 },
-      { projectId: project.id, chainageFromM: 400, chainageToM: 450, groundTypeId: rock.id, stopAllowed: false, stopReason: 'Fault zone: no stop', waterHeadM: 10 },
+      {
+        projectId: project.id,
+        chainageFromM: 400,
+        chainageToM: 450,
+        groundTypeId: rock.id,
+        stopAllowed: false,
+        stopReason: 'Fault zone: no stop',
+        waterHeadM: 10,
+      },
       { projectId: project.id, chainageFromM: 450, chainageToM: 2000, groundTypeId: rock.id, waterHeadM: 45 },
     ]);
     const t0 = Date.now() - 20 * 86400_000;
-    await db.insert(strokes).values(Array.from({ length: 200 }, (_, i) => ({
-      projectId: project.id, ringNumber: i + 1, startTime: new Date(t0 + i * 3600_000), endTime: new Date(t0 + i * 3600_000 + 40 * 60_000),
-      chainageStartM: i * 1.5, chainageEndM: (i + 1) * 1.5, revolutions: 187.5, penetrationMmPerRev: 8,
-    })));
+    await db.insert(strokes).values(
+      Array.from({ length: 200 }, (_, i) => ({
+        projectId: project.id,
+        ringNumber: i + 1,
+        startTime: new Date(t0 + i * 3600_000),
+        endTime: new Date(t0 + i * 3600_000 + 40 * 60_000),
+        chainageStartM: i * 1.5,
+        chainageEndM: (i + 1) * 1.5,
+        revolutions: 187.5,
+        penetrationMmPerRev: 8,
+      })),
+    );
 
     const summary = await refreshForecastsJob({ now: new Date() }, { projectId: project.id });
     expect(summary).toMatch(/stop\(s\) proposed/);
@@ -37,7 +53,10 @@ describe('nightly forecast refresh', () => {
     const listed = await db.select().from(stopPositions).where(eq(stopPositions.stopId, proposed[0].id));
     expect(listed.length).toBeGreaterThan(0);
     expect(listed.every((l) => drive.positions.some((p) => p.id === l.positionId))).toBe(true);
-    const mail = await db.select().from(outbox).where(sql`${planner.email} = any(${outbox.toAddresses}) and ${outbox.kind} = 'stop_proposed'`);
+    const mail = await db
+      .select()
+      .from(outbox)
+      .where(sql`${planner.email} = any(${outbox.toAddresses}) and ${outbox.kind} = 'stop_proposed'`);
     expect(mail).toHaveLength(1);
 
     // The next night the same positions are covered by the open stop: nothing new.

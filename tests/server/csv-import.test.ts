@@ -44,18 +44,38 @@ describe('detectCsvFormat', () => {
 
   it('picks the delimiter that splits the header and the following lines alike', () => {
     // derived: the header has 3 commas and no semicolon; every row has 3 commas.
-    expect(detectCsvFormat(bytes('Ring,Start,End,Pen\n1,a,b,7.9\n2,c,d,8.4\n'), true)).toEqual({ ok: true, bom: false, delimiter: ',', decimalComma: false });
-    expect(detectCsvFormat(bytes('Ring\tStart\tPen\n1\ta\t7.9\n'), true)).toEqual({ ok: true, bom: false, delimiter: '\t', decimalComma: false });
+    expect(detectCsvFormat(bytes('Ring,Start,End,Pen\n1,a,b,7.9\n2,c,d,8.4\n'), true)).toEqual({
+      ok: true,
+      bom: false,
+      delimiter: ',',
+      decimalComma: false,
+    });
+    expect(detectCsvFormat(bytes('Ring\tStart\tPen\n1\ta\t7.9\n'), true)).toEqual({
+      ok: true,
+      bom: false,
+      delimiter: '\t',
+      decimalComma: false,
+    });
   });
 
   it('prefers the semicolon when decimal commas add commas to the rows only', () => {
     // derived: the header has 2 semicolons and no comma, so a comma cannot be the delimiter.
-    expect(detectCsvFormat(bytes('Ring;From;Pen\n101;2450,0;7,9\n102;2451,5;8,4\n'), true)).toEqual({ ok: true, bom: false, delimiter: ';', decimalComma: true });
+    expect(detectCsvFormat(bytes('Ring;From;Pen\n101;2450,0;7,9\n102;2451,5;8,4\n'), true)).toEqual({
+      ok: true,
+      bom: false,
+      delimiter: ';',
+      decimalComma: true,
+    });
   });
 
   it('does not count a comma inside a quoted header name', () => {
     // derived: outside quotes the header has 2 semicolons and 0 commas.
-    expect(detectCsvFormat(bytes('Ring;"Thrust, total (kN)";Pen\n101;11800;7.9\n'), true)).toEqual({ ok: true, bom: false, delimiter: ';', decimalComma: false });
+    expect(detectCsvFormat(bytes('Ring;"Thrust, total (kN)";Pen\n101;11800;7.9\n'), true)).toEqual({
+      ok: true,
+      bom: false,
+      delimiter: ';',
+      decimalComma: false,
+    });
   });
 
   it('finds no decimal comma in a comma-separated file, even in quoted values', () => {
@@ -73,8 +93,14 @@ describe('detectCsvFormat', () => {
   });
 
   it('refuses NUL bytes, bytes that are not UTF-8 and a header without delimiter', () => {
-    expect(detectCsvFormat(Uint8Array.from([0x52, 0x69, 0x00, 0x6e, 0x67]))).toMatchObject({ ok: false, error: { row: 0, message: expect.stringMatching(/not a text file/) } });
-    expect(detectCsvFormat(Uint8Array.from([0x52, 0x69, 0x6e, 0x67, 0x3b, 0xdc, 0x0a]))).toMatchObject({ ok: false, error: { row: 0, message: expect.stringMatching(/not UTF-8/) } });
+    expect(detectCsvFormat(Uint8Array.from([0x52, 0x69, 0x00, 0x6e, 0x67]))).toMatchObject({
+      ok: false,
+      error: { row: 0, message: expect.stringMatching(/not a text file/) },
+    });
+    expect(detectCsvFormat(Uint8Array.from([0x52, 0x69, 0x6e, 0x67, 0x3b, 0xdc, 0x0a]))).toMatchObject({
+      ok: false,
+      error: { row: 0, message: expect.stringMatching(/not UTF-8/) },
+    });
     expect(detectCsvFormat(bytes('Ring Start End\n1 a b\n'), true)).toMatchObject({ ok: false, error: { row: 1, column: '' } });
   });
 });
@@ -132,16 +158,34 @@ describe('good files', () => {
     });
     // derived: fixture line 2, "14.03.2026 06:00" local; Zurich keeps UTC+1 until 29 March 2026
     // (EU summer time starts on the last Sunday of March, Directive 2000/84/EC).
-    expect(rows[0].data).toMatchObject({ ringNumber: 101, startTime: '2026-03-14T06:00:00+01:00', chainageStartM: 2450, chainageEndM: 2451.5, penetrationMmPerRev: 7.9, rpm: 5.2 });
+    expect(rows[0].data).toMatchObject({
+      ringNumber: 101,
+      startTime: '2026-03-14T06:00:00+01:00',
+      chainageStartM: 2450,
+      chainageEndM: 2451.5,
+      penetrationMmPerRev: 7.9,
+      rpm: 5.2,
+    });
     expect(rows[11].data).toMatchObject({ ringNumber: 112, chainageStartM: 2466.5, penetrationMmPerRev: 5.3, rpm: 6.5 }); // derived: fixture line 13
   });
 
   it('reads a tab file of a drive whose chainage decreases, penetration only', async () => {
-    const result = await readAdvanceLogCsv(fixture('good-csv', 'advance-log-tab-decreasing.csv'), { timeZone: 'Asia/Kolkata', direction: 'decreasing' });
+    const result = await readAdvanceLogCsv(fixture('good-csv', 'advance-log-tab-decreasing.csv'), {
+      timeZone: 'Asia/Kolkata',
+      direction: 'decreasing',
+    });
     const rows = rowsOf(result);
     expect(rows).toHaveLength(8);
     // derived: fixture line 2; Asia/Kolkata is UTC+05:30 all year (IANA tz database).
-    expect(rows[0].data).toMatchObject({ ringNumber: 1, startTime: '2026-03-14T06:00:00+05:30', chainageStartM: 5210, chainageEndM: 5208.5, revolutions: null, penetrationMmPerRev: 7.9, thrustKn: null });
+    expect(rows[0].data).toMatchObject({
+      ringNumber: 1,
+      startTime: '2026-03-14T06:00:00+05:30',
+      chainageStartM: 5210,
+      chainageEndM: 5208.5,
+      revolutions: null,
+      penetrationMmPerRev: 7.9,
+      thrustKn: null,
+    });
   });
 
   it('reads a geology long section', async () => {
@@ -151,7 +195,14 @@ describe('good files', () => {
     expect(rows.map((r) => r.data)).toEqual([
       { chainageFromM: 2400, chainageToM: 2520, groundTypeName: 'Marl', waterHeadM: 18.5, stopAllowed: true, stopReason: null },
       { chainageFromM: 2520, chainageToM: 2610, groundTypeName: 'Sandstone', waterHeadM: 21, stopAllowed: true, stopReason: null },
-      { chainageFromM: 2610, chainageToM: 2655, groundTypeName: 'Fault zone', waterHeadM: 24.5, stopAllowed: false, stopReason: 'fractured ground, no face support' },
+      {
+        chainageFromM: 2610,
+        chainageToM: 2655,
+        groundTypeName: 'Fault zone',
+        waterHeadM: 24.5,
+        stopAllowed: false,
+        stopReason: 'fractured ground, no face support',
+      },
       { chainageFromM: 2655, chainageToM: 2900, groundTypeName: 'Granite', waterHeadM: 16, stopAllowed: true, stopReason: null },
     ]); // derived: fixture lines 2–5
   });
@@ -165,7 +216,9 @@ describe('good files', () => {
       [null, false, 'below the river'],
     ]);
     // derived: line 2 ends at 2520, line 3 starts at 2540.
-    expect(result.warnings).toEqual([issue(3, 'from', /No section covers chainage 2520–2540 m \(between the sections on lines 2 and 3\).*unknown ground/)]);
+    expect(result.warnings).toEqual([
+      issue(3, 'from', /No section covers chainage 2520–2540 m \(between the sections on lines 2 and 3\).*unknown ground/),
+    ]);
     expect(result.detected).toMatchObject({ delimiter: ';', decimalComma: true });
   });
 });
@@ -176,13 +229,25 @@ describe('bad files: each error on the right line and column', () => {
     ['pipe-delimited.csv', [issue(1, '', /no comma, semicolon or tab.*It seems to use '\|'/)]],
     ['no-header.csv', [issue(1, '', /first line holds values such as '101', not column names/)]],
     ['duplicate-ring.csv', [issue(5, 'Ring', /Ring 103 is already on line 4/)]],
-    ['text-in-number.csv', [issue(4, 'Thrust (kN)', /Thrust \(kN\) must be a number; 'n\/a' is not one/), issue(7, 'Penetration (mm/rev)', /'10,1' has a comma.*decimal point/)]],
+    [
+      'text-in-number.csv',
+      [
+        issue(4, 'Thrust (kN)', /Thrust \(kN\) must be a number; 'n\/a' is not one/),
+        issue(7, 'Penetration (mm/rev)', /'10,1' has a comma.*decimal point/),
+      ],
+    ],
     ['empty.csv', [issue(0, '', /The file is empty/)]],
     ['row-with-three-columns.csv', [issue(6, '', /^Row has 3 columns, header has 9\./)]],
     ['chainage-reversed.csv', [issue(6, 'Chainage end (m)', /wrong way: .*increases.*from 2457\.5 to 2456 m/)]],
-    ['dates-in-two-formats.csv', [issue(7, 'Start time', /^Dates in two formats: 5 rows use YYYY-MM-DD.*, 3 rows DD\.MM\.YYYY hh:mm \(lines 7, 8, 9\)/)]],
+    [
+      'dates-in-two-formats.csv',
+      [issue(7, 'Start time', /^Dates in two formats: 5 rows use YYYY-MM-DD.*, 3 rows DD\.MM\.YYYY hh:mm \(lines 7, 8, 9\)/)],
+    ],
     ['stroke-overlaps-previous.csv', [issue(7, 'Chainage start (m)', /overlaps ring 105 \(line 6\) over chainage 2457–2457\.5 m/)]],
-    ['stroke-starts-before-previous-ends.csv', [issue(5, 'Start time', /starts at 2026-03-14T08:32:00\+01:00, before ring 103 \(line 4\) ended at 2026-03-14T08:42:00\+01:00/)]],
+    [
+      'stroke-starts-before-previous-ends.csv',
+      [issue(5, 'Start time', /starts at 2026-03-14T08:32:00\+01:00, before ring 103 \(line 4\) ended at 2026-03-14T08:42:00\+01:00/)],
+    ],
     ['header-only.csv', [issue(0, '', /column names but no data rows/)]],
     ['negative-revolutions.csv', [issue(4, 'Cutterhead revolutions', /cannot be negative/)]],
     ['end-before-start.csv', [issue(8, 'End time', /end time is not after the start time/)]],
@@ -212,7 +277,10 @@ describe('bad files: each error on the right line and column', () => {
     ['no-revolutions-no-penetration.csv', [issue(5, 'Cutterhead revolutions', /Neither revolutions nor penetration/)]],
     [
       'local-time-skipped-by-clock-change.csv',
-      [issue(3, 'End time', /'29\.03\.2026 02:04' does not exist in Europe\/Zurich/), issue(4, 'Start time', /'29\.03\.2026 02:30' does not exist/)],
+      [
+        issue(3, 'End time', /'29\.03\.2026 02:04' does not exist in Europe\/Zurich/),
+        issue(4, 'Start time', /'29\.03\.2026 02:30' does not exist/),
+      ],
     ],
     ['impossible-date.csv', [issue(4, 'Start time', /'2026-02-30T08:00:00\+01:00' is not a real date/)]],
     ['zero-length-stroke.csv', [issue(3, 'Chainage end (m)', /equals chainage start \(2451\.5 m\)/)]],
@@ -237,12 +305,17 @@ describe('bad files: each error on the right line and column', () => {
       ],
     ],
     ['geology-missing-stop-allowed-column.csv', [issue(1, 'Stop allowed (yes/no)', /No column for Stop allowed/)]],
-    ['geology-unreadable-water-head.csv', [issue(3, 'water_head_m', /Water head above axis \(m\) must be a number; 'about 20' is not one/)]],
+    [
+      'geology-unreadable-water-head.csv',
+      [issue(3, 'water_head_m', /Water head above axis \(m\) must be a number; 'about 20' is not one/)],
+    ],
   ];
 
   it.each(cases)('%s', async (file, expected) => {
     const source = fixture('bad-csv', file);
-    const result: CsvImportResult<unknown, string> = file.startsWith('geology-') ? await readGeologyCsv(source) : await readAdvanceLogCsv(source, ZURICH);
+    const result: CsvImportResult<unknown, string> = file.startsWith('geology-')
+      ? await readGeologyCsv(source)
+      : await readAdvanceLogCsv(source, ZURICH);
     expect(errorsOf(result)).toEqual(expected);
     expect(failureOf(result).errorCount).toBe(expected.length);
   });
@@ -358,7 +431,9 @@ describe('mapping, times and checks between rows (inline files)', () => {
     const text = `Ring,Stroke,${HEADER.slice('Ring,'.length)}\n${rows.map((r, i) => r.replace(/^(\d+),/, `$1,${7 + i},`)).join('\n')}\n`;
     const guessed = await readAdvanceLogCsv(textStream(text), ZURICH);
     expect(rowsOf(guessed).map((r) => r.data.ringNumber)).toEqual([101, 102]);
-    expect(guessed.warnings).toEqual([issue(1, 'Ring', /Columns 'Ring' and 'Stroke' could each be Ring \/ stroke number; 'Ring' was used/)]);
+    expect(guessed.warnings).toEqual([
+      issue(1, 'Ring', /Columns 'Ring' and 'Stroke' could each be Ring \/ stroke number; 'Ring' was used/),
+    ]);
 
     const chosen = await readAdvanceLogCsv(textStream(text), { ...ZURICH, mapping: { ringNumber: 'Stroke' } });
     expect(rowsOf(chosen).map((r) => [r.data.ringNumber, r.data.extra])).toEqual([
@@ -370,8 +445,13 @@ describe('mapping, times and checks between rows (inline files)', () => {
   });
 
   it('reports a mapping to a column the file does not have', async () => {
-    const result = await readAdvanceLogCsv(textStream(`${HEADER}\n${rows.join('\n')}\n`), { ...ZURICH, mapping: { thrustKn: 'Jack force' } });
-    expect(errorsOf(result)).toEqual([issue(1, 'Jack force', /reads Thrust \(kN\) from 'Jack force', but the file has no column of that name/)]);
+    const result = await readAdvanceLogCsv(textStream(`${HEADER}\n${rows.join('\n')}\n`), {
+      ...ZURICH,
+      mapping: { thrustKn: 'Jack force' },
+    });
+    expect(errorsOf(result)).toEqual([
+      issue(1, 'Jack force', /reads Thrust \(kN\) from 'Jack force', but the file has no column of that name/),
+    ]);
   });
 
   it('converts times with an offset into the project time zone, seconds and fractions optional', async () => {
@@ -386,7 +466,9 @@ describe('mapping, times and checks between rows (inline files)', () => {
     // 02:30 in Zurich happens at 00:30 UTC (+02:00) and again at 01:30 UTC (+01:00): the second counts.
     const text = `${HEADER}\n${strokeRow(101, '2026-10-25T02:30', '2026-10-25T03:05', 2450, 2451.5)}\n`;
     expect(rowsOf(await readAdvanceLogCsv(textStream(text), ZURICH))[0].data.startTime).toBe('2026-10-25T02:30:00+01:00');
-    expect(rowsOf(await readAdvanceLogCsv(textStream(text), { ...ZURICH, timeZone: 'UTC' }))[0].data.startTime).toBe('2026-10-25T02:30:00+00:00');
+    expect(rowsOf(await readAdvanceLogCsv(textStream(text), { ...ZURICH, timeZone: 'UTC' }))[0].data.startTime).toBe(
+      '2026-10-25T02:30:00+00:00',
+    );
   });
 
   it('rejects a time zone the runtime does not know (a caller mistake, not a file error)', async () => {
@@ -402,18 +484,33 @@ describe('mapping, times and checks between rows (inline files)', () => {
     const touching = `${HEADER}\n${strokeRow(101, '2026-03-14T06:00', '2026-03-14T06:37', 2450, 2451.5)}\n${strokeRow(102, '2026-03-14T07:00', '2026-03-14T07:34', 2451.499, 2453)}\n`;
     expect(rowsOf(await readAdvanceLogCsv(textStream(touching), ZURICH))).toHaveLength(2);
     const overlapping = touching.replace('2451.499', '2451.498');
-    expect(errorsOf(await readAdvanceLogCsv(textStream(overlapping), ZURICH))).toEqual([issue(3, 'Chainage start (m)', /overlaps ring 101 \(line 2\) over chainage 2451\.498–2451\.5 m/)]);
+    expect(errorsOf(await readAdvanceLogCsv(textStream(overlapping), ZURICH))).toEqual([
+      issue(3, 'Chainage start (m)', /overlaps ring 101 \(line 2\) over chainage 2451\.498–2451\.5 m/),
+    ]);
   });
 
   it('reports rows out of order by chainage and by start time', async () => {
     const behind = `${HEADER}\n${rows[0]}\n${strokeRow(102, '2026-03-14T07:00', '2026-03-14T07:34', 2440, 2441.5)}\n`;
-    expect(errorsOf(await readAdvanceLogCsv(textStream(behind), ZURICH))).toEqual([issue(3, 'Chainage start (m)', /out of order: this stroke starts at chainage 2440 m, behind ring 101 \(line 2\)/)]);
+    expect(errorsOf(await readAdvanceLogCsv(textStream(behind), ZURICH))).toEqual([
+      issue(3, 'Chainage start (m)', /out of order: this stroke starts at chainage 2440 m, behind ring 101 \(line 2\)/),
+    ]);
     const earlier = `${HEADER}\n${rows[0]}\n${strokeRow(102, '2026-03-14T05:00', '2026-03-14T05:34', 2451.5, 2453)}\n`;
-    expect(errorsOf(await readAdvanceLogCsv(textStream(earlier), ZURICH))).toEqual([issue(3, 'Start time', /out of order: this stroke starts at 2026-03-14T05:00:00\+01:00, before ring 101/)]);
+    expect(errorsOf(await readAdvanceLogCsv(textStream(earlier), ZURICH))).toEqual([
+      issue(3, 'Start time', /out of order: this stroke starts at 2026-03-14T05:00:00\+01:00, before ring 101/),
+    ]);
   });
 
   it('collects every error but returns at most maxErrors of them', async () => {
-    const lines = Array.from({ length: 300 }, (_, i) => strokeRow(i + 1, `2026-03-${String(1 + Math.floor(i / 24)).padStart(2, '0')}T${String(i % 24).padStart(2, '0')}:00`, `2026-03-${String(1 + Math.floor(i / 24)).padStart(2, '0')}T${String(i % 24).padStart(2, '0')}:40`, 1000 + 1.5 * i, 1001.5 + 1.5 * i, 'high'));
+    const lines = Array.from({ length: 300 }, (_, i) =>
+      strokeRow(
+        i + 1,
+        `2026-03-${String(1 + Math.floor(i / 24)).padStart(2, '0')}T${String(i % 24).padStart(2, '0')}:00`,
+        `2026-03-${String(1 + Math.floor(i / 24)).padStart(2, '0')}T${String(i % 24).padStart(2, '0')}:40`,
+        1000 + 1.5 * i,
+        1001.5 + 1.5 * i,
+        'high',
+      ),
+    );
     const result = await readAdvanceLogCsv(textStream(`${HEADER},Thrust (kN)\n${lines.join('\n')}\n`), { ...ZURICH, maxErrors: 25 });
     expect(errorsOf(result)).toHaveLength(25);
     expect(failureOf(result).errorCount).toBe(300); // derived: one bad thrust on each of 300 rows
@@ -441,9 +538,21 @@ describe('mapping, times and checks between rows (inline files)', () => {
 describe('header names with units joined by "_", unused columns, ground properties, the layout', () => {
   it('compares header names with the unit joined by a space, an underscore or in brackets alike', () => {
     // common practice, no source: "name_unit" is how machine data systems and Kerfwise's own export write units.
-    for (const header of ['water_head_m', 'Water head (m)', 'WATER HEAD m', 'water head']) expect(normalizeHeader(header)).toBe('waterhead');
-    expect(['penetration_mm_per_rev', 'penetration_mm_rev', 'Penetration [mm/rev]'].map(normalizeHeader)).toEqual(['penetration', 'penetration', 'penetration']);
-    expect(['thrust_kn', 'torque_knm', 'ucs_mpa', 'chainage_start_m', 'disc_size_in', 'tilt_deg'].map(normalizeHeader)).toEqual(['thrust', 'torque', 'ucs', 'chainagestart', 'discsize', 'tilt']);
+    for (const header of ['water_head_m', 'Water head (m)', 'WATER HEAD m', 'water head'])
+      expect(normalizeHeader(header)).toBe('waterhead');
+    expect(['penetration_mm_per_rev', 'penetration_mm_rev', 'Penetration [mm/rev]'].map(normalizeHeader)).toEqual([
+      'penetration',
+      'penetration',
+      'penetration',
+    ]);
+    expect(['thrust_kn', 'torque_knm', 'ucs_mpa', 'chainage_start_m', 'disc_size_in', 'tilt_deg'].map(normalizeHeader)).toEqual([
+      'thrust',
+      'torque',
+      'ucs',
+      'chainagestart',
+      'discsize',
+      'tilt',
+    ]);
   });
 
   it("reads the advance log under the headers of Kerfwise's own export", async () => {
@@ -452,28 +561,44 @@ describe('header names with units joined by "_", unused columns, ground properti
     const text = `${header}\n101,2026-03-14T05:00:00.000Z,2026-03-14T05:37:00.000Z,2450,2451.5,190,7.9,5.2,11800,2450\n`;
     const result = await readAdvanceLogCsv(textStream(text), ZURICH);
     expect(rowsOf(result)[0].data).toEqual({
-      ringNumber: 101, startTime: '2026-03-14T06:00:00+01:00', endTime: '2026-03-14T06:37:00+01:00', chainageStartM: 2450, chainageEndM: 2451.5,
-      revolutions: 190, penetrationMmPerRev: 7.9, rpm: 5.2, thrustKn: 11800, torqueKnm: 2450, extra: {},
+      ringNumber: 101,
+      startTime: '2026-03-14T06:00:00+01:00',
+      endTime: '2026-03-14T06:37:00+01:00',
+      chainageStartM: 2450,
+      chainageEndM: 2451.5,
+      revolutions: 190,
+      penetrationMmPerRev: 7.9,
+      rpm: 5.2,
+      thrustKn: 11800,
+      torqueKnm: 2450,
+      extra: {},
     });
     expect(result.unusedColumns).toEqual([]);
   });
 
   it('reads water head, UCS and CAI of a long section written with "_" units, and lists a column it does not read', async () => {
-    const text = 'chainage_from_m,chainage_to_m,ground_type,water_head_m,stop_allowed,stop_reason,ucs_mpa,cai,logged_by\n2400,2520,Marl,18.5,yes,,45,1.2,AB\n2520,2610,Sandstone,21,yes,,80,2.4,AB\n';
+    const text =
+      'chainage_from_m,chainage_to_m,ground_type,water_head_m,stop_allowed,stop_reason,ucs_mpa,cai,logged_by\n2400,2520,Marl,18.5,yes,,45,1.2,AB\n2520,2610,Sandstone,21,yes,,80,2.4,AB\n';
     const result = await readGeologyCsv(textStream(text));
     // derived: the inline file above, line by line.
-    expect(rowsOf(result).map((r) => [r.data.waterHeadM, r.data.ucsMpa, r.data.cai])).toEqual([[18.5, 45, 1.2], [21, 80, 2.4]]);
+    expect(rowsOf(result).map((r) => [r.data.waterHeadM, r.data.ucsMpa, r.data.cai])).toEqual([
+      [18.5, 45, 1.2],
+      [21, 80, 2.4],
+    ]);
     expect(result.unusedColumns).toEqual(['logged_by']);
   });
 
   it('refuses two rows of one ground type with different CAI', async () => {
     const text = 'from,to,ground,stop allowed,cai\n2400,2520,Marl,yes,1.2\n2520,2610,marl,yes,1.5\n';
-    expect(errorsOf(await readGeologyCsv(textStream(text)))).toEqual([issue(3, 'cai', /CAI 1\.5 here, but line 2 gives 1\.2 for the same ground type/)]);
+    expect(errorsOf(await readGeologyCsv(textStream(text)))).toEqual([
+      issue(3, 'cai', /CAI 1\.5 here, but line 2 gives 1\.2 for the same ground type/),
+    ]);
   });
 
   it('reads a cutterhead layout through the same reader, with errors by row and column', async () => {
     // derived: inline file; line 3 has a wear limit of 0 (must be > 0), line 4 a class Kerfwise does not know.
-    const text = 'number;track_radius_mm;class;disc_size_in;wear_limit_mm;twin_disc\n1;60;Centre;17;25;yes\n2;900;face;17;0;no\n3;1800,5;middle;17;25;no\n';
+    const text =
+      'number;track_radius_mm;class;disc_size_in;wear_limit_mm;twin_disc\n1;60;Centre;17;25;yes\n2;900;face;17;0;no\n3;1800,5;middle;17;25;no\n';
     const result = await readLayoutCsv(textStream(text));
     expect(errorsOf(result)).toEqual([
       issue(3, 'wear_limit_mm', /wear limit must be more than 0 mm/),
@@ -481,6 +606,15 @@ describe('header names with units joined by "_", unused columns, ground properti
     ]);
     expect(result.detected).toMatchObject({ delimiter: ';', decimalComma: true });
     const good = await readLayoutCsv(textStream('position,radius (mm),class,disc size,limit\n1,60,centre,17,25\n'));
-    expect(rowsOf(good)[0].data).toEqual({ number: 1, trackRadiusMm: 60, positionClass: 'centre', discSizeIn: 17, tiltDeg: null, wearLimitMm: 25, twinDisc: false, angleDeg: null });
+    expect(rowsOf(good)[0].data).toEqual({
+      number: 1,
+      trackRadiusMm: 60,
+      positionClass: 'centre',
+      discSizeIn: 17,
+      tiltDeg: null,
+      wearLimitMm: 25,
+      twinDisc: false,
+      angleDeg: null,
+    });
   });
 });

@@ -5,7 +5,13 @@
  * beyond those manual pages.
  */
 import { describe, expect, it } from 'vitest';
-import { aptGetCommand, ensureDebianPackages, MissingPackagesError, type DebianPackage, type PackageHost } from '../../server/devenv/debian-packages';
+import {
+  aptGetCommand,
+  ensureDebianPackages,
+  MissingPackagesError,
+  type DebianPackage,
+  type PackageHost,
+} from '../../server/devenv/debian-packages';
 
 function fakeHost(opts: { present: DebianPackage[]; root: boolean; aptGet?: boolean; exit?: number; installs?: boolean }) {
   const present = new Set(opts.present);
@@ -17,7 +23,8 @@ function fakeHost(opts: { present: DebianPackage[]; root: boolean; aptGet?: bool
     hasAptGet: () => opts.aptGet ?? true,
     run: (command) => {
       ran.push(command);
-      if ((opts.installs ?? true) && command.includes('install')) for (const p of ['postgresql', 'chromium'] as const) if (command.includes(p)) present.add(p);
+      if ((opts.installs ?? true) && command.includes('install'))
+        for (const p of ['postgresql', 'chromium'] as const) if (command.includes(p)) present.add(p);
       return opts.exit ?? 0;
     },
     log: (line) => logged.push(line),
@@ -45,7 +52,9 @@ describe('ensureDebianPackages', () => {
 
   it('stops a user who is not root with the exact command to run, and runs nothing', () => {
     const { host, ran } = fakeHost({ present: [], root: false });
-    const err = thrown(() => ensureDebianPackages(['postgresql'], { host, alternative: 'Or set DATABASE_URL to an existing PostgreSQL server.' }));
+    const err = thrown(() =>
+      ensureDebianPackages(['postgresql'], { host, alternative: 'Or set DATABASE_URL to an existing PostgreSQL server.' }),
+    );
     expect(err.packages).toEqual(['postgresql']);
     expect(err.message).toContain('Run as root:');
     expect(err.message).toContain('apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq postgresql');

@@ -17,8 +17,16 @@ export function launchBrowser(): Promise<Browser> {
   ensureDebianPackages(['chromium'], { host: { isRoot: () => false } });
   return chromium.launch({
     executablePath: CHROMIUM,
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
-      '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
 }
 
@@ -32,7 +40,13 @@ export async function serveApp(): Promise<{ url: string; close: () => Promise<vo
 }
 
 /** A new page at tablet size, signed in through the sign-in form (as a person would). */
-export async function signInThroughForm(browser: Browser, appUrl: string, email: string, password: string, viewport = { width: 768, height: 1024 }) {
+export async function signInThroughForm(
+  browser: Browser,
+  appUrl: string,
+  email: string,
+  password: string,
+  viewport = { width: 768, height: 1024 },
+) {
   const page = await browser.newPage({ viewport });
   await page.goto(`${appUrl}/sign-in`);
   await page.getByLabel('E-mail').fill(email);

@@ -14,11 +14,16 @@ import { PASSWORD, uniq } from './fixtures';
  */
 export function plausibleLayout(excavatedDiameterM: number) {
   const radiusMm = (excavatedDiameterM * 1000) / 2;
-  const rows: { trackRadiusMm: number; positionClass: PositionClass; twinDisc: boolean; tiltDeg: number | null; wearLimitMm: number }[] = [];
-  for (const r of [60, 150, 240, 330]) rows.push({ trackRadiusMm: r, positionClass: 'centre', twinDisc: true, tiltDeg: null, wearLimitMm: 25 });
-  for (let r = 420; r <= radiusMm - 300; r += 85) rows.push({ trackRadiusMm: r, positionClass: 'face', twinDisc: false, tiltDeg: null, wearLimitMm: 25 });
+  const rows: { trackRadiusMm: number; positionClass: PositionClass; twinDisc: boolean; tiltDeg: number | null; wearLimitMm: number }[] =
+    [];
+  for (const r of [60, 150, 240, 330])
+    rows.push({ trackRadiusMm: r, positionClass: 'centre', twinDisc: true, tiltDeg: null, wearLimitMm: 25 });
+  for (let r = 420; r <= radiusMm - 300; r += 85)
+    rows.push({ trackRadiusMm: r, positionClass: 'face', twinDisc: false, tiltDeg: null, wearLimitMm: 25 });
   const gauge = [250, 195, 140, 85, 30];
-  gauge.forEach((inset, i) => rows.push({ trackRadiusMm: radiusMm - inset, positionClass: 'gauge', twinDisc: false, tiltDeg: 20 + i * 10, wearLimitMm: 12 }));
+  gauge.forEach((inset, i) =>
+    rows.push({ trackRadiusMm: radiusMm - inset, positionClass: 'gauge', twinDisc: false, tiltDeg: 20 + i * 10, wearLimitMm: 12 }),
+  );
   return rows.map((r, i) => ({ ...r, number: i + 1, discSizeIn: 17, angleDeg: null }));
 }
 
@@ -29,22 +34,48 @@ export function plausibleLayout(excavatedDiameterM: number) {
  * the rounds routes use, so periods, serial states and events are the real ones.
  */
 export async function makeWornCutterhead(projectId: string, userId: string, excavatedDiameterM: number) {
-  const rows = await db.insert(positions).values(plausibleLayout(excavatedDiameterM).map((p) => ({ ...p, projectId }))).returning();
+  const rows = await db
+    .insert(positions)
+    .values(plausibleLayout(excavatedDiameterM).map((p) => ({ ...p, projectId })))
+    .returning();
   const radiusMm = (excavatedDiameterM * 1000) / 2;
   const tag = uniq('K').slice(2);
   const day = 24 * 3600 * 1000;
   const start = Date.parse('2026-09-01T07:00:00Z');
   const round = (j: number) =>
-    db.transaction((tx) => startRound(tx, projectId, userId, startRoundInputSchema.parse({
-      startedAt: new Date(start + j * 14 * day).toISOString(), chainageM: 100 + j * 150, ringNumber: 66 + j * 100, crew: 'Test crew',
-    })));
+    db.transaction((tx) =>
+      startRound(
+        tx,
+        projectId,
+        userId,
+        startRoundInputSchema.parse({
+          startedAt: new Date(start + j * 14 * day).toISOString(),
+          chainageM: 100 + j * 150,
+          ringNumber: 66 + j * 100,
+          crew: 'Test crew',
+        }),
+      ),
+    );
   const entry = async (round: { id: string; startedAt: Date }, input: Record<string, unknown>) => {
     const recordedAt = round.startedAt.toISOString();
-    await db.transaction((tx) => recordEntry(tx, projectId, round.id, userId, entryInputSchema.parse({ clientKey: crypto.randomUUID(), wearMm: null, recordedAt, ...input })));
+    await db.transaction((tx) =>
+      recordEntry(
+        tx,
+        projectId,
+        round.id,
+        userId,
+        entryInputSchema.parse({ clientKey: crypto.randomUUID(), wearMm: null, recordedAt, ...input }),
+      ),
+    );
   };
   const fitting = await round(0);
   for (const p of rows.slice(0, -1)) {
-    await entry(fitting, { positionId: p.id, action: 'changed', fitted: { serial: `${tag}-${p.number}`, isNew: true }, changeReason: 'First set' });
+    await entry(fitting, {
+      positionId: p.id,
+      action: 'changed',
+      fitted: { serial: `${tag}-${p.number}`, isNew: true },
+      changeReason: 'First set',
+    });
   }
   for (const j of [1, 2, 3]) {
     const r = await round(j);
@@ -53,7 +84,9 @@ export async function makeWornCutterhead(projectId: string, userId: string, exca
       const wearMm = Math.round(10 * (1 + (p.trackRadiusMm / radiusMm) * j * (p.positionClass === 'gauge' ? 4.5 : 6.5))) / 10;
       const change = j === 2 && p.number === 6;
       await entry(r, {
-        positionId: p.id, wearMm, conditions: change ? ['chipped_ring'] : ['even_wear'],
+        positionId: p.id,
+        wearMm,
+        conditions: change ? ['chipped_ring'] : ['even_wear'],
         ...(change ? { action: 'changed', fitted: { serial: `${tag}-${p.number}b`, isNew: true }, changeReason: 'Chipped ring' } : {}),
       });
     }

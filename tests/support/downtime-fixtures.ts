@@ -19,17 +19,48 @@ export const springEvents = [
 
 /** Two strokes of 1.5 m, 2 h of boring each, in 2026-W13. */
 export const springStrokes = [
-  { ringNumber: 1, startTime: new Date('2026-03-24T08:00:00Z'), endTime: new Date('2026-03-24T10:00:00Z'), chainageStartM: 100, chainageEndM: 101.5 },
-  { ringNumber: 2, startTime: new Date('2026-03-25T08:00:00Z'), endTime: new Date('2026-03-25T10:00:00Z'), chainageStartM: 101.5, chainageEndM: 103 },
+  {
+    ringNumber: 1,
+    startTime: new Date('2026-03-24T08:00:00Z'),
+    endTime: new Date('2026-03-24T10:00:00Z'),
+    chainageStartM: 100,
+    chainageEndM: 101.5,
+  },
+  {
+    ringNumber: 2,
+    startTime: new Date('2026-03-25T08:00:00Z'),
+    endTime: new Date('2026-03-25T10:00:00Z'),
+    chainageStartM: 101.5,
+    chainageEndM: 103,
+  },
 ];
 
 /** A new drive (Europe/Zurich) with the default causes, Day 06:00 / Night 18:00 shifts, and the spring events and strokes above. */
 export async function makeSpringDowntimeDrive() {
   const project = await makeProject();
   await ensureDefaultCauses(db, project.id, null);
-  await db.insert(siteSettings).values({ projectId: project.id, shifts: [{ name: 'Day', start: '06:00' }, { name: 'Night', start: '18:00' }], labourRatePerHour: '80.00', gapMinutes: 90 });
-  const causes = new Map((await db.select().from(downtimeCauses).where(eq(downtimeCauses.projectId, project.id))).map((c) => [c.name, c.id]));
-  await db.insert(downtimeEvents).values(springEvents.map((e) => ({ projectId: project.id, startAt: new Date(e.startAt), endAt: new Date(e.endAt), causeId: causes.get(e.cause)! })));
+  await db.insert(siteSettings).values({
+    projectId: project.id,
+    shifts: [
+      { name: 'Day', start: '06:00' },
+      { name: 'Night', start: '18:00' },
+    ],
+    labourRatePerHour: '80.00',
+    gapMinutes: 90,
+  });
+  const causes = new Map(
+    (await db.select().from(downtimeCauses).where(eq(downtimeCauses.projectId, project.id))).map((c) => [c.name, c.id]),
+  );
+  await db
+    .insert(downtimeEvents)
+    .values(
+      springEvents.map((e) => ({
+        projectId: project.id,
+        startAt: new Date(e.startAt),
+        endAt: new Date(e.endAt),
+        causeId: causes.get(e.cause)!,
+      })),
+    );
   await db.insert(strokes).values(springStrokes.map((s) => ({ ...s, projectId: project.id })));
   return project;
 }

@@ -18,7 +18,13 @@ export async function makeUser(opts: { isAdmin?: boolean; active?: boolean } = {
   const email = `${uniq('user')}@kerfwise.test`;
   const [u] = await db
     .insert(users)
-    .values({ email, name: email.split('@')[0], isAdmin: opts.isAdmin ?? false, active: opts.active ?? true, passwordHash: await passwordHash })
+    .values({
+      email,
+      name: email.split('@')[0],
+      isAdmin: opts.isAdmin ?? false,
+      active: opts.active ?? true,
+      passwordHash: await passwordHash,
+    })
     .returning();
   return u;
 }
@@ -26,7 +32,13 @@ export async function makeUser(opts: { isAdmin?: boolean; active?: boolean } = {
 export async function makeProject() {
   const [p] = await db
     .insert(projects)
-    .values({ name: uniq('Test drive'), excavatedDiameterM: 6.2, startChainageM: 0, driveDirection: 'increasing', siteTimeZone: 'Europe/Zurich' })
+    .values({
+      name: uniq('Test drive'),
+      excavatedDiameterM: 6.2,
+      startChainageM: 0,
+      driveDirection: 'increasing',
+      siteTimeZone: 'Europe/Zurich',
+    })
     .returning();
   return p;
 }

@@ -10,11 +10,15 @@ import { spawnSync } from 'node:child_process';
 import { expect, it } from 'vitest';
 
 function runFixtures(...args: string[]) {
-  const run = spawnSync(process.execPath, ['node_modules/vitest/vitest.mjs', 'run', '--config', 'tests/fixtures/totals/vitest.config.ts', ...args], {
-    encoding: 'utf8',
-    env: { ...process.env, NODE_ENV: 'test' },
-    timeout: 120_000,
-  });
+  const run = spawnSync(
+    process.execPath,
+    ['node_modules/vitest/vitest.mjs', 'run', '--config', 'tests/fixtures/totals/vitest.config.ts', ...args],
+    {
+      encoding: 'utf8',
+      env: { ...process.env, NODE_ENV: 'test' },
+      timeout: 120_000,
+    },
+  );
   return { status: run.status, last: run.stdout.trim().split('\n').at(-1), output: run.stdout + run.stderr };
 }
 

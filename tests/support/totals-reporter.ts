@@ -38,7 +38,8 @@ function setUpFailed(test: TestCase): boolean {
   }
 }
 
-export const formatTotals = ({ passed, failed, skipped }: Totals) => `${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`;
+export const formatTotals = ({ passed, failed, skipped }: Totals) =>
+  `${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`;
 
 /** Where the run's file list is left for the global set-up (same process; module instances may differ). */
 const BROWSER_TESTS_KEY = Symbol.for('kerfwise.runIncludesBrowserTests');

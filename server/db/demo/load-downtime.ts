@@ -13,7 +13,11 @@ import { ensureDefaultCauses, proposeGapEvents } from '../../services/downtime';
 
 /** Causes of the other standstills with their weight and typical notes (invented). */
 const otherStandstills: { cause: string; weight: number; notes: string[] }[] = [
-  { cause: 'Machine breakdown', weight: 0.25, notes: ['Hydraulic hose burst on the gripper', 'Main drive motor tripped', 'Grease pump fault'] },
+  {
+    cause: 'Machine breakdown',
+    weight: 0.25,
+    notes: ['Hydraulic hose burst on the gripper', 'Main drive motor tripped', 'Grease pump fault'],
+  },
   { cause: 'Lining supply', weight: 0.2, notes: ['Rock bolts and mesh late to the face', 'Shotcrete delivery late'] },
   { cause: 'Muck removal', weight: 0.2, notes: ['Conveyor belt splice', 'Conveyor belt misaligned', 'Muck train derailed'] },
   { cause: 'Survey', weight: 0.1, notes: ['Guidance laser station moved forward', 'Guidance system reset'] },
@@ -26,13 +30,28 @@ const UNEXPLAINED_DAYS = 7;
 export async function loadDemoDowntime(tx: DbOrTx, projectId: string): Promise<void> {
   await ensureDefaultCauses(tx, projectId, null);
   // A crew hour of cutter work at the demo's invented rate (four people at 70 an hour).
-  await tx.insert(siteSettings).values({
-    projectId, shifts: [{ name: 'Day', start: '06:00' }, { name: 'Night', start: '18:00' }], labourRatePerHour: '280.00', gapMinutes: 90,
-  }).onConflictDoNothing();
-  const [existing] = await tx.select({ id: downtimeEvents.id }).from(downtimeEvents).where(eq(downtimeEvents.projectId, projectId)).limit(1);
+  await tx
+    .insert(siteSettings)
+    .values({
+      projectId,
+      shifts: [
+        { name: 'Day', start: '06:00' },
+        { name: 'Night', start: '18:00' },
+      ],
+      labourRatePerHour: '280.00',
+      gapMinutes: 90,
+    })
+    .onConflictDoNothing();
+  const [existing] = await tx
+    .select({ id: downtimeEvents.id })
+    .from(downtimeEvents)
+    .where(eq(downtimeEvents.projectId, projectId))
+    .limit(1);
   if (existing) return;
 
-  const causes = new Map((await tx.select().from(downtimeCauses).where(eq(downtimeCauses.projectId, projectId))).map((c) => [c.name, c.id]));
+  const causes = new Map(
+    (await tx.select().from(downtimeCauses).where(eq(downtimeCauses.projectId, projectId))).map((c) => [c.name, c.id]),
+  );
 
   // Each round's stop: from the round's start until the next stroke starts.
   const rounds = await tx
@@ -66,7 +85,10 @@ export async function loadDemoDowntime(tx: DbOrTx, projectId: string): Promise<v
 
   // The other standstills: proposed from the log, then explained as a site manager would.
   await proposeGapEvents(tx, projectId, null);
-  const [{ lastEnd }] = await tx.select({ lastEnd: max(strokes.endTime) }).from(strokes).where(eq(strokes.projectId, projectId));
+  const [{ lastEnd }] = await tx
+    .select({ lastEnd: max(strokes.endTime) })
+    .from(strokes)
+    .where(eq(strokes.projectId, projectId));
   const explainedUntilMs = lastEnd ? new Date(lastEnd).getTime() - UNEXPLAINED_DAYS * 86_400_000 : Infinity;
   const gaps = await tx
     .select({ id: downtimeEvents.id, startAt: downtimeEvents.startAt })
@@ -79,6 +101,9 @@ export async function loadDemoDowntime(tx: DbOrTx, projectId: string): Promise<v
     let pick = rand();
     const choice = otherStandstills.find((c) => (pick -= c.weight) < 0) ?? otherStandstills[otherStandstills.length - 1];
     const note = choice.notes[Math.floor(rand() * choice.notes.length)];
-    await tx.update(downtimeEvents).set({ causeId: causes.get(choice.cause)!, note }).where(eq(downtimeEvents.id, gap.id));
+    await tx
+      .update(downtimeEvents)
+      .set({ causeId: causes.get(choice.cause)!, note })
+      .where(eq(downtimeEvents.id, gap.id));
   }
 }

@@ -25,11 +25,61 @@ export interface DemoGroundType {
 }
 
 export const demoGroundTypes: DemoGroundType[] = [
-  { key: 'gneiss', name: 'Banded gneiss', description: 'Grey banded granitic gneiss, massive to blocky', ucsMpa: 165, cai: 4.1, quartzPct: 32, trueRateMmPerKm: 0.034, penetrationMmPerRev: 7.5, failuresPer1000Km: 1.2 },
-  { key: 'schist', name: 'Mica schist', description: 'Foliated mica schist with thin quartz lenses', ucsMpa: 75, cai: 2.2, quartzPct: 18, trueRateMmPerKm: 0.009, penetrationMmPerRev: 11, failuresPer1000Km: 0.5 },
-  { key: 'quartzite', name: 'Quartzite band', description: 'Fine-grained quartzite, very hard and abrasive', ucsMpa: 230, cai: 5.3, quartzPct: 85, trueRateMmPerKm: 0.058, penetrationMmPerRev: 4.5, failuresPer1000Km: 3.5 },
-  { key: 'crushed', name: 'Crushed zone', description: 'Fault breccia and gouge, blocky and wet', ucsMpa: 25, cai: 1.4, quartzPct: 20, trueRateMmPerKm: 0.006, penetrationMmPerRev: 13, failuresPer1000Km: 4 },
-  { key: 'metasandstone', name: 'Metasandstone', description: 'Massive metasandstone (ahead; no cutter data yet)', ucsMpa: 190, cai: 3.7, quartzPct: 60, trueRateMmPerKm: 0.03, penetrationMmPerRev: 6, failuresPer1000Km: 1.5 },
+  {
+    key: 'gneiss',
+    name: 'Banded gneiss',
+    description: 'Grey banded granitic gneiss, massive to blocky',
+    ucsMpa: 165,
+    cai: 4.1,
+    quartzPct: 32,
+    trueRateMmPerKm: 0.034,
+    penetrationMmPerRev: 7.5,
+    failuresPer1000Km: 1.2,
+  },
+  {
+    key: 'schist',
+    name: 'Mica schist',
+    description: 'Foliated mica schist with thin quartz lenses',
+    ucsMpa: 75,
+    cai: 2.2,
+    quartzPct: 18,
+    trueRateMmPerKm: 0.009,
+    penetrationMmPerRev: 11,
+    failuresPer1000Km: 0.5,
+  },
+  {
+    key: 'quartzite',
+    name: 'Quartzite band',
+    description: 'Fine-grained quartzite, very hard and abrasive',
+    ucsMpa: 230,
+    cai: 5.3,
+    quartzPct: 85,
+    trueRateMmPerKm: 0.058,
+    penetrationMmPerRev: 4.5,
+    failuresPer1000Km: 3.5,
+  },
+  {
+    key: 'crushed',
+    name: 'Crushed zone',
+    description: 'Fault breccia and gouge, blocky and wet',
+    ucsMpa: 25,
+    cai: 1.4,
+    quartzPct: 20,
+    trueRateMmPerKm: 0.006,
+    penetrationMmPerRev: 13,
+    failuresPer1000Km: 4,
+  },
+  {
+    key: 'metasandstone',
+    name: 'Metasandstone',
+    description: 'Massive metasandstone (ahead; no cutter data yet)',
+    ucsMpa: 190,
+    cai: 3.7,
+    quartzPct: 60,
+    trueRateMmPerKm: 0.03,
+    penetrationMmPerRev: 6,
+    failuresPer1000Km: 1.5,
+  },
 ];
 
 export interface DemoSection {
@@ -51,10 +101,31 @@ export const demoSections: DemoSection[] = [
   { fromM: 3620, toM: 4300, groundKey: 'schist', waterHeadM: 26, stopAllowed: true, stopReason: '' },
   { fromM: 4300, toM: 5150, groundKey: 'gneiss', waterHeadM: 28, stopAllowed: true, stopReason: '' },
   { fromM: 5150, toM: 5330, groundKey: 'quartzite', waterHeadM: 30, stopAllowed: true, stopReason: '' },
-  { fromM: 5330, toM: 5420, groundKey: 'gneiss', waterHeadM: 34, stopAllowed: false, stopReason: 'Beneath the village of the valley floor: no stop' },
+  {
+    fromM: 5330,
+    toM: 5420,
+    groundKey: 'gneiss',
+    waterHeadM: 34,
+    stopAllowed: false,
+    stopReason: 'Beneath the village of the valley floor: no stop',
+  },
   { fromM: 5420, toM: 5600, groundKey: 'gneiss', waterHeadM: 34, stopAllowed: true, stopReason: '' },
-  { fromM: 5600, toM: 6400, groundKey: 'metasandstone', waterHeadM: 38, stopAllowed: true, stopReason: 'High water head under the valley: stops need compressed air' },
-  { fromM: 6400, toM: 6520, groundKey: 'crushed', waterHeadM: 40, stopAllowed: false, stopReason: 'Fault zone under the river bed: no stop' },
+  {
+    fromM: 5600,
+    toM: 6400,
+    groundKey: 'metasandstone',
+    waterHeadM: 38,
+    stopAllowed: true,
+    stopReason: 'High water head under the valley: stops need compressed air',
+  },
+  {
+    fromM: 6400,
+    toM: 6520,
+    groundKey: 'crushed',
+    waterHeadM: 40,
+    stopAllowed: false,
+    stopReason: 'Fault zone under the river bed: no stop',
+  },
   { fromM: 6520, toM: 7700, groundKey: 'metasandstone', waterHeadM: 25, stopAllowed: true, stopReason: '' },
   { fromM: 7700, toM: 8900, groundKey: 'gneiss', waterHeadM: 15, stopAllowed: true, stopReason: '' },
 ];
@@ -79,7 +150,16 @@ export function demoLayout(): DemoPosition[] {
   const list: DemoPosition[] = [];
   const add = (trackRadiusMm: number, positionClass: PositionClass, tiltDeg: number | null, wearLimitMm: number, twinDisc = false) => {
     const number = list.length + 1;
-    list.push({ number, trackRadiusMm, positionClass, discSizeIn: 17, tiltDeg, wearLimitMm, twinDisc, angleDeg: Math.round(((number - 1) * 137.5) % 360) });
+    list.push({
+      number,
+      trackRadiusMm,
+      positionClass,
+      discSizeIn: 17,
+      tiltDeg,
+      wearLimitMm,
+      twinDisc,
+      angleDeg: Math.round(((number - 1) * 137.5) % 360),
+    });
   };
   for (let i = 0; i < 4; i++) add(50 + i * 95, 'centre', null, 25, true);
   for (let i = 0; i < 34; i++) add(480 + i * 70, 'face', null, 25);
@@ -187,11 +267,25 @@ export function simulateDrive(seed = 'eskerholt-north'): DemoDrive {
     store.push(serial);
   }
   // Each position: the disc on it, its true wear, its last measured wear, a pending sudden failure.
-  const state = new Map<number, { serial: string; fitting: SimFitting; trueWearMm: number; measuredMm: number; damage: DiscCondition | null }>();
+  const state = new Map<
+    number,
+    { serial: string; fitting: SimFitting; trueWearMm: number; measuredMm: number; damage: DiscCondition | null }
+  >();
   const fit = (p: DemoPosition, at: number, chainageM: number, ring: number) => {
     const serial = store.shift();
     if (!serial) throw new Error('demo store ran out of cutters');
-    const fitting: SimFitting = { serial, positionNumber: p.number, fittedAt: new Date(at), fittedChainageM: chainageM, fittedRing: ring, removedAt: null, removedChainageM: null, removedRing: null, reason: null, conditions: null };
+    const fitting: SimFitting = {
+      serial,
+      positionNumber: p.number,
+      fittedAt: new Date(at),
+      fittedChainageM: chainageM,
+      fittedRing: ring,
+      removedAt: null,
+      removedChainageM: null,
+      removedRing: null,
+      reason: null,
+      conditions: null,
+    };
     fittingsOut.push(fitting);
     cutters.get(serial)!.status = 'fitted';
     events.push({ serial, at: new Date(at), kind: 'fitted', positionNumber: p.number, details: { chainageM, ringNumber: ring } });
@@ -215,18 +309,41 @@ export function simulateDrive(seed = 'eskerholt-north'): DemoDrive {
       const c = cutters.get(w.serial)!;
       if (c.rebuildCount >= MAX_REBUILDS || w.needs.includes('hub_damage')) {
         c.status = 'scrapped';
-        events.push({ serial: w.serial, at: new Date(w.back), kind: 'scrapped', positionNumber: null, details: { reason: w.needs.includes('hub_damage') ? 'Hub damaged' : `Worn out after ${c.rebuildCount} rebuilds` } });
+        events.push({
+          serial: w.serial,
+          at: new Date(w.back),
+          kind: 'scrapped',
+          positionNumber: null,
+          details: { reason: w.needs.includes('hub_damage') ? 'Hub damaged' : `Worn out after ${c.rebuildCount} rebuilds` },
+        });
       } else {
         c.status = 'in_store';
         c.rebuildCount += 1;
-        events.push({ serial: w.serial, at: new Date(w.back), kind: 'rebuilt', positionNumber: null, details: { outcome: 'rebuilt', newRing: true, newSeals: w.needs.includes('seal_leaking'), newBearings: w.needs.includes('bearing_fault') } });
+        events.push({
+          serial: w.serial,
+          at: new Date(w.back),
+          kind: 'rebuilt',
+          positionNumber: null,
+          details: {
+            outcome: 'rebuilt',
+            newRing: true,
+            newSeals: w.needs.includes('seal_leaking'),
+            newBearings: w.needs.includes('bearing_fault'),
+          },
+        });
         store.push(w.serial);
       }
     }
   };
 
   const inspect = (at: number) => {
-    const round: SimRound = { startedAt: new Date(at), chainageM: Math.round(chainage * 10) / 10, ringNumber: ring, crew: crews[rounds.length % crews.length], entries: [] };
+    const round: SimRound = {
+      startedAt: new Date(at),
+      chainageM: Math.round(chainage * 10) / 10,
+      ringNumber: ring,
+      crew: crews[rounds.length % crews.length],
+      entries: [],
+    };
     for (const p of layout) {
       const s = state.get(p.number)!;
       // Gauge scatter about ±0.4 mm; a measurement never reads below the last one of the same disc.
@@ -234,12 +351,26 @@ export function simulateDrive(seed = 'eskerholt-north'): DemoDrive {
       s.measuredMm = read;
       const conditions: DiscCondition[] = s.damage ? [s.damage] : ['even_wear'];
       const due = read >= p.wearLimitMm - CHANGE_MARGIN_MM || s.damage !== null;
-      const entry: SimEntry = { positionNumber: p.number, wearMm: read, conditions, changed: false, removedSerial: s.serial, fittedSerial: null, reason: null };
+      const entry: SimEntry = {
+        positionNumber: p.number,
+        wearMm: read,
+        conditions,
+        changed: false,
+        removedSerial: s.serial,
+        fittedSerial: null,
+        reason: null,
+      };
       if (due && store.length > 0) {
         const reason = s.damage ? `Damaged: ${s.damage.replace('_', ' ')}` : 'Worn to the change limit';
         Object.assign(s.fitting, { removedAt: new Date(at), removedChainageM: round.chainageM, removedRing: ring, reason, conditions });
         cutters.get(s.serial)!.status = 'workshop';
-        events.push({ serial: s.serial, at: new Date(at), kind: 'removed', positionNumber: p.number, details: { reason, conditions, wearMm: read, chainageM: round.chainageM, ringNumber: ring } });
+        events.push({
+          serial: s.serial,
+          at: new Date(at),
+          kind: 'removed',
+          positionNumber: p.number,
+          details: { reason, conditions, wearMm: read, chainageM: round.chainageM, ringNumber: ring },
+        });
         workshop.push({ serial: s.serial, back: at + WORKSHOP_DAYS * 86400_000, needs: conditions });
         fit(p, at, round.chainageM, ring);
         Object.assign(entry, { changed: true, fittedSerial: state.get(p.number)!.serial, reason });
@@ -260,11 +391,17 @@ export function simulateDrive(seed = 'eskerholt-north'): DemoDrive {
     const end = start + boreMin * 60_000;
     ring += 1;
     strokes.push({
-      ringNumber: ring, startTime: new Date(start), endTime: new Date(end), chainageStartM: chainage, chainageEndM: chainage + RING_M,
+      ringNumber: ring,
+      startTime: new Date(start),
+      endTime: new Date(end),
+      chainageStartM: chainage,
+      chainageEndM: chainage + RING_M,
       // About one ring in twenty comes without the revolution counter (logger gap): penetration stands in.
       revolutions: rand() < 0.05 ? null : Math.round(revolutions * 10) / 10,
-      penetrationMmPerRev: Math.round(penetration * 100) / 100, rpm,
-      thrustKn: Math.round(9000 + g.ucsMpa * 25 + 800 * gauss()), torqueKnm: Math.round(1800 + 1200 * rand()),
+      penetrationMmPerRev: Math.round(penetration * 100) / 100,
+      rpm,
+      thrustKn: Math.round(9000 + g.ucsMpa * 25 + 800 * gauss()),
+      torqueKnm: Math.round(1800 + 1200 * rand()),
     });
     for (const p of layout) {
       const s = state.get(p.number)!;

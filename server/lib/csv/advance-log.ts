@@ -73,21 +73,37 @@ export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLog
       }
       const firstLine = ringLines.get(row.ringNumber);
       if (firstLine !== undefined) {
-        report.error(line, 'ringNumber', `Ring ${row.ringNumber} is already on line ${firstLine}. Each ring may appear once; remove one of the two rows.`);
+        report.error(
+          line,
+          'ringNumber',
+          `Ring ${row.ringNumber} is already on line ${firstLine}. Each ring may appear once; remove one of the two rows.`,
+        );
         return;
       }
       if (previous) {
         const { line: before, data: prev } = previous;
         if (row.ringNumber < prev.ringNumber) {
-          report.error(line, 'ringNumber', `Rows out of order: ring ${row.ringNumber} comes after ring ${prev.ringNumber} (line ${before}). Sort the rows by ring number.`);
+          report.error(
+            line,
+            'ringNumber',
+            `Rows out of order: ring ${row.ringNumber} comes after ring ${prev.ringNumber} (line ${before}). Sort the rows by ring number.`,
+          );
           return;
         }
         if (aheadM(prev.chainageStartM, row.chainageStartM, direction) < 0) {
-          report.error(line, 'chainageStartM', `Rows out of order: this stroke starts at chainage ${m(row.chainageStartM)} m, behind ring ${prev.ringNumber} (line ${before}) which starts at ${m(prev.chainageStartM)} m.`);
+          report.error(
+            line,
+            'chainageStartM',
+            `Rows out of order: this stroke starts at chainage ${m(row.chainageStartM)} m, behind ring ${prev.ringNumber} (line ${before}) which starts at ${m(prev.chainageStartM)} m.`,
+          );
           return;
         }
         if (Date.parse(row.startTime) < Date.parse(prev.startTime)) {
-          report.error(line, 'startTime', `Rows out of order: this stroke starts at ${row.startTime}, before ring ${prev.ringNumber} (line ${before}) started at ${prev.startTime}.`);
+          report.error(
+            line,
+            'startTime',
+            `Rows out of order: this stroke starts at ${row.startTime}, before ring ${prev.ringNumber} (line ${before}) started at ${prev.startTime}.`,
+          );
           return;
         }
       }
@@ -95,16 +111,29 @@ export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLog
       previous = { line, data: row };
     },
     finish(rows, report, allRowsValid) {
-      const byChainage = rows.map(({ line, data }) => ({ line, row: data, from: Math.min(data.chainageStartM, data.chainageEndM), to: Math.max(data.chainageStartM, data.chainageEndM) }));
+      const byChainage = rows.map(({ line, data }) => ({
+        line,
+        row: data,
+        from: Math.min(data.chainageStartM, data.chainageEndM),
+        to: Math.max(data.chainageStartM, data.chainageEndM),
+      }));
       sweepSpans(
         byChainage,
         STROKE_CHAINAGE_TOLERANCE_M,
         (later, earlier, from, to) =>
-          report.error(later.line, 'chainageStartM', `This stroke overlaps ring ${earlier.row.ringNumber} (line ${earlier.line}) over chainage ${m(from)}–${m(to)} m. Each stretch of tunnel belongs to one stroke.`),
+          report.error(
+            later.line,
+            'chainageStartM',
+            `This stroke overlaps ring ${earlier.row.ringNumber} (line ${earlier.line}) over chainage ${m(from)}–${m(to)} m. Each stretch of tunnel belongs to one stroke.`,
+          ),
         (before, after) => {
           if (!allRowsValid) return;
           const [first, second] = before.line < after.line ? [before, after] : [after, before];
-          report.warning(second.line, 'chainageStartM', `No stroke covers chainage ${m(before.to)}–${m(after.from)} m (between lines ${first.line} and ${second.line}); the rolled distance over that stretch will be missing.`);
+          report.warning(
+            second.line,
+            'chainageStartM',
+            `No stroke covers chainage ${m(before.to)}–${m(after.from)} m (between lines ${first.line} and ${second.line}); the rolled distance over that stretch will be missing.`,
+          );
         },
       );
       const byTime = rows.map(({ line, data }) => ({ line, row: data, from: Date.parse(data.startTime), to: Date.parse(data.endTime) }));
@@ -112,7 +141,11 @@ export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLog
         byTime,
         0,
         (later, earlier) =>
-          report.error(later.line, 'startTime', `This stroke starts at ${later.row.startTime}, before ring ${earlier.row.ringNumber} (line ${earlier.line}) ended at ${earlier.row.endTime}. Two strokes cannot run at the same time.`),
+          report.error(
+            later.line,
+            'startTime',
+            `This stroke starts at ${later.row.startTime}, before ring ${earlier.row.ringNumber} (line ${earlier.line}) ended at ${earlier.row.endTime}. Two strokes cannot run at the same time.`,
+          ),
         () => undefined, // pauses between strokes are normal
       );
     },
@@ -120,7 +153,10 @@ export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLog
 }
 
 /** Reads and checks an advance log (one row per ring or stroke) from a CSV byte stream; chainage in m, times in the project's time zone. */
-export async function readAdvanceLogCsv(source: Readable, options: AdvanceLogReadOptions): Promise<CsvImportResult<AdvanceLogRow, AdvanceLogField>> {
+export async function readAdvanceLogCsv(
+  source: Readable,
+  options: AdvanceLogReadOptions,
+): Promise<CsvImportResult<AdvanceLogRow, AdvanceLogField>> {
   // Rejects with a RangeError for a time zone the runtime does not know: the caller's mistake, not the file's.
   new Intl.DateTimeFormat('en', { timeZone: options.timeZone });
   return readCsv(source, options, advanceLogTable(options.direction), options.timeZone);

@@ -43,7 +43,10 @@ function siteIso(instant: Date, timeZone: string): string {
     if (dayOffsets.size >= 10_000) dayOffsets.clear();
     dayOffsets.set(key, offsetMin);
   }
-  const iso = offsetMin === null ? isoWithSiteOffset(instant, timeZone) : `${new Date(instant.getTime() + offsetMin * 60_000).toISOString().slice(0, 19)}${offsetText(offsetMin)}`;
+  const iso =
+    offsetMin === null
+      ? isoWithSiteOffset(instant, timeZone)
+      : `${new Date(instant.getTime() + offsetMin * 60_000).toISOString().slice(0, 19)}${offsetText(offsetMin)}`;
   return iso.replace(/Z$/, '+00:00');
 }
 
@@ -59,10 +62,16 @@ export type Cell = { ok: true; value: unknown; timeFormat?: TimeFormat } | { ok:
 function readNumber(raw: string, label: string, decimalComma: boolean): Cell {
   if (decimalComma ? COMMA_NUMBER.test(raw) : POINT_NUMBER.test(raw)) return { ok: true, value: Number(raw.replace(',', '.')) };
   if (decimalComma && POINT_NUMBER.test(raw)) {
-    return { ok: false, message: `'${raw}' has a decimal point, but this file writes decimals with a comma (like 12,5): write ${raw.replace('.', ',')}.` };
+    return {
+      ok: false,
+      message: `'${raw}' has a decimal point, but this file writes decimals with a comma (like 12,5): write ${raw.replace('.', ',')}.`,
+    };
   }
   if (!decimalComma && /^[+-]?[\d,]+(\.\d+)?$/.test(raw)) {
-    return { ok: false, message: `'${raw}' has a comma, but this file writes numbers with a decimal point and no thousands separator (like 12.5 or 16000).` };
+    return {
+      ok: false,
+      message: `'${raw}' has a comma, but this file writes numbers with a decimal point and no thousands separator (like 12.5 or 16000).`,
+    };
   }
   return { ok: false, message: `${label} must be a number; '${raw}' is not one.` };
 }
@@ -135,4 +144,5 @@ export function readCell(info: CsvFieldInfo<string>, raw: string, decimalComma: 
 }
 
 /** Whether a header cell looks like a value (so the file has no header row). */
-export const looksLikeValue = (cell: string) => POINT_NUMBER.test(cell) || COMMA_NUMBER.test(cell) || ISO_TIME.test(cell) || DAY_FIRST_TIME.test(cell);
+export const looksLikeValue = (cell: string) =>
+  POINT_NUMBER.test(cell) || COMMA_NUMBER.test(cell) || ISO_TIME.test(cell) || DAY_FIRST_TIME.test(cell);

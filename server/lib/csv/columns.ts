@@ -33,8 +33,15 @@ export function planColumns<F extends string>(
   const errorsBefore = log.errorCount;
   const value = headers.find(looksLikeValue);
   if (value !== undefined) {
-    const example = table.fields.slice(0, 4).map((f) => f.label).join(', ');
-    log.error({ row: 1, column: '', message: `The first line holds values such as '${value}', not column names. Add a header row naming each column (for example ${example}).` });
+    const example = table.fields
+      .slice(0, 4)
+      .map((f) => f.label)
+      .join(', ');
+    log.error({
+      row: 1,
+      column: '',
+      message: `The first line holds values such as '${value}', not column names. Add a header row naming each column (for example ${example}).`,
+    });
     return null;
   }
   const firstIndex = new Map<string, number>();
@@ -43,7 +50,12 @@ export function planColumns<F extends string>(
     const key = header.toLowerCase();
     const first = firstIndex.get(key);
     if (first === undefined) firstIndex.set(key, i);
-    else log.error({ row: 1, column: header, message: `Two columns are named '${header}' (columns ${first + 1} and ${i + 1}). Rename or remove one.` });
+    else
+      log.error({
+        row: 1,
+        column: header,
+        message: `Two columns are named '${header}' (columns ${first + 1} and ${i + 1}). Rename or remove one.`,
+      });
   });
   if (log.errorCount > errorsBefore) return null;
 
@@ -55,7 +67,12 @@ export function planColumns<F extends string>(
     let index = headers.indexOf(name);
     if (index < 0) index = headers.findIndex((h) => h.toLowerCase() === name.toLowerCase());
     const label = table.fields.find((f) => f.field === field)?.label ?? field;
-    if (index < 0) log.error({ row: 1, column: name, message: `The column mapping reads ${label} from '${name}', but the file has no column of that name.` });
+    if (index < 0)
+      log.error({
+        row: 1,
+        column: name,
+        message: `The column mapping reads ${label} from '${name}', but the file has no column of that name.`,
+      });
     else {
       columns.set(field, index);
       used.add(index);
@@ -76,7 +93,11 @@ export function planColumns<F extends string>(
     used.add(matches[0]);
     if (matches.length > 1) {
       const names = matches.map((i) => `'${headers[i]}'`).join(' and ');
-      log.warning({ row: 1, column: headers[matches[0]], message: `Columns ${names} could each be ${info.label}; '${headers[matches[0]]}' was used. Choose another in the column mapping if that is wrong.` });
+      log.warning({
+        row: 1,
+        column: headers[matches[0]],
+        message: `Columns ${names} could each be ${info.label}; '${headers[matches[0]]}' was used. Choose another in the column mapping if that is wrong.`,
+      });
     }
   }
   for (const group of table.requiredColumns) {
@@ -84,7 +105,11 @@ export function planColumns<F extends string>(
     const infos = group.map((field) => table.fields.find((f) => f.field === field)!);
     const labels = infos.map((f) => f.label).join(' or ');
     const names = infos.map((f) => `'${f.synonyms[0]}'`).join(' or ');
-    log.error({ row: 1, column: infos[0].label, message: `No column for ${labels} was found. Name a column ${names}, or choose one in the column mapping.` });
+    log.error({
+      row: 1,
+      column: infos[0].label,
+      message: `No column for ${labels} was found. Name a column ${names}, or choose one in the column mapping.`,
+    });
   }
   if (log.errorCount > errorsBefore) return null;
   const unused = headers.flatMap((header, i): [string, number][] => (used.has(i) ? [] : [[header || `column ${i + 1}`, i]]));

@@ -75,7 +75,11 @@ export function detectCsvFormat(firstChunk: Uint8Array, isWholeFile = false): Cs
   const refuse = (error: CsvIssue): CsvFormatDetection => ({ ok: false, bom, error });
   // Zip (xlsx, ods) and OLE2 (xls) containers.
   if (startsWith(firstChunk, [0x50, 0x4b, 0x03, 0x04]) || startsWith(firstChunk, [0xd0, 0xcf, 0x11, 0xe0])) {
-    return refuse(fileIssue('This is a spreadsheet workbook, not a CSV file. Open it in the spreadsheet program and save it as "CSV UTF-8", then upload that file.'));
+    return refuse(
+      fileIssue(
+        'This is a spreadsheet workbook, not a CSV file. Open it in the spreadsheet program and save it as "CSV UTF-8", then upload that file.',
+      ),
+    );
   }
   if (firstChunk.includes(0)) {
     return refuse(fileIssue('This is not a text file (it contains NUL bytes). Save the table as CSV text and upload that file.'));
@@ -85,7 +89,11 @@ export function detectCsvFormat(firstChunk: Uint8Array, isWholeFile = false): Cs
     // Drops the BOM; { stream: true } tolerates a character cut at the end of the chunk.
     text = new TextDecoder('utf-8', { fatal: true }).decode(firstChunk, { stream: true });
   } catch {
-    return refuse(fileIssue('The file is not UTF-8 text (it may be saved in an older encoding such as Windows-1252, or not be text at all). Save it as "CSV UTF-8" and upload it again.'));
+    return refuse(
+      fileIssue(
+        'The file is not UTF-8 text (it may be saved in an older encoding such as Windows-1252, or not be text at all). Save it as "CSV UTF-8" and upload it again.',
+      ),
+    );
   }
   const lines = sampleLines(text, isWholeFile);
   if (lines.length === 0) return refuse(fileIssue('The file is empty.'));
@@ -106,6 +114,7 @@ export function detectCsvFormat(firstChunk: Uint8Array, isWholeFile = false): Cs
     });
   }
   const { delimiter } = best;
-  const decimalComma = delimiter !== ',' && data.some((line) => splitFields(line, delimiter).some((field) => DECIMAL_COMMA_VALUE.test(field.trim())));
+  const decimalComma =
+    delimiter !== ',' && data.some((line) => splitFields(line, delimiter).some((field) => DECIMAL_COMMA_VALUE.test(field.trim())));
   return { ok: true, bom, delimiter, decimalComma };
 }

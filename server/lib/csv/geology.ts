@@ -33,7 +33,11 @@ export function geologyTable(): TableSpec<GeologySectionField, GeologySectionRow
         const first = given.get(field);
         if (!first) given.set(field, { line, value });
         else if (first.value !== value) {
-          report.error(line, field, `${name} ${value}${unit} here, but line ${first.line} gives ${first.value}${unit} for the same ground type (${row.groundTypeName}). A ground type has one ${name}; make the rows agree or name the grounds apart.`);
+          report.error(
+            line,
+            field,
+            `${name} ${value}${unit} here, but line ${first.line} gives ${first.value}${unit} for the same ground type (${row.groundTypeName}). A ground type has one ${name}; make the rows agree or name the grounds apart.`,
+          );
         }
       }
     },
@@ -42,7 +46,8 @@ export function geologyTable(): TableSpec<GeologySectionField, GeologySectionRow
       const { errors, warnings } = validateGeologySections(sections);
       for (const e of errors) {
         if (e.kind !== 'overlap') continue; // a reversed range was already refused by the row schema
-        const [later, earlier] = rows[e.indexA].line > rows[e.indexB].line ? [rows[e.indexA], rows[e.indexB]] : [rows[e.indexB], rows[e.indexA]];
+        const [later, earlier] =
+          rows[e.indexA].line > rows[e.indexB].line ? [rows[e.indexA], rows[e.indexB]] : [rows[e.indexB], rows[e.indexA]];
         report.error(
           later.line,
           'chainageFromM',
@@ -52,13 +57,20 @@ export function geologyTable(): TableSpec<GeologySectionField, GeologySectionRow
       if (!allRowsValid) return;
       for (const w of warnings) {
         const [before, after] = [rows[w.beforeIndex], rows[w.afterIndex]];
-        report.warning(after.line, 'chainageFromM', `No section covers chainage ${m(w.fromM)}–${m(w.toM)} m (between the sections on lines ${before.line} and ${after.line}); that stretch will count as unknown ground.`);
+        report.warning(
+          after.line,
+          'chainageFromM',
+          `No section covers chainage ${m(w.fromM)}–${m(w.toM)} m (between the sections on lines ${before.line} and ${after.line}); that stretch will count as unknown ground.`,
+        );
       }
     },
   };
 }
 
 /** Reads and checks a geology long section (sections of chainage in m) from a CSV byte stream. */
-export function readGeologyCsv(source: Readable, options: CsvReadOptions<GeologySectionField> = {}): Promise<CsvImportResult<GeologySectionRow, GeologySectionField>> {
+export function readGeologyCsv(
+  source: Readable,
+  options: CsvReadOptions<GeologySectionField> = {},
+): Promise<CsvImportResult<GeologySectionRow, GeologySectionField>> {
   return readCsv(source, options, geologyTable());
 }

@@ -32,6 +32,9 @@ export function layoutTable(): TableSpec<LayoutField, PositionInput> {
 }
 
 /** Reads and checks a cutterhead layout (track radius and wear limit in mm, disc size in inches) from a CSV byte stream. */
-export function readLayoutCsv(source: Readable, options: CsvReadOptions<LayoutField> = {}): Promise<CsvImportResult<PositionInput, LayoutField>> {
+export function readLayoutCsv(
+  source: Readable,
+  options: CsvReadOptions<LayoutField> = {},
+): Promise<CsvImportResult<PositionInput, LayoutField>> {
   return readCsv(source, options, layoutTable());
 }

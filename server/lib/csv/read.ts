@@ -79,7 +79,11 @@ async function* limitedBytes(source: Readable, maxBytes: number, progress: CsvPr
     progress.bytesRead += bytes.length;
     if (progress.bytesRead > maxBytes) {
       const limit = maxBytes >= MB ? `${Math.round(maxBytes / MB)} MB` : `${maxBytes} bytes`;
-      throw new FileRefused(fileIssue(`The file is larger than ${limit}. Split it into smaller files (for example one per month) and import them one after another.`));
+      throw new FileRefused(
+        fileIssue(
+          `The file is larger than ${limit}. Split it into smaller files (for example one per month) and import them one after another.`,
+        ),
+      );
     }
     report();
     yield bytes;
@@ -94,7 +98,9 @@ async function* utf8Text(sample: Buffer, rest: AsyncGenerator<Buffer>): AsyncGen
     try {
       return decoder.decode(bytes, { stream: bytes !== undefined });
     } catch {
-      throw new FileRefused(fileIssue(`The file is not all UTF-8 text: the bytes after byte ${offset} are not. Save it as "CSV UTF-8" and upload it again.`));
+      throw new FileRefused(
+        fileIssue(`The file is not all UTF-8 text: the bytes after byte ${offset} are not. Save it as "CSV UTF-8" and upload it again.`),
+      );
     }
   };
   try {
@@ -114,7 +120,12 @@ function syntaxIssue(err: CsvError, line: number, headers: string[] | undefined)
   const column = typeof err.column === 'number' && headers ? (headers[err.column] ?? '') : '';
   switch (err.code) {
     case 'CSV_QUOTE_NOT_CLOSED':
-      return { row: line, column, message: 'A double quote (") opens a value on this line and is never closed, so the rest of the file would read as one value. Close the quote or remove it.' };
+      return {
+        row: line,
+        column,
+        message:
+          'A double quote (") opens a value on this line and is never closed, so the rest of the file would read as one value. Close the quote or remove it.',
+      };
     case 'CSV_MAX_RECORD_SIZE':
       return { row: line, column, message: `This row is longer than ${MAX_RECORD_CHARS / 1024} KB; check its separators and quotes.` };
     default:
@@ -266,7 +277,11 @@ export async function readCsv<F extends string, Row>(
       }
       progress.rowsParsed += 1;
       if (progress.rowsParsed > maxRows) {
-        throw new FileRefused(fileIssue(`The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`));
+        throw new FileRefused(
+          fileIssue(
+            `The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`,
+          ),
+        );
       }
       readRow(record, line, plan);
     }

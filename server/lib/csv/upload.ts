@@ -45,7 +45,12 @@ export function requireRawCsv(req: Request): void {
 /** Turns the reader's refusal into a 4xx whose issues point at row and column. */
 export function csvRefusal(errors: CsvIssue[], errorCount: number, detected: unknown): HttpError {
   const tooBig = errors.some((e) => e.row === 0 && /50 MB|too large|larger than/i.test(e.message));
-  const issues = errors.map((e) => ({ path: e.row === 0 ? 'file' : `row ${e.row}${e.column ? `, ${e.column}` : ''}`, row: e.row, column: e.column, message: e.message }));
+  const issues = errors.map((e) => ({
+    path: e.row === 0 ? 'file' : `row ${e.row}${e.column ? `, ${e.column}` : ''}`,
+    row: e.row,
+    column: e.column,
+    message: e.message,
+  }));
   const whole = errors.find((e) => e.row === 0);
   const message = whole ? `${whole.message} Nothing was imported.` : `${errorCount} problem(s) in the file; nothing was imported.`;
   return new HttpError(tooBig ? 413 : 400, message, issues, { errorCount, detected });
@@ -53,7 +58,10 @@ export function csvRefusal(errors: CsvIssue[], errorCount: number, detected: unk
 
 /** The mapping remembered for a project's imports of one kind, or null before the first. */
 export async function storedMapping(projectId: string, kind: MappingKind): Promise<Record<string, string> | null> {
-  const [stored] = await db.select().from(importMappings).where(and(eq(importMappings.projectId, projectId), eq(importMappings.kind, kind)));
+  const [stored] = await db
+    .select()
+    .from(importMappings)
+    .where(and(eq(importMappings.projectId, projectId), eq(importMappings.kind, kind)));
   return (stored?.mapping as Record<string, string> | undefined) ?? null;
 }
 

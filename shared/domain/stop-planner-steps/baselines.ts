@@ -38,7 +38,13 @@ export function ownLatestChains(prep: Prepared): { chains: number[][]; problems:
         ? `the ring fitted now is already past its limit (${p.wearNowMm} mm > ${p.limitMm} mm)`
         : `${ring} reaches its limit ${dueAheadM.toFixed(1)} m ahead, before the next allowed stop place` +
           (nextPlaceM === undefined ? ' (none left inside the horizon)' : ` (${nextPlaceM.toFixed(1)} m ahead)`);
-    problems.push({ positionId: p.positionId, ringNumber: chain.length, dueAheadM, dueChainageM: chainageAhead(input.currentChainageM, dueAheadM, input.direction), reason });
+    problems.push({
+      positionId: p.positionId,
+      ringNumber: chain.length,
+      dueAheadM,
+      dueChainageM: chainageAhead(input.currentChainageM, dueAheadM, input.direction),
+      reason,
+    });
   });
   return { chains, problems };
 }
@@ -57,7 +63,12 @@ export function latestChangePlan(chains: number[][]): IndexPlan {
  * least `changeShare` of its limit. Null when the rule gets stuck (a ring just fitted would pass
  * its limit before the next allowed place).
  */
-function rulePlan(prep: Prepared, changeShare: number, nextPlannedIdx: (afterIdx: number) => number, keepUntilIdx: (stopIdx: number) => number): IndexPlan | null {
+function rulePlan(
+  prep: Prepared,
+  changeShare: number,
+  nextPlannedIdx: (afterIdx: number) => number,
+  keepUntilIdx: (stopIdx: number) => number,
+): IndexPlan | null {
   const n = prep.input.positions.length;
   const budgetMm = [...prep.startBudgetMm];
   const reach = budgetMm.map((b, i) => lastReachable(prep, i, b));
@@ -89,7 +100,12 @@ function rulePlan(prep: Prepared, changeShare: number, nextPlannedIdx: (afterIdx
  * `changeShare` (e.g. 0.8) of its limit.
  */
 export function practicePlan(prep: Prepared, changeShare: number): IndexPlan | null {
-  return rulePlan(prep, changeShare, () => prep.done, (q) => q + 1);
+  return rulePlan(
+    prep,
+    changeShare,
+    () => prep.done,
+    (q) => q + 1,
+  );
 }
 
 /**

@@ -43,7 +43,8 @@ export function searchBounds(prep: Prepared): SearchBounds {
     ownRestH.push(rest);
     changeThenRestH.push(after);
   }
-  const ownTermH = (i: number, reach: number, budgetMm: number) => (reach === done ? 0 : changeCostH(prep, i, budgetMm, reach) + ownRestH[i][reach]);
+  const ownTermH = (i: number, reach: number, budgetMm: number) =>
+    reach === done ? 0 : changeCostH(prep, i, budgetMm, reach) + ownRestH[i][reach];
   const stopsAfterH = new Float64Array(m);
   for (let j = m - 1; j >= 0; j--) {
     let lim = done;

@@ -24,7 +24,12 @@
 import { lastReachable, type IndexPlan, type Prepared } from './model';
 
 /** Position i's cheapest chain with `extraH[j]` added per change at place j, using only `allowed` places (all when null). */
-export function cheapestChain(prep: Prepared, i: number, extraH: Float64Array | null, allowed: Uint8Array | null): { costH: number; chain: number[] } {
+export function cheapestChain(
+  prep: Prepared,
+  i: number,
+  extraH: Float64Array | null,
+  allowed: Uint8Array | null,
+): { costH: number; chain: number[] } {
   const m = prep.aheadM.length;
   const { done, v } = prep;
   const r0 = lastReachable(prep, i, prep.startBudgetMm[i]);
@@ -96,7 +101,7 @@ export function improveStops(prep: Prepared, plan: IndexPlan): { totalH: number;
   const allowed = new Uint8Array(m);
   for (const s of plan) allowed[s.idx] = 1;
   let best = cheapestPlanForStops(prep, allowed);
-  for (let improved = true; improved; ) {
+  for (let improved = true; improved;) {
     improved = false;
     for (const { idx } of [...best.plan]) {
       allowed[idx] = 0;
@@ -146,7 +151,10 @@ export interface LagrangianResult {
  * Subgradient ascent on L(λ) for at most `iterations` steps, stopping once the best plan is
  * within `targetGap` (relative) of the bound. `upperH` is the hours of a plan already known.
  */
-export function lagrangianBound(prep: Prepared, { iterations, upperH, targetGap }: { iterations: number; upperH: number; targetGap: number }): LagrangianResult {
+export function lagrangianBound(
+  prep: Prepared,
+  { iterations, upperH, targetGap }: { iterations: number; upperH: number; targetGap: number },
+): LagrangianResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
   const lambda = Array.from({ length: n }, () => new Float64Array(m));
@@ -238,7 +246,10 @@ export function lagrangianBound(prep: Prepared, { iterations, upperH, targetGap 
  * cheapest chain after a ring fitted at j is precomputed backwards (togo), and the first change
  * is a range minimum (sparse table), so a state costs O(n).
  */
-export function lagrangianRestBound(prep: Prepared, lambda: Float64Array[]): (q: number, reach: Int32Array, budgetMm: Float64Array) => number {
+export function lagrangianRestBound(
+  prep: Prepared,
+  lambda: Float64Array[],
+): (q: number, reach: Int32Array, budgetMm: Float64Array) => number {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
   const { done, v } = prep;

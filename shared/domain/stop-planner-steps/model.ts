@@ -74,7 +74,12 @@ export function aheadWhereWearExceedsM(stretches: WearStretch[], wearMm: number)
 }
 
 export function validate(input: StopPlanInput): void {
-  const hours = { freeAirStopH: input.freeAirStopH, compressedAirStopH: input.compressedAirStopH, wastedRingLifeHPerMm: input.wastedRingLifeHPerMm, ...input.changeHByClass };
+  const hours = {
+    freeAirStopH: input.freeAirStopH,
+    compressedAirStopH: input.compressedAirStopH,
+    wastedRingLifeHPerMm: input.wastedRingLifeHPerMm,
+    ...input.changeHByClass,
+  };
   for (const [name, value] of Object.entries(hours)) {
     if (!(value >= 0 && Number.isFinite(value))) throw new RangeError(`${name} must be a finite number >= 0, got ${value}`);
   }
@@ -85,8 +90,10 @@ export function validate(input: StopPlanInput): void {
     const s = p.wearStretches;
     if (s.length === 0 || s[0].fromAheadM !== 0) throw new RangeError(`position ${p.positionId}: wear stretches must start at 0 m ahead`);
     s.forEach((st, k) => {
-      if (!(st.wearMmPerM >= 0 && Number.isFinite(st.wearMmPerM))) throw new RangeError(`position ${p.positionId}: wear per metre must be >= 0, got ${st.wearMmPerM}`);
-      if (k > 0 && !(st.fromAheadM > s[k - 1].fromAheadM)) throw new RangeError(`position ${p.positionId}: wear stretches must be in increasing order`);
+      if (!(st.wearMmPerM >= 0 && Number.isFinite(st.wearMmPerM)))
+        throw new RangeError(`position ${p.positionId}: wear per metre must be >= 0, got ${st.wearMmPerM}`);
+      if (k > 0 && !(st.fromAheadM > s[k - 1].fromAheadM))
+        throw new RangeError(`position ${p.positionId}: wear stretches must be in increasing order`);
     });
   }
 }
@@ -166,14 +173,16 @@ export function pricePlan(prep: Prepared, plan: IndexPlan): StopPlan {
   const stops = plan.map(({ idx, changed }): PlannedStop => {
     let changeH = 0;
     let wastedRingLifeH = 0;
-    const changes = [...changed].sort((a, b) => a - b).map((i): PlannedChange => {
-      const costH = changeCostH(prep, i, budgetMm[i], idx);
-      changeH += prep.changeH[i];
-      wastedRingLifeH += costH - prep.changeH[i];
-      const unusedWearMm = Math.max(0, budgetMm[i] - prep.wearAt[i][idx]);
-      budgetMm[i] = budgetAfterChangeMm(prep, i, idx);
-      return { positionId: input.positions[i].positionId, wearAtChangeMm: prep.limitMm[i] - unusedWearMm, unusedWearMm };
-    });
+    const changes = [...changed]
+      .sort((a, b) => a - b)
+      .map((i): PlannedChange => {
+        const costH = changeCostH(prep, i, budgetMm[i], idx);
+        changeH += prep.changeH[i];
+        wastedRingLifeH += costH - prep.changeH[i];
+        const unusedWearMm = Math.max(0, budgetMm[i] - prep.wearAt[i][idx]);
+        budgetMm[i] = budgetAfterChangeMm(prep, i, idx);
+        return { positionId: input.positions[i].positionId, wearAtChangeMm: prep.limitMm[i] - unusedWearMm, unusedWearMm };
+      });
     return {
       chainageM: chainageAhead(input.currentChainageM, prep.aheadM[idx], input.direction),
       aheadM: prep.aheadM[idx],

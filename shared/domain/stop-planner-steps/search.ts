@@ -48,7 +48,11 @@ export interface SearchResult {
   lowerH: number;
 }
 
-export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassStates, maxStates, boundH, restBoundH }: SearchOptions): SearchResult {
+export function exactSearch(
+  prep: Prepared,
+  bounds: SearchBounds,
+  { quickPassStates, maxStates, boundH, restBoundH }: SearchOptions,
+): SearchResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
   const { done } = prep;
@@ -123,14 +127,26 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
     };
     for (const idx of nextPlaces(-1, firstLim)) {
       const costH = prep.stopH[idx];
-      push({ idx, costH, keyH: costH + startKeyH, ownH: startOwnH, hashA: startHashA, hashB: startHashB, parent: null, changedUpTo: -1, reach: startReach, budgetMm: startBudgetMm });
+      push({
+        idx,
+        costH,
+        keyH: costH + startKeyH,
+        ownH: startOwnH,
+        hashA: startHashA,
+        hashB: startHashB,
+        parent: null,
+        changedUpTo: -1,
+        reach: startReach,
+        budgetMm: startBudgetMm,
+      });
     }
 
     for (let q = 0; q < m; q++) {
       if (beamWidth === Infinity && statesExpanded > maxStates) {
         stoppedEarly = true;
         // Every plan cheaper than the best found passes through a state left here.
-        for (let r = q; r < m; r++) for (const held of buckets[r].values()) for (const l of held) frontierH = Math.min(frontierH, stateBoundH(l));
+        for (let r = q; r < m; r++)
+          for (const held of buckets[r].values()) for (const l of held) frontierH = Math.min(frontierH, stateBoundH(l));
         break;
       }
       const entries = [...buckets[q].values()].flat().filter((l) => stateBoundH(l) < bestH - tolH);
@@ -138,7 +154,8 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
       const filled = new Map(entries.map((e) => [e, fill(e)]));
       // Dominance, comparing only the positions whose reach differs between the states here.
       const dims: number[] = [];
-      for (let i = 0; i < n && entries.length > 1; i++) if (entries.some((e) => filled.get(e)!.reach[i] !== filled.get(entries[0])!.reach[i])) dims.push(i);
+      for (let i = 0; i < n && entries.length > 1; i++)
+        if (entries.some((e) => filled.get(e)!.reach[i] !== filled.get(entries[0])!.reach[i])) dims.push(i);
       const reachSum = new Map(entries.map((e) => [e, dims.reduce((t, i) => t + filled.get(e)!.reach[i], 0)]));
       const dominates = (a: Label, b: Label) => {
         if (reachSum.get(a)! < reachSum.get(b)!) return false;
@@ -207,7 +224,17 @@ export function exactSearch(prep: Prepared, bounds: SearchBounds, { quickPassSta
             const costH = label.costH + changeSumH + prep.stopH[idx];
             if (costH + stopsAfterH[idx] + ownH >= bestH - tolH) continue;
             const hashes = { hashA: (label.hashA + hA) | 0, hashB: (label.hashB + hB) | 0 };
-            push({ idx, costH, keyH: keyH + prep.stopH[idx], ownH, ...hashes, parent: label, changedUpTo: groupReach, reach: null, budgetMm: null });
+            push({
+              idx,
+              costH,
+              keyH: keyH + prep.stopH[idx],
+              ownH,
+              ...hashes,
+              parent: label,
+              changedUpTo: groupReach,
+              reach: null,
+              budgetMm: null,
+            });
           }
         }
       }

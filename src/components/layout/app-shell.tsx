@@ -20,7 +20,12 @@ export function AppShell() {
   const [menuOpen, setMenuOpen] = useState(false);
 
   if (isPending) return <p className="p-6">Loading…</p>;
-  if (error) return <p role="alert" className="p-6">Kerfwise could not reach its server: {error.message}</p>;
+  if (error)
+    return (
+      <p role="alert" className="p-6">
+        Kerfwise could not reach its server: {error.message}
+      </p>
+    );
   if (!me) return <Navigate to={`${paths.signIn}?next=${encodeURIComponent(location.pathname + location.search)}`} replace />;
 
   const projectId = projectMatch?.params.projectId;
@@ -36,7 +41,9 @@ export function AppShell() {
     <div className="min-h-screen">
       <header className="no-print bg-basalt-900 text-white">
         <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-3 px-4 py-2">
-          <Link to={paths.home} className="min-h-touch flex items-center"><Logo /></Link>
+          <Link to={paths.home} className="min-h-touch flex items-center">
+            <Logo />
+          </Link>
           {membership && (
             <span className="text-basalt-200">
               {membership.projectName} · <span className="text-ember-300">{roleLabels[membership.role]}</span>
@@ -51,27 +58,85 @@ export function AppShell() {
           >
             Menu
           </button>
-          <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:ml-auto md:flex md:w-auto md:flex-row md:flex-wrap md:items-center`}>
+          <nav
+            id="main-nav"
+            aria-label="Main"
+            className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:ml-auto md:flex md:w-auto md:flex-row md:flex-wrap md:items-center`}
+          >
             {projectId && membership && (
               <>
-                <NavLink end to={paths.project(projectId)} className={navLink}>Overview</NavLink>
-                <NavLink to={paths.cutterhead(projectId)} className={navLink}>Cutterhead</NavLink>
-                {roleCan(membership.role, 'forecast.read') && <NavLink to={paths.forecast(projectId)} className={navLink}>Forecast</NavLink>}
-                {roleCan(membership.role, 'forecast.read') && <NavLink to={paths.wearFits(projectId)} className={navLink}>Wear rates</NavLink>}
-                {roleCan(membership.role, 'rounds.read') && <NavLink to={paths.rounds(projectId)} className={navLink}>Rounds</NavLink>}
-                {roleCan(membership.role, 'stops.read') && <NavLink to={paths.stops(projectId)} className={navLink}>Stops</NavLink>}
-                <NavLink to={paths.cutters(projectId)} className={navLink}>Cutters</NavLink>
-                {roleCan(membership.role, 'drive.read') && <NavLink to={paths.advanceLog(projectId)} className={navLink}>Advance log</NavLink>}
-                {roleCan(membership.role, 'drive.read') && <NavLink to={paths.geology(projectId)} className={navLink}>Geology</NavLink>}
-                {roleCan(membership.role, 'parts.read') && <NavLink to={paths.parts(projectId)} className={navLink}>Parts</NavLink>}
-                {roleCan(membership.role, 'downtime.read') && <NavLink to={paths.downtime(projectId)} className={navLink}>Downtime</NavLink>}
-                <NavLink to={paths.layout(projectId)} className={navLink}>Layout</NavLink>
+                <NavLink end to={paths.project(projectId)} className={navLink}>
+                  Overview
+                </NavLink>
+                <NavLink to={paths.cutterhead(projectId)} className={navLink}>
+                  Cutterhead
+                </NavLink>
+                {roleCan(membership.role, 'forecast.read') && (
+                  <NavLink to={paths.forecast(projectId)} className={navLink}>
+                    Forecast
+                  </NavLink>
+                )}
+                {roleCan(membership.role, 'forecast.read') && (
+                  <NavLink to={paths.wearFits(projectId)} className={navLink}>
+                    Wear rates
+                  </NavLink>
+                )}
+                {roleCan(membership.role, 'rounds.read') && (
+                  <NavLink to={paths.rounds(projectId)} className={navLink}>
+                    Rounds
+                  </NavLink>
+                )}
+                {roleCan(membership.role, 'stops.read') && (
+                  <NavLink to={paths.stops(projectId)} className={navLink}>
+                    Stops
+                  </NavLink>
+                )}
+                <NavLink to={paths.cutters(projectId)} className={navLink}>
+                  Cutters
+                </NavLink>
+                {roleCan(membership.role, 'drive.read') && (
+                  <NavLink to={paths.advanceLog(projectId)} className={navLink}>
+                    Advance log
+                  </NavLink>
+                )}
+                {roleCan(membership.role, 'drive.read') && (
+                  <NavLink to={paths.geology(projectId)} className={navLink}>
+                    Geology
+                  </NavLink>
+                )}
+                {roleCan(membership.role, 'parts.read') && (
+                  <NavLink to={paths.parts(projectId)} className={navLink}>
+                    Parts
+                  </NavLink>
+                )}
+                {roleCan(membership.role, 'downtime.read') && (
+                  <NavLink to={paths.downtime(projectId)} className={navLink}>
+                    Downtime
+                  </NavLink>
+                )}
+                <NavLink to={paths.layout(projectId)} className={navLink}>
+                  Layout
+                </NavLink>
               </>
             )}
-            {me.memberships.length > 1 && <NavLink end to={paths.home} className={navLink}>Projects</NavLink>}
-            {me.user.isAdmin && <NavLink to={paths.admin.users} className={navLink}>Administration</NavLink>}
-            <NavLink to={paths.account} className={navLink}>{me.user.name}</NavLink>
-            <button type="button" onClick={onSignOut} className="min-h-touch rounded-md px-3 text-left font-semibold text-basalt-100 hover:bg-basalt-800">
+            {me.memberships.length > 1 && (
+              <NavLink end to={paths.home} className={navLink}>
+                Projects
+              </NavLink>
+            )}
+            {me.user.isAdmin && (
+              <NavLink to={paths.admin.users} className={navLink}>
+                Administration
+              </NavLink>
+            )}
+            <NavLink to={paths.account} className={navLink}>
+              {me.user.name}
+            </NavLink>
+            <button
+              type="button"
+              onClick={onSignOut}
+              className="min-h-touch rounded-md px-3 text-left font-semibold text-basalt-100 hover:bg-basalt-800"
+            >
               Sign out
             </button>
           </nav>

@@ -9,7 +9,12 @@ const variants: Record<Variant, string> = {
   ghost: 'bg-transparent text-basalt-800 hover:bg-basalt-100',
 };
 
-export function Button({ variant = 'primary', className = '', type = 'button', ...props }: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: Variant }) {
+export function Button({
+  variant = 'primary',
+  className = '',
+  type = 'button',
+  ...props
+}: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: Variant }) {
   return (
     <button
       type={type}

@@ -1,6 +1,15 @@
 import {
-  flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable,
-  type ColumnDef, type OnChangeFn, type PaginationState, type Row, type RowData, type SortingState,
+  flexRender,
+  getCoreRowModel,
+  getFilteredRowModel,
+  getSortedRowModel,
+  useReactTable,
+  type ColumnDef,
+  type OnChangeFn,
+  type PaginationState,
+  type Row,
+  type RowData,
+  type SortingState,
 } from '@tanstack/react-table';
 import { Fragment, useState, type ReactNode } from 'react';
 import type { CsvColumn } from '../../../shared/csv-writer';
@@ -74,8 +83,21 @@ const ariaSort = (sorted: false | 'asc' | 'desc') => (sorted === 'asc' ? 'ascend
  * server when `server` is given.
  */
 export function DataTable<T>({
-  data, columns, exportName, emptyText = 'Nothing here yet.', label, initialSort = [], getRowId, renderExpanded,
-  expandIdPrefix = 'row-detail-', stickyColumnId, filterPlaceholder = 'Filter…', csv, exportHref, toolbar, server,
+  data,
+  columns,
+  exportName,
+  emptyText = 'Nothing here yet.',
+  label,
+  initialSort = [],
+  getRowId,
+  renderExpanded,
+  expandIdPrefix = 'row-detail-',
+  stickyColumnId,
+  filterPlaceholder = 'Filter…',
+  csv,
+  exportHref,
+  toolbar,
+  server,
 }: DataTableProps<T>) {
   const [localSorting, setLocalSorting] = useState<SortingState>(initialSort);
   const [filter, setFilter] = useState('');
@@ -109,15 +131,26 @@ export function DataTable<T>({
 
   const exportCsv = () => {
     if (csv) {
-      downloadCsv(`${exportName}.csv`, toCsv(csv.header, rows.map((r) => csv.row(r.original))));
+      downloadCsv(
+        `${exportName}.csv`,
+        toCsv(
+          csv.header,
+          rows.map((r) => csv.row(r.original)),
+        ),
+      );
       return;
     }
     const exported = leafColumns;
-    const header = exported.map((c) => ({ header: typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id, decimals: c.columnDef.meta?.csvDecimals }));
-    const values = rows.map((r) => exported.map((c) => {
-      const v = r.getValue(c.id);
-      return typeof v === 'number' || typeof v === 'string' ? v : v == null ? '' : String(v);
+    const header = exported.map((c) => ({
+      header: typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id,
+      decimals: c.columnDef.meta?.csvDecimals,
     }));
+    const values = rows.map((r) =>
+      exported.map((c) => {
+        const v = r.getValue(c.id);
+        return typeof v === 'number' || typeof v === 'string' ? v : v == null ? '' : String(v);
+      }),
+    );
     downloadCsv(`${exportName}.csv`, toCsv(header, values));
   };
   const sticky = (columnId: string, background: string) => (columnId === stickyColumnId ? `sticky left-0 z-10 ${background}` : '');
@@ -139,15 +172,23 @@ export function DataTable<T>({
           </label>
         )}
         {exportHref ? (
-          <a className="ml-auto inline-flex min-h-touch items-center justify-center rounded-md border-2 border-basalt-300 bg-white px-4 font-semibold text-basalt-900 hover:border-basalt-500" href={exportHref} download>
+          <a
+            className="ml-auto inline-flex min-h-touch items-center justify-center rounded-md border-2 border-basalt-300 bg-white px-4 font-semibold text-basalt-900 hover:border-basalt-500"
+            href={exportHref}
+            download
+          >
             Export CSV
           </a>
         ) : (
-          <Button variant="secondary" onClick={exportCsv}>Export CSV</Button>
+          <Button variant="secondary" onClick={exportCsv}>
+            Export CSV
+          </Button>
         )}
       </div>
       {/* A size container, so an opened row is as wide as the visible table (100cqw); relative, so screen-reader text scrolls with it. */}
-      <div className={`@container relative overflow-x-auto rounded-lg border border-basalt-200 bg-white ${server?.stale ? 'opacity-60' : ''}`}>
+      <div
+        className={`@container relative overflow-x-auto rounded-lg border border-basalt-200 bg-white ${server?.stale ? 'opacity-60' : ''}`}
+      >
         <table className="min-w-full text-left" aria-label={label}>
           <thead className="bg-basalt-100">
             {table.getHeaderGroups().map((hg) => (
@@ -155,9 +196,18 @@ export function DataTable<T>({
                 {hg.headers.map((h) => {
                   const sorted = h.column.getIsSorted();
                   return (
-                    <th key={h.id} scope="col" aria-sort={ariaSort(sorted)} className={`p-0 align-bottom ${sticky(h.column.id, 'bg-basalt-100')}`}>
+                    <th
+                      key={h.id}
+                      scope="col"
+                      aria-sort={ariaSort(sorted)}
+                      className={`p-0 align-bottom ${sticky(h.column.id, 'bg-basalt-100')}`}
+                    >
                       {h.isPlaceholder ? null : h.column.getCanSort() ? (
-                        <button type="button" onClick={h.column.getToggleSortingHandler()} className="flex min-h-touch w-full items-center gap-1 px-3 text-left font-semibold">
+                        <button
+                          type="button"
+                          onClick={h.column.getToggleSortingHandler()}
+                          className="flex min-h-touch w-full items-center gap-1 px-3 text-left font-semibold"
+                        >
                           {flexRender(h.column.columnDef.header, h.getContext())}
                           <span aria-hidden="true">{sortIcon(sorted)}</span>
                         </button>
@@ -172,7 +222,11 @@ export function DataTable<T>({
           </thead>
           <tbody>
             {rows.length === 0 && (
-              <tr><td colSpan={leafColumns.length} className="px-3 py-4 text-basalt-600">{data.length === 0 || server ? emptyText : 'Nothing matches the filter.'}</td></tr>
+              <tr>
+                <td colSpan={leafColumns.length} className="px-3 py-4 text-basalt-600">
+                  {data.length === 0 || server ? emptyText : 'Nothing matches the filter.'}
+                </td>
+              </tr>
             )}
             {rows.map((row) => (
               <Fragment key={row.id}>
@@ -204,16 +258,32 @@ function Pager<T>({ table, paging, label }: { table: ReturnType<typeof useReactT
   const { rowCount, pagination } = paging;
   return (
     <nav aria-label={label ? `Pages of ${label.toLowerCase()}` : 'Pages'} className="flex flex-wrap items-end gap-2">
-      <Button variant="secondary" aria-label="First page" disabled={!table.getCanPreviousPage()} onClick={() => table.firstPage()}>«</Button>
-      <Button variant="secondary" aria-label="Previous page" disabled={!table.getCanPreviousPage()} onClick={() => table.previousPage()}>‹ Previous</Button>
+      <Button variant="secondary" aria-label="First page" disabled={!table.getCanPreviousPage()} onClick={() => table.firstPage()}>
+        «
+      </Button>
+      <Button variant="secondary" aria-label="Previous page" disabled={!table.getCanPreviousPage()} onClick={() => table.previousPage()}>
+        ‹ Previous
+      </Button>
       <span className="flex min-h-touch items-center px-2 font-semibold">
         Page {rowCount === 0 ? 0 : pagination.pageIndex + 1} of {table.getPageCount().toLocaleString('en-GB')}
       </span>
-      <Button variant="secondary" aria-label="Next page" disabled={!table.getCanNextPage()} onClick={() => table.nextPage()}>Next ›</Button>
-      <Button variant="secondary" aria-label="Last page" disabled={!table.getCanNextPage()} onClick={() => table.lastPage()}>»</Button>
+      <Button variant="secondary" aria-label="Next page" disabled={!table.getCanNextPage()} onClick={() => table.nextPage()}>
+        Next ›
+      </Button>
+      <Button variant="secondary" aria-label="Last page" disabled={!table.getCanNextPage()} onClick={() => table.lastPage()}>
+        »
+      </Button>
       <div className="ml-auto w-36">
-        <SelectField label="Rows per page" value={pagination.pageSize} onChange={(e) => table.setPagination({ pageIndex: 0, pageSize: Number(e.target.value) })}>
-          {paging.pageSizes.map((n) => <option key={n} value={n}>{n}</option>)}
+        <SelectField
+          label="Rows per page"
+          value={pagination.pageSize}
+          onChange={(e) => table.setPagination({ pageIndex: 0, pageSize: Number(e.target.value) })}
+        >
+          {paging.pageSizes.map((n) => (
+            <option key={n} value={n}>
+              {n}
+            </option>
+          ))}
         </SelectField>
       </div>
     </nav>

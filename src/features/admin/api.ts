@@ -26,11 +26,21 @@ export interface BackupStatus {
 export const adminQueries = {
   all: ['admin'] as const,
   users: () => queryOptions({ queryKey: [...adminQueries.all, 'users'], queryFn: () => apiGet<AdminUser[]>('/api/admin/users') }),
-  projects: () => queryOptions({ queryKey: [...adminQueries.all, 'projects'], queryFn: () => apiGet<AdminProject[]>('/api/admin/projects') }),
+  projects: () =>
+    queryOptions({ queryKey: [...adminQueries.all, 'projects'], queryFn: () => apiGet<AdminProject[]>('/api/admin/projects') }),
   members: (projectId: string) =>
-    queryOptions({ queryKey: [...adminQueries.all, 'members', projectId], queryFn: () => apiGet<AdminMember[]>(`/api/admin/projects/${projectId}/members`) }),
-  jobs: () => queryOptions({ queryKey: [...adminQueries.all, 'jobs'], queryFn: () => apiGet<JobInfo[]>('/api/admin/jobs'), refetchInterval: 10_000 }),
-  backupStatus: () => queryOptions({ queryKey: [...adminQueries.all, 'backup-status'], queryFn: () => apiGet<BackupStatus>('/api/admin/backups/status'), refetchInterval: 60_000 }),
+    queryOptions({
+      queryKey: [...adminQueries.all, 'members', projectId],
+      queryFn: () => apiGet<AdminMember[]>(`/api/admin/projects/${projectId}/members`),
+    }),
+  jobs: () =>
+    queryOptions({ queryKey: [...adminQueries.all, 'jobs'], queryFn: () => apiGet<JobInfo[]>('/api/admin/jobs'), refetchInterval: 10_000 }),
+  backupStatus: () =>
+    queryOptions({
+      queryKey: [...adminQueries.all, 'backup-status'],
+      queryFn: () => apiGet<BackupStatus>('/api/admin/backups/status'),
+      refetchInterval: 60_000,
+    }),
   mail: () =>
     queryOptions({
       queryKey: [...adminQueries.all, 'mail'],
@@ -44,7 +54,8 @@ export const updateUser = (userId: string, input: UpdateUserInput) => api<AdminU
 export const createProject = (input: ProjectInput) => api<AdminProject>('POST', '/api/admin/projects', input);
 export const setMembership = (projectId: string, userId: string, role: ProjectRole) =>
   api('PUT', `/api/admin/projects/${projectId}/members/${userId}`, { role });
-export const removeMembership = (projectId: string, userId: string) => api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);
+export const removeMembership = (projectId: string, userId: string) =>
+  api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);
 /** `again`: the administrator confirmed sending a weekly digest's week a second time. */
 export const runJobNow = ({ name, again = false }: { name: string; again?: boolean }) =>
   api<JobRunRow>('POST', `/api/admin/jobs/${name}/run${again ? '?again=true' : ''}`);
@@ -59,7 +70,9 @@ function useAdminMutation<TInput, TResult>(mutationFn: (input: TInput) => Promis
 export const useInviteUser = () => useAdminMutation(inviteUser);
 export const useSetUserActive = () => useAdminMutation((u: Pick<AdminUser, 'id' | 'active'>) => updateUser(u.id, { active: u.active }));
 export const useCreateProject = () => useAdminMutation(createProject);
-export const useSetMembership = () => useAdminMutation((m: { projectId: string; userId: string; role: ProjectRole }) => setMembership(m.projectId, m.userId, m.role));
-export const useRemoveMembership = () => useAdminMutation((m: { projectId: string; userId: string }) => removeMembership(m.projectId, m.userId));
+export const useSetMembership = () =>
+  useAdminMutation((m: { projectId: string; userId: string; role: ProjectRole }) => setMembership(m.projectId, m.userId, m.role));
+export const useRemoveMembership = () =>
+  useAdminMutation((m: { projectId: string; userId: string }) => removeMembership(m.projectId, m.userId));
 export const useRunJobNow = () => useAdminMutation(runJobNow);
 export const useReleaseUncertainMail = () => useAdminMutation(releaseUncertainMail);

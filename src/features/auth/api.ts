@@ -22,7 +22,11 @@ export const authQueries = {
 };
 
 /** One e-mail this person can get, and whether it is on. */
-export interface NotificationChoice { kind: string; label: string; enabled: boolean }
+export interface NotificationChoice {
+  kind: string;
+  label: string;
+  enabled: boolean;
+}
 export const getNotificationChoices = () => apiGet<NotificationChoice[]>('/api/auth/notifications');
 export const setNotificationChoice = (c: { kind: string; enabled: boolean }) => api('PUT', '/api/auth/notifications', c);
 
@@ -44,5 +48,8 @@ export const useRequestPasswordReset = () => useMutation({ mutationFn: requestPa
 export const useChangePassword = () => useMutation({ mutationFn: changePassword });
 export function useSetNotificationChoice() {
   const queryClient = useQueryClient();
-  return useMutation({ mutationFn: setNotificationChoice, onSuccess: () => queryClient.invalidateQueries({ queryKey: authQueries.notifications().queryKey }) });
+  return useMutation({
+    mutationFn: setNotificationChoice,
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: authQueries.notifications().queryKey }),
+  });
 }

@@ -38,6 +38,7 @@ function useCutterMutation<TInput, TResult>(projectId: string, mutationFn: (inpu
   return useMutation({ mutationFn, onSuccess: () => queryClient.invalidateQueries({ queryKey: cutterQueries.all(projectId) }) });
 }
 
-export const useReceiveCutter = (projectId: string) => useCutterMutation(projectId, (input: ReceiveCutterInput) => receiveCutter(projectId, input));
+export const useReceiveCutter = (projectId: string) =>
+  useCutterMutation(projectId, (input: ReceiveCutterInput) => receiveCutter(projectId, input));
 export const useRecordWorkshop = (projectId: string, cutterId: string) =>
   useCutterMutation(projectId, (input: WorkshopInput) => recordWorkshop(projectId, cutterId, input));

@@ -1,7 +1,17 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type {
-  CutterCostReport, DowntimeCause, DowntimeCauseInput, DowntimeCauseUpdate, DowntimeEventInput, DowntimeEventList, DowntimeEventRow, DowntimeReport, EventListQuery,
-  ProposeFromGapsResult, SiteSettings, SiteSettingsInput,
+  CutterCostReport,
+  DowntimeCause,
+  DowntimeCauseInput,
+  DowntimeCauseUpdate,
+  DowntimeEventInput,
+  DowntimeEventList,
+  DowntimeEventRow,
+  DowntimeReport,
+  EventListQuery,
+  ProposeFromGapsResult,
+  SiteSettings,
+  SiteSettingsInput,
 } from '../../../shared/schemas/downtime';
 import { api, apiGet } from '../../lib/api-client';
 
@@ -26,36 +36,46 @@ const base = (projectId: string) => `/api/projects/${projectId}/downtime`;
 /** Query text with empty values left out. */
 export function queryString(query: object): string {
   const params = new URLSearchParams();
-  for (const [key, value] of Object.entries(query)) if (value !== undefined && value !== '' && value !== false) params.set(key, String(value));
+  for (const [key, value] of Object.entries(query))
+    if (value !== undefined && value !== '' && value !== false) params.set(key, String(value));
   const text = params.toString();
   return text ? `?${text}` : '';
 }
 
 export const getCauses = (projectId: string) => apiGet<DowntimeCause[]>(`${base(projectId)}/causes`);
 export const createCause = (projectId: string, input: DowntimeCauseInput) => api<DowntimeCause>('POST', `${base(projectId)}/causes`, input);
-export const updateCause = (projectId: string, causeId: string, input: DowntimeCauseUpdate) => api<DowntimeCause>('PATCH', `${base(projectId)}/causes/${causeId}`, input);
+export const updateCause = (projectId: string, causeId: string, input: DowntimeCauseUpdate) =>
+  api<DowntimeCause>('PATCH', `${base(projectId)}/causes/${causeId}`, input);
 export const getSettings = (projectId: string) => apiGet<SiteSettings>(`${base(projectId)}/settings`);
 export const saveSettings = (projectId: string, input: SiteSettingsInput) => api<SiteSettings>('PUT', `${base(projectId)}/settings`, input);
-export const getEvents = (projectId: string, query: EventListQuery) => apiGet<DowntimeEventList>(`${base(projectId)}/events${queryString(query)}`);
-export const createEvent = (projectId: string, input: DowntimeEventInput) => api<DowntimeEventRow>('POST', `${base(projectId)}/events`, input);
-export const updateEvent = (projectId: string, eventId: string, input: DowntimeEventInput) => api<DowntimeEventRow>('PUT', `${base(projectId)}/events/${eventId}`, input);
+export const getEvents = (projectId: string, query: EventListQuery) =>
+  apiGet<DowntimeEventList>(`${base(projectId)}/events${queryString(query)}`);
+export const createEvent = (projectId: string, input: DowntimeEventInput) =>
+  api<DowntimeEventRow>('POST', `${base(projectId)}/events`, input);
+export const updateEvent = (projectId: string, eventId: string, input: DowntimeEventInput) =>
+  api<DowntimeEventRow>('PUT', `${base(projectId)}/events/${eventId}`, input);
 export const deleteEvent = (projectId: string, eventId: string) => api<void>('DELETE', `${base(projectId)}/events/${eventId}`);
 export const proposeFromGaps = (projectId: string) => api<ProposeFromGapsResult>('POST', `${base(projectId)}/propose-from-gaps`);
-export const getReport = (projectId: string, period: PeriodQuery) => apiGet<DowntimeReport>(`${base(projectId)}/report${queryString(period)}`);
-export const getCost = (projectId: string, period: PeriodQuery) => apiGet<CutterCostReport>(`${base(projectId)}/cost${queryString(period)}`);
+export const getReport = (projectId: string, period: PeriodQuery) =>
+  apiGet<DowntimeReport>(`${base(projectId)}/report${queryString(period)}`);
+export const getCost = (projectId: string, period: PeriodQuery) =>
+  apiGet<CutterCostReport>(`${base(projectId)}/cost${queryString(period)}`);
 export const getStopOptions = (projectId: string) => apiGet<StopOption[]>(`/api/projects/${projectId}/stops`);
 
 export const downtimeQueries = {
   all: (projectId: string) => ['projects', projectId, 'downtime'] as const,
-  causes: (projectId: string) => queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'causes'], queryFn: () => getCauses(projectId) }),
-  settings: (projectId: string) => queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'settings'], queryFn: () => getSettings(projectId) }),
+  causes: (projectId: string) =>
+    queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'causes'], queryFn: () => getCauses(projectId) }),
+  settings: (projectId: string) =>
+    queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'settings'], queryFn: () => getSettings(projectId) }),
   events: (projectId: string, query: EventListQuery) =>
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'events', query], queryFn: () => getEvents(projectId, query) }),
   report: (projectId: string, period: PeriodQuery) =>
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'report', period], queryFn: () => getReport(projectId, period) }),
   cost: (projectId: string, period: PeriodQuery) =>
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'cost', period], queryFn: () => getCost(projectId, period) }),
-  stops: (projectId: string) => queryOptions({ queryKey: ['projects', projectId, 'stops', 'options'], queryFn: () => getStopOptions(projectId) }),
+  stops: (projectId: string) =>
+    queryOptions({ queryKey: ['projects', projectId, 'stops', 'options'], queryFn: () => getStopOptions(projectId) }),
 };
 
 /** Every downtime write invalidates `downtimeQueries.all`: events, causes, settings and reports move together. */
@@ -64,5 +84,6 @@ function useDowntimeMutation<TInput, TResult>(projectId: string, mutationFn: (in
   return useMutation({ mutationFn, onSuccess: () => queryClient.invalidateQueries({ queryKey: downtimeQueries.all(projectId) }) });
 }
 
-export const useSaveSettings = (projectId: string) => useDowntimeMutation(projectId, (input: SiteSettingsInput) => saveSettings(projectId, input));
+export const useSaveSettings = (projectId: string) =>
+  useDowntimeMutation(projectId, (input: SiteSettingsInput) => saveSettings(projectId, input));
 export const useProposeFromGaps = (projectId: string) => useDowntimeMutation(projectId, () => proposeFromGaps(projectId));

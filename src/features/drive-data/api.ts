@@ -20,16 +20,20 @@ function strokeQueryString(query: Partial<StrokeListQuery>): string {
   return params.toString();
 }
 
-export const strokesExportUrl = (projectId: string, filters: StrokeFilters) => `${base(projectId)}/strokes/export.csv?${strokeQueryString(filters)}`;
+export const strokesExportUrl = (projectId: string, filters: StrokeFilters) =>
+  `${base(projectId)}/strokes/export.csv?${strokeQueryString(filters)}`;
 export const advanceLogImportUrl = (projectId: string) => `${base(projectId)}/strokes/import`;
 export const geologyImportUrl = (projectId: string) => `${base(projectId)}/geology/import`;
 
-export const getStrokes = (projectId: string, query: StrokeListQuery) => apiGet<StrokePage>(`${base(projectId)}/strokes?${strokeQueryString(query)}`);
+export const getStrokes = (projectId: string, query: StrokeListQuery) =>
+  apiGet<StrokePage>(`${base(projectId)}/strokes?${strokeQueryString(query)}`);
 export const getDailyAdvance = (projectId: string) => apiGet<DailyAdvance[]>(`${base(projectId)}/strokes/daily`);
 export const getAdvanceLogMapping = (projectId: string) => apiGet<AdvanceLogMapping>(`${base(projectId)}/strokes/mapping`);
 export const getGeologyMapping = (projectId: string) => apiGet<GeologyMapping>(`${base(projectId)}/geology/mapping`);
-export const createGroundType = (projectId: string, input: GroundTypeInput) => api<GroundType>('POST', `${base(projectId)}/ground-types`, input);
-export const updateGroundType = (projectId: string, id: string, input: GroundTypeInput) => api<GroundType>('PATCH', `${base(projectId)}/ground-types/${id}`, input);
+export const createGroundType = (projectId: string, input: GroundTypeInput) =>
+  api<GroundType>('POST', `${base(projectId)}/ground-types`, input);
+export const updateGroundType = (projectId: string, id: string, input: GroundTypeInput) =>
+  api<GroundType>('PATCH', `${base(projectId)}/ground-types/${id}`, input);
 export const deleteGroundType = (projectId: string, id: string) => api<void>('DELETE', `${base(projectId)}/ground-types/${id}`);
 export const saveLongSection = (projectId: string, sections: SectionInput[]) =>
   api<{ saved: number; warnings: GeologyGapWarning[] }>('PUT', `${base(projectId)}/geology`, { sections });
@@ -43,9 +47,12 @@ export const driveDataQueries = {
       // The old page stays on screen while the next one loads, so the table does not jump.
       placeholderData: keepPreviousData,
     }),
-  daily: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
-  mapping: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
-  geologyMapping: (projectId: string) => queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'mapping', 'geology'], queryFn: () => getGeologyMapping(projectId) }),
+  daily: (projectId: string) =>
+    queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'daily'], queryFn: () => getDailyAdvance(projectId) }),
+  mapping: (projectId: string) =>
+    queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'mapping'], queryFn: () => getAdvanceLogMapping(projectId) }),
+  geologyMapping: (projectId: string) =>
+    queryOptions({ queryKey: [...driveDataQueries.all(projectId), 'mapping', 'geology'], queryFn: () => getGeologyMapping(projectId) }),
 };
 
 /** A problem the server found in an uploaded file; row 0 is the file as a whole. */
@@ -61,7 +68,12 @@ export type UploadAnswer =
  * the progress that fetch cannot. `onProgress` receives the share sent (0–1); `onSent` fires when
  * the last byte is out and the server starts checking.
  */
-export function uploadCsv(url: string, file: File, onProgress: (fraction: number) => void, onSent: () => void): { answer: Promise<UploadAnswer>; abort: () => void } {
+export function uploadCsv(
+  url: string,
+  file: File,
+  onProgress: (fraction: number) => void,
+  onSent: () => void,
+): { answer: Promise<UploadAnswer>; abort: () => void } {
   const xhr = new XMLHttpRequest();
   const answer = new Promise<UploadAnswer>((resolve, reject) => {
     xhr.open('POST', url);
@@ -95,7 +107,8 @@ export function uploadCsv(url: string, file: File, onProgress: (fraction: number
 export function useSaveGroundType(projectId: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: ({ id, input }: { id?: string; input: GroundTypeInput }) => (id ? updateGroundType(projectId, id, input) : createGroundType(projectId, input)),
+    mutationFn: ({ id, input }: { id?: string; input: GroundTypeInput }) =>
+      id ? updateGroundType(projectId, id, input) : createGroundType(projectId, input),
     onSuccess: () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) }),
   });
 }

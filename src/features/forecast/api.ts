@@ -11,7 +11,8 @@ export const getWearFit = (projectId: string) => apiGet<WearFitReport>(`${base(p
 export const getForecast = (projectId: string, positionId?: string) =>
   apiGet<Forecast>(`${base(projectId)}/forecast${positionId ? `?positionId=${encodeURIComponent(positionId)}` : ''}`);
 export const getForecastSettings = (projectId: string) => apiGet<ForecastSettingsInput>(`${base(projectId)}/forecast/settings`);
-export const saveForecastSettings = (projectId: string, input: ForecastSettingsInput) => api<unknown>('PUT', `${base(projectId)}/forecast/settings`, input);
+export const saveForecastSettings = (projectId: string, input: ForecastSettingsInput) =>
+  api<unknown>('PUT', `${base(projectId)}/forecast/settings`, input);
 
 /**
  * The forecast follows every new inspection, import and geology change, so its queries go stale
@@ -33,7 +34,8 @@ export const forecastQueries = {
       },
       staleTime,
     }),
-  wearFit: (projectId: string) => queryOptions({ queryKey: [...forecastQueries.all(projectId), 'wear-fit'], queryFn: () => getWearFit(projectId), staleTime }),
+  wearFit: (projectId: string) =>
+    queryOptions({ queryKey: [...forecastQueries.all(projectId), 'wear-fit'], queryFn: () => getWearFit(projectId), staleTime }),
   settings: (projectId: string) =>
     queryOptions({ queryKey: [...forecastQueries.all(projectId), 'settings'], queryFn: () => getForecastSettings(projectId), staleTime }),
 };

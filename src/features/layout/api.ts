@@ -20,7 +20,9 @@ export interface RemainingMetres {
 }
 
 export async function getRemainingMetres(projectId: string): Promise<RemainingMetres[]> {
-  const f = await apiGet<{ positions: { position: { positionId: string }; p90: { remainingM: number; status: RemainingMetres['status'] } }[] }>(`/api/projects/${projectId}/forecast`);
+  const f = await apiGet<{
+    positions: { position: { positionId: string }; p90: { remainingM: number; status: RemainingMetres['status'] } }[];
+  }>(`/api/projects/${projectId}/forecast`);
   return f.positions.map((p) => ({ positionId: p.position.positionId, remainingM: p.p90.remainingM, status: p.p90.status }));
 }
 
@@ -28,7 +30,11 @@ export const layoutQueries = {
   all: (projectId: string) => ['projects', projectId, 'positions'] as const,
   list: (projectId: string) => queryOptions({ queryKey: layoutQueries.all(projectId), queryFn: () => getLayout(projectId) }),
   remaining: (projectId: string) =>
-    queryOptions({ queryKey: [...layoutQueries.all(projectId), 'remaining'], queryFn: () => getRemainingMetres(projectId), staleTime: 5_000 }),
+    queryOptions({
+      queryKey: [...layoutQueries.all(projectId), 'remaining'],
+      queryFn: () => getRemainingMetres(projectId),
+      staleTime: 5_000,
+    }),
   detail: (projectId: string, positionId: string) =>
     queryOptions({ queryKey: [...layoutQueries.all(projectId), positionId], queryFn: () => getPosition(projectId, positionId) }),
 };

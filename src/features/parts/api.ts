@@ -1,8 +1,22 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
-import type { PartInput, PurchaseOrderInput, ReceiveLineInput, StockCountInput, WorkshopSettingsInput } from '../../../shared/schemas/parts';
+import type {
+  PartInput,
+  PurchaseOrderInput,
+  ReceiveLineInput,
+  StockCountInput,
+  WorkshopSettingsInput,
+} from '../../../shared/schemas/parts';
 import { api, apiGet } from '../../lib/api-client';
 import type { CataloguePart, PartListItem, PartsDemand, OrderLine, PurchaseOrder } from '../../../shared/schemas/parts';
-export type { CataloguePart, PartListItem, DemandWeek, DemandStop, PartsDemand, OrderLine, PurchaseOrder } from '../../../shared/schemas/parts';
+export type {
+  CataloguePart,
+  PartListItem,
+  DemandWeek,
+  DemandStop,
+  PartsDemand,
+  OrderLine,
+  PurchaseOrder,
+} from '../../../shared/schemas/parts';
 
 export interface DemandFilters {
   weeks: number;
@@ -18,14 +32,16 @@ export const getOrders = (projectId: string) => apiGet<PurchaseOrder[]>(`${base(
 export const getWorkshop = (projectId: string) => apiGet<WorkshopSettingsInput>(`${base(projectId)}/workshop`);
 
 export const createPart = (projectId: string, input: PartInput) => api<CataloguePart>('POST', base(projectId), input);
-export const updatePart = (projectId: string, partId: string, input: PartInput) => api<CataloguePart>('PUT', `${base(projectId)}/${partId}`, input);
+export const updatePart = (projectId: string, partId: string, input: PartInput) =>
+  api<CataloguePart>('PUT', `${base(projectId)}/${partId}`, input);
 export const deletePart = (projectId: string, partId: string) => api<void>('DELETE', `${base(projectId)}/${partId}`);
 export const countStock = (projectId: string, partId: string, input: StockCountInput) =>
   api<{ partId: string; onHand: number; difference: number }>('POST', `${base(projectId)}/${partId}/count`, input);
 export const createOrder = (projectId: string, input: PurchaseOrderInput) => api<PurchaseOrder>('POST', `${base(projectId)}/orders`, input);
 export const receiveLine = (projectId: string, line: OrderLine, input: ReceiveLineInput) =>
   api<PurchaseOrder>('POST', `${base(projectId)}/orders/${line.purchaseOrderId}/lines/${line.id}/receive`, input);
-export const saveWorkshop = (projectId: string, input: WorkshopSettingsInput) => api<WorkshopSettingsInput>('PUT', `${base(projectId)}/workshop`, input);
+export const saveWorkshop = (projectId: string, input: WorkshopSettingsInput) =>
+  api<WorkshopSettingsInput>('PUT', `${base(projectId)}/workshop`, input);
 
 /** Stock, orders and the forecast move together: every parts mutation invalidates `all`. */
 export const partQueries = {
@@ -34,7 +50,8 @@ export const partQueries = {
   demand: (projectId: string, f: DemandFilters) =>
     queryOptions({ queryKey: [...partQueries.all(projectId), 'demand', f], queryFn: () => getDemand(projectId, f) }),
   orders: (projectId: string) => queryOptions({ queryKey: [...partQueries.all(projectId), 'orders'], queryFn: () => getOrders(projectId) }),
-  workshop: (projectId: string) => queryOptions({ queryKey: [...partQueries.all(projectId), 'workshop'], queryFn: () => getWorkshop(projectId) }),
+  workshop: (projectId: string) =>
+    queryOptions({ queryKey: [...partQueries.all(projectId), 'workshop'], queryFn: () => getWorkshop(projectId) }),
 };
 
 /** Every parts write invalidates `partQueries.all`: catalogue, stock, orders and demand move together. */
@@ -44,11 +61,15 @@ function usePartsMutation<TInput, TResult>(projectId: string, mutationFn: (input
 }
 
 export const useSavePart = (projectId: string) =>
-  usePartsMutation(projectId, ({ partId, input }: { partId: string | null; input: PartInput }) => (partId ? updatePart(projectId, partId, input) : createPart(projectId, input)));
+  usePartsMutation(projectId, ({ partId, input }: { partId: string | null; input: PartInput }) =>
+    partId ? updatePart(projectId, partId, input) : createPart(projectId, input),
+  );
 export const useDeletePart = (projectId: string) => usePartsMutation(projectId, (partId: string) => deletePart(projectId, partId));
 export const useCountStock = (projectId: string) =>
   usePartsMutation(projectId, ({ partId, input }: { partId: string; input: StockCountInput }) => countStock(projectId, partId, input));
-export const useCreateOrder = (projectId: string) => usePartsMutation(projectId, (input: PurchaseOrderInput) => createOrder(projectId, input));
+export const useCreateOrder = (projectId: string) =>
+  usePartsMutation(projectId, (input: PurchaseOrderInput) => createOrder(projectId, input));
 export const useReceiveLine = (projectId: string) =>
   usePartsMutation(projectId, ({ line, input }: { line: OrderLine; input: ReceiveLineInput }) => receiveLine(projectId, line, input));
-export const useSaveWorkshop = (projectId: string) => usePartsMutation(projectId, (input: WorkshopSettingsInput) => saveWorkshop(projectId, input));
+export const useSaveWorkshop = (projectId: string) =>
+  usePartsMutation(projectId, (input: WorkshopSettingsInput) => saveWorkshop(projectId, input));

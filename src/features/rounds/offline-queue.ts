@@ -100,9 +100,8 @@ const SEND_TIMEOUT_MS = 20_000;
 
 /** Sends one item: the server's answer on 2xx, else the error. Never throws. */
 async function sendItem(item: QueuedItem): Promise<{ data: unknown } | { error: SendError }> {
-  const url = item.kind === 'entry'
-    ? `/api/projects/${item.projectId}/rounds/${item.roundId}/entries`
-    : `/api/projects/${item.projectId}/photos`;
+  const url =
+    item.kind === 'entry' ? `/api/projects/${item.projectId}/rounds/${item.roundId}/entries` : `/api/projects/${item.projectId}/photos`;
   let body: BodyInit;
   const headers: Record<string, string> = {};
   if (item.kind === 'entry') {
@@ -125,7 +124,9 @@ async function sendItem(item: QueuedItem): Promise<{ data: unknown } | { error: 
   if (res.ok) return { data };
   // 503: the server is up but its database is not; the item stays queued and is sent again.
   if (res.status === 503) return { error: { status: 503, message: `${DATABASE_DOWN_MESSAGE} They are sent when it is back.`, issues: [] } };
-  return { error: { status: res.status, message: data?.error?.message ?? `The server answered ${res.status}.`, issues: data?.error?.issues ?? [] } };
+  return {
+    error: { status: res.status, message: data?.error?.message ?? `The server answered ${res.status}.`, issues: data?.error?.issues ?? [] },
+  };
 }
 
 export interface OutboxSnapshot {
@@ -203,8 +204,14 @@ export async function queueEntry(
   await idbStorage.put(entry);
   for (const photo of photos) {
     await idbStorage.put({
-      kind: 'photo', key: crypto.randomUUID(), seq: nextSeq(), ...where, entryClientKey: entry.key,
-      blob: photo, fileName: photo.name || 'photo', state: 'pending',
+      kind: 'photo',
+      key: crypto.randomUUID(),
+      seq: nextSeq(),
+      ...where,
+      entryClientKey: entry.key,
+      blob: photo,
+      fileName: photo.name || 'photo',
+      state: 'pending',
     });
   }
   await reload();

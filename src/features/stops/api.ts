@@ -1,6 +1,13 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type {
-  CancelStopInput, CompleteStopInput, CreateStopInput, ScheduleStopInput, StartStopInput, StopPlanQuery, StopPlanView, StopStatus,
+  CancelStopInput,
+  CompleteStopInput,
+  CreateStopInput,
+  ScheduleStopInput,
+  StartStopInput,
+  StopPlanQuery,
+  StopPlanView,
+  StopStatus,
 } from '../../../shared/schemas/stop';
 export type { PlanChange, PlanStop, PlanView, StopPlanSettings } from '../../../shared/schemas/stop';
 import { api, apiGet } from '../../lib/api-client';
@@ -17,22 +24,31 @@ const queryString = (q: Record<string, string | number | undefined>) => {
   return entries.length === 0 ? '' : `?${new URLSearchParams(entries.map(([k, v]) => [k, String(v)])).toString()}`;
 };
 
-export const getStopPlan = (projectId: string, overrides: StopPlanQuery) => apiGet<StopPlan>(`${base(projectId)}/plan${queryString(overrides)}`);
+export const getStopPlan = (projectId: string, overrides: StopPlanQuery) =>
+  apiGet<StopPlan>(`${base(projectId)}/plan${queryString(overrides)}`);
 export const getStops = (projectId: string, status?: StopStatus) => apiGet<StopListItem[]>(`${base(projectId)}${queryString({ status })}`);
 export const getWorkPack = (projectId: string, stopId: string) => apiGet<WorkPack>(`${base(projectId)}/${stopId}`);
 
 export const proposeStop = (projectId: string, input: CreateStopInput) => api<WorkPack>('POST', base(projectId), input);
-export const scheduleStop = (projectId: string, stopId: string, input: ScheduleStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/schedule`, input);
+export const scheduleStop = (projectId: string, stopId: string, input: ScheduleStopInput) =>
+  api<WorkPack>('POST', `${base(projectId)}/${stopId}/schedule`, input);
 export const publishStop = (projectId: string, stopId: string) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/publish`);
-export const startStop = (projectId: string, stopId: string, input: StartStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/start`, input);
-export const completeStop = (projectId: string, stopId: string, input: CompleteStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/complete`, input);
-export const cancelStop = (projectId: string, stopId: string, input: CancelStopInput) => api<WorkPack>('POST', `${base(projectId)}/${stopId}/cancel`, input);
+export const startStop = (projectId: string, stopId: string, input: StartStopInput) =>
+  api<WorkPack>('POST', `${base(projectId)}/${stopId}/start`, input);
+export const completeStop = (projectId: string, stopId: string, input: CompleteStopInput) =>
+  api<WorkPack>('POST', `${base(projectId)}/${stopId}/complete`, input);
+export const cancelStop = (projectId: string, stopId: string, input: CancelStopInput) =>
+  api<WorkPack>('POST', `${base(projectId)}/${stopId}/cancel`, input);
 
 export const stopQueries = {
   all: (projectId: string) => ['projects', projectId, 'stops'] as const,
   // The plan follows the forecast, which moves with every inspection and stroke: refetch on each visit.
   plan: (projectId: string, overrides: StopPlanQuery) =>
-    queryOptions({ queryKey: [...stopQueries.all(projectId), 'plan', overrides], queryFn: () => getStopPlan(projectId, overrides), staleTime: 1_000 }),
+    queryOptions({
+      queryKey: [...stopQueries.all(projectId), 'plan', overrides],
+      queryFn: () => getStopPlan(projectId, overrides),
+      staleTime: 1_000,
+    }),
   list: (projectId: string, status?: StopStatus) =>
     queryOptions({ queryKey: [...stopQueries.all(projectId), 'list', status ?? 'all'], queryFn: () => getStops(projectId, status) }),
   detail: (projectId: string, stopId: string) =>
@@ -40,7 +56,10 @@ export const stopQueries = {
   crews: (projectId: string) =>
     queryOptions({ queryKey: [...stopQueries.all(projectId), 'crews'], queryFn: () => apiGet<Crew[]>(`/api/projects/${projectId}/crews`) }),
   rounds: (projectId: string) =>
-    queryOptions({ queryKey: [...stopQueries.all(projectId), 'rounds'], queryFn: () => apiGet<RoundOption[]>(`/api/projects/${projectId}/rounds`) }),
+    queryOptions({
+      queryKey: [...stopQueries.all(projectId), 'rounds'],
+      queryFn: () => apiGet<RoundOption[]>(`/api/projects/${projectId}/rounds`),
+    }),
 };
 
 /** One change to a stop's state, as the work pack's buttons and forms ask for it. */
@@ -53,11 +72,16 @@ export type StopChange =
 
 function changeStop(projectId: string, stopId: string, change: StopChange): Promise<WorkPack> {
   switch (change.kind) {
-    case 'schedule': return scheduleStop(projectId, stopId, change.input);
-    case 'publish': return publishStop(projectId, stopId);
-    case 'start': return startStop(projectId, stopId, change.input);
-    case 'complete': return completeStop(projectId, stopId, change.input);
-    case 'cancel': return cancelStop(projectId, stopId, change.input);
+    case 'schedule':
+      return scheduleStop(projectId, stopId, change.input);
+    case 'publish':
+      return publishStop(projectId, stopId);
+    case 'start':
+      return startStop(projectId, stopId, change.input);
+    case 'complete':
+      return completeStop(projectId, stopId, change.input);
+    case 'cancel':
+      return cancelStop(projectId, stopId, change.input);
   }
 }
 

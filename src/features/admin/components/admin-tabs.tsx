@@ -7,10 +7,18 @@ const tab = ({ isActive }: { isActive: boolean }) =>
 export function AdminTabs() {
   return (
     <nav aria-label="Administration" className="flex flex-wrap gap-2">
-      <NavLink to={paths.admin.users} className={tab}>Users</NavLink>
-      <NavLink to={paths.admin.projects} className={tab}>Projects</NavLink>
-      <NavLink to={paths.admin.mail} className={tab}>Mail</NavLink>
-      <NavLink to={paths.admin.jobs} className={tab}>Jobs</NavLink>
+      <NavLink to={paths.admin.users} className={tab}>
+        Users
+      </NavLink>
+      <NavLink to={paths.admin.projects} className={tab}>
+        Projects
+      </NavLink>
+      <NavLink to={paths.admin.mail} className={tab}>
+        Mail
+      </NavLink>
+      <NavLink to={paths.admin.jobs} className={tab}>
+        Jobs
+      </NavLink>
     </nav>
   );
 }

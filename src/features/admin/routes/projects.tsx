@@ -42,24 +42,53 @@ function Members({ project }: { project: AdminProject }) {
       <ul className="divide-y divide-basalt-100">
         {(members.data ?? []).map((m) => (
           <li key={m.userId} className="flex flex-wrap items-center gap-3 py-2">
-            <span className="flex-1">{m.name} <span className="text-basalt-600">({m.email})</span></span>
-            <label className="sr-only" htmlFor={`role-${m.userId}`}>Role of {m.name}</label>
-            <select id={`role-${m.userId}`} className="min-h-touch rounded-md border-2 border-basalt-300 px-2" value={m.role} onChange={(e) => run(() => setMember.mutateAsync({ projectId: project.id, userId: m.userId, role: e.target.value as ProjectRole }))}>
-              {projectRoles.map((r) => <option key={r} value={r}>{roleLabels[r]}</option>)}
+            <span className="flex-1">
+              {m.name} <span className="text-basalt-600">({m.email})</span>
+            </span>
+            <label className="sr-only" htmlFor={`role-${m.userId}`}>
+              Role of {m.name}
+            </label>
+            <select
+              id={`role-${m.userId}`}
+              className="min-h-touch rounded-md border-2 border-basalt-300 px-2"
+              value={m.role}
+              onChange={(e) =>
+                run(() => setMember.mutateAsync({ projectId: project.id, userId: m.userId, role: e.target.value as ProjectRole }))
+              }
+            >
+              {projectRoles.map((r) => (
+                <option key={r} value={r}>
+                  {roleLabels[r]}
+                </option>
+              ))}
             </select>
-            <Button variant="secondary" onClick={() => run(() => removeMember.mutateAsync({ projectId: project.id, userId: m.userId }))}>Remove</Button>
+            <Button variant="secondary" onClick={() => run(() => removeMember.mutateAsync({ projectId: project.id, userId: m.userId }))}>
+              Remove
+            </Button>
           </li>
         ))}
       </ul>
       <div className="mt-4 grid gap-3 md:grid-cols-[1fr_1fr_auto] md:items-end">
         <SelectField label="Add a person" value={userId} onChange={(e) => setUserId(e.target.value)}>
           <option value="">— choose —</option>
-          {users.filter((u) => u.active).map((u) => <option key={u.id} value={u.id}>{u.name} ({u.email})</option>)}
+          {users
+            .filter((u) => u.active)
+            .map((u) => (
+              <option key={u.id} value={u.id}>
+                {u.name} ({u.email})
+              </option>
+            ))}
         </SelectField>
         <SelectField label="Role" value={role} onChange={(e) => setRole(e.target.value as ProjectRole)}>
-          {projectRoles.map((r) => <option key={r} value={r}>{roleLabels[r]}</option>)}
+          {projectRoles.map((r) => (
+            <option key={r} value={r}>
+              {roleLabels[r]}
+            </option>
+          ))}
         </SelectField>
-        <Button disabled={!userId} onClick={() => run(() => setMember.mutateAsync({ projectId: project.id, userId, role }))}>Add</Button>
+        <Button disabled={!userId} onClick={() => run(() => setMember.mutateAsync({ projectId: project.id, userId, role }))}>
+          Add
+        </Button>
       </div>
     </Panel>
   );
@@ -72,7 +101,12 @@ export function AdminProjectsRoute() {
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const form = useForm<ProjectForm>({
     resolver: zodResolver(projectInputSchema),
-    defaultValues: { driveDirection: 'increasing', siteTimeZone: Intl.DateTimeFormat().resolvedOptions().timeZone, startChainageM: 0, units: 'metric' },
+    defaultValues: {
+      driveDirection: 'increasing',
+      siteTimeZone: Intl.DateTimeFormat().resolvedOptions().timeZone,
+      startChainageM: 0,
+      units: 'metric',
+    },
   });
   const onCreate = form.handleSubmit(async (v) => {
     setMessage(null);
@@ -90,7 +124,15 @@ export function AdminProjectsRoute() {
     col.accessor('excavatedDiameterM', { header: 'Diameter (m)' }),
     col.accessor('siteTimeZone', { header: 'Time zone' }),
     col.accessor('memberCount', { header: 'Members' }),
-    col.display({ id: 'members', header: 'Members', cell: ({ row }) => <Button variant="secondary" onClick={() => setSelected(row.original.id)}>Manage members</Button> }),
+    col.display({
+      id: 'members',
+      header: 'Members',
+      cell: ({ row }) => (
+        <Button variant="secondary" onClick={() => setSelected(row.original.id)}>
+          Manage members
+        </Button>
+      ),
+    }),
   ];
   const selectedProject = projects.find((p) => p.id === selected);
   const e = form.formState.errors;
@@ -104,16 +146,34 @@ export function AdminProjectsRoute() {
         <form onSubmit={onCreate} className="grid gap-4 md:grid-cols-2" noValidate>
           <TextField label="Name" {...form.register('name')} error={e.name?.message} />
           <TextField label="Machine" {...form.register('machineDescription')} error={e.machineDescription?.message} />
-          <TextField label="Excavated diameter (m)" inputMode="decimal" {...form.register('excavatedDiameterM')} error={e.excavatedDiameterM?.message} />
-          <TextField label="Start chainage (m)" inputMode="decimal" {...form.register('startChainageM')} error={e.startChainageM?.message} />
+          <TextField
+            label="Excavated diameter (m)"
+            inputMode="decimal"
+            {...form.register('excavatedDiameterM')}
+            error={e.excavatedDiameterM?.message}
+          />
+          <TextField
+            label="Start chainage (m)"
+            inputMode="decimal"
+            {...form.register('startChainageM')}
+            error={e.startChainageM?.message}
+          />
           <SelectField label="As the machine advances, chainage…" {...form.register('driveDirection')} error={e.driveDirection?.message}>
             <option value="increasing">increases</option>
             <option value="decreasing">decreases</option>
           </SelectField>
           <SelectField label="Site time zone" {...form.register('siteTimeZone')} error={e.siteTimeZone?.message}>
-            {timeZones.map((tz) => <option key={tz} value={tz}>{tz}</option>)}
+            {timeZones.map((tz) => (
+              <option key={tz} value={tz}>
+                {tz}
+              </option>
+            ))}
           </SelectField>
-          <div className="md:col-span-2"><Button type="submit" disabled={form.formState.isSubmitting}>Create project</Button></div>
+          <div className="md:col-span-2">
+            <Button type="submit" disabled={form.formState.isSubmitting}>
+              Create project
+            </Button>
+          </div>
         </form>
       </Panel>
     </Page>

@@ -54,8 +54,14 @@ export function AdminUsersRoute() {
   const columns = [
     col.accessor('name', { header: 'Name' }),
     col.accessor('email', { header: 'E-mail' }),
-    col.accessor((u) => u.memberships.map((m) => `${m.projectName}: ${roleLabels[m.role]}`).join('; '), { id: 'roles', header: 'Drives and roles' }),
-    col.accessor((u) => (!u.active ? 'deactivated' : u.invited ? 'invited' : 'active') + (u.isAdmin ? ', administrator' : ''), { id: 'status', header: 'Status' }),
+    col.accessor((u) => u.memberships.map((m) => `${m.projectName}: ${roleLabels[m.role]}`).join('; '), {
+      id: 'roles',
+      header: 'Drives and roles',
+    }),
+    col.accessor((u) => (!u.active ? 'deactivated' : u.invited ? 'invited' : 'active') + (u.isAdmin ? ', administrator' : ''), {
+      id: 'status',
+      header: 'Status',
+    }),
     col.display({
       id: 'actions',
       header: 'Actions',
@@ -78,16 +84,28 @@ export function AdminUsersRoute() {
           <TextField label="E-mail" type="email" {...form.register('email')} error={form.formState.errors.email?.message} />
           <SelectField label="Drive (optional)" {...form.register('projectId')}>
             <option value="">— none yet —</option>
-            {projects.map((p) => <option key={p.id} value={p.id}>{p.name}</option>)}
+            {projects.map((p) => (
+              <option key={p.id} value={p.id}>
+                {p.name}
+              </option>
+            ))}
           </SelectField>
           <SelectField label="Role on that drive" {...form.register('role')}>
             <option value="">— choose —</option>
-            {projectRoles.map((r) => <option key={r} value={r}>{roleLabels[r]}</option>)}
+            {projectRoles.map((r) => (
+              <option key={r} value={r}>
+                {roleLabels[r]}
+              </option>
+            ))}
           </SelectField>
           <label className="flex min-h-touch items-center gap-3">
             <input type="checkbox" className="h-6 w-6" {...form.register('isAdmin')} /> Administrator
           </label>
-          <div className="md:col-span-2"><Button type="submit" disabled={form.formState.isSubmitting}>Send invitation</Button></div>
+          <div className="md:col-span-2">
+            <Button type="submit" disabled={form.formState.isSubmitting}>
+              Send invitation
+            </Button>
+          </div>
         </form>
       </Panel>
       <DataTable data={users} columns={columns} exportName="kerfwise-users" />

@@ -14,7 +14,13 @@ export function NotificationChoices() {
       <legend className="sr-only">E-mail notifications</legend>
       {data.map((c) => (
         <label key={c.kind} className="flex min-h-touch items-center gap-3">
-          <input type="checkbox" className="h-6 w-6" checked={c.enabled} disabled={save.isPending} onChange={(e) => save.mutate({ kind: c.kind, enabled: e.target.checked })} />
+          <input
+            type="checkbox"
+            className="h-6 w-6"
+            checked={c.enabled}
+            disabled={save.isPending}
+            onChange={(e) => save.mutate({ kind: c.kind, enabled: e.target.checked })}
+          />
           {c.label}
         </label>
       ))}

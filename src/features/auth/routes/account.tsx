@@ -16,7 +16,9 @@ export function AccountRoute() {
   const me = useMe();
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const changePassword = useChangePassword();
-  const { register, handleSubmit, formState, reset, setError } = useForm<ChangePasswordInput>({ resolver: zodResolver(changePasswordInputSchema) });
+  const { register, handleSubmit, formState, reset, setError } = useForm<ChangePasswordInput>({
+    resolver: zodResolver(changePasswordInputSchema),
+  });
   const onSubmit = handleSubmit(async (input) => {
     setMessage(null);
     try {
@@ -30,9 +32,16 @@ export function AccountRoute() {
   return (
     <Page title="Your account">
       <Panel title={me.user.name}>
-        <p>{me.user.email}{me.user.isAdmin && ' · administrator'}</p>
+        <p>
+          {me.user.email}
+          {me.user.isAdmin && ' · administrator'}
+        </p>
         <ul className="mt-2 list-disc pl-6">
-          {me.memberships.map((m) => <li key={m.projectId}>{m.projectName}: {roleLabels[m.role]}</li>)}
+          {me.memberships.map((m) => (
+            <li key={m.projectId}>
+              {m.projectName}: {roleLabels[m.role]}
+            </li>
+          ))}
         </ul>
       </Panel>
       <Panel title="E-mail notifications">
@@ -41,9 +50,23 @@ export function AccountRoute() {
       <Panel title="Change password">
         <form onSubmit={onSubmit} className="max-w-md space-y-4" noValidate>
           {message && <Alert tone={message.tone}>{message.text}</Alert>}
-          <TextField label="Current password" type="password" autoComplete="current-password" {...register('currentPassword')} error={formState.errors.currentPassword?.message} />
-          <TextField label="New password" type="password" autoComplete="new-password" {...register('newPassword')} error={formState.errors.newPassword?.message} />
-          <Button type="submit" disabled={formState.isSubmitting}>Change password</Button>
+          <TextField
+            label="Current password"
+            type="password"
+            autoComplete="current-password"
+            {...register('currentPassword')}
+            error={formState.errors.currentPassword?.message}
+          />
+          <TextField
+            label="New password"
+            type="password"
+            autoComplete="new-password"
+            {...register('newPassword')}
+            error={formState.errors.newPassword?.message}
+          />
+          <Button type="submit" disabled={formState.isSubmitting}>
+            Change password
+          </Button>
         </form>
       </Panel>
     </Page>

@@ -15,7 +15,12 @@ export function RequestResetRoute() {
   const [done, setDone] = useState<string | null>(null);
   const [error, setError] = useState<string | null>(null);
   const requestReset = useRequestPasswordReset();
-  const { register, handleSubmit, formState, setError: setFieldError } = useForm<PasswordResetRequest>({ resolver: zodResolver(passwordResetRequestSchema) });
+  const {
+    register,
+    handleSubmit,
+    formState,
+    setError: setFieldError,
+  } = useForm<PasswordResetRequest>({ resolver: zodResolver(passwordResetRequestSchema) });
   const onSubmit = handleSubmit(async (input) => {
     setError(null);
     try {
@@ -33,10 +38,16 @@ export function RequestResetRoute() {
           {error && <Alert tone="error">{error}</Alert>}
           <p>Enter the e-mail address of your account. We send a link to choose a new password; it works once, within an hour.</p>
           <TextField label="E-mail" type="email" autoComplete="username" {...register('email')} error={formState.errors.email?.message} />
-          <Button type="submit" className="w-full" disabled={formState.isSubmitting}>Send the link</Button>
+          <Button type="submit" className="w-full" disabled={formState.isSubmitting}>
+            Send the link
+          </Button>
         </form>
       )}
-      <p className="text-center"><Link className="underline" to={paths.signIn}>Back to sign-in</Link></p>
+      <p className="text-center">
+        <Link className="underline" to={paths.signIn}>
+          Back to sign-in
+        </Link>
+      </p>
     </AuthCard>
   );
 }

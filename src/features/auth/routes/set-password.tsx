@@ -41,12 +41,31 @@ export function SetPasswordRoute() {
       ) : (
         <form onSubmit={onSubmit} className="space-y-4" noValidate>
           {error && <Alert tone="error">{error}</Alert>}
-          <TextField label="New password" type="password" autoComplete="new-password" hint="At least 12 characters. A few words in a row make a good one." {...register('password')} error={formState.errors.password?.message} />
-          <TextField label="New password again" type="password" autoComplete="new-password" {...register('repeat')} error={formState.errors.repeat?.message} />
-          <Button type="submit" className="w-full" disabled={formState.isSubmitting}>Save password and sign in</Button>
+          <TextField
+            label="New password"
+            type="password"
+            autoComplete="new-password"
+            hint="At least 12 characters. A few words in a row make a good one."
+            {...register('password')}
+            error={formState.errors.password?.message}
+          />
+          <TextField
+            label="New password again"
+            type="password"
+            autoComplete="new-password"
+            {...register('repeat')}
+            error={formState.errors.repeat?.message}
+          />
+          <Button type="submit" className="w-full" disabled={formState.isSubmitting}>
+            Save password and sign in
+          </Button>
         </form>
       )}
-      <p className="text-center"><Link className="underline" to={paths.requestReset}>Ask for a new link</Link></p>
+      <p className="text-center">
+        <Link className="underline" to={paths.requestReset}>
+          Ask for a new link
+        </Link>
+      </p>
     </AuthCard>
   );
 }

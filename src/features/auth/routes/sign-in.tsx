@@ -33,12 +33,29 @@ export function SignInRoute() {
     <AuthCard title="Sign in">
       <form onSubmit={onSubmit} className="space-y-4" noValidate>
         {error && <Alert tone="error">{error}</Alert>}
-        <TextField label="E-mail" type="email" autoComplete="username" autoFocus {...register('email')} error={formState.errors.email?.message} />
-        <TextField label="Password" type="password" autoComplete="current-password" {...register('password')} error={formState.errors.password?.message} />
+        <TextField
+          label="E-mail"
+          type="email"
+          autoComplete="username"
+          autoFocus
+          {...register('email')}
+          error={formState.errors.email?.message}
+        />
+        <TextField
+          label="Password"
+          type="password"
+          autoComplete="current-password"
+          {...register('password')}
+          error={formState.errors.password?.message}
+        />
         <Button type="submit" className="w-full" disabled={formState.isSubmitting}>
           {formState.isSubmitting ? 'Signing in…' : 'Sign in'}
         </Button>
-        <p className="text-center"><Link className="underline" to={paths.requestReset}>Forgot your password?</Link></p>
+        <p className="text-center">
+          <Link className="underline" to={paths.requestReset}>
+            Forgot your password?
+          </Link>
+        </p>
       </form>
     </AuthCard>
   );

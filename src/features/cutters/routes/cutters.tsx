@@ -44,13 +44,31 @@ function ReceiveCutter({ projectId }: { projectId: string }) {
   return (
     <Panel title="Receive a cutter into the store">
       <form onSubmit={onSubmit} noValidate className="grid gap-4 md:grid-cols-[1fr_10rem_1fr_auto] md:items-start">
-        {message && <div className="md:col-span-4"><Alert tone={message.tone}>{message.text}</Alert></div>}
-        <TextField label="Serial number" autoComplete="off" autoCapitalize="characters" {...form.register('serial')} error={e.serial?.message} />
+        {message && (
+          <div className="md:col-span-4">
+            <Alert tone={message.tone}>{message.text}</Alert>
+          </div>
+        )}
+        <TextField
+          label="Serial number"
+          autoComplete="off"
+          autoCapitalize="characters"
+          {...form.register('serial')}
+          error={e.serial?.message}
+        />
         <SelectField label="Disc size" {...form.register('discSizeIn')} error={e.discSizeIn?.message}>
-          {discSizesIn.map((d) => <option key={d} value={d}>{d}″</option>)}
+          {discSizesIn.map((d) => (
+            <option key={d} value={d}>
+              {d}″
+            </option>
+          ))}
         </SelectField>
         <TextField label="Notes (optional)" {...form.register('notes')} error={e.notes?.message} />
-        <div className="md:pt-8"><Button type="submit" disabled={form.formState.isSubmitting}>Receive</Button></div>
+        <div className="md:pt-8">
+          <Button type="submit" disabled={form.formState.isSubmitting}>
+            Receive
+          </Button>
+        </div>
       </form>
     </Panel>
   );
@@ -68,20 +86,34 @@ export function CuttersRoute() {
   const filters = { status, q: searched || undefined };
   const list = useQuery({ ...cutterQueries.list(projectId, filters), placeholderData: keepPreviousData });
   const setParam = (name: string, value: string) =>
-    setParams((prev) => {
-      const next = new URLSearchParams(prev);
-      if (value) next.set(name, value);
-      else next.delete(name);
-      return next;
-    }, { replace: true });
+    setParams(
+      (prev) => {
+        const next = new URLSearchParams(prev);
+        if (value) next.set(name, value);
+        else next.delete(name);
+        return next;
+      },
+      { replace: true },
+    );
 
   const columns = [
-    col.accessor('serial', { header: 'Serial', cell: ({ row }) => <Link className={`${linkClass} whitespace-nowrap`} to={paths.cutter(projectId, row.original.id)}>{row.original.serial}</Link> }),
+    col.accessor('serial', {
+      header: 'Serial',
+      cell: ({ row }) => (
+        <Link className={`${linkClass} whitespace-nowrap`} to={paths.cutter(projectId, row.original.id)}>
+          {row.original.serial}
+        </Link>
+      ),
+    }),
     col.accessor((c) => cutterStatusLabels[c.status], { id: 'status', header: 'State' }),
     col.accessor('discSizeIn', { header: 'Disc (in)' }),
     col.accessor('rebuildCount', { header: 'Rebuilds' }),
     col.accessor('positionNumber', { header: 'Position', cell: ({ getValue }) => getValue() ?? '—' }),
-    col.accessor((c) => (c.fittedAt ? formatSiteDate(c.fittedAt, project.siteTimeZone) : ''), { id: 'fittedAt', header: 'Fitted since', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((c) => (c.fittedAt ? formatSiteDate(c.fittedAt, project.siteTimeZone) : ''), {
+      id: 'fittedAt',
+      header: 'Fitted since',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
     col.accessor('notes', { header: 'Notes' }),
   ];
 
@@ -91,7 +123,11 @@ export function CuttersRoute() {
       <div className="grid gap-4 sm:grid-cols-2">
         <SelectField label="State" value={status ?? ''} onChange={(ev) => setParam('status', ev.target.value)}>
           <option value="">All states</option>
-          {cutterStatuses.map((s: CutterStatus) => <option key={s} value={s}>{cutterStatusLabels[s]}</option>)}
+          {cutterStatuses.map((s: CutterStatus) => (
+            <option key={s} value={s}>
+              {cutterStatusLabels[s]}
+            </option>
+          ))}
         </SelectField>
         <TextField label="Search by serial" type="search" value={q} onChange={(ev) => setParam('q', ev.target.value)} />
       </div>
@@ -101,7 +137,8 @@ export function CuttersRoute() {
       ) : (
         <>
           <p className="text-basalt-700" aria-live="polite">
-            {list.data?.length ?? 0} serial(s){status ? ` ${cutterStatusLabels[status].toLowerCase()}` : ''}{filters.q ? ` matching “${filters.q}”` : ''}.
+            {list.data?.length ?? 0} serial(s){status ? ` ${cutterStatusLabels[status].toLowerCase()}` : ''}
+            {filters.q ? ` matching “${filters.q}”` : ''}.
           </p>
           <DataTable data={list.data ?? []} columns={columns} exportName="kerfwise-cutters" emptyText="No serials match." />
         </>

@@ -32,13 +32,19 @@ export function CausesPanel({ projectId, causes, canEdit }: { projectId: string;
       return false;
     }
   };
-  const change = (c: DowntimeCause, update: DowntimeCauseUpdate, done: (c: DowntimeCause) => string) => run(() => updateCause(projectId, c.id, update), done);
+  const change = (c: DowntimeCause, update: DowntimeCauseUpdate, done: (c: DowntimeCause) => string) =>
+    run(() => updateCause(projectId, c.id, update), done);
 
   const add = async (e: FormEvent) => {
     e.preventDefault();
     const parsed = downtimeCauseInputSchema.safeParse({ name, cutterWork });
     if (!parsed.success) return setMessage({ tone: 'error', text: parsed.error.issues[0].message });
-    if (await run(() => createCause(projectId, parsed.data), (c) => `${c.name} added.`)) {
+    if (
+      await run(
+        () => createCause(projectId, parsed.data),
+        (c) => `${c.name} added.`,
+      )
+    ) {
       setName('');
       setCutterWork(false);
     }
@@ -53,34 +59,61 @@ export function CausesPanel({ projectId, causes, canEdit }: { projectId: string;
   const columns = [
     col.accessor('name', {
       header: 'Cause',
-      cell: ({ row }) => (renaming?.id === row.original.id ? (
-        <form onSubmit={rename} className="flex flex-wrap items-end gap-2">
-          <TextField label={`New name for ${row.original.name}`} value={renaming.name} onChange={(e) => setRenaming({ ...renaming, name: e.target.value })} />
-          <Button type="submit">Save name</Button>
-          <Button variant="ghost" onClick={() => setRenaming(null)}>Cancel</Button>
-        </form>
-      ) : <span className={row.original.active ? 'font-semibold' : 'text-basalt-500 line-through'}>{row.original.name}</span>),
+      cell: ({ row }) =>
+        renaming?.id === row.original.id ? (
+          <form onSubmit={rename} className="flex flex-wrap items-end gap-2">
+            <TextField
+              label={`New name for ${row.original.name}`}
+              value={renaming.name}
+              onChange={(e) => setRenaming({ ...renaming, name: e.target.value })}
+            />
+            <Button type="submit">Save name</Button>
+            <Button variant="ghost" onClick={() => setRenaming(null)}>
+              Cancel
+            </Button>
+          </form>
+        ) : (
+          <span className={row.original.active ? 'font-semibold' : 'text-basalt-500 line-through'}>{row.original.name}</span>
+        ),
     }),
     col.accessor((c) => (c.cutterWork ? 'yes' : 'no'), { id: 'cutterWork', header: 'Cutter work' }),
     col.accessor((c) => (c.active ? 'in use' : 'not in use'), { id: 'active', header: 'Status' }),
     ...(canEdit
-      ? [col.display({
-        id: 'actions',
-        header: '',
-        cell: ({ row: { original: c } }) => (
-          <div className="flex flex-wrap gap-2">
-            <Button variant="secondary" aria-label={`Rename ${c.name}`} onClick={() => setRenaming({ id: c.id, name: c.name })}>Rename</Button>
-            <Button variant="secondary" aria-label={`${c.cutterWork ? 'Unmark' : 'Mark'} ${c.name} as cutter work`}
-              onClick={() => change(c, { cutterWork: !c.cutterWork }, (s) => `${s.name} ${s.cutterWork ? 'counts' : 'no longer counts'} as cutter work.`)}>
-              {c.cutterWork ? 'Unflag cutter work' : 'Flag as cutter work'}
-            </Button>
-            <Button variant="secondary" aria-label={`${c.active ? 'Take' : 'Put'} ${c.name} ${c.active ? 'out of' : 'back in'} use`}
-              onClick={() => change(c, { active: !c.active }, (s) => `${s.name} is ${s.active ? 'back in use' : 'out of use; past events keep it'}.`)}>
-              {c.active ? 'Take out of use' : 'Put back in use'}
-            </Button>
-          </div>
-        ),
-      })]
+      ? [
+          col.display({
+            id: 'actions',
+            header: '',
+            cell: ({ row: { original: c } }) => (
+              <div className="flex flex-wrap gap-2">
+                <Button variant="secondary" aria-label={`Rename ${c.name}`} onClick={() => setRenaming({ id: c.id, name: c.name })}>
+                  Rename
+                </Button>
+                <Button
+                  variant="secondary"
+                  aria-label={`${c.cutterWork ? 'Unmark' : 'Mark'} ${c.name} as cutter work`}
+                  onClick={() =>
+                    change(
+                      c,
+                      { cutterWork: !c.cutterWork },
+                      (s) => `${s.name} ${s.cutterWork ? 'counts' : 'no longer counts'} as cutter work.`,
+                    )
+                  }
+                >
+                  {c.cutterWork ? 'Unflag cutter work' : 'Flag as cutter work'}
+                </Button>
+                <Button
+                  variant="secondary"
+                  aria-label={`${c.active ? 'Take' : 'Put'} ${c.name} ${c.active ? 'out of' : 'back in'} use`}
+                  onClick={() =>
+                    change(c, { active: !c.active }, (s) => `${s.name} is ${s.active ? 'back in use' : 'out of use; past events keep it'}.`)
+                  }
+                >
+                  {c.active ? 'Take out of use' : 'Put back in use'}
+                </Button>
+              </div>
+            ),
+          }),
+        ]
       : []),
   ];
 
@@ -90,15 +123,19 @@ export function CausesPanel({ projectId, causes, canEdit }: { projectId: string;
         {message && <Alert tone={message.tone}>{message.text}</Alert>}
         <DataTable data={causes} columns={columns} exportName="kerfwise-downtime-causes" />
         <p className="text-caption text-basalt-700">
-          Cutter work (inspections, changes, and compressed-air stops made to reach the discs) counts in the cutter-work share and is costed at the labour rate.
+          Cutter work (inspections, changes, and compressed-air stops made to reach the discs) counts in the cutter-work share and is costed
+          at the labour rate.
         </p>
         {canEdit && (
           <form onSubmit={add} className="flex flex-wrap items-end gap-3" aria-label="New cause">
             <TextField label="New cause" value={name} onChange={(e) => setName(e.target.value)} maxLength={80} />
             <label className="flex min-h-touch items-center gap-2 font-semibold">
-              <input type="checkbox" className="h-5 w-5" checked={cutterWork} onChange={(e) => setCutterWork(e.target.checked)} /> Cutter work
+              <input type="checkbox" className="h-5 w-5" checked={cutterWork} onChange={(e) => setCutterWork(e.target.checked)} /> Cutter
+              work
             </label>
-            <Button type="submit" variant="secondary">Add cause</Button>
+            <Button type="submit" variant="secondary">
+              Add cause
+            </Button>
           </form>
         )}
       </div>

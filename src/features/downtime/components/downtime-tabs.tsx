@@ -9,9 +9,15 @@ export function DowntimeTabs({ projectId }: { projectId: string }) {
   const { search } = useLocation();
   return (
     <nav aria-label="Downtime" className="flex flex-wrap gap-2">
-      <NavLink end to={`${paths.downtime(projectId)}${search}`} className={tab}>Events</NavLink>
-      <NavLink to={`${paths.downtimeReport(projectId)}${search}`} className={tab}>Report</NavLink>
-      <NavLink to={`${paths.cutterCost(projectId)}${search}`} className={tab}>Cutter cost</NavLink>
+      <NavLink end to={`${paths.downtime(projectId)}${search}`} className={tab}>
+        Events
+      </NavLink>
+      <NavLink to={`${paths.downtimeReport(projectId)}${search}`} className={tab}>
+        Report
+      </NavLink>
+      <NavLink to={`${paths.cutterCost(projectId)}${search}`} className={tab}>
+        Cutter cost
+      </NavLink>
     </nav>
   );
 }

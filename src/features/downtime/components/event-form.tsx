@@ -19,7 +19,14 @@ function resolvedHint(value: string, timeZone: string): string {
 }
 
 /** Adds or edits a downtime event; times are entered in the site's time zone. */
-export function EventForm({ projectId, timeZone, causes, stops, editing, onDone }: {
+export function EventForm({
+  projectId,
+  timeZone,
+  causes,
+  stops,
+  editing,
+  onDone,
+}: {
   projectId: string;
   timeZone: string;
   causes: DowntimeCause[];
@@ -38,7 +45,8 @@ export function EventForm({ projectId, timeZone, causes, stops, editing, onDone 
   const [confirming, setConfirming] = useState(false);
   const [busy, setBusy] = useState(false);
   // An empty field gets a plain request; a filled one the rule it breaks (e.g. end before start).
-  const timeError = (key: string, value: string, label: string) => errors[key] && (value ? errors[key] : `Give the ${label} date and time.`);
+  const timeError = (key: string, value: string, label: string) =>
+    errors[key] && (value ? errors[key] : `Give the ${label} date and time.`);
   // Inactive causes are offered only to the event that already has one.
   const choosable = causes.filter((c) => c.active || c.id === editing?.causeId);
 
@@ -51,7 +59,11 @@ export function EventForm({ projectId, timeZone, causes, stops, editing, onDone 
     e.preventDefault();
     setError(null);
     const parsed = downtimeEventInputSchema.safeParse({
-      startAt: fromSiteInput(start, timeZone) ?? '', endAt: fromSiteInput(end, timeZone) ?? '', causeId: causeId || null, stopId: stopId || null, note,
+      startAt: fromSiteInput(start, timeZone) ?? '',
+      endAt: fromSiteInput(end, timeZone) ?? '',
+      causeId: causeId || null,
+      stopId: stopId || null,
+      note,
     });
     if (!parsed.success) {
       setErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])));
@@ -82,30 +94,71 @@ export function EventForm({ projectId, timeZone, causes, stops, editing, onDone 
   };
 
   return (
-    <form onSubmit={submit} noValidate aria-label={editing ? 'Edit downtime event' : 'New downtime event'} className="space-y-4 rounded-md border border-basalt-200 bg-basalt-50 p-4">
+    <form
+      onSubmit={submit}
+      noValidate
+      aria-label={editing ? 'Edit downtime event' : 'New downtime event'}
+      className="space-y-4 rounded-md border border-basalt-200 bg-basalt-50 p-4"
+    >
       <h3 className="font-semibold">{editing ? 'Edit downtime event' : 'New downtime event'}</h3>
       {error && <Alert tone="error">{error}</Alert>}
       <div className="grid gap-4 md:grid-cols-2">
-        <TextField label="Start (site time)" type="datetime-local" value={start} onChange={(e) => setStart(e.target.value)} error={timeError('startAt', start, 'start')} hint={resolvedHint(start, timeZone)} />
-        <TextField label="End (site time)" type="datetime-local" value={end} onChange={(e) => setEnd(e.target.value)} error={timeError('endAt', end, 'end')} hint={resolvedHint(end, timeZone)} />
+        <TextField
+          label="Start (site time)"
+          type="datetime-local"
+          value={start}
+          onChange={(e) => setStart(e.target.value)}
+          error={timeError('startAt', start, 'start')}
+          hint={resolvedHint(start, timeZone)}
+        />
+        <TextField
+          label="End (site time)"
+          type="datetime-local"
+          value={end}
+          onChange={(e) => setEnd(e.target.value)}
+          error={timeError('endAt', end, 'end')}
+          hint={resolvedHint(end, timeZone)}
+        />
         <SelectField label="Cause" value={causeId} onChange={(e) => setCauseId(e.target.value)} error={errors.causeId}>
           <option value="">— no cause yet —</option>
-          {choosable.map((c) => <option key={c.id} value={c.id}>{c.name}{c.cutterWork ? ' (cutter work)' : ''}{c.active ? '' : ' — not in use'}</option>)}
+          {choosable.map((c) => (
+            <option key={c.id} value={c.id}>
+              {c.name}
+              {c.cutterWork ? ' (cutter work)' : ''}
+              {c.active ? '' : ' — not in use'}
+            </option>
+          ))}
         </SelectField>
         <SelectField label="Linked stop (optional)" value={stopId} onChange={(e) => setStopId(e.target.value)} error={errors.stopId}>
           <option value="">— none —</option>
-          {stops.map((s) => <option key={s.id} value={s.id}>{formatChainage(s.chainageM)}{s.ringNumber ? ` (ring ${s.ringNumber})` : ''} — {s.status.replace('_', ' ')}</option>)}
+          {stops.map((s) => (
+            <option key={s.id} value={s.id}>
+              {formatChainage(s.chainageM)}
+              {s.ringNumber ? ` (ring ${s.ringNumber})` : ''} — {s.status.replace('_', ' ')}
+            </option>
+          ))}
         </SelectField>
         <div className="md:col-span-2">
           <TextField label="Note" value={note} onChange={(e) => setNote(e.target.value)} maxLength={2000} error={errors.note} />
         </div>
       </div>
       <div className="flex flex-wrap gap-2">
-        <Button type="submit" disabled={busy}>{editing ? 'Save event' : 'Add event'}</Button>
-        <Button variant="ghost" onClick={() => onDone('')}>Cancel</Button>
-        {editing && (confirming
-          ? <Button variant="danger" className="ml-auto" onClick={remove}>Delete this event for good</Button>
-          : <Button variant="secondary" className="ml-auto" onClick={() => setConfirming(true)}>Delete event</Button>)}
+        <Button type="submit" disabled={busy}>
+          {editing ? 'Save event' : 'Add event'}
+        </Button>
+        <Button variant="ghost" onClick={() => onDone('')}>
+          Cancel
+        </Button>
+        {editing &&
+          (confirming ? (
+            <Button variant="danger" className="ml-auto" onClick={remove}>
+              Delete this event for good
+            </Button>
+          ) : (
+            <Button variant="secondary" className="ml-auto" onClick={() => setConfirming(true)}>
+              Delete event
+            </Button>
+          ))}
       </div>
     </form>
   );

@@ -16,7 +16,13 @@ const hoursCell = (h: number) => (h === 0 ? <span className="text-basalt-400">0<
  * Hours by cause (rows) and period (columns: ISO weeks or shifts), with a total per cause and an
  * "All causes" row; sorts, filters and exports like every table.
  */
-export function HoursPivot<T extends { cause: string; cutterWork: boolean; hours: number }>({ rows, columns, columnOf, exportName, columnLabel }: {
+export function HoursPivot<T extends { cause: string; cutterWork: boolean; hours: number }>({
+  rows,
+  columns,
+  columnOf,
+  exportName,
+  columnLabel,
+}: {
   rows: T[];
   columns: string[];
   columnOf: (row: T) => string;
@@ -27,7 +33,12 @@ export function HoursPivot<T extends { cause: string; cutterWork: boolean; hours
   const all: PivotRow = { cause: ALL, cutterWork: '', hours: Object.fromEntries(columns.map((c) => [c, 0])), total: 0 };
   for (const r of rows) {
     const key = columnOf(r);
-    const row = byCause.get(r.cause) ?? { cause: r.cause, cutterWork: r.cutterWork ? 'yes' : 'no', hours: Object.fromEntries(columns.map((c) => [c, 0])), total: 0 };
+    const row = byCause.get(r.cause) ?? {
+      cause: r.cause,
+      cutterWork: r.cutterWork ? 'yes' : 'no',
+      hours: Object.fromEntries(columns.map((c) => [c, 0])),
+      total: 0,
+    };
     row.hours[key] = (row.hours[key] ?? 0) + r.hours;
     row.total += r.hours;
     all.hours[key] = (all.hours[key] ?? 0) + r.hours;
@@ -36,10 +47,24 @@ export function HoursPivot<T extends { cause: string; cutterWork: boolean; hours
   }
   const data = [...[...byCause.values()].sort((a, b) => b.total - a.total), ...(byCause.size > 0 ? [all] : [])];
   const tableColumns = [
-    col.accessor('cause', { header: 'Cause', cell: ({ getValue }) => <span className={getValue() === ALL ? 'font-semibold' : ''}>{getValue()}</span> }),
+    col.accessor('cause', {
+      header: 'Cause',
+      cell: ({ getValue }) => <span className={getValue() === ALL ? 'font-semibold' : ''}>{getValue()}</span>,
+    }),
     col.accessor('cutterWork', { header: 'Cutter work' }),
-    ...columns.map((c) => col.accessor((r) => r.hours[c] ?? 0, { id: c, header: columnLabel ? columnLabel(c) : c, cell: ({ getValue }) => hoursCell(getValue()), meta: { csvDecimals: 1 } })),
-    col.accessor('total', { header: 'Total (h)', cell: ({ getValue }) => <span className="font-semibold">{getValue().toFixed(1)}</span>, meta: { csvDecimals: 1 } }),
+    ...columns.map((c) =>
+      col.accessor((r) => r.hours[c] ?? 0, {
+        id: c,
+        header: columnLabel ? columnLabel(c) : c,
+        cell: ({ getValue }) => hoursCell(getValue()),
+        meta: { csvDecimals: 1 },
+      }),
+    ),
+    col.accessor('total', {
+      header: 'Total (h)',
+      cell: ({ getValue }) => <span className="font-semibold">{getValue().toFixed(1)}</span>,
+      meta: { csvDecimals: 1 },
+    }),
   ];
   return <DataTable data={data} columns={tableColumns} exportName={exportName} emptyText="No downtime in this period." />;
 }

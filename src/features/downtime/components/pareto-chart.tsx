@@ -11,8 +11,13 @@ function ParetoTooltip({ active, payload }: { active?: boolean; payload?: readon
   if (!active || !d) return null;
   return (
     <div className="rounded-md border border-basalt-300 bg-white px-3 py-2 text-caption shadow">
-      <p className="font-semibold">{d.cause}{d.cutterWork ? ' (cutter work)' : ''}</p>
-      <p>{d.hours.toFixed(1)} h, {(d.share * 100).toFixed(1)} % of the downtime</p>
+      <p className="font-semibold">
+        {d.cause}
+        {d.cutterWork ? ' (cutter work)' : ''}
+      </p>
+      <p>
+        {d.hours.toFixed(1)} h, {(d.share * 100).toFixed(1)} % of the downtime
+      </p>
       <p>Running total {(d.cumulativeShare * 100).toFixed(1)} %</p>
     </div>
   );
@@ -36,18 +41,38 @@ export function ParetoChart({ pareto }: { pareto: ParetoRow[] }) {
             <YAxis yAxisId="pct" orientation="right" domain={[0, 100]} stroke="#4f564b" fontSize={13} width={52} unit=" %" />
             <Tooltip content={ParetoTooltip} cursor={{ fill: '#e6e8e4' }} />
             <Bar yAxisId="hours" dataKey="hours" name="Hours" isAnimationActive={false}>
-              {data.map((d) => <Cell key={d.cause} fill={d.cutterWork ? CUTTER_FILL : OTHER_FILL} />)}
+              {data.map((d) => (
+                <Cell key={d.cause} fill={d.cutterWork ? CUTTER_FILL : OTHER_FILL} />
+              ))}
             </Bar>
-            <Line yAxisId="pct" dataKey="cumulativePct" name="Running share" stroke="#121411" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 4, fill: '#121411' }} isAnimationActive={false} />
+            <Line
+              yAxisId="pct"
+              dataKey="cumulativePct"
+              name="Running share"
+              stroke="#121411"
+              strokeWidth={2}
+              strokeDasharray="6 3"
+              dot={{ r: 4, fill: '#121411' }}
+              isAnimationActive={false}
+            />
           </ComposedChart>
         </ResponsiveContainer>
       </div>
       <figcaption className="space-y-1 text-caption text-basalt-700">
         <p>{summary}</p>
         <p className="flex flex-wrap gap-4">
-          <span><span aria-hidden="true" className="mr-1 inline-block h-3 w-3 align-middle" style={{ background: CUTTER_FILL }} />Cutter work</span>
-          <span><span aria-hidden="true" className="mr-1 inline-block h-3 w-3 align-middle" style={{ background: OTHER_FILL }} />Other causes</span>
-          <span><span aria-hidden="true" className="mr-1 inline-block w-5 border-t-2 border-dashed border-basalt-950 align-middle" />Running share (right axis)</span>
+          <span>
+            <span aria-hidden="true" className="mr-1 inline-block h-3 w-3 align-middle" style={{ background: CUTTER_FILL }} />
+            Cutter work
+          </span>
+          <span>
+            <span aria-hidden="true" className="mr-1 inline-block h-3 w-3 align-middle" style={{ background: OTHER_FILL }} />
+            Other causes
+          </span>
+          <span>
+            <span aria-hidden="true" className="mr-1 inline-block w-5 border-t-2 border-dashed border-basalt-950 align-middle" />
+            Running share (right axis)
+          </span>
         </p>
       </figcaption>
     </figure>

@@ -26,7 +26,9 @@ export function PeriodFilter({ shown, timeZone }: { shown: { from: string; to: s
     <form onSubmit={apply} className="flex flex-wrap items-end gap-3" aria-label="Period">
       <TextField label="From" type="date" value={from} max={to} onChange={(e) => setFrom(e.target.value)} />
       <TextField label="To (included)" type="date" value={to} min={from} onChange={(e) => setTo(e.target.value)} />
-      <Button type="submit" variant="secondary" disabled={!from || !to || from > to}>Show period</Button>
+      <Button type="submit" variant="secondary" disabled={!from || !to || from > to}>
+        Show period
+      </Button>
       <p className="text-caption text-basalt-700">Days and weeks in site time ({timeZone}); ISO weeks start on Monday.</p>
     </form>
   );

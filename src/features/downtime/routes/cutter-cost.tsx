@@ -39,25 +39,59 @@ export function CutterCostRoute() {
     <Page title="Cutter cost">
       <DowntimeTabs projectId={projectId} />
       <PeriodFilter key={`${c.from}/${c.to}`} shown={c} timeZone={c.timeZone} />
-      <StatTiles items={[
-        { label: 'Per metre', value: money(c.total.costPerM), detail: `${amount(c.total.totalCost)} over ${c.total.advanceM.toFixed(1)} m` },
-        { label: 'Per m³ excavated', value: money(c.total.costPerM3), detail: `face area π·D²/4 = ${c.faceAreaM2.toFixed(2)} m² at D = ${c.diameterM} m` },
-        { label: 'Rings per 1,000 m³', value: c.total.ringsPer1000M3 == null ? '—' : c.total.ringsPer1000M3.toFixed(2), detail: `${c.total.excavatedM3.toFixed(0)} m³ excavated` },
-        { label: 'Labour share', value: c.total.totalCost > 0 ? `${((c.total.labourCost / c.total.totalCost) * 100).toFixed(0)} %` : '—', detail: `cutter-work hours × ${amount(c.labourRatePerHour)} an hour` },
-      ]} />
-      {c.labourRatePerHour === 0 && <Alert tone="caution" title="No labour rate is set.">Set it in the site settings on the Events page, or cutter work costs nothing here.</Alert>}
+      <StatTiles
+        items={[
+          {
+            label: 'Per metre',
+            value: money(c.total.costPerM),
+            detail: `${amount(c.total.totalCost)} over ${c.total.advanceM.toFixed(1)} m`,
+          },
+          {
+            label: 'Per m³ excavated',
+            value: money(c.total.costPerM3),
+            detail: `face area π·D²/4 = ${c.faceAreaM2.toFixed(2)} m² at D = ${c.diameterM} m`,
+          },
+          {
+            label: 'Rings per 1,000 m³',
+            value: c.total.ringsPer1000M3 == null ? '—' : c.total.ringsPer1000M3.toFixed(2),
+            detail: `${c.total.excavatedM3.toFixed(0)} m³ excavated`,
+          },
+          {
+            label: 'Labour share',
+            value: c.total.totalCost > 0 ? `${((c.total.labourCost / c.total.totalCost) * 100).toFixed(0)} %` : '—',
+            detail: `cutter-work hours × ${amount(c.labourRatePerHour)} an hour`,
+          },
+        ]}
+      />
+      {c.labourRatePerHour === 0 && (
+        <Alert tone="caution" title="No labour rate is set.">
+          Set it in the site settings on the Events page, or cutter work costs nothing here.
+        </Alert>
+      )}
       {c.unpricedParts > 0 && (
         <Alert tone="caution" title={`${c.unpricedParts} part(s) used by the workshop have no price in the parts catalogue.`}>
           They are not counted; the cost shown is labour{c.currency ? ' and the priced parts' : ''} only.
         </Alert>
       )}
       <Panel title="By week">
-        <DataTable data={c.byWeek} columns={costColumns('ISO week', unit)} exportName={`kerfwise-cutter-cost-weeks-${c.from}-${c.to}`} emptyText="No advance or cutter work in this period." />
+        <DataTable
+          data={c.byWeek}
+          columns={costColumns('ISO week', unit)}
+          exportName={`kerfwise-cutter-cost-weeks-${c.from}-${c.to}`}
+          emptyText="No advance or cutter work in this period."
+        />
       </Panel>
       <Panel title="By ground type">
-        <DataTable data={c.byGround} columns={costColumns('Ground type', unit)} exportName={`kerfwise-cutter-cost-ground-${c.from}-${c.to}`} emptyText="No advance or cutter work in this period." />
+        <DataTable
+          data={c.byGround}
+          columns={costColumns('Ground type', unit)}
+          exportName={`kerfwise-cutter-cost-ground-${c.from}-${c.to}`}
+          emptyText="No advance or cutter work in this period."
+        />
       </Panel>
-      <p className="max-w-prose text-caption text-basalt-700">{c.partsRule} Advance counts in the week of the stroke’s end and the ground at its middle.</p>
+      <p className="max-w-prose text-caption text-basalt-700">
+        {c.partsRule} Advance counts in the week of the stroke’s end and the ground at its middle.
+      </p>
     </Page>
   );
 }

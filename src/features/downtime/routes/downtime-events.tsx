@@ -32,7 +32,7 @@ interface EventFilterValues {
 /** The filters in the address: site days (events overlapping them), a cause, or "no cause yet". */
 function useEventFilters() {
   const [params, setParams] = useSearchParams();
-  const cause = params.get('unexplained') === 'true' ? UNEXPLAINED : params.get('causeId') ?? '';
+  const cause = params.get('unexplained') === 'true' ? UNEXPLAINED : (params.get('causeId') ?? '');
   const query = {
     from: params.get('from') ?? undefined,
     to: params.get('to') ?? undefined,
@@ -51,7 +51,15 @@ function useEventFilters() {
 }
 
 /** Period and cause of the list; the period starts as the one the server used (the last eight ISO weeks with data). */
-function EventFilters({ shown, causes, onApply }: { shown: EventFilterValues; causes: DowntimeCause[]; onApply: (v: EventFilterValues) => void }) {
+function EventFilters({
+  shown,
+  causes,
+  onApply,
+}: {
+  shown: EventFilterValues;
+  causes: DowntimeCause[];
+  onApply: (v: EventFilterValues) => void;
+}) {
   const [draft, setDraft] = useState(shown);
   const submit = (e: FormEvent) => {
     e.preventDefault();
@@ -59,14 +67,32 @@ function EventFilters({ shown, causes, onApply }: { shown: EventFilterValues; ca
   };
   return (
     <form onSubmit={submit} className="mb-4 flex flex-wrap items-end gap-3" aria-label="Filter events">
-      <TextField label="From" type="date" value={draft.from} max={draft.to} onChange={(e) => setDraft({ ...draft, from: e.target.value })} />
-      <TextField label="To (included)" type="date" value={draft.to} min={draft.from} onChange={(e) => setDraft({ ...draft, to: e.target.value })} />
+      <TextField
+        label="From"
+        type="date"
+        value={draft.from}
+        max={draft.to}
+        onChange={(e) => setDraft({ ...draft, from: e.target.value })}
+      />
+      <TextField
+        label="To (included)"
+        type="date"
+        value={draft.to}
+        min={draft.from}
+        onChange={(e) => setDraft({ ...draft, to: e.target.value })}
+      />
       <SelectField label="Cause" value={draft.cause} onChange={(e) => setDraft({ ...draft, cause: e.target.value })}>
         <option value="">All causes</option>
         <option value={UNEXPLAINED}>{NO_CAUSE_LABEL}</option>
-        {causes.map((c) => <option key={c.id} value={c.id}>{c.name}</option>)}
+        {causes.map((c) => (
+          <option key={c.id} value={c.id}>
+            {c.name}
+          </option>
+        ))}
       </SelectField>
-      <Button type="submit" variant="secondary" disabled={!draft.from || !draft.to || draft.from > draft.to}>Show</Button>
+      <Button type="submit" variant="secondary" disabled={!draft.from || !draft.to || draft.from > draft.to}>
+        Show
+      </Button>
     </form>
   );
 }
@@ -77,7 +103,12 @@ export function DowntimeEventsRoute() {
   const proposeGaps = useProposeFromGaps(projectId);
   const { query, cause, apply } = useEventFilters();
   const [{ data: project }, { data: list }, { data: causes }, { data: settings }] = useSuspenseQueries({
-    queries: [projectQueries.detail(projectId), downtimeQueries.events(projectId, query), downtimeQueries.causes(projectId), downtimeQueries.settings(projectId)],
+    queries: [
+      projectQueries.detail(projectId),
+      downtimeQueries.events(projectId, query),
+      downtimeQueries.causes(projectId),
+      downtimeQueries.settings(projectId),
+    ],
   });
   const canEdit = roleCan(project.role, 'downtime.edit');
   const { data: stops = [] } = useQuery({ ...downtimeQueries.stops(projectId), enabled: canEdit });
@@ -92,9 +123,14 @@ export function DowntimeEventsRoute() {
     setProposing(true);
     try {
       const r = await proposeGaps.mutateAsync();
-      setMessage(r.created === 0
-        ? { tone: 'info', text: `Every standstill longer than ${r.gapMinutes} minutes between strokes already has an event.` }
-        : { tone: 'success', text: `${r.created} standstill(s), ${r.hours.toFixed(1)} h in all, proposed from gaps of more than ${r.gapMinutes} minutes between strokes. Give each a cause.` });
+      setMessage(
+        r.created === 0
+          ? { tone: 'info', text: `Every standstill longer than ${r.gapMinutes} minutes between strokes already has an event.` }
+          : {
+              tone: 'success',
+              text: `${r.created} standstill(s), ${r.hours.toFixed(1)} h in all, proposed from gaps of more than ${r.gapMinutes} minutes between strokes. Give each a cause.`,
+            },
+      );
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Proposing failed. Try again.' });
     } finally {
@@ -102,38 +138,76 @@ export function DowntimeEventsRoute() {
     }
   };
   const columns = [
-    col.accessor((e) => formatSiteDateTime(e.startAt, tz), { id: 'start', header: 'Start', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
-    col.accessor((e) => formatSiteDateTime(e.endAt, tz), { id: 'end', header: 'End', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((e) => formatSiteDateTime(e.startAt, tz), {
+      id: 'start',
+      header: 'Start',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
+    col.accessor((e) => formatSiteDateTime(e.endAt, tz), {
+      id: 'end',
+      header: 'End',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
     col.accessor((e) => Math.round(e.hours * 100) / 100, { id: 'hours', header: 'Hours' }),
     col.accessor((e) => e.causeName ?? NO_CAUSE_LABEL, {
       id: 'cause',
       header: 'Cause',
-      cell: ({ row, getValue }) => (row.original.causeId ? getValue() : <span className="inline-block rounded bg-caution-100 px-2 font-semibold text-caution-700">{getValue()}</span>),
+      cell: ({ row, getValue }) =>
+        row.original.causeId ? (
+          getValue()
+        ) : (
+          <span className="inline-block rounded bg-caution-100 px-2 font-semibold text-caution-700">{getValue()}</span>
+        ),
     }),
     col.accessor((e) => (e.cutterWork ? 'yes' : 'no'), { id: 'cutterWork', header: 'Cutter work' }),
     col.accessor((e) => (e.source === 'gap' ? 'from the log' : 'entered'), { id: 'source', header: 'Source' }),
     col.accessor((e) => (e.stopChainageM == null ? '' : formatChainage(e.stopChainageM)), { id: 'stop', header: 'Stop at' }),
     col.accessor('note', { header: 'Note' }),
     ...(canEdit
-      ? [col.display({
-        id: 'actions',
-        header: '',
-        cell: ({ row }) => (
-          <Button variant="secondary" aria-label={`Edit the event from ${formatSiteDateTime(row.original.startAt, tz)}`} onClick={() => { setMessage(null); setEditing(row.original); }}>Edit</Button>
-        ),
-      })]
+      ? [
+          col.display({
+            id: 'actions',
+            header: '',
+            cell: ({ row }) => (
+              <Button
+                variant="secondary"
+                aria-label={`Edit the event from ${formatSiteDateTime(row.original.startAt, tz)}`}
+                onClick={() => {
+                  setMessage(null);
+                  setEditing(row.original);
+                }}
+              >
+                Edit
+              </Button>
+            ),
+          }),
+        ]
       : []),
   ];
   const totalHours = events.reduce((s, e) => s + e.hours, 0);
   const unexplained = events.filter((e) => !e.causeId).length;
 
   return (
-    <Page title="Downtime" actions={canEdit && (
-      <>
-        <Button variant="secondary" disabled={proposing} onClick={propose}>{proposing ? 'Looking for gaps…' : 'Propose from gaps'}</Button>
-        <Button onClick={() => { setMessage(null); setEditing('new'); }}>Add a downtime event</Button>
-      </>
-    )}>
+    <Page
+      title="Downtime"
+      actions={
+        canEdit && (
+          <>
+            <Button variant="secondary" disabled={proposing} onClick={propose}>
+              {proposing ? 'Looking for gaps…' : 'Propose from gaps'}
+            </Button>
+            <Button
+              onClick={() => {
+                setMessage(null);
+                setEditing('new');
+              }}
+            >
+              Add a downtime event
+            </Button>
+          </>
+        )
+      }
+    >
       <DowntimeTabs projectId={projectId} />
       {message && <Alert tone={message.tone}>{message.text}</Alert>}
       {canEdit && editing !== null && (
@@ -144,13 +218,22 @@ export function DowntimeEventsRoute() {
           causes={causes}
           stops={stops}
           editing={editing === 'new' ? null : editing}
-          onDone={(text) => { setEditing(null); if (text) setMessage({ tone: 'success', text }); }}
+          onDone={(text) => {
+            setEditing(null);
+            if (text) setMessage({ tone: 'success', text });
+          }}
         />
       )}
       <Panel title="Events">
-        <EventFilters key={`${list.from}/${list.to}/${cause}`} shown={{ from: list.from, to: list.to, cause }} causes={causes} onApply={apply} />
+        <EventFilters
+          key={`${list.from}/${list.to}/${cause}`}
+          shown={{ from: list.from, to: list.to, cause }}
+          causes={causes}
+          onApply={apply}
+        />
         <p className="mb-3 text-basalt-700" role="status">
-          {events.length} event(s), {totalHours.toFixed(1)} h{unexplained > 0 ? `; ${unexplained} without a cause yet` : ''}, from {list.from} to {list.to}. Times in site time ({tz}).
+          {events.length} event(s), {totalHours.toFixed(1)} h{unexplained > 0 ? `; ${unexplained} without a cause yet` : ''}, from{' '}
+          {list.from} to {list.to}. Times in site time ({tz}).
         </p>
         <DataTable data={events} columns={columns} exportName="kerfwise-downtime-events" emptyText="No downtime events match." />
       </Panel>

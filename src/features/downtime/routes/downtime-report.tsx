@@ -33,24 +33,45 @@ export function DowntimeReportRoute() {
       <DowntimeTabs projectId={projectId} />
       <PeriodFilter key={`${r.from}/${r.to}`} shown={r} timeZone={r.timeZone} />
       <p className="text-basalt-700">
-        {r.from} to {r.to}: {r.hours.toFixed(0)} hours of calendar time{r.hours % 24 !== 0 ? ' (a daylight-saving change falls in the period)' : ''}.
+        {r.from} to {r.to}: {r.hours.toFixed(0)} hours of calendar time
+        {r.hours % 24 !== 0 ? ' (a daylight-saving change falls in the period)' : ''}.
       </p>
       {r.unexplainedEvents > 0 && (
         <Alert tone="caution" title={`${r.unexplainedEvents} standstill(s), ${r.unexplainedHours.toFixed(1)} h, have no cause yet.`}>
-          They count as “No cause given” below. <Link className="font-semibold underline" to={`${paths.downtime(projectId)}?unexplained=true&from=${r.from}&to=${r.to}`}>Give them a cause</Link>.
+          They count as “No cause given” below.{' '}
+          <Link className="font-semibold underline" to={`${paths.downtime(projectId)}?unexplained=true&from=${r.from}&to=${r.to}`}>
+            Give them a cause
+          </Link>
+          .
         </Alert>
       )}
-      <StatTiles items={[
-        { label: 'Utilisation', value: pct(r.utilisation), detail: `${r.boringHours.toFixed(1)} h boring of ${r.hours.toFixed(0)} h calendar time` },
-        { label: 'Cutter work', value: pct(r.cutterWorkShare), detail: `of ${r.downtimeHours.toFixed(1)} h of downtime` },
-        { label: 'Advance', value: `${r.metresPerDay.toFixed(1)} m/day`, detail: `${r.advanceM.toFixed(1)} m in the period` },
-        { label: 'Downtime', value: `${r.downtimeHours.toFixed(0)} h`, detail: `${pct(r.downtimeHours / r.hours)} of calendar time` },
-      ]} />
+      <StatTiles
+        items={[
+          {
+            label: 'Utilisation',
+            value: pct(r.utilisation),
+            detail: `${r.boringHours.toFixed(1)} h boring of ${r.hours.toFixed(0)} h calendar time`,
+          },
+          { label: 'Cutter work', value: pct(r.cutterWorkShare), detail: `of ${r.downtimeHours.toFixed(1)} h of downtime` },
+          { label: 'Advance', value: `${r.metresPerDay.toFixed(1)} m/day`, detail: `${r.advanceM.toFixed(1)} m in the period` },
+          { label: 'Downtime', value: `${r.downtimeHours.toFixed(0)} h`, detail: `${pct(r.downtimeHours / r.hours)} of calendar time` },
+        ]}
+      />
       <Panel title="Hours by cause and week">
-        <HoursPivot rows={r.byWeek} columns={r.weeks} columnOf={(x) => x.isoWeek} exportName={`kerfwise-downtime-weeks-${r.from}-${r.to}`} />
+        <HoursPivot
+          rows={r.byWeek}
+          columns={r.weeks}
+          columnOf={(x) => x.isoWeek}
+          exportName={`kerfwise-downtime-weeks-${r.from}-${r.to}`}
+        />
       </Panel>
       <Panel title="Hours by cause and shift">
-        <HoursPivot rows={r.byShift} columns={r.shifts} columnOf={(x) => x.shift} exportName={`kerfwise-downtime-shifts-${r.from}-${r.to}`} />
+        <HoursPivot
+          rows={r.byShift}
+          columns={r.shifts}
+          columnOf={(x) => x.shift}
+          exportName={`kerfwise-downtime-shifts-${r.from}-${r.to}`}
+        />
         <p className="mt-2 text-caption text-basalt-700">
           Shifts from the site settings (Events page); a shift over a daylight-saving change is an hour shorter or longer.
         </p>
@@ -58,7 +79,12 @@ export function DowntimeReportRoute() {
       <Panel title="Causes by hours (Pareto)">
         <ParetoChart pareto={r.pareto} />
         <div className="mt-4">
-          <DataTable data={r.pareto} columns={paretoColumns} exportName={`kerfwise-downtime-pareto-${r.from}-${r.to}`} emptyText="No downtime in this period." />
+          <DataTable
+            data={r.pareto}
+            columns={paretoColumns}
+            exportName={`kerfwise-downtime-pareto-${r.from}-${r.to}`}
+            emptyText="No downtime in this period."
+          />
         </div>
       </Panel>
     </Page>

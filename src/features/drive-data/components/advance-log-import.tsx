@@ -35,19 +35,23 @@ export function AdvanceLogImport({ projectId, onImported }: { projectId: string;
       title="Import the advance log"
       url={url}
       onFile={onFile}
-      step={headers && headers.length > 1 && (
-        <ColumnMappingStep
-          headers={headers}
-          fields={known.fields}
-          required={advanceLogRequiredColumns}
-          stored={known.mapping}
-          choice={choice}
-          onChange={setChoice}
-          unusedNote="are kept with each ring as extra data"
-        />
-      )}
+      step={
+        headers &&
+        headers.length > 1 && (
+          <ColumnMappingStep
+            headers={headers}
+            fields={known.fields}
+            required={advanceLogRequiredColumns}
+            stored={known.mapping}
+            choice={choice}
+            onChange={setChoice}
+            unusedNote="are kept with each ring as extra data"
+          />
+        )
+      }
       successTitle={(name, body) =>
-        `${name} imported: ${count(body, 'inserted')} new, ${count(body, 'unchanged')} already stored and unchanged, ${count(body, 'replaced')} replaced.`}
+        `${name} imported: ${count(body, 'inserted')} new, ${count(body, 'unchanged')} already stored and unchanged, ${count(body, 'replaced')} replaced.`
+      }
       replaceLabel="Replace these rings"
       onImported={onImported}
     >

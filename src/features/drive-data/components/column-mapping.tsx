@@ -10,7 +10,11 @@ export async function readHeader(file: File): Promise<string[]> {
 }
 
 /** Required fields no column was chosen for, in words ("End time", "Cutterhead revolutions or Penetration (mm/rev)"). */
-function missingFields<F extends string>(choice: ColumnMapping<F>, fields: readonly CsvFieldInfo<F>[], required: readonly (readonly F[])[]): string[] {
+function missingFields<F extends string>(
+  choice: ColumnMapping<F>,
+  fields: readonly CsvFieldInfo<F>[],
+  required: readonly (readonly F[])[],
+): string[] {
   const label = (f: F) => fields.find((i) => i.field === f)?.label ?? f;
   return missingColumnGroups(choice, required).map((group) => group.map(label).join(' or '));
 }
@@ -20,7 +24,15 @@ function missingFields<F extends string>(choice: ColumnMapping<F>, fields: reado
  * Folded away when every needed field was found; open when one is missing. Header names are
  * proposed by shared/csv-headers.ts, as the server's reader matches them.
  */
-export function ColumnMappingStep<F extends string>({ headers, fields, required, stored, choice, onChange, unusedNote }: {
+export function ColumnMappingStep<F extends string>({
+  headers,
+  fields,
+  required,
+  stored,
+  choice,
+  onChange,
+  unusedNote,
+}: {
   headers: string[];
   fields: readonly CsvFieldInfo<F>[];
   required: readonly (readonly F[])[];
@@ -39,7 +51,8 @@ export function ColumnMappingStep<F extends string>({ headers, fields, required,
   return (
     <details open={missing.length > 0} className="rounded-md border border-basalt-200 bg-basalt-50">
       <summary className="flex min-h-touch cursor-pointer items-center px-3 font-semibold">
-        Columns: {found} of {fields.length} fields found in the first line of the file{missing.length > 0 ? ` — ${missing.length} needed field${missing.length === 1 ? '' : 's'} missing` : ''}. Check or change
+        Columns: {found} of {fields.length} fields found in the first line of the file
+        {missing.length > 0 ? ` — ${missing.length} needed field${missing.length === 1 ? '' : 's'} missing` : ''}. Check or change
       </summary>
       <div className="space-y-3 px-3 pb-3">
         <p className="text-caption text-basalt-700">
@@ -47,23 +60,37 @@ export function ColumnMappingStep<F extends string>({ headers, fields, required,
           Columns not chosen {unusedNote}.
         </p>
         {missing.length > 0 && (
-          <p role="status" className="font-semibold text-caution-700">Choose a column for {missing.join('; ')}: the file cannot be imported without it.</p>
+          <p role="status" className="font-semibold text-caution-700">
+            Choose a column for {missing.join('; ')}: the file cannot be imported without it.
+          </p>
         )}
-        {twice.length > 0 && <p role="status" className="font-semibold text-caution-700">Chosen for two fields: {twice.map((h) => `‘${h}’`).join(', ')}.</p>}
+        {twice.length > 0 && (
+          <p role="status" className="font-semibold text-caution-700">
+            Chosen for two fields: {twice.map((h) => `‘${h}’`).join(', ')}.
+          </p>
+        )}
         <div className="overflow-x-auto">
           <table className="min-w-full text-left">
             <thead className="bg-basalt-100 text-caption">
               <tr>
-                <th scope="col" className="px-2 py-2">Field</th>
-                <th scope="col" className="px-2 py-2">Column of this file</th>
-                <th scope="col" className="px-2 py-2">Last import</th>
+                <th scope="col" className="px-2 py-2">
+                  Field
+                </th>
+                <th scope="col" className="px-2 py-2">
+                  Column of this file
+                </th>
+                <th scope="col" className="px-2 py-2">
+                  Last import
+                </th>
               </tr>
             </thead>
             <tbody>
               {fields.map((f) => (
                 <tr key={f.field} className="border-t border-basalt-200">
                   <td className="px-2 py-1">
-                    <label htmlFor={`${id}-${f.field}`} className="font-semibold">{f.label}</label>
+                    <label htmlFor={`${id}-${f.field}`} className="font-semibold">
+                      {f.label}
+                    </label>
                     {requiredAlone.has(f.field) && <span className="ml-2 text-caption text-basalt-600">needed</span>}
                   </td>
                   <td className="px-2 py-1">
@@ -74,7 +101,11 @@ export function ColumnMappingStep<F extends string>({ headers, fields, required,
                       onChange={(e) => onChange({ ...choice, [f.field]: e.target.value || undefined })}
                     >
                       <option value="">Not in this file</option>
-                      {headers.map((h) => <option key={h} value={h}>{h}</option>)}
+                      {headers.map((h) => (
+                        <option key={h} value={h}>
+                          {h}
+                        </option>
+                      ))}
                     </select>
                   </td>
                   <td className="px-2 py-1 text-caption text-basalt-600">{stored?.[f.field] ?? '—'}</td>

@@ -26,15 +26,21 @@ function IssueTable({ issues, label }: { issues: ImportIssue[]; label: string })
       <table className="min-w-full text-left text-caption" aria-label={label}>
         <thead className="sticky top-0 bg-basalt-100">
           <tr>
-            <th scope="col" className="px-3 py-2">Row</th>
-            <th scope="col" className="px-3 py-2">Column</th>
-            <th scope="col" className="px-3 py-2">Problem</th>
+            <th scope="col" className="px-3 py-2">
+              Row
+            </th>
+            <th scope="col" className="px-3 py-2">
+              Column
+            </th>
+            <th scope="col" className="px-3 py-2">
+              Problem
+            </th>
           </tr>
         </thead>
         <tbody>
           {issues.map((issue, i) => (
             <tr key={i} className="border-t border-basalt-100 align-top">
-              <td className="whitespace-nowrap px-3 py-2 font-semibold">{issue.row === 0 ? 'Whole file' : issue.row ?? '—'}</td>
+              <td className="whitespace-nowrap px-3 py-2 font-semibold">{issue.row === 0 ? 'Whole file' : (issue.row ?? '—')}</td>
               <td className="px-3 py-2">{issue.column || '—'}</td>
               <td className="px-3 py-2">{issue.message}</td>
             </tr>
@@ -86,7 +92,12 @@ export function CsvUpload({ title, children, url, onFile, step, successTitle, re
       setStage({ kind: 'refused', refusal: { ok: false, status: 413, message, issues: [], errorCount: 0 } });
       return;
     }
-    const upload = uploadCsv(url(replace), file, (fraction) => setStage((s) => (s.kind === 'sending' ? { ...s, fraction } : s)), () => setStage({ kind: 'checking' }));
+    const upload = uploadCsv(
+      url(replace),
+      file,
+      (fraction) => setStage((s) => (s.kind === 'sending' ? { ...s, fraction } : s)),
+      () => setStage({ kind: 'checking' }),
+    );
     setStage({ kind: 'sending', fraction: 0, abort: upload.abort });
     try {
       const answer = await upload.answer;
@@ -116,7 +127,11 @@ export function CsvUpload({ title, children, url, onFile, step, successTitle, re
             {file ? 'Choose another file' : 'Choose a CSV file'}
             <input type="file" accept=".csv,.txt,text/csv" className="sr-only" disabled={busy} onChange={choose} />
           </label>
-          {file && <span className="break-all"><span className="font-semibold">{file.name}</span> · {fileSize(file.size)}</span>}
+          {file && (
+            <span className="break-all">
+              <span className="font-semibold">{file.name}</span> · {fileSize(file.size)}
+            </span>
+          )}
         </div>
         {file && step}
         {file && (stage.kind === 'idle' || stage.kind === 'done' || (stage.kind === 'refused' && stage.refusal.status !== 409)) && (
@@ -140,14 +155,18 @@ export function CsvUpload({ title, children, url, onFile, step, successTitle, re
               </div>
               <span className="w-16 text-right font-semibold tabular-nums">{percent} %</span>
             </div>
-            <Button variant="secondary" onClick={stage.abort}>Cancel the upload</Button>
+            <Button variant="secondary" onClick={stage.abort}>
+              Cancel the upload
+            </Button>
           </div>
         )}
         {stage.kind === 'checking' && (
           <div role="status" className="space-y-2">
             <div className="h-4 w-full animate-pulse rounded-full bg-ember-200 ring-1 ring-basalt-300" aria-hidden="true" />
             <p className="font-semibold">Checking and importing…</p>
-            <p className="text-caption text-basalt-600">Every row is checked before anything is stored; a large file takes a few seconds.</p>
+            <p className="text-caption text-basalt-600">
+              Every row is checked before anything is stored; a large file takes a few seconds.
+            </p>
           </div>
         )}
         {stage.kind === 'done' && (
@@ -163,14 +182,20 @@ export function CsvUpload({ title, children, url, onFile, step, successTitle, re
         {stage.kind === 'refused' && stage.refusal.status === 409 && replaceLabel && (
           <Alert tone="caution" title={stage.refusal.message}>
             <p className="mt-1">
-              {plural(stage.refusal.errorCount, 'row differs', 'rows differ')} from what is stored. Check them; replacing overwrites the stored values and
-              is kept in the audit log.
+              {plural(stage.refusal.errorCount, 'row differs', 'rows differ')} from what is stored. Check them; replacing overwrites the
+              stored values and is kept in the audit log.
             </p>
             <IssueTable issues={stage.refusal.issues} label="Rows that differ from the stored ones" />
-            {stage.refusal.issues.length < stage.refusal.errorCount && <p className="mt-1">The first {stage.refusal.issues.length} are listed.</p>}
+            {stage.refusal.issues.length < stage.refusal.errorCount && (
+              <p className="mt-1">The first {stage.refusal.issues.length} are listed.</p>
+            )}
             <div className="mt-3 flex flex-wrap gap-2">
-              <Button variant="danger" onClick={() => send(true)}>{replaceLabel}</Button>
-              <Button variant="secondary" onClick={() => setStage({ kind: 'idle' })}>Keep the stored ones</Button>
+              <Button variant="danger" onClick={() => send(true)}>
+                {replaceLabel}
+              </Button>
+              <Button variant="secondary" onClick={() => setStage({ kind: 'idle' })}>
+                Keep the stored ones
+              </Button>
             </div>
           </Alert>
         )}
@@ -180,8 +205,8 @@ export function CsvUpload({ title, children, url, onFile, step, successTitle, re
               <>
                 <p className="mt-1">
                   {plural(Math.max(stage.refusal.errorCount, stage.refusal.issues.length), 'problem')} in total
-                  {stage.refusal.issues.length < stage.refusal.errorCount ? `; the first ${stage.refusal.issues.length} are listed` : ''}. Row numbers are
-                  lines of the file (the header is row 1).
+                  {stage.refusal.issues.length < stage.refusal.errorCount ? `; the first ${stage.refusal.issues.length} are listed` : ''}.
+                  Row numbers are lines of the file (the header is row 1).
                 </p>
                 <IssueTable issues={stage.refusal.issues} label="Problems in the file" />
               </>

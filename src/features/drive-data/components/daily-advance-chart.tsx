@@ -1,7 +1,8 @@
 import { Bar, BarChart, CartesianGrid, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import type { DailyAdvance } from '../api';
 
-const dayLabel = (day: string) => new Date(`${day}T12:00:00Z`).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', timeZone: 'UTC' });
+const dayLabel = (day: string) =>
+  new Date(`${day}T12:00:00Z`).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', timeZone: 'UTC' });
 
 function DayTooltip({ active, payload }: { active?: boolean; payload?: readonly { payload?: DailyAdvance }[] }) {
   const d = payload?.[0]?.payload;
@@ -9,7 +10,9 @@ function DayTooltip({ active, payload }: { active?: boolean; payload?: readonly 
   return (
     <div className="rounded-md border border-basalt-300 bg-white px-3 py-2 text-caption shadow">
       <p className="font-semibold">{d.day}</p>
-      <p>{d.advanceM.toFixed(1)} m in {d.strokes} stroke{d.strokes === 1 ? '' : 's'}</p>
+      <p>
+        {d.advanceM.toFixed(1)} m in {d.strokes} stroke{d.strokes === 1 ? '' : 's'}
+      </p>
     </div>
   );
 }

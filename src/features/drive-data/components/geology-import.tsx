@@ -21,33 +21,42 @@ export function GeologyImport({ projectId, onImported }: { projectId: string; on
   };
 
   // As for the advance log: once the header is read, the choice on screen is what the server uses.
-  const url = () => (headers ? `${geologyImportUrl(projectId)}?${new URLSearchParams({ mapping: JSON.stringify(choice) })}` : geologyImportUrl(projectId));
+  const url = () =>
+    headers ? `${geologyImportUrl(projectId)}?${new URLSearchParams({ mapping: JSON.stringify(choice) })}` : geologyImportUrl(projectId);
 
   return (
     <CsvUpload
       title="Import the long section"
       url={url}
       onFile={onFile}
-      step={headers && headers.length > 1 && (
-        <ColumnMappingStep
-          headers={headers}
-          fields={known.fields}
-          required={geologySectionRequiredColumns}
-          stored={known.mapping}
-          choice={choice}
-          onChange={setChoice}
-          unusedNote="are not imported; each is named in a note after the import"
-        />
-      )}
-      successTitle={(name, body) => `${name} imported: ${Number(body.saved ?? 0)} sections saved; they replace the long section stored before.`}
+      step={
+        headers &&
+        headers.length > 1 && (
+          <ColumnMappingStep
+            headers={headers}
+            fields={known.fields}
+            required={geologySectionRequiredColumns}
+            stored={known.mapping}
+            choice={choice}
+            onChange={setChoice}
+            unusedNote="are not imported; each is named in a note after the import"
+          />
+        )
+      }
+      successTitle={(name, body) =>
+        `${name} imported: ${Number(body.saved ?? 0)} sections saved; they replace the long section stored before.`
+      }
       onImported={onImported}
     >
       <p>
-        One row per section with the columns chainage from, chainage to (m, lower chainage first), ground type (by name; new names
-        become new ground types), water head above the axis (m), stop allowed (yes/no) and stop reason (needed where no stop is allowed);
-        UCS (MPa) and CAI of the ground type when known. Names with units joined by a space or an underscore (water_head_m) are recognised.
+        One row per section with the columns chainage from, chainage to (m, lower chainage first), ground type (by name; new names become
+        new ground types), water head above the axis (m), stop allowed (yes/no) and stop reason (needed where no stop is allowed); UCS (MPa)
+        and CAI of the ground type when known. Names with units joined by a space or an underscore (water_head_m) are recognised.
       </p>
-      <p>The file replaces the whole long section. Overlapping sections are refused; gaps, empty water heads and columns not read are reported.</p>
+      <p>
+        The file replaces the whole long section. Overlapping sections are refused; gaps, empty water heads and columns not read are
+        reported.
+      </p>
     </CsvUpload>
   );
 }

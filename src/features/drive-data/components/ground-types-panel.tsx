@@ -18,9 +18,18 @@ type GroundForm = z.input<typeof groundTypeInputSchema>;
 /** Blank number inputs are "not given" (null); a decimal comma is read as a point. */
 const optionalNumber = { setValueAs: (v: unknown) => (v === '' || v == null ? null : Number(String(v).replace(',', '.'))) };
 const orDash = (v: number | null) => (v == null ? '—' : String(v));
-const classText = (g: GroundType) => (g.caiClass ? `${g.caiClass.label}${g.caiClass.outsideTabulatedRange ? ' (outside the tabulated range)' : ''}` : '—');
+const classText = (g: GroundType) =>
+  g.caiClass ? `${g.caiClass.label}${g.caiClass.outsideTabulatedRange ? ' (outside the tabulated range)' : ''}` : '—';
 
-function GroundTypeForm({ projectId, editing, onClose }: { projectId: string; editing: GroundType | null; onClose: (message: string) => void }) {
+function GroundTypeForm({
+  projectId,
+  editing,
+  onClose,
+}: {
+  projectId: string;
+  editing: GroundType | null;
+  onClose: (message: string) => void;
+}) {
   const save = useSaveGroundType(projectId);
   const del = useDeleteGroundType(projectId);
   const [error, setError] = useState<string | null>(null);
@@ -28,12 +37,22 @@ function GroundTypeForm({ projectId, editing, onClose }: { projectId: string; ed
   const form = useForm<GroundForm, unknown, GroundTypeInput>({
     resolver: zodResolver(groundTypeInputSchema),
     defaultValues: editing
-      ? { name: editing.name, description: editing.description, ucsMpa: editing.ucsMpa, cai: editing.cai, quartzPct: editing.quartzPct, notes: editing.notes }
+      ? {
+          name: editing.name,
+          description: editing.description,
+          ucsMpa: editing.ucsMpa,
+          cai: editing.cai,
+          quartzPct: editing.quartzPct,
+          notes: editing.notes,
+        }
       : { name: '', description: '', ucsMpa: null, cai: null, quartzPct: null, notes: '' },
   });
   const e = form.formState.errors;
   const cai = form.watch('cai');
-  const caiHint = typeof cai === 'number' && Number.isFinite(cai) && cai >= 0 ? `CERCHAR class: ${classifyCai(cai).label}` : 'Cerchar Abrasivity Index, 0 to 7';
+  const caiHint =
+    typeof cai === 'number' && Number.isFinite(cai) && cai >= 0
+      ? `CERCHAR class: ${classifyCai(cai).label}`
+      : 'Cerchar Abrasivity Index, 0 to 7';
 
   const onSubmit = form.handleSubmit(async (input) => {
     setError(null);
@@ -57,23 +76,50 @@ function GroundTypeForm({ projectId, editing, onClose }: { projectId: string; ed
   };
 
   return (
-    <form onSubmit={onSubmit} noValidate className="mt-4 space-y-4 rounded-md border border-basalt-200 bg-basalt-50 p-4" aria-label={editing ? `Edit ${editing.name}` : 'New ground type'}>
+    <form
+      onSubmit={onSubmit}
+      noValidate
+      className="mt-4 space-y-4 rounded-md border border-basalt-200 bg-basalt-50 p-4"
+      aria-label={editing ? `Edit ${editing.name}` : 'New ground type'}
+    >
       <h3 className="font-semibold">{editing ? `Edit ${editing.name}` : 'New ground type'}</h3>
       {error && <Alert tone="error">{error}</Alert>}
       <div className="grid gap-4 md:grid-cols-2">
         <TextField label="Name" {...form.register('name')} error={e.name?.message} />
         <TextField label="Description" {...form.register('description')} error={e.description?.message} />
-        <TextField label="UCS (MPa)" inputMode="decimal" {...form.register('ucsMpa', optionalNumber)} error={e.ucsMpa?.message} hint="Uniaxial compressive strength" />
+        <TextField
+          label="UCS (MPa)"
+          inputMode="decimal"
+          {...form.register('ucsMpa', optionalNumber)}
+          error={e.ucsMpa?.message}
+          hint="Uniaxial compressive strength"
+        />
         <TextField label="CAI" inputMode="decimal" {...form.register('cai', optionalNumber)} error={e.cai?.message} hint={caiHint} />
-        <TextField label="Quartz content (%)" inputMode="decimal" {...form.register('quartzPct', optionalNumber)} error={e.quartzPct?.message} />
+        <TextField
+          label="Quartz content (%)"
+          inputMode="decimal"
+          {...form.register('quartzPct', optionalNumber)}
+          error={e.quartzPct?.message}
+        />
         <TextField label="Notes" {...form.register('notes')} error={e.notes?.message} />
       </div>
       <div className="flex flex-wrap gap-2">
-        <Button type="submit" disabled={form.formState.isSubmitting}>{editing ? 'Save ground type' : 'Add ground type'}</Button>
-        <Button variant="ghost" onClick={() => onClose('')}>Cancel</Button>
-        {editing && (confirming
-          ? <Button variant="danger" className="ml-auto" onClick={() => remove(editing)}>Delete {editing.name} for good</Button>
-          : <Button variant="secondary" className="ml-auto" onClick={() => setConfirming(true)}>Delete ground type</Button>)}
+        <Button type="submit" disabled={form.formState.isSubmitting}>
+          {editing ? 'Save ground type' : 'Add ground type'}
+        </Button>
+        <Button variant="ghost" onClick={() => onClose('')}>
+          Cancel
+        </Button>
+        {editing &&
+          (confirming ? (
+            <Button variant="danger" className="ml-auto" onClick={() => remove(editing)}>
+              Delete {editing.name} for good
+            </Button>
+          ) : (
+            <Button variant="secondary" className="ml-auto" onClick={() => setConfirming(true)}>
+              Delete ground type
+            </Button>
+          ))}
       </div>
     </form>
   );
@@ -95,13 +141,24 @@ export function GroundTypesPanel({ projectId, groundTypes, canEdit }: { projectI
     col.accessor('quartzPct', { header: 'Quartz (%)', cell: ({ getValue }) => orDash(getValue()) }),
     col.accessor('notes', { header: 'Notes' }),
     ...(canEdit
-      ? [col.display({
-        id: 'actions',
-        header: '',
-        cell: ({ row }) => (
-          <Button variant="secondary" aria-label={`Edit ${row.original.name}`} onClick={() => { setMessage(null); setEditing(row.original); }}>Edit</Button>
-        ),
-      })]
+      ? [
+          col.display({
+            id: 'actions',
+            header: '',
+            cell: ({ row }) => (
+              <Button
+                variant="secondary"
+                aria-label={`Edit ${row.original.name}`}
+                onClick={() => {
+                  setMessage(null);
+                  setEditing(row.original);
+                }}
+              >
+                Edit
+              </Button>
+            ),
+          }),
+        ]
       : []),
   ];
 
@@ -111,9 +168,21 @@ export function GroundTypesPanel({ projectId, groundTypes, canEdit }: { projectI
         {message && <Alert tone="success">{message}</Alert>}
         <DataTable data={groundTypes} columns={columns} exportName="kerfwise-ground-types" emptyText="No ground types yet." />
         {groundTypes.some((g) => g.cai == null) && (
-          <p className="text-caption text-basalt-700">Ground types without a CAI get no wear estimate before site data exists: add their CAI.</p>
+          <p className="text-caption text-basalt-700">
+            Ground types without a CAI get no wear estimate before site data exists: add their CAI.
+          </p>
         )}
-        {canEdit && editing === null && <Button variant="secondary" onClick={() => { setMessage(null); setEditing('new'); }}>Add a ground type</Button>}
+        {canEdit && editing === null && (
+          <Button
+            variant="secondary"
+            onClick={() => {
+              setMessage(null);
+              setEditing('new');
+            }}
+          >
+            Add a ground type
+          </Button>
+        )}
         {canEdit && editing !== null && (
           <GroundTypeForm
             key={editing === 'new' ? 'new' : editing.id}

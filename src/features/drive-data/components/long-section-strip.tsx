@@ -60,7 +60,11 @@ function describe(s: GeologySection, groundName: string): string {
  * hatched), the water head above the axis as bars, gaps left blank, and the machine's position.
  * Drives whose chainage decreases run right to left, so the machine always advances to the right.
  */
-export function LongSectionStrip({ geology, groundTypes, driveDirection }: {
+export function LongSectionStrip({
+  geology,
+  groundTypes,
+  driveDirection,
+}: {
   geology: Geology;
   groundTypes: GroundType[];
   driveDirection: 'increasing' | 'decreasing';
@@ -110,15 +114,29 @@ export function LongSectionStrip({ geology, groundTypes, driveDirection }: {
       <div ref={ref} className="w-full">
         {width > 0 && (
           <svg width={width} height={HEIGHT} role="group" aria-label="Long section along chainage" className="block font-sans">
-            <defs><HatchPattern id={hatchId} /></defs>
-            <text x={SIDE} y={WATER_LANE.top - 4} fontSize="13" fill="#3e443b">Water head above axis (max {metres(maxHeadM)})</text>
-            <line x1={SIDE} x2={SIDE + inner} y1={WATER_LANE.top + WATER_LANE.height} y2={WATER_LANE.top + WATER_LANE.height} stroke="#aab0a5" />
+            <defs>
+              <HatchPattern id={hatchId} />
+            </defs>
+            <text x={SIDE} y={WATER_LANE.top - 4} fontSize="13" fill="#3e443b">
+              Water head above axis (max {metres(maxHeadM)})
+            </text>
+            <line
+              x1={SIDE}
+              x2={SIDE + inner}
+              y1={WATER_LANE.top + WATER_LANE.height}
+              y2={WATER_LANE.top + WATER_LANE.height}
+              stroke="#aab0a5"
+            />
             {gaps.map((g, i) => {
               const { left, w } = span(g);
               return (
                 <g key={`gap-${i}`}>
                   <rect x={left} y={GROUND.top} width={w} height={GROUND.height} fill="#f4f5f3" stroke="#838b7e" strokeDasharray="4 3" />
-                  {w > 22 && <text x={left + w / 2} y={GROUND.top + GROUND.height / 2 + 5} textAnchor="middle" fontSize="14" fill="#3e443b">?</text>}
+                  {w > 22 && (
+                    <text x={left + w / 2} y={GROUND.top + GROUND.height / 2 + 5} textAnchor="middle" fontSize="14" fill="#3e443b">
+                      ?
+                    </text>
+                  )}
                 </g>
               );
             })}
@@ -157,25 +175,57 @@ export function LongSectionStrip({ geology, groundTypes, driveDirection }: {
                       {label}
                     </text>
                   )}
-                  <rect x={left + 1} y={WATER_LANE.top + WATER_LANE.height - headH} width={Math.max(1, w - 2)} height={headH} fill={WATER} />
+                  <rect
+                    x={left + 1}
+                    y={WATER_LANE.top + WATER_LANE.height - headH}
+                    width={Math.max(1, w - 2)}
+                    height={headH}
+                    fill={WATER}
+                  />
                   {w > 36 && (
-                    <text x={left + w / 2} y={WATER_LANE.top + WATER_LANE.height - headH - 3} textAnchor="middle" fontSize="12" fill="#2c302a">
+                    <text
+                      x={left + w / 2}
+                      y={WATER_LANE.top + WATER_LANE.height - headH - 3}
+                      textAnchor="middle"
+                      fontSize="12"
+                      fill="#2c302a"
+                    >
                       {s.waterHeadM.toLocaleString('en-GB', { maximumFractionDigits: 1 })}
                     </text>
                   )}
-                  {isActive && <rect x={left + 1} y={GROUND.top - 1} width={Math.max(1, w - 2)} height={WATER_LANE.top + WATER_LANE.height - GROUND.top + 2} fill="none" stroke="#1d201c" strokeWidth="3" />}
+                  {isActive && (
+                    <rect
+                      x={left + 1}
+                      y={GROUND.top - 1}
+                      width={Math.max(1, w - 2)}
+                      height={WATER_LANE.top + WATER_LANE.height - GROUND.top + 2}
+                      fill="none"
+                      stroke="#1d201c"
+                      strokeWidth="3"
+                    />
+                  )}
                 </g>
               );
             })}
             {ticks.map((t) => (
               <g key={t} aria-hidden="true">
                 <line x1={x(t)} x2={x(t)} y1={AXIS_Y - 4} y2={AXIS_Y + 2} stroke="#4f564b" />
-                <text x={x(t)} y={AXIS_Y + 16} textAnchor={tickAnchor(x(t))} fontSize="13" fill="#3e443b">{formatChainage(t).replace(/\.0$/, '')}</text>
+                <text x={x(t)} y={AXIS_Y + 16} textAnchor={tickAnchor(x(t))} fontSize="13" fill="#3e443b">
+                  {formatChainage(t).replace(/\.0$/, '')}
+                </text>
               </g>
             ))}
             {machineX != null && (
               <g aria-label={machineLabel} role="img">
-                <line x1={machineX} x2={machineX} y1={LABEL_Y + 4} y2={AXIS_Y} stroke={MACHINE} strokeWidth="3" strokeDasharray={near ? undefined : '6 4'} />
+                <line
+                  x1={machineX}
+                  x2={machineX}
+                  y1={LABEL_Y + 4}
+                  y2={AXIS_Y}
+                  stroke={MACHINE}
+                  strokeWidth="3"
+                  strokeDasharray={near ? undefined : '6 4'}
+                />
                 <text
                   x={Math.min(Math.max(machineX, SIDE + machineLabel.length * 3.6), SIDE + inner - machineLabel.length * 3.6)}
                   y={LABEL_Y}
@@ -192,22 +242,42 @@ export function LongSectionStrip({ geology, groundTypes, driveDirection }: {
         )}
       </div>
       <p className="min-h-touch rounded-md bg-basalt-50 px-3 py-2 text-caption" aria-live="polite">
-        {active ? describe(active, name(active.groundTypeId)) : 'Point at a section, or move to it with the Tab key, for its ground, water head and whether a stop is allowed.'}
+        {active
+          ? describe(active, name(active.groundTypeId))
+          : 'Point at a section, or move to it with the Tab key, for its ground, water head and whether a stop is allowed.'}
       </p>
       <figcaption>
         <ul className="flex flex-wrap gap-x-5 gap-y-2 text-caption" aria-label="Legend">
           {shownGrounds.map((g) => (
             <li key={g.id} className="flex items-center gap-2">
               <Swatch fill={colour.get(g.id) ?? '#ffffff'} />
-              <span><span className="font-semibold">{g.name}</span>{g.caiClass ? ` · ${g.caiClass.label} (CAI ${g.cai})` : ' · CAI not given'}</span>
+              <span>
+                <span className="font-semibold">{g.name}</span>
+                {g.caiClass ? ` · ${g.caiClass.label} (CAI ${g.cai})` : ' · CAI not given'}
+              </span>
             </li>
           ))}
-          {anyNoStop && <li className="flex items-center gap-2"><Swatch fill="#ffffff" hatch={hatchId} />No stop allowed</li>}
-          {gaps.length > 0 && <li className="flex items-center gap-2"><Swatch fill="#f4f5f3" />Not in the long section (?)</li>}
-          <li className="flex items-center gap-2"><Swatch fill={WATER} />Water head above the axis (m)</li>
+          {anyNoStop && (
+            <li className="flex items-center gap-2">
+              <Swatch fill="#ffffff" hatch={hatchId} />
+              No stop allowed
+            </li>
+          )}
+          {gaps.length > 0 && (
+            <li className="flex items-center gap-2">
+              <Swatch fill="#f4f5f3" />
+              Not in the long section (?)
+            </li>
+          )}
+          <li className="flex items-center gap-2">
+            <Swatch fill={WATER} />
+            Water head above the axis (m)
+          </li>
           {machineX != null && (
             <li className="flex items-center gap-2">
-              <svg width="16" height="16" aria-hidden="true"><line x1="8" y1="0" x2="8" y2="16" stroke={MACHINE} strokeWidth="3" /></svg>
+              <svg width="16" height="16" aria-hidden="true">
+                <line x1="8" y1="0" x2="8" y2="16" stroke={MACHINE} strokeWidth="3" />
+              </svg>
               Machine now
             </li>
           )}

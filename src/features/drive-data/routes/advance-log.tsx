@@ -19,7 +19,8 @@ import { DailyAdvanceChart } from '../components/daily-advance-chart';
 /** The server takes 10 to 500 rows a page (shared/schemas/geology.ts). */
 const pageSizes = [10, 25, 50, 100, 250, 500];
 
-const num = (v: number | null, decimals: number) => (v == null ? '—' : v.toLocaleString('en-GB', { minimumFractionDigits: decimals, maximumFractionDigits: decimals }));
+const num = (v: number | null, decimals: number) =>
+  v == null ? '—' : v.toLocaleString('en-GB', { minimumFractionDigits: decimals, maximumFractionDigits: decimals });
 const col = createColumnHelper<Stroke>();
 
 function strokeColumns(timeZone: string) {
@@ -29,12 +30,18 @@ function strokeColumns(timeZone: string) {
     col.accessor('startTime', {
       header: 'Start – end (site time)',
       cell: ({ row }) => (
-        <span className="whitespace-nowrap">{formatSiteDateTime(row.original.startTime, timeZone)}–{formatSiteDateTime(row.original.endTime, timeZone).slice(11)}</span>
+        <span className="whitespace-nowrap">
+          {formatSiteDateTime(row.original.startTime, timeZone)}–{formatSiteDateTime(row.original.endTime, timeZone).slice(11)}
+        </span>
       ),
     }),
     col.accessor('chainageStartM', {
       header: 'Chainage start → end',
-      cell: ({ row }) => <span className="whitespace-nowrap">{formatChainage(row.original.chainageStartM)} → {formatChainage(row.original.chainageEndM)}</span>,
+      cell: ({ row }) => (
+        <span className="whitespace-nowrap">
+          {formatChainage(row.original.chainageStartM)} → {formatChainage(row.original.chainageEndM)}
+        </span>
+      ),
     }),
     col.accessor('revolutions', { header: 'Revolutions', cell: ({ getValue }) => num(getValue(), 0) }),
     col.accessor('penetrationMmPerRev', { header: 'Penetration (mm/rev)', cell: ({ getValue }) => num(getValue(), 1) }),
@@ -44,7 +51,12 @@ function strokeColumns(timeZone: string) {
   ];
 }
 
-interface FilterText { ringFrom: string; ringTo: string; from: string; to: string }
+interface FilterText {
+  ringFrom: string;
+  ringTo: string;
+  from: string;
+  to: string;
+}
 const noFilters: FilterText = { ringFrom: '', ringTo: '', from: '', to: '' };
 const ringOrNothing = (text: string) => (text.trim() !== '' && Number.isInteger(Number(text)) ? Number(text) : undefined);
 
@@ -86,12 +98,18 @@ export function AdvanceLogRoute() {
   return (
     <Page title="Advance log">
       <p className="max-w-prose text-basalt-700">
-        One row per ring or stroke as the machine logged it. Times are site time ({project.siteTimeZone}). The export holds every
-        stroke that matches the filters.
+        One row per ring or stroke as the machine logged it. Times are site time ({project.siteTimeZone}). The export holds every stroke
+        that matches the filters.
       </p>
 
       <Panel title="Advance per day">
-        {daily.error ? <Alert tone="error">{daily.error.message}</Alert> : daily.data ? <DailyAdvanceChart days={daily.data} /> : <p>Loading…</p>}
+        {daily.error ? (
+          <Alert tone="error">{daily.error.message}</Alert>
+        ) : daily.data ? (
+          <DailyAdvanceChart days={daily.data} />
+        ) : (
+          <p>Loading…</p>
+        )}
       </Panel>
 
       <Panel title="Strokes">
@@ -104,9 +122,13 @@ export function AdvanceLogRoute() {
             exportHref={strokesExportUrl(projectId, filters)}
             getRowId={(row) => String(row.id)}
             emptyText={
-              list.isPending ? 'Loading…'
-              : filtered ? 'No strokes match the filters.'
-              : roleCan(project.role, 'drive.edit') ? 'No strokes yet. Import the machine’s advance log below.' : 'No strokes yet: the planner imports the advance log.'
+              list.isPending
+                ? 'Loading…'
+                : filtered
+                  ? 'No strokes match the filters.'
+                  : roleCan(project.role, 'drive.edit')
+                    ? 'No strokes yet. Import the machine’s advance log below.'
+                    : 'No strokes yet: the planner imports the advance log.'
             }
             server={{
               rowCount: total,
@@ -122,12 +144,37 @@ export function AdvanceLogRoute() {
             }}
             toolbar={
               <>
-                <form className="grid grid-cols-2 gap-3 md:grid-cols-[1fr_1fr_1fr_1fr_auto] md:items-end" onSubmit={(e) => e.preventDefault()} aria-label="Filter the log">
-                  <TextField label="Ring from" type="number" inputMode="numeric" step={1} value={filterText.ringFrom} onChange={(e) => setFilter('ringFrom', e.target.value)} />
-                  <TextField label="Ring to" type="number" inputMode="numeric" step={1} value={filterText.ringTo} onChange={(e) => setFilter('ringTo', e.target.value)} />
+                <form
+                  className="grid grid-cols-2 gap-3 md:grid-cols-[1fr_1fr_1fr_1fr_auto] md:items-end"
+                  onSubmit={(e) => e.preventDefault()}
+                  aria-label="Filter the log"
+                >
+                  <TextField
+                    label="Ring from"
+                    type="number"
+                    inputMode="numeric"
+                    step={1}
+                    value={filterText.ringFrom}
+                    onChange={(e) => setFilter('ringFrom', e.target.value)}
+                  />
+                  <TextField
+                    label="Ring to"
+                    type="number"
+                    inputMode="numeric"
+                    step={1}
+                    value={filterText.ringTo}
+                    onChange={(e) => setFilter('ringTo', e.target.value)}
+                  />
                   <TextField label="Date from" type="date" value={filterText.from} onChange={(e) => setFilter('from', e.target.value)} />
                   <TextField label="Date to" type="date" value={filterText.to} onChange={(e) => setFilter('to', e.target.value)} />
-                  <Button variant="ghost" disabled={!filtered} onClick={() => { setFilterText(noFilters); setPagination((p) => ({ ...p, pageIndex: 0 })); }}>
+                  <Button
+                    variant="ghost"
+                    disabled={!filtered}
+                    onClick={() => {
+                      setFilterText(noFilters);
+                      setPagination((p) => ({ ...p, pageIndex: 0 }));
+                    }}
+                  >
                     Clear filters
                   </Button>
                 </form>
@@ -145,7 +192,10 @@ export function AdvanceLogRoute() {
       </Panel>
 
       {roleCan(project.role, 'drive.edit') && (
-        <AdvanceLogImport projectId={projectId} onImported={() => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) })} />
+        <AdvanceLogImport
+          projectId={projectId}
+          onImported={() => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) })}
+        />
       )}
     </Page>
   );

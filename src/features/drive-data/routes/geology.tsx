@@ -64,7 +64,12 @@ export function GeologyRoute() {
         </>
       ) : (
         <Panel title="Sections">
-          <DataTable data={geology.sections} columns={readOnlyColumns} exportName="kerfwise-long-section" emptyText="The planner has not entered the long section yet." />
+          <DataTable
+            data={geology.sections}
+            columns={readOnlyColumns}
+            exportName="kerfwise-long-section"
+            emptyText="The planner has not entered the long section yet."
+          />
         </Panel>
       )}
     </Page>

@@ -14,13 +14,22 @@ const fallbackText: Record<Fallback, string> = {
 };
 
 const basisText = (basis: EstimateBasis | null | undefined) =>
-  !basis ? 'no estimate' : basis.source === 'planner' ? 'set by the planner' : `last ${basis.strokeCount} strokes (${fixed(basis.advanceM, 0)} m)`;
+  !basis
+    ? 'no estimate'
+    : basis.source === 'planner'
+      ? 'set by the planner'
+      : `last ${basis.strokeCount} strokes (${fixed(basis.advanceM, 0)} m)`;
 
 const th = 'px-2 py-1 text-left align-bottom font-semibold';
 const td = 'px-2 py-1 align-top whitespace-nowrap';
 
 /** How one position's forecast was made: wear now, each section walked ahead, and the rates used. Fetched when opened. */
-export function Explanation({ projectId, positionId, groundName, timeZone }: {
+export function Explanation({
+  projectId,
+  positionId,
+  groundName,
+  timeZone,
+}: {
   projectId: string;
   positionId: string;
   groundName: (id: string | null) => string;
@@ -28,10 +37,20 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
 }) {
   const { data, error, isPending } = useQuery(forecastQueries.explanation(projectId, positionId));
   if (isPending) return <p role="status">Working out how this forecast was made…</p>;
-  if (error) return <Alert tone="error" title="The explanation could not be loaded.">{error.message}</Alert>;
+  if (error)
+    return (
+      <Alert tone="error" title="The explanation could not be loaded.">
+        {error.message}
+      </Alert>
+    );
   const p: PositionForecast | null = data.position;
   const e = p?.explanation;
-  if (!p || !e) return <Alert tone="caution" title="This position is no longer in the forecast.">Its cutter may have been removed since the page was loaded.</Alert>;
+  if (!p || !e)
+    return (
+      <Alert tone="caution" title="This position is no longer in the forecast.">
+        Its cutter may have been removed since the page was loaded.
+      </Alert>
+    );
   const { rates, driveRates } = data.forecast;
   const grounds = [...new Set(e.sections.map((s) => s.groundTypeId).filter((g): g is string => g != null))];
   const limit = p.position.allowableWearMm;
@@ -39,7 +58,8 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
   const outcome = (q: 'p50' | 'p90') => {
     const point = p[q];
     if (point.status === 'over_limit') return `already at or over the ${limit} mm limit (${fixed(point.wearNowMm)} mm)`;
-    if (point.status === 'beyond_known_ground') return `only ${fixed(point.wearThereMm)} mm by the end of known ground at ${formatChainage(point.chainageM)}; the limit lies beyond`;
+    if (point.status === 'beyond_known_ground')
+      return `only ${fixed(point.wearThereMm)} mm by the end of known ground at ${formatChainage(point.chainageM)}; the limit lies beyond`;
     return `reaches ${limit} mm at ${formatChainage(point.chainageM)}, ${fixed(point.remainingM, 0)} m ahead`;
   };
 
@@ -48,12 +68,17 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
       <section aria-label="Wear now">
         <h4 className="font-semibold">Wear now</h4>
         <p className="max-w-prose">
-          {lastAt
-            ? <>Last measured {fixed(e.wearNow.lastMeasuredWearMm)} mm at {formatChainage(e.wearNow.measuredAtChainageM)} on {lastAt}.</>
-            : <>Not measured since fitted at {formatChainage(e.wearNow.measuredAtChainageM)}: counted from 0 mm.</>}{' '}
-          Since then the disc has rolled on to {formatChainage(e.currentChainageM)}, modelled as +{fixed(e.wearNow.modelledSinceMm.p50, 2)} mm (P50)
-          and +{fixed(e.wearNow.modelledSinceMm.p90, 2)} mm (P90): wear now {fixed(e.wearNowMm.p50)} mm (P50), {fixed(e.wearNowMm.p90)} mm (P90).
-          {' '}{positionClassLabels[p.position.positionClass]} discs wear {e.classFactor} × a face disc’s rate; track radius {p.position.trackRadiusMm} mm.
+          {lastAt ? (
+            <>
+              Last measured {fixed(e.wearNow.lastMeasuredWearMm)} mm at {formatChainage(e.wearNow.measuredAtChainageM)} on {lastAt}.
+            </>
+          ) : (
+            <>Not measured since fitted at {formatChainage(e.wearNow.measuredAtChainageM)}: counted from 0 mm.</>
+          )}{' '}
+          Since then the disc has rolled on to {formatChainage(e.currentChainageM)}, modelled as +{fixed(e.wearNow.modelledSinceMm.p50, 2)}{' '}
+          mm (P50) and +{fixed(e.wearNow.modelledSinceMm.p90, 2)} mm (P90): wear now {fixed(e.wearNowMm.p50)} mm (P50),{' '}
+          {fixed(e.wearNowMm.p90)} mm (P90). {positionClassLabels[p.position.positionClass]} discs wear {e.classFactor} × a face disc’s
+          rate; track radius {p.position.trackRadiusMm} mm.
         </p>
       </section>
 
@@ -66,17 +91,39 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
             <table className="text-caption">
               <thead className="bg-basalt-100">
                 <tr>
-                  <th scope="col" className={th}>From</th>
-                  <th scope="col" className={th}>To</th>
-                  <th scope="col" className={th}>Length (m)</th>
-                  <th scope="col" className={th}>Ground</th>
-                  <th scope="col" className={th}>Penetration (mm/rev)</th>
-                  <th scope="col" className={th}>Rolled (km per m)</th>
-                  <th scope="col" className={th}>Rate P50 / P90 (mm/km)</th>
-                  <th scope="col" className={th}>Wear per m P50 / P90 (mm)</th>
-                  <th scope="col" className={th}>Advance (m/day)</th>
-                  <th scope="col" className={th}>Days</th>
-                  <th scope="col" className={th}>Unknown ground: stand-ins</th>
+                  <th scope="col" className={th}>
+                    From
+                  </th>
+                  <th scope="col" className={th}>
+                    To
+                  </th>
+                  <th scope="col" className={th}>
+                    Length (m)
+                  </th>
+                  <th scope="col" className={th}>
+                    Ground
+                  </th>
+                  <th scope="col" className={th}>
+                    Penetration (mm/rev)
+                  </th>
+                  <th scope="col" className={th}>
+                    Rolled (km per m)
+                  </th>
+                  <th scope="col" className={th}>
+                    Rate P50 / P90 (mm/km)
+                  </th>
+                  <th scope="col" className={th}>
+                    Wear per m P50 / P90 (mm)
+                  </th>
+                  <th scope="col" className={th}>
+                    Advance (m/day)
+                  </th>
+                  <th scope="col" className={th}>
+                    Days
+                  </th>
+                  <th scope="col" className={th}>
+                    Unknown ground: stand-ins
+                  </th>
                 </tr>
               </thead>
               <tbody>
@@ -88,8 +135,12 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
                     <td className={td}>{groundName(s.groundTypeId)}</td>
                     <td className={td}>{fixed(s.penetrationMmPerRev, 2)}</td>
                     <td className={td}>{fixed(s.rolledKmPerM, 3)}</td>
-                    <td className={td}>{formatRate(s.rateMmPerKm.p50)} / {formatRate(s.rateMmPerKm.p90)}</td>
-                    <td className={td}>{fixed(s.wearMmPerM.p50, 4)} / {fixed(s.wearMmPerM.p90, 4)}</td>
+                    <td className={td}>
+                      {formatRate(s.rateMmPerKm.p50)} / {formatRate(s.rateMmPerKm.p90)}
+                    </td>
+                    <td className={td}>
+                      {fixed(s.wearMmPerM.p50, 4)} / {fixed(s.wearMmPerM.p90, 4)}
+                    </td>
                     <td className={td}>{fixed(s.advanceMPerDay)}</td>
                     <td className={td}>{fixed(s.days)}</td>
                     <td className={td}>{s.fallbacks.length ? s.fallbacks.map((f) => fallbackText[f]).join('; ') : '—'}</td>
@@ -112,19 +163,33 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
             <table className="text-caption">
               <thead className="bg-basalt-100">
                 <tr>
-                  <th scope="col" className={th}>Ground</th>
-                  <th scope="col" className={th}>Wear rate P50 / P90 (mm/km)</th>
-                  <th scope="col" className={th}>Penetration (mm/rev)</th>
-                  <th scope="col" className={th}>Advance (m/day)</th>
+                  <th scope="col" className={th}>
+                    Ground
+                  </th>
+                  <th scope="col" className={th}>
+                    Wear rate P50 / P90 (mm/km)
+                  </th>
+                  <th scope="col" className={th}>
+                    Penetration (mm/rev)
+                  </th>
+                  <th scope="col" className={th}>
+                    Advance (m/day)
+                  </th>
                 </tr>
               </thead>
               <tbody>
                 {grounds.map((g) => (
                   <tr key={g} className="border-t border-basalt-100">
                     <td className={td}>{groundName(g)}</td>
-                    <td className={td}>{formatRate(rates.byGround[g]?.p50MmPerKm)} / {formatRate(rates.byGround[g]?.p90MmPerKm)}</td>
-                    <td className={td}>{fixed(driveRates.penetrationMmPerRevByGround[g], 2)} — {basisText(driveRates.basis[g]?.penetration)}</td>
-                    <td className={td}>{fixed(driveRates.advanceMPerDayByGround[g])} — {basisText(driveRates.basis[g]?.advance)}</td>
+                    <td className={td}>
+                      {formatRate(rates.byGround[g]?.p50MmPerKm)} / {formatRate(rates.byGround[g]?.p90MmPerKm)}
+                    </td>
+                    <td className={td}>
+                      {fixed(driveRates.penetrationMmPerRevByGround[g], 2)} — {basisText(driveRates.basis[g]?.penetration)}
+                    </td>
+                    <td className={td}>
+                      {fixed(driveRates.advanceMPerDayByGround[g])} — {basisText(driveRates.basis[g]?.advance)}
+                    </td>
                   </tr>
                 ))}
               </tbody>
@@ -132,7 +197,8 @@ export function Explanation({ projectId, positionId, groundName, timeZone }: {
           </div>
           <p className="mt-2 max-w-prose text-caption text-basalt-600">
             The P90 rate adds the fit’s own uncertainty and the scatter of single discs about it
-            {rates.relativeScatter != null && ` (${fixed(rates.relativeScatter * 100)} % here)`}; a ground known only from its CAI gets a fixed margin over its prior.
+            {rates.relativeScatter != null && ` (${fixed(rates.relativeScatter * 100)} % here)`}; a ground known only from its CAI gets a
+            fixed margin over its prior.
           </p>
         </section>
       )}

@@ -32,7 +32,9 @@ function MarkerTooltip({ active, payload }: { active?: boolean; payload?: readon
   if (!active || !m) return null;
   return (
     <div className="rounded-md border border-basalt-300 bg-white px-3 py-2 text-caption shadow">
-      <p className="font-semibold">Position {m.positionNumber}: {m.label}</p>
+      <p className="font-semibold">
+        Position {m.positionNumber}: {m.label}
+      </p>
       <p>{m.detail}</p>
     </div>
   );
@@ -42,7 +44,12 @@ function MarkerTooltip({ active, payload }: { active?: boolean; payload?: readon
  * The drive ahead along chainage: geology as coloured bands (no-stop sections hatched), where each
  * position reaches its wear limit (P50 circle, P90 diamond) and a line where the machine is now.
  */
-export function ForecastChart({ forecast, geology, groundTypes, driveDirection }: {
+export function ForecastChart({
+  forecast,
+  geology,
+  groundTypes,
+  driveDirection,
+}: {
   forecast: Forecast;
   geology: Geology;
   groundTypes: GroundType[];
@@ -142,14 +149,43 @@ export function ForecastChart({ forecast, geology, groundTypes, driveDirection }
               label={{ value: 'Position', angle: -90, position: 'insideLeft', fill: '#2c302a', fontSize: 14 }}
             />
             {sections.map((s) => (
-              <ReferenceArea key={`tint-${s.id}`} x1={s.x1} x2={s.x2} y1={-strip} y2={maxPosition + 1} fill={colour.get(s.groundTypeId)} fillOpacity={0.16} stroke="none" />
+              <ReferenceArea
+                key={`tint-${s.id}`}
+                x1={s.x1}
+                x2={s.x2}
+                y1={-strip}
+                y2={maxPosition + 1}
+                fill={colour.get(s.groundTypeId)}
+                fillOpacity={0.16}
+                stroke="none"
+              />
             ))}
             {sections.map((s) => (
-              <ReferenceArea key={`strip-${s.id}`} x1={s.x1} x2={s.x2} y1={-strip} y2={0} fill={colour.get(s.groundTypeId)} fillOpacity={1} stroke="#ffffff" />
+              <ReferenceArea
+                key={`strip-${s.id}`}
+                x1={s.x1}
+                x2={s.x2}
+                y1={-strip}
+                y2={0}
+                fill={colour.get(s.groundTypeId)}
+                fillOpacity={1}
+                stroke="#ffffff"
+              />
             ))}
-            {sections.filter((s) => !s.stopAllowed).map((s) => (
-              <ReferenceArea key={`hatch-${s.id}`} x1={s.x1} x2={s.x2} y1={-strip} y2={maxPosition + 1} fill={`url(#${HATCH_ID})`} stroke="#1d201c" strokeDasharray="4 3" />
-            ))}
+            {sections
+              .filter((s) => !s.stopAllowed)
+              .map((s) => (
+                <ReferenceArea
+                  key={`hatch-${s.id}`}
+                  x1={s.x1}
+                  x2={s.x2}
+                  y1={-strip}
+                  y2={maxPosition + 1}
+                  fill={`url(#${HATCH_ID})`}
+                  stroke="#1d201c"
+                  strokeDasharray="4 3"
+                />
+              ))}
             <ReferenceLine
               x={current}
               stroke="#bd4f09"
@@ -157,7 +193,15 @@ export function ForecastChart({ forecast, geology, groundTypes, driveDirection }
               label={{ value: `Machine ${formatChainage(current)}`, position: 'top', fill: '#973d0c', fontSize: 14, fontWeight: 600 }}
             />
             <Tooltip content={MarkerTooltip} cursor={false} />
-            <Scatter name="Central (P50) change-out" data={p50} fill="#ffffff" stroke="#3e443b" strokeWidth={2} shape="circle" isAnimationActive={false} />
+            <Scatter
+              name="Central (P50) change-out"
+              data={p50}
+              fill="#ffffff"
+              stroke="#3e443b"
+              strokeWidth={2}
+              shape="circle"
+              isAnimationActive={false}
+            />
             <Scatter name="Cautious (P90) change-out" data={p90} fill="#1d201c" shape="diamond" isAnimationActive={false} />
           </ScatterChart>
         </ResponsiveContainer>
@@ -165,21 +209,35 @@ export function ForecastChart({ forecast, geology, groundTypes, driveDirection }
       <figcaption className="space-y-2 text-caption">
         <ul className="flex flex-wrap gap-x-5 gap-y-2" aria-label="Legend">
           <li className="flex items-center gap-2">
-            <svg width="16" height="16" aria-hidden="true"><path d="M8 1 L15 8 L8 15 L1 8 Z" fill="#1d201c" /></svg>
+            <svg width="16" height="16" aria-hidden="true">
+              <path d="M8 1 L15 8 L8 15 L1 8 Z" fill="#1d201c" />
+            </svg>
             Cautious (P90) change-out
           </li>
           <li className="flex items-center gap-2">
-            <svg width="16" height="16" aria-hidden="true"><circle cx="8" cy="8" r="6" fill="#ffffff" stroke="#3e443b" strokeWidth="2" /></svg>
+            <svg width="16" height="16" aria-hidden="true">
+              <circle cx="8" cy="8" r="6" fill="#ffffff" stroke="#3e443b" strokeWidth="2" />
+            </svg>
             Central (P50) change-out
           </li>
           <li className="flex items-center gap-2">
-            <svg width="16" height="16" aria-hidden="true"><line x1="8" y1="0" x2="8" y2="16" stroke="#bd4f09" strokeWidth="3" /></svg>
+            <svg width="16" height="16" aria-hidden="true">
+              <line x1="8" y1="0" x2="8" y2="16" stroke="#bd4f09" strokeWidth="3" />
+            </svg>
             Machine now
           </li>
           {shownGrounds.map((g) => (
-            <li key={g.id} className="flex items-center gap-2"><Swatch fill={colour.get(g.id) ?? '#ffffff'} />{name.get(g.id)}</li>
+            <li key={g.id} className="flex items-center gap-2">
+              <Swatch fill={colour.get(g.id) ?? '#ffffff'} />
+              {name.get(g.id)}
+            </li>
           ))}
-          {anyNoStop && <li className="flex items-center gap-2"><Swatch fill="#ffffff" hatch />No stop allowed</li>}
+          {anyNoStop && (
+            <li className="flex items-center gap-2">
+              <Swatch fill="#ffffff" hatch />
+              No stop allowed
+            </li>
+          )}
         </ul>
         {outside > 0 && (
           <p className="text-basalt-600">

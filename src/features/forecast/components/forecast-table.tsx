@@ -23,9 +23,13 @@ function flagsOf(p: PositionForecast): Flag[] {
   if (p.p50.status === 'over_limit') flags.push({ kind: 'over', text: 'Over limit' });
   else if (p.p90.status === 'over_limit') flags.push({ kind: 'over', text: 'Over limit (P90)' });
   if (p.gaugeBore?.exceedsOvercut) {
-    flags.push({ kind: 'bore', text: `Gauge bore loss: ${fixed(p.gaugeBore.diameterLossMm)} mm, overcut ${fixed(p.gaugeBore.overcutMarginMm, 0)} mm` });
+    flags.push({
+      kind: 'bore',
+      text: `Gauge bore loss: ${fixed(p.gaugeBore.diameterLossMm)} mm, overcut ${fixed(p.gaugeBore.overcutMarginMm, 0)} mm`,
+    });
   }
-  if (p.p50.status === 'beyond_known_ground' || p.p90.status === 'beyond_known_ground') flags.push({ kind: 'beyond', text: 'Beyond known ground' });
+  if (p.p50.status === 'beyond_known_ground' || p.p90.status === 'beyond_known_ground')
+    flags.push({ kind: 'beyond', text: 'Beyond known ground' });
   return flags;
 }
 
@@ -48,7 +52,9 @@ function FlagChip({ flag }: { flag: Flag }) {
   const { chip, icon } = flagStyle[flag.kind];
   return (
     <span className={`inline-flex w-max max-w-44 items-start gap-1 rounded border px-2 py-0.5 text-caption font-semibold ${chip}`}>
-      <svg width="16" height="16" viewBox="0 0 16 16" aria-hidden="true" className="mt-0.5 shrink-0">{icon}</svg>
+      <svg width="16" height="16" viewBox="0 0 16 16" aria-hidden="true" className="mt-0.5 shrink-0">
+        {icon}
+      </svg>
       {flag.text}
     </span>
   );
@@ -58,8 +64,14 @@ function FlagChip({ flag }: { flag: Flag }) {
 function Pair({ p90, p50 }: { p90: ReactNode; p50: ReactNode }) {
   return (
     <span className="block whitespace-nowrap">
-      <span className="block font-semibold"><span className="text-caption text-basalt-600">P90 </span>{p90}</span>
-      <span className="block"><span className="text-caption text-basalt-600">P50 </span>{p50}</span>
+      <span className="block font-semibold">
+        <span className="text-caption text-basalt-600">P90 </span>
+        {p90}
+      </span>
+      <span className="block">
+        <span className="text-caption text-basalt-600">P50 </span>
+        {p50}
+      </span>
     </span>
   );
 }
@@ -68,7 +80,12 @@ function Pair({ p90, p50 }: { p90: ReactNode; p50: ReactNode }) {
  * Every position's change-out, most urgent (cautious P90) first: sorts, filters, exports CSV, and
  * opens "how was this made" under a row.
  */
-export function ForecastTable({ projectId, positions, timeZone, groundName }: {
+export function ForecastTable({
+  projectId,
+  positions,
+  timeZone,
+  groundName,
+}: {
   projectId: string;
   positions: PositionForecast[];
   timeZone: string;
@@ -83,13 +100,21 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
       header: 'Position',
       accessorFn: (p) => p.position.positionNumber,
       cell: ({ row }) => (
-        <Link className="font-semibold text-ember-700 underline underline-offset-2" to={paths.position(projectId, row.original.position.positionId)}>
+        <Link
+          className="font-semibold text-ember-700 underline underline-offset-2"
+          to={paths.position(projectId, row.original.position.positionId)}
+        >
           {row.original.position.positionNumber}
         </Link>
       ),
     },
     { id: 'class', header: 'Class', accessorFn: (p) => positionClassLabels[p.position.positionClass] },
-    { id: 'serial', header: 'Serial', accessorFn: (p) => p.serial ?? '', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> },
+    {
+      id: 'serial',
+      header: 'Serial',
+      accessorFn: (p) => p.serial ?? '',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    },
     {
       id: 'wear',
       header: 'Wear now (mm)',
@@ -103,7 +128,12 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
       accessorFn: (p) => p.p90.remainingM,
       cell: ({ row }) => <Pair p90={formatChainage(row.original.p90.chainageM)} p50={formatChainage(row.original.p50.chainageM)} />,
     },
-    { id: 'ring', header: 'Ring', accessorFn: (p) => p.p90.ringNumber, cell: ({ row }) => <Pair p90={row.original.p90.ringNumber} p50={row.original.p50.ringNumber} /> },
+    {
+      id: 'ring',
+      header: 'Ring',
+      accessorFn: (p) => p.p90.ringNumber,
+      cell: ({ row }) => <Pair p90={row.original.p90.ringNumber} p50={row.original.p50.ringNumber} />,
+    },
     {
       id: 'date',
       header: 'Date',
@@ -123,9 +153,18 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
     {
       id: 'flags',
       header: 'Flags',
-      accessorFn: (p) => flagsOf(p).map((f) => f.text).join('; '),
+      accessorFn: (p) =>
+        flagsOf(p)
+          .map((f) => f.text)
+          .join('; '),
       enableSorting: false,
-      cell: ({ row }) => <span className="flex flex-col items-start gap-1">{flagsOf(row.original).map((f) => <FlagChip key={f.kind} flag={f} />)}</span>,
+      cell: ({ row }) => (
+        <span className="flex flex-col items-start gap-1">
+          {flagsOf(row.original).map((f) => (
+            <FlagChip key={f.kind} flag={f} />
+          ))}
+        </span>
+      ),
     },
     {
       id: 'how',
@@ -135,7 +174,13 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
       cell: ({ row }) => {
         const isOpen = row.getIsExpanded();
         return (
-          <Button variant="ghost" aria-expanded={isOpen} aria-controls={`explain-${row.id}`} onClick={() => row.toggleExpanded()} className="whitespace-nowrap border-2 border-basalt-200">
+          <Button
+            variant="ghost"
+            aria-expanded={isOpen}
+            aria-controls={`explain-${row.id}`}
+            onClick={() => row.toggleExpanded()}
+            className="whitespace-nowrap border-2 border-basalt-200"
+          >
             <span aria-hidden="true">{isOpen ? '▾' : '▸'}</span>
             {isOpen ? 'Hide' : 'How?'}
             <span className="sr-only"> How was the forecast of position {row.original.position.positionNumber} made</span>
@@ -148,18 +193,40 @@ export function ForecastTable({ projectId, positions, timeZone, groundName }: {
   // Numbers stay numbers (rounded by the writer as the table shows them), so an overdue negative
   // remaining distance is not mistaken for a formula cell.
   const csvHeader = [
-    'Position', 'Class', 'Serial', { header: 'Wear now P50 (mm)', decimals: 2 }, { header: 'Wear now P90 (mm)', decimals: 2 }, 'Limit (mm)',
+    'Position',
+    'Class',
+    'Serial',
+    { header: 'Wear now P50 (mm)', decimals: 2 },
+    { header: 'Wear now P90 (mm)', decimals: 2 },
+    'Limit (mm)',
     ...(['P90', 'P50'] as const).flatMap((q) => [
-      `${q} chainage`, { header: `${q} chainage (m)`, decimals: 1 }, `${q} ring`, `${q} date`, { header: `${q} remaining (m)`, decimals: 1 }, `${q} status`,
+      `${q} chainage`,
+      { header: `${q} chainage (m)`, decimals: 1 },
+      `${q} ring`,
+      `${q} date`,
+      { header: `${q} remaining (m)`, decimals: 1 },
+      `${q} status`,
     ]),
     'Flags',
   ];
   const csvRow = (p: PositionForecast) => [
-    p.position.positionNumber, positionClassLabels[p.position.positionClass], p.serial, p.p50.wearNowMm, p.p90.wearNowMm, p.position.allowableWearMm,
+    p.position.positionNumber,
+    positionClassLabels[p.position.positionClass],
+    p.serial,
+    p.p50.wearNowMm,
+    p.p90.wearNowMm,
+    p.position.allowableWearMm,
     ...(['p90', 'p50'] as const).flatMap((q) => [
-      formatChainage(p[q].chainageM), p[q].chainageM, p[q].ringNumber, date(p[q].date), p[q].remainingM, p[q].status.replaceAll('_', ' '),
+      formatChainage(p[q].chainageM),
+      p[q].chainageM,
+      p[q].ringNumber,
+      date(p[q].date),
+      p[q].remainingM,
+      p[q].status.replaceAll('_', ' '),
     ]),
-    flagsOf(p).map((f) => f.text).join('; '),
+    flagsOf(p)
+      .map((f) => f.text)
+      .join('; '),
   ];
 
   return (

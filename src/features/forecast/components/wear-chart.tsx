@@ -19,7 +19,9 @@ export function WearChart({ report, groundTypeId }: { report: WearFitReport; gro
   const ground = report.grounds.find((g) => g.id === groundTypeId);
   const rate = ground?.rate?.rateMmPerKm ?? null;
   const sd = report.residualSdMm;
-  const points = report.points.filter((p) => p.groundTypeId === groundTypeId).map((p) => ({ km: p.rolledKm, wearMm: p.wearMm, positionClass: p.positionClass }));
+  const points = report.points
+    .filter((p) => p.groundTypeId === groundTypeId)
+    .map((p) => ({ km: p.rolledKm, wearMm: p.wearMm, positionClass: p.positionClass }));
   const classes = positionClasses.filter((c) => points.some((p) => p.positionClass === c));
   const maxKm = Math.max(1, ...points.map((p) => p.km));
   // Each class's line runs as far as its own inspections go.
@@ -29,7 +31,8 @@ export function WearChart({ report, groundTypeId }: { report: WearFitReport; gro
       const fitMm = (rate ?? 0) * report.classFactors[c] * km;
       return { km, fitMm, band: sd == null ? null : [Math.max(0, fitMm - sd), fitMm + sd] };
     });
-  if (points.length === 0) return <p className="text-basalt-600">No inspection in this ground alone yet: every disc measured here also rolled in other ground.</p>;
+  if (points.length === 0)
+    return <p className="text-basalt-600">No inspection in this ground alone yet: every disc measured here also rolled in other ground.</p>;
   return (
     <figure className="space-y-2">
       <div
@@ -50,7 +53,10 @@ export function WearChart({ report, groundTypeId }: { report: WearFitReport; gro
               label={{ value: 'Km rolled since fitted', position: 'insideBottom', offset: -12, fill: '#2c302a', fontSize: 14 }}
             />
             <YAxis type="number" unit=" mm" stroke="#4f564b" fontSize={14} width={64} />
-            <Tooltip formatter={(v) => (Array.isArray(v) ? `${fixed(Number(v[0]), 2)}–${fixed(Number(v[1]), 2)} mm` : `${fixed(Number(v), 2)} mm`)} labelFormatter={(v) => `${fixed(Number(v), 1)} km`} />
+            <Tooltip
+              formatter={(v) => (Array.isArray(v) ? `${fixed(Number(v[0]), 2)}–${fixed(Number(v[1]), 2)} mm` : `${fixed(Number(v), 2)} mm`)}
+              labelFormatter={(v) => `${fixed(Number(v), 1)} km`}
+            />
             {sd != null &&
               classes.map((c) => (
                 <Area

@@ -29,13 +29,20 @@ export function ForecastRoute() {
   });
   const tz = project.siteTimeZone;
   const names = new Map(groundTypes.map((g) => [g.id, g.name]));
-  const groundName = (id: string | null) => (id == null ? 'Unknown ground' : names.get(id) ?? 'Unknown ground type');
+  const groundName = (id: string | null) => (id == null ? 'Unknown ground' : (names.get(id) ?? 'Unknown ground type'));
   const next = forecast.positions[0];
   const overLimit = forecast.positions.filter((p) => p.p90.status === 'over_limit').length;
   const boreLoss = forecast.positions.filter((p) => p.gaugeBore?.exceedsOvercut).length;
 
   return (
-    <Page title="Change-out forecast" actions={<Link className={linkClass} to="../wear-fits" relative="path">Wear rates by ground</Link>}>
+    <Page
+      title="Change-out forecast"
+      actions={
+        <Link className={linkClass} to="../wear-fits" relative="path">
+          Wear rates by ground
+        </Link>
+      }
+    >
       <p className="max-w-prose">
         {forecast.currentChainageM == null
           ? 'The machine’s position is not known yet.'
@@ -44,19 +51,27 @@ export function ForecastRoute() {
         estimate; P90 the cautious one: nine discs in ten should last at least that far.
       </p>
 
-      {forecast.problems.map((problem) => <Alert key={problem} tone="caution" title={problem} />)}
+      {forecast.problems.map((problem) => (
+        <Alert key={problem} tone="caution" title={problem} />
+      ))}
       {geology.warnings.length > 0 && (
         <Alert tone="caution" title="The long section has gaps.">
-          Unknown ground {geology.warnings.map((w) => `${formatChainage(w.fromM)} to ${formatChainage(w.toM)}`).join(', ')}: the forecast takes the most
-          cautious known values there.
+          Unknown ground {geology.warnings.map((w) => `${formatChainage(w.fromM)} to ${formatChainage(w.toM)}`).join(', ')}: the forecast
+          takes the most cautious known values there.
         </Alert>
       )}
       {next && (
-        <Alert tone={overLimit > 0 ? 'error' : 'info'} title={overLimit > 0 ? `${overLimit} position${overLimit === 1 ? ' is' : 's are'} at or over the wear limit (P90).` : 'Next change-out'}>
+        <Alert
+          tone={overLimit > 0 ? 'error' : 'info'}
+          title={
+            overLimit > 0 ? `${overLimit} position${overLimit === 1 ? ' is' : 's are'} at or over the wear limit (P90).` : 'Next change-out'
+          }
+        >
           {next.p90.status === 'over_limit'
             ? `Position ${next.position.positionNumber} is due now: ${fixed(next.p90.wearNowMm)} mm worn (P90) against a ${next.position.allowableWearMm} mm limit.`
             : `Position ${next.position.positionNumber} reaches its limit by ${formatChainage(next.p90.chainageM)} (cautious), ring ${next.p90.ringNumber}, on ${formatSiteDate(next.p90.date, tz)}: ${fixed(next.p90.remainingM, 0)} m ahead.`}
-          {boreLoss > 0 && ` ${boreLoss} gauge position${boreLoss === 1 ? '' : 's'} would cut the bore smaller than the overcut allows before change-out.`}
+          {boreLoss > 0 &&
+            ` ${boreLoss} gauge position${boreLoss === 1 ? '' : 's'} would cut the bore smaller than the overcut allows before change-out.`}
         </Alert>
       )}
 

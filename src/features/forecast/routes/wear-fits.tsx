@@ -45,25 +45,40 @@ const col = createColumnHelper<WearFitGround>();
 const rateColumns = [
   col.accessor('name', { header: 'Ground type', cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span> }),
   col.accessor('cai', { header: 'CAI', cell: ({ getValue }) => fixed(getValue(), 1) }),
-  col.accessor((g) => (g.caiClass ? `${g.caiClass.label}${g.caiClass.outsideTabulatedRange ? ' (outside the table)' : ''}` : 'Not tested'), {
-    id: 'class',
-    header: 'CERCHAR class',
-  }),
+  col.accessor(
+    (g) => (g.caiClass ? `${g.caiClass.label}${g.caiClass.outsideTabulatedRange ? ' (outside the table)' : ''}` : 'Not tested'),
+    {
+      id: 'class',
+      header: 'CERCHAR class',
+    },
+  ),
   col.accessor('priorMmPerKm', { header: 'Prior rate (mm/km)', cell: ({ getValue }) => formatRate(getValue()) }),
-  col.accessor((g) => (g.rate ? `${formatRate(g.rate.rateMmPerKm)}${g.rate.standardErrorMmPerKm == null ? '' : ` ± ${formatRate(g.rate.standardErrorMmPerKm)}`}` : '—'), {
-    id: 'rate',
-    header: 'Fitted rate ± standard error (mm/km)',
-    sortingFn: (a, b) => (a.original.rate?.rateMmPerKm ?? -1) - (b.original.rate?.rateMmPerKm ?? -1),
-    cell: ({ getValue }) => <span className="whitespace-nowrap font-semibold">{getValue()}</span>,
+  col.accessor(
+    (g) =>
+      g.rate
+        ? `${formatRate(g.rate.rateMmPerKm)}${g.rate.standardErrorMmPerKm == null ? '' : ` ± ${formatRate(g.rate.standardErrorMmPerKm)}`}`
+        : '—',
+    {
+      id: 'rate',
+      header: 'Fitted rate ± standard error (mm/km)',
+      sortingFn: (a, b) => (a.original.rate?.rateMmPerKm ?? -1) - (b.original.rate?.rateMmPerKm ?? -1),
+      cell: ({ getValue }) => <span className="whitespace-nowrap font-semibold">{getValue()}</span>,
+    },
+  ),
+  col.accessor((g) => g.rate?.siteOnlyRateMmPerKm, {
+    id: 'siteOnly',
+    header: 'Site-only rate (mm/km)',
+    cell: ({ getValue }) => formatRate(getValue()),
   }),
-  col.accessor((g) => g.rate?.siteOnlyRateMmPerKm, { id: 'siteOnly', header: 'Site-only rate (mm/km)', cell: ({ getValue }) => formatRate(getValue()) }),
   col.accessor((g) => g.cautious?.p90MmPerKm, {
     id: 'p90',
     header: 'Cautious P90 rate (mm/km)',
     cell: ({ getValue, row }) => (
       <span className="block min-w-40">
         <span className="font-semibold">{formatRate(getValue())}</span>
-        {row.original.cautious && <span className="block text-caption text-basalt-600">{cautiousText[row.original.cautious.cautiousSource]}</span>}
+        {row.original.cautious && (
+          <span className="block text-caption text-basalt-600">{cautiousText[row.original.cautious.cautiousSource]}</span>
+        )}
       </span>
     ),
   }),
@@ -97,33 +112,56 @@ export function WearFitsRoute() {
 
   const eCol = createColumnHelper<AbnormalEvent>();
   const eventColumns = [
-    eCol.accessor((e) => formatSiteDate(e.at, tz), { id: 'date', header: 'Date', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    eCol.accessor((e) => formatSiteDate(e.at, tz), {
+      id: 'date',
+      header: 'Date',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
     eCol.accessor('positionNumber', { header: 'Position' }),
     eCol.accessor((e) => e.conditions.map(conditionLabel).join(', '), { id: 'conditions', header: 'Found' }),
-    eCol.accessor('chainageM', { header: 'Chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
+    eCol.accessor('chainageM', {
+      header: 'Chainage',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
+    }),
   ];
 
   return (
     <Page
       title="Wear rates by ground"
-      actions={<Link className="flex min-h-touch items-center font-semibold text-ember-700 underline underline-offset-2" to="../forecast" relative="path">Change-out forecast</Link>}
+      actions={
+        <Link
+          className="flex min-h-touch items-center font-semibold text-ember-700 underline underline-offset-2"
+          to="../forecast"
+          relative="path"
+        >
+          Change-out forecast
+        </Link>
+      }
     >
       <Panel title="Rates">
         <p className="mb-3 max-w-prose">
           Radial ring wear per km a face disc rolls in each ground type, fitted to every normal-wear inspection. Where a ground has a CAI,
           the Gehring estimate from it is the starting point (the prior) until the site’s own inspections outweigh it. The site-only rate is
-          the same fit without the prior; the site share is read off the two (fitted = share × site-only + rest × prior). The cautious P90 rate
-          is what the forecast plans with: never below the fitted rate, and never 0 for a ground whose rate is held at 0.
+          the same fit without the prior; the site share is read off the two (fitted = share × site-only + rest × prior). The cautious P90
+          rate is what the forecast plans with: never below the fitted rate, and never 0 for a ground whose rate is held at 0.
         </p>
-        <DataTable data={report.grounds} columns={rateColumns} exportName="kerfwise-wear-rates" emptyText="No ground types yet: add them to the drive data." />
+        <DataTable
+          data={report.grounds}
+          columns={rateColumns}
+          exportName="kerfwise-wear-rates"
+          emptyText="No ground types yet: add them to the drive data."
+        />
         <dl className="mt-3 grid gap-x-6 gap-y-1 sm:grid-cols-[max-content_1fr]">
           <dt className="font-semibold">Residual standard deviation</dt>
           <dd>
-            {report.residualSdMm == null ? 'not known yet (too few inspections)' : `${fixed(report.residualSdMm, 2)} mm`} from {whole(report.observationCount)} inspections
+            {report.residualSdMm == null ? 'not known yet (too few inspections)' : `${fixed(report.residualSdMm, 2)} mm`} from{' '}
+            {whole(report.observationCount)} inspections
             {report.residualDof > 0 && ` (${whole(report.residualDof)} degrees of freedom)`}
           </dd>
           <dt className="font-semibold">Class factors</dt>
-          <dd>{positionClasses.map((c) => `${positionClassLabels[c]} ${report.classFactors[c]}`).join(' · ')} (face discs are the reference)</dd>
+          <dd>
+            {positionClasses.map((c) => `${positionClassLabels[c]} ${report.classFactors[c]}`).join(' · ')} (face discs are the reference)
+          </dd>
           <dt className="font-semibold">Ring diameter for the prior</dt>
           <dd>{fixed(report.ringDiameterMm, 0)} mm</dd>
         </dl>
@@ -131,13 +169,17 @@ export function WearFitsRoute() {
 
       <Panel title="Measured wear against km rolled">
         {groundId == null ? (
-          <Alert tone="info" title="Nothing to chart yet.">The chart fills in as inspections of discs that rolled in one ground are recorded.</Alert>
+          <Alert tone="info" title="Nothing to chart yet.">
+            The chart fills in as inspections of discs that rolled in one ground are recorded.
+          </Alert>
         ) : (
           <div className="space-y-3">
             <div className="max-w-sm">
               <SelectField label="Ground type" value={groundId} onChange={(e) => setChosen(e.target.value)}>
                 {charted.map(({ ground, count }) => (
-                  <option key={ground.id} value={ground.id}>{ground.name} ({whole(count)} inspections)</option>
+                  <option key={ground.id} value={ground.id}>
+                    {ground.name} ({whole(count)} inspections)
+                  </option>
                 ))}
               </SelectField>
             </div>
@@ -148,10 +190,15 @@ export function WearFitsRoute() {
 
       <Panel title="Sudden failures per 1,000 km">
         <p className="mb-3 max-w-prose">
-          Flat spots, chipped or cracked rings, lost rings and deformed edges stay out of the wear fit. Each is counted against the ground its
-          disc rolled in most since it was fitted.
+          Flat spots, chipped or cracked rings, lost rings and deformed edges stay out of the wear fit. Each is counted against the ground
+          its disc rolled in most since it was fitted.
         </p>
-        <DataTable data={[...report.failures].sort((a, b) => a.groundName.localeCompare(b.groundName))} columns={failureColumns} exportName="kerfwise-sudden-failures" emptyText="No disc has rolled in a known ground yet." />
+        <DataTable
+          data={[...report.failures].sort((a, b) => a.groundName.localeCompare(b.groundName))}
+          columns={failureColumns}
+          exportName="kerfwise-sudden-failures"
+          emptyText="No disc has rolled in a known ground yet."
+        />
       </Panel>
 
       <Panel title="Abnormal wear found">

@@ -38,27 +38,67 @@ export function wearBand(p: Pick<LayoutPosition, 'current' | 'lastWearMm' | 'wea
 }
 
 /** One disc: fill by band, number inside, and the non-colour marks. Drawn in SVG user units. */
-function Disc({ band, x, y, size, label, hatchId }: { band: WearBand; x: number; y: number; size: number; label?: string; hatchId: string }) {
-  const fill = band.kind === 'measured' ? band.fill : band.kind === 'over' ? overLimitFill : band.kind === 'empty' ? `url(#${hatchId})` : '#ffffff';
+function Disc({
+  band,
+  x,
+  y,
+  size,
+  label,
+  hatchId,
+}: {
+  band: WearBand;
+  x: number;
+  y: number;
+  size: number;
+  label?: string;
+  hatchId: string;
+}) {
+  const fill =
+    band.kind === 'measured' ? band.fill : band.kind === 'over' ? overLimitFill : band.kind === 'empty' ? `url(#${hatchId})` : '#ffffff';
   const text = band.kind === 'measured' ? band.text : band.kind === 'over' ? '#ffffff' : ink;
   const fontSize = label && label.length > 2 ? size * 0.72 : size * 0.95;
   return (
     <>
       {band.kind === 'over' && <circle cx={x} cy={y} r={size * 1.2} fill="none" stroke={ink} strokeWidth={size * 0.24} />}
       <circle
-        cx={x} cy={y} r={size} fill={fill} stroke={ink}
+        cx={x}
+        cy={y}
+        r={size}
+        fill={fill}
+        stroke={ink}
         strokeWidth={size * (band.kind === 'over' ? 0.14 : 0.09)}
-        strokeDasharray={band.kind === 'unmeasured' ? `${size * 0.32} ${size * 0.2}` : band.kind === 'empty' ? `${size * 0.08} ${size * 0.22}` : undefined}
+        strokeDasharray={
+          band.kind === 'unmeasured' ? `${size * 0.32} ${size * 0.2}` : band.kind === 'empty' ? `${size * 0.08} ${size * 0.22}` : undefined
+        }
       />
       {label && (
-        <text x={x} y={y} fill={text} fontSize={fontSize} fontWeight={700} textAnchor="middle" dominantBaseline="central" pointerEvents="none">
+        <text
+          x={x}
+          y={y}
+          fill={text}
+          fontSize={fontSize}
+          fontWeight={700}
+          textAnchor="middle"
+          dominantBaseline="central"
+          pointerEvents="none"
+        >
           {label}
         </text>
       )}
       {band.kind === 'over' && (
         <g pointerEvents="none">
           <circle cx={x + size * 0.95} cy={y - size * 0.95} r={size * 0.5} fill="#ffffff" stroke={ink} strokeWidth={size * 0.1} />
-          <text x={x + size * 0.95} y={y - size * 0.95} fill={ink} fontSize={size * 0.75} fontWeight={700} textAnchor="middle" dominantBaseline="central">!</text>
+          <text
+            x={x + size * 0.95}
+            y={y - size * 0.95}
+            fill={ink}
+            fontSize={size * 0.75}
+            fontWeight={700}
+            textAnchor="middle"
+            dominantBaseline="central"
+          >
+            !
+          </text>
         </g>
       )}
     </>
@@ -114,7 +154,9 @@ export function WearLegend({ items = legend }: { items?: WearBand[] }) {
       {items.map((band) => (
         <li key={band.label} className="flex items-center gap-2">
           <svg viewBox="-16 -16 32 32" className="size-7 shrink-0" aria-hidden="true">
-            <defs><Hatch id={hatchId} scale={4} /></defs>
+            <defs>
+              <Hatch id={hatchId} scale={4} />
+            </defs>
             <Disc band={band} x={0} y={0} size={9} hatchId={hatchId} />
           </svg>
           <span>{band.label}</span>
@@ -143,7 +185,10 @@ export function CutterheadPicture({ projectId, excavatedDiameterM, positions, ba
   const hatchId = `head-hatch-${useId().replace(/[^a-zA-Z0-9]/g, '')}`;
   const headRadiusMm = (excavatedDiameterM * 1000) / 2;
   const discs = useMemo(() => {
-    const angles = layOutAnglesDeg(positions, positions.map((p) => p.number));
+    const angles = layOutAnglesDeg(
+      positions,
+      positions.map((p) => p.number),
+    );
     const points = positions.map((p, i) => discPointMm(p.trackRadiusMm, angles[i]));
     const sizes = discRadiiMm(points, headRadiusMm);
     return positions.map((p, i) => {
@@ -170,18 +215,40 @@ export function CutterheadPicture({ projectId, excavatedDiameterM, positions, ba
       role="group"
       aria-label={`Cutterhead seen from the face, ${positions.length} positions`}
     >
-      <defs><Hatch id={hatchId} scale={headRadiusMm / 60} /></defs>
+      <defs>
+        <Hatch id={hatchId} scale={headRadiusMm / 60} />
+      </defs>
       <circle r={headRadiusMm} fill="#f4f5f3" stroke="#4f564b" strokeWidth={headRadiusMm / 120} />
       {guideRadiiM.map((m) => (
         <g key={m} aria-hidden="true">
-          <circle r={m * 1000} fill="none" stroke="#aab0a5" strokeWidth={headRadiusMm / 400} strokeDasharray={`${headRadiusMm / 80} ${headRadiusMm / 80}`} />
-          <text x={headRadiusMm / 100} y={-m * 1000 - headRadiusMm / 100} fill="#656d60" fontSize={headRadiusMm / 22}>{m} m</text>
+          <circle
+            r={m * 1000}
+            fill="none"
+            stroke="#aab0a5"
+            strokeWidth={headRadiusMm / 400}
+            strokeDasharray={`${headRadiusMm / 80} ${headRadiusMm / 80}`}
+          />
+          <text x={headRadiusMm / 100} y={-m * 1000 - headRadiusMm / 100} fill="#656d60" fontSize={headRadiusMm / 22}>
+            {m} m
+          </text>
         </g>
       ))}
       <line aria-hidden="true" x1={-headRadiusMm} x2={headRadiusMm} y1={0} y2={0} stroke="#cdd1ca" strokeWidth={headRadiusMm / 400} />
       <line aria-hidden="true" x1={0} x2={0} y1={-headRadiusMm} y2={headRadiusMm} stroke="#cdd1ca" strokeWidth={headRadiusMm / 400} />
-      <text aria-hidden="true" x={0} y={-headRadiusMm - pad * 0.35} textAnchor="middle" fill="#4f564b" fontSize={headRadiusMm / 18}>0°</text>
-      <text aria-hidden="true" x={headRadiusMm + pad * 0.5} y={0} textAnchor="middle" dominantBaseline="central" fill="#4f564b" fontSize={headRadiusMm / 18}>90°</text>
+      <text aria-hidden="true" x={0} y={-headRadiusMm - pad * 0.35} textAnchor="middle" fill="#4f564b" fontSize={headRadiusMm / 18}>
+        0°
+      </text>
+      <text
+        aria-hidden="true"
+        x={headRadiusMm + pad * 0.5}
+        y={0}
+        textAnchor="middle"
+        dominantBaseline="central"
+        fill="#4f564b"
+        fontSize={headRadiusMm / 18}
+      >
+        90°
+      </text>
       {discs.map(({ p, x, y, size, band, angleDeg }) => {
         const wear = p.lastWearMm == null ? '' : `, wear ${p.lastWearMm} of ${p.wearLimitMm} mm`;
         const name = `Position ${p.number}: ${positionClassLabels[p.positionClass]}, ${band.label.toLowerCase()}${wear}${p.current ? `, serial ${p.current.serial}` : ''}`;
@@ -196,7 +263,15 @@ export function CutterheadPicture({ projectId, excavatedDiameterM, positions, ba
             onKeyDown={(e) => onKey(e, p.id)}
           >
             <title>{`${name}; radius ${p.trackRadiusMm} mm, ${Math.round(angleDeg)}°${p.angleDeg == null ? ' (laid out evenly)' : ''}`}</title>
-            <circle cx={x} cy={y} r={size * 1.5} fill="none" stroke={focusRing} strokeWidth={size * 0.28} className="opacity-0 group-hover:opacity-60 group-focus-visible:opacity-100" />
+            <circle
+              cx={x}
+              cy={y}
+              r={size * 1.5}
+              fill="none"
+              stroke={focusRing}
+              strokeWidth={size * 0.28}
+              className="opacity-0 group-hover:opacity-60 group-focus-visible:opacity-100"
+            />
             <Disc band={band} x={x} y={y} size={size} label={String(p.number)} hatchId={hatchId} />
           </g>
         );

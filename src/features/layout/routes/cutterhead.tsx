@@ -30,7 +30,11 @@ export function CutterheadRoute() {
   const columns = [
     col.accessor('number', {
       header: 'Position',
-      cell: ({ row }) => <Link className={linkClass} to={paths.position(projectId, row.original.id)}>{row.original.number}</Link>,
+      cell: ({ row }) => (
+        <Link className={linkClass} to={paths.position(projectId, row.original.id)}>
+          {row.original.number}
+        </Link>
+      ),
     }),
     col.accessor((p) => positionClassLabels[p.positionClass], { id: 'class', header: 'Class' }),
     col.accessor('trackRadiusMm', { header: 'Radius (mm)' }),
@@ -39,11 +43,21 @@ export function CutterheadRoute() {
       header: 'Serial now',
       cell: ({ row }) => {
         const c = row.original.current;
-        return c ? <Link className={`${linkClass} whitespace-nowrap`} to={paths.cutter(projectId, c.cutterId)}>{c.serial}</Link> : <span className="text-basalt-600">none</span>;
+        return c ? (
+          <Link className={`${linkClass} whitespace-nowrap`} to={paths.cutter(projectId, c.cutterId)}>
+            {c.serial}
+          </Link>
+        ) : (
+          <span className="text-basalt-600">none</span>
+        );
       },
     }),
     col.accessor('lastWearMm', { header: 'Last wear (mm)', cell: ({ getValue }) => getValue() ?? '—' }),
-    col.accessor((p) => formatSiteDate(p.lastMeasuredAt, project.siteTimeZone), { id: 'measured', header: 'Measured', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    col.accessor((p) => formatSiteDate(p.lastMeasuredAt, project.siteTimeZone), {
+      id: 'measured',
+      header: 'Measured',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
     col.accessor('wearLimitMm', { header: 'Limit (mm)' }),
     col.accessor((p) => (p.lastWearMm == null ? null : Math.round((100 * p.lastWearMm) / p.wearLimitMm)), {
       id: 'percent',
@@ -63,15 +77,28 @@ export function CutterheadRoute() {
     <Page title="Cutterhead">
       {positions.length === 0 ? (
         <Alert title="No layout yet">
-          {roleCan(project.role, 'layout.edit')
-            ? <>Enter or import the positions on the <Link className={linkClass} to={paths.layout(projectId)}>layout page</Link>.</>
-            : 'The planner has not entered the cutterhead layout yet.'}
+          {roleCan(project.role, 'layout.edit') ? (
+            <>
+              Enter or import the positions on the{' '}
+              <Link className={linkClass} to={paths.layout(projectId)}>
+                layout page
+              </Link>
+              .
+            </>
+          ) : (
+            'The planner has not entered the cutterhead layout yet.'
+          )}
         </Alert>
       ) : (
         <>
           <Panel>
             <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_18rem] lg:items-start">
-              <CutterheadPicture projectId={projectId} excavatedDiameterM={project.excavatedDiameterM} positions={positions} bandOf={view === 'forecast' ? forecastBandOf : wearBand} />
+              <CutterheadPicture
+                projectId={projectId}
+                excavatedDiameterM={project.excavatedDiameterM}
+                positions={positions}
+                bandOf={view === 'forecast' ? forecastBandOf : wearBand}
+              />
               <div className="space-y-3">
                 <div role="group" aria-label="Colour the discs by" className="flex flex-wrap gap-2">
                   {(['wear', 'forecast'] as const).map((v) => (
@@ -92,8 +119,8 @@ export function CutterheadRoute() {
                   {positions.length} positions · {over === 0 ? 'none over the limit' : `${over} over the limit`}
                 </p>
                 <p className="text-caption text-basalt-600">
-                  Seen from the face, {project.excavatedDiameterM.toFixed(2)} m bore. Angles clockwise from the top; positions
-                  without an angle are laid out evenly. Select a disc to open its position.
+                  Seen from the face, {project.excavatedDiameterM.toFixed(2)} m bore. Angles clockwise from the top; positions without an
+                  angle are laid out evenly. Select a disc to open its position.
                 </p>
                 <WearLegend items={view === 'forecast' ? remainingLegend : undefined} />
               </div>

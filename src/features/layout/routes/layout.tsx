@@ -54,7 +54,14 @@ interface LayoutForm {
 
 const toRows = (positions: LayoutPosition[]): FormRow[] =>
   positions.map(({ number, trackRadiusMm, positionClass, discSizeIn, tiltDeg, wearLimitMm, twinDisc, angleDeg }) => ({
-    number, trackRadiusMm, positionClass, discSizeIn, tiltDeg, wearLimitMm, twinDisc, angleDeg,
+    number,
+    trackRadiusMm,
+    positionClass,
+    discSizeIn,
+    tiltDeg,
+    wearLimitMm,
+    twinDisc,
+    angleDeg,
   }));
 
 const blankRow = (after: FormRow | undefined): FormRow => ({
@@ -82,7 +89,8 @@ const fieldLabels: Record<keyof FormRow, string> = {
 /** Blank inputs: required numbers become undefined (zod says "must be a number"), optional ones null. */
 const required = { setValueAs: (v: unknown) => (v === '' ? undefined : v) };
 const optional = { setValueAs: (v: unknown) => (v === '' || v == null ? null : v) };
-const cellInput = 'block min-h-touch rounded-md border-2 border-basalt-300 bg-white px-2 text-body aria-[invalid=true]:border-alarm-500 [&[readonly]]:bg-basalt-100';
+const cellInput =
+  'block min-h-touch rounded-md border-2 border-basalt-300 bg-white px-2 text-body aria-[invalid=true]:border-alarm-500 [&[readonly]]:bg-basalt-100';
 
 const savedText = (r: LayoutSaved) => `${r.created} new, ${r.updated} changed, ${r.unchanged} unchanged.`;
 
@@ -100,45 +108,62 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
   // a saved position has history. Rows added since the last save can be.
   const savedCount = positions.length;
 
-  const onSave = form.handleSubmit(async (input) => {
-    setMessage(null);
-    try {
-      const saved = await save.mutateAsync(input);
-      setMessage({ tone: 'success', text: `Layout saved: ${savedText(saved)} Changes to wear limits are kept in the audit log.` });
-    } catch (err) {
-      if (!(err instanceof ApiError)) {
-        setMessage({ tone: 'error', text: 'Saving failed. Try again.' });
-        return;
+  const onSave = form.handleSubmit(
+    async (input) => {
+      setMessage(null);
+      try {
+        const saved = await save.mutateAsync(input);
+        setMessage({ tone: 'success', text: `Layout saved: ${savedText(saved)} Changes to wear limits are kept in the audit log.` });
+      } catch (err) {
+        if (!(err instanceof ApiError)) {
+          setMessage({ tone: 'error', text: 'Saving failed. Try again.' });
+          return;
+        }
+        const rows = form.getValues('positions');
+        const issues = err.issues.map((issue) => {
+          const m = /^positions\.(\d+)\.(\w+)$/.exec(issue.path);
+          if (!m) return issue.message;
+          form.setError(issue.path as FieldPath<LayoutForm>, { type: 'server', message: issue.message });
+          return `Row ${Number(m[1]) + 1} (position ${rows[Number(m[1])]?.number ?? '?'}): ${issue.message}`;
+        });
+        setMessage({ tone: 'error', text: err.message, issues });
       }
-      const rows = form.getValues('positions');
-      const issues = err.issues.map((issue) => {
-        const m = /^positions\.(\d+)\.(\w+)$/.exec(issue.path);
-        if (!m) return issue.message;
-        form.setError(issue.path as FieldPath<LayoutForm>, { type: 'server', message: issue.message });
-        return `Row ${Number(m[1]) + 1} (position ${rows[Number(m[1])]?.number ?? '?'}): ${issue.message}`;
-      });
-      setMessage({ tone: 'error', text: err.message, issues });
-    }
-  }, () => setMessage({ tone: 'error', text: 'Some rows need attention; they are marked below. Nothing was saved.' }));
+    },
+    () => setMessage({ tone: 'error', text: 'Some rows need attention; they are marked below. Nothing was saved.' }),
+  );
 
   const layOutEvenly = () => {
     const rows = form.getValues('positions');
-    const slots = rows.map((r) => ({ trackRadiusMm: Number(r.trackRadiusMm) || 0, angleDeg: r.angleDeg == null || r.angleDeg === '' ? null : Number(r.angleDeg) }));
-    const angles = layOutAnglesDeg(slots, rows.map((r) => Number(r.number)));
+    const slots = rows.map((r) => ({
+      trackRadiusMm: Number(r.trackRadiusMm) || 0,
+      angleDeg: r.angleDeg == null || r.angleDeg === '' ? null : Number(r.angleDeg),
+    }));
+    const angles = layOutAnglesDeg(
+      slots,
+      rows.map((r) => Number(r.number)),
+    );
     let filled = 0;
     slots.forEach((s, i) => {
       if (s.angleDeg != null) return;
       form.setValue(`positions.${i}.angleDeg`, angles[i], { shouldDirty: true });
       filled++;
     });
-    setMessage({ tone: 'success', text: filled === 0 ? 'Every position already has an angle.' : `Angles filled in for ${filled} position(s). Save to keep them.` });
+    setMessage({
+      tone: 'success',
+      text: filled === 0 ? 'Every position already has an angle.' : `Angles filled in for ${filled} position(s). Save to keep them.`,
+    });
   };
 
   const fieldError = (i: number, f: keyof FormRow) => errors?.[i]?.[f]?.message;
   /** A row's problems go in a full-width line under it, so the columns stay narrow. */
   const errorsId = (i: number) => `layout-row-${i}-problems`;
   const invalid = (i: number, f: keyof FormRow) => (fieldError(i, f) ? { 'aria-invalid': true, 'aria-describedby': errorsId(i) } : {});
-  const input = (i: number, f: keyof FormRow, width: string, opts: { mode?: 'numeric' | 'decimal'; optional?: boolean; readOnly?: boolean } = {}) => (
+  const input = (
+    i: number,
+    f: keyof FormRow,
+    width: string,
+    opts: { mode?: 'numeric' | 'decimal'; optional?: boolean; readOnly?: boolean } = {},
+  ) => (
     <td className={`px-1 py-1 align-top ${f === 'number' ? 'sticky left-0 z-10 bg-inherit' : ''}`}>
       <input
         aria-label={`${fieldLabels[f]}, row ${i + 1}`}
@@ -156,7 +181,13 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
       <form onSubmit={onSave} noValidate className="space-y-4">
         {message && (
           <Alert tone={message.tone} title={message.text}>
-            {message.issues && message.issues.length > 0 && <ul className="list-disc pl-6">{message.issues.map((t) => <li key={t}>{t}</li>)}</ul>}
+            {message.issues && message.issues.length > 0 && (
+              <ul className="list-disc pl-6">
+                {message.issues.map((t) => (
+                  <li key={t}>{t}</li>
+                ))}
+              </ul>
+            )}
           </Alert>
         )}
         <div className="relative overflow-x-auto rounded-lg border border-basalt-200">
@@ -164,13 +195,19 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
             <thead className="bg-basalt-100 text-caption">
               <tr>
                 {['No.', 'Radius (mm)', 'Class', 'Disc (in)', 'Tilt (°)', 'Limit (mm)', 'Twin', 'Angle (°)', ''].map((h, i) => (
-                  <th key={i} scope="col" className={`px-1 py-2 font-semibold ${i === 0 ? 'sticky left-0 z-10 bg-basalt-100' : ''}`}>{h}</th>
+                  <th key={i} scope="col" className={`px-1 py-2 font-semibold ${i === 0 ? 'sticky left-0 z-10 bg-basalt-100' : ''}`}>
+                    {h}
+                  </th>
                 ))}
               </tr>
             </thead>
             <tbody>
               {fields.length === 0 && (
-                <tr><td colSpan={9} className="px-3 py-4 text-basalt-600">No positions yet. Import a CSV file above, or add them one by one.</td></tr>
+                <tr>
+                  <td colSpan={9} className="px-3 py-4 text-basalt-600">
+                    No positions yet. Import a CSV file above, or add them one by one.
+                  </td>
+                </tr>
               )}
               {fields.map((field, i) => {
                 const problems = (Object.keys(fieldLabels) as (keyof FormRow)[]).flatMap((f) => {
@@ -183,8 +220,17 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
                       {input(i, 'number', 'w-16', { mode: 'numeric', readOnly: i < savedCount })}
                       {input(i, 'trackRadiusMm', 'w-20')}
                       <td className="px-1 py-1 align-top">
-                        <select aria-label={`Class, row ${i + 1}`} className={`${cellInput} w-24`} {...invalid(i, 'positionClass')} {...form.register(`positions.${i}.positionClass`)}>
-                          {positionClasses.map((c) => <option key={c} value={c}>{positionClassLabels[c]}</option>)}
+                        <select
+                          aria-label={`Class, row ${i + 1}`}
+                          className={`${cellInput} w-24`}
+                          {...invalid(i, 'positionClass')}
+                          {...form.register(`positions.${i}.positionClass`)}
+                        >
+                          {positionClasses.map((c) => (
+                            <option key={c} value={c}>
+                              {positionClassLabels[c]}
+                            </option>
+                          ))}
                         </select>
                       </td>
                       {input(i, 'discSizeIn', 'w-16')}
@@ -192,21 +238,34 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
                       {input(i, 'wearLimitMm', 'w-16')}
                       <td className="px-1 py-1 text-center align-top">
                         <label className="inline-flex min-h-touch min-w-touch items-center justify-center">
-                          <span className="sr-only">{fieldLabels.twinDisc}, row {i + 1}</span>
-                          <input type="checkbox" className="size-6 accent-ember-600" {...invalid(i, 'twinDisc')} {...form.register(`positions.${i}.twinDisc`)} />
+                          <span className="sr-only">
+                            {fieldLabels.twinDisc}, row {i + 1}
+                          </span>
+                          <input
+                            type="checkbox"
+                            className="size-6 accent-ember-600"
+                            {...invalid(i, 'twinDisc')}
+                            {...form.register(`positions.${i}.twinDisc`)}
+                          />
                         </label>
                       </td>
                       {input(i, 'angleDeg', 'w-16', { optional: true })}
                       <td className="px-1 py-1 align-top">
                         {i >= savedCount && (
-                          <Button variant="ghost" aria-label={`Remove row ${i + 1}`} title="Remove this new row" onClick={() => remove(i)}>✕</Button>
+                          <Button variant="ghost" aria-label={`Remove row ${i + 1}`} title="Remove this new row" onClick={() => remove(i)}>
+                            ✕
+                          </Button>
                         )}
                       </td>
                     </tr>
                     {problems.length > 0 && (
                       <tr className="bg-alarm-100">
                         <td colSpan={9} id={errorsId(i)} className="px-2 pb-2 text-caption font-semibold text-alarm-700">
-                          {problems.map((p) => <p key={p.f}>{fieldLabels[p.f]}: {p.message}</p>)}
+                          {problems.map((p) => (
+                            <p key={p.f}>
+                              {fieldLabels[p.f]}: {p.message}
+                            </p>
+                          ))}
                         </td>
                       </tr>
                     )}
@@ -217,21 +276,40 @@ function LayoutEditor({ projectId, positions }: { projectId: string; positions: 
           </table>
         </div>
         <div className="flex flex-wrap gap-2">
-          <Button type="submit" disabled={form.formState.isSubmitting || fields.length === 0}>Save layout</Button>
-          <Button variant="secondary" onClick={() => append(blankRow(form.getValues('positions').at(-1)))}>Add a position</Button>
-          <Button variant="secondary" onClick={layOutEvenly}>Lay out angles evenly</Button>
-          <Button variant="ghost" disabled={!form.formState.isDirty} onClick={() => { form.reset(values); setMessage(null); }}>Undo changes</Button>
+          <Button type="submit" disabled={form.formState.isSubmitting || fields.length === 0}>
+            Save layout
+          </Button>
+          <Button variant="secondary" onClick={() => append(blankRow(form.getValues('positions').at(-1)))}>
+            Add a position
+          </Button>
+          <Button variant="secondary" onClick={layOutEvenly}>
+            Lay out angles evenly
+          </Button>
+          <Button
+            variant="ghost"
+            disabled={!form.formState.isDirty}
+            onClick={() => {
+              form.reset(values);
+              setMessage(null);
+            }}
+          >
+            Undo changes
+          </Button>
         </div>
         <p className="text-caption text-basalt-600">
-          Tilt applies to gauge positions; leave it blank elsewhere. Angles are degrees clockwise from the top, seen from the
-          face; blank ones are laid out evenly on the picture. A saved position keeps its number and cannot be removed here.
+          Tilt applies to gauge positions; leave it blank elsewhere. Angles are degrees clockwise from the top, seen from the face; blank
+          ones are laid out evenly on the picture. A saved position keeps its number and cannot be removed here.
         </p>
       </form>
     </Panel>
   );
 }
 
-interface ImportProblem { row: string; column: string; message: string }
+interface ImportProblem {
+  row: string;
+  column: string;
+  message: string;
+}
 
 function CsvImport({ projectId }: { projectId: string }) {
   const importCsv = useImportLayoutCsv(projectId);
@@ -249,15 +327,16 @@ function CsvImport({ projectId }: { projectId: string }) {
       const notes = (saved.warnings ?? []).map((w) => ({ row: String(w.row), column: w.column, message: w.message }));
       setResult({ tone: 'success', text: `${file.name} imported: ${savedText(saved)}`, problems: notes });
     } catch (err) {
-      const problems = err instanceof ApiError
-        ? err.issues.map((issue) => {
-          const m = /^row (\d+)(?:\.(\w+))?/.exec(issue.path);
-          const field = m?.[2] as keyof PositionInput | undefined;
-          // The reader names the column as the file wrote it; older answers only had the field.
-          const written = (issue as { column?: string }).column;
-          return { row: m?.[1] ?? '—', column: written || (field ? csvColumnOf[field] ?? field : '—'), message: issue.message };
-        })
-        : [];
+      const problems =
+        err instanceof ApiError
+          ? err.issues.map((issue) => {
+              const m = /^row (\d+)(?:\.(\w+))?/.exec(issue.path);
+              const field = m?.[2] as keyof PositionInput | undefined;
+              // The reader names the column as the file wrote it; older answers only had the field.
+              const written = (issue as { column?: string }).column;
+              return { row: m?.[1] ?? '—', column: written || (field ? (csvColumnOf[field] ?? field) : '—'), message: issue.message };
+            })
+          : [];
       setResult({ tone: 'error', text: err instanceof ApiError ? err.message : 'The import failed. Try again.', problems });
     } finally {
       setBusy(false);
@@ -269,8 +348,7 @@ function CsvImport({ projectId }: { projectId: string }) {
       <div className="space-y-3">
         <p>
           One row per position with the columns <code className="text-caption">{csvFields.map((f) => csvColumnOf[f]).join(', ')}</code>.
-          Every row is checked; if any row has a problem, nothing is imported. Rows with a position number already in the layout
-          update it.
+          Every row is checked; if any row has a problem, nothing is imported. Rows with a position number already in the layout update it.
         </p>
         <label className="inline-flex min-h-touch cursor-pointer items-center rounded-md border-2 border-basalt-300 bg-white px-4 font-semibold focus-within:outline-3 focus-within:outline-ember-500">
           {busy ? 'Importing…' : 'Choose a CSV file'}
@@ -281,11 +359,23 @@ function CsvImport({ projectId }: { projectId: string }) {
             {result.problems.length > 0 && (
               <div className="mt-2 overflow-x-auto">
                 <table className="min-w-full text-left text-caption">
-                  <thead><tr><th scope="col" className="pr-4">Row</th><th scope="col" className="pr-4">Column</th><th scope="col">Problem</th></tr></thead>
+                  <thead>
+                    <tr>
+                      <th scope="col" className="pr-4">
+                        Row
+                      </th>
+                      <th scope="col" className="pr-4">
+                        Column
+                      </th>
+                      <th scope="col">Problem</th>
+                    </tr>
+                  </thead>
                   <tbody>
                     {result.problems.map((p, i) => (
                       <tr key={i} className="border-t border-alarm-500/30">
-                        <td className="pr-4 font-semibold">{p.row}</td><td className="pr-4">{p.column}</td><td>{p.message}</td>
+                        <td className="pr-4 font-semibold">{p.row}</td>
+                        <td className="pr-4">{p.column}</td>
+                        <td>{p.message}</td>
                       </tr>
                     ))}
                   </tbody>
@@ -320,7 +410,10 @@ export function LayoutRoute() {
     <Page
       title="Cutterhead layout"
       actions={
-        <Button variant="secondary" onClick={() => downloadCsv(positions.length ? 'kerfwise-layout.csv' : 'kerfwise-layout-template.csv', layoutCsv(positions))}>
+        <Button
+          variant="secondary"
+          onClick={() => downloadCsv(positions.length ? 'kerfwise-layout.csv' : 'kerfwise-layout-template.csv', layoutCsv(positions))}
+        >
           {positions.length ? 'Download layout CSV' : 'Download CSV template'}
         </Button>
       }
@@ -335,7 +428,12 @@ export function LayoutRoute() {
           <LayoutEditor projectId={projectId} positions={positions} />
         </>
       ) : (
-        <DataTable data={positions} columns={readOnlyColumns} exportName="kerfwise-layout" emptyText="The planner has not entered the layout yet." />
+        <DataTable
+          data={positions}
+          columns={readOnlyColumns}
+          exportName="kerfwise-layout"
+          emptyText="The planner has not entered the layout yet."
+        />
       )}
     </Page>
   );

@@ -38,11 +38,26 @@ function WearChart({ detail, axis, timeZone, reversed }: { detail: PositionDetai
       <ResponsiveContainer width="100%" height="100%">
         <LineChart margin={{ top: 16, right: 40, bottom: 8, left: 0 }}>
           <CartesianGrid stroke="#cdd1ca" strokeDasharray="3 3" />
-          <XAxis type="number" dataKey="x" domain={['dataMin', 'dataMax']} tickFormatter={formatX} minTickGap={32} reversed={reversed} stroke="#4f564b" fontSize={14} />
+          <XAxis
+            type="number"
+            dataKey="x"
+            domain={['dataMin', 'dataMax']}
+            tickFormatter={formatX}
+            minTickGap={32}
+            reversed={reversed}
+            stroke="#4f564b"
+            fontSize={14}
+          />
           <YAxis domain={[0, Math.ceil(maxWear * 1.1)]} unit=" mm" stroke="#4f564b" fontSize={14} width={64} />
           <Tooltip labelFormatter={(v) => formatX(Number(v))} formatter={(v) => [`${v} mm`, 'Wear']} />
           <Legend />
-          <ReferenceLine y={limit} stroke="#1d201c" strokeWidth={2} strokeDasharray="8 4" label={{ value: `Limit ${limit} mm`, position: 'insideTopLeft', fill: '#1d201c', fontSize: 14 }} />
+          <ReferenceLine
+            y={limit}
+            stroke="#1d201c"
+            strokeWidth={2}
+            strokeDasharray="8 4"
+            label={{ value: `Limit ${limit} mm`, position: 'insideTopLeft', fill: '#1d201c', fontSize: 14 }}
+          />
           {series.map((s, i) => (
             <Line
               key={s.period.id}
@@ -73,10 +88,21 @@ export function PositionRoute() {
 
   const mCol = createColumnHelper<Measurement>();
   const measurementColumns = [
-    mCol.accessor((m) => formatSiteDate(m.roundAt, tz), { id: 'date', header: 'Round', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
-    mCol.accessor('chainageM', { header: 'Chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
+    mCol.accessor((m) => formatSiteDate(m.roundAt, tz), {
+      id: 'date',
+      header: 'Round',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
+    mCol.accessor('chainageM', {
+      header: 'Chainage',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
+    }),
     mCol.accessor('ringNumber', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
-    mCol.accessor((m) => m.serial ?? '', { id: 'serial', header: 'Serial measured', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+    mCol.accessor((m) => m.serial ?? '', {
+      id: 'serial',
+      header: 'Serial measured',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
     mCol.accessor('wearMm', { header: 'Wear (mm)', cell: ({ getValue }) => getValue() ?? 'not measured' }),
     mCol.accessor((m) => (m.wearMm == null ? null : Math.round((100 * m.wearMm) / position.wearLimitMm)), {
       id: 'percent',
@@ -87,20 +113,49 @@ export function PositionRoute() {
       },
     }),
     mCol.accessor((m) => conditionsText(m.conditions), { id: 'conditions', header: 'Condition' }),
-    mCol.accessor((m) => (m.action === 'changed' ? `Changed: ${m.removedSerial ?? 'none'} → ${m.fittedSerial ?? '?'} (${m.changeReason ?? ''})` : ''), {
-      id: 'action', header: 'Action', cell: ({ getValue }) => <span className="block min-w-48">{getValue()}</span>,
+    mCol.accessor(
+      (m) => (m.action === 'changed' ? `Changed: ${m.removedSerial ?? 'none'} → ${m.fittedSerial ?? '?'} (${m.changeReason ?? ''})` : ''),
+      {
+        id: 'action',
+        header: 'Action',
+        cell: ({ getValue }) => <span className="block min-w-48">{getValue()}</span>,
+      },
+    ),
+    mCol.accessor((m) => [m.remeasured ? 'Re-measured (correction).' : '', m.note].filter(Boolean).join(' '), {
+      id: 'note',
+      header: 'Note',
     }),
-    mCol.accessor((m) => [m.remeasured ? 'Re-measured (correction).' : '', m.note].filter(Boolean).join(' '), { id: 'note', header: 'Note' }),
   ];
 
   const pCol = createColumnHelper<FittedPeriod>();
   const periodColumns = [
-    pCol.accessor('serial', { header: 'Serial', cell: ({ row }) => <Link className={`${linkClass} whitespace-nowrap`} to={paths.cutter(projectId, row.original.cutterId)}>{row.original.serial}</Link> }),
-    pCol.accessor((p) => formatSiteDate(p.fittedAt, tz), { id: 'fitted', header: 'Fitted', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
-    pCol.accessor('fittedChainageM', { header: 'At chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
+    pCol.accessor('serial', {
+      header: 'Serial',
+      cell: ({ row }) => (
+        <Link className={`${linkClass} whitespace-nowrap`} to={paths.cutter(projectId, row.original.cutterId)}>
+          {row.original.serial}
+        </Link>
+      ),
+    }),
+    pCol.accessor((p) => formatSiteDate(p.fittedAt, tz), {
+      id: 'fitted',
+      header: 'Fitted',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
+    pCol.accessor('fittedChainageM', {
+      header: 'At chainage',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
+    }),
     pCol.accessor('fittedRing', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
-    pCol.accessor((p) => (p.removedAt ? formatSiteDate(p.removedAt, tz) : 'still fitted'), { id: 'removed', header: 'Removed', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
-    pCol.accessor('removedChainageM', { header: 'At chainage', cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span> }),
+    pCol.accessor((p) => (p.removedAt ? formatSiteDate(p.removedAt, tz) : 'still fitted'), {
+      id: 'removed',
+      header: 'Removed',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+    }),
+    pCol.accessor('removedChainageM', {
+      header: 'At chainage',
+      cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
+    }),
     pCol.accessor('removedRing', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
     pCol.accessor((p) => p.removalReason ?? '', { id: 'reason', header: 'Reason' }),
     pCol.accessor((p) => conditionsText(p.removalConditions), { id: 'condition', header: 'Condition when removed' }),
@@ -108,45 +163,88 @@ export function PositionRoute() {
 
   const roundOfEntry = new Map(measurements.map((m) => [m.id, m]));
   return (
-    <Page title={`Position ${position.number}`} actions={<Link className={`${linkClass} flex min-h-touch items-center`} to={paths.cutterhead(projectId)}>Back to the cutterhead</Link>}>
+    <Page
+      title={`Position ${position.number}`}
+      actions={
+        <Link className={`${linkClass} flex min-h-touch items-center`} to={paths.cutterhead(projectId)}>
+          Back to the cutterhead
+        </Link>
+      }
+    >
       <Panel title="The position">
         <dl className="grid gap-x-6 gap-y-2 sm:grid-cols-[max-content_1fr]">
           <dt className="font-semibold">Class</dt>
-          <dd>{positionClassLabels[position.positionClass]}{position.twinDisc ? ', twin discs' : ''}{position.tiltDeg != null ? `, tilted ${position.tiltDeg}°` : ''}</dd>
-          <dt className="font-semibold">Track radius</dt><dd>{position.trackRadiusMm} mm</dd>
-          <dt className="font-semibold">Disc size</dt><dd>{position.discSizeIn}″</dd>
-          <dt className="font-semibold">Wear limit</dt><dd>{position.wearLimitMm} mm</dd>
+          <dd>
+            {positionClassLabels[position.positionClass]}
+            {position.twinDisc ? ', twin discs' : ''}
+            {position.tiltDeg != null ? `, tilted ${position.tiltDeg}°` : ''}
+          </dd>
+          <dt className="font-semibold">Track radius</dt>
+          <dd>{position.trackRadiusMm} mm</dd>
+          <dt className="font-semibold">Disc size</dt>
+          <dd>{position.discSizeIn}″</dd>
+          <dt className="font-semibold">Wear limit</dt>
+          <dd>{position.wearLimitMm} mm</dd>
           <dt className="font-semibold">Serial now</dt>
           <dd>
             {current ? (
               <>
-                <Link className={linkClass} to={paths.cutter(projectId, current.cutterId)}>{current.serial}</Link>
-                {' '}since {formatSiteDate(current.fittedAt, tz)} at {formatChainage(current.fittedChainageM)}{current.fittedRing != null ? `, ring ${current.fittedRing}` : ''}
+                <Link className={linkClass} to={paths.cutter(projectId, current.cutterId)}>
+                  {current.serial}
+                </Link>{' '}
+                since {formatSiteDate(current.fittedAt, tz)} at {formatChainage(current.fittedChainageM)}
+                {current.fittedRing != null ? `, ring ${current.fittedRing}` : ''}
               </>
-            ) : 'No cutter fitted'}
+            ) : (
+              'No cutter fitted'
+            )}
           </dd>
           <dt className="font-semibold">Last wear</dt>
           <dd>
-            {lastOnCurrent?.wearMm != null
-              ? <>{lastOnCurrent.wearMm} mm on {formatSiteDate(lastOnCurrent.roundAt, tz)} ({Math.round((100 * lastOnCurrent.wearMm) / position.wearLimitMm)} % of the limit{lastOnCurrent.wearMm >= position.wearLimitMm ? <strong> · over the limit</strong> : ''})</>
-              : 'Not measured since fitted'}
+            {lastOnCurrent?.wearMm != null ? (
+              <>
+                {lastOnCurrent.wearMm} mm on {formatSiteDate(lastOnCurrent.roundAt, tz)} (
+                {Math.round((100 * lastOnCurrent.wearMm) / position.wearLimitMm)} % of the limit
+                {lastOnCurrent.wearMm >= position.wearLimitMm ? <strong> · over the limit</strong> : ''})
+              </>
+            ) : (
+              'Not measured since fitted'
+            )}
           </dd>
         </dl>
       </Panel>
 
       <Panel title="Wear history">
         <div className="mb-3 flex flex-wrap gap-2" role="group" aria-label="Wear against">
-          <Button variant={axis === 'date' ? 'primary' : 'secondary'} aria-pressed={axis === 'date'} onClick={() => setAxis('date')}>Against date</Button>
-          <Button variant={axis === 'chainage' ? 'primary' : 'secondary'} aria-pressed={axis === 'chainage'} onClick={() => setAxis('chainage')}>Against chainage</Button>
+          <Button variant={axis === 'date' ? 'primary' : 'secondary'} aria-pressed={axis === 'date'} onClick={() => setAxis('date')}>
+            Against date
+          </Button>
+          <Button
+            variant={axis === 'chainage' ? 'primary' : 'secondary'}
+            aria-pressed={axis === 'chainage'}
+            onClick={() => setAxis('chainage')}
+          >
+            Against chainage
+          </Button>
         </div>
         <WearChart detail={detail} axis={axis} timeZone={tz} reversed={axis === 'chainage' && project.driveDirection === 'decreasing'} />
         <div className="mt-4">
-          <DataTable data={measurements} columns={measurementColumns} exportName={`kerfwise-position-${position.number}-wear`} emptyText="No inspections recorded here yet." />
+          <DataTable
+            data={measurements}
+            columns={measurementColumns}
+            exportName={`kerfwise-position-${position.number}-wear`}
+            emptyText="No inspections recorded here yet."
+          />
         </div>
       </Panel>
 
       <Panel title="Changes">
-        <DataTable data={periods} columns={periodColumns} exportName={`kerfwise-position-${position.number}-periods`} emptyText="No cutter has been fitted here yet." />
+        <DataTable
+          data={periods}
+          columns={periodColumns}
+          exportName={`kerfwise-position-${position.number}-periods`}
+          emptyText="No cutter has been fitted here yet."
+        />
       </Panel>
 
       <Panel title="Photos">
@@ -159,8 +257,18 @@ export function PositionRoute() {
               const caption = `${entry ? formatSiteDate(entry.roundAt, tz) : formatSiteDate(photo.createdAt, tz)}${entry?.serial ? ` · ${entry.serial}` : ''}`;
               return (
                 <li key={photo.id}>
-                  <a href={photoUrl(projectId, photo.id)} target="_blank" rel="noreferrer" className="block rounded-md border border-basalt-200 p-1 hover:border-basalt-500">
-                    <img src={photoUrl(projectId, photo.id)} alt={`Photo of position ${position.number}, ${caption}`} loading="lazy" className="aspect-square w-full rounded object-cover" />
+                  <a
+                    href={photoUrl(projectId, photo.id)}
+                    target="_blank"
+                    rel="noreferrer"
+                    className="block rounded-md border border-basalt-200 p-1 hover:border-basalt-500"
+                  >
+                    <img
+                      src={photoUrl(projectId, photo.id)}
+                      alt={`Photo of position ${position.number}, ${caption}`}
+                      loading="lazy"
+                      className="aspect-square w-full rounded object-cover"
+                    />
                     <span className="block px-1 pt-1 text-caption">{caption}</span>
                   </a>
                 </li>

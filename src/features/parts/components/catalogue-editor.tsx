@@ -10,12 +10,34 @@ import { ApiError } from '../../../lib/api-client';
 import { useDeletePart, useSavePart, type CataloguePart } from '../api';
 import { money } from '../format';
 
-type Draft = Record<'code' | 'name' | 'kind' | 'discSizeIn' | 'unitCost' | 'currency' | 'supplier' | 'leadTimeMeanDays' | 'leadTimeSdDays' | 'minOrderQty', string>;
+type Draft = Record<
+  'code' | 'name' | 'kind' | 'discSizeIn' | 'unitCost' | 'currency' | 'supplier' | 'leadTimeMeanDays' | 'leadTimeSdDays' | 'minOrderQty',
+  string
+>;
 
-const emptyDraft: Draft = { code: '', name: '', kind: 'ring', discSizeIn: '17', unitCost: '', currency: 'EUR', supplier: '', leadTimeMeanDays: '', leadTimeSdDays: '0', minOrderQty: '1' };
+const emptyDraft: Draft = {
+  code: '',
+  name: '',
+  kind: 'ring',
+  discSizeIn: '17',
+  unitCost: '',
+  currency: 'EUR',
+  supplier: '',
+  leadTimeMeanDays: '',
+  leadTimeSdDays: '0',
+  minOrderQty: '1',
+};
 const toDraft = (p: CataloguePart): Draft => ({
-  code: p.code, name: p.name, kind: p.kind, discSizeIn: p.discSizeIn == null ? '' : String(p.discSizeIn), unitCost: String(p.unitCost), currency: p.currency, supplier: p.supplier,
-  leadTimeMeanDays: String(p.leadTimeMeanDays), leadTimeSdDays: String(p.leadTimeSdDays), minOrderQty: String(p.minOrderQty),
+  code: p.code,
+  name: p.name,
+  kind: p.kind,
+  discSizeIn: p.discSizeIn == null ? '' : String(p.discSizeIn),
+  unitCost: String(p.unitCost),
+  currency: p.currency,
+  supplier: p.supplier,
+  leadTimeMeanDays: String(p.leadTimeMeanDays),
+  leadTimeSdDays: String(p.leadTimeSdDays),
+  minOrderQty: String(p.minOrderQty),
 });
 /** Blank is "not given"; a decimal comma reads as a point. */
 const num = (s: string) => (s.trim() === '' ? undefined : Number(s.trim().replace(',', '.')));
@@ -31,8 +53,12 @@ function PartForm({ projectId, editing, onDone }: { projectId: string; editing: 
     e.preventDefault();
     setFailure(null);
     const parsed = partInputSchema.safeParse({
-      ...draft, discSizeIn: num(draft.discSizeIn) ?? null, unitCost: num(draft.unitCost), leadTimeMeanDays: num(draft.leadTimeMeanDays),
-      leadTimeSdDays: num(draft.leadTimeSdDays), minOrderQty: num(draft.minOrderQty),
+      ...draft,
+      discSizeIn: num(draft.discSizeIn) ?? null,
+      unitCost: num(draft.unitCost),
+      leadTimeMeanDays: num(draft.leadTimeMeanDays),
+      leadTimeSdDays: num(draft.leadTimeSdDays),
+      minOrderQty: num(draft.minOrderQty),
     });
     if (!parsed.success) {
       setErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])));
@@ -40,7 +66,9 @@ function PartForm({ projectId, editing, onDone }: { projectId: string; editing: 
     }
     setErrors({});
     try {
-      const saved = editing ? await savePart.mutateAsync({ partId: editing.id, input: parsed.data }) : await savePart.mutateAsync({ partId: null, input: parsed.data });
+      const saved = editing
+        ? await savePart.mutateAsync({ partId: editing.id, input: parsed.data })
+        : await savePart.mutateAsync({ partId: null, input: parsed.data });
       onDone(`${saved.code} ${editing ? 'saved' : 'added to the catalogue'}.`);
     } catch (err) {
       if (err instanceof ApiError) setErrors(Object.fromEntries(err.issues.map((i) => [i.path, i.message])));
@@ -55,19 +83,53 @@ function PartForm({ projectId, editing, onDone }: { projectId: string; editing: 
         <TextField label="Code" value={draft.code} onChange={set('code')} error={errors.code} autoComplete="off" />
         <TextField label="Name" value={draft.name} onChange={set('name')} error={errors.name} />
         <SelectField label="Kind" value={draft.kind} onChange={set('kind')} error={errors.kind}>
-          {partKinds.map((k) => <option key={k} value={k}>{partKindLabels[k]}</option>)}
+          {partKinds.map((k) => (
+            <option key={k} value={k}>
+              {partKindLabels[k]}
+            </option>
+          ))}
         </SelectField>
-        <TextField label="Disc size (in)" inputMode="decimal" value={draft.discSizeIn} onChange={set('discSizeIn')} error={errors.discSizeIn} hint="Rings and complete assemblies; blank for others." />
+        <TextField
+          label="Disc size (in)"
+          inputMode="decimal"
+          value={draft.discSizeIn}
+          onChange={set('discSizeIn')}
+          error={errors.discSizeIn}
+          hint="Rings and complete assemblies; blank for others."
+        />
         <TextField label="Unit cost" inputMode="decimal" value={draft.unitCost} onChange={set('unitCost')} error={errors.unitCost} />
         <TextField label="Currency" value={draft.currency} onChange={set('currency')} error={errors.currency} />
         <TextField label="Supplier" value={draft.supplier} onChange={set('supplier')} error={errors.supplier} />
-        <TextField label="Lead time, mean (days)" inputMode="decimal" value={draft.leadTimeMeanDays} onChange={set('leadTimeMeanDays')} error={errors.leadTimeMeanDays} />
-        <TextField label="Lead time, spread (days)" inputMode="decimal" value={draft.leadTimeSdDays} onChange={set('leadTimeSdDays')} error={errors.leadTimeSdDays} hint="Standard deviation; 0 for a fixed lead time." />
-        <TextField label="Minimum order quantity" inputMode="numeric" value={draft.minOrderQty} onChange={set('minOrderQty')} error={errors.minOrderQty} />
+        <TextField
+          label="Lead time, mean (days)"
+          inputMode="decimal"
+          value={draft.leadTimeMeanDays}
+          onChange={set('leadTimeMeanDays')}
+          error={errors.leadTimeMeanDays}
+        />
+        <TextField
+          label="Lead time, spread (days)"
+          inputMode="decimal"
+          value={draft.leadTimeSdDays}
+          onChange={set('leadTimeSdDays')}
+          error={errors.leadTimeSdDays}
+          hint="Standard deviation; 0 for a fixed lead time."
+        />
+        <TextField
+          label="Minimum order quantity"
+          inputMode="numeric"
+          value={draft.minOrderQty}
+          onChange={set('minOrderQty')}
+          error={errors.minOrderQty}
+        />
       </div>
       <div className="flex flex-wrap gap-2">
         <Button type="submit">{editing ? 'Save the part' : 'Add the part'}</Button>
-        {editing && <Button variant="secondary" onClick={() => onDone('')}>Cancel</Button>}
+        {editing && (
+          <Button variant="secondary" onClick={() => onDone('')}>
+            Cancel
+          </Button>
+        )}
       </div>
     </form>
   );
@@ -100,20 +162,40 @@ export function CatalogueEditor({ projectId, parts, canEdit }: { projectId: stri
     col.accessor('name', { header: 'Name' }),
     col.accessor((p) => partKindLabels[p.kind], { id: 'kind', header: 'Kind' }),
     col.accessor((p) => p.discSizeIn ?? '', { id: 'disc', header: 'Disc (in)' }),
-    col.accessor('unitCost', { header: 'Unit cost', cell: ({ row }) => <span className="whitespace-nowrap">{money(row.original.unitCost, row.original.currency)}</span> }),
+    col.accessor('unitCost', {
+      header: 'Unit cost',
+      cell: ({ row }) => <span className="whitespace-nowrap">{money(row.original.unitCost, row.original.currency)}</span>,
+    }),
     col.accessor('supplier', { header: 'Supplier' }),
     col.accessor((p) => `${p.leadTimeMeanDays} ± ${p.leadTimeSdDays}`, { id: 'leadTime', header: 'Lead time (days)' }),
     col.accessor('minOrderQty', { header: 'Minimum order' }),
     col.accessor('onHand', { header: 'On hand' }),
-    ...(canEdit ? [col.display({
-      id: 'actions', header: 'Actions',
-      cell: ({ row }) => (
-        <div className="flex gap-1">
-          <Button variant="ghost" onClick={() => { setEditing(row.original); setFormKey((k) => k + 1); setMessage(null); }} aria-label={`Edit ${row.original.code}`}>Edit</Button>
-          <Button variant="ghost" onClick={() => remove(row.original)} aria-label={`Remove ${row.original.code}`}>Remove</Button>
-        </div>
-      ),
-    })] : []),
+    ...(canEdit
+      ? [
+          col.display({
+            id: 'actions',
+            header: 'Actions',
+            cell: ({ row }) => (
+              <div className="flex gap-1">
+                <Button
+                  variant="ghost"
+                  onClick={() => {
+                    setEditing(row.original);
+                    setFormKey((k) => k + 1);
+                    setMessage(null);
+                  }}
+                  aria-label={`Edit ${row.original.code}`}
+                >
+                  Edit
+                </Button>
+                <Button variant="ghost" onClick={() => remove(row.original)} aria-label={`Remove ${row.original.code}`}>
+                  Remove
+                </Button>
+              </div>
+            ),
+          }),
+        ]
+      : []),
   ];
   return (
     <div className="space-y-6">

@@ -33,39 +33,88 @@ function ReceiveCell({ projectId, line }: { projectId: string; line: OrderLine }
   return (
     <div className="space-y-1">
       <div className="flex items-center gap-2">
-        <input aria-label={`Quantity of ${line.partCode} received`} inputMode="numeric" className={cellInput} value={qty} onChange={(e) => setQty(e.target.value)} aria-invalid={message?.tone === 'error' || undefined} />
-        <Button variant="secondary" onClick={onReceive}>Receive</Button>
+        <input
+          aria-label={`Quantity of ${line.partCode} received`}
+          inputMode="numeric"
+          className={cellInput}
+          value={qty}
+          onChange={(e) => setQty(e.target.value)}
+          aria-invalid={message?.tone === 'error' || undefined}
+        />
+        <Button variant="secondary" onClick={onReceive}>
+          Receive
+        </Button>
       </div>
-      {message && <p role={message.tone === 'error' ? 'alert' : 'status'} className={`max-w-xs text-caption font-semibold ${message.tone === 'error' ? 'text-alarm-700' : 'text-moss-700'}`}>{message.text}</p>}
+      {message && (
+        <p
+          role={message.tone === 'error' ? 'alert' : 'status'}
+          className={`max-w-xs text-caption font-semibold ${message.tone === 'error' ? 'text-alarm-700' : 'text-moss-700'}`}
+        >
+          {message.text}
+        </p>
+      )}
     </div>
   );
 }
 
-export function OrderList({ projectId, orders, canEdit, timeZone }: { projectId: string; orders: PurchaseOrder[]; canEdit: boolean; timeZone: string }) {
-  if (orders.length === 0) return <Panel title="Purchase orders"><p>No purchase orders yet.</p></Panel>;
+export function OrderList({
+  projectId,
+  orders,
+  canEdit,
+  timeZone,
+}: {
+  projectId: string;
+  orders: PurchaseOrder[];
+  canEdit: boolean;
+  timeZone: string;
+}) {
+  if (orders.length === 0)
+    return (
+      <Panel title="Purchase orders">
+        <p>No purchase orders yet.</p>
+      </Panel>
+    );
   const sorted = [...orders].sort((a, b) => Number(b.open) - Number(a.open));
   return (
     <div className="space-y-4">
       {sorted.map((o) => (
         <section key={o.id} aria-labelledby={`order-${o.id}`} className="rounded-lg border border-basalt-200 bg-white p-4 shadow-sm">
           <h2 id={`order-${o.id}`} className="text-lead font-semibold">
-            Order {o.number} <span className={`ml-2 rounded-md px-2 py-1 text-caption ${o.open ? 'bg-caution-100 text-caution-700' : 'bg-moss-100 text-moss-700'}`}>{o.open ? 'Open' : 'Received in full'}</span>
+            Order {o.number}{' '}
+            <span
+              className={`ml-2 rounded-md px-2 py-1 text-caption ${o.open ? 'bg-caution-100 text-caution-700' : 'bg-moss-100 text-moss-700'}`}
+            >
+              {o.open ? 'Open' : 'Received in full'}
+            </span>
           </h2>
-          <p className="text-basalt-700">{o.supplier || 'No supplier given'} · ordered {formatSiteDate(o.orderedAt, timeZone)}{o.note ? ` · ${o.note}` : ''}</p>
+          <p className="text-basalt-700">
+            {o.supplier || 'No supplier given'} · ordered {formatSiteDate(o.orderedAt, timeZone)}
+            {o.note ? ` · ${o.note}` : ''}
+          </p>
           <div className="mt-3 overflow-x-auto">
             <table className="min-w-full text-left">
               <thead className="bg-basalt-100">
-                <tr>{['Part', 'Ordered', 'Received', 'Open', 'Due', ...(canEdit && o.open ? ['Receive'] : [])].map((h) => <th key={h} scope="col" className="px-3 py-2 font-semibold">{h}</th>)}</tr>
+                <tr>
+                  {['Part', 'Ordered', 'Received', 'Open', 'Due', ...(canEdit && o.open ? ['Receive'] : [])].map((h) => (
+                    <th key={h} scope="col" className="px-3 py-2 font-semibold">
+                      {h}
+                    </th>
+                  ))}
+                </tr>
               </thead>
               <tbody>
                 {o.lines.map((l) => (
                   <tr key={l.id} className="border-t border-basalt-100 align-top">
-                    <td className="px-3 py-2"><span className="font-semibold">{l.partCode}</span> {l.partName}</td>
+                    <td className="px-3 py-2">
+                      <span className="font-semibold">{l.partCode}</span> {l.partName}
+                    </td>
                     <td className="px-3 py-2">{l.qtyOrdered}</td>
                     <td className="px-3 py-2">{l.qtyReceived}</td>
                     <td className="px-3 py-2">{l.qtyOpen}</td>
                     <td className="px-3 py-2 whitespace-nowrap">{l.dueDate}</td>
-                    {canEdit && o.open && <td className="px-3 py-2">{l.qtyOpen > 0 ? <ReceiveCell projectId={projectId} line={l} /> : 'Complete'}</td>}
+                    {canEdit && o.open && (
+                      <td className="px-3 py-2">{l.qtyOpen > 0 ? <ReceiveCell projectId={projectId} line={l} /> : 'Complete'}</td>
+                    )}
                   </tr>
                 ))}
               </tbody>
@@ -77,12 +126,27 @@ export function OrderList({ projectId, orders, canEdit, timeZone }: { projectId:
   );
 }
 
-interface DraftLine { partId: string; qty: string; dueDate: string }
+interface DraftLine {
+  partId: string;
+  qty: string;
+  dueDate: string;
+}
 
-const addDays = (isoDate: string, days: number) => new Date(Date.parse(`${isoDate}T00:00:00Z`) + Math.round(days) * 86_400_000).toISOString().slice(0, 10);
+const addDays = (isoDate: string, days: number) =>
+  new Date(Date.parse(`${isoDate}T00:00:00Z`) + Math.round(days) * 86_400_000).toISOString().slice(0, 10);
 
 /** A new purchase order; "Fill from the suggestions" puts in every part to order now, due after its lead time. */
-export function NewOrder({ projectId, parts, suggestions, today }: { projectId: string; parts: CataloguePart[]; suggestions: OrderSuggestion[]; today: string }) {
+export function NewOrder({
+  projectId,
+  parts,
+  suggestions,
+  today,
+}: {
+  projectId: string;
+  parts: CataloguePart[];
+  suggestions: OrderSuggestion[];
+  today: string;
+}) {
   const create = useCreateOrder(projectId);
   const blank = (): DraftLine => ({ partId: parts[0]?.id ?? '', qty: '', dueDate: addDays(today, parts[0]?.leadTimeMeanDays ?? 14) });
   const [number, setNumber] = useState('');
@@ -102,9 +166,18 @@ export function NewOrder({ projectId, parts, suggestions, today }: { projectId: 
   const onSubmit = async (e: FormEvent) => {
     e.preventDefault();
     setMessage(null);
-    const parsed = purchaseOrderInputSchema.safeParse({ number, supplier, note, lines: lines.map((l) => ({ partId: l.partId, qtyOrdered: Number(l.qty), dueDate: l.dueDate })) });
+    const parsed = purchaseOrderInputSchema.safeParse({
+      number,
+      supplier,
+      note,
+      lines: lines.map((l) => ({ partId: l.partId, qtyOrdered: Number(l.qty), dueDate: l.dueDate })),
+    });
     if (!parsed.success) {
-      setMessage({ tone: 'error', text: 'The order needs attention; nothing was saved.', issues: parsed.error.issues.map((i) => (i.path.length > 1 ? `Line ${Number(i.path[1]) + 1}: ${i.message}` : i.message)) });
+      setMessage({
+        tone: 'error',
+        text: 'The order needs attention; nothing was saved.',
+        issues: parsed.error.issues.map((i) => (i.path.length > 1 ? `Line ${Number(i.path[1]) + 1}: ${i.message}` : i.message)),
+      });
       return;
     }
     try {
@@ -123,7 +196,13 @@ export function NewOrder({ projectId, parts, suggestions, today }: { projectId: 
       <form onSubmit={onSubmit} noValidate className="space-y-4">
         {message && (
           <Alert tone={message.tone} title={message.text}>
-            {message.issues && <ul className="list-disc pl-5">{message.issues.map((i) => <li key={i}>{i}</li>)}</ul>}
+            {message.issues && (
+              <ul className="list-disc pl-5">
+                {message.issues.map((i) => (
+                  <li key={i}>{i}</li>
+                ))}
+              </ul>
+            )}
           </Alert>
         )}
         <div className="grid gap-4 md:grid-cols-3">
@@ -136,16 +215,36 @@ export function NewOrder({ projectId, parts, suggestions, today }: { projectId: 
           {lines.map((l, i) => (
             <div key={i} className="grid gap-3 rounded-md border border-basalt-200 p-3 md:grid-cols-[2fr_1fr_1fr_auto] md:items-end">
               <SelectField label={`Part, line ${i + 1}`} value={l.partId} onChange={(e) => setLine(i, { partId: e.target.value })}>
-                {parts.map((p) => <option key={p.id} value={p.id}>{p.code} — {p.name}</option>)}
+                {parts.map((p) => (
+                  <option key={p.id} value={p.id}>
+                    {p.code} — {p.name}
+                  </option>
+                ))}
               </SelectField>
-              <TextField label={`Quantity, line ${i + 1}`} inputMode="numeric" value={l.qty} onChange={(e) => setLine(i, { qty: e.target.value })} />
-              <TextField label={`Due, line ${i + 1}`} type="date" value={l.dueDate} onChange={(e) => setLine(i, { dueDate: e.target.value })} />
-              <Button variant="ghost" onClick={() => setLines((ls) => ls.filter((_, k) => k !== i))} disabled={lines.length === 1}>Remove</Button>
+              <TextField
+                label={`Quantity, line ${i + 1}`}
+                inputMode="numeric"
+                value={l.qty}
+                onChange={(e) => setLine(i, { qty: e.target.value })}
+              />
+              <TextField
+                label={`Due, line ${i + 1}`}
+                type="date"
+                value={l.dueDate}
+                onChange={(e) => setLine(i, { dueDate: e.target.value })}
+              />
+              <Button variant="ghost" onClick={() => setLines((ls) => ls.filter((_, k) => k !== i))} disabled={lines.length === 1}>
+                Remove
+              </Button>
             </div>
           ))}
           <div className="flex flex-wrap gap-2">
-            <Button variant="secondary" onClick={() => setLines((ls) => [...ls, blank()])}>Add a line</Button>
-            <Button variant="secondary" onClick={fill} disabled={toOrder.length === 0}>Fill from the suggestions ({toOrder.length} to order now)</Button>
+            <Button variant="secondary" onClick={() => setLines((ls) => [...ls, blank()])}>
+              Add a line
+            </Button>
+            <Button variant="secondary" onClick={fill} disabled={toOrder.length === 0}>
+              Fill from the suggestions ({toOrder.length} to order now)
+            </Button>
           </div>
         </fieldset>
         <Button type="submit">Save the order</Button>

@@ -16,23 +16,46 @@ export function StockChart({ demand, partId, onPartChange }: { demand: PartsDema
   const suggestion = demand.suggestions.find((s) => s.partId === part.id)!;
   const rows = demand.weeks.filter((w) => w.partId === part.id);
   const stops = new Map(demand.stops.map((s) => [s.id, s]));
-  const data = rows.map((r) => ({ week: r.weekStartDate, demand: Number(r.demand.toFixed(2)), stock: Number(r.projectedStock.toFixed(2)), inflow: Number((r.receipts + r.rebuildReturns).toFixed(2)) }));
+  const data = rows.map((r) => ({
+    week: r.weekStartDate,
+    demand: Number(r.demand.toFixed(2)),
+    stock: Number(r.projectedStock.toFixed(2)),
+    inflow: Number((r.receipts + r.rebuildReturns).toFixed(2)),
+  }));
   const lines = [
-    { y: suggestion.reorderPoint, label: `Reorder point ${units(suggestion.reorderPoint)}`, colour: '#8e2214', position: 'insideTopRight' as const },
-    { y: suggestion.safetyStock, label: `Safety stock ${units(suggestion.safetyStock)}`, colour: '#7a5b00', position: 'insideBottomRight' as const },
+    {
+      y: suggestion.reorderPoint,
+      label: `Reorder point ${units(suggestion.reorderPoint)}`,
+      colour: '#8e2214',
+      position: 'insideTopRight' as const,
+    },
+    {
+      y: suggestion.safetyStock,
+      label: `Safety stock ${units(suggestion.safetyStock)}`,
+      colour: '#7a5b00',
+      position: 'insideBottomRight' as const,
+    },
   ];
   return (
     <Panel title="Projected stock">
       <div className="mb-4 max-w-md">
         <SelectField label="Part" value={part.id} onChange={(e) => onPartChange(e.target.value)}>
-          {demand.parts.map((p) => <option key={p.id} value={p.id}>{p.code} — {p.name}</option>)}
+          {demand.parts.map((p) => (
+            <option key={p.id} value={p.id}>
+              {p.code} — {p.name}
+            </option>
+          ))}
         </SelectField>
       </div>
       <p className="mb-2 text-basalt-700">
         {part.code}: {units(part.onHand)} on hand, {units(part.onOrder)} on order. Stock at the end of each week, after demand, deliveries
         {part.kind === 'cutter-assembly' ? ' and cutters back from the workshop' : ''}.
       </p>
-      <div className="h-80 w-full" role="img" aria-label={`Projected stock of ${part.code} per week, with safety stock ${units(suggestion.safetyStock)} and reorder point ${units(suggestion.reorderPoint)}`}>
+      <div
+        className="h-80 w-full"
+        role="img"
+        aria-label={`Projected stock of ${part.code} per week, with safety stock ${units(suggestion.safetyStock)} and reorder point ${units(suggestion.reorderPoint)}`}
+      >
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart data={data} margin={{ top: 16, right: 24, bottom: 8, left: 8 }}>
             <CartesianGrid stroke="#e6e8e4" />
@@ -42,7 +65,15 @@ export function StockChart({ demand, partId, onPartChange }: { demand: PartsDema
             <Legend />
             <ReferenceLine y={0} stroke="#1d201c" />
             {lines.map((l) => (
-              <ReferenceLine key={l.label} y={l.y} ifOverflow="extendDomain" stroke={l.colour} strokeWidth={2} strokeDasharray="8 4" label={{ value: l.label, position: l.position, fill: l.colour, fontSize: 13 }} />
+              <ReferenceLine
+                key={l.label}
+                y={l.y}
+                ifOverflow="extendDomain"
+                stroke={l.colour}
+                strokeWidth={2}
+                strokeDasharray="8 4"
+                label={{ value: l.label, position: l.position, fill: l.colour, fontSize: 13 }}
+              />
             ))}
             <Bar dataKey="demand" name="Demand" fill="#fca35e" />
             <Bar dataKey="inflow" name="Deliveries and rebuilt back" fill="#aab0a5" />
@@ -50,14 +81,25 @@ export function StockChart({ demand, partId, onPartChange }: { demand: PartsDema
           </ComposedChart>
         </ResponsiveContainer>
       </div>
-      <button type="button" className="mt-3 min-h-touch font-semibold text-ember-700 underline underline-offset-2" aria-expanded={showTable} onClick={() => setShowTable((s) => !s)}>
+      <button
+        type="button"
+        className="mt-3 min-h-touch font-semibold text-ember-700 underline underline-offset-2"
+        aria-expanded={showTable}
+        onClick={() => setShowTable((s) => !s)}
+      >
         {showTable ? 'Hide the weeks as a table' : 'Show the weeks as a table'}
       </button>
       {showTable && (
         <div className="mt-2 overflow-x-auto">
           <table className="min-w-full text-left" aria-label={`Weeks of ${part.code}`}>
             <thead className="bg-basalt-100">
-              <tr>{['Week starting', 'Demand', 'Deliveries', 'Rebuilt back', 'Projected stock', 'Demand from'].map((h) => <th key={h} scope="col" className="px-3 py-2 font-semibold">{h}</th>)}</tr>
+              <tr>
+                {['Week starting', 'Demand', 'Deliveries', 'Rebuilt back', 'Projected stock', 'Demand from'].map((h) => (
+                  <th key={h} scope="col" className="px-3 py-2 font-semibold">
+                    {h}
+                  </th>
+                ))}
+              </tr>
             </thead>
             <tbody>
               {rows.map((r) => (
@@ -66,7 +108,10 @@ export function StockChart({ demand, partId, onPartChange }: { demand: PartsDema
                   <td className="px-3 py-2">{units(r.demand)}</td>
                   <td className="px-3 py-2">{units(r.receipts)}</td>
                   <td className="px-3 py-2">{units(r.rebuildReturns)}</td>
-                  <td className={`px-3 py-2 ${r.projectedStock < 0 ? 'font-semibold text-alarm-700' : ''}`}>{units(r.projectedStock)}{r.projectedStock < 0 ? ' (short)' : ''}</td>
+                  <td className={`px-3 py-2 ${r.projectedStock < 0 ? 'font-semibold text-alarm-700' : ''}`}>
+                    {units(r.projectedStock)}
+                    {r.projectedStock < 0 ? ' (short)' : ''}
+                  </td>
                   <td className="px-3 py-2">{sourcesText(r.sources, stops) || '—'}</td>
                 </tr>
               ))}

@@ -30,7 +30,10 @@ export function StockCount({ projectId, parts }: { projectId: string; parts: Cat
       const result = await count.mutateAsync({ partId, input: parsed.data });
       setCounted('');
       setNote('');
-      setMessage({ tone: 'success', text: `${part?.code}: ${result.onHand} on hand (${result.difference === 0 ? 'as on the books' : `${result.difference > 0 ? '+' : ''}${result.difference} recorded as a count`}).` });
+      setMessage({
+        tone: 'success',
+        text: `${part?.code}: ${result.onHand} on hand (${result.difference === 0 ? 'as on the books' : `${result.difference > 0 ? '+' : ''}${result.difference} recorded as a count`}).`,
+      });
     } catch (err) {
       setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The count was not saved. Try again.' });
     }
@@ -40,13 +43,34 @@ export function StockCount({ projectId, parts }: { projectId: string; parts: Cat
   return (
     <Panel title="Stock count">
       <form onSubmit={onSubmit} noValidate className="grid gap-4 md:grid-cols-[2fr_1fr_2fr_auto] md:items-start">
-        {message && <div className="md:col-span-4"><Alert tone={message.tone}>{message.text}</Alert></div>}
-        <SelectField label="Part" value={partId} onChange={(e) => setPartId(e.target.value)} hint={part ? `${part.onHand} on the books` : undefined}>
-          {parts.map((p) => <option key={p.id} value={p.id}>{p.code} — {p.name}</option>)}
+        {message && (
+          <div className="md:col-span-4">
+            <Alert tone={message.tone}>{message.text}</Alert>
+          </div>
+        )}
+        <SelectField
+          label="Part"
+          value={partId}
+          onChange={(e) => setPartId(e.target.value)}
+          hint={part ? `${part.onHand} on the books` : undefined}
+        >
+          {parts.map((p) => (
+            <option key={p.id} value={p.id}>
+              {p.code} — {p.name}
+            </option>
+          ))}
         </SelectField>
-        <TextField label="Counted quantity" inputMode="numeric" value={counted} onChange={(e) => setCounted(e.target.value)} error={error} />
+        <TextField
+          label="Counted quantity"
+          inputMode="numeric"
+          value={counted}
+          onChange={(e) => setCounted(e.target.value)}
+          error={error}
+        />
         <TextField label="Note (optional)" value={note} onChange={(e) => setNote(e.target.value)} />
-        <div className="md:pt-8"><Button type="submit">Record count</Button></div>
+        <div className="md:pt-8">
+          <Button type="submit">Record count</Button>
+        </div>
       </form>
     </Panel>
   );

@@ -8,9 +8,13 @@ import { money, sourceLabel, sourcesText, units } from '../format';
 
 /** "Order now" in words and colour, so the flag reads without colour too. */
 function OrderFlag({ s }: { s: OrderSuggestion }) {
-  return s.orderNow
-    ? <span className="inline-block whitespace-nowrap rounded-md bg-alarm-100 px-2 py-1 font-semibold text-alarm-700">Order now: {s.orderQty}</span>
-    : <span className="inline-block whitespace-nowrap rounded-md bg-moss-100 px-2 py-1 text-moss-700">Covered</span>;
+  return s.orderNow ? (
+    <span className="inline-block whitespace-nowrap rounded-md bg-alarm-100 px-2 py-1 font-semibold text-alarm-700">
+      Order now: {s.orderQty}
+    </span>
+  ) : (
+    <span className="inline-block whitespace-nowrap rounded-md bg-moss-100 px-2 py-1 text-moss-700">Covered</span>
+  );
 }
 
 type StockRow = CataloguePart & { s: OrderSuggestion };
@@ -23,8 +27,12 @@ export function PartsStockTable({ demand, onShow }: { demand: PartsDemand; onSho
     stockCol.accessor('code', {
       header: 'Code',
       cell: ({ row }) => (
-        <button type="button" className="min-h-touch whitespace-nowrap font-semibold text-ember-700 underline underline-offset-2" onClick={() => onShow(row.original.id)}
-          aria-label={`Show the projected stock of ${row.original.code}`}>
+        <button
+          type="button"
+          className="min-h-touch whitespace-nowrap font-semibold text-ember-700 underline underline-offset-2"
+          onClick={() => onShow(row.original.id)}
+          aria-label={`Show the projected stock of ${row.original.code}`}
+        >
           {row.original.code}
         </button>
       ),
@@ -34,14 +42,29 @@ export function PartsStockTable({ demand, onShow }: { demand: PartsDemand; onSho
     stockCol.accessor('onHand', { header: 'On hand' }),
     stockCol.accessor('onOrder', { header: 'On order' }),
     stockCol.accessor((r) => (r.s.weeksOfCover == null ? '' : Number(r.s.weeksOfCover.toFixed(1))), {
-      id: 'weeksOfCover', header: 'Weeks of cover', cell: ({ row }) => (row.original.s.weeksOfCover == null ? 'No demand' : row.original.s.weeksOfCover.toFixed(1)),
+      id: 'weeksOfCover',
+      header: 'Weeks of cover',
+      cell: ({ row }) => (row.original.s.weeksOfCover == null ? 'No demand' : row.original.s.weeksOfCover.toFixed(1)),
     }),
-    stockCol.accessor((r) => (r.s.orderNow ? `Order now: ${r.s.orderQty}` : 'Covered'), { id: 'order', header: 'Order', cell: ({ row }) => <OrderFlag s={row.original.s} /> }),
-    stockCol.accessor((r) => r.s.firstShortageDate ?? '', { id: 'runsOut', header: 'Runs out (week of)', cell: ({ getValue }) => getValue() || '—' }),
+    stockCol.accessor((r) => (r.s.orderNow ? `Order now: ${r.s.orderQty}` : 'Covered'), {
+      id: 'order',
+      header: 'Order',
+      cell: ({ row }) => <OrderFlag s={row.original.s} />,
+    }),
+    stockCol.accessor((r) => r.s.firstShortageDate ?? '', {
+      id: 'runsOut',
+      header: 'Runs out (week of)',
+      cell: ({ getValue }) => getValue() || '—',
+    }),
   ];
   return (
     <Panel title="Stock">
-      <DataTable data={rows} columns={columns} exportName="kerfwise-parts-stock" emptyText="The catalogue is empty: add parts on the Catalogue tab." />
+      <DataTable
+        data={rows}
+        columns={columns}
+        exportName="kerfwise-parts-stock"
+        emptyText="The catalogue is empty: add parts on the Catalogue tab."
+      />
     </Panel>
   );
 }
@@ -55,9 +78,17 @@ export function SuggestionsTable({ demand }: { demand: PartsDemand }) {
   const columns = [
     sugCol.accessor('code', { header: 'Code' }),
     sugCol.accessor('name', { header: 'Name' }),
-    sugCol.accessor((s) => (s.orderNow ? 'Order now' : 'No'), { id: 'orderNow', header: 'Order now', cell: ({ row }) => <OrderFlag s={row.original} /> }),
+    sugCol.accessor((s) => (s.orderNow ? 'Order now' : 'No'), {
+      id: 'orderNow',
+      header: 'Order now',
+      cell: ({ row }) => <OrderFlag s={row.original} />,
+    }),
     sugCol.accessor('orderQty', { header: 'Order quantity' }),
-    sugCol.accessor((s) => Number(s.orderValue.toFixed(2)), { id: 'orderValue', header: 'Order value', cell: ({ row }) => <span className="whitespace-nowrap">{money(row.original.orderValue, row.original.currency)}</span> }),
+    sugCol.accessor((s) => Number(s.orderValue.toFixed(2)), {
+      id: 'orderValue',
+      header: 'Order value',
+      cell: ({ row }) => <span className="whitespace-nowrap">{money(row.original.orderValue, row.original.currency)}</span>,
+    }),
     sugCol.accessor('supplier', { header: 'Supplier' }),
     sugCol.accessor('onHand', { header: 'On hand' }),
     sugCol.accessor('dueWithinLeadTime', { header: 'Due in lead time', cell: ({ getValue }) => units(getValue()) }),
@@ -65,23 +96,41 @@ export function SuggestionsTable({ demand }: { demand: PartsDemand }) {
     sugCol.accessor((s) => Number(s.leadTimeDemand.toFixed(1)), { id: 'leadTimeDemand', header: 'Demand in lead time' }),
     sugCol.accessor((s) => Number(s.safetyStock.toFixed(1)), { id: 'safetyStock', header: 'Safety stock' }),
     sugCol.accessor((s) => Number(s.reorderPoint.toFixed(1)), { id: 'reorderPoint', header: 'Reorder point' }),
-    sugCol.accessor((s) => s.firstShortageDate ?? '', { id: 'runsOut', header: 'Runs out (week of)', cell: ({ getValue }) => getValue() || '—' }),
+    sugCol.accessor((s) => s.firstShortageDate ?? '', {
+      id: 'runsOut',
+      header: 'Runs out (week of)',
+      cell: ({ getValue }) => getValue() || '—',
+    }),
     sugCol.accessor((s) => sourcesText(s.sources, stops), {
-      id: 'sources', header: 'Demand from',
-      cell: ({ row }) => (row.original.sources.length === 0 ? '—' : (
-        <ul className="min-w-64 space-y-1">
-          {row.original.sources.map((src) => <li key={`${src.kind}-${src.stopId}`}>{sourceLabel(src, stops)}: <strong>{units(src.qty)}</strong></li>)}
-        </ul>
-      )),
+      id: 'sources',
+      header: 'Demand from',
+      cell: ({ row }) =>
+        row.original.sources.length === 0 ? (
+          '—'
+        ) : (
+          <ul className="min-w-64 space-y-1">
+            {row.original.sources.map((src) => (
+              <li key={`${src.kind}-${src.stopId}`}>
+                {sourceLabel(src, stops)}: <strong>{units(src.qty)}</strong>
+              </li>
+            ))}
+          </ul>
+        ),
     }),
   ];
   return (
     <Panel title="Order suggestions">
       <p className="mb-3 max-w-prose text-basalt-700">
-        Safety stock and reorder point at a {(demand.serviceLevel * 100).toFixed(1)} % service level (z = {demand.z.toFixed(3)}), from the weekly demand over
-        the next {demand.horizonWeeks} weeks and each part’s lead time with its spread. “Demand from” lists what draws on the part within its lead time.
+        Safety stock and reorder point at a {(demand.serviceLevel * 100).toFixed(1)} % service level (z = {demand.z.toFixed(3)}), from the
+        weekly demand over the next {demand.horizonWeeks} weeks and each part’s lead time with its spread. “Demand from” lists what draws on
+        the part within its lead time.
       </p>
-      <DataTable data={rows} columns={columns} exportName={`kerfwise-order-suggestions-${demand.startDate}`} emptyText="No parts in the catalogue yet." />
+      <DataTable
+        data={rows}
+        columns={columns}
+        exportName={`kerfwise-order-suggestions-${demand.startDate}`}
+        emptyText="No parts in the catalogue yet."
+      />
     </Panel>
   );
 }

@@ -28,12 +28,26 @@ function Problems({ problems }: { problems: string[] }) {
   if (problems.length === 0) return null;
   return (
     <Alert tone="caution" title="What the demand does not include">
-      <ul className="list-disc pl-5">{problems.map((p) => <li key={p}>{p}</li>)}</ul>
+      <ul className="list-disc pl-5">
+        {problems.map((p) => (
+          <li key={p}>{p}</li>
+        ))}
+      </ul>
     </Alert>
   );
 }
 
-function StockTab({ projectId, canEdit, filters, setFilter }: { projectId: string; canEdit: boolean; filters: DemandFilters; setFilter: (name: string, value: string) => void }) {
+function StockTab({
+  projectId,
+  canEdit,
+  filters,
+  setFilter,
+}: {
+  projectId: string;
+  canEdit: boolean;
+  filters: DemandFilters;
+  setFilter: (name: string, value: string) => void;
+}) {
   const demand = useQuery(partQueries.demand(projectId, filters));
   const [partId, setPartId] = useState('');
   if (demand.error) return <Alert tone="error">{demand.error.message}</Alert>;
@@ -47,10 +61,18 @@ function StockTab({ projectId, canEdit, filters, setFilter }: { projectId: strin
     <div className="space-y-6">
       <div className="grid max-w-xl gap-4 sm:grid-cols-2">
         <SelectField label="Weeks ahead" value={filters.weeks} onChange={(e) => setFilter('weeks', e.target.value)}>
-          {horizons.map((w) => <option key={w} value={w}>{w} weeks</option>)}
+          {horizons.map((w) => (
+            <option key={w} value={w}>
+              {w} weeks
+            </option>
+          ))}
         </SelectField>
         <SelectField label="Service level" value={d.serviceLevel} onChange={(e) => setFilter('serviceLevel', e.target.value)}>
-          {[...new Set([...serviceLevels, d.serviceLevel])].sort().map((l) => <option key={l} value={l}>{(l * 100).toFixed(1)} %</option>)}
+          {[...new Set([...serviceLevels, d.serviceLevel])].sort().map((l) => (
+            <option key={l} value={l}>
+              {(l * 100).toFixed(1)} %
+            </option>
+          ))}
         </SelectField>
       </div>
       <Problems problems={d.problems} />
@@ -72,7 +94,9 @@ function OrdersTab({ projectId, canEdit, timeZone }: { projectId: string; canEdi
   return (
     <div className="space-y-6">
       <OrderList projectId={projectId} orders={orders.data} canEdit={canEdit} timeZone={timeZone} />
-      {canEdit && demand.data && <NewOrder projectId={projectId} parts={demand.data.parts} suggestions={demand.data.suggestions} today={demand.data.startDate} />}
+      {canEdit && demand.data && (
+        <NewOrder projectId={projectId} parts={demand.data.parts} suggestions={demand.data.suggestions} today={demand.data.startDate} />
+      )}
     </div>
   );
 }
@@ -91,7 +115,15 @@ function WorkshopTab({ projectId, canEdit }: { projectId: string; canEdit: boole
   if (error) return <Alert tone="error">{error.message}</Alert>;
   if (!settings.data || !list.data) return <p>Loading…</p>;
   // Keyed by the saved settings, so the form starts again from what the server holds after a save.
-  return <WorkshopSettings key={JSON.stringify(settings.data)} projectId={projectId} settings={settings.data} parts={list.data.parts} canEdit={canEdit} />;
+  return (
+    <WorkshopSettings
+      key={JSON.stringify(settings.data)}
+      projectId={projectId}
+      settings={settings.data}
+      parts={list.data.parts}
+      canEdit={canEdit}
+    />
+  );
 }
 
 /** The buyer's page: stock and order suggestions, orders and receiving, the catalogue and the workshop loop. */
@@ -103,20 +135,32 @@ export function PartsRoute() {
   const canEdit = roleCan(project.role, 'parts.edit');
   const weeks = Number(params.get('weeks')) || 12;
   const level = Number(params.get('serviceLevel'));
-  const filters: DemandFilters = { weeks: horizons.includes(weeks) ? weeks : 12, serviceLevel: level >= 0.5 && level < 1 ? level : undefined };
+  const filters: DemandFilters = {
+    weeks: horizons.includes(weeks) ? weeks : 12,
+    serviceLevel: level >= 0.5 && level < 1 ? level : undefined,
+  };
   const setParam = (name: string, value: string) =>
-    setParams((prev) => {
-      const next = new URLSearchParams(prev);
-      next.set(name, value);
-      return next;
-    }, { replace: true });
+    setParams(
+      (prev) => {
+        const next = new URLSearchParams(prev);
+        next.set(name, value);
+        return next;
+      },
+      { replace: true },
+    );
 
   return (
     <Page title="Parts">
       <div role="tablist" aria-label="Parts" className="flex flex-wrap gap-2 border-b border-basalt-200 pb-2">
         {tabs.map((t) => (
-          <button key={t.key} type="button" role="tab" aria-selected={tab === t.key} onClick={() => setParam('tab', t.key)}
-            className={`min-h-touch rounded-md px-4 font-semibold ${tab === t.key ? 'bg-basalt-900 text-white' : 'bg-white text-basalt-800 hover:bg-basalt-100'}`}>
+          <button
+            key={t.key}
+            type="button"
+            role="tab"
+            aria-selected={tab === t.key}
+            onClick={() => setParam('tab', t.key)}
+            className={`min-h-touch rounded-md px-4 font-semibold ${tab === t.key ? 'bg-basalt-900 text-white' : 'bg-white text-basalt-800 hover:bg-basalt-100'}`}
+          >
             {t.label}
           </button>
         ))}

@@ -13,15 +13,26 @@ export function ProjectPickerRoute() {
     <Page title="Your drives">
       {me.memberships.length === 0 ? (
         <Alert tone="info" title="You are not on any drive yet.">
-          {me.user.isAdmin
-            ? <>Add yourself or others to a drive under <Link className="underline" to={paths.admin.projects}>Administration → Projects</Link>.</>
-            : 'Ask your administrator to add you to the drive you work on.'}
+          {me.user.isAdmin ? (
+            <>
+              Add yourself or others to a drive under{' '}
+              <Link className="underline" to={paths.admin.projects}>
+                Administration → Projects
+              </Link>
+              .
+            </>
+          ) : (
+            'Ask your administrator to add you to the drive you work on.'
+          )}
         </Alert>
       ) : (
         <ul className="grid gap-3 md:grid-cols-2">
           {me.memberships.map((m) => (
             <li key={m.projectId}>
-              <Link to={paths.project(m.projectId)} className="block rounded-lg border-2 border-basalt-200 bg-white p-4 hover:border-ember-500">
+              <Link
+                to={paths.project(m.projectId)}
+                className="block rounded-lg border-2 border-basalt-200 bg-white p-4 hover:border-ember-500"
+              >
                 <span className="block text-lead font-semibold">{m.projectName}</span>
                 <span className="text-basalt-600">{roleLabels[m.role]}</span>
               </Link>

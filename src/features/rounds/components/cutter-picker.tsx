@@ -21,9 +21,17 @@ export function CutterPicker({ cutters, value, onChange, error }: Props) {
   const matches = cutters.filter((c) => c.serial.toLowerCase().includes(q));
   return (
     <div className="space-y-3">
-      <Toggle pressed={isNew} onToggle={() => onChange(isNew ? null : { serial: '', isNew: true })}>New serial, not yet in Kerfwise</Toggle>
+      <Toggle pressed={isNew} onToggle={() => onChange(isNew ? null : { serial: '', isNew: true })}>
+        New serial, not yet in Kerfwise
+      </Toggle>
       {isNew ? (
-        <TextField label="Serial fitted (new)" value={value?.serial ?? ''} autoComplete="off" onChange={(e) => onChange({ serial: e.target.value.trim(), isNew: true })} error={error} />
+        <TextField
+          label="Serial fitted (new)"
+          value={value?.serial ?? ''}
+          autoComplete="off"
+          onChange={(e) => onChange({ serial: e.target.value.trim(), isNew: true })}
+          error={error}
+        />
       ) : (
         <div className="space-y-2">
           <TextField
@@ -43,9 +51,14 @@ export function CutterPicker({ cutters, value, onChange, error }: Props) {
             <ul aria-label="Cutters in store" className="grid gap-2 sm:grid-cols-2">
               {matches.slice(0, SHOWN).map((c) => (
                 <li key={c.id}>
-                  <Toggle pressed={value?.serial === c.serial} onToggle={() => onChange(value?.serial === c.serial ? null : { serial: c.serial, isNew: false })}>
+                  <Toggle
+                    pressed={value?.serial === c.serial}
+                    onToggle={() => onChange(value?.serial === c.serial ? null : { serial: c.serial, isNew: false })}
+                  >
                     {c.serial}
-                    <span className="block text-caption font-normal">{c.discSizeIn}″ · rebuilt {c.rebuildCount}×</span>
+                    <span className="block text-caption font-normal">
+                      {c.discSizeIn}″ · rebuilt {c.rebuildCount}×
+                    </span>
                   </Toggle>
                 </li>
               ))}

@@ -29,7 +29,17 @@ export interface Draft {
 export function draftFrom(position: RoundPosition, stored: RoundEntry | undefined, queued: QueuedEntry | undefined): Draft {
   const source = queued?.body ?? stored;
   if (!source) {
-    return { wearText: '', notMeasured: false, conditions: [], action: 'none', removedSerial: position.current?.serial ?? '', fitted: null, changeReason: '', note: '', photos: [] };
+    return {
+      wearText: '',
+      notMeasured: false,
+      conditions: [],
+      action: 'none',
+      removedSerial: position.current?.serial ?? '',
+      fitted: null,
+      changeReason: '',
+      note: '',
+      photos: [],
+    };
   }
   const changedOnServer = !queued && stored?.action === 'changed';
   return {
@@ -37,7 +47,7 @@ export function draftFrom(position: RoundPosition, stored: RoundEntry | undefine
     notMeasured: source.wearMm == null,
     conditions: [...source.conditions],
     action: source.action,
-    removedSerial: queued?.body.removedSerial ?? (changedOnServer ? '' : position.current?.serial ?? ''),
+    removedSerial: queued?.body.removedSerial ?? (changedOnServer ? '' : (position.current?.serial ?? '')),
     // A change the server holds: the serial on the position now is the one that was fitted.
     fitted: queued?.body.fitted ?? (changedOnServer && position.current ? { serial: position.current.serial, isNew: false } : null),
     changeReason: source.changeReason ?? '',
@@ -136,9 +146,17 @@ export function EntryForm(props: Props) {
     try {
       const where = { projectId, roundId, positionId: position.id };
       // Waits a moment for the server's answer so a refusal shows here; after that the queue carries on alone.
-      await Promise.race([queueEntry(where, parsed.data, draft.photos, refused ? queued : undefined), new Promise((r) => setTimeout(r, ANSWER_WAIT_MS))]);
+      await Promise.race([
+        queueEntry(where, parsed.data, draft.photos, refused ? queued : undefined),
+        new Promise((r) => setTimeout(r, ANSWER_WAIT_MS)),
+      ]);
     } catch (err) {
-      setClientIssues([{ path: '', message: `This device could not keep the entry (${err instanceof Error ? err.message : 'storage failed'}). Nothing was saved; try again.` }]);
+      setClientIssues([
+        {
+          path: '',
+          message: `This device could not keep the entry (${err instanceof Error ? err.message : 'storage failed'}). Nothing was saved; try again.`,
+        },
+      ]);
       return;
     } finally {
       setSaving(false);
@@ -162,19 +180,30 @@ export function EntryForm(props: Props) {
           <div className="flex flex-wrap items-baseline gap-x-4">
             <h2 className="text-display">Position {position.number}</h2>
             <p className="text-lead">
-              {positionClassLabels[position.positionClass]} · {position.discSizeIn}″ disc{position.twinDisc ? ' (twin)' : ''} · radius {position.trackRadiusMm.toLocaleString('en-GB')} mm
+              {positionClassLabels[position.positionClass]} · {position.discSizeIn}″ disc{position.twinDisc ? ' (twin)' : ''} · radius{' '}
+              {position.trackRadiusMm.toLocaleString('en-GB')} mm
               {position.tiltDeg != null && ` · tilt ${position.tiltDeg}°`}
             </p>
           </div>
           <dl className="flex flex-wrap gap-x-6 text-lead">
-            <div className="flex gap-2"><dt className="text-basalt-700">Limit</dt><dd className="font-semibold">{position.wearLimitMm.toFixed(1)} mm</dd></div>
-            <div className="flex gap-2"><dt className="text-basalt-700">Serial now</dt><dd className="font-semibold">{position.current ? position.current.serial : 'none recorded'}</dd></div>
+            <div className="flex gap-2">
+              <dt className="text-basalt-700">Limit</dt>
+              <dd className="font-semibold">{position.wearLimitMm.toFixed(1)} mm</dd>
+            </div>
+            <div className="flex gap-2">
+              <dt className="text-basalt-700">Serial now</dt>
+              <dd className="font-semibold">{position.current ? position.current.serial : 'none recorded'}</dd>
+            </div>
             <div className="flex flex-wrap items-center gap-x-2">
               <dt className="text-basalt-700">Last wear</dt>
               <dd className="font-semibold">{position.lastWearMm != null ? `${position.lastWearMm.toFixed(1)} mm` : 'not measured yet'}</dd>
-              {position.lastMeasuredAt && <dd className="text-caption text-basalt-700">{formatSiteDateTime(position.lastMeasuredAt, timeZone)}</dd>}
+              {position.lastMeasuredAt && (
+                <dd className="text-caption text-basalt-700">{formatSiteDateTime(position.lastMeasuredAt, timeZone)}</dd>
+              )}
               {lastOver && (
-                <dd className={`inline-flex items-center gap-1 rounded px-2 text-caption font-semibold ${overLimitBadge}`}><OverLimitMark className="h-3 w-3" /> over limit</dd>
+                <dd className={`inline-flex items-center gap-1 rounded px-2 text-caption font-semibold ${overLimitBadge}`}>
+                  <OverLimitMark className="h-3 w-3" /> over limit
+                </dd>
               )}
             </div>
           </dl>
@@ -185,9 +214,14 @@ export function EntryForm(props: Props) {
             <p>{refused.message}</p>
             {!wearFell && <p className="mt-1">Fix the values and press “Save position” again, or discard the entry.</p>}
             {!readOnly && queued && (
-              <Button variant="secondary" className="mt-2" onClick={() => {
-                if (window.confirm(`Discard what was entered for position ${position.number}? It will not be stored.`)) void discardItem(queued);
-              }}>
+              <Button
+                variant="secondary"
+                className="mt-2"
+                onClick={() => {
+                  if (window.confirm(`Discard what was entered for position ${position.number}? It will not be stored.`))
+                    void discardItem(queued);
+                }}
+              >
                 Discard this entry
               </Button>
             )}
@@ -207,7 +241,9 @@ export function EntryForm(props: Props) {
           </WearKeypad>
 
           <fieldset className="space-y-2">
-            <legend className="mb-2 text-lead font-semibold">Condition <span className="text-body font-normal text-basalt-700">(all that apply)</span></legend>
+            <legend className="mb-2 text-lead font-semibold">
+              Condition <span className="text-body font-normal text-basalt-700">(all that apply)</span>
+            </legend>
             <div className="grid grid-cols-2 gap-2 md:grid-cols-1 lg:grid-cols-2">
               {discConditions.map((c) => (
                 <Toggle key={c.key} pressed={draft.conditions.includes(c.key)} onToggle={() => toggleCondition(c.key)}>
@@ -224,14 +260,18 @@ export function EntryForm(props: Props) {
           <legend className="px-1 text-lead font-semibold">Action</legend>
           {changeLocked ? (
             <p>
-              Cutter changed in this round: <strong>{draft.fitted?.serial}</strong> fitted. Reason: {draft.changeReason}. A recorded change is
-              corrected by the planner, not here.
+              Cutter changed in this round: <strong>{draft.fitted?.serial}</strong> fitted. Reason: {draft.changeReason}. A recorded change
+              is corrected by the planner, not here.
             </p>
           ) : (
             <>
               <div role="group" aria-label="Action" className="grid grid-cols-2 gap-2">
-                <Toggle pressed={draft.action === 'none'} onToggle={() => update({ action: 'none' })}>No change</Toggle>
-                <Toggle pressed={draft.action === 'changed'} onToggle={() => update({ action: 'changed' })}>Cutter changed</Toggle>
+                <Toggle pressed={draft.action === 'none'} onToggle={() => update({ action: 'none' })}>
+                  No change
+                </Toggle>
+                <Toggle pressed={draft.action === 'changed'} onToggle={() => update({ action: 'changed' })}>
+                  Cutter changed
+                </Toggle>
               </div>
               {draft.action === 'changed' && (
                 <div className="grid gap-4 md:grid-cols-2">
@@ -241,20 +281,39 @@ export function EntryForm(props: Props) {
                     autoComplete="off"
                     onChange={(e) => update({ removedSerial: e.target.value })}
                     error={fieldError('removedSerial')}
-                    hint={position.current ? `Kerfwise has ${position.current.serial} here.` : 'Kerfwise has no cutter here; leave empty if none was on.'}
+                    hint={
+                      position.current
+                        ? `Kerfwise has ${position.current.serial} here.`
+                        : 'Kerfwise has no cutter here; leave empty if none was on.'
+                    }
                   />
                   <div className="space-y-2">
-                    <TextField label="Reason for the change" value={draft.changeReason} onChange={(e) => update({ changeReason: e.target.value })} error={fieldError('changeReason')} />
+                    <TextField
+                      label="Reason for the change"
+                      value={draft.changeReason}
+                      onChange={(e) => update({ changeReason: e.target.value })}
+                      error={fieldError('changeReason')}
+                    />
                     <div className="flex flex-wrap gap-2">
                       {quickReasons.map((r) => (
-                        <button key={r} type="button" onClick={() => update({ changeReason: r })} className="min-h-touch rounded-md border-2 border-basalt-300 bg-basalt-50 px-3 font-semibold">
+                        <button
+                          key={r}
+                          type="button"
+                          onClick={() => update({ changeReason: r })}
+                          className="min-h-touch rounded-md border-2 border-basalt-300 bg-basalt-50 px-3 font-semibold"
+                        >
                           {r}
                         </button>
                       ))}
                     </div>
                   </div>
                   <div className="md:col-span-2">
-                    <CutterPicker cutters={fittingCutters} value={draft.fitted} onChange={(fitted) => update({ fitted })} error={fieldError('fitted')} />
+                    <CutterPicker
+                      cutters={fittingCutters}
+                      value={draft.fitted}
+                      onChange={(fitted) => update({ fitted })}
+                      error={fieldError('fitted')}
+                    />
                   </div>
                 </div>
               )}
@@ -281,7 +340,12 @@ export function EntryForm(props: Props) {
           <div className={`grid gap-2 ${readOnly ? 'grid-cols-2' : 'grid-cols-[1fr_1.6fr_1fr]'}`}>
             <NavButton onClick={props.onPrev} label="Previous" number={props.prevNumber} direction="prev" />
             {!readOnly && (
-              <button type="submit" form={formId} disabled={saving} className="min-h-16 rounded-md bg-ember-600 px-3 text-lead font-bold text-white hover:bg-ember-700 disabled:bg-basalt-400">
+              <button
+                type="submit"
+                form={formId}
+                disabled={saving}
+                className="min-h-16 rounded-md bg-ember-600 px-3 text-lead font-bold text-white hover:bg-ember-700 disabled:bg-basalt-400"
+              >
                 {saving ? 'Saving…' : 'Save position'}
               </button>
             )}
@@ -295,9 +359,28 @@ export function EntryForm(props: Props) {
 
 const knownPaths = ['wearMm', 'conditions', 'removedSerial', 'fitted', 'changeReason', 'note', 'photos'];
 
-function NavButton({ onClick, label, number, direction }: { onClick: (() => void) | null; label: string; number?: number; direction: 'prev' | 'next' }) {
+function NavButton({
+  onClick,
+  label,
+  number,
+  direction,
+}: {
+  onClick: (() => void) | null;
+  label: string;
+  number?: number;
+  direction: 'prev' | 'next';
+}) {
   const arrow = (
-    <svg viewBox="0 0 16 16" aria-hidden="true" className="h-5 w-5 shrink-0" fill="none" stroke="currentColor" strokeWidth={3} strokeLinecap="round" strokeLinejoin="round">
+    <svg
+      viewBox="0 0 16 16"
+      aria-hidden="true"
+      className="h-5 w-5 shrink-0"
+      fill="none"
+      stroke="currentColor"
+      strokeWidth={3}
+      strokeLinecap="round"
+      strokeLinejoin="round"
+    >
       <path d={direction === 'prev' ? 'M10 3L5 8l5 5' : 'M6 3l5 5-5 5'} />
     </svg>
   );
@@ -320,7 +403,9 @@ function NoteField({ value, onChange, error }: { value: string; onChange: (v: st
   const id = useId();
   return (
     <div className="space-y-1">
-      <label htmlFor={id} className="block text-lead font-semibold">Note</label>
+      <label htmlFor={id} className="block text-lead font-semibold">
+        Note
+      </label>
       <textarea
         id={id}
         rows={4}
@@ -370,7 +455,9 @@ function Photos({ projectId, files, storedIds, waiting, onFiles, error }: Photos
       {error && <p className="font-semibold text-alarm-700">{error}</p>}
       <ul className="flex flex-wrap gap-4 pt-2">
         {storedIds.map((pid) => (
-          <li key={pid}><img src={photoUrl(projectId, pid)} alt="Stored photo" className="h-20 w-20 rounded border-2 border-basalt-300 object-cover" /></li>
+          <li key={pid}>
+            <img src={photoUrl(projectId, pid)} alt="Stored photo" className="h-20 w-20 rounded border-2 border-basalt-300 object-cover" />
+          </li>
         ))}
         {files.map((f, i) => (
           <li key={`${i}-${f.name}-${f.lastModified}`} className="relative">
@@ -387,12 +474,12 @@ function Photos({ projectId, files, storedIds, waiting, onFiles, error }: Photos
         ))}
       </ul>
       <p className="text-caption text-basalt-700">
-        {storedIds.length} stored{waiting > 0 && `, ${waiting} waiting to be sent`}{files.length > 0 && `, ${files.length} new — sent with “Save position”`}.
+        {storedIds.length} stored{waiting > 0 && `, ${waiting} waiting to be sent`}
+        {files.length > 0 && `, ${files.length} new — sent with “Save position”`}.
       </p>
     </div>
   );
 }
-
 
 const THUMB_PX = 160;
 const thumbnails = new WeakMap<File, Promise<string>>();
@@ -427,7 +514,15 @@ function Thumbnail({ file }: { file: File }) {
     };
   }, [file]);
   const frame = 'h-20 w-20 rounded border-2 border-ember-500';
-  return src
-    ? <img src={src} alt={`New photo ${file.name}`} className={`${frame} object-cover`} />
-    : <span role="img" aria-label={`New photo ${file.name}`} className={`${frame} flex items-center justify-center break-all bg-basalt-100 p-1 text-caption`}>{file.name}</span>;
+  return src ? (
+    <img src={src} alt={`New photo ${file.name}`} className={`${frame} object-cover`} />
+  ) : (
+    <span
+      role="img"
+      aria-label={`New photo ${file.name}`}
+      className={`${frame} flex items-center justify-center break-all bg-basalt-100 p-1 text-caption`}
+    >
+      {file.name}
+    </span>
+  );
 }

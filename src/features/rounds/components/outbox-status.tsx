@@ -32,12 +32,20 @@ export function SaveStatus({ items, sending }: { items: QueuedItem[]; sending: b
   return (
     <div role="status" aria-live="polite" className="flex flex-wrap items-center gap-x-4 gap-y-1 text-lead font-semibold">
       {waiting === 0 && refused === 0 ? (
-        <span className="inline-flex items-center gap-2 text-moss-700"><DoneMark className="h-5 w-5" /> Saved</span>
-      ) : waiting > 0 && (
-        <span className="inline-flex items-center gap-2 rounded bg-caution-100 px-2 text-caution-700">
-          <WaitingMark className="h-5 w-5" />
-          {online && sending ? `Sending (${waiting})…` : waitingReason ? `Waiting (${waiting}): ${waitingReason}` : `Waiting for network (${waiting})`}
+        <span className="inline-flex items-center gap-2 text-moss-700">
+          <DoneMark className="h-5 w-5" /> Saved
         </span>
+      ) : (
+        waiting > 0 && (
+          <span className="inline-flex items-center gap-2 rounded bg-caution-100 px-2 text-caution-700">
+            <WaitingMark className="h-5 w-5" />
+            {online && sending
+              ? `Sending (${waiting})…`
+              : waitingReason
+                ? `Waiting (${waiting}): ${waitingReason}`
+                : `Waiting for network (${waiting})`}
+          </span>
+        )
       )}
       {refused > 0 && (
         <span className="inline-flex items-center gap-2 rounded bg-alarm-100 px-2 text-alarm-700">
@@ -60,19 +68,26 @@ export function AttentionList({ items, positionNumber, onOpen }: AttentionProps)
   if (refused.length === 0) return null;
   return (
     <section aria-labelledby="attention-heading" className="space-y-2 rounded-lg border-[3px] border-alarm-700 bg-alarm-100 p-3">
-      <h2 id="attention-heading" className="flex items-center gap-2 text-alarm-700"><RefusedMark className="h-5 w-5" /> Needs attention</h2>
+      <h2 id="attention-heading" className="flex items-center gap-2 text-alarm-700">
+        <RefusedMark className="h-5 w-5" /> Needs attention
+      </h2>
       <ul className="space-y-2">
         {refused.map((item) => {
           const what = `${item.kind === 'photo' ? 'Photo for position' : 'Position'} ${positionNumber(item.positionId) ?? '?'}`;
           return (
             <li key={item.key} className="flex flex-wrap items-center gap-2 rounded-md bg-white p-2">
-              <p className="min-w-48 flex-1"><strong>{what}:</strong> {item.error?.message}</p>
+              <p className="min-w-48 flex-1">
+                <strong>{what}:</strong> {item.error?.message}
+              </p>
               {item.kind === 'entry' && <Button onClick={() => onOpen(item.positionId)}>Open to fix</Button>}
-              <Button variant="secondary" onClick={() => void retryItem(item)}>Send again</Button>
+              <Button variant="secondary" onClick={() => void retryItem(item)}>
+                Send again
+              </Button>
               <Button
                 variant="ghost"
                 onClick={() => {
-                  if (window.confirm(`Discard this ${item.kind === 'photo' ? 'photo' : 'entry'} (${what})? It will not be stored.`)) void discardItem(item);
+                  if (window.confirm(`Discard this ${item.kind === 'photo' ? 'photo' : 'entry'} (${what})? It will not be stored.`))
+                    void discardItem(item);
                 }}
               >
                 Discard
@@ -93,11 +108,18 @@ export function OutboxBanner() {
   const rounds = [...new Map(items.map((i) => [i.roundId, i])).values()];
   const refused = items.filter((i) => i.state === 'attention').length;
   return (
-    <Alert tone={refused ? 'error' : 'caution'} title={`${items.length} item(s) on this device are not stored yet${refused ? `, ${refused} refused` : ''}`}>
+    <Alert
+      tone={refused ? 'error' : 'caution'}
+      title={`${items.length} item(s) on this device are not stored yet${refused ? `, ${refused} refused` : ''}`}
+    >
       <p>They are sent when the network is back. Open the round to see them:</p>
       <ul className="flex flex-wrap gap-2">
         {rounds.map((i) => (
-          <li key={i.roundId}><Link className="inline-flex min-h-touch items-center font-semibold underline" to={paths.round(i.projectId, i.roundId)}>Round {i.roundId.slice(0, 8)}</Link></li>
+          <li key={i.roundId}>
+            <Link className="inline-flex min-h-touch items-center font-semibold underline" to={paths.round(i.projectId, i.roundId)}>
+              Round {i.roundId.slice(0, 8)}
+            </Link>
+          </li>
         ))}
       </ul>
     </Alert>

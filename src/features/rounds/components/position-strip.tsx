@@ -19,7 +19,12 @@ export interface PositionMark {
  * for a queued entry the flags are worked out here the way the server does (limit reached, or a
  * condition that calls for a change, and no change made).
  */
-export function positionMark(position: RoundPosition, stored: RoundEntry | undefined, queued: QueuedEntry | undefined, edited: boolean): PositionMark {
+export function positionMark(
+  position: RoundPosition,
+  stored: RoundEntry | undefined,
+  queued: QueuedEntry | undefined,
+  edited: boolean,
+): PositionMark {
   if (queued) {
     const { overLimit } = wearState(queued.body.wearMm, position.wearLimitMm);
     const needsChange = queued.body.action === 'none' && (overLimit || conditionNeedsChange(queued.body.conditions));
@@ -29,7 +34,12 @@ export function positionMark(position: RoundPosition, stored: RoundEntry | undef
   return { state: 'todo', overLimit: false, needsChange: false, edited };
 }
 
-const stateWords: Record<PositionState, string> = { todo: 'not done', saved: 'saved', waiting: 'waiting to be sent', refused: 'refused, needs attention' };
+const stateWords: Record<PositionState, string> = {
+  todo: 'not done',
+  saved: 'saved',
+  waiting: 'waiting to be sent',
+  refused: 'refused, needs attention',
+};
 
 const tileStyle: Record<PositionState, string> = {
   todo: 'border-2 border-basalt-400 bg-white text-basalt-900',
@@ -66,7 +76,14 @@ export function PositionStrip({ positions, marks, currentId, onPick, grid }: Pro
         const m = marks.get(p.id)!;
         const Mark = stateMark[m.state];
         const isCurrent = p.id === currentId;
-        const words = [stateWords[m.state], m.overLimit && 'over the wear limit', m.needsChange && 'needs a change', m.edited && 'edited, not saved'].filter(Boolean).join(', ');
+        const words = [
+          stateWords[m.state],
+          m.overLimit && 'over the wear limit',
+          m.needsChange && 'needs a change',
+          m.edited && 'edited, not saved',
+        ]
+          .filter(Boolean)
+          .join(', ');
         return (
           <li key={p.id} className="shrink-0">
             <button
@@ -79,15 +96,25 @@ export function PositionStrip({ positions, marks, currentId, onPick, grid }: Pro
               className={`relative flex h-11 w-11 items-center justify-center rounded-md text-body font-bold ${tileStyle[m.state]} ${isCurrent ? 'ring-4 ring-ember-500 ring-offset-2' : ''}`}
             >
               {p.number}
-              <span className="absolute left-px top-px"><Mark className="h-3.5 w-3.5" /></span>
-              {m.edited && <span className="absolute bottom-px left-px"><DraftMark className="h-3.5 w-3.5" /></span>}
+              <span className="absolute left-px top-px">
+                <Mark className="h-3.5 w-3.5" />
+              </span>
+              {m.edited && (
+                <span className="absolute bottom-px left-px">
+                  <DraftMark className="h-3.5 w-3.5" />
+                </span>
+              )}
               {m.overLimit && (
-                <span className={`absolute -right-1 -top-1 inline-flex h-[18px] w-[18px] items-center justify-center rounded-full ring-2 ring-white ${overLimitBadge}`}>
+                <span
+                  className={`absolute -right-1 -top-1 inline-flex h-[18px] w-[18px] items-center justify-center rounded-full ring-2 ring-white ${overLimitBadge}`}
+                >
                   <OverLimitMark className="h-2.5 w-2.5" />
                 </span>
               )}
               {m.needsChange && (
-                <span className={`absolute -bottom-1 -right-1 inline-flex h-[18px] w-[18px] items-center justify-center rounded-full ring-2 ring-white ${changeBadge}`}>
+                <span
+                  className={`absolute -bottom-1 -right-1 inline-flex h-[18px] w-[18px] items-center justify-center rounded-full ring-2 ring-white ${changeBadge}`}
+                >
                   <ChangeMark className="h-3 w-3" />
                 </span>
               )}

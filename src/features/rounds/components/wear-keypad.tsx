@@ -46,8 +46,12 @@ export function WearKeypad({ text, notMeasured, onChange, error, disabled, child
   const press = (key: string) => onChange({ wearText: pressWearKey(notMeasured ? '' : text, key), notMeasured: false });
   return (
     <fieldset disabled={disabled} className="space-y-2">
-      <legend className="mb-1 text-lead font-semibold"><label htmlFor={id}>Radial wear (mm)</label></legend>
-      <div className={`flex items-center rounded-md border-[3px] bg-white px-3 focus-within:border-ember-500 ${error ? 'border-alarm-500' : 'border-basalt-700'}`}>
+      <legend className="mb-1 text-lead font-semibold">
+        <label htmlFor={id}>Radial wear (mm)</label>
+      </legend>
+      <div
+        className={`flex items-center rounded-md border-[3px] bg-white px-3 focus-within:border-ember-500 ${error ? 'border-alarm-500' : 'border-basalt-700'}`}
+      >
         <input
           ref={input}
           id={id}
@@ -61,9 +65,15 @@ export function WearKeypad({ text, notMeasured, onChange, error, disabled, child
           aria-describedby={error ? `${id}-error` : undefined}
           className="min-h-14 w-full min-w-0 bg-transparent text-right text-display tabular-nums outline-none placeholder:text-lead placeholder:text-basalt-500"
         />
-        <span aria-hidden="true" className="pl-2 text-lead text-basalt-600">mm</span>
+        <span aria-hidden="true" className="pl-2 text-lead text-basalt-600">
+          mm
+        </span>
       </div>
-      {error && <p id={`${id}-error`} className="font-semibold text-alarm-700">{error}</p>}
+      {error && (
+        <p id={`${id}-error`} className="font-semibold text-alarm-700">
+          {error}
+        </p>
+      )}
       <div role="group" aria-label="Wear keypad" className="grid grid-cols-3 gap-2">
         {keys.map((k) => (
           <button
@@ -77,7 +87,9 @@ export function WearKeypad({ text, notMeasured, onChange, error, disabled, child
           </button>
         ))}
       </div>
-      <Toggle pressed={notMeasured} onToggle={() => onChange({ notMeasured: !notMeasured })} className="text-lead">Not measured</Toggle>
+      <Toggle pressed={notMeasured} onToggle={() => onChange({ notMeasured: !notMeasured })} className="text-lead">
+        Not measured
+      </Toggle>
       {children}
     </fieldset>
   );

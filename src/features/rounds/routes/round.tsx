@@ -19,7 +19,11 @@ import { useOutbox, type QueuedEntry, type QueuedItem } from '../offline-queue';
 /** Puts what the server just stored into the cached round, so the screen shows it before the refetch. */
 function withStored(detail: RoundDetail, item: QueuedItem, answer: unknown): RoundDetail {
   if (item.kind === 'entry') {
-    const { entry, overLimit, needsChange } = answer as { entry: Omit<RoundEntry, 'overLimit' | 'needsChange' | 'photoIds'>; overLimit: boolean; needsChange: boolean };
+    const { entry, overLimit, needsChange } = answer as {
+      entry: Omit<RoundEntry, 'overLimit' | 'needsChange' | 'photoIds'>;
+      overLimit: boolean;
+      needsChange: boolean;
+    };
     const before = detail.entries.find((e) => e.positionId === entry.positionId);
     const updated: RoundEntry = { ...entry, overLimit, needsChange, photoIds: before?.photoIds ?? [] };
     return { ...detail, entries: [...detail.entries.filter((e) => e.positionId !== entry.positionId), updated] };
@@ -27,7 +31,9 @@ function withStored(detail: RoundDetail, item: QueuedItem, answer: unknown): Rou
   const photo = answer as { id: string; entryId: string };
   return {
     ...detail,
-    entries: detail.entries.map((e) => (e.id === photo.entryId && !e.photoIds.includes(photo.id) ? { ...e, photoIds: [...e.photoIds, photo.id] } : e)),
+    entries: detail.entries.map((e) =>
+      e.id === photo.entryId && !e.photoIds.includes(photo.id) ? { ...e, photoIds: [...e.photoIds, photo.id] } : e,
+    ),
   };
 }
 
@@ -46,7 +52,8 @@ export function RoundRoute() {
     if (item.projectId !== projectId) return;
     if (item.roundId === roundId) queryClient.setQueryData(detailQuery.queryKey, (old) => old && withStored(old, item, answer));
     void queryClient.invalidateQueries({ queryKey: roundQueries.all(projectId) });
-    if (item.kind === 'entry' && item.body.action === 'changed') void queryClient.invalidateQueries({ queryKey: roundQueries.inStore(projectId).queryKey });
+    if (item.kind === 'entry' && item.body.action === 'changed')
+      void queryClient.invalidateQueries({ queryKey: roundQueries.inStore(projectId).queryKey });
   });
   const [order, setOrder] = useState<Order>('number');
   const [grid, setGrid] = useState(false);
@@ -68,7 +75,9 @@ export function RoundRoute() {
   const queuedByPosition = new Map<string, QueuedEntry>();
   for (const i of roundItems) if (i.kind === 'entry') queuedByPosition.set(i.positionId, i); // in queue order: the newest wins
   const storedByPosition = new Map(entries.map((e) => [e.positionId, e]));
-  const marks = new Map(positions.map((p) => [p.id, positionMark(p, storedByPosition.get(p.id), queuedByPosition.get(p.id), p.id in drafts)]));
+  const marks = new Map(
+    positions.map((p) => [p.id, positionMark(p, storedByPosition.get(p.id), queuedByPosition.get(p.id), p.id in drafts)]),
+  );
 
   if (positions.length === 0) {
     return (
@@ -79,7 +88,10 @@ export function RoundRoute() {
     );
   }
 
-  const index = Math.max(0, ordered.findIndex((p) => String(p.number) === params.get('p')));
+  const index = Math.max(
+    0,
+    ordered.findIndex((p) => String(p.number) === params.get('p')),
+  );
   const position = ordered[index];
   const prev = ordered[index - 1];
   const next = ordered[index + 1];
@@ -110,17 +122,27 @@ export function RoundRoute() {
       <div className="flex flex-wrap items-center justify-between gap-x-4 gap-y-2">
         <div>
           <h1 className="text-lead font-bold md:text-title">
-            <Link to={paths.rounds(projectId)} className="font-semibold underline">Rounds</Link>
+            <Link to={paths.rounds(projectId)} className="font-semibold underline">
+              Rounds
+            </Link>
             <span aria-hidden="true"> › </span>
             {formatSiteDateTime(round.startedAt, tz)}
           </h1>
           <p className="text-basalt-700">
-            Chainage {formatChainage(round.chainageM)}{round.ringNumber != null && ` · ring ${round.ringNumber}`}{round.crew && ` · ${round.crew}`}
-            {' · '}<strong>{round.closedAt ? 'closed' : 'open'}</strong>
+            Chainage {formatChainage(round.chainageM)}
+            {round.ringNumber != null && ` · ring ${round.ringNumber}`}
+            {round.crew && ` · ${round.crew}`}
+            {' · '}
+            <strong>{round.closedAt ? 'closed' : 'open'}</strong>
           </p>
         </div>
         <div role="group" aria-label="Walking order" className="flex gap-2">
-          {([['number', 'By number'], ['last', 'As last round']] as const).map(([value, label]) => (
+          {(
+            [
+              ['number', 'By number'],
+              ['last', 'As last round'],
+            ] as const
+          ).map(([value, label]) => (
             <button
               key={value}
               type="button"
@@ -139,14 +161,23 @@ export function RoundRoute() {
       <div className="rounded-lg border-2 border-basalt-300 bg-white px-2 py-2">
         <div className="flex flex-wrap items-center justify-between gap-2 px-1">
           <p className="font-semibold" aria-live="polite">
-            {done} of {positions.length} done{waiting > 0 && ` (${waiting} waiting to be sent)`} · {over} over limit · {change} need{change === 1 ? 's' : ''} a change
+            {done} of {positions.length} done{waiting > 0 && ` (${waiting} waiting to be sent)`} · {over} over limit · {change} need
+            {change === 1 ? 's' : ''} a change
           </p>
-          <button type="button" aria-expanded={grid} aria-controls="position-strip" onClick={() => setGrid((g) => !g)} className="min-h-touch rounded-md border-2 border-basalt-400 px-3 font-semibold">
+          <button
+            type="button"
+            aria-expanded={grid}
+            aria-controls="position-strip"
+            onClick={() => setGrid((g) => !g)}
+            className="min-h-touch rounded-md border-2 border-basalt-400 px-3 font-semibold"
+          >
             {grid ? 'One row' : 'Show all'}
           </button>
         </div>
         <PositionStrip positions={ordered} marks={marks} currentId={position.id} onPick={goTo} grid={grid} />
-        <div className="hidden md:block"><Legend /></div>
+        <div className="hidden md:block">
+          <Legend />
+        </div>
         <details className="md:hidden">
           <summary className="flex min-h-touch cursor-pointer items-center font-semibold">What the marks mean</summary>
           <Legend />
@@ -154,9 +185,17 @@ export function RoundRoute() {
       </div>
 
       {/* The current position's own refusal is shown in its form. */}
-      <AttentionList items={roundItems.filter((i) => i.kind !== 'entry' || i.positionId !== position.id)} positionNumber={(id) => positions.find((p) => p.id === id)?.number} onOpen={goTo} />
+      <AttentionList
+        items={roundItems.filter((i) => i.kind !== 'entry' || i.positionId !== position.id)}
+        positionNumber={(id) => positions.find((p) => p.id === id)?.number}
+        onOpen={goTo}
+      />
       {readOnly && (
-        <Alert tone="info">{round.closedAt ? 'This round is closed; what was recorded is shown.' : 'You can look at this round; recording is for fitters and planners.'}</Alert>
+        <Alert tone="info">
+          {round.closedAt
+            ? 'This round is closed; what was recorded is shown.'
+            : 'You can look at this round; recording is for fitters and planners.'}
+        </Alert>
       )}
 
       <EntryForm
@@ -189,7 +228,9 @@ export function RoundRoute() {
           <Button variant="secondary" onClick={onClose} disabled={roundItems.length > 0}>
             Close the round
           </Button>
-          {roundItems.length > 0 && <p className="text-caption text-basalt-700">The round can be closed once everything on this device is stored.</p>}
+          {roundItems.length > 0 && (
+            <p className="text-caption text-basalt-700">The round can be closed once everything on this device is stored.</p>
+          )}
         </div>
       )}
     </section>

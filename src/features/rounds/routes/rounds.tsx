@@ -29,7 +29,10 @@ export function RoundsRoute() {
     col.accessor('startedAt', {
       header: 'Date',
       cell: ({ row }) => (
-        <Link to={paths.round(projectId, row.original.id)} className="inline-flex min-h-touch items-center font-semibold text-ember-700 underline">
+        <Link
+          to={paths.round(projectId, row.original.id)}
+          className="inline-flex min-h-touch items-center font-semibold text-ember-700 underline"
+        >
           {formatSiteDateTime(row.original.startedAt, tz)}
         </Link>
       ),
@@ -103,13 +106,19 @@ function StartRoundForm({ projectId, timeZone }: { projectId: string; timeZone: 
   return (
     <Panel title="Start a round">
       <form onSubmit={onSubmit} noValidate className="grid gap-4 md:grid-cols-2">
-        {message && <div className="md:col-span-2"><Alert tone="error">{message}</Alert></div>}
+        {message && (
+          <div className="md:col-span-2">
+            <Alert tone="error">{message}</Alert>
+          </div>
+        )}
         <TextField label={`Date and time (site time, ${timeZone})`} type="datetime-local" {...bind('startedAt')} />
         <TextField label="Chainage (m)" inputMode="decimal" {...bind('chainageM')} hint="Where the machine stands, in metres." />
         <TextField label="Ring" inputMode="numeric" {...bind('ringNumber')} hint="Optional." />
         <TextField label="Crew" {...bind('crew')} hint="Who walks the positions." />
         <div className="md:col-span-2">
-          <Button type="submit" className="min-h-14 px-6 text-lead" disabled={busy}>{busy ? 'Starting…' : 'Start the round'}</Button>
+          <Button type="submit" className="min-h-14 px-6 text-lead" disabled={busy}>
+            {busy ? 'Starting…' : 'Start the round'}
+          </Button>
         </div>
       </form>
     </Panel>

@@ -28,24 +28,38 @@ export function StopPlanRoute() {
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
   const { data: plan } = useSuspenseQuery(stopQueries.plan(projectId, overrides));
   const canPlan = roleCan(project.role, 'stops.plan');
-  const ahead = plan.horizonEndChainageM != null && plan.currentChainageM != null ? Math.abs(plan.horizonEndChainageM - plan.currentChainageM) : null;
+  const ahead =
+    plan.horizonEndChainageM != null && plan.currentChainageM != null ? Math.abs(plan.horizonEndChainageM - plan.currentChainageM) : null;
 
   return (
-    <Page title="Stop plan" actions={<Link className={linkClass} to={paths.stops(projectId)}>All stops</Link>}>
+    <Page
+      title="Stop plan"
+      actions={
+        <Link className={linkClass} to={paths.stops(projectId)}>
+          All stops
+        </Link>
+      }
+    >
       <p className="max-w-prose">
         {plan.currentChainageM == null
           ? 'The machine’s position is not known yet.'
           : `Machine at ${formatChainage(plan.currentChainageM)}, ring ${plan.currentRingNumber}. `}
-        {ahead != null && `Planned to ${formatChainage(plan.horizonEndChainageM)} (${ahead.toFixed(0)} m ahead) over ${plan.candidatePlaceCount} ring ends where a stop is allowed. `}
-        Worked out {formatDateTime(plan.now, project.siteTimeZone)} (site time) from the cautious (P90) forecast: no cutter should pass its wear limit between stops.
+        {ahead != null &&
+          `Planned to ${formatChainage(plan.horizonEndChainageM)} (${ahead.toFixed(0)} m ahead) over ${plan.candidatePlaceCount} ring ends where a stop is allowed. `}
+        Worked out {formatDateTime(plan.now, project.siteTimeZone)} (site time) from the cautious (P90) forecast: no cutter should pass its
+        wear limit between stops.
       </p>
 
-      {plan.problems.map((p) => <Alert key={p} tone="caution" title={p} />)}
+      {plan.problems.map((p) => (
+        <Alert key={p} tone="caution" title={p} />
+      ))}
       {plan.infeasible.length > 0 && (
         <Alert tone="error" title="Positions no plan can keep within their limit">
           <ul className="list-disc pl-6">
             {plan.infeasible.map((p) => (
-              <li key={p.positionId}>Position {p.positionNumber}, due at {formatChainage(p.dueChainageM)}: {p.reason}.</li>
+              <li key={p.positionId}>
+                Position {p.positionNumber}, due at {formatChainage(p.dueChainageM)}: {p.reason}.
+              </li>
             ))}
           </ul>
         </Alert>
@@ -63,19 +77,36 @@ export function StopPlanRoute() {
             {plan.optimised.stops.length === 0 ? (
               <p>No cutter reaches its cautious limit within the plan: no stop is needed.</p>
             ) : (
-              <StopTable projectId={projectId} stops={plan.optimised.stops} timeZone={project.siteTimeZone} canPlan={canPlan} label="Planned stops" />
+              <StopTable
+                projectId={projectId}
+                stops={plan.optimised.stops}
+                timeZone={project.siteTimeZone}
+                canPlan={canPlan}
+                label="Planned stops"
+              />
             )}
           </Panel>
-          {[{ name: `Site practice (change at ${plan.settings.practiceChangeSharePercent} % of the limit)`, view: plan.practice }, { name: `A stop every ${plan.settings.fixedIntervalM} m`, view: plan.fixedInterval }].map(({ name, view }) => view && (
-            <details key={name} className="rounded-lg border border-basalt-200 bg-white p-4">
-              <summary className="min-h-touch cursor-pointer font-semibold">{name}: {view.stops.length} stops, {hoursText(view.cost.totalH)}, for comparison</summary>
-              <StopTable projectId={projectId} stops={view.stops} timeZone={project.siteTimeZone} canPlan={false} label={name} />
-            </details>
-          ))}
+          {[
+            { name: `Site practice (change at ${plan.settings.practiceChangeSharePercent} % of the limit)`, view: plan.practice },
+            { name: `A stop every ${plan.settings.fixedIntervalM} m`, view: plan.fixedInterval },
+          ].map(
+            ({ name, view }) =>
+              view && (
+                <details key={name} className="rounded-lg border border-basalt-200 bg-white p-4">
+                  <summary className="min-h-touch cursor-pointer font-semibold">
+                    {name}: {view.stops.length} stops, {hoursText(view.cost.totalH)}, for comparison
+                  </summary>
+                  <StopTable projectId={projectId} stops={view.stops} timeZone={project.siteTimeZone} canPlan={false} label={name} />
+                </details>
+              ),
+          )}
         </>
       )}
 
-      <AssumptionsPanel settings={plan.settings} onApply={(q) => setSearch(new URLSearchParams(Object.entries(q).map(([k, v]) => [k, String(v)])))} />
+      <AssumptionsPanel
+        settings={plan.settings}
+        onApply={(q) => setSearch(new URLSearchParams(Object.entries(q).map(([k, v]) => [k, String(v)])))}
+      />
     </Page>
   );
 }
@@ -102,25 +133,42 @@ function CostComparison({ plan }: { plan: StopPlan }) {
   ].filter((r): r is { name: string; view: PlanView } => r.view !== null);
   const saving = (h: number | null, against: string) =>
     h == null ? null : h > 1e-6 ? `saves ${hoursText(h)} against ${against}` : `is no better than ${against}`;
-  const sentences = [saving(plan.savingVsPracticeH, 'site practice'), saving(plan.savingVsIntervalH, `a stop every ${plan.settings.fixedIntervalM} m`)].filter(Boolean);
+  const sentences = [
+    saving(plan.savingVsPracticeH, 'site practice'),
+    saving(plan.savingVsIntervalH, `a stop every ${plan.settings.fixedIntervalM} m`),
+  ].filter(Boolean);
   return (
     <div className="space-y-3">
       <div className="overflow-x-auto">
         <table className="min-w-full text-left" aria-label="Cost of the plans, in hours">
           <thead className="bg-basalt-100">
             <tr>
-              <th scope="col" className="px-3 py-1">Plan</th>
-              <th scope="col" className="px-3 py-1 text-right">Stops</th>
-              <th scope="col" className="px-3 py-1 text-right">Stop hours</th>
-              <th scope="col" className="px-3 py-1 text-right">Change hours</th>
-              <th scope="col" className="px-3 py-1 text-right">Ring life thrown away</th>
-              <th scope="col" className="px-3 py-1 text-right">Total</th>
+              <th scope="col" className="px-3 py-1">
+                Plan
+              </th>
+              <th scope="col" className="px-3 py-1 text-right">
+                Stops
+              </th>
+              <th scope="col" className="px-3 py-1 text-right">
+                Stop hours
+              </th>
+              <th scope="col" className="px-3 py-1 text-right">
+                Change hours
+              </th>
+              <th scope="col" className="px-3 py-1 text-right">
+                Ring life thrown away
+              </th>
+              <th scope="col" className="px-3 py-1 text-right">
+                Total
+              </th>
             </tr>
           </thead>
           <tbody>
             {rows.map(({ name, view }) => (
               <tr key={name} className="border-t border-basalt-100">
-                <th scope="row" className="px-3 py-1">{name}</th>
+                <th scope="row" className="px-3 py-1">
+                  {name}
+                </th>
                 <td className="px-3 py-1 text-right">{view.stops.length}</td>
                 <td className="px-3 py-1 text-right">{hoursText(view.cost.stopH)}</td>
                 <td className="px-3 py-1 text-right">{hoursText(view.cost.changeH)}</td>
@@ -131,7 +179,9 @@ function CostComparison({ plan }: { plan: StopPlan }) {
           </tbody>
         </table>
       </div>
-      {sentences.length > 0 && <p className="font-semibold">The optimised plan {sentences.join(' and ')}: the totals of the tables below.</p>}
+      {sentences.length > 0 && (
+        <p className="font-semibold">The optimised plan {sentences.join(' and ')}: the totals of the tables below.</p>
+      )}
     </div>
   );
 }
@@ -159,7 +209,12 @@ function LongSection({ plan }: { plan: StopPlan }) {
   const shade = (name: string | null) => ['#e7e3dc', '#cfc8bb', '#b3a996', '#968a74', '#7a6e59'][grounds.indexOf(name ?? 'unknown') % 5];
   return (
     <figure className="mb-4">
-      <svg viewBox={`0 0 ${SVG_W} ${SVG_H}`} className="w-full" role="img" aria-label={`Long section from ${formatChainage(from)} to ${formatChainage(to)} with ${plan.optimised.stops.length} planned stops`}>
+      <svg
+        viewBox={`0 0 ${SVG_W} ${SVG_H}`}
+        className="w-full"
+        role="img"
+        aria-label={`Long section from ${formatChainage(from)} to ${formatChainage(to)} with ${plan.optimised.stops.length} planned stops`}
+      >
         <defs>
           <pattern id="no-stop-hatch" width="8" height="8" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
             <line x1="0" y1="0" x2="0" y2="8" stroke="#7f1d1d" strokeWidth="2" />
@@ -172,58 +227,111 @@ function LongSection({ plan }: { plan: StopPlan }) {
               <rect x={a} y={STRIP_Y} width={b - a} height={STRIP_H} fill={shade(s.groundName)} stroke="#3f3a33" strokeWidth="0.5">
                 <title>{`${s.groundName ?? 'Unknown ground'}, ${formatChainage(s.chainageFromM)}–${formatChainage(s.chainageToM)}, water head ${s.waterHeadM} m${s.stopAllowed ? '' : `; no stop: ${s.stopReason || 'not allowed'}`}`}</title>
               </rect>
-              {b - a > 70 && <text x={(a + b) / 2} y={STRIP_Y + 17} textAnchor="middle" fontSize="12" fill="#1c1917">{s.groundName ?? 'unknown'}</text>}
+              {b - a > 70 && (
+                <text x={(a + b) / 2} y={STRIP_Y + 17} textAnchor="middle" fontSize="12" fill="#1c1917">
+                  {s.groundName ?? 'unknown'}
+                </text>
+              )}
               {!s.stopAllowed && (
                 <>
                   <rect x={a} y={STRIP_Y - 10} width={b - a} height={8} fill="url(#no-stop-hatch)" />
-                  {b - a > 40 && <text x={(a + b) / 2} y={STRIP_Y + STRIP_H + 14} textAnchor="middle" fontSize="11" fill="#7f1d1d">no stop</text>}
+                  {b - a > 40 && (
+                    <text x={(a + b) / 2} y={STRIP_Y + STRIP_H + 14} textAnchor="middle" fontSize="11" fill="#7f1d1d">
+                      no stop
+                    </text>
+                  )}
                 </>
               )}
               <line x1={a} x2={b} y1={y(s.waterHeadM)} y2={y(s.waterHeadM)} stroke="#1d4ed8" strokeWidth="2" />
             </g>
           );
         })}
-        <line x1={30} x2={SVG_W - 30} y1={y(plan.compressedAirAboveHeadM)} y2={y(plan.compressedAirAboveHeadM)} stroke="#1d4ed8" strokeDasharray="6 4" strokeWidth="1" />
-        <text x={SVG_W - 30} y={y(plan.compressedAirAboveHeadM) - 4} textAnchor="end" fontSize="11" fill="#1d4ed8">compressed air above {plan.compressedAirAboveHeadM} m head</text>
+        <line
+          x1={30}
+          x2={SVG_W - 30}
+          y1={y(plan.compressedAirAboveHeadM)}
+          y2={y(plan.compressedAirAboveHeadM)}
+          stroke="#1d4ed8"
+          strokeDasharray="6 4"
+          strokeWidth="1"
+        />
+        <text x={SVG_W - 30} y={y(plan.compressedAirAboveHeadM) - 4} textAnchor="end" fontSize="11" fill="#1d4ed8">
+          compressed air above {plan.compressedAirAboveHeadM} m head
+        </text>
         {plan.optimised.stops.map((s, i) => {
           const cx = x(s.chainageM);
           const cy = 20;
           return (
             <g key={s.chainageM}>
               <line x1={cx} x2={cx} y1={cy + 7} y2={STRIP_Y} stroke="#57534e" strokeWidth="0.75" />
-              {s.compressedAir
-                ? <rect x={cx - 6} y={cy - 6} width={12} height={12} transform={`rotate(45 ${cx} ${cy})`} fill="#b45309" />
-                : <circle cx={cx} cy={cy} r={6} fill="#ffffff" stroke="#1c1917" strokeWidth="2" />}
+              {s.compressedAir ? (
+                <rect x={cx - 6} y={cy - 6} width={12} height={12} transform={`rotate(45 ${cx} ${cy})`} fill="#b45309" />
+              ) : (
+                <circle cx={cx} cy={cy} r={6} fill="#ffffff" stroke="#1c1917" strokeWidth="2" />
+              )}
               <title>{`Stop ${i + 1} at ${formatChainage(s.chainageM)}, ${s.compressedAir ? 'compressed air' : 'free air'}, ${s.changes.length} positions`}</title>
-              <text x={cx} y={cy - 10} textAnchor="middle" fontSize="10" fill="#1c1917">{i + 1}</text>
+              <text x={cx} y={cy - 10} textAnchor="middle" fontSize="10" fill="#1c1917">
+                {i + 1}
+              </text>
             </g>
           );
         })}
-        <text x={30} y={SVG_H - 4} fontSize="11" fill="#1c1917">{formatChainage(from)} (machine)</text>
-        <text x={SVG_W - 30} y={SVG_H - 4} textAnchor="end" fontSize="11" fill="#1c1917">{formatChainage(to)}</text>
+        <text x={30} y={SVG_H - 4} fontSize="11" fill="#1c1917">
+          {formatChainage(from)} (machine)
+        </text>
+        <text x={SVG_W - 30} y={SVG_H - 4} textAnchor="end" fontSize="11" fill="#1c1917">
+          {formatChainage(to)}
+        </text>
       </svg>
       <figcaption className="text-caption text-basalt-700">
-        ○ stop in free air · ◆ stop in compressed air · blue line: water head above the axis (dashed: the site’s compressed-air threshold) · hatched: no stop allowed · strip: ground type.
+        ○ stop in free air · ◆ stop in compressed air · blue line: water head above the axis (dashed: the site’s compressed-air threshold) ·
+        hatched: no stop allowed · strip: ground type.
       </figcaption>
     </figure>
   );
 }
 
 /** The stops as a compact table; a row opens to its positions (and, for the optimised plan, a way to propose it). */
-function StopTable({ projectId, stops, timeZone, canPlan, label }: { projectId: string; stops: PlanStop[]; timeZone: string; canPlan: boolean; label: string }) {
+function StopTable({
+  projectId,
+  stops,
+  timeZone,
+  canPlan,
+  label,
+}: {
+  projectId: string;
+  stops: PlanStop[];
+  timeZone: string;
+  canPlan: boolean;
+  label: string;
+}) {
   const [open, setOpen] = useState<number | null>(null);
   return (
     <div className="overflow-x-auto">
       <table className="min-w-full text-left text-caption" aria-label={label}>
         <thead className="bg-basalt-100">
           <tr>
-            <th scope="col" className="px-2 py-1">#</th>
-            <th scope="col" className="px-2 py-1">Chainage</th>
-            <th scope="col" className="px-2 py-1 text-right">Ring</th>
-            <th scope="col" className="px-2 py-1">Expected</th>
-            <th scope="col" className="px-2 py-1 text-right">Positions</th>
-            <th scope="col" className="px-2 py-1 text-right">Hours (stop + changes + ring life)</th>
-            <th scope="col" className="px-2 py-1">Air</th>
+            <th scope="col" className="px-2 py-1">
+              #
+            </th>
+            <th scope="col" className="px-2 py-1">
+              Chainage
+            </th>
+            <th scope="col" className="px-2 py-1 text-right">
+              Ring
+            </th>
+            <th scope="col" className="px-2 py-1">
+              Expected
+            </th>
+            <th scope="col" className="px-2 py-1 text-right">
+              Positions
+            </th>
+            <th scope="col" className="px-2 py-1 text-right">
+              Hours (stop + changes + ring life)
+            </th>
+            <th scope="col" className="px-2 py-1">
+              Air
+            </th>
           </tr>
         </thead>
         <tbody>
@@ -232,14 +340,22 @@ function StopTable({ projectId, stops, timeZone, canPlan, label }: { projectId: 
               <tr className="border-t border-basalt-100">
                 <td className="px-2 py-0.5">{i + 1}</td>
                 <td className="px-2 py-0.5">
-                  <button type="button" className="min-h-touch font-semibold text-ember-700 underline underline-offset-2" aria-expanded={open === i} onClick={() => setOpen(open === i ? null : i)}>
+                  <button
+                    type="button"
+                    className="min-h-touch font-semibold text-ember-700 underline underline-offset-2"
+                    aria-expanded={open === i}
+                    onClick={() => setOpen(open === i ? null : i)}
+                  >
                     {formatChainage(s.chainageM)}
                   </button>
                 </td>
                 <td className="px-2 py-0.5 text-right">{s.ringNumber}</td>
                 <td className="px-2 py-0.5">{s.expectedAt ? formatDate(s.expectedAt, timeZone) : '—'}</td>
                 <td className="px-2 py-0.5 text-right">{s.changes.length}</td>
-                <td className="px-2 py-0.5 text-right">{hoursText(s.stopH + s.changeH + s.wastedRingLifeH)} ({s.stopH.toFixed(1)} + {s.changeH.toFixed(1)} + {s.wastedRingLifeH.toFixed(1)})</td>
+                <td className="px-2 py-0.5 text-right">
+                  {hoursText(s.stopH + s.changeH + s.wastedRingLifeH)} ({s.stopH.toFixed(1)} + {s.changeH.toFixed(1)} +{' '}
+                  {s.wastedRingLifeH.toFixed(1)})
+                </td>
                 <td className="px-2 py-0.5">{s.compressedAir ? '◆ compressed air' : '○ free air'}</td>
               </tr>
               {open === i && (
@@ -280,23 +396,38 @@ function StopDetail({ projectId, stop, canPlan }: { projectId: string; stop: Pla
     }
   };
   return (
-    <div role="group" aria-label={`Stop at ${formatChainage(stop.chainageM)}`} className="space-y-2 rounded-md border border-basalt-200 p-2 text-body">
+    <div
+      role="group"
+      aria-label={`Stop at ${formatChainage(stop.chainageM)}`}
+      className="space-y-2 rounded-md border border-basalt-200 p-2 text-body"
+    >
       <div className="flex flex-wrap items-center gap-x-3">
-        <span>{stop.aheadM.toFixed(0)} m ahead{stop.waterHeadM != null && ` · water head ${stop.waterHeadM} m`}</span>
+        <span>
+          {stop.aheadM.toFixed(0)} m ahead{stop.waterHeadM != null && ` · water head ${stop.waterHeadM} m`}
+        </span>
         <AirBadge compressedAir={stop.compressedAir} workingPressureBar={stop.workingPressureBar} />
       </div>
       <ul className="flex flex-wrap gap-x-3">
         {stop.changes.map((c) => (
           <li key={c.positionId}>
-            {c.positionNumber} <span className="text-caption text-basalt-600">({positionClassLabels[c.positionClass].toLowerCase()}, {c.wearAtChangeMm.toFixed(1)} of {c.limitMm} mm)</span>
+            {c.positionNumber}{' '}
+            <span className="text-caption text-basalt-600">
+              ({positionClassLabels[c.positionClass].toLowerCase()}, {c.wearAtChangeMm.toFixed(1)} of {c.limitMm} mm)
+            </span>
           </li>
         ))}
       </ul>
       {error && <Alert tone="error">{error}</Alert>}
       {stop.existingStopId ? (
-        <Link className={linkClass} to={paths.stop(projectId, stop.existingStopId)}>Open the stop already proposed here</Link>
+        <Link className={linkClass} to={paths.stop(projectId, stop.existingStopId)}>
+          Open the stop already proposed here
+        </Link>
       ) : (
-        canPlan && <Button variant="secondary" onClick={propose} disabled={busy}>{busy ? 'Proposing…' : 'Propose this stop'}</Button>
+        canPlan && (
+          <Button variant="secondary" onClick={propose} disabled={busy}>
+            {busy ? 'Proposing…' : 'Propose this stop'}
+          </Button>
+        )
       )}
     </div>
   );
@@ -305,19 +436,46 @@ function StopDetail({ projectId, stop, canPlan }: { projectId: string; stop: Pla
 const settingFields: { key: keyof StopPlanQuery; label: string; hint: string; value: (s: StopPlanSettings) => number }[] = [
   { key: 'horizonM', label: 'Horizon (m ahead)', hint: 'How far ahead to plan.', value: (s) => s.horizonM },
   { key: 'freeAirStopH', label: 'Hours per free-air stop', hint: 'Fixed time of a stop.', value: (s) => s.freeAirStopH },
-  { key: 'compressedAirStopH', label: 'Hours per compressed-air stop', hint: 'Locking in and out, slower work.', value: (s) => s.compressedAirStopH },
+  {
+    key: 'compressedAirStopH',
+    label: 'Hours per compressed-air stop',
+    hint: 'Locking in and out, slower work.',
+    value: (s) => s.compressedAirStopH,
+  },
   { key: 'changeHCentre', label: 'Hours per centre change', hint: 'Twin hubs take longer.', value: (s) => s.changeHByClass.centre },
   { key: 'changeHFace', label: 'Hours per face change', hint: 'One face disc.', value: (s) => s.changeHByClass.face },
   { key: 'changeHGauge', label: 'Hours per gauge change', hint: 'One gauge disc.', value: (s) => s.changeHByClass.gauge },
-  { key: 'wastedRingLifeHPerMm', label: 'Hours per mm of ring life thrown away', hint: 'The price of a ring, as boring time.', value: (s) => s.wastedRingLifeHPerMm },
-  { key: 'compressedAirAboveHeadM', label: 'Compressed air above water head (m)', hint: 'The site’s rule for this drive.', value: (s) => s.compressedAirAboveHeadM },
-  { key: 'practiceChangeSharePercent', label: 'Site practice: change at % of the limit', hint: 'Discs worn past this share are changed at every stop (common practice, no source).', value: (s) => s.practiceChangeSharePercent },
-  { key: 'fixedIntervalM', label: 'Fixed interval (m between stops)', hint: 'The rule of a stop every N metres, for comparison.', value: (s) => s.fixedIntervalM },
+  {
+    key: 'wastedRingLifeHPerMm',
+    label: 'Hours per mm of ring life thrown away',
+    hint: 'The price of a ring, as boring time.',
+    value: (s) => s.wastedRingLifeHPerMm,
+  },
+  {
+    key: 'compressedAirAboveHeadM',
+    label: 'Compressed air above water head (m)',
+    hint: 'The site’s rule for this drive.',
+    value: (s) => s.compressedAirAboveHeadM,
+  },
+  {
+    key: 'practiceChangeSharePercent',
+    label: 'Site practice: change at % of the limit',
+    hint: 'Discs worn past this share are changed at every stop (common practice, no source).',
+    value: (s) => s.practiceChangeSharePercent,
+  },
+  {
+    key: 'fixedIntervalM',
+    label: 'Fixed interval (m between stops)',
+    hint: 'The rule of a stop every N metres, for comparison.',
+    value: (s) => s.fixedIntervalM,
+  },
 ];
 
 /** The plan's assumptions; changing them recalculates the plan (they travel in the page address, nothing is saved). */
 function AssumptionsPanel({ settings, onApply }: { settings: StopPlan['settings']; onApply: (q: StopPlanQuery) => void }) {
-  const [values, setValues] = useState(() => Object.fromEntries(settingFields.map((f) => [f.key, String(f.value(settings))])) as Record<keyof StopPlanQuery, string>);
+  const [values, setValues] = useState(
+    () => Object.fromEntries(settingFields.map((f) => [f.key, String(f.value(settings))])) as Record<keyof StopPlanQuery, string>,
+  );
   const [errors, setErrors] = useState<Partial<Record<keyof StopPlanQuery, string>>>({});
   const onSubmit = (e: FormEvent) => {
     e.preventDefault();

@@ -3,7 +3,13 @@ import { useState, type FormEvent, type ReactNode } from 'react';
 import { Link, useParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { roleCan } from '../../../../shared/roles';
-import { cancelStopInputSchema, canStop, scheduleStopInputSchema, stopStatusLabels, type ScheduleStopInput } from '../../../../shared/schemas/stop';
+import {
+  cancelStopInputSchema,
+  canStop,
+  scheduleStopInputSchema,
+  stopStatusLabels,
+  type ScheduleStopInput,
+} from '../../../../shared/schemas/stop';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
@@ -48,7 +54,12 @@ type StopChanger = ReturnType<typeof useStopAction>;
 export function StopRoute() {
   const { projectId = '', stopId = '' } = useParams();
   const [{ data: project }, { data: pack }, { data: crews }, { data: rounds }] = useSuspenseQueries({
-    queries: [projectQueries.detail(projectId), stopQueries.detail(projectId, stopId), stopQueries.crews(projectId), stopQueries.rounds(projectId)],
+    queries: [
+      projectQueries.detail(projectId),
+      stopQueries.detail(projectId, stopId),
+      stopQueries.crews(projectId),
+      stopQueries.rounds(projectId),
+    ],
   });
   const action = useStopAction(projectId, stopId);
   const { stop } = pack;
@@ -60,8 +71,12 @@ export function StopRoute() {
       title={`Stop at ${formatChainage(stop.chainageM)}`}
       actions={
         <div className="no-print flex flex-wrap gap-2">
-          <Button variant="secondary" onClick={() => window.print()}>Print work pack</Button>
-          <Link className={linkClass} to={paths.stops(projectId)}>All stops</Link>
+          <Button variant="secondary" onClick={() => window.print()}>
+            Print work pack
+          </Button>
+          <Link className={linkClass} to={paths.stops(projectId)}>
+            All stops
+          </Link>
         </div>
       }
     >
@@ -73,14 +88,22 @@ export function StopRoute() {
       <WorkPackView pack={pack} projectName={project.name} timeZone={project.siteTimeZone} />
 
       <div className="no-print space-y-6">
-        {canPlan && canStop('schedule', stop.status) && <ScheduleForm pack={pack} crews={crews} timeZone={project.siteTimeZone} action={action} />}
+        {canPlan && canStop('schedule', stop.status) && (
+          <ScheduleForm pack={pack} crews={crews} timeZone={project.siteTimeZone} action={action} />
+        )}
         {canPlan && stop.status === 'scheduled' && (
           <Panel title="Publish">
             {stop.publishedAt ? (
-              <p>Published {formatSiteDateTime(stop.publishedAt, project.siteTimeZone)}: the crew has the work pack. Change the schedule to publish again.</p>
+              <p>
+                Published {formatSiteDateTime(stop.publishedAt, project.siteTimeZone)}: the crew has the work pack. Change the schedule to
+                publish again.
+              </p>
             ) : (
               <div className="space-y-3">
-                <p>Every member of {pack.crew?.name ?? 'the crew'} gets the work pack and the cautions by e-mail, and reminders before the start.</p>
+                <p>
+                  Every member of {pack.crew?.name ?? 'the crew'} gets the work pack and the cautions by e-mail, and reminders before the
+                  start.
+                </p>
                 <Button onClick={() => action.run({ kind: 'publish' }, 'Published: the crew is told by e-mail.')} disabled={action.busy}>
                   Publish to the crew
                 </Button>
@@ -90,7 +113,9 @@ export function StopRoute() {
         )}
         {canRun && canStop('start', stop.status) && (
           <Panel title="At the face">
-            <Button onClick={() => action.run({ kind: 'start', input: {} }, 'Started: the stop is in progress.')} disabled={action.busy}>Start the stop now</Button>
+            <Button onClick={() => action.run({ kind: 'start', input: {} }, 'Started: the stop is in progress.')} disabled={action.busy}>
+              Start the stop now
+            </Button>
           </Panel>
         )}
         {canRun && canStop('complete', stop.status) && <CompleteForm rounds={rounds} timeZone={project.siteTimeZone} action={action} />}
@@ -117,51 +142,91 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
     <article aria-label="Work pack" className="work-pack space-y-4 rounded-lg border border-basalt-200 bg-white p-4 shadow-sm">
       <header>
         <p className="text-caption text-basalt-600">{projectName} · work pack</p>
-        <h2>Cutter stop at {formatChainage(stop.chainageM)}{stop.ringNumber != null && `, ring ${stop.ringNumber}`}</h2>
+        <h2>
+          Cutter stop at {formatChainage(stop.chainageM)}
+          {stop.ringNumber != null && `, ring ${stop.ringNumber}`}
+        </h2>
       </header>
       <dl className="grid grid-cols-2 gap-3 md:grid-cols-3 print:grid-cols-3">
-        <Fact label="Status">{stopStatusLabels[stop.status]}{stop.publishedAt && ' · published'}</Fact>
-        <Fact label="Air"><AirBadge compressedAir={stop.compressedAir} workingPressureBar={stop.workingPressureBar} /></Fact>
-        <Fact label={`Planned start (${timeZone})`}>{stop.plannedStart ? formatSiteDateTime(stop.plannedStart, timeZone) : 'Not scheduled'}</Fact>
+        <Fact label="Status">
+          {stopStatusLabels[stop.status]}
+          {stop.publishedAt && ' · published'}
+        </Fact>
+        <Fact label="Air">
+          <AirBadge compressedAir={stop.compressedAir} workingPressureBar={stop.workingPressureBar} />
+        </Fact>
+        <Fact label={`Planned start (${timeZone})`}>
+          {stop.plannedStart ? formatSiteDateTime(stop.plannedStart, timeZone) : 'Not scheduled'}
+        </Fact>
         <Fact label="Expected duration">{hoursText(stop.expectedHours)}</Fact>
-        <Fact label="Crew">{pack.crew ? `${pack.crew.name} (${pack.crew.members.map((m) => m.name).join(', ') || 'no members'})` : 'None yet'}</Fact>
+        <Fact label="Crew">
+          {pack.crew ? `${pack.crew.name} (${pack.crew.members.map((m) => m.name).join(', ') || 'no members'})` : 'None yet'}
+        </Fact>
         {(stop.actualStart || stop.actualEnd) && (
           <Fact label="Actual">
-            {formatSiteDateTime(stop.actualStart, timeZone)} – {stop.actualEnd ? formatSiteDateTime(stop.actualEnd, timeZone) : 'in progress'}
+            {formatSiteDateTime(stop.actualStart, timeZone)} –{' '}
+            {stop.actualEnd ? formatSiteDateTime(stop.actualEnd, timeZone) : 'in progress'}
             {stop.actualHours != null && ` (${hoursText(stop.actualHours)})`}
           </Fact>
         )}
-        {pack.round && <Fact label="Inspection round">{formatSiteDateTime(pack.round.startedAt, timeZone)} at {formatChainage(pack.round.chainageM)}</Fact>}
+        {pack.round && (
+          <Fact label="Inspection round">
+            {formatSiteDateTime(pack.round.startedAt, timeZone)} at {formatChainage(pack.round.chainageM)}
+          </Fact>
+        )}
         {stop.cancelReason && <Fact label="Cancelled because">{stop.cancelReason}</Fact>}
       </dl>
 
       <StopCautions cautions={pack.cautions} />
 
       <section aria-labelledby="wp-positions">
-        <h3 id="wp-positions" className="font-semibold">Positions to change ({pack.positions.length})</h3>
+        <h3 id="wp-positions" className="font-semibold">
+          Positions to change ({pack.positions.length})
+        </h3>
         <div className="overflow-x-auto">
           <table className="min-w-full text-left">
             <thead className="bg-basalt-100">
               <tr>
-                <th scope="col" className={th}>Position</th>
-                <th scope="col" className={th}>Class</th>
-                <th scope="col" className={`${th} text-right`}>Track radius</th>
-                <th scope="col" className={th}>Disc</th>
-                <th scope="col" className={th}>Serial off</th>
-                <th scope="col" className={`${th} text-right`}>Expected wear</th>
-                <th scope="col" className={th}>Serial on</th>
+                <th scope="col" className={th}>
+                  Position
+                </th>
+                <th scope="col" className={th}>
+                  Class
+                </th>
+                <th scope="col" className={`${th} text-right`}>
+                  Track radius
+                </th>
+                <th scope="col" className={th}>
+                  Disc
+                </th>
+                <th scope="col" className={th}>
+                  Serial off
+                </th>
+                <th scope="col" className={`${th} text-right`}>
+                  Expected wear
+                </th>
+                <th scope="col" className={th}>
+                  Serial on
+                </th>
               </tr>
             </thead>
             <tbody>
               {pack.positions.map((p) => (
                 <tr key={p.positionId} className="border-t border-basalt-100">
                   <td className={`${td} font-semibold`}>{p.number}</td>
-                  <td className={td}>{positionClassLabels[p.positionClass]}{p.twinDisc && ', twin'}</td>
+                  <td className={td}>
+                    {positionClassLabels[p.positionClass]}
+                    {p.twinDisc && ', twin'}
+                  </td>
                   <td className={`${td} text-right`}>{p.trackRadiusMm.toFixed(0)} mm</td>
                   <td className={td}>{p.discSizeIn}″</td>
                   <td className={td}>{p.fittedSerial ?? '—'}</td>
-                  <td className={`${td} text-right`}>{p.expectedWearMm == null ? '—' : `${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm`}</td>
-                  <td className={`${td} min-w-32`}><span className="block h-6 border-b-2 border-dotted border-basalt-400" aria-label="To be written in" /></td>
+                  <td className={`${td} text-right`}>
+                    {p.expectedWearMm == null ? '—' : `${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm`}
+                  </td>
+                  <td className={`${td} min-w-32`}>
+                    <span className="block h-6 border-b-2 border-dotted border-basalt-400" aria-label="To be written in" />
+                  </td>
                 </tr>
               ))}
             </tbody>
@@ -172,18 +237,38 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
 
       <div className="grid gap-4 md:grid-cols-2 print:grid-cols-2">
         <section aria-labelledby="wp-store">
-          <h3 id="wp-store" className="font-semibold">Take from the store ({pack.storeSerials.length})</h3>
+          <h3 id="wp-store" className="font-semibold">
+            Take from the store ({pack.storeSerials.length})
+          </h3>
           {pack.shortages.map((s) => (
-            <Alert key={s.discSizeIn} tone="caution" title={`Short of ${s.discSizeIn}″ cutters: ${s.needed} needed, ${s.inStore} in store.`} />
+            <Alert
+              key={s.discSizeIn}
+              tone="caution"
+              title={`Short of ${s.discSizeIn}″ cutters: ${s.needed} needed, ${s.inStore} in store.`}
+            />
           ))}
           {pack.storeSerials.length > 0 ? (
             <table className="min-w-full text-left">
               <thead className="bg-basalt-100">
-                <tr><th scope="col" className={th}>Serial</th><th scope="col" className={th}>Disc</th><th scope="col" className={`${th} text-right`}>Rebuilds</th></tr>
+                <tr>
+                  <th scope="col" className={th}>
+                    Serial
+                  </th>
+                  <th scope="col" className={th}>
+                    Disc
+                  </th>
+                  <th scope="col" className={`${th} text-right`}>
+                    Rebuilds
+                  </th>
+                </tr>
               </thead>
               <tbody>
                 {pack.storeSerials.map((c) => (
-                  <tr key={c.cutterId} className="border-t border-basalt-100"><td className={td}>{c.serial}</td><td className={td}>{c.discSizeIn}″</td><td className={`${td} text-right`}>{c.rebuildCount}</td></tr>
+                  <tr key={c.cutterId} className="border-t border-basalt-100">
+                    <td className={td}>{c.serial}</td>
+                    <td className={td}>{c.discSizeIn}″</td>
+                    <td className={`${td} text-right`}>{c.rebuildCount}</td>
+                  </tr>
                 ))}
               </tbody>
             </table>
@@ -193,26 +278,50 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
           <p className="text-caption text-basalt-600">Fewest rebuilds first, then the longest in store.</p>
         </section>
         <section aria-labelledby="wp-kit">
-          <h3 id="wp-kit" className="font-semibold">Parts kit</h3>
+          <h3 id="wp-kit" className="font-semibold">
+            Parts kit
+          </h3>
           <table className="min-w-full text-left">
             <thead className="bg-basalt-100">
-              <tr><th scope="col" className={th}>Item</th><th scope="col" className={`${th} text-right`}>Qty</th><th scope="col" className={th}>Basis</th></tr>
+              <tr>
+                <th scope="col" className={th}>
+                  Item
+                </th>
+                <th scope="col" className={`${th} text-right`}>
+                  Qty
+                </th>
+                <th scope="col" className={th}>
+                  Basis
+                </th>
+              </tr>
             </thead>
             <tbody>
               {pack.partsKit.map((k) => (
-                <tr key={k.item} className="border-t border-basalt-100"><td className={td}>{k.item}</td><td className={`${td} text-right font-semibold`}>{k.quantity}</td><td className={`${td} text-caption`}>{k.basis}</td></tr>
+                <tr key={k.item} className="border-t border-basalt-100">
+                  <td className={td}>{k.item}</td>
+                  <td className={`${td} text-right font-semibold`}>{k.quantity}</td>
+                  <td className={`${td} text-caption`}>{k.basis}</td>
+                </tr>
               ))}
             </tbody>
           </table>
-          <p className="text-caption text-basalt-600">Spares per number of changes are common practice (no published source); adjust to the site’s history.</p>
+          <p className="text-caption text-basalt-600">
+            Spares per number of changes are common practice (no published source); adjust to the site’s history.
+          </p>
         </section>
       </div>
 
       {pack.crew && pack.crew.members.length > 0 && (
         <section aria-labelledby="wp-crew">
-          <h3 id="wp-crew" className="font-semibold">Crew: {pack.crew.name}</h3>
+          <h3 id="wp-crew" className="font-semibold">
+            Crew: {pack.crew.name}
+          </h3>
           <ul className="grid gap-x-4 md:grid-cols-2 print:grid-cols-2">
-            {pack.crew.members.map((m) => <li key={m.email}>{m.name} · {m.email}</li>)}
+            {pack.crew.members.map((m) => (
+              <li key={m.email}>
+                {m.name} · {m.email}
+              </li>
+            ))}
           </ul>
         </section>
       )}
@@ -249,7 +358,12 @@ function ScheduleForm({ pack, crews, timeZone, action }: { pack: WorkPack; crews
   };
   const airOption = (compressed: boolean, label: string) => (
     <label className="flex min-h-touch items-center gap-2 rounded-md border-2 border-basalt-300 px-3 has-[:checked]:border-ember-500">
-      <input type="radio" name="air" checked={values.compressedAir === compressed} onChange={() => setValues((v) => ({ ...v, compressedAir: compressed }))} />
+      <input
+        type="radio"
+        name="air"
+        checked={values.compressedAir === compressed}
+        onChange={() => setValues((v) => ({ ...v, compressedAir: compressed }))}
+      />
       {label}
     </label>
   );
@@ -271,9 +385,18 @@ function ScheduleForm({ pack, crews, timeZone, action }: { pack: WorkPack; crews
           hint="From the plan: stop hours plus change hours."
           onChange={(e) => setValues((v) => ({ ...v, expectedHours: e.target.value }))}
         />
-        <SelectField label="Crew" value={values.crewId} error={errors.crewId} onChange={(e) => setValues((v) => ({ ...v, crewId: e.target.value }))}>
+        <SelectField
+          label="Crew"
+          value={values.crewId}
+          error={errors.crewId}
+          onChange={(e) => setValues((v) => ({ ...v, crewId: e.target.value }))}
+        >
           <option value="">Choose a crew…</option>
-          {crews.map((c) => <option key={c.id} value={c.id}>{c.name} ({c.members.length} member{c.members.length === 1 ? '' : 's'})</option>)}
+          {crews.map((c) => (
+            <option key={c.id} value={c.id}>
+              {c.name} ({c.members.length} member{c.members.length === 1 ? '' : 's'})
+            </option>
+          ))}
         </SelectField>
         <fieldset className="space-y-1">
           <legend className="font-semibold">Air</legend>
@@ -282,11 +405,15 @@ function ScheduleForm({ pack, crews, timeZone, action }: { pack: WorkPack; crews
             {airOption(true, 'Compressed air')}
           </div>
           {values.compressedAir && stop.workingPressureBar != null && (
-            <p className="text-caption text-basalt-600">Indicative working pressure from the water head: {stop.workingPressureBar.toFixed(2)} bar.</p>
+            <p className="text-caption text-basalt-600">
+              Indicative working pressure from the water head: {stop.workingPressureBar.toFixed(2)} bar.
+            </p>
           )}
         </fieldset>
         <div className="md:col-span-2">
-          <Button type="submit" disabled={action.busy}>{stop.status === 'scheduled' ? 'Save the schedule' : 'Schedule the stop'}</Button>
+          <Button type="submit" disabled={action.busy}>
+            {stop.status === 'scheduled' ? 'Save the schedule' : 'Schedule the stop'}
+          </Button>
         </div>
       </form>
     </Panel>
@@ -298,14 +425,25 @@ function CompleteForm({ rounds, timeZone, action }: { rounds: RoundOption[]; tim
   return (
     <Panel title="Finish">
       <div className="grid gap-4 md:grid-cols-2">
-        <SelectField label="Inspection round done during the stop" value={roundId} onChange={(e) => setRoundId(e.target.value)} hint="Optional.">
+        <SelectField
+          label="Inspection round done during the stop"
+          value={roundId}
+          onChange={(e) => setRoundId(e.target.value)}
+          hint="Optional."
+        >
           <option value="">No round</option>
           {rounds.map((r) => (
-            <option key={r.id} value={r.id}>{formatSiteDateTime(r.startedAt, timeZone)} · {formatChainage(r.chainageM)}{r.crew && ` · ${r.crew}`}</option>
+            <option key={r.id} value={r.id}>
+              {formatSiteDateTime(r.startedAt, timeZone)} · {formatChainage(r.chainageM)}
+              {r.crew && ` · ${r.crew}`}
+            </option>
           ))}
         </SelectField>
         <div className="flex items-end">
-          <Button onClick={() => action.run({ kind: 'complete', input: { roundId: roundId || null } }, 'Done: the stop is complete.')} disabled={action.busy}>
+          <Button
+            onClick={() => action.run({ kind: 'complete', input: { roundId: roundId || null } }, 'Done: the stop is complete.')}
+            disabled={action.busy}
+          >
             Complete the stop now
           </Button>
         </div>
@@ -330,9 +468,17 @@ function CancelForm({ action }: { action: StopChanger }) {
   return (
     <Panel title="Cancel the stop">
       <form onSubmit={onSubmit} noValidate className="grid gap-4 md:grid-cols-2">
-        <TextField label="Reason" value={reason} error={error} onChange={(e) => setReason(e.target.value)} hint="The crew is told if the stop was published." />
+        <TextField
+          label="Reason"
+          value={reason}
+          error={error}
+          onChange={(e) => setReason(e.target.value)}
+          hint="The crew is told if the stop was published."
+        />
         <div className="flex items-end">
-          <Button type="submit" variant="danger" disabled={action.busy}>Cancel the stop</Button>
+          <Button type="submit" variant="danger" disabled={action.busy}>
+            Cancel the stop
+          </Button>
         </div>
       </form>
     </Panel>

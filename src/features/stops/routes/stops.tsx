@@ -30,26 +30,49 @@ export function StopsRoute() {
     col.accessor('chainageM', {
       header: 'Chainage',
       cell: ({ row }) => (
-        <Link to={paths.stop(projectId, row.original.id)} className={linkClass} aria-label={`Stop at ${formatChainage(row.original.chainageM)}`}>
+        <Link
+          to={paths.stop(projectId, row.original.id)}
+          className={linkClass}
+          aria-label={`Stop at ${formatChainage(row.original.chainageM)}`}
+        >
           {formatChainage(row.original.chainageM)}
         </Link>
       ),
     }),
     col.accessor('ringNumber', { header: 'Ring', cell: (c) => c.getValue() ?? '—' }),
     col.accessor((r) => stopStatusLabels[r.status], { id: 'status', header: 'Status' }),
-    col.accessor((r) => (r.compressedAir ? `Compressed air${r.workingPressureBar != null ? ` ${r.workingPressureBar.toFixed(2)} bar` : ''}` : 'Free air'), { id: 'air', header: 'Air' }),
-    col.accessor((r) => (r.plannedStart ? formatSiteDateTime(r.plannedStart, tz) : ''), { id: 'plannedStart', header: 'Planned start', cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span> }),
-    col.accessor('expectedHours', { header: 'Planned (h)', cell: (c) => hoursText(c.getValue()) }),
-    col.accessor((r) => (r.actualStart ? formatSiteDateTime(r.actualStart, tz) : ''), { id: 'actualStart', header: 'Actual start', cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span> }),
-    col.accessor((r) => (r.actualHours == null ? null : Math.round(r.actualHours * 10) / 10), { id: 'actualHours', header: 'Actual (h)', cell: (c) => hoursText(c.getValue()) }),
-    col.accessor((r) => (r.actualHours != null && r.expectedHours != null ? Math.round((r.actualHours - r.expectedHours) * 10) / 10 : null), {
-      id: 'overrun',
-      header: 'Overrun (h)',
-      cell: (c) => {
-        const v = c.getValue();
-        return v == null ? '—' : `${v > 0 ? '+' : ''}${v.toFixed(1)} h`;
-      },
+    col.accessor(
+      (r) =>
+        r.compressedAir ? `Compressed air${r.workingPressureBar != null ? ` ${r.workingPressureBar.toFixed(2)} bar` : ''}` : 'Free air',
+      { id: 'air', header: 'Air' },
+    ),
+    col.accessor((r) => (r.plannedStart ? formatSiteDateTime(r.plannedStart, tz) : ''), {
+      id: 'plannedStart',
+      header: 'Planned start',
+      cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span>,
     }),
+    col.accessor('expectedHours', { header: 'Planned (h)', cell: (c) => hoursText(c.getValue()) }),
+    col.accessor((r) => (r.actualStart ? formatSiteDateTime(r.actualStart, tz) : ''), {
+      id: 'actualStart',
+      header: 'Actual start',
+      cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span>,
+    }),
+    col.accessor((r) => (r.actualHours == null ? null : Math.round(r.actualHours * 10) / 10), {
+      id: 'actualHours',
+      header: 'Actual (h)',
+      cell: (c) => hoursText(c.getValue()),
+    }),
+    col.accessor(
+      (r) => (r.actualHours != null && r.expectedHours != null ? Math.round((r.actualHours - r.expectedHours) * 10) / 10 : null),
+      {
+        id: 'overrun',
+        header: 'Overrun (h)',
+        cell: (c) => {
+          const v = c.getValue();
+          return v == null ? '—' : `${v > 0 ? '+' : ''}${v.toFixed(1)} h`;
+        },
+      },
+    ),
     col.accessor((r) => r.crewName ?? '', { id: 'crew', header: 'Crew', cell: (c) => c.getValue() || '—' }),
     col.accessor('positionCount', { header: 'Positions' }),
   ];
@@ -57,20 +80,26 @@ export function StopsRoute() {
   return (
     <Page
       title="Stops"
-      actions={<Link className={linkClass} to={paths.stopPlan(projectId)}>{roleCan(project.role, 'stops.plan') ? 'Plan stops' : 'The stop plan'}</Link>}
+      actions={
+        <Link className={linkClass} to={paths.stopPlan(projectId)}>
+          {roleCan(project.role, 'stops.plan') ? 'Plan stops' : 'The stop plan'}
+        </Link>
+      }
     >
       <div className="max-w-xs">
-        <SelectField
-          label="Status"
-          value={status ?? ''}
-          onChange={(e) => setSearch(e.target.value ? { status: e.target.value } : {})}
-        >
+        <SelectField label="Status" value={status ?? ''} onChange={(e) => setSearch(e.target.value ? { status: e.target.value } : {})}>
           <option value="">All stops</option>
-          {stopStatuses.map((s) => <option key={s} value={s}>{stopStatusLabels[s]}</option>)}
+          {stopStatuses.map((s) => (
+            <option key={s} value={s}>
+              {stopStatusLabels[s]}
+            </option>
+          ))}
         </SelectField>
       </div>
       {error && <Alert tone="error">{error.message}</Alert>}
-      {isPending ? <p>Loading…</p> : (
+      {isPending ? (
+        <p>Loading…</p>
+      ) : (
         <DataTable
           data={stops ?? []}
           columns={columns}
