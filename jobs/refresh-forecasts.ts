@@ -63,15 +63,13 @@ export async function refreshForecastsJob({ now }: JobContext, options: { projec
           notes: `Proposed by the nightly forecast: ${due.length} position(s) reach their cautious limit within ${PROPOSAL_HORIZON_M} m.`,
         })
         .returning();
-      await tx
-        .insert(stopPositions)
-        .values(
-          due.map((p) => ({
-            stopId: stop.id,
-            positionId: p.position.positionId,
-            expectedWearMm: Math.min(p.position.allowableWearMm, p.p90.wearNowMm),
-          })),
-        );
+      await tx.insert(stopPositions).values(
+        due.map((p) => ({
+          stopId: stop.id,
+          positionId: p.position.positionId,
+          expectedWearMm: Math.min(p.position.allowableWearMm, p.p90.wearNowMm),
+        })),
+      );
       const to = (await recipientsFor(tx, drive.id, 'stop_proposed')).map((r) => r.email);
       if (to.length > 0) {
         await enqueueMail(tx, {

@@ -237,17 +237,15 @@ partsRouter.post('/orders/:orderId/lines/:lineId/receive', requireProject('parts
       .set({ qtyReceived: line.qtyReceived + input.qty })
       .where(eq(purchaseOrderLines.id, lineId))
       .returning();
-    await tx
-      .insert(stockMovements)
-      .values({
-        projectId,
-        partId: line.partId,
-        qty: input.qty,
-        kind: 'receipt',
-        note: input.note || `Order ${found.number}`,
-        purchaseOrderLineId: lineId,
-        userId: me.id,
-      });
+    await tx.insert(stockMovements).values({
+      projectId,
+      partId: line.partId,
+      qty: input.qty,
+      kind: 'receipt',
+      note: input.note || `Order ${found.number}`,
+      purchaseOrderLineId: lineId,
+      userId: me.id,
+    });
     await audit(tx, {
       userId: me.id,
       projectId,

@@ -301,30 +301,26 @@ async function changeCutter(tx: DbOrTx, { projectId, userId, round, position, cu
       },
     });
   }
-  await tx
-    .insert(fittings)
-    .values({
-      projectId,
-      cutterId: fitted.id,
-      positionId: position.id,
-      fittedAt: at,
-      fittedChainageM: round.chainageM,
-      fittedRing: round.ringNumber,
-    });
+  await tx.insert(fittings).values({
+    projectId,
+    cutterId: fitted.id,
+    positionId: position.id,
+    fittedAt: at,
+    fittedChainageM: round.chainageM,
+    fittedRing: round.ringNumber,
+  });
   await tx
     .update(cutters)
     .set({ status: 'fitted', updatedAt: sql`now()` })
     .where(eq(cutters.id, fitted.id));
-  await tx
-    .insert(cutterEvents)
-    .values({
-      projectId,
-      cutterId: fitted.id,
-      kind: 'fitted',
-      positionId: position.id,
-      userId,
-      at,
-      details: { chainageM: round.chainageM, ringNumber: round.ringNumber },
-    });
+  await tx.insert(cutterEvents).values({
+    projectId,
+    cutterId: fitted.id,
+    kind: 'fitted',
+    positionId: position.id,
+    userId,
+    at,
+    details: { chainageM: round.chainageM, ringNumber: round.ringNumber },
+  });
   return { removedCutterId, fittedCutterId: fitted.id };
 }

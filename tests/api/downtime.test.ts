@@ -55,15 +55,13 @@ describe('causes', () => {
   it('a project created through the admin API has the defaults, with cutter inspection, cutter change and compressed-air stops as cutter work', async () => {
     const admin = await makeUser({ isAdmin: true });
     const adminAgent: Agent = await signedInAgent(app, admin.email);
-    const created = await adminAgent
-      .post('/api/admin/projects')
-      .send({
-        name: uniq('Causes drive'),
-        excavatedDiameterM: 6.2,
-        startChainageM: 0,
-        driveDirection: 'increasing',
-        siteTimeZone: 'Europe/Zurich',
-      });
+    const created = await adminAgent.post('/api/admin/projects').send({
+      name: uniq('Causes drive'),
+      excavatedDiameterM: 6.2,
+      startChainageM: 0,
+      driveDirection: 'increasing',
+      siteTimeZone: 'Europe/Zurich',
+    });
     expect(created.status).toBe(201);
     const manager = await makeUser();
     await addMember(created.body.id, manager.id, 'site_manager');
@@ -297,14 +295,12 @@ describe('bad input changes nothing', () => {
   });
 
   it('lets events touch end to start, edits and deletes them with an audit row each', async () => {
-    const touching = await ctx.agent
-      .post(ctx.url('/events'))
-      .send({
-        startAt: '2026-03-23T04:00:00+01:00',
-        endAt: '2026-03-23T06:00:00+01:00',
-        causeId: ctx.causeId('Survey'),
-        note: 'Laser moved',
-      });
+    const touching = await ctx.agent.post(ctx.url('/events')).send({
+      startAt: '2026-03-23T04:00:00+01:00',
+      endAt: '2026-03-23T06:00:00+01:00',
+      causeId: ctx.causeId('Survey'),
+      note: 'Laser moved',
+    });
     expect(touching.status).toBe(201);
     expect(touching.body).toMatchObject({ hours: 2, causeName: 'Survey', note: 'Laser moved', source: 'manual' });
     const edited = await ctx.agent

@@ -160,35 +160,31 @@ describe('inspection entries', () => {
 
   it('a wrong removed serial or an unknown fitted serial is refused with the serial named', async () => {
     const pos = drive.positions[2];
-    const wrong = await fitter
-      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
-      .send(
-        entry({
-          positionId: pos.id,
-          action: 'changed',
-          removedSerial: 'NOT-ON-HUB',
-          fitted: { serial: drive.store[1].serial },
-          changeReason: 'x',
-        }),
-      );
+    const wrong = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(
+      entry({
+        positionId: pos.id,
+        action: 'changed',
+        removedSerial: 'NOT-ON-HUB',
+        fitted: { serial: drive.store[1].serial },
+        changeReason: 'x',
+      }),
+    );
     expect(wrong.status).toBe(409);
     expect(wrong.body.error.message).toMatch(/not NOT-ON-HUB/);
     const unknown = await fitter
       .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
       .send(entry({ positionId: pos.id, action: 'changed', fitted: { serial: 'NEVER-SEEN-1' }, changeReason: 'x' }));
     expect(unknown.status).toBe(404);
-    const asNew = await fitter
-      .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
-      .send(
-        entry({
-          positionId: pos.id,
-          wearMm: 10.0,
-          action: 'changed',
-          fitted: { serial: 'NEW-AT-FACE-1', isNew: true },
-          changeReason: 'Chipped ring',
-          conditions: ['chipped_ring'],
-        }),
-      );
+    const asNew = await fitter.post(`/api/projects/${projectId}/rounds/${roundId}/entries`).send(
+      entry({
+        positionId: pos.id,
+        wearMm: 10.0,
+        action: 'changed',
+        fitted: { serial: 'NEW-AT-FACE-1', isNew: true },
+        changeReason: 'Chipped ring',
+        conditions: ['chipped_ring'],
+      }),
+    );
     expect(asNew.status, JSON.stringify(asNew.body)).toBe(201);
   });
 

@@ -222,14 +222,12 @@ describe('demand and order suggestions, worked by hand', () => {
     expect(
       (await agent.put(`${base}/${unknown}`).send({ code: 'X', name: 'X', kind: 'hub', unitCost: 1, leadTimeMeanDays: 1 })).status,
     ).toBe(404);
-    const badBom = await agent
-      .put(`${base}/workshop`)
-      .send({
-        turnaroundDays: 10,
-        maxRebuilds: 3,
-        serviceLevel: 0.95,
-        boms: { [id.ASM17]: bomFor({ worn: [{ partId: unknown, qty: 1 }] }) },
-      });
+    const badBom = await agent.put(`${base}/workshop`).send({
+      turnaroundDays: 10,
+      maxRebuilds: 3,
+      serviceLevel: 0.95,
+      boms: { [id.ASM17]: bomFor({ worn: [{ partId: unknown, qty: 1 }] }) },
+    });
     expect(badBom.status).toBe(400);
     // A ring without its disc size, and a duplicate code.
     expect(

@@ -47,18 +47,16 @@ export async function loadBenchDrive(): Promise<string> {
     .insert(groundTypes)
     .values(benchGroundTypes.map((g) => ({ ...g, projectId })))
     .returning();
-  await db
-    .insert(geologySections)
-    .values(
-      benchGeology(START_M).map((s) => ({
-        projectId,
-        chainageFromM: s.fromM,
-        chainageToM: s.toM,
-        groundTypeId: grounds[s.ground].id,
-        stopAllowed: s.stopAllowed,
-        stopReason: s.stopAllowed ? '' : 'bench no-stop',
-      })),
-    );
+  await db.insert(geologySections).values(
+    benchGeology(START_M).map((s) => ({
+      projectId,
+      chainageFromM: s.fromM,
+      chainageToM: s.toM,
+      groundTypeId: grounds[s.ground].id,
+      stopAllowed: s.stopAllowed,
+      stopReason: s.stopAllowed ? '' : 'bench no-stop',
+    })),
+  );
   const layout = await db
     .insert(positions)
     .values(benchLayout().map((p) => ({ ...p, projectId })))
@@ -170,17 +168,15 @@ export async function benchImport(): Promise<string[]> {
     .insert(groundTypes)
     .values(benchGroundTypes.map((g) => ({ ...g, projectId: project.id })))
     .returning();
-  await db
-    .insert(geologySections)
-    .values(
-      benchGeology(START_M).map((s) => ({
-        projectId: project.id,
-        chainageFromM: s.fromM,
-        chainageToM: s.toM,
-        groundTypeId: grounds[s.ground].id,
-        stopAllowed: true,
-      })),
-    );
+  await db.insert(geologySections).values(
+    benchGeology(START_M).map((s) => ({
+      projectId: project.id,
+      chainageFromM: s.fromM,
+      chainageToM: s.toM,
+      groundTypeId: grounds[s.ground].id,
+      stopAllowed: true,
+    })),
+  );
   await db.insert(positions).values(benchLayout().map((p) => ({ ...p, projectId: project.id })));
   const email = `bench-${Date.now()}@kerfwise.test`;
   const [user] = await db

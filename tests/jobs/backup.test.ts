@@ -140,18 +140,16 @@ describe('nightly backup and restore', { timeout: 180_000 }, () => {
       const storedName = `${randomUUID()}.jpg`;
       const bytes = randomBytes(20_000 + i * 777);
       await writeFile(path.join(storageDir, 'photos', storedName), bytes);
-      await db
-        .insert(photos)
-        .values({
-          projectId: entry.projectId,
-          entryId: entry.id,
-          clientKey: randomUUID(),
-          storedName,
-          mimeType: 'image/jpeg',
-          sizeBytes: bytes.length,
-          originalName: `disc-${i}.jpg`,
-          uploadedBy: fitter.id,
-        });
+      await db.insert(photos).values({
+        projectId: entry.projectId,
+        entryId: entry.id,
+        clientKey: randomUUID(),
+        storedName,
+        mimeType: 'image/jpeg',
+        sizeBytes: bytes.length,
+        originalName: `disc-${i}.jpg`,
+        uploadedBy: fitter.id,
+      });
       photoNames.push(storedName);
     }
 

@@ -51,16 +51,14 @@ export async function makeSpringDowntimeDrive() {
   const causes = new Map(
     (await db.select().from(downtimeCauses).where(eq(downtimeCauses.projectId, project.id))).map((c) => [c.name, c.id]),
   );
-  await db
-    .insert(downtimeEvents)
-    .values(
-      springEvents.map((e) => ({
-        projectId: project.id,
-        startAt: new Date(e.startAt),
-        endAt: new Date(e.endAt),
-        causeId: causes.get(e.cause)!,
-      })),
-    );
+  await db.insert(downtimeEvents).values(
+    springEvents.map((e) => ({
+      projectId: project.id,
+      startAt: new Date(e.startAt),
+      endAt: new Date(e.endAt),
+      causeId: causes.get(e.cause)!,
+    })),
+  );
   await db.insert(strokes).values(springStrokes.map((s) => ({ ...s, projectId: project.id })));
   return project;
 }
