@@ -4,7 +4,7 @@
  * older ones. The run's summary carries size and duration; a failure is recorded by the job runner
  * and mailed to every active administrator.
  */
-import { and, eq, gt, like } from 'drizzle-orm';
+import { and, desc, eq, like } from 'drizzle-orm';
 import { db } from '../server/db/client';
 import { jobRuns, users } from '../server/db/schema';
 import { env } from '../server/env';
@@ -71,17 +71,15 @@ export async function backupWatchJob({ now }: JobContext): Promise<string> {
     .limit(1);
   if (status.missing && running) return 'A backup is running now; checked again at the next hour.';
   if (!status.missing) return `A backup is at most ${status.missingAfterHours} h old; nothing to do.`;
-  const [recent] = await db
-    .select({ id: jobRuns.id })
+  // The last time the watch mailed, as the run's own clock saw it (written into its summary).
+  const [lastMailed] = await db
+    .select({ summary: jobRuns.summary })
     .from(jobRuns)
-    .where(
-      and(
-        eq(jobRuns.job, BACKUP_WATCH_JOB),
-        like(jobRuns.summary, `${MAILED}%`),
-        gt(jobRuns.startedAt, new Date(now.getTime() - WATCH_REMIND_HOURS * 3600_000)),
-      ),
-    )
+    .where(and(eq(jobRuns.job, BACKUP_WATCH_JOB), like(jobRuns.summary, `${MAILED} at %`)))
+    .orderBy(desc(jobRuns.id))
     .limit(1);
+  const mailedAtMs = lastMailed?.summary ? Date.parse(lastMailed.summary.slice(`${MAILED} at `.length).split(' ')[0]) : NaN;
+  const recent = Number.isFinite(mailedAtMs) && now.getTime() - mailedAtMs < WATCH_REMIND_HOURS * 3600_000 && mailedAtMs <= now.getTime();
   const newest = status.newestAt ? `The newest good backup is from ${status.newestAt.toISOString()}.` : 'There is no good backup at all.';
   if (recent) return `Backups are missing (${newest}); the administrators were mailed within the last ${WATCH_REMIND_HOURS} h.`;
   const n = await mailAdministrators(
@@ -90,5 +88,5 @@ export async function backupWatchJob({ now }: JobContext): Promise<string> {
       `Backup folder: ${status.backupDir}\n${status.failedSince ? `Last failure: ${status.failedSince.error ?? 'no message'}\n` : ''}\n` +
       'Check Administration → Jobs: is the nightly backup running, and does it succeed? Run it there, or run "npm run backup" on the server.\n',
   );
-  return `${MAILED} (${n}): backups are missing. ${newest}`;
+  return `${MAILED} at ${now.toISOString()} (${n}): backups are missing. ${newest}`;
 }
