@@ -1,9 +1,7 @@
 import { useSuspenseQuery } from '@tanstack/react-query';
-import { useState } from 'react';
-import { proposeMapping, advanceLogRequiredColumns, type ColumnMapping } from '../../../../shared/csv-headers';
-import type { AdvanceLogField } from '../../../../shared/schemas/advance-log';
+import { advanceLogRequiredColumns } from '../../../../shared/csv-headers';
 import { advanceLogImportUrl, driveDataQueries } from '../api';
-import { ColumnMappingStep, readHeader } from './column-mapping';
+import { ColumnMappingStep, useColumnMappingChoice } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
 const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?? 0).toLocaleString('en-GB');
@@ -11,22 +9,10 @@ const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?
 /** The planner's import of the machine's advance log, with the column mapping as an optional step. */
 export function AdvanceLogImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
   const { data: known } = useSuspenseQuery(driveDataQueries.mapping(projectId));
-  const [headers, setHeaders] = useState<string[] | null>(null);
-  const [choice, setChoice] = useState<ColumnMapping<AdvanceLogField>>({});
-
-  const onFile = async (file: File | null) => {
-    setHeaders(null);
-    if (!file) return;
-    const read = await readHeader(file);
-    setHeaders(read);
-    setChoice(proposeMapping(read, known.fields, known.mapping));
-  };
-
-  // The choice is always sent once the header is read, so a mapping remembered from a file with
-  // other column names does not apply to this one.
+  const { headers, choice, setChoice, onFile, mappingParam } = useColumnMappingChoice(known);
   const url = (replace: boolean) => {
     const params = new URLSearchParams({ replace: String(replace) });
-    if (headers) params.set('mapping', JSON.stringify(choice));
+    if (mappingParam) params.set('mapping', mappingParam);
     return `${advanceLogImportUrl(projectId)}?${params}`;
   };
 

@@ -1,12 +1,32 @@
 import Papa from 'papaparse';
-import { useId } from 'react';
-import { missingColumnGroups, type ColumnMapping, type CsvFieldInfo } from '../../../../shared/csv-headers';
+import { useId, useState } from 'react';
+import { missingColumnGroups, proposeMapping, type ColumnMapping, type CsvFieldInfo } from '../../../../shared/csv-headers';
 
 /** The column names on the first line of a file, read in the browser (the file is not sent for this). */
 export async function readHeader(file: File): Promise<string[]> {
   const text = (await file.slice(0, 64 * 1024).text()).replace(/^\uFEFF/, '');
   const parsed = Papa.parse<string[]>(text, { preview: 1, delimitersToGuess: [',', ';', '\t'] });
   return (parsed.data[0] ?? []).map((h) => h.trim()).filter((h) => h !== '');
+}
+
+/**
+ * The mapping step's state for one import: the chosen file's header, read in the browser, and the
+ * column chosen for each field (proposed from the header and the mapping remembered on the server).
+ * `mappingParam` is what the upload URL carries once the header is read: the choice on screen is
+ * what the server uses, so a mapping remembered from a file with other column names does not apply.
+ */
+export function useColumnMappingChoice<F extends string>(known: { fields: CsvFieldInfo<F>[]; mapping: ColumnMapping<F> | null }) {
+  const [headers, setHeaders] = useState<string[] | null>(null);
+  const [choice, setChoice] = useState<ColumnMapping<F>>({});
+  const onFile = async (file: File | null) => {
+    setHeaders(null);
+    if (!file) return;
+    const read = await readHeader(file);
+    setHeaders(read);
+    setChoice(proposeMapping(read, known.fields, known.mapping));
+  };
+  const mappingParam = headers ? JSON.stringify(choice) : null;
+  return { headers, choice, setChoice, onFile, mappingParam };
 }
 
 /** Required fields no column was chosen for, in words ("End time", "Cutterhead revolutions or Penetration (mm/rev)"). */

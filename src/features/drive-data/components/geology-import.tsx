@@ -1,28 +1,15 @@
 import { useSuspenseQuery } from '@tanstack/react-query';
-import { useState } from 'react';
-import { geologySectionRequiredColumns, proposeMapping, type ColumnMapping } from '../../../../shared/csv-headers';
-import type { GeologySectionField } from '../../../../shared/schemas/advance-log';
+import { geologySectionRequiredColumns } from '../../../../shared/csv-headers';
 import { driveDataQueries, geologyImportUrl } from '../api';
-import { ColumnMappingStep, readHeader } from './column-mapping';
+import { ColumnMappingStep, useColumnMappingChoice } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
 /** The planner's import of the geology long section, with the column mapping as an optional step (as for the advance log). */
 export function GeologyImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
   const { data: known } = useSuspenseQuery(driveDataQueries.geologyMapping(projectId));
-  const [headers, setHeaders] = useState<string[] | null>(null);
-  const [choice, setChoice] = useState<ColumnMapping<GeologySectionField>>({});
-
-  const onFile = async (file: File | null) => {
-    setHeaders(null);
-    if (!file) return;
-    const read = await readHeader(file);
-    setHeaders(read);
-    setChoice(proposeMapping(read, known.fields, known.mapping));
-  };
-
-  // As for the advance log: once the header is read, the choice on screen is what the server uses.
+  const { headers, choice, setChoice, onFile, mappingParam } = useColumnMappingChoice(known);
   const url = () =>
-    headers ? `${geologyImportUrl(projectId)}?${new URLSearchParams({ mapping: JSON.stringify(choice) })}` : geologyImportUrl(projectId);
+    mappingParam ? `${geologyImportUrl(projectId)}?${new URLSearchParams({ mapping: mappingParam })}` : geologyImportUrl(projectId);
 
   return (
     <CsvUpload
