@@ -61,9 +61,20 @@ export function siteOffsetMinutes(at: Instant, timeZone: string): number {
   return tzOffset(timeZone, toDate(at));
 }
 
-/** ISO 8601 to the second with the site's offset then, e.g. 2026-03-14T06:00:00+01:00. */
+/**
+ * ISO 8601 to the second with the site's offset then, e.g. 2026-03-14T06:00:00+01:00 ("Z" when the
+ * offset is zero). The offset is the zone's at that very instant, so times next to a clock change
+ * are right; worked from the offset alone (no formatting library), as CSV imports and exports call
+ * this once a cell.
+ */
 export function isoWithSiteOffset(at: Instant, timeZone: string): string {
-  return format(new TZDate(toDate(at).getTime(), timeZone), "yyyy-MM-dd'T'HH:mm:ssXXX");
+  const ms = toDate(at).getTime();
+  const offsetMin = Math.round(tzOffset(timeZone, new Date(ms)));
+  const wall = new Date(Math.floor(ms / 1000) * 1000 + offsetMin * 60_000).toISOString().slice(0, 19);
+  if (offsetMin === 0) return `${wall}Z`;
+  const abs = Math.abs(offsetMin);
+  const pad = (n: number) => String(n).padStart(2, '0');
+  return `${wall}${offsetMin < 0 ? '-' : '+'}${pad(Math.floor(abs / 60))}:${pad(abs % 60)}`;
 }
 
 /** A date as YYYY-MM-DD in the site's zone; '—' when unknown. */

@@ -39,6 +39,10 @@ describe('site time (IANA tzdb, EU directive 2000/84/EC)', () => {
     expect(formatSiteDateTime('2026-07-14T05:30:00Z', ZONE)).toBe('2026-07-14 07:30');
     expect(isoWithSiteOffset('2026-03-14T05:30:00Z', ZONE)).toBe('2026-03-14T06:30:00+01:00');
     expect(isoWithSiteOffset('2026-07-14T05:30:00Z', ZONE)).toBe('2026-07-14T07:30:00+02:00');
+    // Either side of the spring change at 01:00 UTC (EU directive 2000/84/EC).
+    expect(isoWithSiteOffset('2026-03-29T00:59:59Z', ZONE)).toBe('2026-03-29T01:59:59+01:00');
+    expect(isoWithSiteOffset('2026-03-29T01:00:00Z', ZONE)).toBe('2026-03-29T03:00:00+02:00');
+    expect(isoWithSiteOffset('2026-03-29T01:00:00Z', 'UTC')).toBe('2026-03-29T01:00:00Z');
   });
   test('calendar days and ISO weeks are the site’s', () => {
     expect(siteDay('2026-03-14T23:30:00Z', ZONE)).toBe('2026-03-15');

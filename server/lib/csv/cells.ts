@@ -11,7 +11,7 @@
  *   site's offset, to the second. (A file mixing the two formats is refused in read.ts.)
  * - An empty cell is null; whether that is allowed is the row schema's business.
  */
-import { isoWithSiteOffset, siteOffsetMinutes, siteWallTimeToInstant } from '../../../shared/site-time';
+import { isoWithSiteOffset, siteWallTimeToInstant } from '../../../shared/site-time';
 import type { CsvFieldInfo } from '../../../shared/csv-headers';
 
 export type TimeFormat = 'iso' | 'dayFirst';
@@ -23,38 +23,9 @@ const ISO_TIME = /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2})(?:[.,](
 const DAY_FIRST_TIME = /^(\d{1,2})\.(\d{1,2})\.(\d{4}) +(\d{1,2}):(\d{2})(?::(\d{2}))?$/;
 const TIME_EXAMPLES = '2026-03-14T06:30 (ISO 8601, optionally with an offset like +01:00) or 14.03.2026 06:30';
 
-const DAY_MS = 86_400_000;
-/** Time zone and UTC day → the site's offset all that day (minutes), null when the clocks change that day. */
-const dayOffsets = new Map<string, number | null>();
-
-/**
- * isoWithSiteOffset (shared/site-time.ts), to the second, with a zero offset written "+00:00".
- * Formatting through it costs about 0.1 ms a cell, seconds for a 50,000-row file; so on a UTC day
- * whose site offset is the same at both ends (no clock change) the offset is looked up once and
- * the wall time is the instant shifted by it. Days with a clock change go through isoWithSiteOffset.
- */
+/** isoWithSiteOffset (shared/site-time.ts), with a zero offset written "+00:00" as the reader always has. */
 function siteIso(instant: Date, timeZone: string): string {
-  const dayStartMs = Math.floor(instant.getTime() / DAY_MS) * DAY_MS;
-  const key = `${timeZone} ${dayStartMs}`;
-  let offsetMin = dayOffsets.get(key);
-  if (offsetMin === undefined) {
-    const atStart = siteOffsetMinutes(dayStartMs, timeZone);
-    offsetMin = atStart === siteOffsetMinutes(dayStartMs + DAY_MS - 1, timeZone) ? atStart : null;
-    if (dayOffsets.size >= 10_000) dayOffsets.clear();
-    dayOffsets.set(key, offsetMin);
-  }
-  const iso =
-    offsetMin === null
-      ? isoWithSiteOffset(instant, timeZone)
-      : `${new Date(instant.getTime() + offsetMin * 60_000).toISOString().slice(0, 19)}${offsetText(offsetMin)}`;
-  return iso.replace(/Z$/, '+00:00');
-}
-
-/** "+01:00", "-03:30", "+00:00". */
-function offsetText(offsetMin: number): string {
-  const abs = Math.abs(offsetMin);
-  const pad = (n: number) => String(n).padStart(2, '0');
-  return `${offsetMin < 0 ? '-' : '+'}${pad(Math.floor(abs / 60))}:${pad(abs % 60)}`;
+  return isoWithSiteOffset(instant, timeZone).replace(/Z$/, '+00:00');
 }
 
 export type Cell = { ok: true; value: unknown; timeFormat?: TimeFormat } | { ok: false; message: string };
