@@ -542,6 +542,36 @@ export const entryRolledKm = pgTable(
   (t) => [primaryKey({ columns: [t.entryId, t.groundKey] }), index('entry_rolled_km_project_idx').on(t.projectId)],
 );
 
+/**
+ * A counter per drive, raised by database triggers in the same transaction as any write to a
+ * forecast input (layout, cutters and fittings, inspections, advance log, geology, ground types,
+ * forecast settings, the project's own row); see drizzle/0013_drive-data-version-triggers.sql.
+ * Derived data (the forecast cache) is valid only for the version it was computed from (decision 43).
+ */
+export const driveDataVersions = pgTable('drive_data_versions', {
+  projectId: uuid()
+    .primaryKey()
+    .references(() => projects.id, { onDelete: 'cascade' }),
+  version: integer().notNull().default(0),
+  changedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+});
+
+/**
+ * The last computed forecast of a drive, shared by every server instance: the JSON answer without
+ * the per-position explanations (`body`), those explanations by position id, the data version and
+ * the code fingerprint it was computed from, and when.
+ */
+export const forecastCache = pgTable('forecast_cache', {
+  projectId: uuid()
+    .primaryKey()
+    .references(() => projects.id, { onDelete: 'cascade' }),
+  dataVersion: integer().notNull(),
+  codeVersion: text().notNull(),
+  computedAt: timestamp({ withTimezone: true }).notNull(),
+  body: text().notNull(),
+  explanations: jsonb().$type<Record<string, unknown>>().notNull(),
+});
+
 /** The planner's settings for wear fits and forecasts, one row per project (defaults until saved). */
 export const forecastSettings = pgTable('forecast_settings', {
   projectId: uuid()

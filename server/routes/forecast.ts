@@ -7,7 +7,8 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest } from '../lib/http-error';
 import { idParam } from '../lib/params';
-import { computeForecast, computeWearFit, forecastRates, loadForecastSettings } from '../services/forecast';
+import { computeWearFit, forecastRates, loadForecastSettings } from '../services/forecast';
+import { cachedExplanation, cachedForecast } from '../services/forecast-cache';
 
 export const wearFitRouter = Router({ mergeParams: true });
 export const forecastRouter = Router({ mergeParams: true });
@@ -42,20 +43,29 @@ wearFitRouter.get('/', requireProject('forecast.read'), async (req, res) => {
   });
 });
 
-/** Every position's change-out forecast, most urgent (cautious P90) first; `positionId` adds how it was made. */
+/**
+ * Every position's change-out forecast, most urgent (cautious P90) first; `positionId` adds how it
+ * was made. Answered from the drive's cached forecast (services/forecast-cache.ts) with an ETag
+ * that changes only with the drive's data, the code or the hourly refresh; 304 when unchanged.
+ */
 forecastRouter.get('/', requireProject('forecast.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const { positionId } = forecastQuerySchema.parse(req.query);
-  const result = await db.transaction((tx) => computeForecast(tx, projectId, new Date()));
-  res.json({
-    now: result.now,
-    currentChainageM: result.currentChainageM,
-    currentRingNumber: result.currentRingNumber,
-    problems: result.problems,
-    rates: result.rates,
-    driveRates: result.driveRates,
-    positions: result.positions.map(({ explanation, ...p }) => (p.position.positionId === positionId ? { ...p, explanation } : p)),
-  });
+  const cached = await cachedForecast(projectId);
+  res.set('Cache-Control', 'private, no-cache');
+  res.set('ETag', positionId ? cached.etag.replace(/"$/, `-${positionId.slice(0, 8)}"`) : cached.etag);
+  if (req.fresh) {
+    res.status(304).end();
+    return;
+  }
+  if (!positionId) {
+    res.type('application/json').send(cached.body);
+    return;
+  }
+  const answer = JSON.parse(cached.body) as { positions: { position: { positionId: string }; explanation?: unknown }[] };
+  const explanation = await cachedExplanation(projectId, positionId, cached.dataVersion);
+  for (const p of answer.positions) if (p.position.positionId === positionId && explanation != null) p.explanation = explanation;
+  res.json(answer);
 });
 
 forecastRouter.get('/settings', requireProject('forecast.read'), async (req, res) => {

@@ -2,8 +2,8 @@
  * The one call to make after a write to a drive's data (layout, geology, advance log, a change
  * recorded back in time): derived data follows from here, so a new kind of derived data is added
  * in one place instead of at every write. Today that is the stored rolled distances
- * (services/rolled-distance.ts, DEVELOPERS.md decision 12); forecasts, plans and parts demand are
- * computed on request and need nothing.
+ * (services/rolled-distance.ts, DEVELOPERS.md decision 12). The cached forecast needs no call:
+ * database triggers raise the drive's data version in the same transaction (decision 43).
  */
 import type { DbOrTx } from '../db/client';
 import { invalidateRolledDistance, refreshRolledDistance } from './rolled-distance';

@@ -1,0 +1,150 @@
+/**
+ * A drive's forecast, computed once per change of its data and kept in PostgreSQL so every server
+ * instance answers from the same copy (DEVELOPERS.md, decision 43, which supersedes decision 12).
+ *
+ * - The data version (`drive_data_versions`) is raised by triggers in the same transaction as any
+ *   write to a forecast input, so a cached answer is valid exactly while the version is unchanged.
+ * - The forecast also depends on the clock (dates ahead) and on the code: an answer older than
+ *   `FORECAST_MAX_AGE_MS`, or made by other code (`codeVersion`, a hash of the sources that
+ *   compute it), is computed again.
+ * - Computing takes a transaction-level advisory lock per drive, so two instances asked at the
+ *   same moment compute once; the second finds the first one's answer when the lock is released.
+ */
+import { createHash } from 'node:crypto';
+import { readdirSync, readFileSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { sql } from 'drizzle-orm';
+import { db } from '../db/client';
+import { forecastCache } from '../db/schema';
+import { computeForecast, type ProjectForecast } from './forecast';
+
+/** A forecast is recomputed at least this often even without new data: its dates move with the clock (common practice, no source). */
+export const FORECAST_MAX_AGE_MS = 60 * 60 * 1000;
+
+const here = path.dirname(fileURLToPath(import.meta.url));
+const root = path.resolve(here, '../..');
+
+/** Files whose code makes the forecast's answer; a change in any of them makes cached answers stale. */
+function forecastSources(): string[] {
+  const domain = path.join(root, 'shared/domain');
+  const files = readdirSync(domain, { recursive: true, encoding: 'utf8' })
+    .filter((f) => f.endsWith('.ts'))
+    .map((f) => path.join(domain, f));
+  return [
+    ...files.sort(),
+    path.join(root, 'shared/schemas/forecast.ts'),
+    path.join(root, 'server/services/forecast.ts'),
+    path.join(root, 'server/services/rolled-distance.ts'),
+    fileURLToPath(import.meta.url),
+  ];
+}
+
+let codeVersionMemo: string | undefined;
+/** sha-256 of the forecast's sources, 16 hex digits; the same on every instance running the same code. */
+export function forecastCodeVersion(): string {
+  if (!codeVersionMemo) {
+    const hash = createHash('sha256');
+    for (const file of forecastSources()) hash.update(path.relative(root, file)).update('\0').update(readFileSync(file));
+    codeVersionMemo = hash.digest('hex').slice(0, 16);
+  }
+  return codeVersionMemo;
+}
+
+/** The answer of GET …/forecast without explanations, as the client receives it. */
+export function forecastAnswer(result: ProjectForecast) {
+  return {
+    now: result.now,
+    currentChainageM: result.currentChainageM,
+    currentRingNumber: result.currentRingNumber,
+    problems: result.problems,
+    rates: result.rates,
+    driveRates: result.driveRates,
+    positions: result.positions.map(({ explanation: _explanation, ...p }) => p),
+  };
+}
+
+export interface CachedForecast {
+  /** JSON text of the answer without explanations. */
+  body: string;
+  dataVersion: number;
+  computedAt: Date;
+  /** Strong validator of this answer: same drive data, same code, same computation. */
+  etag: string;
+  /** True when this call computed it (false: served from the cache). */
+  computed: boolean;
+}
+
+type CacheRow = {
+  version: number;
+  data_version: number | null;
+  code_version: string | null;
+  computed_ms: number | null;
+};
+
+function etagOf(projectId: string, dataVersion: number, computedAt: Date): string {
+  return `"f-${projectId.slice(0, 8)}-${dataVersion}-${computedAt.getTime().toString(36)}-${forecastCodeVersion().slice(0, 8)}"`;
+}
+
+function fresh(row: CacheRow | undefined, now: Date): boolean {
+  return (
+    row != null &&
+    row.data_version === row.version &&
+    row.code_version === forecastCodeVersion() &&
+    row.computed_ms != null &&
+    now.getTime() - row.computed_ms < FORECAST_MAX_AGE_MS &&
+    row.computed_ms <= now.getTime() + 60_000
+  );
+}
+
+const stateQuery = (projectId: string) => sql`
+  select coalesce(v.version, 0) as version, c.data_version, c.code_version, (extract(epoch from c.computed_at) * 1000)::float8 as computed_ms
+  from (select ${projectId}::uuid as project_id) p
+  left join drive_data_versions v on v.project_id = p.project_id
+  left join forecast_cache c on c.project_id = p.project_id`;
+
+/**
+ * The drive's current forecast: the cached one while the data version, code and age allow,
+ * otherwise computed now (once across instances) and stored. `explanationOf` adds one position's
+ * explanation, read from the same cached row.
+ */
+export async function cachedForecast(projectId: string, now = new Date()): Promise<CachedForecast> {
+  const [state] = (await db.execute<CacheRow>(stateQuery(projectId))).rows;
+  if (fresh(state, now)) {
+    const [row] = await db
+      .select({ body: forecastCache.body, dataVersion: forecastCache.dataVersion, computedAt: forecastCache.computedAt })
+      .from(forecastCache)
+      .where(sql`${forecastCache.projectId} = ${projectId} and ${forecastCache.dataVersion} = ${state.version}`);
+    if (row) return { ...row, etag: etagOf(projectId, row.dataVersion, row.computedAt), computed: false };
+  }
+  return db.transaction(async (tx) => {
+    await tx.execute(sql`select pg_advisory_xact_lock(hashtextextended(${'forecast:' + projectId}, 0))`);
+    // Another instance may have computed it while this one waited for the lock.
+    const [again] = (await tx.execute<CacheRow>(stateQuery(projectId))).rows;
+    if (fresh(again, now)) {
+      const [row] = await tx
+        .select({ body: forecastCache.body, dataVersion: forecastCache.dataVersion, computedAt: forecastCache.computedAt })
+        .from(forecastCache)
+        .where(sql`${forecastCache.projectId} = ${projectId}`);
+      if (row) return { ...row, etag: etagOf(projectId, row.dataVersion, row.computedAt), computed: false };
+    }
+    // Read the version before the data: a write committed in between leaves the stored answer
+    // one version behind, so the next request computes again (never the other way round).
+    const dataVersion = again.version;
+    const result = await computeForecast(tx, projectId, now);
+    // Refreshing rolled distances above writes only derived tables, which raise no version.
+    const body = JSON.stringify(forecastAnswer(result));
+    const explanations = Object.fromEntries(result.positions.map((p) => [p.position.positionId, p.explanation]));
+    const values = { projectId, dataVersion, codeVersion: forecastCodeVersion(), computedAt: now, body, explanations };
+    await tx.insert(forecastCache).values(values).onConflictDoUpdate({ target: forecastCache.projectId, set: values });
+    return { body, dataVersion, computedAt: now, etag: etagOf(projectId, dataVersion, now), computed: true };
+  });
+}
+
+/** One position's explanation from the cached forecast (null when the position has no forecast). */
+export async function cachedExplanation(projectId: string, positionId: string, dataVersion: number): Promise<unknown> {
+  const { rows } = await db.execute<{ explanation: unknown }>(
+    sql`select explanations -> ${positionId} as explanation from forecast_cache where project_id = ${projectId} and data_version = ${dataVersion}`,
+  );
+  return rows[0]?.explanation ?? null;
+}
