@@ -35,6 +35,8 @@ async function shutdown(code = 0) {
   log('Stopping …');
   stopJobs?.();
   await new Promise<void>((resolve) => (server ? server.close(() => resolve()) : resolve()));
+  const { closeWorkerPool } = await import('./workers/pool');
+  await closeWorkerPool().catch(() => {});
   const { pool } = await import('./db/client');
   await pool.end().catch(() => {});
   await stack.stop();

@@ -31,6 +31,7 @@ import {
   projects,
   strokes,
 } from '../db/schema';
+import { buildForecastInWorker } from '../workers/pool';
 import { refreshRolledDistance, UNKNOWN_GROUND } from './rolled-distance';
 
 export const defaultForecastSettings = {
@@ -326,7 +327,8 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
 /** Brings rolled distances up to date, reads, and computes the forecast. */
 export async function computeForecast(tx: DbOrTx, projectId: string, now: Date): Promise<ProjectForecast> {
   await refreshRolledDistance(tx, projectId);
-  return buildForecast(await loadForecastData(tx, projectId), now);
+  // Computed in a worker thread: a large drive's forecast must not stall other requests (decision 44).
+  return buildForecastInWorker(await loadForecastData(tx, projectId), now);
 }
 
 /** Brings rolled distances up to date, reads, and computes the wear fit. */

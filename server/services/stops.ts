@@ -16,7 +16,8 @@ import {
   stopPlaceAt,
   type DriveGeology,
 } from '../../shared/domain/stop-plan-input';
-import { planStops, type StopPlan } from '../../shared/domain/stop-planner';
+import type { StopPlan } from '../../shared/domain/stop-planner';
+import { planStopsInWorker } from '../workers/pool';
 import { partsKit } from '../../shared/domain/work-pack';
 import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
 import type { DbOrTx } from '../db/client';
@@ -148,7 +149,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
     boundIterations: PLANNER_BOUND_ITERATIONS,
     rules: { changeShare: settings.practiceChangeSharePercent / 100, intervalM: settings.fixedIntervalM },
   };
-  const first = planStops(fullInput, options);
+  const first = await planStopsInWorker(fullInput, options);
   const infeasible = first.feasible
     ? []
     : first.problems
@@ -163,7 +164,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   // need the stops before it, and the problem is shown beside them.
   const reachM = first.feasible ? fullInput.horizonM : Math.min(...first.problems.map((p) => p.dueAheadM)) - 1e-3;
   const input = first.feasible ? fullInput : { ...fullInput, horizonM: reachM };
-  const result = first.feasible ? first : reachM > 0 ? planStops(input, options) : first;
+  const result = first.feasible ? first : reachM > 0 ? await planStopsInWorker(input, options) : first;
   const horizonEndChainageM = chainageAhead(forecast.currentChainageM, Math.max(0, input.horizonM), geology.direction);
   const problems = [...empty.problems, ...problems0];
   if (knownM < settings.horizonM)

@@ -1,0 +1,43 @@
+/**
+ * Heavy computations (stop plans, forecasts) run in a pool of worker threads, so one planner's
+ * 2 km plan does not stall everyone else's requests (DEVELOPERS.md, decision 44). piscina keeps
+ * the threads and the queue; `server/workers/bootstrap.mjs` loads the TypeScript in each thread.
+ * Threads start on first use and end after a minute idle; `closeWorkerPool()` ends them at shutdown.
+ */
+import os from 'node:os';
+import { Piscina } from 'piscina';
+import type { PlanStopsOptions, StopPlanInput, StopPlanResult } from '../../shared/domain/stop-planner';
+import type { ForecastData, ProjectForecast } from '../services/forecast';
+
+/** One thread fewer than the machine's cores (the request thread keeps one), at least one, at most four. */
+export const WORKER_THREADS = Math.max(1, Math.min(4, os.availableParallelism() - 1));
+
+let pool: Piscina | undefined;
+function thePool(): Piscina {
+  pool ??= new Piscina({
+    filename: new URL('./bootstrap.mjs', import.meta.url).href,
+    minThreads: 0,
+    maxThreads: WORKER_THREADS,
+    idleTimeout: 60_000,
+  });
+  return pool;
+}
+
+export function planStopsInWorker(input: StopPlanInput, options: PlanStopsOptions): Promise<StopPlanResult> {
+  return thePool().run({ input, options }, { name: 'planStops' }) as Promise<StopPlanResult>;
+}
+
+export function buildForecastInWorker(data: ForecastData, now: Date): Promise<ProjectForecast> {
+  return thePool().run({ data, now }, { name: 'buildForecast' }) as Promise<ProjectForecast>;
+}
+
+/** Tasks the pool has finished since start (0 before the first): lets a test see work left the request thread. */
+export function workerTasksCompleted(): number {
+  return pool?.completed ?? 0;
+}
+
+export async function closeWorkerPool(): Promise<void> {
+  const p = pool;
+  pool = undefined;
+  await p?.destroy();
+}
