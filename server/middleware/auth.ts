@@ -3,9 +3,9 @@ import type { NextFunction, Request, Response } from 'express';
 import { z } from 'zod';
 import { roleCan, type Permission, type ProjectRole } from '../../shared/roles';
 import { db } from '../db/client';
-import { memberships, projects } from '../db/schema';
+import { memberships } from '../db/schema';
 import { forbidden, HttpError, notFound } from '../lib/http-error';
-import { resolveSession, SESSION_COOKIE, type AuthUser } from '../lib/session';
+import { resolveSession, SESSION_COOKIE, uuidPattern, type AuthUser } from '../lib/session';
 
 declare global {
   // eslint-disable-next-line @typescript-eslint/no-namespace
@@ -15,16 +15,21 @@ declare global {
       sessionId?: string;
       /** Set by requireProject: the caller's role on the project in the route. */
       projectRole?: ProjectRole;
+      /** Set by loadUser on /projects/:projectId/… paths: the role read with the session (null: not a member). */
+      sessionProjectRole?: { projectId: string; role: ProjectRole | null };
     }
   }
 }
 
 /** Reads the session cookie, if any; never refuses (routes decide). */
 export async function loadUser(req: Request, _res: Response, next: NextFunction) {
-  const found = await resolveSession(req.cookies?.[SESSION_COOKIE]);
+  // On a project's path, the session query reads the caller's role on it too (one query).
+  const projectId = /^\/projects\/([^/]+)/.exec(req.path)?.[1];
+  const found = await resolveSession(req.cookies?.[SESSION_COOKIE], projectId && uuidPattern.test(projectId) ? projectId : undefined);
   if (found) {
     req.user = found.user;
     req.sessionId = found.sessionId;
+    req.sessionProjectRole = found.projectRole;
   }
   next();
 }
@@ -46,7 +51,6 @@ export function requireAdmin(req: Request, _res: Response, next: NextFunction) {
 }
 
 const projectParamsSchema = z.object({ projectId: z.string() });
-const uuidPattern = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /**
  * Guards every `/api/projects/:projectId/…` route. A non-member gets 404 — the same answer as for a
@@ -57,12 +61,16 @@ export function requireProject(permission: Permission) {
     const user = requireUser(req);
     const { projectId } = projectParamsSchema.parse(req.params);
     if (!uuidPattern.test(projectId)) throw notFound('That project');
-    const [row] = await db
-      .select({ role: memberships.role })
-      .from(memberships)
-      .innerJoin(projects, eq(projects.id, memberships.projectId))
-      .where(and(eq(memberships.projectId, projectId), eq(memberships.userId, user.id)))
-      .limit(1);
+    const row =
+      req.sessionProjectRole?.projectId === projectId
+        ? req.sessionProjectRole.role && { role: req.sessionProjectRole.role }
+        : (
+            await db
+              .select({ role: memberships.role })
+              .from(memberships)
+              .where(and(eq(memberships.projectId, projectId), eq(memberships.userId, user.id)))
+              .limit(1)
+          )[0];
     if (!row) throw notFound('That project');
     if (!roleCan(row.role, permission)) throw forbidden();
     req.projectRole = row.role;

@@ -2,27 +2,9 @@
 import { sql } from 'drizzle-orm';
 import { db } from '../db/client';
 
-/** Positions with the serial on each now and the last wear measured on that disc. */
-export async function listPositions(projectId: string) {
-  const rows = await db.execute<{
-    id: string;
-    number: number;
-    track_radius_mm: number;
-    position_class: string;
-    disc_size_in: number;
-    tilt_deg: number | null;
-    wear_limit_mm: number;
-    twin_disc: boolean;
-    angle_deg: number | null;
-    fitting_id: string | null;
-    serial: string | null;
-    cutter_id: string | null;
-    fitted_at: Date | null;
-    fitted_chainage_m: number | null;
-    last_wear_mm: number | null;
-    last_measured_at: Date | null;
-    last_conditions: string[] | null;
-  }>(sql`
+/** The query behind GET …/positions; the benchmark runs the same text in bare pg as its limit. */
+export function positionsListSql(projectId: string) {
+  return sql`
     select p.id, p.number, p.track_radius_mm, p.position_class, p.disc_size_in, p.tilt_deg, p.wear_limit_mm, p.twin_disc, p.angle_deg,
            f.id as fitting_id, c.serial, c.id as cutter_id, f.fitted_at, f.fitted_chainage_m,
            w.wear_mm as last_wear_mm, w.recorded_at as last_measured_at, w.conditions as last_conditions
@@ -36,7 +18,32 @@ export async function listPositions(projectId: string) {
       order by r.started_at desc, e.recorded_at desc limit 1
     ) w on true
     where p.project_id = ${projectId}
-    order by p.number`);
+    order by p.number`;
+}
+
+type PositionRow = {
+  id: string;
+  number: number;
+  track_radius_mm: number;
+  position_class: string;
+  disc_size_in: number;
+  tilt_deg: number | null;
+  wear_limit_mm: number;
+  twin_disc: boolean;
+  angle_deg: number | null;
+  fitting_id: string | null;
+  serial: string | null;
+  cutter_id: string | null;
+  fitted_at: Date | null;
+  fitted_chainage_m: number | null;
+  last_wear_mm: number | null;
+  last_measured_at: Date | null;
+  last_conditions: string[] | null;
+};
+
+/** Positions with the serial on each now and the last wear measured on that disc. */
+export async function listPositions(projectId: string) {
+  const rows = await db.execute<PositionRow>(positionsListSql(projectId));
   return rows.rows.map((r) => ({
     id: r.id,
     number: r.number,
