@@ -2,11 +2,22 @@
 import { defineConfig } from 'vite';
 import react from '@vitejs/plugin-react';
 import tailwindcss from '@tailwindcss/vite';
+import { compression, defineAlgorithm } from 'vite-plugin-compression2';
 
 const apiPort = Number(process.env.PORT ?? 3000);
 
 export default defineConfig({
-  plugins: [react(), tailwindcss()],
+  plugins: [
+    react(),
+    tailwindcss(),
+    // Brotli and gzip copies written at build time beside each asset; the server sends the one the
+    // browser accepts (express-static-gzip, decision 45).
+    compression({
+      algorithms: [defineAlgorithm('brotliCompress'), defineAlgorithm('gzip')],
+      include: /\.(js|css|html|svg|json|woff2?)$/,
+      threshold: 1024,
+    }),
+  ],
   server: {
     host: '127.0.0.1',
     port: 5173,

@@ -4,6 +4,7 @@ import helmet from 'helmet';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { pinoHttp } from 'pino-http';
+import expressStaticGzip from 'express-static-gzip';
 import { env } from './env';
 import { logger } from './lib/logger';
 import { loadUser } from './middleware/auth';
@@ -76,7 +77,23 @@ export function createApp(options: AppOptions = {}): Express {
 
   const clientDir = options.clientDir && path.resolve(options.clientDir);
   if (clientDir && existsSync(path.join(clientDir, 'index.html'))) {
-    app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
+    // Hashed assets never change under their name: a year, immutable. Anything else (index.html,
+    // unhashed files) is revalidated. Brotli or gzip copies made at build time are sent to a
+    // browser that accepts them (decision 45).
+    app.use(
+      expressStaticGzip(clientDir, {
+        index: false,
+        enableBrotli: true,
+        orderPreference: ['br', 'gzip'],
+        serveStatic: {
+          index: false,
+          setHeaders: (res, filePath) => {
+            const hashed = /[\\/]assets[\\/][^\\/]+-[A-Za-z0-9_-]{8,}\.[a-z0-9.]+$/.test(filePath);
+            res.setHeader('Cache-Control', hashed ? 'public, max-age=31536000, immutable' : 'no-cache');
+          },
+        },
+      }),
+    );
     // Client-side routes: every other GET gets the app shell.
     app.get('/{*splat}', (_req, res) => {
       res.set('Cache-Control', 'no-cache').sendFile(path.join(clientDir, 'index.html'));
