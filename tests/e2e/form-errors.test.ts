@@ -80,7 +80,7 @@ it('parts: a bill-of-materials line naming a part removed meanwhile is refused b
   await page.getByLabel(`Outcome for ${condition}`).selectOption('rebuild');
   const row = page.locator('tr', { has: page.getByLabel(`Outcome for ${condition}`) });
   await row.getByRole('button', { name: 'Add a part' }).click();
-  const partSelect = page.getByLabel(`Part 1 for ${condition}`);
+  const partSelect = page.getByLabel(`Part 1 for ${condition}`, { exact: true });
   await partSelect.selectOption(seal.id);
   // Another buyer removes the seal kit while this form is open.
   await db.delete(parts).where(eq(parts.id, seal.id));
