@@ -111,3 +111,27 @@ it('stops: scheduling with a crew removed meanwhile is refused beside the crew',
   expect(await crew.locator('xpath=..').textContent()).toContain('Not a crew of this drive.');
   expect(await page.getByLabel('Expected duration (h)').getAttribute('aria-invalid')).toBeNull();
 });
+
+it('advance log: the filters are checked with the list query schema as typed; a bad ring is named beside its field', async () => {
+  // derived (fixture): the spring drive logs rings 1 and 2 (tests/support/downtime-fixtures.ts).
+  const project = await makeSpringDowntimeDrive();
+  const page = await signedIn(project.id, 'site_manager');
+  await page.goto(`${app.url}/projects/${project.id}/advance-log`);
+  await expect.poll(() => heading(page), { timeout: 20_000 }).toBe('Advance log');
+  const count = page.getByRole('status').filter({ hasText: /strokes?\b/ });
+  await expect.poll(() => count.textContent(), { timeout: 20_000 }).toMatch(/^2 strokes/);
+
+  await page.getByLabel('Ring from').fill('2');
+  await expect.poll(() => count.textContent(), { timeout: 20_000 }).toMatch(/^1 stroke match the filters/);
+
+  const ringTo = page.getByLabel('Ring to');
+  await ringTo.fill('1.5');
+  await expect.poll(() => ringTo.getAttribute('aria-invalid'), { timeout: 20_000 }).toBe('true');
+  expect(await describedBy(page, ringTo)).toBe('ringTo must be a whole number.');
+  // A value the list cannot use does not reach it: the last valid filters stay.
+  expect(await count.textContent()).toMatch(/^1 stroke match the filters/);
+
+  await page.getByRole('button', { name: 'Clear filters' }).click();
+  await expect.poll(() => count.textContent(), { timeout: 20_000 }).toMatch(/^2 strokes/);
+  expect(await page.getByLabel('Ring from').inputValue()).toBe('');
+});
