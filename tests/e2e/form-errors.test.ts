@@ -135,3 +135,40 @@ it('advance log: the filters are checked with the list query schema as typed; a 
   await expect.poll(() => count.textContent(), { timeout: 20_000 }).toMatch(/^2 strokes/);
   expect(await page.getByLabel('Ring from').inputValue()).toBe('');
 });
+
+it('downtime site settings and the parts catalogue: the shared schema names a bad value beside its field before anything is sent', async () => {
+  const project = await makeSpringDowntimeDrive();
+  const page = await signedIn(project.id, 'site_manager');
+  await page.goto(`${app.url}/projects/${project.id}/downtime`);
+  await expect.poll(() => heading(page), { timeout: 20_000 }).toBe('Downtime');
+  const settings = page.getByRole('form', { name: 'Site settings' });
+  await settings.getByRole('button', { name: 'Add a shift' }).click();
+  await settings.getByLabel('Shift 3 name').fill('Day');
+  await settings.getByLabel('Shift 3 starts').fill('12:00');
+  const gap = settings.getByLabel('Standstill after (minutes between strokes)');
+  await gap.fill('2');
+  await settings.getByRole('button', { name: 'Save site settings' }).click();
+  await expect.poll(() => gap.getAttribute('aria-invalid'), { timeout: 20_000 }).toBe('true');
+  expect(await describedBy(page, gap)).toBe('At least 5 minutes.');
+  expect(await settings.getByText('Two shifts have the same name.').count()).toBe(1);
+
+  const buyer = await signedIn(project.id, 'buyer');
+  await buyer.goto(`${app.url}/projects/${project.id}/parts?tab=catalogue`);
+  await expect.poll(() => buyer.getByRole('button', { name: 'Add the part' }).count(), { timeout: 20_000 }).toBe(1);
+  await buyer.getByLabel('Code').fill('RING19');
+  await buyer.getByLabel('Name').fill('19″ ring');
+  await buyer.getByLabel('Disc size (in)').fill('');
+  await buyer.getByLabel('Unit cost').fill('410,50');
+  await buyer.getByLabel('Lead time, mean (days)').fill('21');
+  await buyer.getByRole('button', { name: 'Add the part' }).click();
+  const disc = buyer.getByLabel('Disc size (in)');
+  await expect.poll(() => disc.getAttribute('aria-invalid'), { timeout: 20_000 }).toBe('true');
+  expect(await describedBy(buyer, disc)).toBe('Give the disc size of a ring or a cutter assembly.');
+  expect(await buyer.getByLabel('Unit cost').getAttribute('aria-invalid')).toBeNull();
+  // With the size given the part is saved (the decimal comma read as a point).
+  await disc.fill('19');
+  await buyer.getByRole('button', { name: 'Add the part' }).click();
+  await expect.poll(() => buyer.getByText('RING19 added to the catalogue.').count(), { timeout: 20_000 }).toBe(1);
+  const [saved] = await db.select().from(parts).where(eq(parts.code, 'RING19'));
+  expect(saved).toMatchObject({ projectId: project.id, discSizeIn: 19, unitCost: '410.50', leadTimeMeanDays: 21 });
+});
