@@ -1,9 +1,10 @@
 /**
- * The one form pattern in the browser (DEVELOPERS.md, decision 31): when the server refuses a form
+ * The one form pattern in the browser (DEVELOPERS.md, decision 31). When the server refuses a form
  * with issues (a 400 naming fields), each issue shows beside its own field and the server's message
- * shows above the form. Each check makes a refusal only the server can give — the client checks with
- * the same schema, so the data changes behind the open form (another person's edit) or the rule is one
- * the server alone can check (an overlap with a stored event).
+ * above the form: the first three checks make a refusal only the server can give (the client checks
+ * with the same schema, so the data changes behind the open form, or the rule needs the stored data).
+ * The others check that the converted forms name a value the shared schema refuses beside its field
+ * before anything is sent, and that a good value is saved.
  */
 import { eq } from 'drizzle-orm';
 import type { Browser, Locator, Page } from 'playwright-core';
@@ -171,4 +172,21 @@ it('downtime site settings and the parts catalogue: the shared schema names a ba
   await expect.poll(() => buyer.getByText('RING19 added to the catalogue.').count(), { timeout: 20_000 }).toBe(1);
   const [saved] = await db.select().from(parts).where(eq(parts.code, 'RING19'));
   expect(saved).toMatchObject({ projectId: project.id, discSizeIn: 19, unitCost: '410.50', leadTimeMeanDays: 21 });
+});
+
+it('downtime causes: a blank new name is named beside the rename field; a good one is saved', async () => {
+  const project = await makeSpringDowntimeDrive();
+  const page = await signedIn(project.id, 'site_manager');
+  await page.goto(`${app.url}/projects/${project.id}/downtime`);
+  await expect.poll(() => heading(page), { timeout: 20_000 }).toBe('Downtime');
+  await page.getByRole('button', { name: 'Rename Cutter change' }).click();
+  const name = page.getByLabel('New name for Cutter change');
+  await name.fill('   ');
+  await page.getByRole('button', { name: 'Save name' }).click();
+  await expect.poll(() => name.getAttribute('aria-invalid'), { timeout: 20_000 }).toBe('true');
+  expect(await describedBy(page, name)).toBe('Name the cause.');
+  await name.fill('Disc change');
+  await page.getByRole('button', { name: 'Save name' }).click();
+  await expect.poll(() => page.getByText('Cutter change is now Disc change.').count(), { timeout: 20_000 }).toBe(1);
+  expect(await page.getByLabel('New name for Cutter change').count()).toBe(0);
 });
