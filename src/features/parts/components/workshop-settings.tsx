@@ -182,7 +182,7 @@ export function WorkshopSettings({
 }) {
   const save = useSaveWorkshop(projectId);
   const assemblies = parts.filter((p) => p.kind === 'cutter-assembly');
-  const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string; issues?: string[] } | null>(null);
+  const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const form = useForm<WorkshopForm, unknown, WorkshopSettingsInput>({
     resolver: zodResolver(workshopFormSchema),
     defaultValues: {
@@ -241,17 +241,7 @@ export function WorkshopSettings({
   }
   return (
     <form onSubmit={onSubmit} noValidate className="space-y-6">
-      {message && (
-        <Alert tone={message.tone} title={message.text}>
-          {message.issues && (
-            <ul className="list-disc pl-5">
-              {message.issues.map((i) => (
-                <li key={i}>{i}</li>
-              ))}
-            </ul>
-          )}
-        </Alert>
-      )}
+      {message && <Alert tone={message.tone} title={message.text} />}
       <Panel title="Workshop loop">
         <p className="mb-4 max-w-prose text-basalt-700">
           A removed cutter goes to the workshop and is rebuilt by its worst condition — or scrapped — and comes back to ready stock after
