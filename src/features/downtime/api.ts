@@ -87,3 +87,15 @@ function useDowntimeMutation<TInput, TResult>(projectId: string, mutationFn: (in
 export const useSaveSettings = (projectId: string) =>
   useDowntimeMutation(projectId, (input: SiteSettingsInput) => saveSettings(projectId, input));
 export const useProposeFromGaps = (projectId: string) => useDowntimeMutation(projectId, () => proposeFromGaps(projectId));
+export const useCreateCause = (projectId: string) =>
+  useDowntimeMutation(projectId, (input: DowntimeCauseInput) => createCause(projectId, input));
+export const useUpdateCause = (projectId: string) =>
+  useDowntimeMutation(projectId, ({ causeId, update }: { causeId: string; update: DowntimeCauseUpdate }) =>
+    updateCause(projectId, causeId, update),
+  );
+/** Adds an event (`eventId` null) or replaces one. */
+export const useSaveEvent = (projectId: string) =>
+  useDowntimeMutation(projectId, ({ eventId, input }: { eventId: string | null; input: DowntimeEventInput }) =>
+    eventId ? updateEvent(projectId, eventId, input) : createEvent(projectId, input),
+  );
+export const useDeleteEvent = (projectId: string) => useDowntimeMutation(projectId, (eventId: string) => deleteEvent(projectId, eventId));

@@ -1,13 +1,42 @@
-import { useQueryClient } from '@tanstack/react-query';
-import { useState, type FormEvent } from 'react';
-import { downtimeEventInputSchema, type DowntimeCause, type DowntimeEventRow } from '../../../../shared/schemas/downtime';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { z } from 'zod';
+import {
+  downtimeEventInputSchema,
+  type DowntimeCause,
+  type DowntimeEventInput,
+  type DowntimeEventRow,
+} from '../../../../shared/schemas/downtime';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
-import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { fromSiteInput, isoWithSiteOffset, toSiteInput } from '../../../../shared/site-time';
-import { createEvent, deleteEvent, downtimeQueries, updateEvent, type StopOption } from '../api';
+import { useDeleteEvent, useSaveEvent, type StopOption } from '../api';
+
+/** What the form holds: site times as typed, '' for "no cause" / "no stop". */
+interface EventFormValues {
+  startAt: string;
+  endAt: string;
+  causeId: string;
+  stopId: string;
+  note: string;
+}
+
+/** The form's values turned into the request, then checked with the server's own schema (same field names, so errors land on the fields). */
+const eventFormSchema = (timeZone: string) =>
+  z
+    .object({ startAt: z.string(), endAt: z.string(), causeId: z.string(), stopId: z.string(), note: z.string() })
+    .transform((v): z.input<typeof downtimeEventInputSchema> => ({
+      startAt: fromSiteInput(v.startAt, timeZone) ?? '',
+      endAt: fromSiteInput(v.endAt, timeZone) ?? '',
+      causeId: v.causeId || null,
+      stopId: v.stopId || null,
+      note: v.note,
+    }))
+    .pipe(downtimeEventInputSchema);
 
 /** What a site time resolves to, with its UTC offset (so a daylight-saving hour is never a guess). */
 function resolvedHint(value: string, timeZone: string): string {
@@ -34,62 +63,46 @@ export function EventForm({
   editing: DowntimeEventRow | null;
   onDone: (message: string) => void;
 }) {
-  const queryClient = useQueryClient();
-  const [start, setStart] = useState(editing ? toSiteInput(editing.startAt, timeZone) : '');
-  const [end, setEnd] = useState(editing ? toSiteInput(editing.endAt, timeZone) : '');
-  const [causeId, setCauseId] = useState(editing?.causeId ?? '');
-  const [stopId, setStopId] = useState(editing?.stopId ?? '');
-  const [note, setNote] = useState(editing?.note ?? '');
-  const [errors, setErrors] = useState<Record<string, string>>({});
+  const save = useSaveEvent(projectId);
+  const del = useDeleteEvent(projectId);
   const [error, setError] = useState<string | null>(null);
   const [confirming, setConfirming] = useState(false);
-  const [busy, setBusy] = useState(false);
+  const form = useForm<EventFormValues, unknown, DowntimeEventInput>({
+    resolver: zodResolver(eventFormSchema(timeZone)),
+    defaultValues: {
+      startAt: editing ? toSiteInput(editing.startAt, timeZone) : '',
+      endAt: editing ? toSiteInput(editing.endAt, timeZone) : '',
+      causeId: editing?.causeId ?? '',
+      stopId: editing?.stopId ?? '',
+      note: editing?.note ?? '',
+    },
+  });
+  const e = form.formState.errors;
+  const [start, end] = form.watch(['startAt', 'endAt']);
   // An empty field gets a plain request; a filled one the rule it breaks (e.g. end before start).
-  const timeError = (key: string, value: string, label: string) =>
-    errors[key] && (value ? errors[key] : `Give the ${label} date and time.`);
+  const timeError = (message: string | undefined, value: string, label: string) =>
+    message && (value ? message : `Give the ${label} date and time.`);
   // Inactive causes are offered only to the event that already has one.
   const choosable = causes.filter((c) => c.active || c.id === editing?.causeId);
 
-  const done = async (message: string) => {
-    await queryClient.invalidateQueries({ queryKey: downtimeQueries.all(projectId) });
-    onDone(message);
-  };
-
-  const submit = async (e: FormEvent) => {
-    e.preventDefault();
+  const submit = form.handleSubmit(async (input) => {
     setError(null);
-    const parsed = downtimeEventInputSchema.safeParse({
-      startAt: fromSiteInput(start, timeZone) ?? '',
-      endAt: fromSiteInput(end, timeZone) ?? '',
-      causeId: causeId || null,
-      stopId: stopId || null,
-      note,
-    });
-    if (!parsed.success) {
-      setErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])));
-      return;
-    }
-    setErrors({});
-    setBusy(true);
     try {
-      if (editing) await updateEvent(projectId, editing.id, parsed.data);
-      else await createEvent(projectId, parsed.data);
-      await done(editing ? 'Downtime event saved.' : 'Downtime event added.');
+      await save.mutateAsync({ eventId: editing?.id ?? null, input });
+      onDone(editing ? 'Downtime event saved.' : 'Downtime event added.');
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'Saving failed. Try again.');
-    } finally {
-      setBusy(false);
+      setError(serverErrors(err, form.setError, 'Saving failed. Try again.').text);
     }
-  };
+  });
 
   const remove = async () => {
     if (!editing) return;
     setError(null);
     try {
-      await deleteEvent(projectId, editing.id);
-      await done('Downtime event deleted.');
+      await del.mutateAsync(editing.id);
+      onDone('Downtime event deleted.');
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'Deleting failed. Try again.');
+      setError(serverErrors(err, form.setError, 'Deleting failed. Try again.').text);
     }
   };
 
@@ -106,20 +119,18 @@ export function EventForm({
         <TextField
           label="Start (site time)"
           type="datetime-local"
-          value={start}
-          onChange={(e) => setStart(e.target.value)}
-          error={timeError('startAt', start, 'start')}
+          {...form.register('startAt')}
+          error={timeError(e.startAt?.message, start, 'start')}
           hint={resolvedHint(start, timeZone)}
         />
         <TextField
           label="End (site time)"
           type="datetime-local"
-          value={end}
-          onChange={(e) => setEnd(e.target.value)}
-          error={timeError('endAt', end, 'end')}
+          {...form.register('endAt')}
+          error={timeError(e.endAt?.message, end, 'end')}
           hint={resolvedHint(end, timeZone)}
         />
-        <SelectField label="Cause" value={causeId} onChange={(e) => setCauseId(e.target.value)} error={errors.causeId}>
+        <SelectField label="Cause" {...form.register('causeId')} error={e.causeId?.message}>
           <option value="">— no cause yet —</option>
           {choosable.map((c) => (
             <option key={c.id} value={c.id}>
@@ -129,7 +140,7 @@ export function EventForm({
             </option>
           ))}
         </SelectField>
-        <SelectField label="Linked stop (optional)" value={stopId} onChange={(e) => setStopId(e.target.value)} error={errors.stopId}>
+        <SelectField label="Linked stop (optional)" {...form.register('stopId')} error={e.stopId?.message}>
           <option value="">— none —</option>
           {stops.map((s) => (
             <option key={s.id} value={s.id}>
@@ -139,11 +150,11 @@ export function EventForm({
           ))}
         </SelectField>
         <div className="md:col-span-2">
-          <TextField label="Note" value={note} onChange={(e) => setNote(e.target.value)} maxLength={2000} error={errors.note} />
+          <TextField label="Note" maxLength={2000} {...form.register('note')} error={e.note?.message} />
         </div>
       </div>
       <div className="flex flex-wrap gap-2">
-        <Button type="submit" disabled={busy}>
+        <Button type="submit" disabled={form.formState.isSubmitting}>
           {editing ? 'Save event' : 'Add event'}
         </Button>
         <Button variant="ghost" onClick={() => onDone('')}>

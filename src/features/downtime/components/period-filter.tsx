@@ -1,8 +1,14 @@
-import { useState, type FormEvent } from 'react';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useForm } from 'react-hook-form';
 import { useSearchParams } from 'react-router';
+import type { z } from 'zod';
+import { downtimePeriodQuerySchema } from '../../../../shared/schemas/downtime';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import type { PeriodQuery } from '../api';
+
+/** An empty date is "not given" (the server then picks its default period). */
+export const dayOrNothing = { setValueAs: (v: unknown) => (v === '' || v == null ? undefined : String(v)) };
 
 /** The period in the address (?from=&to=), so it survives a reload and follows the tabs. */
 export function usePeriod(): PeriodQuery {
@@ -13,19 +19,22 @@ export function usePeriod(): PeriodQuery {
 /** From/to site days; `shown` is the period the server used (its default when none was asked for). */
 export function PeriodFilter({ shown, timeZone }: { shown: { from: string; to: string }; timeZone: string }) {
   const [params, setParams] = useSearchParams();
-  const [from, setFrom] = useState(shown.from);
-  const [to, setTo] = useState(shown.to);
-  const apply = (e: FormEvent) => {
-    e.preventDefault();
+  const form = useForm<z.input<typeof downtimePeriodQuerySchema>, unknown, PeriodQuery>({
+    resolver: zodResolver(downtimePeriodQuerySchema),
+    defaultValues: shown,
+  });
+  const [from, to] = form.watch(['from', 'to']);
+  const e = form.formState.errors;
+  const apply = form.handleSubmit((period) => {
     const next = new URLSearchParams(params);
-    next.set('from', from);
-    next.set('to', to);
+    next.set('from', period.from ?? '');
+    next.set('to', period.to ?? '');
     setParams(next);
-  };
+  });
   return (
-    <form onSubmit={apply} className="flex flex-wrap items-end gap-3" aria-label="Period">
-      <TextField label="From" type="date" value={from} max={to} onChange={(e) => setFrom(e.target.value)} />
-      <TextField label="To (included)" type="date" value={to} min={from} onChange={(e) => setTo(e.target.value)} />
+    <form onSubmit={apply} noValidate className="flex flex-wrap items-end gap-3" aria-label="Period">
+      <TextField label="From" type="date" max={to} {...form.register('from', dayOrNothing)} error={e.from?.message} />
+      <TextField label="To (included)" type="date" min={from} {...form.register('to', dayOrNothing)} error={e.to?.message} />
       <Button type="submit" variant="secondary" disabled={!from || !to || from > to}>
         Show period
       </Button>

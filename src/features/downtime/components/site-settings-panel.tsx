@@ -1,11 +1,19 @@
-import { useState, type FormEvent } from 'react';
-import { siteSettingsInputSchema, type SiteSettings } from '../../../../shared/schemas/downtime';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useFieldArray, useForm } from 'react-hook-form';
+import type { z } from 'zod';
+import { siteSettingsInputSchema, type SiteSettings, type SiteSettingsInput } from '../../../../shared/schemas/downtime';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { useSaveSettings } from '../api';
+
+/** A blank number is "not given" (the schema names it); a decimal comma reads as a point. */
+const asNumber = {
+  setValueAs: (v: unknown) => (v === '' || v == null ? undefined : typeof v === 'number' ? v : Number(String(v).trim().replace(',', '.'))),
+};
 
 /** Shift pattern (site time), labour rate of cutter work, and the gap between strokes that counts as a standstill. */
 export function SiteSettingsPanel({
@@ -20,27 +28,23 @@ export function SiteSettingsPanel({
   timeZone: string;
 }) {
   const saveSettings = useSaveSettings(projectId);
-  const [shifts, setShifts] = useState(settings.shifts);
-  const [rate, setRate] = useState(String(settings.labourRatePerHour));
-  const [gap, setGap] = useState(String(settings.gapMinutes));
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
+  const form = useForm<z.input<typeof siteSettingsInputSchema>, unknown, SiteSettingsInput>({
+    resolver: zodResolver(siteSettingsInputSchema),
+    defaultValues: { shifts: settings.shifts, labourRatePerHour: settings.labourRatePerHour, gapMinutes: settings.gapMinutes },
+  });
+  const shifts = useFieldArray({ control: form.control, name: 'shifts' });
+  const e = form.formState.errors;
 
-  const save = async (e: FormEvent) => {
-    e.preventDefault();
+  const save = form.handleSubmit(async (input) => {
     setMessage(null);
-    const parsed = siteSettingsInputSchema.safeParse({
-      shifts,
-      labourRatePerHour: Number(rate.replace(',', '.')),
-      gapMinutes: Number(gap),
-    });
-    if (!parsed.success) return setMessage({ tone: 'error', text: parsed.error.issues[0].message });
     try {
-      await saveSettings.mutateAsync(parsed.data);
+      await saveSettings.mutateAsync(input);
       setMessage({ tone: 'success', text: 'Site settings saved; the reports use them from now on.' });
     } catch (err) {
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Saving failed. Try again.' });
+      setMessage({ tone: 'error', text: serverErrors(err, form.setError, 'Saving failed. Try again.').text });
     }
-  };
+  });
 
   if (!canEdit) {
     return (
@@ -53,8 +57,6 @@ export function SiteSettingsPanel({
       </Panel>
     );
   }
-  const setShift = (i: number, patch: Partial<{ name: string; start: string }>) =>
-    setShifts(shifts.map((s, k) => (k === i ? { ...s, ...patch } : s)));
   return (
     <Panel title="Site settings">
       <form onSubmit={save} noValidate className="space-y-4" aria-label="Site settings">
@@ -62,24 +64,27 @@ export function SiteSettingsPanel({
         {!settings.saved && <p className="text-caption text-basalt-700">These are the defaults; save them to make them the site’s.</p>}
         <fieldset className="space-y-2">
           <legend className="font-semibold">Shifts (start in site time, {timeZone}; each runs until the next starts)</legend>
-          {shifts.map((s, i) => (
-            <div key={i} className="flex flex-wrap items-end gap-3">
-              <TextField label={`Shift ${i + 1} name`} value={s.name} onChange={(e) => setShift(i, { name: e.target.value })} />
+          {shifts.fields.map((s, i) => (
+            <div key={s.id} className="flex flex-wrap items-end gap-3">
+              <TextField label={`Shift ${i + 1} name`} {...form.register(`shifts.${i}.name`)} error={e.shifts?.[i]?.name?.message} />
               <TextField
                 label={`Shift ${i + 1} starts`}
                 type="time"
-                value={s.start}
-                onChange={(e) => setShift(i, { start: e.target.value })}
+                {...form.register(`shifts.${i}.start`)}
+                error={e.shifts?.[i]?.start?.message}
               />
-              {shifts.length > 1 && (
-                <Button variant="ghost" onClick={() => setShifts(shifts.filter((_, k) => k !== i))}>
+              {shifts.fields.length > 1 && (
+                <Button variant="ghost" onClick={() => shifts.remove(i)}>
                   Remove shift {i + 1}
                 </Button>
               )}
             </div>
           ))}
-          {shifts.length < 6 && (
-            <Button variant="secondary" onClick={() => setShifts([...shifts, { name: '', start: '' }])}>
+          {(e.shifts?.message ?? e.shifts?.root?.message) && (
+            <p className="text-caption font-semibold text-alarm-700">{e.shifts?.message ?? e.shifts?.root?.message}</p>
+          )}
+          {shifts.fields.length < 6 && (
+            <Button variant="secondary" onClick={() => shifts.append({ name: '', start: '' })}>
               Add a shift
             </Button>
           )}
@@ -88,19 +93,21 @@ export function SiteSettingsPanel({
           <TextField
             label="Labour rate of cutter work (per hour)"
             inputMode="decimal"
-            value={rate}
-            onChange={(e) => setRate(e.target.value)}
+            {...form.register('labourRatePerHour', asNumber)}
+            error={e.labourRatePerHour?.message}
             hint="The crew’s cost for one hour of cutter work, in the parts catalogue’s currency."
           />
           <TextField
             label="Standstill after (minutes between strokes)"
             inputMode="numeric"
-            value={gap}
-            onChange={(e) => setGap(e.target.value)}
+            {...form.register('gapMinutes', asNumber)}
+            error={e.gapMinutes?.message}
             hint="Longer gaps are proposed as downtime; shorter ones are ring building."
           />
         </div>
-        <Button type="submit">Save site settings</Button>
+        <Button type="submit" disabled={form.formState.isSubmitting}>
+          Save site settings
+        </Button>
       </form>
     </Panel>
   );

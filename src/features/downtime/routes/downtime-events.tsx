@@ -1,9 +1,12 @@
+import { zodResolver } from '@hookform/resolvers/zod';
 import { useQuery, useSuspenseQueries } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
-import { useState, type FormEvent } from 'react';
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
 import { useParams, useSearchParams } from 'react-router';
+import { z } from 'zod';
 import { roleCan } from '../../../../shared/roles';
-import { NO_CAUSE_LABEL, type DowntimeCause, type DowntimeEventRow } from '../../../../shared/schemas/downtime';
+import { downtimePeriodQuerySchema, NO_CAUSE_LABEL, type DowntimeCause, type DowntimeEventRow } from '../../../../shared/schemas/downtime';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
@@ -17,6 +20,7 @@ import { downtimeQueries, useProposeFromGaps } from '../api';
 import { CausesPanel } from '../components/causes-panel';
 import { DowntimeTabs } from '../components/downtime-tabs';
 import { EventForm } from '../components/event-form';
+import { dayOrNothing } from '../components/period-filter';
 import { SiteSettingsPanel } from '../components/site-settings-panel';
 
 const col = createColumnHelper<DowntimeEventRow>();
@@ -50,6 +54,9 @@ function useEventFilters() {
   return { query, cause, apply };
 }
 
+/** The server's period check, with the cause choice (an id, UNEXPLAINED or '') beside it. */
+const eventFilterSchema = downtimePeriodQuerySchema.and(z.object({ cause: z.string() }));
+
 /** Period and cause of the list; the period starts as the one the server used (the last eight ISO weeks with data). */
 function EventFilters({
   shown,
@@ -60,28 +67,18 @@ function EventFilters({
   causes: DowntimeCause[];
   onApply: (v: EventFilterValues) => void;
 }) {
-  const [draft, setDraft] = useState(shown);
-  const submit = (e: FormEvent) => {
-    e.preventDefault();
-    onApply(draft);
-  };
+  const form = useForm<z.input<typeof eventFilterSchema>, unknown, z.output<typeof eventFilterSchema>>({
+    resolver: zodResolver(eventFilterSchema),
+    defaultValues: shown,
+  });
+  const [from, to] = form.watch(['from', 'to']);
+  const e = form.formState.errors;
+  const submit = form.handleSubmit((v) => onApply({ from: v.from ?? '', to: v.to ?? '', cause: v.cause }));
   return (
-    <form onSubmit={submit} className="mb-4 flex flex-wrap items-end gap-3" aria-label="Filter events">
-      <TextField
-        label="From"
-        type="date"
-        value={draft.from}
-        max={draft.to}
-        onChange={(e) => setDraft({ ...draft, from: e.target.value })}
-      />
-      <TextField
-        label="To (included)"
-        type="date"
-        value={draft.to}
-        min={draft.from}
-        onChange={(e) => setDraft({ ...draft, to: e.target.value })}
-      />
-      <SelectField label="Cause" value={draft.cause} onChange={(e) => setDraft({ ...draft, cause: e.target.value })}>
+    <form onSubmit={submit} noValidate className="mb-4 flex flex-wrap items-end gap-3" aria-label="Filter events">
+      <TextField label="From" type="date" max={to} {...form.register('from', dayOrNothing)} error={e.from?.message} />
+      <TextField label="To (included)" type="date" min={from} {...form.register('to', dayOrNothing)} error={e.to?.message} />
+      <SelectField label="Cause" {...form.register('cause')}>
         <option value="">All causes</option>
         <option value={UNEXPLAINED}>{NO_CAUSE_LABEL}</option>
         {causes.map((c) => (
@@ -90,7 +87,7 @@ function EventFilters({
           </option>
         ))}
       </SelectField>
-      <Button type="submit" variant="secondary" disabled={!draft.from || !draft.to || draft.from > draft.to}>
+      <Button type="submit" variant="secondary" disabled={!from || !to || from > to}>
         Show
       </Button>
     </form>

@@ -1,9 +1,12 @@
+import { zodResolver } from '@hookform/resolvers/zod';
 import { useQuery, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
 import { createColumnHelper, type PaginationState, type SortingState } from '@tanstack/react-table';
-import { useMemo, useState } from 'react';
+import { useCallback, useEffect, useMemo, useState } from 'react';
+import { useForm } from 'react-hook-form';
 import { useParams } from 'react-router';
+import type { z } from 'zod';
 import { roleCan } from '../../../../shared/roles';
-import type { StrokeListQuery } from '../../../../shared/schemas/geology';
+import { strokeListQuerySchema, type StrokeListQuery } from '../../../../shared/schemas/geology';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
@@ -51,14 +54,67 @@ function strokeColumns(timeZone: string) {
   ];
 }
 
-interface FilterText {
-  ringFrom: string;
-  ringTo: string;
-  from: string;
-  to: string;
+/** The filters of the server's list query; a blank field is "no filter". */
+const filterSchema = strokeListQuerySchema.pick({ ringFrom: true, ringTo: true, from: true, to: true });
+type FilterForm = z.input<typeof filterSchema>;
+const blankIsNothing = { setValueAs: (v: unknown) => (v === '' || v == null ? undefined : v) };
+
+/**
+ * The filters apply as they are typed: each change is checked with the server's schema, and only a
+ * valid set reaches the list (a value it cannot use is named beside its field).
+ */
+function StrokeFilterForm({ onFilters }: { onFilters: (filters: StrokeFilters) => void }) {
+  const form = useForm<FilterForm, unknown, StrokeFilters>({
+    resolver: zodResolver(filterSchema),
+    mode: 'onChange',
+    defaultValues: { ringFrom: undefined, ringTo: undefined, from: undefined, to: undefined },
+  });
+  const e = form.formState.errors;
+  const values = form.watch();
+  const filtered = Object.values(values).some((v) => v !== undefined && v !== '');
+  useEffect(() => {
+    const apply = form.handleSubmit(onFilters);
+    const watching = form.watch(() => void apply());
+    return () => watching.unsubscribe();
+  }, [form, onFilters]);
+  return (
+    <form
+      className="grid grid-cols-2 gap-3 md:grid-cols-[1fr_1fr_1fr_1fr_auto] md:items-end"
+      onSubmit={form.handleSubmit(onFilters)}
+      noValidate
+      aria-label="Filter the log"
+    >
+      <TextField
+        label="Ring from"
+        type="number"
+        inputMode="numeric"
+        step={1}
+        {...form.register('ringFrom', blankIsNothing)}
+        error={e.ringFrom?.message}
+      />
+      <TextField
+        label="Ring to"
+        type="number"
+        inputMode="numeric"
+        step={1}
+        {...form.register('ringTo', blankIsNothing)}
+        error={e.ringTo?.message}
+      />
+      <TextField label="Date from" type="date" {...form.register('from', blankIsNothing)} error={e.from?.message} />
+      <TextField label="Date to" type="date" {...form.register('to', blankIsNothing)} error={e.to?.message} />
+      <Button
+        variant="ghost"
+        disabled={!filtered}
+        onClick={() => {
+          form.reset();
+          onFilters({});
+        }}
+      >
+        Clear filters
+      </Button>
+    </form>
+  );
 }
-const noFilters: FilterText = { ringFrom: '', ringTo: '', from: '', to: '' };
-const ringOrNothing = (text: string) => (text.trim() !== '' && Number.isInteger(Number(text)) ? Number(text) : undefined);
 
 /** The advance log: server-side paging, sorting and filtering, so a drive of 50,000 strokes stays quick. */
 export function AdvanceLogRoute() {
@@ -68,14 +124,12 @@ export function AdvanceLogRoute() {
   const daily = useQuery(driveDataQueries.daily(projectId));
   const [sorting, setSorting] = useState<SortingState>([{ id: 'ringNumber', desc: true }]);
   const [pagination, setPagination] = useState<PaginationState>({ pageIndex: 0, pageSize: 50 });
-  const [filterText, setFilterText] = useState<FilterText>(noFilters);
+  const [filters, setFilters] = useState<StrokeFilters>({});
+  const onFilters = useCallback((next: StrokeFilters) => {
+    setFilters(next);
+    setPagination((p) => ({ ...p, pageIndex: 0 }));
+  }, []);
 
-  const filters: StrokeFilters = {
-    ringFrom: ringOrNothing(filterText.ringFrom),
-    ringTo: ringOrNothing(filterText.ringTo),
-    from: filterText.from || undefined,
-    to: filterText.to || undefined,
-  };
   const query: StrokeListQuery = {
     page: pagination.pageIndex + 1,
     pageSize: pagination.pageSize,
@@ -87,11 +141,7 @@ export function AdvanceLogRoute() {
   const columns = useMemo(() => strokeColumns(project.siteTimeZone), [project.siteTimeZone]);
   const total = list.data?.total ?? 0;
 
-  const setFilter = (key: keyof FilterText, value: string) => {
-    setFilterText((f) => ({ ...f, [key]: value }));
-    setPagination((p) => ({ ...p, pageIndex: 0 }));
-  };
-  const filtered = Object.values(filterText).some((v) => v !== '');
+  const filtered = Object.values(filters).some((v) => v !== undefined);
   const first = total === 0 ? 0 : pagination.pageIndex * pagination.pageSize + 1;
   const last = Math.min(total, (pagination.pageIndex + 1) * pagination.pageSize);
 
@@ -144,40 +194,7 @@ export function AdvanceLogRoute() {
             }}
             toolbar={
               <>
-                <form
-                  className="grid grid-cols-2 gap-3 md:grid-cols-[1fr_1fr_1fr_1fr_auto] md:items-end"
-                  onSubmit={(e) => e.preventDefault()}
-                  aria-label="Filter the log"
-                >
-                  <TextField
-                    label="Ring from"
-                    type="number"
-                    inputMode="numeric"
-                    step={1}
-                    value={filterText.ringFrom}
-                    onChange={(e) => setFilter('ringFrom', e.target.value)}
-                  />
-                  <TextField
-                    label="Ring to"
-                    type="number"
-                    inputMode="numeric"
-                    step={1}
-                    value={filterText.ringTo}
-                    onChange={(e) => setFilter('ringTo', e.target.value)}
-                  />
-                  <TextField label="Date from" type="date" value={filterText.from} onChange={(e) => setFilter('from', e.target.value)} />
-                  <TextField label="Date to" type="date" value={filterText.to} onChange={(e) => setFilter('to', e.target.value)} />
-                  <Button
-                    variant="ghost"
-                    disabled={!filtered}
-                    onClick={() => {
-                      setFilterText(noFilters);
-                      setPagination((p) => ({ ...p, pageIndex: 0 }));
-                    }}
-                  >
-                    Clear filters
-                  </Button>
-                </form>
+                <StrokeFilterForm onFilters={onFilters} />
                 <p role="status" className="font-semibold">
                   {list.isPending
                     ? 'Loading…'

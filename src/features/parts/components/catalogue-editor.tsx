@@ -1,88 +1,77 @@
+import { zodResolver } from '@hookform/resolvers/zod';
 import { createColumnHelper } from '@tanstack/react-table';
-import { useState, type FormEvent } from 'react';
-import { partInputSchema, partKindLabels, partKinds } from '../../../../shared/schemas/parts';
+import { useState } from 'react';
+import { useForm, type DefaultValues } from 'react-hook-form';
+import type { z } from 'zod';
+import { partInputSchema, partKindLabels, partKinds, type PartInput } from '../../../../shared/schemas/parts';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { useDeletePart, useSavePart, type CataloguePart } from '../api';
 import { money } from '../format';
 
-type Draft = Record<
-  'code' | 'name' | 'kind' | 'discSizeIn' | 'unitCost' | 'currency' | 'supplier' | 'leadTimeMeanDays' | 'leadTimeSdDays' | 'minOrderQty',
-  string
->;
+type PartForm = z.input<typeof partInputSchema>;
 
-const emptyDraft: Draft = {
+/** A new part: blank cost and lead time, to be filled in. */
+const emptyPart: DefaultValues<PartForm> = {
   code: '',
   name: '',
   kind: 'ring',
-  discSizeIn: '17',
-  unitCost: '',
+  discSizeIn: 17,
   currency: 'EUR',
   supplier: '',
-  leadTimeMeanDays: '',
-  leadTimeSdDays: '0',
-  minOrderQty: '1',
+  leadTimeSdDays: 0,
+  minOrderQty: 1,
 };
-const toDraft = (p: CataloguePart): Draft => ({
+const toForm = (p: CataloguePart): PartForm => ({
   code: p.code,
   name: p.name,
   kind: p.kind,
-  discSizeIn: p.discSizeIn == null ? '' : String(p.discSizeIn),
-  unitCost: String(p.unitCost),
+  discSizeIn: p.discSizeIn,
+  unitCost: p.unitCost,
   currency: p.currency,
   supplier: p.supplier,
-  leadTimeMeanDays: String(p.leadTimeMeanDays),
-  leadTimeSdDays: String(p.leadTimeSdDays),
-  minOrderQty: String(p.minOrderQty),
+  leadTimeMeanDays: p.leadTimeMeanDays,
+  leadTimeSdDays: p.leadTimeSdDays,
+  minOrderQty: p.minOrderQty,
 });
-/** Blank is "not given"; a decimal comma reads as a point. */
-const num = (s: string) => (s.trim() === '' ? undefined : Number(s.trim().replace(',', '.')));
+/** A blank number is "not given" (the schema's default, or its message); a decimal comma reads as a point. */
+const toNumber = (v: unknown) =>
+  v === '' || v == null ? undefined : typeof v === 'number' ? v : Number(String(v).trim().replace(',', '.'));
+const asNumber = { setValueAs: toNumber };
+/** The disc size left blank is "none" (null): only rings and assemblies need one. */
+const asNumberOrNull = { setValueAs: (v: unknown) => toNumber(v) ?? null };
 
 function PartForm({ projectId, editing, onDone }: { projectId: string; editing: CataloguePart | null; onDone: (text: string) => void }) {
   const savePart = useSavePart(projectId);
-  const [draft, setDraft] = useState<Draft>(editing ? toDraft(editing) : emptyDraft);
-  const [errors, setErrors] = useState<Partial<Record<keyof Draft, string>>>({});
   const [failure, setFailure] = useState<string | null>(null);
-  const set = (k: keyof Draft) => (e: { target: { value: string } }) => setDraft((d) => ({ ...d, [k]: e.target.value }));
+  const form = useForm<PartForm, unknown, PartInput>({
+    resolver: zodResolver(partInputSchema),
+    defaultValues: editing ? toForm(editing) : emptyPart,
+  });
+  const errors = form.formState.errors;
 
-  const onSubmit = async (e: FormEvent) => {
-    e.preventDefault();
+  const onSubmit = form.handleSubmit(async (input) => {
     setFailure(null);
-    const parsed = partInputSchema.safeParse({
-      ...draft,
-      discSizeIn: num(draft.discSizeIn) ?? null,
-      unitCost: num(draft.unitCost),
-      leadTimeMeanDays: num(draft.leadTimeMeanDays),
-      leadTimeSdDays: num(draft.leadTimeSdDays),
-      minOrderQty: num(draft.minOrderQty),
-    });
-    if (!parsed.success) {
-      setErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])));
-      return;
-    }
-    setErrors({});
     try {
-      const saved = editing
-        ? await savePart.mutateAsync({ partId: editing.id, input: parsed.data })
-        : await savePart.mutateAsync({ partId: null, input: parsed.data });
+      const saved = await savePart.mutateAsync({ partId: editing?.id ?? null, input });
       onDone(`${saved.code} ${editing ? 'saved' : 'added to the catalogue'}.`);
     } catch (err) {
-      if (err instanceof ApiError) setErrors(Object.fromEntries(err.issues.map((i) => [i.path, i.message])));
-      setFailure(err instanceof ApiError ? err.message : 'Saving failed. Try again.');
+      setFailure(serverErrors(err, form.setError, 'Saving failed. Try again.').text);
     }
-  };
+  });
 
   return (
     <form onSubmit={onSubmit} noValidate className="space-y-4">
       {failure && <Alert tone="error">{failure}</Alert>}
       <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
-        <TextField label="Code" value={draft.code} onChange={set('code')} error={errors.code} autoComplete="off" />
-        <TextField label="Name" value={draft.name} onChange={set('name')} error={errors.name} />
-        <SelectField label="Kind" value={draft.kind} onChange={set('kind')} error={errors.kind}>
+        <TextField label="Code" {...form.register('code')} error={errors.code?.message} autoComplete="off" />
+        <TextField label="Name" {...form.register('name')} error={errors.name?.message} />
+        <SelectField label="Kind" {...form.register('kind')} error={errors.kind?.message}>
           {partKinds.map((k) => (
             <option key={k} value={k}>
               {partKindLabels[k]}
@@ -92,39 +81,37 @@ function PartForm({ projectId, editing, onDone }: { projectId: string; editing: 
         <TextField
           label="Disc size (in)"
           inputMode="decimal"
-          value={draft.discSizeIn}
-          onChange={set('discSizeIn')}
-          error={errors.discSizeIn}
+          {...form.register('discSizeIn', asNumberOrNull)}
+          error={errors.discSizeIn?.message}
           hint="Rings and complete assemblies; blank for others."
         />
-        <TextField label="Unit cost" inputMode="decimal" value={draft.unitCost} onChange={set('unitCost')} error={errors.unitCost} />
-        <TextField label="Currency" value={draft.currency} onChange={set('currency')} error={errors.currency} />
-        <TextField label="Supplier" value={draft.supplier} onChange={set('supplier')} error={errors.supplier} />
+        <TextField label="Unit cost" inputMode="decimal" {...form.register('unitCost', asNumber)} error={errors.unitCost?.message} />
+        <TextField label="Currency" {...form.register('currency')} error={errors.currency?.message} />
+        <TextField label="Supplier" {...form.register('supplier')} error={errors.supplier?.message} />
         <TextField
           label="Lead time, mean (days)"
           inputMode="decimal"
-          value={draft.leadTimeMeanDays}
-          onChange={set('leadTimeMeanDays')}
-          error={errors.leadTimeMeanDays}
+          {...form.register('leadTimeMeanDays', asNumber)}
+          error={errors.leadTimeMeanDays?.message}
         />
         <TextField
           label="Lead time, spread (days)"
           inputMode="decimal"
-          value={draft.leadTimeSdDays}
-          onChange={set('leadTimeSdDays')}
-          error={errors.leadTimeSdDays}
+          {...form.register('leadTimeSdDays', asNumber)}
+          error={errors.leadTimeSdDays?.message}
           hint="Standard deviation; 0 for a fixed lead time."
         />
         <TextField
           label="Minimum order quantity"
           inputMode="numeric"
-          value={draft.minOrderQty}
-          onChange={set('minOrderQty')}
-          error={errors.minOrderQty}
+          {...form.register('minOrderQty', asNumber)}
+          error={errors.minOrderQty?.message}
         />
       </div>
       <div className="flex flex-wrap gap-2">
-        <Button type="submit">{editing ? 'Save the part' : 'Add the part'}</Button>
+        <Button type="submit" disabled={form.formState.isSubmitting}>
+          {editing ? 'Save the part' : 'Add the part'}
+        </Button>
         {editing && (
           <Button variant="secondary" onClick={() => onDone('')}>
             Cancel

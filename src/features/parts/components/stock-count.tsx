@@ -1,43 +1,41 @@
-import { useState, type FormEvent } from 'react';
-import { stockCountInputSchema } from '../../../../shared/schemas/parts';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import type { z } from 'zod';
+import { stockCountInputSchema, type StockCountInput } from '../../../../shared/schemas/parts';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { useCountStock, type CataloguePart } from '../api';
 
 /** A stock count: what is on the shelf replaces the book stock; the difference is recorded (and audited). */
 export function StockCount({ projectId, parts }: { projectId: string; parts: CataloguePart[] }) {
   const count = useCountStock(projectId);
   const [partId, setPartId] = useState(parts[0]?.id ?? '');
-  const [counted, setCounted] = useState('');
-  const [note, setNote] = useState('');
-  const [error, setError] = useState<string | undefined>();
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
   const part = parts.find((p) => p.id === partId);
+  // The part is where the count goes (the request's address); the form is the request body.
+  const form = useForm<z.input<typeof stockCountInputSchema>, unknown, StockCountInput>({
+    resolver: zodResolver(stockCountInputSchema),
+    defaultValues: { note: '' },
+  });
+  const e = form.formState.errors;
 
-  const onSubmit = async (e: FormEvent) => {
-    e.preventDefault();
+  const onSubmit = form.handleSubmit(async (input) => {
     setMessage(null);
-    const parsed = stockCountInputSchema.safeParse({ countedQty: counted.trim() === '' ? undefined : Number(counted), note });
-    if (!parsed.success) {
-      setError(parsed.error.issues[0]?.message);
-      return;
-    }
-    setError(undefined);
     try {
-      const result = await count.mutateAsync({ partId, input: parsed.data });
-      setCounted('');
-      setNote('');
+      const result = await count.mutateAsync({ partId, input });
+      form.reset();
       setMessage({
         tone: 'success',
         text: `${part?.code}: ${result.onHand} on hand (${result.difference === 0 ? 'as on the books' : `${result.difference > 0 ? '+' : ''}${result.difference} recorded as a count`}).`,
       });
     } catch (err) {
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'The count was not saved. Try again.' });
+      setMessage({ tone: 'error', text: serverErrors(err, form.setError, 'The count was not saved. Try again.').text });
     }
-  };
+  });
 
   if (parts.length === 0) return null;
   return (
@@ -63,13 +61,16 @@ export function StockCount({ projectId, parts }: { projectId: string; parts: Cat
         <TextField
           label="Counted quantity"
           inputMode="numeric"
-          value={counted}
-          onChange={(e) => setCounted(e.target.value)}
-          error={error}
+          {...form.register('countedQty', {
+            setValueAs: (v: unknown) => (v === '' || v == null ? undefined : typeof v === 'number' ? v : Number(String(v).trim())),
+          })}
+          error={e.countedQty?.message}
         />
-        <TextField label="Note (optional)" value={note} onChange={(e) => setNote(e.target.value)} />
+        <TextField label="Note (optional)" {...form.register('note')} error={e.note?.message} />
         <div className="md:pt-8">
-          <Button type="submit">Record count</Button>
+          <Button type="submit" disabled={form.formState.isSubmitting}>
+            Record count
+          </Button>
         </div>
       </form>
     </Panel>

@@ -1,4 +1,7 @@
-import { useState, type FormEvent } from 'react';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useState } from 'react';
+import { useForm, type FieldErrors } from 'react-hook-form';
+import { z } from 'zod';
 import {
   workshopConditions,
   workshopSettingsInputSchema,
@@ -10,12 +13,34 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
-import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { useSaveWorkshop, type CataloguePart } from '../api';
 
 type Bom = Record<WorkshopCondition, RebuildOutcomeInput>;
 const allScrap = (): Bom => Object.fromEntries(workshopConditions.map((c) => [c.key, 'scrap'])) as Bom;
-const cellControl = 'block min-h-touch rounded-md border-2 border-basalt-300 bg-white px-2';
+const cellControl = 'block min-h-touch rounded-md border-2 border-basalt-300 bg-white px-2 aria-[invalid=true]:border-alarm-500';
+
+/** What the form holds: the numbers as typed (the service level in per cent) and the bills of materials. */
+interface WorkshopForm {
+  turnaroundDays: string;
+  maxRebuilds: string;
+  serviceLevel: string;
+  boms: Record<string, Bom>;
+}
+/** A blank number is "not given" (the schema names it); a decimal comma reads as a point. */
+const toNumber = (text: string) => (text.trim() === '' ? undefined : Number(text.trim().replace(',', '.')));
+/** The form turned into the request and checked with the server's schema; the field names are the request's, so errors land on them. */
+const workshopFormSchema = z
+  .object({ turnaroundDays: z.string(), maxRebuilds: z.string(), serviceLevel: z.string(), boms: z.record(z.string(), z.any()) })
+  .transform((v): z.input<typeof workshopSettingsInputSchema> => ({
+    turnaroundDays: toNumber(v.turnaroundDays) as number,
+    maxRebuilds: toNumber(v.maxRebuilds) as number,
+    serviceLevel: (toNumber(v.serviceLevel) as number) / 100,
+    boms: v.boms as WorkshopSettingsInput['boms'],
+  }))
+  .pipe(workshopSettingsInputSchema);
+/** One line's problem (its part or its quantity), from the client's check or the server's refusal. */
+type LineErrors = (condition: WorkshopCondition, line: number) => string | undefined;
 
 function outcomeText(outcome: RebuildOutcomeInput, parts: CataloguePart[]): string {
   if (outcome === 'scrap') return 'Scrap';
@@ -29,11 +54,13 @@ function BomEditor({
   bom,
   parts,
   onChange,
+  lineError,
 }: {
   assembly: CataloguePart;
   bom: Bom;
   parts: CataloguePart[];
   onChange: (bom: Bom) => void;
+  lineError: LineErrors;
 }) {
   const rebuildParts = parts.filter((p) => p.kind !== 'cutter-assembly');
   const set = (c: WorkshopCondition, outcome: RebuildOutcomeInput) => onChange({ ...bom, [c]: outcome });
@@ -77,6 +104,8 @@ function BomEditor({
                         <div key={i} className="flex flex-wrap items-center gap-2">
                           <select
                             aria-label={`Part ${i + 1} for ${c.label}`}
+                            aria-invalid={lineError(c.key, i) ? true : undefined}
+                            aria-describedby={lineError(c.key, i) ? `bom-${assembly.id}-${c.key}-${i}-error` : undefined}
                             className={cellControl}
                             value={line.partId}
                             onChange={(e) =>
@@ -115,6 +144,11 @@ function BomEditor({
                           >
                             Remove
                           </Button>
+                          {lineError(c.key, i) && (
+                            <p id={`bom-${assembly.id}-${c.key}-${i}-error`} className="w-full text-caption font-semibold text-alarm-700">
+                              {lineError(c.key, i)}
+                            </p>
+                          )}
                         </div>
                       ))}
                       {rebuildParts.length > 0 && (
@@ -148,38 +182,38 @@ export function WorkshopSettings({
 }) {
   const save = useSaveWorkshop(projectId);
   const assemblies = parts.filter((p) => p.kind === 'cutter-assembly');
-  const [turnaround, setTurnaround] = useState(String(settings.turnaroundDays));
-  const [maxRebuilds, setMaxRebuilds] = useState(String(settings.maxRebuilds));
-  const [levelPct, setLevelPct] = useState(String(Number((settings.serviceLevel * 100).toFixed(1))));
-  const [boms, setBoms] = useState<Record<string, Bom>>(() =>
-    Object.fromEntries(assemblies.map((a) => [a.id, (settings.boms[a.id] as Bom | undefined) ?? allScrap()])),
-  );
-  const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string; issues?: string[] } | null>(null);
+  const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string } | null>(null);
+  const form = useForm<WorkshopForm, unknown, WorkshopSettingsInput>({
+    resolver: zodResolver(workshopFormSchema),
+    defaultValues: {
+      turnaroundDays: String(settings.turnaroundDays),
+      maxRebuilds: String(settings.maxRebuilds),
+      serviceLevel: String(Number((settings.serviceLevel * 100).toFixed(1))),
+      boms: Object.fromEntries(assemblies.map((a) => [a.id, (settings.boms[a.id] as Bom | undefined) ?? allScrap()])),
+    },
+  });
+  const e = form.formState.errors;
+  const boms = form.watch('boms');
+  const lineError =
+    (assemblyId: string): LineErrors =>
+    (condition, line) => {
+      const lines = (e.boms as Record<string, FieldErrors<Bom>> | undefined)?.[assemblyId]?.[condition] as
+        Record<number, { partId?: { message?: string }; qty?: { message?: string } }> | undefined;
+      return lines?.[line]?.partId?.message ?? lines?.[line]?.qty?.message;
+    };
 
-  const onSubmit = async (e: FormEvent) => {
-    e.preventDefault();
-    setMessage(null);
-    const parsed = workshopSettingsInputSchema.safeParse({
-      turnaroundDays: Number(turnaround.replace(',', '.')),
-      maxRebuilds: Number(maxRebuilds),
-      serviceLevel: Number(levelPct.replace(',', '.')) / 100,
-      boms,
-    });
-    if (!parsed.success) {
-      setMessage({
-        tone: 'error',
-        text: 'Some settings need attention; nothing was saved.',
-        issues: parsed.error.issues.map((i) => i.message),
-      });
-      return;
-    }
-    try {
-      await save.mutateAsync(parsed.data);
-      setMessage({ tone: 'success', text: 'Workshop settings saved; the demand is worked out again with them.' });
-    } catch (err) {
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Saving failed. Try again.' });
-    }
-  };
+  const onSubmit = form.handleSubmit(
+    async (input) => {
+      setMessage(null);
+      try {
+        await save.mutateAsync(input);
+        setMessage({ tone: 'success', text: 'Workshop settings saved; the demand is worked out again with them.' });
+      } catch (err) {
+        setMessage({ tone: 'error', text: serverErrors(err, form.setError, 'Saving failed. Try again.').text });
+      }
+    },
+    () => setMessage({ tone: 'error', text: 'Some settings need attention; nothing was saved.' }),
+  );
 
   if (!canEdit) {
     return (
@@ -207,35 +241,25 @@ export function WorkshopSettings({
   }
   return (
     <form onSubmit={onSubmit} noValidate className="space-y-6">
-      {message && (
-        <Alert tone={message.tone} title={message.text}>
-          {message.issues && (
-            <ul className="list-disc pl-5">
-              {message.issues.map((i) => (
-                <li key={i}>{i}</li>
-              ))}
-            </ul>
-          )}
-        </Alert>
-      )}
+      {message && <Alert tone={message.tone} title={message.text} />}
       <Panel title="Workshop loop">
         <p className="mb-4 max-w-prose text-basalt-700">
           A removed cutter goes to the workshop and is rebuilt by its worst condition — or scrapped — and comes back to ready stock after
           the turnaround. A cutter already rebuilt the most times allowed is scrapped whatever its condition.
         </p>
         <div className="grid gap-4 sm:grid-cols-3">
-          <TextField label="Turnaround (days)" inputMode="decimal" value={turnaround} onChange={(e) => setTurnaround(e.target.value)} />
+          <TextField label="Turnaround (days)" inputMode="decimal" {...form.register('turnaroundDays')} error={e.turnaroundDays?.message} />
           <TextField
             label="Most rebuilds of one cutter"
             inputMode="numeric"
-            value={maxRebuilds}
-            onChange={(e) => setMaxRebuilds(e.target.value)}
+            {...form.register('maxRebuilds')}
+            error={e.maxRebuilds?.message}
           />
           <TextField
             label="Service level (%)"
             inputMode="decimal"
-            value={levelPct}
-            onChange={(e) => setLevelPct(e.target.value)}
+            {...form.register('serviceLevel')}
+            error={e.serviceLevel?.message}
             hint="Chance of not running out during a lead time: 95 % is common."
           />
         </div>
@@ -252,10 +276,18 @@ export function WorkshopSettings({
               </Alert>
             </div>
           )}
-          <BomEditor assembly={a} bom={boms[a.id]} parts={parts} onChange={(bom) => setBoms((b) => ({ ...b, [a.id]: bom }))} />
+          <BomEditor
+            assembly={a}
+            bom={boms[a.id]}
+            parts={parts}
+            onChange={(bom) => form.setValue(`boms.${a.id}`, bom, { shouldDirty: true })}
+            lineError={lineError(a.id)}
+          />
         </Panel>
       ))}
-      <Button type="submit">Save the workshop settings</Button>
+      <Button type="submit" disabled={form.formState.isSubmitting}>
+        Save the workshop settings
+      </Button>
     </form>
   );
 }

@@ -1,5 +1,7 @@
+import { zodResolver } from '@hookform/resolvers/zod';
 import { useSuspenseQuery } from '@tanstack/react-query';
-import { Fragment, useState, type FormEvent } from 'react';
+import { Fragment, useState } from 'react';
+import { useForm, type Resolver } from 'react-hook-form';
 import { Link, useNavigate, useParams, useSearchParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { roleCan } from '../../../../shared/roles';
@@ -473,20 +475,15 @@ const settingFields: { key: keyof StopPlanQuery; label: string; hint: string; va
 
 /** The plan's assumptions; changing them recalculates the plan (they travel in the page address, nothing is saved). */
 function AssumptionsPanel({ settings, onApply }: { settings: StopPlan['settings']; onApply: (q: StopPlanQuery) => void }) {
-  const [values, setValues] = useState(
-    () => Object.fromEntries(settingFields.map((f) => [f.key, String(f.value(settings))])) as Record<keyof StopPlanQuery, string>,
-  );
-  const [errors, setErrors] = useState<Partial<Record<keyof StopPlanQuery, string>>>({});
-  const onSubmit = (e: FormEvent) => {
-    e.preventDefault();
-    const parsed = stopPlanQuerySchema.safeParse(Object.fromEntries(Object.entries(values).map(([k, v]) => [k, v.replace(',', '.')])));
-    if (!parsed.success) {
-      setErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])));
-      return;
-    }
-    setErrors({});
-    onApply(parsed.data);
-  };
+  type AssumptionsForm = Record<keyof StopPlanQuery, string>;
+  const form = useForm<AssumptionsForm, unknown, StopPlanQuery>({
+    // The server's query schema reads the numbers from text, as it does from the address.
+    resolver: zodResolver(stopPlanQuerySchema) as unknown as Resolver<AssumptionsForm, unknown, StopPlanQuery>,
+    defaultValues: Object.fromEntries(settingFields.map((f) => [f.key, String(f.value(settings))])) as AssumptionsForm,
+  });
+  const onSubmit = form.handleSubmit(onApply);
+  /** A decimal comma reads as a point. */
+  const decimal = { setValueAs: (v: unknown) => String(v ?? '').replace(',', '.') };
   return (
     <Panel title="Assumptions">
       <p className="mb-3 max-w-prose text-basalt-700">
@@ -499,9 +496,8 @@ function AssumptionsPanel({ settings, onApply }: { settings: StopPlan['settings'
             label={f.label}
             hint={f.hint}
             inputMode="decimal"
-            value={values[f.key]}
-            error={errors[f.key]}
-            onChange={(e) => setValues((v) => ({ ...v, [f.key]: e.target.value }))}
+            {...form.register(f.key, decimal)}
+            error={form.formState.errors[f.key]?.message}
           />
         ))}
         <div className="md:col-span-2">

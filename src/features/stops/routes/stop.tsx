@@ -1,5 +1,8 @@
+import { zodResolver } from '@hookform/resolvers/zod';
 import { useSuspenseQueries } from '@tanstack/react-query';
-import { useState, type FormEvent, type ReactNode } from 'react';
+import { useState, type ReactNode } from 'react';
+import { useForm } from 'react-hook-form';
+import { z } from 'zod';
 import { Link, useParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { roleCan } from '../../../../shared/roles';
@@ -8,6 +11,7 @@ import {
   canStop,
   scheduleStopInputSchema,
   stopStatusLabels,
+  type CancelStopInput,
   type ScheduleStopInput,
 } from '../../../../shared/schemas/stop';
 import { Alert } from '../../../components/ui/alert';
@@ -16,6 +20,7 @@ import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
 import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime, fromSiteInput, toSiteInput } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
@@ -33,7 +38,8 @@ function useStopAction(projectId: string, stopId: string) {
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const [done, setDone] = useState<string | null>(null);
-  const run = async (change: StopChange, message: string) => {
+  /** `refused` is a form's way to show the server's refusal (serverErrors: issues on its fields); it returns the message. */
+  const run = async (change: StopChange, message: string, refused?: (err: unknown) => string) => {
     setBusy(true);
     setError(null);
     setDone(null);
@@ -41,7 +47,7 @@ function useStopAction(projectId: string, stopId: string) {
       await changeStop.mutateAsync(change);
       setDone(message);
     } catch (err) {
-      setError(err instanceof ApiError ? err.message : 'That did not work. Try again.');
+      setError(refused ? refused(err) : err instanceof ApiError ? err.message : 'That did not work. Try again.');
     } finally {
       setBusy(false);
     }
@@ -329,40 +335,53 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
   );
 }
 
-type ScheduleField = 'plannedStart' | 'expectedHours' | 'crewId' | 'compressedAir';
+/** What the schedule form holds: the site time as typed and the hours as text. */
+interface ScheduleFormValues {
+  plannedStart: string;
+  expectedHours: string;
+  crewId: string;
+  compressedAir: boolean;
+}
+
+/** The form turned into the request, then checked with the server's schema (same field names, so errors land on the fields). */
+const scheduleFormSchema = (timeZone: string) =>
+  z
+    .object({ plannedStart: z.string(), expectedHours: z.string(), crewId: z.string(), compressedAir: z.boolean() })
+    .transform((v): z.input<typeof scheduleStopInputSchema> => ({
+      plannedStart: fromSiteInput(v.plannedStart, timeZone) ?? '',
+      expectedHours: (v.expectedHours.trim() === '' ? undefined : Number(v.expectedHours.trim().replace(',', '.'))) as number,
+      crewId: v.crewId,
+      compressedAir: v.compressedAir,
+    }))
+    .pipe(scheduleStopInputSchema);
 
 function ScheduleForm({ pack, crews, timeZone, action }: { pack: WorkPack; crews: Crew[]; timeZone: string; action: StopChanger }) {
   const { stop } = pack;
-  const [values, setValues] = useState(() => ({
-    plannedStart: stop.plannedStart ? toSiteInput(stop.plannedStart, timeZone) : '',
-    expectedHours: stop.expectedHours == null ? '' : String(stop.expectedHours),
-    crewId: stop.crewId ?? '',
-    compressedAir: stop.compressedAir,
-  }));
-  const [errors, setErrors] = useState<Partial<Record<ScheduleField, string>>>({});
-  const onSubmit = (e: FormEvent) => {
-    e.preventDefault();
-    const parsed = scheduleStopInputSchema.safeParse({
-      plannedStart: fromSiteInput(values.plannedStart, timeZone) ?? '',
-      expectedHours: values.expectedHours.trim() === '' ? undefined : Number(values.expectedHours.replace(',', '.')),
-      crewId: values.crewId,
-      compressedAir: values.compressedAir,
-    });
-    if (!parsed.success) {
-      setErrors(Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])));
-      return;
-    }
-    setErrors({});
-    const input: ScheduleStopInput = parsed.data;
-    void action.run({ kind: 'schedule', input }, 'Scheduled. Publish it to tell the crew.');
-  };
+  const form = useForm<ScheduleFormValues, unknown, ScheduleStopInput>({
+    resolver: zodResolver(scheduleFormSchema(timeZone)),
+    defaultValues: {
+      plannedStart: stop.plannedStart ? toSiteInput(stop.plannedStart, timeZone) : '',
+      expectedHours: stop.expectedHours == null ? '' : String(stop.expectedHours),
+      crewId: stop.crewId ?? '',
+      compressedAir: stop.compressedAir,
+    },
+  });
+  const errors = form.formState.errors;
+  const compressedAir = form.watch('compressedAir');
+  const onSubmit = form.handleSubmit((input) =>
+    action.run(
+      { kind: 'schedule', input },
+      'Scheduled. Publish it to tell the crew.',
+      (err) => serverErrors(err, form.setError, 'That did not work. Try again.').text,
+    ),
+  );
   const airOption = (compressed: boolean, label: string) => (
     <label className="flex min-h-touch items-center gap-2 rounded-md border-2 border-basalt-300 px-3 has-[:checked]:border-ember-500">
       <input
         type="radio"
         name="air"
-        checked={values.compressedAir === compressed}
-        onChange={() => setValues((v) => ({ ...v, compressedAir: compressed }))}
+        checked={compressedAir === compressed}
+        onChange={() => form.setValue('compressedAir', compressed, { shouldDirty: true })}
       />
       {label}
     </label>
@@ -373,24 +392,17 @@ function ScheduleForm({ pack, crews, timeZone, action }: { pack: WorkPack; crews
         <TextField
           label={`Planned start (site time, ${timeZone})`}
           type="datetime-local"
-          value={values.plannedStart}
-          error={errors.plannedStart}
-          onChange={(e) => setValues((v) => ({ ...v, plannedStart: e.target.value }))}
+          {...form.register('plannedStart')}
+          error={errors.plannedStart?.message}
         />
         <TextField
           label="Expected duration (h)"
           inputMode="decimal"
-          value={values.expectedHours}
-          error={errors.expectedHours}
+          {...form.register('expectedHours')}
+          error={errors.expectedHours?.message}
           hint="From the plan: stop hours plus change hours."
-          onChange={(e) => setValues((v) => ({ ...v, expectedHours: e.target.value }))}
         />
-        <SelectField
-          label="Crew"
-          value={values.crewId}
-          error={errors.crewId}
-          onChange={(e) => setValues((v) => ({ ...v, crewId: e.target.value }))}
-        >
+        <SelectField label="Crew" {...form.register('crewId')} error={errors.crewId?.message}>
           <option value="">Choose a crew…</option>
           {crews.map((c) => (
             <option key={c.id} value={c.id}>
@@ -404,7 +416,7 @@ function ScheduleForm({ pack, crews, timeZone, action }: { pack: WorkPack; crews
             {airOption(false, 'Free air')}
             {airOption(true, 'Compressed air')}
           </div>
-          {values.compressedAir && stop.workingPressureBar != null && (
+          {compressedAir && stop.workingPressureBar != null && (
             <p className="text-caption text-basalt-600">
               Indicative working pressure from the water head: {stop.workingPressureBar.toFixed(2)} bar.
             </p>
@@ -453,26 +465,20 @@ function CompleteForm({ rounds, timeZone, action }: { rounds: RoundOption[]; tim
 }
 
 function CancelForm({ action }: { action: StopChanger }) {
-  const [reason, setReason] = useState('');
-  const [error, setError] = useState<string | undefined>();
-  const onSubmit = (e: FormEvent) => {
-    e.preventDefault();
-    const parsed = cancelStopInputSchema.safeParse({ reason });
-    if (!parsed.success) {
-      setError(parsed.error.issues[0].message);
-      return;
-    }
-    setError(undefined);
-    void action.run({ kind: 'cancel', input: parsed.data }, 'Cancelled.');
-  };
+  const form = useForm<z.input<typeof cancelStopInputSchema>, unknown, CancelStopInput>({
+    resolver: zodResolver(cancelStopInputSchema),
+    defaultValues: { reason: '' },
+  });
+  const onSubmit = form.handleSubmit((input) =>
+    action.run({ kind: 'cancel', input }, 'Cancelled.', (err) => serverErrors(err, form.setError, 'That did not work. Try again.').text),
+  );
   return (
     <Panel title="Cancel the stop">
       <form onSubmit={onSubmit} noValidate className="grid gap-4 md:grid-cols-2">
         <TextField
           label="Reason"
-          value={reason}
-          error={error}
-          onChange={(e) => setReason(e.target.value)}
+          {...form.register('reason')}
+          error={form.formState.errors.reason?.message}
           hint="The crew is told if the stop was published."
         />
         <div className="flex items-end">
