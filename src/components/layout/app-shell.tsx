@@ -10,7 +10,7 @@ import { currentGroup, isItemCurrent, landingOf, navGroupsFor, type NavGroup } f
 
 /** A tab of the main row: the current group gets a heavy bar under it as well as a lighter fill (not colour alone). */
 const groupTab = (current: boolean) =>
-  `flex min-h-touch items-center whitespace-nowrap border-b-4 px-3 font-semibold ${
+  `flex min-h-touch items-center whitespace-nowrap border-b-4 px-2 font-semibold lg:px-3 ${
     current ? 'border-ember-400 bg-basalt-800 text-white' : 'border-transparent text-basalt-100 hover:bg-basalt-800'
   }`;
 
