@@ -6,6 +6,7 @@
  */
 import { and, asc, desc, eq, gt, isNull, sql } from 'drizzle-orm';
 import {
+  daysUntil,
   isStale,
   limitBand,
   NEAR_LIMIT_SHARE,
@@ -236,8 +237,13 @@ async function weekFigures(tx: DbOrTx, project: Project, p: Period): Promise<Wee
 
 async function siteManagerOverview(tx: DbOrTx, project: Project, now: Date): Promise<SiteManagerOverview> {
   const tz = project.siteTimeZone;
-  const thisWeek = await weekFigures(tx, project, periodOfDays(siteDay(siteWeekStart(now, tz), tz), siteDay(now, tz), tz));
-  const lastWeek = await weekFigures(tx, project, previousIsoWeek(now, tz));
+  const monday = siteDay(siteWeekStart(now, tz), tz);
+  const today = siteDay(now, tz);
+  const thisWeek = await weekFigures(tx, project, periodOfDays(monday, today, tz));
+  const previous = previousIsoWeek(now, tz);
+  const lastWeek = await weekFigures(tx, project, previous);
+  const sameDays = addSiteDays(previous.from, daysUntil(today, monday), tz);
+  const lastWeekSameDays = await weekFigures(tx, project, periodOfDays(previous.from, sameDays, tz));
   const unexplainedWhere = and(eq(downtimeEvents.projectId, project.id), isNull(downtimeEvents.causeId));
   const rows = await tx
     .select({ eventId: downtimeEvents.id, startAt: downtimeEvents.startAt, endAt: downtimeEvents.endAt, source: downtimeEvents.source })
@@ -254,6 +260,7 @@ async function siteManagerOverview(tx: DbOrTx, project: Project, now: Date): Pro
     .where(unexplainedWhere);
   return {
     thisWeek,
+    lastWeekSameDays,
     lastWeek,
     unexplained: rows.map((r) => ({ ...r, hours: (r.endAt.getTime() - r.startAt.getTime()) / 3_600_000 })),
     unexplainedCount: total.count,

@@ -123,7 +123,9 @@ export interface OverviewStandstill {
 }
 
 export interface SiteManagerOverview {
+  /** This week so far (Monday to today), last week over the same days (the fair comparison), and the whole of last week. */
   thisWeek: WeekFigures;
+  lastWeekSameDays: WeekFigures;
   lastWeek: WeekFigures;
   /** Downtime events without a cause, newest first (at most the list limit), and how many there are in all. */
   unexplained: OverviewStandstill[];

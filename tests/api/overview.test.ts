@@ -250,8 +250,8 @@ describe('the site manager’s two weeks', () => {
       { projectId: project.id, ringNumber: 3, startTime: at(W, 1 / 6), endTime: at(W, 2 / 3), chainageStartM: 103, chainageEndM: 104.2 },
     ]);
     await db.insert(downtimeEvents).values([
-      { projectId: project.id, startAt: at(L, 48), endAt: at(L, 52), causeId: causes.get('Cutter change')! },
-      { projectId: project.id, startAt: at(L, 72), endAt: at(L, 74), causeId: causes.get('Machine breakdown')! },
+      { projectId: project.id, startAt: at(L, 56), endAt: at(L, 60), causeId: causes.get('Cutter change')! },
+      { projectId: project.id, startAt: at(L, 80), endAt: at(L, 82), causeId: causes.get('Machine breakdown')! },
       { projectId: project.id, startAt: at(W, 1), endAt: at(W, 2), causeId: causes.get('Cutter inspection')! },
       { projectId: project.id, startAt: at(W, 2), endAt: at(W, 2.75), source: 'gap' },
       // Two weeks ago, without a cause: in neither week, but still unexplained.
@@ -274,6 +274,18 @@ describe('the site manager’s two weeks', () => {
     expect(s.thisWeek.advanceM).toBeCloseTo(1.2, 9);
     expect(s.thisWeek.downtimeHours).toBeCloseTo(1.75, 9);
     expect(s.thisWeek.cutterWorkHours).toBeCloseTo(1, 9);
+    // derived: last week over the same days as this week so far (Monday to the same weekday): the rows
+    // above that start before that day's end — the strokes on Tuesday 08:00, the change on Wednesday 08:00,
+    // the breakdown on Thursday 08:00 (all hours away from midnight, so a clock change does not move them).
+    const days = daysUntil(siteDay(now, tz), siteDay(new Date(W), tz)) + 1;
+    const upTo = L + days * DAY;
+    const inSameDays = (startHours: number) => L + startHours * HOUR < upTo;
+    expect(s.lastWeekSameDays.from).toBe(s.lastWeek.from);
+    expect(s.lastWeekSameDays.to).toBe(addSiteDays(s.lastWeek.from, days - 1, tz));
+    expect(s.lastWeekSameDays.boringHours).toBeCloseTo((inSameDays(32) ? 1 : 0) + (inSameDays(34) ? 1.5 : 0), 9);
+    expect(s.lastWeekSameDays.advanceM).toBeCloseTo((inSameDays(32) ? 1.5 : 0) + (inSameDays(34) ? 1.5 : 0), 9);
+    expect(s.lastWeekSameDays.downtimeHours).toBeCloseTo((inSameDays(56) ? 4 : 0) + (inSameDays(80) ? 2 : 0), 9);
+    expect(s.lastWeekSameDays.cutterWorkHours).toBeCloseTo(inSameDays(56) ? 4 : 0, 9);
     // derived: two events without a cause, 0.75 h + 3 h, the newest first.
     expect(s.unexplainedCount).toBe(2);
     expect(s.unexplainedHours).toBeCloseTo(3.75, 9);

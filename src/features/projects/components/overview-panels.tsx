@@ -214,7 +214,7 @@ export function OverviewPanels({ overview: o, projectId }: { overview: OverviewW
       {o.siteManager && (
         <>
           <Panel title="This week against last week">
-            <WeekTable thisWeek={o.siteManager.thisWeek} lastWeek={o.siteManager.lastWeek} timeZone={tz} />
+            <WeekTable s={o.siteManager} timeZone={tz} />
             <p className="mt-2">
               <Go to={paths.downtimeReport(projectId)}>Open the downtime report</Go>
             </p>
@@ -248,46 +248,45 @@ export function OverviewPanels({ overview: o, projectId }: { overview: OverviewW
   );
 }
 
-function WeekTable({ thisWeek, lastWeek, timeZone }: { thisWeek: WeekFigures; lastWeek: WeekFigures; timeZone: string }) {
-  const rows: { label: string; key: keyof WeekFigures; unit: string }[] = [
+function WeekTable({ s, timeZone }: { s: NonNullable<OverviewWire['siteManager']>; timeZone: string }) {
+  const rows: { label: string; key: 'boringHours' | 'advanceM' | 'downtimeHours' | 'cutterWorkHours'; unit: string }[] = [
     { label: 'Boring', key: 'boringHours', unit: 'h' },
     { label: 'Advance', key: 'advanceM', unit: 'm' },
     { label: 'Downtime', key: 'downtimeHours', unit: 'h' },
     { label: 'Cutter work', key: 'cutterWorkHours', unit: 'h' },
   ];
+  const value = (w: WeekFigures, key: (typeof rows)[number]['key'], unit: string) => `${w[key].toFixed(1)} ${unit}`;
   return (
-    <table className="w-full text-left">
-      <caption className="text-left text-caption text-basalt-600">
-        Site time ({timeZone}); this week runs Monday to today ({thisWeek.from} to {thisWeek.to}), last week {lastWeek.from} to{' '}
-        {lastWeek.to}.
-      </caption>
-      <thead>
-        <tr>
-          <th scope="col"></th>
-          <th scope="col">This week ({thisWeek.isoWeek})</th>
-          <th scope="col">Last week ({lastWeek.isoWeek})</th>
-          <th scope="col">Change</th>
-        </tr>
-      </thead>
-      <tbody>
-        {rows.map((r) => {
-          const a = thisWeek[r.key] as number;
-          const b = lastWeek[r.key] as number;
-          const change = changeShare(a, b);
-          return (
-            <tr key={r.key}>
-              <th scope="row">{r.label}</th>
-              <td>
-                {a.toFixed(1)} {r.unit}
-              </td>
-              <td>
-                {b.toFixed(1)} {r.unit}
-              </td>
-              <td>{change === null ? '—' : `${change >= 0 ? '+' : '−'}${Math.abs(change * 100).toFixed(0)} %`}</td>
-            </tr>
-          );
-        })}
-      </tbody>
-    </table>
+    <div className="overflow-x-auto">
+      <table className="w-full text-left">
+        <caption className="text-left text-caption text-basalt-600">
+          Site time ({timeZone}). This week so far: {s.thisWeek.from} to {s.thisWeek.to}; compared with the same days of last week (
+          {s.lastWeekSameDays.from} to {s.lastWeekSameDays.to}); the whole of last week runs {s.lastWeek.from} to {s.lastWeek.to}.
+        </caption>
+        <thead>
+          <tr>
+            <th scope="col"></th>
+            <th scope="col">This week so far ({s.thisWeek.isoWeek})</th>
+            <th scope="col">Last week, same days</th>
+            <th scope="col">Change</th>
+            <th scope="col">Whole of last week ({s.lastWeek.isoWeek})</th>
+          </tr>
+        </thead>
+        <tbody>
+          {rows.map((r) => {
+            const change = changeShare(s.thisWeek[r.key], s.lastWeekSameDays[r.key]);
+            return (
+              <tr key={r.key}>
+                <th scope="row">{r.label}</th>
+                <td>{value(s.thisWeek, r.key, r.unit)}</td>
+                <td>{value(s.lastWeekSameDays, r.key, r.unit)}</td>
+                <td>{change === null ? '—' : `${change >= 0 ? '+' : '−'}${Math.abs(change * 100).toFixed(0)} %`}</td>
+                <td>{value(s.lastWeek, r.key, r.unit)}</td>
+              </tr>
+            );
+          })}
+        </tbody>
+      </table>
+    </div>
   );
 }
