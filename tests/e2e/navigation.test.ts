@@ -107,3 +107,60 @@ it('marks the current group and page with aria-current and a bar', async () => {
   expect(await pagesNav.getByRole('link', { name: 'Advance log' }).getAttribute('aria-current')).toBeNull();
   await page.close();
 });
+
+/** Each role's Overview links, by their words, to the screen where the item is dealt with. */
+const overviewLinks = [
+  {
+    email: 'fitter@kerfwise.test',
+    screens: [
+      { name: /^(Start a|Continue the) round$/, path: /\/rounds(\/[0-9a-f-]+)?$/ },
+      { name: /^Position \d+$/, path: /\/positions\/[0-9a-f-]+$/ },
+      { name: /^Open the work pack$/, path: /\/stops\/[0-9a-f-]+$/ },
+    ],
+    click: { name: /^Position \d+$/, heading: /^Position \d+$/ },
+  },
+  {
+    email: 'planner@kerfwise.test',
+    screens: [
+      { name: /^Position \d+$/, path: /\/stops\/plan$/ },
+      { name: /^How the forecast was made$/, path: /\/forecast$/ },
+      { name: /^Stop at /, path: /\/stops\/[0-9a-f-]+$/ },
+      { name: /^Import strokes$/, path: /\/advance-log$/ },
+      { name: /^Plan a round$/, path: /\/rounds$/ },
+    ],
+    click: { name: /^How the forecast was made$/, heading: /forecast/i },
+  },
+  {
+    email: 'buyer@kerfwise.test',
+    screens: [{ name: /^Order /, path: /\/parts$/ }],
+    click: { name: /^Order /, heading: /^Parts$/ },
+  },
+  {
+    email: 'manager@kerfwise.test',
+    screens: [
+      { name: /^Open the downtime report$/, path: /\/downtime\/report$/ },
+      { name: /^Give a cause$/, path: /\/downtime$/ },
+    ],
+    click: { name: /^Give a cause$/, heading: /^Downtime$/ },
+  },
+];
+
+it.each(overviewLinks)('the Overview of $email links each item to the screen where it is dealt with', async ({ email, screens, click }) => {
+  const page = await signInThroughForm(browser, app.url, email, DEMO_PASSWORD, { width: 1366, height: 768 });
+  await page.goto(`${app.url}/projects/${projectId}`);
+  const overview = page.getByRole('region', { name: 'Start of the day' });
+  await expect.poll(() => overview.getByRole('heading', { level: 2 }).count(), { timeout: 60_000 }).toBeGreaterThan(0);
+  const links = await overview
+    .getByRole('link')
+    .evaluateAll((els) => els.map((e) => ({ name: (e.textContent ?? '').trim(), href: e.getAttribute('href') ?? '' })));
+  expect(links.length).toBeGreaterThan(0);
+  for (const link of links) {
+    expect(link.href.startsWith(`/projects/${projectId}/`), link.href).toBe(true);
+    const screen = screens.find((s) => s.name.test(link.name));
+    expect(screen, `no screen expected for the link “${link.name}”`).toBeDefined();
+    expect(link.href, link.name).toMatch(screen!.path);
+  }
+  await overview.getByRole('link', { name: click.name }).first().click();
+  await expect.poll(() => heading(page), { timeout: 60_000 }).toMatch(click.heading);
+  await page.close();
+});
