@@ -20,5 +20,7 @@ export const getOverview = (projectId: string) => apiGet<OverviewWire>(`/api/pro
 /** Each role's start of the day (the server answers the caller's role's sections only). */
 export const overviewQueries = {
   all: ['overview'] as const,
-  detail: (projectId: string) => queryOptions({ queryKey: [...overviewQueries.all, projectId], queryFn: () => getOverview(projectId) }),
+  // Fetched again on every visit: it sums up what other screens change.
+  detail: (projectId: string) =>
+    queryOptions({ queryKey: [...overviewQueries.all, projectId], queryFn: () => getOverview(projectId), staleTime: 0 }),
 };
