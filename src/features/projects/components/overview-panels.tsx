@@ -31,6 +31,14 @@ function Items({ label, children }: { label: string; children: ReactNode }) {
 const Row = ({ children }: { children: ReactNode }) => <li className="flex flex-wrap items-center gap-x-4 py-1">{children}</li>;
 const None = ({ children }: { children: ReactNode }) => <p className="text-basalt-600">{children}</p>;
 const hours = (h: number) => `${h.toFixed(1)} h`;
+/** An amount in its currency with thousands separators; a code Intl does not know is written after the number. */
+function money(value: number, currency: string): string {
+  try {
+    return new Intl.NumberFormat('en-GB', { style: 'currency', currency }).format(value);
+  } catch {
+    return `${value.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })} ${currency}`;
+  }
+}
 const more = (shown: number, total: number) => (total > shown ? <None>…and {total - shown} more.</None> : null);
 
 export function OverviewPanels({ overview: o, projectId }: { overview: OverviewWire; projectId: string }) {
@@ -177,7 +185,7 @@ export function OverviewPanels({ overview: o, projectId }: { overview: OverviewW
                     <Go to={paths.parts(projectId)}>Order {s.code}</Go>
                     <span>
                       {s.orderQty} × {s.name}
-                      {s.supplier && ` from ${s.supplier}`}, {s.orderValue.toFixed(2)} {s.currency}
+                      {s.supplier && ` from ${s.supplier}`}, {money(s.orderValue, s.currency)}
                       {s.firstShortageDate && `; short from ${s.firstShortageDate}`}
                     </span>
                   </Row>
