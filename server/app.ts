@@ -19,6 +19,7 @@ import { downtimeRouter } from './routes/downtime';
 import { forecastRouter, wearFitRouter } from './routes/forecast';
 import { geologyRouter, groundTypesRouter } from './routes/geology';
 import { healthRouter } from './routes/health';
+import { overviewRouter } from './routes/overview';
 import { partsRouter } from './routes/parts';
 import { photosRouter } from './routes/photos';
 import { positionsRouter } from './routes/positions';
@@ -69,6 +70,7 @@ export function createApp(options: AppOptions = {}): Express {
   api.use('/projects/:projectId/stops', stopsRouter);
   api.use('/projects/:projectId/downtime', downtimeRouter);
   api.use('/projects/:projectId/parts', partsRouter);
+  api.use('/projects/:projectId/overview', overviewRouter);
   api.use('/admin/jobs', createAdminJobsRouter(options.jobs ?? []));
   api.use('/admin/backups', backupsRouter);
   api.use('/admin', adminRouter);

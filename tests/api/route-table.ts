@@ -70,6 +70,8 @@ export const routeTable: RouteCase[] = [
     okStatus: 204,
   },
   { method: 'get', path: '/api/projects/:projectId', roles: everyone },
+  // Each role's Overview (start of the day): every member, each answered with its own role's sections.
+  { method: 'get', path: '/api/projects/:projectId/overview', roles: everyone },
   { method: 'get', path: '/api/admin/users', admin: true },
   {
     method: 'post',

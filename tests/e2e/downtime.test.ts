@@ -51,7 +51,8 @@ it('the site manager opens the weekly downtime table', async () => {
 
   const menu = page.getByRole('button', { name: 'Menu' });
   if (await menu.isVisible()) await menu.click();
-  await page.getByRole('link', { name: 'Downtime', exact: true }).click();
+  // The site manager's 'Parts & downtime' group opens on Downtime (src/components/layout/nav-groups.ts).
+  await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Parts & downtime' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Downtime');
   // The two events of the fixture, in site time.
   expect(

@@ -52,7 +52,8 @@ it('a planner imports an advance log (a bad file first) and a long section, page
 
   const page = await signInThroughForm(browser, app.url, user.email, PASSWORD);
   await page.waitForURL(new RegExp(`/projects/${project.id}$`));
-  await page.getByRole('link', { name: 'Advance log' }).click();
+  await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Drive data' }).click();
+  await page.getByRole('navigation', { name: 'Pages of this group' }).getByRole('link', { name: 'Advance log' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Advance log');
   expect(await page.getByText('Up to 50,000 rows / 50 MB per file').isVisible()).toBe(true);
 
@@ -112,7 +113,7 @@ it('a planner imports an advance log (a bad file first) and a long section, page
     );
 
   // The long section: imported, drawn as a strip with its four ground types and the machine.
-  await page.getByRole('link', { name: 'Geology' }).click();
+  await page.getByRole('navigation', { name: 'Pages of this group' }).getByRole('link', { name: 'Geology' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Geology');
   await importFile(page, longSection);
   await expect.poll(() => page.getByText(/imported: 4 sections saved/).count(), { timeout: 15_000 }).toBe(1);

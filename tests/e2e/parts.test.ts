@@ -38,7 +38,7 @@ it('the buyer sees an order suggestion caused by a scheduled stop and exports it
   await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
 
   await page.goto(`${app.url}/projects/${project.id}`);
-  await page.getByRole('link', { name: 'Parts', exact: true }).click();
+  await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Parts & downtime' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Parts');
 
   const panel = page.getByRole('heading', { name: 'Order suggestions' }).locator('..');

@@ -1,16 +1,26 @@
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { Suspense, useState } from 'react';
 import { Link, Navigate, NavLink, Outlet, useLocation, useMatch, useNavigate } from 'react-router';
-import { roleCan, roleLabels } from '../../../shared/roles';
+import { roleLabels } from '../../../shared/roles';
 import { paths } from '../../config/paths';
 import { authQueries, signOut } from '../../features/auth/api';
 import { PageLoading } from '../ui/page';
 import { Logo } from './logo';
+import { currentGroup, isItemCurrent, landingOf, navGroupsFor, type NavGroup } from './nav-groups';
 
-const navLink = ({ isActive }: { isActive: boolean }) =>
-  `flex min-h-touch items-center rounded-md px-3 font-semibold ${isActive ? 'bg-ember-600 text-white' : 'text-basalt-100 hover:bg-basalt-800'}`;
+/** A tab of the main row: the current group gets a heavy bar under it as well as a lighter fill (not colour alone). */
+const groupTab = (current: boolean) =>
+  `flex min-h-touch items-center whitespace-nowrap border-b-4 px-2 font-semibold lg:px-3 ${
+    current ? 'border-ember-400 bg-basalt-800 text-white' : 'border-transparent text-basalt-100 hover:bg-basalt-800'
+  }`;
 
-/** The signed-in frame: top bar with the project, navigation for the role, and the page. */
+/** A page of the current group: the current page is underlined with a bar and set in bold. */
+const pageTab = (isActive: boolean) =>
+  `flex min-h-touch items-center whitespace-nowrap border-b-4 px-3 ${
+    isActive ? 'border-ember-600 font-bold text-basalt-950' : 'border-transparent font-semibold text-basalt-700 hover:bg-basalt-200'
+  }`;
+
+/** The signed-in frame: top bar with the drive, navigation grouped by task for the role, and the page. */
 export function AppShell() {
   const { data: me, isPending, error } = useQuery(authQueries.me());
   const location = useLocation();
@@ -30,6 +40,8 @@ export function AppShell() {
 
   const projectId = projectMatch?.params.projectId;
   const membership = me.memberships.find((m) => m.projectId === projectId);
+  const groups: NavGroup[] = projectId && membership ? navGroupsFor(membership.role) : [];
+  const here = projectId ? currentGroup(groups, projectId, location.pathname) : undefined;
 
   const onSignOut = async () => {
     await signOut().catch(() => {});
@@ -40,8 +52,8 @@ export function AppShell() {
   return (
     <div className="min-h-screen">
       <header className="no-print bg-basalt-900 text-white">
-        <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-3 px-4 py-2">
-          <Link to={paths.home} className="min-h-touch flex items-center">
+        <div className="mx-auto flex max-w-6xl flex-wrap items-center gap-x-3 px-4 pt-1">
+          <Link to={paths.home} className="flex min-h-touch items-center">
             <Logo />
           </Link>
           {membership && (
@@ -49,87 +61,14 @@ export function AppShell() {
               {membership.projectName} · <span className="text-ember-300">{roleLabels[membership.role]}</span>
             </span>
           )}
-          <button
-            type="button"
-            className="ml-auto min-h-touch rounded-md px-3 font-semibold md:hidden"
-            aria-expanded={menuOpen}
-            aria-controls="main-nav"
-            onClick={() => setMenuOpen((o) => !o)}
-          >
-            Menu
-          </button>
-          <nav
-            id="main-nav"
-            aria-label="Main"
-            className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:ml-auto md:flex md:w-auto md:flex-row md:flex-wrap md:items-center`}
-          >
-            {projectId && membership && (
-              <>
-                <NavLink end to={paths.project(projectId)} className={navLink}>
-                  Overview
-                </NavLink>
-                <NavLink to={paths.cutterhead(projectId)} className={navLink}>
-                  Cutterhead
-                </NavLink>
-                {roleCan(membership.role, 'forecast.read') && (
-                  <NavLink to={paths.forecast(projectId)} className={navLink}>
-                    Forecast
-                  </NavLink>
-                )}
-                {roleCan(membership.role, 'forecast.read') && (
-                  <NavLink to={paths.wearFits(projectId)} className={navLink}>
-                    Wear rates
-                  </NavLink>
-                )}
-                {roleCan(membership.role, 'rounds.read') && (
-                  <NavLink to={paths.rounds(projectId)} className={navLink}>
-                    Rounds
-                  </NavLink>
-                )}
-                {roleCan(membership.role, 'stops.read') && (
-                  <NavLink to={paths.stops(projectId)} className={navLink}>
-                    Stops
-                  </NavLink>
-                )}
-                <NavLink to={paths.cutters(projectId)} className={navLink}>
-                  Cutters
-                </NavLink>
-                {roleCan(membership.role, 'drive.read') && (
-                  <NavLink to={paths.advanceLog(projectId)} className={navLink}>
-                    Advance log
-                  </NavLink>
-                )}
-                {roleCan(membership.role, 'drive.read') && (
-                  <NavLink to={paths.geology(projectId)} className={navLink}>
-                    Geology
-                  </NavLink>
-                )}
-                {roleCan(membership.role, 'parts.read') && (
-                  <NavLink to={paths.parts(projectId)} className={navLink}>
-                    Parts
-                  </NavLink>
-                )}
-                {roleCan(membership.role, 'downtime.read') && (
-                  <NavLink to={paths.downtime(projectId)} className={navLink}>
-                    Downtime
-                  </NavLink>
-                )}
-                <NavLink to={paths.layout(projectId)} className={navLink}>
-                  Layout
-                </NavLink>
-              </>
-            )}
-            {me.memberships.length > 1 && (
-              <NavLink end to={paths.home} className={navLink}>
-                Projects
-              </NavLink>
-            )}
-            {me.user.isAdmin && (
-              <NavLink to={paths.admin.users} className={navLink}>
-                Administration
-              </NavLink>
-            )}
-            <NavLink to={paths.account} className={navLink}>
+          {/* The right side of the top bar: status badges go first here, then the person's own links. */}
+          <div className="ml-auto flex items-center gap-1" data-slot="top-bar-end">
+            <NavLink
+              to={paths.account}
+              className={({ isActive }) =>
+                `flex min-h-touch items-center rounded-md px-3 font-semibold ${isActive ? 'underline decoration-4 underline-offset-8' : 'text-basalt-100 hover:bg-basalt-800'}`
+              }
+            >
               {me.user.name}
             </NavLink>
             <button
@@ -139,8 +78,72 @@ export function AppShell() {
             >
               Sign out
             </button>
-          </nav>
+            <button
+              type="button"
+              className="min-h-touch rounded-md px-3 font-semibold md:hidden"
+              aria-expanded={menuOpen}
+              aria-controls="main-nav"
+              onClick={() => setMenuOpen((o) => !o)}
+            >
+              Menu
+            </button>
+          </div>
         </div>
+        <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'block' : 'hidden'} md:block`}>
+          <ul className="mx-auto flex max-w-6xl flex-col px-4 md:flex-row md:flex-nowrap md:items-stretch" data-testid="main-nav-row">
+            {projectId &&
+              membership &&
+              groups.map((g) => {
+                const current = g === here;
+                return (
+                  <li key={g.key} className="flex">
+                    <Link
+                      to={landingOf(g, membership.role).to(projectId)}
+                      className={groupTab(current)}
+                      aria-current={current ? (g.items.length === 1 ? 'page' : 'location') : undefined}
+                      onClick={() => setMenuOpen(false)}
+                    >
+                      {g.label}
+                    </Link>
+                  </li>
+                );
+              })}
+            {me.memberships.length > 1 && (
+              <li className="flex md:ml-auto">
+                <NavLink end to={paths.home} className={({ isActive }) => groupTab(isActive)}>
+                  Drives
+                </NavLink>
+              </li>
+            )}
+            {me.user.isAdmin && (
+              <li className={`flex ${me.memberships.length > 1 ? '' : 'md:ml-auto'}`}>
+                <NavLink
+                  to={paths.admin.users}
+                  className={({ isActive }) => groupTab(isActive || location.pathname.startsWith(paths.admin.home))}
+                >
+                  Administration
+                </NavLink>
+              </li>
+            )}
+          </ul>
+        </nav>
+        {projectId && here && here.items.length > 1 && (
+          <nav aria-label="Pages of this group" className="bg-basalt-100 text-basalt-900">
+            <ul className="mx-auto flex max-w-6xl flex-wrap px-4">
+              {here.items.map((i) => (
+                <li key={i.key} className="flex">
+                  <Link
+                    to={i.to(projectId)}
+                    className={pageTab(isItemCurrent(i, projectId, location.pathname))}
+                    aria-current={isItemCurrent(i, projectId, location.pathname) ? 'page' : undefined}
+                  >
+                    {i.label}
+                  </Link>
+                </li>
+              ))}
+            </ul>
+          </nav>
+        )}
       </header>
       <main>
         <Suspense fallback={<PageLoading />}>

@@ -11,3 +11,16 @@ export const projectQueries = {
   list: () => queryOptions({ queryKey: [...projectQueries.all, 'list'], queryFn: getProjects }),
   detail: (projectId: string) => queryOptions({ queryKey: [...projectQueries.all, projectId], queryFn: () => getProject(projectId) }),
 };
+
+import type { OverviewWire } from '../../../shared/schemas/overview';
+export type { OverviewWire } from '../../../shared/schemas/overview';
+
+export const getOverview = (projectId: string) => apiGet<OverviewWire>(`/api/projects/${projectId}/overview`);
+
+/** Each role's start of the day (the server answers the caller's role's sections only). */
+export const overviewQueries = {
+  all: ['overview'] as const,
+  // Fetched again on every visit: it sums up what other screens change.
+  detail: (projectId: string) =>
+    queryOptions({ queryKey: [...overviewQueries.all, projectId], queryFn: () => getOverview(projectId), staleTime: 0 }),
+};
