@@ -391,14 +391,14 @@ function CsvImport({ projectId }: { projectId: string }) {
 
 const col = createColumnHelper<LayoutPosition>();
 const readOnlyColumns = [
-  col.accessor('number', { header: 'Position' }),
-  col.accessor('trackRadiusMm', { header: 'Radius (mm)' }),
+  col.accessor('number', { meta: { csvDecimals: 0 }, header: 'Position' }),
+  col.accessor('trackRadiusMm', { meta: { csvDecimals: 0 }, header: 'Radius (mm)' }),
   col.accessor((p) => positionClassLabels[p.positionClass], { id: 'class', header: 'Class' }),
-  col.accessor('discSizeIn', { header: 'Disc (in)' }),
-  col.accessor('tiltDeg', { header: 'Tilt (°)', cell: ({ getValue }) => getValue() ?? '—' }),
-  col.accessor('wearLimitMm', { header: 'Limit (mm)' }),
+  col.accessor('discSizeIn', { meta: { csvDecimals: 0 }, header: 'Disc (in)' }),
+  col.accessor('tiltDeg', { meta: { csvDecimals: 1 }, header: 'Tilt (°)', cell: ({ getValue }) => getValue()?.toFixed(1) ?? '—' }),
+  col.accessor('wearLimitMm', { meta: { csvDecimals: 1 }, header: 'Limit (mm)' }),
   col.accessor((p) => (p.twinDisc ? 'yes' : 'no'), { id: 'twin', header: 'Twin discs' }),
-  col.accessor('angleDeg', { header: 'Angle (°)', cell: ({ getValue }) => getValue() ?? 'even' }),
+  col.accessor('angleDeg', { meta: { csvDecimals: 1 }, header: 'Angle (°)', cell: ({ getValue }) => getValue()?.toFixed(1) ?? 'even' }),
 ];
 
 export function LayoutRoute() {
