@@ -63,7 +63,7 @@ export const ADMIN_MAIL_LIMIT = 200;
 /** GET /api/admin/mail?kind=&recipient= : both optional; an empty field is no filter. */
 export const adminMailQuerySchema = z.object({
   kind: z
-    .union([z.literal(''), z.enum(mailKindKeys, { message: `The kind of mail must be one of: ${mailKindKeys.join(', ')}.` })])
+    .enum(['', ...mailKindKeys], { message: `The kind of mail must be one of: ${mailKindKeys.join(', ')}.` })
     .optional()
     .transform((v) => v || undefined),
   recipient: singleLine('The recipient', EMAIL_MAX, 'The recipient must be (part of) an e-mail address on one line.')
