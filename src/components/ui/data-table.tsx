@@ -71,6 +71,8 @@ interface DataTableProps<T> {
   /** The column that stays in view while the table scrolls sideways; by default the first. */
   stickyColumnId?: string;
   filterPlaceholder?: string;
+  /** The search box; off for small tables inside another (a row's detail, a work pack). */
+  filterable?: boolean;
   /**
    * The CSV export: by default the columns as shown; `csv` names its own columns; `exportHref`
    * downloads from the server instead (all matching rows, not just the page shown).
@@ -102,6 +104,7 @@ export function DataTable<T>({
   expandIdPrefix = 'row-detail-',
   stickyColumnId,
   filterPlaceholder = 'Filter…',
+  filterable = true,
   csv,
   exportHref,
   toolbar,
@@ -158,7 +161,7 @@ export function DataTable<T>({
     <div className="space-y-3">
       {toolbar}
       <div className="flex flex-wrap items-end gap-3">
-        {!server && (
+        {!server && filterable && (
           <label className="min-w-48 flex-1">
             <span className="sr-only">Filter</span>
             <input
