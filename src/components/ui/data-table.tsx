@@ -160,7 +160,7 @@ export function DataTable<T>({
   return (
     <div className="space-y-3">
       {toolbar}
-      <div className="flex flex-wrap items-end gap-3">
+      <div className="no-print flex flex-wrap items-end gap-3">
         {!server && filterable && (
           <label className="min-w-48 flex-1">
             <span className="sr-only">Filter</span>
@@ -191,7 +191,7 @@ export function DataTable<T>({
       {/* A size container, so an opened row is as wide as the visible table (100cqw); relative, so screen-reader text scrolls with it. */}
       <div
         data-table-scroll=""
-        className={`@container relative max-h-[75vh] overflow-auto rounded-lg border border-basalt-200 bg-white ${server?.stale ? 'opacity-60' : ''}`}
+        className={`@container relative max-h-[75vh] overflow-auto rounded-lg print:max-h-none print:overflow-visible border border-basalt-200 bg-white ${server?.stale ? 'opacity-60' : ''}`}
       >
         <table className="min-w-full border-separate border-spacing-0 text-left" aria-label={label}>
           <thead className="bg-basalt-100">
