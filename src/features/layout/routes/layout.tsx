@@ -357,29 +357,14 @@ function CsvImport({ projectId }: { projectId: string }) {
         {result && (
           <Alert tone={result.tone} title={result.text}>
             {result.problems.length > 0 && (
-              <div className="mt-2 overflow-x-auto">
-                <table className="min-w-full text-left text-caption">
-                  <thead>
-                    <tr>
-                      <th scope="col" className="pr-4">
-                        Row
-                      </th>
-                      <th scope="col" className="pr-4">
-                        Column
-                      </th>
-                      <th scope="col">Problem</th>
-                    </tr>
-                  </thead>
-                  <tbody>
-                    {result.problems.map((p, i) => (
-                      <tr key={i} className="border-t border-alarm-500/30">
-                        <td className="pr-4 font-semibold">{p.row}</td>
-                        <td className="pr-4">{p.column}</td>
-                        <td>{p.message}</td>
-                      </tr>
-                    ))}
-                  </tbody>
-                </table>
+              <div className="mt-2 text-caption text-basalt-900">
+                <DataTable
+                  data={result.problems}
+                  columns={problemColumns}
+                  label="Problems in the file"
+                  exportName="kerfwise-layout-import-problems"
+                  filterable={result.problems.length > 10}
+                />
               </div>
             )}
           </Alert>
@@ -388,6 +373,17 @@ function CsvImport({ projectId }: { projectId: string }) {
     </Panel>
   );
 }
+
+const problemCol = createColumnHelper<ImportProblem>();
+const problemColumns = [
+  problemCol.accessor('row', {
+    header: 'Row',
+    meta: { csvDecimals: 0 },
+    cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span>,
+  }),
+  problemCol.accessor('column', { header: 'Column' }),
+  problemCol.accessor('message', { header: 'Problem' }),
+];
 
 const col = createColumnHelper<LayoutPosition>();
 const readOnlyColumns = [
