@@ -123,6 +123,7 @@ export function AdminMailRoute() {
           initialSort={[{ id: 'queued', desc: true }]}
           getRowId={(m) => String(m.id)}
           expandIdPrefix="mail-"
+          filterable={false}
           emptyText={kind || recipient.trim() ? 'No mail matches these filters.' : 'No mail queued yet.'}
           toolbar={
             <div className="grid gap-3 md:grid-cols-2">
