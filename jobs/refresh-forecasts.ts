@@ -75,6 +75,7 @@ export async function refreshForecastsJob({ now }: JobContext, options: { projec
         await enqueueMail(tx, {
           kind: 'stop_proposed',
           projectId: drive.id,
+          about: { stopId: stop.id },
           to,
           subject: `${drive.name}: a cutter stop is proposed at ${formatChainage(chainageM)}`,
           text: `The nightly forecast found ${due.length} position(s) reaching their cautious (P90) limit within ${PROPOSAL_HORIZON_M} m of the machine (now at ${formatChainage(currentM)}): ${due.map((p) => p.position.positionNumber).join(', ')}.\n\nA stop is proposed at ${formatChainage(chainageM)}${pressure != null ? ` (water head ${place.waterHeadM} m, indicative ${pressure.toFixed(2)} bar)` : ''}. Review it on the stop plan in Kerfwise, then schedule and publish it.\n`,

@@ -56,6 +56,7 @@ export async function stopRemindersJob({ now }: JobContext): Promise<string> {
       await enqueueMail(tx, {
         kind: 'stop_reminder',
         projectId: project.id,
+        about: { stopId: stop.id },
         to,
         subject: `Reminder (${lead.words}): cutter stop at ${formatChainage(stop.chainageM)}, ${when}`,
         text: `This cutter stop starts in about ${lead.words}.\n\n${workPackText(pack, project, appUrl ? `${appUrl}/projects/${project.id}/stops/${stop.id}` : null)}`,

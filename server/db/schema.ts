@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import {
+  type AnyPgColumn,
   bigserial,
   boolean,
   date,
@@ -184,8 +185,13 @@ export const outbox = pgTable(
      */
     claimedAt: timestamp({ withTimezone: true }),
     lastError: text(),
+    /** The stop a message is about (published, proposed, reminder), for Admin → Mail. */
+    aboutStopId: uuid().references((): AnyPgColumn => stops.id, { onDelete: 'set null' }),
+    /** The person a message is about (invitation, password reset), for Admin → Mail. */
+    aboutUserId: uuid().references(() => users.id, { onDelete: 'set null' }),
   },
   (t) => [
+    index('outbox_created_idx').on(t.createdAt),
     index('outbox_pending_idx')
       .on(t.nextAttemptAt)
       .where(sql`sent_at is null`),

@@ -12,6 +12,8 @@ export interface OutgoingMail {
   html?: string;
   kind: string;
   projectId?: string | null;
+  /** The stop or the person the message is about (Admin → Mail shows it). */
+  about?: { stopId: string } | { userId: string };
 }
 
 /**
@@ -27,6 +29,8 @@ export async function enqueueMail(tx: DbOrTx, mail: OutgoingMail): Promise<void>
     subject: mail.subject,
     textBody: mail.text,
     htmlBody: mail.html ?? null,
+    aboutStopId: mail.about && 'stopId' in mail.about ? mail.about.stopId : null,
+    aboutUserId: mail.about && 'userId' in mail.about ? mail.about.userId : null,
   });
 }
 

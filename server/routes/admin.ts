@@ -4,8 +4,9 @@ import { z } from 'zod';
 import { projectInputSchema, projectPatchSchema } from '../../shared/schemas/project';
 import { inviteUserInputSchema, membershipInputSchema, updateUserInputSchema } from '../../shared/schemas/user';
 import { roleLabels } from '../../shared/roles';
+import { ADMIN_MAIL_LIMIT, adminMailQuerySchema, type AdminMail } from '../../shared/schemas/admin';
 import { db } from '../db/client';
-import { caughtMail, jobRuns, memberships, outbox, projects, users } from '../db/schema';
+import { jobRuns, memberships, outbox, projects, stops, users } from '../db/schema';
 import { ensureDefaultCauses } from '../services/downtime';
 import { runJob, type JobDefinition } from '../services/job-runner';
 import { requireAdmin, requireUser } from '../middleware/auth';
@@ -58,6 +59,7 @@ adminRouter.post('/users', async (req, res) => {
     const token = await issueToken(tx, user.id, 'invitation');
     await enqueueMail(tx, {
       kind: 'invitation',
+      about: { userId: user.id },
       to: [user.email],
       subject: 'You are invited to Kerfwise',
       text: `Hello ${user.name},\n\n${me.name} has invited you to Kerfwise, where the cutter crews, planner, buyer and site manager of a TBM drive keep track of disc cutters and stops.\n\nChoose your password here (the link works once, for 7 days):\n\n${appUrl()}/set-password?token=${token}\n`,
@@ -191,9 +193,65 @@ adminRouter.delete('/projects/:projectId/members/:userId', async (req, res) => {
   res.status(204).end();
 });
 
-/** Mail caught by the local fake SMTP server, newest first, with the outbox's state beside it. */
-adminRouter.get('/mail', async (_req, res) => {
-  const caught = await db.select().from(caughtMail).orderBy(desc(caughtMail.id)).limit(200);
+/**
+ * The outbox, newest first: every message Kerfwise queued (whether the SMTP server is real or the
+ * local catcher), filtered by kind and by (part of) a recipient's address, with the drive and the
+ * stop or person each was about; the outbox's state and deliveries left uncertain beside it.
+ */
+adminRouter.get('/mail', async (req, res) => {
+  const query = adminMailQuerySchema.parse(req.query);
+  const where = and(
+    query.kind ? eq(outbox.kind, query.kind) : undefined,
+    // Part of an address, case-insensitive; LIKE's wildcards in the text match themselves.
+    query.recipient
+      ? sql`exists (select 1 from unnest(${outbox.toAddresses}) as a(address) where a.address ilike ${`%${escapeLike(query.recipient)}%`} escape '\\')`
+      : undefined,
+  );
+  const uncertainSql = sql`${outbox.sentAt} is null and ${outbox.claimedAt} < now() - make_interval(mins => ${UNCERTAIN_AFTER_MINUTES})`;
+  const rows = await db
+    .select({
+      mail: outbox,
+      uncertain: sql<boolean>`coalesce(${uncertainSql}, false)`,
+      projectName: projects.name,
+      siteTimeZone: projects.siteTimeZone,
+      stopChainageM: stops.chainageM,
+      stopStatus: stops.status,
+      userName: users.name,
+      userEmail: users.email,
+    })
+    .from(outbox)
+    .leftJoin(projects, eq(projects.id, outbox.projectId))
+    .leftJoin(stops, eq(stops.id, outbox.aboutStopId))
+    .leftJoin(users, eq(users.id, outbox.aboutUserId))
+    .where(where)
+    .orderBy(desc(outbox.createdAt), desc(outbox.id))
+    .limit(ADMIN_MAIL_LIMIT);
+  const [{ matching }] = await db
+    .select({ matching: sql<number>`count(*)::int` })
+    .from(outbox)
+    .where(where);
+  const messages: AdminMail[] = rows.map((r) => ({
+    id: r.mail.id,
+    createdAt: r.mail.createdAt.toISOString(),
+    sentAt: r.mail.sentAt?.toISOString() ?? null,
+    kind: r.mail.kind,
+    toAddresses: r.mail.toAddresses,
+    subject: r.mail.subject,
+    textBody: r.mail.textBody,
+    state: r.mail.sentAt ? 'sent' : r.uncertain ? 'uncertain' : r.mail.attempts > 0 ? 'retrying' : 'waiting',
+    attempts: r.mail.attempts,
+    lastError: r.mail.lastError,
+    project:
+      r.mail.projectId && r.projectName != null && r.siteTimeZone != null
+        ? { id: r.mail.projectId, name: r.projectName, siteTimeZone: r.siteTimeZone }
+        : null,
+    about:
+      r.mail.aboutStopId && r.stopChainageM != null && r.stopStatus != null
+        ? { type: 'stop', stopId: r.mail.aboutStopId, chainageM: r.stopChainageM, status: r.stopStatus }
+        : r.mail.aboutUserId && r.userName != null && r.userEmail != null
+          ? { type: 'user', userId: r.mail.aboutUserId, name: r.userName, email: r.userEmail }
+          : null,
+  }));
   const [queue] = await db
     .select({
       waiting: sql<number>`count(*) filter (where ${outbox.sentAt} is null and ${outbox.claimedAt} is null)::int`,
@@ -204,10 +262,13 @@ adminRouter.get('/mail', async (_req, res) => {
   const uncertain = await db
     .select({ id: outbox.id, subject: outbox.subject, toAddresses: outbox.toAddresses, claimedAt: outbox.claimedAt })
     .from(outbox)
-    .where(sql`${outbox.sentAt} is null and ${outbox.claimedAt} < now() - make_interval(mins => ${UNCERTAIN_AFTER_MINUTES})`)
+    .where(uncertainSql)
     .orderBy(asc(outbox.id));
-  res.json({ caught, outbox: queue, uncertain });
+  res.json({ messages, matching, outbox: queue, uncertain });
 });
+
+/** Text matched literally by LIKE/ILIKE with `escape '\\'`. */
+const escapeLike = (text: string) => text.replace(/[\\%_]/g, (c) => `\\${c}`);
 
 /** Sends a message of uncertain delivery again, on the administrator's decision. */
 adminRouter.post('/outbox/:outboxId/release', async (req, res) => {

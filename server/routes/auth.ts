@@ -116,6 +116,7 @@ async function sendResetLink(email: string) {
     const token = await issueToken(tx, user.id, 'password_reset');
     await enqueueMail(tx, {
       kind: 'password_reset',
+      about: { userId: user.id },
       to: [user.email],
       subject: 'Kerfwise: set a new password',
       text: `Hello ${user.name},\n\nSomeone (we hope you) asked to reset your Kerfwise password. Open this link within an hour to choose a new one:\n\n${appUrl()}/set-password?token=${token}\n\nThe link works once, and only the newest link you asked for works. If you did not ask for this, ignore this message; your password stays as it is.\n`,

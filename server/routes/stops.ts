@@ -80,7 +80,8 @@ async function lockStop(tx: DbOrTx, projectId: string, stopId: string, action: S
 async function mailCrew(tx: DbOrTx, project: Project, pack: WorkPack, subject: string, text: string): Promise<string[]> {
   const to = (await recipientsFor(tx, project.id, 'stop_published', { crewId: pack.crew?.id })).map((r) => r.email);
   // One message per member: crew members do not see each other's addresses.
-  for (const address of to) await enqueueMail(tx, { kind: 'stop_published', projectId: project.id, to: [address], subject, text });
+  for (const address of to)
+    await enqueueMail(tx, { kind: 'stop_published', projectId: project.id, about: { stopId: pack.stop.id }, to: [address], subject, text });
   return to;
 }
 

@@ -56,7 +56,7 @@ it('the buyer sees an order suggestion caused by a scheduled stop and exports it
   expect(header).toContain('Order now');
   expect(header).toContain('Demand from');
   const ring = lines.find((l) => l.startsWith('RING17,'));
-  expect(ring).toContain('Order now,10,3800');
+  expect(ring).toContain('Order now,10,3800.00'); // the order value as the screen shows it: two decimals
   expect(ring).toMatch(/Stop at 0\+612\.3 \(ring 408\), scheduled on \d{4}-\d{2}-\d{2}: 2/);
   await page.close();
 }, 120_000);

@@ -4,6 +4,8 @@ import {
   getFilteredRowModel,
   getSortedRowModel,
   useReactTable,
+  type CellContext,
+  type Column,
   type ColumnDef,
   type OnChangeFn,
   type PaginationState,
@@ -13,7 +15,8 @@ import {
 } from '@tanstack/react-table';
 import { Fragment, useState, type ReactNode } from 'react';
 import type { CsvColumn } from '../../../shared/csv-writer';
-import { downloadCsv, toCsv } from '../../lib/csv';
+import { downloadCsv, tableCsv } from '../../lib/csv';
+import { Alert } from './alert';
 import { Button } from './button';
 import { SelectField } from './field';
 
@@ -22,8 +25,13 @@ type CsvValue = string | number | null | undefined;
 declare module '@tanstack/react-table' {
   // eslint-disable-next-line @typescript-eslint/no-unused-vars
   interface ColumnMeta<TData extends RowData, TValue> {
-    /** Decimals of this column's numbers in the CSV export, as the cell shows them. */
+    /**
+     * Decimals of this column's numbers, as the cell shows them: the CSV export writes them so, and
+     * a column without its own `cell` shows them so. Export refuses a numeric column without it.
+     */
     csvDecimals?: number;
+    /** The CSV header when `header` is not plain text. */
+    csvHeader?: string;
   }
 }
 
@@ -60,9 +68,11 @@ interface DataTableProps<T> {
   renderExpanded?: (row: Row<T>) => ReactNode;
   /** The id of an opened row's detail is this prefix + the row id (for a toggle's aria-controls). */
   expandIdPrefix?: string;
-  /** The column that stays in view while the table scrolls sideways. */
+  /** The column that stays in view while the table scrolls sideways; by default the first. */
   stickyColumnId?: string;
   filterPlaceholder?: string;
+  /** The search box; off for small tables inside another (a row's detail, a work pack). */
+  filterable?: boolean;
   /**
    * The CSV export: by default the columns as shown; `csv` names its own columns; `exportHref`
    * downloads from the server instead (all matching rows, not just the page shown).
@@ -94,6 +104,7 @@ export function DataTable<T>({
   expandIdPrefix = 'row-detail-',
   stickyColumnId,
   filterPlaceholder = 'Filter…',
+  filterable = true,
   csv,
   exportHref,
   toolbar,
@@ -101,9 +112,11 @@ export function DataTable<T>({
 }: DataTableProps<T>) {
   const [localSorting, setLocalSorting] = useState<SortingState>(initialSort);
   const [filter, setFilter] = useState('');
+  const [csvRefusal, setCsvRefusal] = useState<string | null>(null);
   const table = useReactTable({
     data,
     columns,
+    defaultColumn: { cell: defaultCell },
     getRowId,
     getCoreRowModel: getCoreRowModel(),
     getRowCanExpand: () => renderExpanded != null,
@@ -130,36 +143,25 @@ export function DataTable<T>({
   const rows = table.getRowModel().rows;
 
   const exportCsv = () => {
-    if (csv) {
-      downloadCsv(
-        `${exportName}.csv`,
-        toCsv(
+    const result = csv
+      ? tableCsv(
           csv.header,
           rows.map((r) => csv.row(r.original)),
-        ),
-      );
-      return;
-    }
-    const exported = leafColumns;
-    const header = exported.map((c) => ({
-      header: typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id,
-      decimals: c.columnDef.meta?.csvDecimals,
-    }));
-    const values = rows.map((r) =>
-      exported.map((c) => {
-        const v = r.getValue(c.id);
-        return typeof v === 'number' || typeof v === 'string' ? v : v == null ? '' : String(v);
-      }),
-    );
-    downloadCsv(`${exportName}.csv`, toCsv(header, values));
+        )
+      : tableCsv(...columnsCsv(leafColumns, rows));
+    setCsvRefusal(result.ok ? null : result.message);
+    if (result.ok) downloadCsv(`${exportName}.csv`, result.text);
   };
-  const sticky = (columnId: string, background: string) => (columnId === stickyColumnId ? `sticky left-0 z-10 ${background}` : '');
+  const firstColumnId = stickyColumnId ?? leafColumns[0]?.id;
+  // The header row stays on top while the panel scrolls down; the first column stays left while it scrolls sideways.
+  const stickyHead = (columnId: string) => `sticky top-0 bg-basalt-100 ${columnId === firstColumnId ? 'left-0 z-30' : 'z-20'}`;
+  const stickyCell = (columnId: string) => (columnId === firstColumnId ? 'sticky left-0 z-10 bg-white' : '');
 
   return (
     <div className="space-y-3">
       {toolbar}
-      <div className="flex flex-wrap items-end gap-3">
-        {!server && (
+      <div className="no-print flex flex-wrap items-end gap-3">
+        {!server && filterable && (
           <label className="min-w-48 flex-1">
             <span className="sr-only">Filter</span>
             <input
@@ -185,11 +187,13 @@ export function DataTable<T>({
           </Button>
         )}
       </div>
+      {csvRefusal && <Alert tone="error">{csvRefusal}</Alert>}
       {/* A size container, so an opened row is as wide as the visible table (100cqw); relative, so screen-reader text scrolls with it. */}
       <div
-        className={`@container relative overflow-x-auto rounded-lg border border-basalt-200 bg-white ${server?.stale ? 'opacity-60' : ''}`}
+        data-table-scroll=""
+        className={`@container relative max-h-[75vh] overflow-auto rounded-lg print:max-h-none print:overflow-visible border border-basalt-200 bg-white ${server?.stale ? 'opacity-60' : ''}`}
       >
-        <table className="min-w-full text-left" aria-label={label}>
+        <table className="min-w-full border-separate border-spacing-0 text-left" aria-label={label}>
           <thead className="bg-basalt-100">
             {table.getHeaderGroups().map((hg) => (
               <tr key={hg.id}>
@@ -200,19 +204,19 @@ export function DataTable<T>({
                       key={h.id}
                       scope="col"
                       aria-sort={ariaSort(sorted)}
-                      className={`p-0 align-bottom ${sticky(h.column.id, 'bg-basalt-100')}`}
+                      className={`border-b border-basalt-200 p-0 align-bottom ${stickyHead(h.column.id)}`}
                     >
                       {h.isPlaceholder ? null : h.column.getCanSort() ? (
                         <button
                           type="button"
                           onClick={h.column.getToggleSortingHandler()}
-                          className="flex min-h-touch w-full items-center gap-1 px-3 text-left font-semibold"
+                          className="flex min-h-touch w-full items-center gap-1 px-2 text-left font-semibold"
                         >
                           {flexRender(h.column.columnDef.header, h.getContext())}
                           <span aria-hidden="true">{sortIcon(sorted)}</span>
                         </button>
                       ) : (
-                        <span className="block px-3 py-2 font-semibold">{flexRender(h.column.columnDef.header, h.getContext())}</span>
+                        <span className="block px-2 py-2 font-semibold">{flexRender(h.column.columnDef.header, h.getContext())}</span>
                       )}
                     </th>
                   );
@@ -223,16 +227,19 @@ export function DataTable<T>({
           <tbody>
             {rows.length === 0 && (
               <tr>
-                <td colSpan={leafColumns.length} className="px-3 py-4 text-basalt-600">
+                <td colSpan={leafColumns.length} className="px-2 py-4 text-basalt-600">
                   {data.length === 0 || server ? emptyText : 'Nothing matches the filter.'}
                 </td>
               </tr>
             )}
             {rows.map((row) => (
               <Fragment key={row.id}>
-                <tr className="border-t border-basalt-100">
+                <tr>
                   {row.getVisibleCells().map((cell) => (
-                    <td key={cell.id} className={`px-3 py-2 align-middle tabular-nums ${sticky(cell.column.id, 'bg-white')}`}>
+                    <td
+                      key={cell.id}
+                      className={`border-b border-basalt-100 px-2 py-2 align-middle tabular-nums ${stickyCell(cell.column.id)}`}
+                    >
                       {flexRender(cell.column.columnDef.cell, cell.getContext())}
                     </td>
                   ))}
@@ -252,6 +259,33 @@ export function DataTable<T>({
       {server && <Pager table={table} paging={server} label={label} />}
     </div>
   );
+}
+
+/** A cell without its own renderer: a number with its column's decimals (as the CSV writes it), else the value as text. */
+function defaultCell<T>({ getValue, column }: CellContext<T, unknown>): ReactNode {
+  const value = getValue();
+  const decimals = column.columnDef.meta?.csvDecimals;
+  if (typeof value === 'number' && decimals != null) return Number.isFinite(value) ? value.toFixed(decimals) : '—';
+  return value == null ? null : String(value);
+}
+
+/**
+ * The default CSV: the columns with values (buttons and other display-only columns are left out),
+ * headed as on screen, each with its decimals from `meta.csvDecimals`.
+ */
+export function columnsCsv<T>(leafColumns: Column<T, unknown>[], rows: Row<T>[]): [CsvColumn[], CsvValue[][]] {
+  const exported = leafColumns.filter((c) => c.accessorFn != null);
+  const header = exported.map((c) => ({
+    header: c.columnDef.meta?.csvHeader ?? (typeof c.columnDef.header === 'string' ? c.columnDef.header : c.id),
+    decimals: c.columnDef.meta?.csvDecimals,
+  }));
+  const values = rows.map((r) =>
+    exported.map((c) => {
+      const v = r.getValue(c.id);
+      return typeof v === 'number' || typeof v === 'string' ? v : v == null ? '' : String(v);
+    }),
+  );
+  return [header, values];
 }
 
 function Pager<T>({ table, paging, label }: { table: ReturnType<typeof useReactTable<T>>; paging: ServerPaging; label?: string }) {

@@ -3,8 +3,26 @@ import type { ProjectRole } from '../../../shared/roles';
 import type { ProjectInput } from '../../../shared/schemas/project';
 import type { InviteUserInput, UpdateUserInput } from '../../../shared/schemas/user';
 import { api, apiGet } from '../../lib/api-client';
-import type { AdminMailView, AdminMember, AdminProject, AdminUser, JobInfo, JobRunRow } from '../../../shared/schemas/admin';
-export type { AdminMailView, AdminMember, AdminUser, AdminProject, CaughtMail, JobRunRow, JobInfo } from '../../../shared/schemas/admin';
+import type {
+  AdminMailQuery,
+  AdminMailView,
+  AdminMember,
+  AdminProject,
+  AdminUser,
+  JobInfo,
+  JobRunRow,
+} from '../../../shared/schemas/admin';
+export type {
+  AdminMail,
+  AdminMailQuery,
+  AdminMailView,
+  AdminMember,
+  AdminUser,
+  AdminProject,
+  JobRunRow,
+  JobInfo,
+  MailAbout,
+} from '../../../shared/schemas/admin';
 
 /**
  * The zone Admin → Mail and Admin → Jobs show times in: mail and job runs belong to the
@@ -41,10 +59,17 @@ export const adminQueries = {
       queryFn: () => apiGet<BackupStatus>('/api/admin/backups/status'),
       refetchInterval: 60_000,
     }),
-  mail: () =>
+  /** The outbox, newest first, filtered by kind and (part of) a recipient's address. */
+  mail: (filters: AdminMailQuery = {}) =>
     queryOptions({
-      queryKey: [...adminQueries.all, 'mail'],
-      queryFn: () => apiGet<AdminMailView>('/api/admin/mail'),
+      queryKey: [...adminQueries.all, 'mail', filters],
+      queryFn: () => {
+        const params = new URLSearchParams();
+        if (filters.kind) params.set('kind', filters.kind);
+        if (filters.recipient?.trim()) params.set('recipient', filters.recipient.trim());
+        const search = params.toString();
+        return apiGet<AdminMailView>(`/api/admin/mail${search ? `?${search}` : ''}`);
+      },
       refetchInterval: 5000,
     }),
 };

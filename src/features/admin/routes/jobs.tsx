@@ -4,7 +4,9 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { Page, Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { adminQueries, installationTimeZone, useRunJobNow } from '../api';
+import { createColumnHelper } from '@tanstack/react-table';
+import { DataTable } from '../../../components/ui/data-table';
+import { adminQueries, installationTimeZone, useRunJobNow, type JobRunRow } from '../api';
 import { AdminTabs } from '../components/admin-tabs';
 import { BackupStatusLine } from '../components/backup-status';
 import { formatSiteDateTime } from '../../../../shared/site-time';
@@ -15,6 +17,30 @@ const outcomeText: Record<string, string> = {
   skipped: 'Skipped (another server ran it)',
   running: 'Running…',
 };
+
+const col = createColumnHelper<JobRunRow>();
+/** A job's runs; times in the installation's site zone, the zone named (decision 30). */
+const runColumns = (timeZone: string) => [
+  col.accessor((r) => formatSiteDateTime(r.startedAt, timeZone, { withZone: true }), {
+    id: 'started',
+    header: 'Started (site time)',
+    sortingFn: (a, b) => a.original.startedAt.localeCompare(b.original.startedAt),
+    cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+  }),
+  col.accessor('trigger', { header: 'How' }),
+  col.accessor((r) => outcomeText[r.outcome] ?? r.outcome, {
+    id: 'outcome',
+    header: 'Outcome',
+    cell: ({ row, getValue }) => (
+      <span className={`font-semibold ${row.original.outcome === 'failed' ? 'text-alarm-700' : ''}`}>{getValue()}</span>
+    ),
+  }),
+  col.accessor((r) => r.error ?? r.summary ?? '', {
+    id: 'summary',
+    header: 'Summary or error',
+    cell: ({ getValue }) => <span className="block min-w-64">{getValue()}</span>,
+  }),
+];
 
 /** Scheduled jobs: their last runs, and "run now". */
 export function AdminJobsRoute() {
@@ -61,28 +87,14 @@ export function AdminJobsRoute() {
           {job.runs.length === 0 ? (
             <p className="text-basalt-600">No runs yet.</p>
           ) : (
-            <table className="w-full text-left text-caption">
-              <thead>
-                <tr>
-                  <th className="py-1 pr-3">Started</th>
-                  <th className="pr-3">How</th>
-                  <th className="pr-3">Outcome</th>
-                  <th>Summary or error</th>
-                </tr>
-              </thead>
-              <tbody>
-                {job.runs.map((r) => (
-                  <tr key={r.id} className="border-t border-basalt-100">
-                    <td className="py-1 pr-3 whitespace-nowrap">{formatSiteDateTime(r.startedAt, timeZone, { withZone: true })}</td>
-                    <td className="pr-3">{r.trigger}</td>
-                    <td className={`pr-3 font-semibold ${r.outcome === 'failed' ? 'text-alarm-700' : ''}`}>
-                      {outcomeText[r.outcome] ?? r.outcome}
-                    </td>
-                    <td>{r.error ?? r.summary ?? ''}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+            <DataTable
+              data={job.runs}
+              columns={runColumns(timeZone)}
+              label={`Last runs of ${job.label}`}
+              exportName={`kerfwise-job-${job.name}`}
+              getRowId={(r) => String(r.id)}
+              initialSort={[{ id: 'started', desc: true }]}
+            />
           )}
         </Panel>
       ))}

@@ -121,12 +121,12 @@ export function AdminProjectsRoute() {
   });
   const columns = [
     col.accessor('name', { header: 'Drive' }),
-    col.accessor('excavatedDiameterM', { header: 'Diameter (m)' }),
+    col.accessor('excavatedDiameterM', { meta: { csvDecimals: 2 }, header: 'Diameter (m)' }),
     col.accessor('siteTimeZone', { header: 'Time zone' }),
-    col.accessor('memberCount', { header: 'Members' }),
+    col.accessor('memberCount', { meta: { csvDecimals: 0 }, header: 'Members' }),
     col.display({
       id: 'members',
-      header: 'Members',
+      header: 'Actions',
       cell: ({ row }) => (
         <Button variant="secondary" onClick={() => setSelected(row.original.id)}>
           Manage members

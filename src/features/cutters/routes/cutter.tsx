@@ -157,6 +157,7 @@ export function CutterRoute() {
       cell: ({ getValue }) => <span className="block min-w-56">{getValue()}</span>,
     }),
     eCol.accessor('positionNumber', {
+      meta: { csvDecimals: 0 },
       header: 'Position',
       cell: ({ row }) =>
         row.original.positionId ? (
@@ -171,6 +172,7 @@ export function CutterRoute() {
   const pCol = createColumnHelper<Period>();
   const periodColumns = [
     pCol.accessor('positionNumber', {
+      meta: { csvDecimals: 0 },
       header: 'Position',
       cell: ({ row }) => (
         <Link className={linkClass} to={paths.position(projectId, row.original.positionId)}>
@@ -184,6 +186,7 @@ export function CutterRoute() {
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
     pCol.accessor('fittedChainageM', {
+      meta: { csvDecimals: 1 },
       header: 'At chainage',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
     }),
@@ -193,11 +196,13 @@ export function CutterRoute() {
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
     pCol.accessor('removedChainageM', {
+      meta: { csvDecimals: 1 },
       header: 'At chainage',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
     }),
     pCol.accessor((p) => (p.removedChainageM == null ? null : Math.abs(p.removedChainageM - p.fittedChainageM)), {
       id: 'advance',
+      meta: { csvDecimals: 1 },
       header: 'Advance (m)',
       cell: ({ getValue }) => getValue()?.toFixed(1) ?? '—',
     }),

@@ -106,9 +106,9 @@ export function CuttersRoute() {
       ),
     }),
     col.accessor((c) => cutterStatusLabels[c.status], { id: 'status', header: 'State' }),
-    col.accessor('discSizeIn', { header: 'Disc (in)' }),
-    col.accessor('rebuildCount', { header: 'Rebuilds' }),
-    col.accessor('positionNumber', { header: 'Position', cell: ({ getValue }) => getValue() ?? '—' }),
+    col.accessor('discSizeIn', { meta: { csvDecimals: 0 }, header: 'Disc (in)' }),
+    col.accessor('rebuildCount', { meta: { csvDecimals: 0 }, header: 'Rebuilds' }),
+    col.accessor('positionNumber', { meta: { csvDecimals: 0 }, header: 'Position', cell: ({ getValue }) => getValue() ?? '—' }),
     col.accessor((c) => (c.fittedAt ? formatSiteDate(c.fittedAt, project.siteTimeZone) : ''), {
       id: 'fittedAt',
       header: 'Fitted since',

@@ -18,14 +18,44 @@ const round = (v: number | null, digits: number) => (v == null ? null : Math.rou
 /** `unit` is ' (EUR)' or '' when the catalogue names no currency. */
 const costColumns = (keyHeader: string, unit: string) => [
   col.accessor('key', { header: keyHeader }),
-  col.accessor((r) => round(r.advanceM, 1), { id: 'advanceM', header: 'Advance (m)' }),
-  col.accessor((r) => round(r.excavatedM3, 0), { id: 'excavatedM3', header: 'Excavated (m³)' }),
-  col.accessor((r) => round(r.partsCost, 2), { id: 'partsCost', header: `Parts${unit}`, cell: ({ getValue }) => money(getValue()) }),
-  col.accessor((r) => round(r.labourCost, 2), { id: 'labourCost', header: `Labour${unit}`, cell: ({ getValue }) => money(getValue()) }),
-  col.accessor((r) => round(r.totalCost, 2), { id: 'totalCost', header: `Total${unit}`, cell: ({ getValue }) => money(getValue()) }),
-  col.accessor((r) => round(r.costPerM, 2), { id: 'costPerM', header: `Cost per m${unit}`, cell: ({ getValue }) => money(getValue()) }),
-  col.accessor((r) => round(r.costPerM3, 2), { id: 'costPerM3', header: `Cost per m³${unit}`, cell: ({ getValue }) => money(getValue()) }),
-  col.accessor((r) => round(r.ringsPer1000M3, 2), { id: 'rings', header: 'Rings per 1,000 m³', cell: ({ getValue }) => getValue() ?? '—' }),
+  col.accessor((r) => round(r.advanceM, 1), { id: 'advanceM', meta: { csvDecimals: 1 }, header: 'Advance (m)' }),
+  col.accessor((r) => round(r.excavatedM3, 0), { id: 'excavatedM3', meta: { csvDecimals: 0 }, header: 'Excavated (m³)' }),
+  col.accessor((r) => round(r.partsCost, 2), {
+    id: 'partsCost',
+    meta: { csvDecimals: 2 },
+    header: `Parts${unit}`,
+    cell: ({ getValue }) => money(getValue()),
+  }),
+  col.accessor((r) => round(r.labourCost, 2), {
+    id: 'labourCost',
+    meta: { csvDecimals: 2 },
+    header: `Labour${unit}`,
+    cell: ({ getValue }) => money(getValue()),
+  }),
+  col.accessor((r) => round(r.totalCost, 2), {
+    id: 'totalCost',
+    meta: { csvDecimals: 2 },
+    header: `Total${unit}`,
+    cell: ({ getValue }) => money(getValue()),
+  }),
+  col.accessor((r) => round(r.costPerM, 2), {
+    id: 'costPerM',
+    meta: { csvDecimals: 2 },
+    header: `Cost per m${unit}`,
+    cell: ({ getValue }) => money(getValue()),
+  }),
+  col.accessor((r) => round(r.costPerM3, 2), {
+    id: 'costPerM3',
+    meta: { csvDecimals: 2 },
+    header: `Cost per m³${unit}`,
+    cell: ({ getValue }) => money(getValue()),
+  }),
+  col.accessor((r) => round(r.ringsPer1000M3, 2), {
+    id: 'rings',
+    meta: { csvDecimals: 2 },
+    header: 'Rings per 1,000 m³',
+    cell: ({ getValue }) => getValue()?.toFixed(2) ?? '—',
+  }),
 ];
 
 /** Cutter cost (parts and labour) per metre and per m³ excavated, by week and by ground type. */

@@ -145,7 +145,7 @@ export function DowntimeEventsRoute() {
       header: 'End',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
-    col.accessor((e) => Math.round(e.hours * 100) / 100, { id: 'hours', header: 'Hours' }),
+    col.accessor((e) => Math.round(e.hours * 100) / 100, { id: 'hours', meta: { csvDecimals: 2 }, header: 'Hours' }),
     col.accessor((e) => e.causeName ?? NO_CAUSE_LABEL, {
       id: 'cause',
       header: 'Cause',

@@ -18,9 +18,13 @@ const col = createColumnHelper<DowntimeReport['pareto'][number]>();
 const paretoColumns = [
   col.accessor('cause', { header: 'Cause' }),
   col.accessor((r) => (r.cutterWork ? 'yes' : 'no'), { id: 'cutterWork', header: 'Cutter work' }),
-  col.accessor('hours', { header: 'Hours', cell: ({ getValue }) => getValue().toFixed(1) }),
-  col.accessor((r) => Math.round(r.share * 1000) / 10, { id: 'share', header: 'Share (%)' }),
-  col.accessor((r) => Math.round(r.cumulativeShare * 1000) / 10, { id: 'cumulative', header: 'Running share (%)' }),
+  col.accessor('hours', { meta: { csvDecimals: 1 }, header: 'Hours', cell: ({ getValue }) => getValue().toFixed(1) }),
+  col.accessor((r) => Math.round(r.share * 1000) / 10, { id: 'share', meta: { csvDecimals: 1 }, header: 'Share (%)' }),
+  col.accessor((r) => Math.round(r.cumulativeShare * 1000) / 10, {
+    id: 'cumulative',
+    meta: { csvDecimals: 1 },
+    header: 'Running share (%)',
+  }),
 ];
 
 /** Downtime by cause × week and × shift, utilisation, cutter-work share, metres per day and the Pareto of causes. */

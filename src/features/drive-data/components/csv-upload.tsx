@@ -1,6 +1,8 @@
 import { useState, type ChangeEvent, type ReactNode } from 'react';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
+import { DataTable } from '../../../components/ui/data-table';
+import { createColumnHelper } from '@tanstack/react-table';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { uploadCsv, type ImportIssue, type UploadAnswer } from '../api';
@@ -19,34 +21,24 @@ type Stage =
 const fileSize = (bytes: number) => (bytes < 1024 * 1024 ? `${(bytes / 1024).toFixed(1)} kB` : `${(bytes / 1024 / 1024).toFixed(1)} MB`);
 const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString('en-GB')} ${n === 1 ? one : many}`;
 
+const issueCol = createColumnHelper<ImportIssue>();
+const issueColumns = [
+  issueCol.accessor((issue) => (issue.row === 0 ? 'Whole file' : (issue.row ?? '—')), {
+    id: 'row',
+    header: 'Row',
+    meta: { csvDecimals: 0 },
+    sortingFn: (a, b) => (a.original.row ?? -1) - (b.original.row ?? -1),
+    cell: ({ getValue }) => <span className="whitespace-nowrap font-semibold">{getValue()}</span>,
+  }),
+  issueCol.accessor((issue) => issue.column || '—', { id: 'column', header: 'Column' }),
+  issueCol.accessor('message', { header: 'Problem' }),
+];
+
 /** Problems (or warnings) of a file by row and column, in a table that scrolls when long. */
 function IssueTable({ issues, label }: { issues: ImportIssue[]; label: string }) {
   return (
-    <div className="mt-2 max-h-96 overflow-auto rounded-md border border-basalt-200 bg-white text-basalt-900">
-      <table className="min-w-full text-left text-caption" aria-label={label}>
-        <thead className="sticky top-0 bg-basalt-100">
-          <tr>
-            <th scope="col" className="px-3 py-2">
-              Row
-            </th>
-            <th scope="col" className="px-3 py-2">
-              Column
-            </th>
-            <th scope="col" className="px-3 py-2">
-              Problem
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {issues.map((issue, i) => (
-            <tr key={i} className="border-t border-basalt-100 align-top">
-              <td className="whitespace-nowrap px-3 py-2 font-semibold">{issue.row === 0 ? 'Whole file' : (issue.row ?? '—')}</td>
-              <td className="px-3 py-2">{issue.column || '—'}</td>
-              <td className="px-3 py-2">{issue.message}</td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
+    <div className="mt-2 text-caption text-basalt-900">
+      <DataTable data={issues} columns={issueColumns} label={label} exportName="kerfwise-import-problems" filterable={issues.length > 10} />
     </div>
   );
 }

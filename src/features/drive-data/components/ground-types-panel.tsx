@@ -17,7 +17,8 @@ type GroundForm = z.input<typeof groundTypeInputSchema>;
 
 /** Blank number inputs are "not given" (null); a decimal comma is read as a point. */
 const optionalNumber = { setValueAs: (v: unknown) => (v === '' || v == null ? null : Number(String(v).replace(',', '.'))) };
-const orDash = (v: number | null) => (v == null ? '—' : String(v));
+/** A number with the decimals its column exports (meta.csvDecimals), or a dash. */
+const orDash = (v: number | null, decimals: number) => (v == null ? '—' : v.toFixed(decimals));
 const classText = (g: GroundType) =>
   g.caiClass ? `${g.caiClass.label}${g.caiClass.outsideTabulatedRange ? ' (outside the tabulated range)' : ''}` : '—';
 
@@ -135,10 +136,10 @@ export function GroundTypesPanel({ projectId, groundTypes, canEdit }: { projectI
   const columns = [
     col.accessor('name', { header: 'Name', cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span> }),
     col.accessor('description', { header: 'Description' }),
-    col.accessor('ucsMpa', { header: 'UCS (MPa)', cell: ({ getValue }) => orDash(getValue()) }),
-    col.accessor('cai', { header: 'CAI', cell: ({ getValue }) => orDash(getValue()) }),
+    col.accessor('ucsMpa', { header: 'UCS (MPa)', meta: { csvDecimals: 0 }, cell: ({ getValue }) => orDash(getValue(), 0) }),
+    col.accessor('cai', { header: 'CAI', meta: { csvDecimals: 1 }, cell: ({ getValue }) => orDash(getValue(), 1) }),
     col.accessor(classText, { id: 'caiClass', header: 'CERCHAR class' }),
-    col.accessor('quartzPct', { header: 'Quartz (%)', cell: ({ getValue }) => orDash(getValue()) }),
+    col.accessor('quartzPct', { header: 'Quartz (%)', meta: { csvDecimals: 0 }, cell: ({ getValue }) => orDash(getValue(), 0) }),
     col.accessor('notes', { header: 'Notes' }),
     ...(canEdit
       ? [

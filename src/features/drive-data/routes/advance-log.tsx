@@ -29,7 +29,7 @@ const col = createColumnHelper<Stroke>();
 function strokeColumns(timeZone: string) {
   // Column ids are the server's sort keys; the columns without one do not sort.
   return [
-    col.accessor('ringNumber', { header: 'Ring' }),
+    col.accessor('ringNumber', { meta: { csvDecimals: 0 }, header: 'Ring' }),
     col.accessor('startTime', {
       header: 'Start – end (site time)',
       cell: ({ row }) => (
@@ -39,6 +39,7 @@ function strokeColumns(timeZone: string) {
       ),
     }),
     col.accessor('chainageStartM', {
+      meta: { csvDecimals: 1 },
       header: 'Chainage start → end',
       cell: ({ row }) => (
         <span className="whitespace-nowrap">
@@ -46,11 +47,15 @@ function strokeColumns(timeZone: string) {
         </span>
       ),
     }),
-    col.accessor('revolutions', { header: 'Revolutions', cell: ({ getValue }) => num(getValue(), 0) }),
-    col.accessor('penetrationMmPerRev', { header: 'Penetration (mm/rev)', cell: ({ getValue }) => num(getValue(), 1) }),
-    col.accessor('rpm', { header: 'Speed (rpm)', cell: ({ getValue }) => num(getValue(), 1) }),
-    col.accessor('thrustKn', { header: 'Thrust (kN)', cell: ({ getValue }) => num(getValue(), 0) }),
-    col.accessor('torqueKnm', { header: 'Torque (kN·m)', cell: ({ getValue }) => num(getValue(), 0) }),
+    col.accessor('revolutions', { meta: { csvDecimals: 0 }, header: 'Revolutions', cell: ({ getValue }) => num(getValue(), 0) }),
+    col.accessor('penetrationMmPerRev', {
+      meta: { csvDecimals: 1 },
+      header: 'Penetration (mm/rev)',
+      cell: ({ getValue }) => num(getValue(), 1),
+    }),
+    col.accessor('rpm', { meta: { csvDecimals: 1 }, header: 'Speed (rpm)', cell: ({ getValue }) => num(getValue(), 1) }),
+    col.accessor('thrustKn', { meta: { csvDecimals: 0 }, header: 'Thrust (kN)', cell: ({ getValue }) => num(getValue(), 0) }),
+    col.accessor('torqueKnm', { meta: { csvDecimals: 0 }, header: 'Torque (kN·m)', cell: ({ getValue }) => num(getValue(), 0) }),
   ];
 }
 

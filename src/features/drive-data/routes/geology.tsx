@@ -28,10 +28,10 @@ export function GeologyRoute() {
   const refresh = () => queryClient.invalidateQueries({ queryKey: driveDataQueries.all(projectId) });
 
   const readOnlyColumns = [
-    col.accessor('chainageFromM', { header: 'From', cell: ({ getValue }) => formatChainage(getValue()) }),
-    col.accessor('chainageToM', { header: 'To', cell: ({ getValue }) => formatChainage(getValue()) }),
+    col.accessor('chainageFromM', { meta: { csvDecimals: 1 }, header: 'From', cell: ({ getValue }) => formatChainage(getValue()) }),
+    col.accessor('chainageToM', { meta: { csvDecimals: 1 }, header: 'To', cell: ({ getValue }) => formatChainage(getValue()) }),
     col.accessor((s) => groundName.get(s.groundTypeId) ?? '—', { id: 'ground', header: 'Ground type' }),
-    col.accessor('waterHeadM', { header: 'Water head (m)' }),
+    col.accessor('waterHeadM', { meta: { csvDecimals: 1 }, header: 'Water head (m)' }),
     col.accessor((s) => (s.stopAllowed ? 'yes' : 'no'), { id: 'stop', header: 'Stop allowed' }),
     col.accessor('stopReason', { header: 'Stop reason' }),
   ];

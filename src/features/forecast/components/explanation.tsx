@@ -1,4 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
+import { createColumnHelper } from '@tanstack/react-table';
+import { DataTable } from '../../../components/ui/data-table';
 import type { EstimateBasis, Fallback } from '../../../../shared/domain/forecast';
 import { positionClassLabels } from '../../../../shared/cutters';
 import { Alert } from '../../../components/ui/alert';
@@ -20,8 +22,48 @@ const basisText = (basis: EstimateBasis | null | undefined) =>
       ? 'set by the planner'
       : `last ${basis.strokeCount} strokes (${fixed(basis.advanceM, 0)} m)`;
 
-const th = 'px-2 py-1 text-left align-bottom font-semibold';
-const td = 'px-2 py-1 align-top whitespace-nowrap';
+type Section = NonNullable<PositionForecast['explanation']>['sections'][number];
+const sCol = createColumnHelper<Section>();
+const nowrap = (text: string) => <span className="whitespace-nowrap">{text}</span>;
+/** The sections walked ahead; numbers with the decimals they show (and export). */
+const sectionColumns = (groundName: (id: string | null) => string) => [
+  sCol.accessor('fromChainageM', { header: 'From', meta: { csvDecimals: 1 }, cell: ({ getValue }) => nowrap(formatChainage(getValue())) }),
+  sCol.accessor('toChainageM', { header: 'To', meta: { csvDecimals: 1 }, cell: ({ getValue }) => nowrap(formatChainage(getValue())) }),
+  sCol.accessor('lengthM', { header: 'Length (m)', meta: { csvDecimals: 1 } }),
+  sCol.accessor((s) => groundName(s.groundTypeId), { id: 'ground', header: 'Ground' }),
+  sCol.accessor('penetrationMmPerRev', { header: 'Penetration (mm/rev)', meta: { csvDecimals: 2 } }),
+  sCol.accessor('rolledKmPerM', { header: 'Rolled (km per m)', meta: { csvDecimals: 3 } }),
+  sCol.accessor((s) => `${formatRate(s.rateMmPerKm.p50)} / ${formatRate(s.rateMmPerKm.p90)}`, {
+    id: 'rate',
+    header: 'Rate P50 / P90 (mm/km)',
+    cell: ({ getValue }) => nowrap(getValue()),
+  }),
+  sCol.accessor((s) => `${fixed(s.wearMmPerM.p50, 4)} / ${fixed(s.wearMmPerM.p90, 4)}`, {
+    id: 'wearPerM',
+    header: 'Wear per m P50 / P90 (mm)',
+    cell: ({ getValue }) => nowrap(getValue()),
+  }),
+  sCol.accessor('advanceMPerDay', { header: 'Advance (m/day)', meta: { csvDecimals: 1 } }),
+  sCol.accessor('days', { header: 'Days', meta: { csvDecimals: 1 } }),
+  sCol.accessor((s) => (s.fallbacks.length ? s.fallbacks.map((f) => fallbackText[f]).join('; ') : '—'), {
+    id: 'fallbacks',
+    header: 'Unknown ground: stand-ins',
+  }),
+];
+
+interface GroundRate {
+  ground: string;
+  rate: string;
+  penetration: string;
+  advance: string;
+}
+const gCol = createColumnHelper<GroundRate>();
+const rateColumns = [
+  gCol.accessor('ground', { header: 'Ground' }),
+  gCol.accessor('rate', { header: 'Wear rate P50 / P90 (mm/km)' }),
+  gCol.accessor('penetration', { header: 'Penetration (mm/rev)' }),
+  gCol.accessor('advance', { header: 'Advance (m/day)' }),
+];
 
 /** How one position's forecast was made: wear now, each section walked ahead, and the rates used. Fetched when opened. */
 export function Explanation({
@@ -87,68 +129,14 @@ export function Explanation({
         {e.sections.length === 0 ? (
           <p>None: the position is over its limit now.</p>
         ) : (
-          <div className="overflow-x-auto">
-            <table className="text-caption">
-              <thead className="bg-basalt-100">
-                <tr>
-                  <th scope="col" className={th}>
-                    From
-                  </th>
-                  <th scope="col" className={th}>
-                    To
-                  </th>
-                  <th scope="col" className={th}>
-                    Length (m)
-                  </th>
-                  <th scope="col" className={th}>
-                    Ground
-                  </th>
-                  <th scope="col" className={th}>
-                    Penetration (mm/rev)
-                  </th>
-                  <th scope="col" className={th}>
-                    Rolled (km per m)
-                  </th>
-                  <th scope="col" className={th}>
-                    Rate P50 / P90 (mm/km)
-                  </th>
-                  <th scope="col" className={th}>
-                    Wear per m P50 / P90 (mm)
-                  </th>
-                  <th scope="col" className={th}>
-                    Advance (m/day)
-                  </th>
-                  <th scope="col" className={th}>
-                    Days
-                  </th>
-                  <th scope="col" className={th}>
-                    Unknown ground: stand-ins
-                  </th>
-                </tr>
-              </thead>
-              <tbody>
-                {e.sections.map((s) => (
-                  <tr key={`${s.fromChainageM}-${s.toChainageM}`} className="border-t border-basalt-100">
-                    <td className={td}>{formatChainage(s.fromChainageM)}</td>
-                    <td className={td}>{formatChainage(s.toChainageM)}</td>
-                    <td className={td}>{fixed(s.lengthM)}</td>
-                    <td className={td}>{groundName(s.groundTypeId)}</td>
-                    <td className={td}>{fixed(s.penetrationMmPerRev, 2)}</td>
-                    <td className={td}>{fixed(s.rolledKmPerM, 3)}</td>
-                    <td className={td}>
-                      {formatRate(s.rateMmPerKm.p50)} / {formatRate(s.rateMmPerKm.p90)}
-                    </td>
-                    <td className={td}>
-                      {fixed(s.wearMmPerM.p50, 4)} / {fixed(s.wearMmPerM.p90, 4)}
-                    </td>
-                    <td className={td}>{fixed(s.advanceMPerDay)}</td>
-                    <td className={td}>{fixed(s.days)}</td>
-                    <td className={td}>{s.fallbacks.length ? s.fallbacks.map((f) => fallbackText[f]).join('; ') : '—'}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+          <DataTable
+            data={e.sections}
+            columns={sectionColumns(groundName)}
+            label="Sections walked ahead"
+            exportName={`kerfwise-forecast-position-${p.position.positionNumber}-sections`}
+            getRowId={(s) => `${s.fromChainageM}-${s.toChainageM}`}
+            filterable={false}
+          />
         )}
         <p className="mt-2 max-w-prose">
           Central (P50): {outcome('p50')}. Cautious (P90): {outcome('p90')}.
@@ -159,42 +147,18 @@ export function Explanation({
       {grounds.length > 0 && (
         <section aria-label="Rates used">
           <h4 className="font-semibold">Rates used</h4>
-          <div className="overflow-x-auto">
-            <table className="text-caption">
-              <thead className="bg-basalt-100">
-                <tr>
-                  <th scope="col" className={th}>
-                    Ground
-                  </th>
-                  <th scope="col" className={th}>
-                    Wear rate P50 / P90 (mm/km)
-                  </th>
-                  <th scope="col" className={th}>
-                    Penetration (mm/rev)
-                  </th>
-                  <th scope="col" className={th}>
-                    Advance (m/day)
-                  </th>
-                </tr>
-              </thead>
-              <tbody>
-                {grounds.map((g) => (
-                  <tr key={g} className="border-t border-basalt-100">
-                    <td className={td}>{groundName(g)}</td>
-                    <td className={td}>
-                      {formatRate(rates.byGround[g]?.p50MmPerKm)} / {formatRate(rates.byGround[g]?.p90MmPerKm)}
-                    </td>
-                    <td className={td}>
-                      {fixed(driveRates.penetrationMmPerRevByGround[g], 2)} — {basisText(driveRates.basis[g]?.penetration)}
-                    </td>
-                    <td className={td}>
-                      {fixed(driveRates.advanceMPerDayByGround[g])} — {basisText(driveRates.basis[g]?.advance)}
-                    </td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+          <DataTable
+            data={grounds.map((g) => ({
+              ground: groundName(g),
+              rate: `${formatRate(rates.byGround[g]?.p50MmPerKm)} / ${formatRate(rates.byGround[g]?.p90MmPerKm)}`,
+              penetration: `${fixed(driveRates.penetrationMmPerRevByGround[g], 2)} — ${basisText(driveRates.basis[g]?.penetration)}`,
+              advance: `${fixed(driveRates.advanceMPerDayByGround[g])} — ${basisText(driveRates.basis[g]?.advance)}`,
+            }))}
+            columns={rateColumns}
+            label="Rates used"
+            exportName={`kerfwise-forecast-position-${p.position.positionNumber}-rates`}
+            filterable={false}
+          />
           <p className="mt-2 max-w-prose text-caption text-basalt-600">
             The P90 rate adds the fit’s own uncertainty and the scatter of single discs about it
             {rates.relativeScatter != null && ` (${fixed(rates.relativeScatter * 100)} % here)`}; a ground known only from its CAI gets a

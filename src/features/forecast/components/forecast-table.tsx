@@ -121,7 +121,7 @@ export function ForecastTable({
       accessorFn: (p) => p.p90.wearNowMm,
       cell: ({ row }) => <Pair p90={fixed(row.original.p90.wearNowMm)} p50={fixed(row.original.p50.wearNowMm)} />,
     },
-    { id: 'limit', header: 'Limit (mm)', accessorFn: (p) => p.position.allowableWearMm },
+    { id: 'limit', header: 'Limit (mm)', accessorFn: (p) => p.position.allowableWearMm, meta: { csvDecimals: 1 } },
     {
       id: 'chainage',
       header: 'Change-out at',
@@ -192,19 +192,20 @@ export function ForecastTable({
 
   // Numbers stay numbers (rounded by the writer as the table shows them), so an overdue negative
   // remaining distance is not mistaken for a formula cell.
+  // Decimals as the cells show them: wear with `fixed` (1), remaining with `fixed(…, 0)`, chainage 1.
   const csvHeader = [
-    'Position',
+    { header: 'Position', decimals: 0 },
     'Class',
     'Serial',
-    { header: 'Wear now P50 (mm)', decimals: 2 },
-    { header: 'Wear now P90 (mm)', decimals: 2 },
-    'Limit (mm)',
+    { header: 'Wear now P50 (mm)', decimals: 1 },
+    { header: 'Wear now P90 (mm)', decimals: 1 },
+    { header: 'Limit (mm)', decimals: 1 },
     ...(['P90', 'P50'] as const).flatMap((q) => [
       `${q} chainage`,
       { header: `${q} chainage (m)`, decimals: 1 },
-      `${q} ring`,
+      { header: `${q} ring`, decimals: 0 },
       `${q} date`,
-      { header: `${q} remaining (m)`, decimals: 1 },
+      { header: `${q} remaining (m)`, decimals: 0 },
       `${q} status`,
     ]),
     'Flags',

@@ -13,7 +13,7 @@ import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { forecastQueries, type WearFitGround, type WearFitReport } from '../api';
 import { WearChart } from '../components/wear-chart';
-import { fixed, formatRate, whole } from '../format';
+import { fixed, whole } from '../format';
 
 const sourceText = (g: WearFitGround) => {
   if (!g.rate) return 'None';
@@ -44,7 +44,7 @@ const cautiousText: Record<CautiousSource, string> = {
 const col = createColumnHelper<WearFitGround>();
 const rateColumns = [
   col.accessor('name', { header: 'Ground type', cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span> }),
-  col.accessor('cai', { header: 'CAI', cell: ({ getValue }) => fixed(getValue(), 1) }),
+  col.accessor('cai', { meta: { csvDecimals: 1 }, header: 'CAI', cell: ({ getValue }) => fixed(getValue(), 1) }),
   col.accessor(
     (g) => (g.caiClass ? `${g.caiClass.label}${g.caiClass.outsideTabulatedRange ? ' (outside the table)' : ''}` : 'Not tested'),
     {
@@ -52,11 +52,11 @@ const rateColumns = [
       header: 'CERCHAR class',
     },
   ),
-  col.accessor('priorMmPerKm', { header: 'Prior rate (mm/km)', cell: ({ getValue }) => formatRate(getValue()) }),
+  col.accessor('priorMmPerKm', { meta: { csvDecimals: 4 }, header: 'Prior rate (mm/km)', cell: ({ getValue }) => fixed(getValue(), 4) }),
   col.accessor(
     (g) =>
       g.rate
-        ? `${formatRate(g.rate.rateMmPerKm)}${g.rate.standardErrorMmPerKm == null ? '' : ` ± ${formatRate(g.rate.standardErrorMmPerKm)}`}`
+        ? `${fixed(g.rate.rateMmPerKm, 4)}${g.rate.standardErrorMmPerKm == null ? '' : ` ± ${fixed(g.rate.standardErrorMmPerKm, 4)}`}`
         : '—',
     {
       id: 'rate',
@@ -67,22 +67,24 @@ const rateColumns = [
   ),
   col.accessor((g) => g.rate?.siteOnlyRateMmPerKm, {
     id: 'siteOnly',
+    meta: { csvDecimals: 4 },
     header: 'Site-only rate (mm/km)',
-    cell: ({ getValue }) => formatRate(getValue()),
+    cell: ({ getValue }) => fixed(getValue(), 4),
   }),
   col.accessor((g) => g.cautious?.p90MmPerKm, {
     id: 'p90',
+    meta: { csvDecimals: 4 },
     header: 'Cautious P90 rate (mm/km)',
     cell: ({ getValue, row }) => (
       <span className="block min-w-40">
-        <span className="font-semibold">{formatRate(getValue())}</span>
+        <span className="font-semibold">{fixed(getValue(), 4)}</span>
         {row.original.cautious && (
           <span className="block text-caption text-basalt-600">{cautiousText[row.original.cautious.cautiousSource]}</span>
         )}
       </span>
     ),
   }),
-  col.accessor((g) => g.rate?.observationCount ?? 0, { id: 'n', header: 'Inspections' }),
+  col.accessor((g) => g.rate?.observationCount ?? 0, { id: 'n', meta: { csvDecimals: 0 }, header: 'Inspections' }),
   col.accessor(sourceText, { id: 'source', header: 'Source' }),
   col.accessor(noteText, { id: 'note', header: 'Note', cell: ({ getValue }) => <span className="block min-w-56">{getValue()}</span> }),
 ];
@@ -91,9 +93,9 @@ type Failure = WearFitReport['failures'][number];
 const fCol = createColumnHelper<Failure>();
 const failureColumns = [
   fCol.accessor('groundName', { header: 'Ground type' }),
-  fCol.accessor('eventCount', { header: 'Sudden failures' }),
-  fCol.accessor('rolledKm', { header: 'Km rolled by all discs', cell: ({ getValue }) => whole(getValue()) }),
-  fCol.accessor('ratePer1000Km', { header: 'Per 1,000 km', cell: ({ getValue }) => fixed(getValue(), 2) }),
+  fCol.accessor('eventCount', { meta: { csvDecimals: 0 }, header: 'Sudden failures' }),
+  fCol.accessor('rolledKm', { meta: { csvDecimals: 0 }, header: 'Km rolled by all discs', cell: ({ getValue }) => whole(getValue()) }),
+  fCol.accessor('ratePer1000Km', { meta: { csvDecimals: 2 }, header: 'Per 1,000 km', cell: ({ getValue }) => fixed(getValue(), 2) }),
 ];
 
 type AbnormalEvent = WearFitReport['abnormalEvents'][number];
@@ -117,9 +119,10 @@ export function WearFitsRoute() {
       header: 'Date',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
-    eCol.accessor('positionNumber', { header: 'Position' }),
+    eCol.accessor('positionNumber', { meta: { csvDecimals: 0 }, header: 'Position' }),
     eCol.accessor((e) => e.conditions.map(conditionLabel).join(', '), { id: 'conditions', header: 'Found' }),
     eCol.accessor('chainageM', {
+      meta: { csvDecimals: 1 },
       header: 'Chainage',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
     }),

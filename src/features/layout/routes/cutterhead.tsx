@@ -29,6 +29,7 @@ export function CutterheadRoute() {
 
   const columns = [
     col.accessor('number', {
+      meta: { csvDecimals: 0 },
       header: 'Position',
       cell: ({ row }) => (
         <Link className={linkClass} to={paths.position(projectId, row.original.id)}>
@@ -37,7 +38,7 @@ export function CutterheadRoute() {
       ),
     }),
     col.accessor((p) => positionClassLabels[p.positionClass], { id: 'class', header: 'Class' }),
-    col.accessor('trackRadiusMm', { header: 'Radius (mm)' }),
+    col.accessor('trackRadiusMm', { meta: { csvDecimals: 0 }, header: 'Radius (mm)' }),
     col.accessor((p) => p.current?.serial ?? '', {
       id: 'serial',
       header: 'Serial now',
@@ -52,15 +53,20 @@ export function CutterheadRoute() {
         );
       },
     }),
-    col.accessor('lastWearMm', { header: 'Last wear (mm)', cell: ({ getValue }) => getValue() ?? '—' }),
+    col.accessor('lastWearMm', {
+      meta: { csvDecimals: 1 },
+      header: 'Last wear (mm)',
+      cell: ({ getValue }) => getValue()?.toFixed(1) ?? '—',
+    }),
     col.accessor((p) => formatSiteDate(p.lastMeasuredAt, project.siteTimeZone), {
       id: 'measured',
       header: 'Measured',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
-    col.accessor('wearLimitMm', { header: 'Limit (mm)' }),
+    col.accessor('wearLimitMm', { meta: { csvDecimals: 1 }, header: 'Limit (mm)' }),
     col.accessor((p) => (p.lastWearMm == null ? null : Math.round((100 * p.lastWearMm) / p.wearLimitMm)), {
       id: 'percent',
+      meta: { csvDecimals: 0 },
       header: '% of limit',
       sortUndefined: 'last',
       cell: ({ row, getValue }) => {

@@ -357,29 +357,14 @@ function CsvImport({ projectId }: { projectId: string }) {
         {result && (
           <Alert tone={result.tone} title={result.text}>
             {result.problems.length > 0 && (
-              <div className="mt-2 overflow-x-auto">
-                <table className="min-w-full text-left text-caption">
-                  <thead>
-                    <tr>
-                      <th scope="col" className="pr-4">
-                        Row
-                      </th>
-                      <th scope="col" className="pr-4">
-                        Column
-                      </th>
-                      <th scope="col">Problem</th>
-                    </tr>
-                  </thead>
-                  <tbody>
-                    {result.problems.map((p, i) => (
-                      <tr key={i} className="border-t border-alarm-500/30">
-                        <td className="pr-4 font-semibold">{p.row}</td>
-                        <td className="pr-4">{p.column}</td>
-                        <td>{p.message}</td>
-                      </tr>
-                    ))}
-                  </tbody>
-                </table>
+              <div className="mt-2 text-caption text-basalt-900">
+                <DataTable
+                  data={result.problems}
+                  columns={problemColumns}
+                  label="Problems in the file"
+                  exportName="kerfwise-layout-import-problems"
+                  filterable={result.problems.length > 10}
+                />
               </div>
             )}
           </Alert>
@@ -389,16 +374,27 @@ function CsvImport({ projectId }: { projectId: string }) {
   );
 }
 
+const problemCol = createColumnHelper<ImportProblem>();
+const problemColumns = [
+  problemCol.accessor('row', {
+    header: 'Row',
+    meta: { csvDecimals: 0 },
+    cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span>,
+  }),
+  problemCol.accessor('column', { header: 'Column' }),
+  problemCol.accessor('message', { header: 'Problem' }),
+];
+
 const col = createColumnHelper<LayoutPosition>();
 const readOnlyColumns = [
-  col.accessor('number', { header: 'Position' }),
-  col.accessor('trackRadiusMm', { header: 'Radius (mm)' }),
+  col.accessor('number', { meta: { csvDecimals: 0 }, header: 'Position' }),
+  col.accessor('trackRadiusMm', { meta: { csvDecimals: 0 }, header: 'Radius (mm)' }),
   col.accessor((p) => positionClassLabels[p.positionClass], { id: 'class', header: 'Class' }),
-  col.accessor('discSizeIn', { header: 'Disc (in)' }),
-  col.accessor('tiltDeg', { header: 'Tilt (°)', cell: ({ getValue }) => getValue() ?? '—' }),
-  col.accessor('wearLimitMm', { header: 'Limit (mm)' }),
+  col.accessor('discSizeIn', { meta: { csvDecimals: 0 }, header: 'Disc (in)' }),
+  col.accessor('tiltDeg', { meta: { csvDecimals: 1 }, header: 'Tilt (°)', cell: ({ getValue }) => getValue()?.toFixed(1) ?? '—' }),
+  col.accessor('wearLimitMm', { meta: { csvDecimals: 1 }, header: 'Limit (mm)' }),
   col.accessor((p) => (p.twinDisc ? 'yes' : 'no'), { id: 'twin', header: 'Twin discs' }),
-  col.accessor('angleDeg', { header: 'Angle (°)', cell: ({ getValue }) => getValue() ?? 'even' }),
+  col.accessor('angleDeg', { meta: { csvDecimals: 1 }, header: 'Angle (°)', cell: ({ getValue }) => getValue()?.toFixed(1) ?? 'even' }),
 ];
 
 export function LayoutRoute() {

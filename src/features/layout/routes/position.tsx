@@ -94,18 +94,24 @@ export function PositionRoute() {
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
     mCol.accessor('chainageM', {
+      meta: { csvDecimals: 1 },
       header: 'Chainage',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
     }),
-    mCol.accessor('ringNumber', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
+    mCol.accessor('ringNumber', { meta: { csvDecimals: 0 }, header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
     mCol.accessor((m) => m.serial ?? '', {
       id: 'serial',
       header: 'Serial measured',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
-    mCol.accessor('wearMm', { header: 'Wear (mm)', cell: ({ getValue }) => getValue() ?? 'not measured' }),
+    mCol.accessor('wearMm', {
+      meta: { csvDecimals: 1 },
+      header: 'Wear (mm)',
+      cell: ({ getValue }) => getValue()?.toFixed(1) ?? 'not measured',
+    }),
     mCol.accessor((m) => (m.wearMm == null ? null : Math.round((100 * m.wearMm) / position.wearLimitMm)), {
       id: 'percent',
+      meta: { csvDecimals: 0 },
       header: '% of limit',
       cell: ({ getValue }) => {
         const v = getValue();
@@ -143,20 +149,22 @@ export function PositionRoute() {
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
     pCol.accessor('fittedChainageM', {
+      meta: { csvDecimals: 1 },
       header: 'At chainage',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
     }),
-    pCol.accessor('fittedRing', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
+    pCol.accessor('fittedRing', { meta: { csvDecimals: 0 }, header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
     pCol.accessor((p) => (p.removedAt ? formatSiteDate(p.removedAt, tz) : 'still fitted'), {
       id: 'removed',
       header: 'Removed',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
     }),
     pCol.accessor('removedChainageM', {
+      meta: { csvDecimals: 1 },
       header: 'At chainage',
       cell: ({ getValue }) => <span className="whitespace-nowrap">{formatChainage(getValue())}</span>,
     }),
-    pCol.accessor('removedRing', { header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
+    pCol.accessor('removedRing', { meta: { csvDecimals: 0 }, header: 'Ring', cell: ({ getValue }) => getValue() ?? '—' }),
     pCol.accessor((p) => p.removalReason ?? '', { id: 'reason', header: 'Reason' }),
     pCol.accessor((p) => conditionsText(p.removalConditions), { id: 'condition', header: 'Condition when removed' }),
   ];

@@ -148,15 +148,16 @@ export function CatalogueEditor({ projectId, parts, canEdit }: { projectId: stri
     col.accessor('code', { header: 'Code' }),
     col.accessor('name', { header: 'Name' }),
     col.accessor((p) => partKindLabels[p.kind], { id: 'kind', header: 'Kind' }),
-    col.accessor((p) => p.discSizeIn ?? '', { id: 'disc', header: 'Disc (in)' }),
+    col.accessor((p) => p.discSizeIn ?? '', { id: 'disc', meta: { csvDecimals: 0 }, header: 'Disc (in)' }),
     col.accessor('unitCost', {
+      meta: { csvDecimals: 2 },
       header: 'Unit cost',
       cell: ({ row }) => <span className="whitespace-nowrap">{money(row.original.unitCost, row.original.currency)}</span>,
     }),
     col.accessor('supplier', { header: 'Supplier' }),
     col.accessor((p) => `${p.leadTimeMeanDays} ± ${p.leadTimeSdDays}`, { id: 'leadTime', header: 'Lead time (days)' }),
-    col.accessor('minOrderQty', { header: 'Minimum order' }),
-    col.accessor('onHand', { header: 'On hand' }),
+    col.accessor('minOrderQty', { meta: { csvDecimals: 0 }, header: 'Minimum order' }),
+    col.accessor('onHand', { meta: { csvDecimals: 0 }, header: 'On hand' }),
     ...(canEdit
       ? [
           col.display({

@@ -1,13 +1,42 @@
+import { createColumnHelper } from '@tanstack/react-table';
 import { useState, type FormEvent } from 'react';
 import { purchaseOrderInputSchema, receiveLineInputSchema } from '../../../../shared/schemas/parts';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
+import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { formatSiteDate } from '../../../../shared/site-time';
 import { useCreateOrder, useReceiveLine, type CataloguePart, type OrderLine, type PurchaseOrder } from '../api';
 import type { OrderSuggestion } from '../../../../shared/schemas/parts';
+
+const lineCol = createColumnHelper<OrderLine>();
+/** An order's lines; `receiving` adds the column to receive an open line into stock. */
+const orderLineColumns = (projectId: string, receiving: boolean) => [
+  lineCol.accessor((l) => `${l.partCode} ${l.partName}`, {
+    id: 'part',
+    header: 'Part',
+    cell: ({ row }) => (
+      <>
+        <span className="font-semibold">{row.original.partCode}</span> {row.original.partName}
+      </>
+    ),
+  }),
+  lineCol.accessor('qtyOrdered', { header: 'Ordered', meta: { csvDecimals: 0 } }),
+  lineCol.accessor('qtyReceived', { header: 'Received', meta: { csvDecimals: 0 } }),
+  lineCol.accessor('qtyOpen', { header: 'Open', meta: { csvDecimals: 0 } }),
+  lineCol.accessor('dueDate', { header: 'Due', cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span> }),
+  ...(receiving
+    ? [
+        lineCol.display({
+          id: 'receive',
+          header: 'Receive',
+          cell: ({ row }) => (row.original.qtyOpen > 0 ? <ReceiveCell projectId={projectId} line={row.original} /> : 'Complete'),
+        }),
+      ]
+    : []),
+];
 
 const cellInput = 'block min-h-touch w-24 rounded-md border-2 border-basalt-300 bg-white px-2 aria-[invalid=true]:border-alarm-500';
 
@@ -91,34 +120,15 @@ export function OrderList({
             {o.supplier || 'No supplier given'} · ordered {formatSiteDate(o.orderedAt, timeZone)}
             {o.note ? ` · ${o.note}` : ''}
           </p>
-          <div className="mt-3 overflow-x-auto">
-            <table className="min-w-full text-left">
-              <thead className="bg-basalt-100">
-                <tr>
-                  {['Part', 'Ordered', 'Received', 'Open', 'Due', ...(canEdit && o.open ? ['Receive'] : [])].map((h) => (
-                    <th key={h} scope="col" className="px-3 py-2 font-semibold">
-                      {h}
-                    </th>
-                  ))}
-                </tr>
-              </thead>
-              <tbody>
-                {o.lines.map((l) => (
-                  <tr key={l.id} className="border-t border-basalt-100 align-top">
-                    <td className="px-3 py-2">
-                      <span className="font-semibold">{l.partCode}</span> {l.partName}
-                    </td>
-                    <td className="px-3 py-2">{l.qtyOrdered}</td>
-                    <td className="px-3 py-2">{l.qtyReceived}</td>
-                    <td className="px-3 py-2">{l.qtyOpen}</td>
-                    <td className="px-3 py-2 whitespace-nowrap">{l.dueDate}</td>
-                    {canEdit && o.open && (
-                      <td className="px-3 py-2">{l.qtyOpen > 0 ? <ReceiveCell projectId={projectId} line={l} /> : 'Complete'}</td>
-                    )}
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+          <div className="mt-3">
+            <DataTable
+              data={o.lines}
+              columns={orderLineColumns(projectId, canEdit && o.open)}
+              label={`Lines of order ${o.number}`}
+              exportName={`kerfwise-order-${o.number}`}
+              getRowId={(l) => l.id}
+              filterable={false}
+            />
           </div>
         </section>
       ))}

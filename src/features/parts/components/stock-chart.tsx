@@ -1,9 +1,37 @@
 import { useState } from 'react';
 import { Bar, CartesianGrid, ComposedChart, Legend, Line, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
+import { createColumnHelper } from '@tanstack/react-table';
+import { DataTable } from '../../../components/ui/data-table';
 import { SelectField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
-import type { PartsDemand } from '../api';
+import type { DemandStop, PartsDemand } from '../api';
 import { sourcesText, units } from '../format';
+
+type Week = PartsDemand['weeks'][number];
+const wCol = createColumnHelper<Week>();
+/** Units as the chart's table shows them: whole, or one decimal for expected (fractional) units. */
+const unitsColumn = (key: 'demand' | 'receipts' | 'rebuildReturns', header: string) =>
+  wCol.accessor(key, { header, meta: { csvDecimals: 1 }, cell: ({ getValue }) => units(getValue()) });
+const weekColumns = (stops: ReadonlyMap<string, DemandStop>) => [
+  wCol.accessor('weekStartDate', {
+    header: 'Week starting',
+    cell: ({ getValue }) => <span className="whitespace-nowrap">{getValue()}</span>,
+  }),
+  unitsColumn('demand', 'Demand'),
+  unitsColumn('receipts', 'Deliveries'),
+  unitsColumn('rebuildReturns', 'Rebuilt back'),
+  wCol.accessor('projectedStock', {
+    header: 'Projected stock',
+    meta: { csvDecimals: 1 },
+    cell: ({ getValue }) => (
+      <span className={getValue() < 0 ? 'font-semibold text-alarm-700' : ''}>
+        {units(getValue())}
+        {getValue() < 0 ? ' (short)' : ''}
+      </span>
+    ),
+  }),
+  wCol.accessor((r) => sourcesText(r.sources, stops) || '—', { id: 'sources', header: 'Demand from' }),
+];
 
 /**
  * Projected stock of one part per week (line) against its demand (bars), with the safety stock and
@@ -90,33 +118,15 @@ export function StockChart({ demand, partId, onPartChange }: { demand: PartsDema
         {showTable ? 'Hide the weeks as a table' : 'Show the weeks as a table'}
       </button>
       {showTable && (
-        <div className="mt-2 overflow-x-auto">
-          <table className="min-w-full text-left" aria-label={`Weeks of ${part.code}`}>
-            <thead className="bg-basalt-100">
-              <tr>
-                {['Week starting', 'Demand', 'Deliveries', 'Rebuilt back', 'Projected stock', 'Demand from'].map((h) => (
-                  <th key={h} scope="col" className="px-3 py-2 font-semibold">
-                    {h}
-                  </th>
-                ))}
-              </tr>
-            </thead>
-            <tbody>
-              {rows.map((r) => (
-                <tr key={r.week} className="border-t border-basalt-100">
-                  <td className="px-3 py-2 whitespace-nowrap">{r.weekStartDate}</td>
-                  <td className="px-3 py-2">{units(r.demand)}</td>
-                  <td className="px-3 py-2">{units(r.receipts)}</td>
-                  <td className="px-3 py-2">{units(r.rebuildReturns)}</td>
-                  <td className={`px-3 py-2 ${r.projectedStock < 0 ? 'font-semibold text-alarm-700' : ''}`}>
-                    {units(r.projectedStock)}
-                    {r.projectedStock < 0 ? ' (short)' : ''}
-                  </td>
-                  <td className="px-3 py-2">{sourcesText(r.sources, stops) || '—'}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+        <div className="mt-2">
+          <DataTable
+            data={rows}
+            columns={weekColumns(stops)}
+            label={`Weeks of ${part.code}`}
+            exportName={`kerfwise-stock-weeks-${part.code}`}
+            getRowId={(r) => String(r.week)}
+            filterable={false}
+          />
         </div>
       )}
     </Panel>

@@ -37,11 +37,11 @@ export function RoundsRoute() {
         </Link>
       ),
     }),
-    col.accessor('chainageM', { header: 'Chainage', cell: (c) => formatChainage(c.getValue()) }),
-    col.accessor('ringNumber', { header: 'Ring', cell: (c) => c.getValue() ?? '—' }),
+    col.accessor('chainageM', { meta: { csvDecimals: 1 }, header: 'Chainage', cell: (c) => formatChainage(c.getValue()) }),
+    col.accessor('ringNumber', { meta: { csvDecimals: 0 }, header: 'Ring', cell: (c) => c.getValue() ?? '—' }),
     col.accessor('crew', { header: 'Crew' }),
-    col.accessor('entryCount', { header: 'Entries' }),
-    col.accessor('changeCount', { header: 'Changes' }),
+    col.accessor('entryCount', { meta: { csvDecimals: 0 }, header: 'Entries' }),
+    col.accessor('changeCount', { meta: { csvDecimals: 0 }, header: 'Changes' }),
     col.accessor((r) => (r.closedAt ? 'closed' : 'open'), { id: 'status', header: 'Status' }),
   ];
 

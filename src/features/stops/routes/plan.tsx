@@ -1,6 +1,7 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useSuspenseQuery } from '@tanstack/react-query';
-import { Fragment, useState } from 'react';
+import { createColumnHelper } from '@tanstack/react-table';
+import { useState } from 'react';
 import { useForm, type Resolver } from 'react-hook-form';
 import { Link, useNavigate, useParams, useSearchParams } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
@@ -8,6 +9,7 @@ import { roleCan } from '../../../../shared/roles';
 import { stopPlanQuerySchema, type StopPlanQuery } from '../../../../shared/schemas/stop';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
+import { DataTable } from '../../../components/ui/data-table';
 import { TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
@@ -141,46 +143,14 @@ function CostComparison({ plan }: { plan: StopPlan }) {
   ].filter(Boolean);
   return (
     <div className="space-y-3">
-      <div className="overflow-x-auto">
-        <table className="min-w-full text-left" aria-label="Cost of the plans, in hours">
-          <thead className="bg-basalt-100">
-            <tr>
-              <th scope="col" className="px-3 py-1">
-                Plan
-              </th>
-              <th scope="col" className="px-3 py-1 text-right">
-                Stops
-              </th>
-              <th scope="col" className="px-3 py-1 text-right">
-                Stop hours
-              </th>
-              <th scope="col" className="px-3 py-1 text-right">
-                Change hours
-              </th>
-              <th scope="col" className="px-3 py-1 text-right">
-                Ring life thrown away
-              </th>
-              <th scope="col" className="px-3 py-1 text-right">
-                Total
-              </th>
-            </tr>
-          </thead>
-          <tbody>
-            {rows.map(({ name, view }) => (
-              <tr key={name} className="border-t border-basalt-100">
-                <th scope="row" className="px-3 py-1">
-                  {name}
-                </th>
-                <td className="px-3 py-1 text-right">{view.stops.length}</td>
-                <td className="px-3 py-1 text-right">{hoursText(view.cost.stopH)}</td>
-                <td className="px-3 py-1 text-right">{hoursText(view.cost.changeH)}</td>
-                <td className="px-3 py-1 text-right">{hoursText(view.cost.wastedRingLifeH)}</td>
-                <td className="px-3 py-1 text-right font-semibold">{hoursText(view.cost.totalH)}</td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </div>
+      <DataTable
+        data={rows}
+        columns={costColumns}
+        label="Cost of the plans, in hours"
+        exportName="kerfwise-stop-plan-costs"
+        getRowId={(r) => r.name}
+        filterable={false}
+      />
       {sentences.length > 0 && (
         <p className="font-semibold">The optimised plan {sentences.join(' and ')}: the totals of the tables below.</p>
       )}
@@ -294,6 +264,69 @@ function LongSection({ plan }: { plan: StopPlan }) {
 }
 
 /** The stops as a compact table; a row opens to its positions (and, for the optimised plan, a way to propose it). */
+const costCol = createColumnHelper<{ name: string; view: PlanView }>();
+const costColumns = [
+  costCol.accessor('name', { header: 'Plan', cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span> }),
+  costCol.accessor((r) => r.view.stops.length, { id: 'stops', header: 'Stops', meta: { csvDecimals: 0 } }),
+  costCol.accessor((r) => r.view.cost.stopH, {
+    id: 'stopH',
+    header: 'Stop hours',
+    meta: { csvDecimals: 1 },
+    cell: ({ getValue }) => hoursText(getValue()),
+  }),
+  costCol.accessor((r) => r.view.cost.changeH, {
+    id: 'changeH',
+    header: 'Change hours',
+    meta: { csvDecimals: 1 },
+    cell: ({ getValue }) => hoursText(getValue()),
+  }),
+  costCol.accessor((r) => r.view.cost.wastedRingLifeH, {
+    id: 'wastedH',
+    header: 'Ring life thrown away',
+    meta: { csvDecimals: 1 },
+    cell: ({ getValue }) => hoursText(getValue()),
+  }),
+  costCol.accessor((r) => r.view.cost.totalH, {
+    id: 'totalH',
+    header: 'Total',
+    meta: { csvDecimals: 1 },
+    cell: ({ getValue }) => <span className="font-semibold">{hoursText(getValue())}</span>,
+  }),
+];
+
+const planCol = createColumnHelper<PlanStop>();
+/** A plan's stops in chainage order (not sortable: the order is the plan); the chainage opens the stop. */
+const planStopColumns = (timeZone: string) =>
+  [
+    planCol.display({ id: 'n', header: '#', cell: ({ row }) => row.index + 1 }),
+    planCol.accessor('chainageM', {
+      header: 'Chainage',
+      meta: { csvDecimals: 1 },
+      cell: ({ row }) => (
+        <button
+          type="button"
+          className="min-h-touch font-semibold text-ember-700 underline underline-offset-2"
+          aria-expanded={row.getIsExpanded()}
+          aria-controls={`plan-stop-${row.id}`}
+          onClick={() => row.toggleExpanded()}
+        >
+          {formatChainage(row.original.chainageM)}
+        </button>
+      ),
+    }),
+    planCol.accessor('ringNumber', { header: 'Ring', meta: { csvDecimals: 0 } }),
+    planCol.accessor((s) => (s.expectedAt ? formatDate(s.expectedAt, timeZone) : '—'), { id: 'expected', header: 'Expected' }),
+    planCol.accessor((s) => s.changes.length, { id: 'positions', header: 'Positions', meta: { csvDecimals: 0 } }),
+    planCol.accessor((s) => s.stopH + s.changeH + s.wastedRingLifeH, {
+      id: 'hours',
+      header: 'Hours (stop + changes + ring life)',
+      meta: { csvDecimals: 1 },
+      cell: ({ row, getValue }) =>
+        `${hoursText(getValue())} (${row.original.stopH.toFixed(1)} + ${row.original.changeH.toFixed(1)} + ${row.original.wastedRingLifeH.toFixed(1)})`,
+    }),
+    planCol.accessor((s) => (s.compressedAir ? '◆ compressed air' : '○ free air'), { id: 'air', header: 'Air' }),
+  ].map((c) => ({ ...c, enableSorting: false }));
+
 function StopTable({
   projectId,
   stops,
@@ -307,70 +340,18 @@ function StopTable({
   canPlan: boolean;
   label: string;
 }) {
-  const [open, setOpen] = useState<number | null>(null);
   return (
-    <div className="overflow-x-auto">
-      <table className="min-w-full text-left text-caption" aria-label={label}>
-        <thead className="bg-basalt-100">
-          <tr>
-            <th scope="col" className="px-2 py-1">
-              #
-            </th>
-            <th scope="col" className="px-2 py-1">
-              Chainage
-            </th>
-            <th scope="col" className="px-2 py-1 text-right">
-              Ring
-            </th>
-            <th scope="col" className="px-2 py-1">
-              Expected
-            </th>
-            <th scope="col" className="px-2 py-1 text-right">
-              Positions
-            </th>
-            <th scope="col" className="px-2 py-1 text-right">
-              Hours (stop + changes + ring life)
-            </th>
-            <th scope="col" className="px-2 py-1">
-              Air
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {stops.map((s, i) => (
-            <Fragment key={s.chainageM}>
-              <tr className="border-t border-basalt-100">
-                <td className="px-2 py-0.5">{i + 1}</td>
-                <td className="px-2 py-0.5">
-                  <button
-                    type="button"
-                    className="min-h-touch font-semibold text-ember-700 underline underline-offset-2"
-                    aria-expanded={open === i}
-                    onClick={() => setOpen(open === i ? null : i)}
-                  >
-                    {formatChainage(s.chainageM)}
-                  </button>
-                </td>
-                <td className="px-2 py-0.5 text-right">{s.ringNumber}</td>
-                <td className="px-2 py-0.5">{s.expectedAt ? formatDate(s.expectedAt, timeZone) : '—'}</td>
-                <td className="px-2 py-0.5 text-right">{s.changes.length}</td>
-                <td className="px-2 py-0.5 text-right">
-                  {hoursText(s.stopH + s.changeH + s.wastedRingLifeH)} ({s.stopH.toFixed(1)} + {s.changeH.toFixed(1)} +{' '}
-                  {s.wastedRingLifeH.toFixed(1)})
-                </td>
-                <td className="px-2 py-0.5">{s.compressedAir ? '◆ compressed air' : '○ free air'}</td>
-              </tr>
-              {open === i && (
-                <tr>
-                  <td colSpan={7} className="px-2 pb-3">
-                    <StopDetail projectId={projectId} stop={s} canPlan={canPlan} />
-                  </td>
-                </tr>
-              )}
-            </Fragment>
-          ))}
-        </tbody>
-      </table>
+    <div className="text-caption">
+      <DataTable
+        data={stops}
+        columns={planStopColumns(timeZone)}
+        label={label}
+        exportName={`kerfwise-stop-plan-${label.toLowerCase().replace(/[^a-z0-9]+/g, '-')}`}
+        getRowId={(s) => String(s.chainageM)}
+        filterable={false}
+        expandIdPrefix="plan-stop-"
+        renderExpanded={(row) => <StopDetail projectId={projectId} stop={row.original} canPlan={canPlan} />}
+      />
     </div>
   );
 }

@@ -1,5 +1,6 @@
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useSuspenseQueries } from '@tanstack/react-query';
+import { createColumnHelper } from '@tanstack/react-table';
 import { useState, type ReactNode } from 'react';
 import { useForm } from 'react-hook-form';
 import { z } from 'zod';
@@ -16,6 +17,7 @@ import {
 } from '../../../../shared/schemas/stop';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
+import { DataTable } from '../../../components/ui/data-table';
 import { SelectField, TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
@@ -140,10 +142,50 @@ function Fact({ label, children }: { label: string; children: ReactNode }) {
   );
 }
 
+const pCol = createColumnHelper<WorkPack['positions'][number]>();
+const packPositionColumns = [
+  pCol.accessor('number', {
+    header: 'Position',
+    meta: { csvDecimals: 0 },
+    cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span>,
+  }),
+  pCol.accessor((p) => `${positionClassLabels[p.positionClass]}${p.twinDisc ? ', twin' : ''}`, { id: 'class', header: 'Class' }),
+  pCol.accessor('trackRadiusMm', { header: 'Track radius (mm)', meta: { csvDecimals: 0 } }),
+  pCol.accessor('discSizeIn', { header: 'Disc (in)', cell: ({ getValue }) => `${getValue()}″`, meta: { csvDecimals: 0 } }),
+  pCol.accessor((p) => p.fittedSerial ?? '—', { id: 'serialOff', header: 'Serial off' }),
+  pCol.accessor('expectedWearMm', {
+    header: 'Expected wear (mm)',
+    meta: { csvDecimals: 1 },
+    cell: ({ row, getValue }) => {
+      const v = getValue();
+      return v == null ? '—' : `${v.toFixed(1)} of ${row.original.wearLimitMm} mm`;
+    },
+  }),
+  pCol.display({
+    id: 'serialOn',
+    header: 'Serial on',
+    cell: () => <span className="block h-6 min-w-32 border-b-2 border-dotted border-basalt-400" aria-label="To be written in" />,
+  }),
+];
+const sCol = createColumnHelper<WorkPack['storeSerials'][number]>();
+const storeColumns = [
+  sCol.accessor('serial', { header: 'Serial' }),
+  sCol.accessor('discSizeIn', { header: 'Disc (in)', cell: ({ getValue }) => `${getValue()}″`, meta: { csvDecimals: 0 } }),
+  sCol.accessor('rebuildCount', { header: 'Rebuilds', meta: { csvDecimals: 0 } }),
+];
+const kCol = createColumnHelper<WorkPack['partsKit'][number]>();
+const kitColumns = [
+  kCol.accessor('item', { header: 'Item' }),
+  kCol.accessor('quantity', {
+    header: 'Qty',
+    meta: { csvDecimals: 0 },
+    cell: ({ getValue }) => <span className="font-semibold">{getValue()}</span>,
+  }),
+  kCol.accessor('basis', { header: 'Basis', cell: ({ getValue }) => <span className="text-caption">{getValue()}</span> }),
+];
+
 function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; projectName: string; timeZone: string }) {
   const { stop } = pack;
-  const th = 'px-2 py-1 font-semibold';
-  const td = 'px-2 py-1';
   return (
     <article aria-label="Work pack" className="work-pack space-y-4 rounded-lg border border-basalt-200 bg-white p-4 shadow-sm">
       <header>
@@ -189,55 +231,15 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
         <h3 id="wp-positions" className="font-semibold">
           Positions to change ({pack.positions.length})
         </h3>
-        <div className="overflow-x-auto">
-          <table className="min-w-full text-left">
-            <thead className="bg-basalt-100">
-              <tr>
-                <th scope="col" className={th}>
-                  Position
-                </th>
-                <th scope="col" className={th}>
-                  Class
-                </th>
-                <th scope="col" className={`${th} text-right`}>
-                  Track radius
-                </th>
-                <th scope="col" className={th}>
-                  Disc
-                </th>
-                <th scope="col" className={th}>
-                  Serial off
-                </th>
-                <th scope="col" className={`${th} text-right`}>
-                  Expected wear
-                </th>
-                <th scope="col" className={th}>
-                  Serial on
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {pack.positions.map((p) => (
-                <tr key={p.positionId} className="border-t border-basalt-100">
-                  <td className={`${td} font-semibold`}>{p.number}</td>
-                  <td className={td}>
-                    {positionClassLabels[p.positionClass]}
-                    {p.twinDisc && ', twin'}
-                  </td>
-                  <td className={`${td} text-right`}>{p.trackRadiusMm.toFixed(0)} mm</td>
-                  <td className={td}>{p.discSizeIn}″</td>
-                  <td className={td}>{p.fittedSerial ?? '—'}</td>
-                  <td className={`${td} text-right`}>
-                    {p.expectedWearMm == null ? '—' : `${p.expectedWearMm.toFixed(1)} of ${p.wearLimitMm} mm`}
-                  </td>
-                  <td className={`${td} min-w-32`}>
-                    <span className="block h-6 border-b-2 border-dotted border-basalt-400" aria-label="To be written in" />
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          data={pack.positions}
+          columns={packPositionColumns}
+          label="Positions to change"
+          exportName={`kerfwise-work-pack-${formatChainage(stop.chainageM)}`}
+          getRowId={(p) => p.positionId}
+          initialSort={[{ id: 'number', desc: false }]}
+          filterable={false}
+        />
         <p className="text-caption text-basalt-600">Expected wear is the cautious (P90) forecast at this chainage.</p>
       </section>
 
@@ -254,30 +256,14 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
             />
           ))}
           {pack.storeSerials.length > 0 ? (
-            <table className="min-w-full text-left">
-              <thead className="bg-basalt-100">
-                <tr>
-                  <th scope="col" className={th}>
-                    Serial
-                  </th>
-                  <th scope="col" className={th}>
-                    Disc
-                  </th>
-                  <th scope="col" className={`${th} text-right`}>
-                    Rebuilds
-                  </th>
-                </tr>
-              </thead>
-              <tbody>
-                {pack.storeSerials.map((c) => (
-                  <tr key={c.cutterId} className="border-t border-basalt-100">
-                    <td className={td}>{c.serial}</td>
-                    <td className={td}>{c.discSizeIn}″</td>
-                    <td className={`${td} text-right`}>{c.rebuildCount}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+            <DataTable
+              data={pack.storeSerials}
+              columns={storeColumns}
+              label="Take from the store"
+              exportName={`kerfwise-work-pack-${formatChainage(stop.chainageM)}-store`}
+              getRowId={(c) => c.cutterId}
+              filterable={false}
+            />
           ) : (
             <p>{stop.status === 'done' || stop.status === 'cancelled' ? 'The stop is closed.' : 'No matching cutter in store.'}</p>
           )}
@@ -287,30 +273,14 @@ function WorkPackView({ pack, projectName, timeZone }: { pack: WorkPack; project
           <h3 id="wp-kit" className="font-semibold">
             Parts kit
           </h3>
-          <table className="min-w-full text-left">
-            <thead className="bg-basalt-100">
-              <tr>
-                <th scope="col" className={th}>
-                  Item
-                </th>
-                <th scope="col" className={`${th} text-right`}>
-                  Qty
-                </th>
-                <th scope="col" className={th}>
-                  Basis
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {pack.partsKit.map((k) => (
-                <tr key={k.item} className="border-t border-basalt-100">
-                  <td className={td}>{k.item}</td>
-                  <td className={`${td} text-right font-semibold`}>{k.quantity}</td>
-                  <td className={`${td} text-caption`}>{k.basis}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <DataTable
+            data={pack.partsKit}
+            columns={kitColumns}
+            label="Parts kit"
+            exportName={`kerfwise-work-pack-${formatChainage(stop.chainageM)}-kit`}
+            getRowId={(k) => k.item}
+            filterable={false}
+          />
           <p className="text-caption text-basalt-600">
             Spares per number of changes are common practice (no published source); adjust to the site’s history.
           </p>

@@ -28,6 +28,7 @@ export function StopsRoute() {
 
   const columns = [
     col.accessor('chainageM', {
+      meta: { csvDecimals: 1 },
       header: 'Chainage',
       cell: ({ row }) => (
         <Link
@@ -39,7 +40,7 @@ export function StopsRoute() {
         </Link>
       ),
     }),
-    col.accessor('ringNumber', { header: 'Ring', cell: (c) => c.getValue() ?? '—' }),
+    col.accessor('ringNumber', { meta: { csvDecimals: 0 }, header: 'Ring', cell: (c) => c.getValue() ?? '—' }),
     col.accessor((r) => stopStatusLabels[r.status], { id: 'status', header: 'Status' }),
     col.accessor(
       (r) =>
@@ -51,7 +52,7 @@ export function StopsRoute() {
       header: 'Planned start',
       cell: (c) => <span className="whitespace-nowrap">{c.getValue() || '—'}</span>,
     }),
-    col.accessor('expectedHours', { header: 'Planned (h)', cell: (c) => hoursText(c.getValue()) }),
+    col.accessor('expectedHours', { meta: { csvDecimals: 1 }, header: 'Planned (h)', cell: (c) => hoursText(c.getValue()) }),
     col.accessor((r) => (r.actualStart ? formatSiteDateTime(r.actualStart, tz) : ''), {
       id: 'actualStart',
       header: 'Actual start',
@@ -59,6 +60,7 @@ export function StopsRoute() {
     }),
     col.accessor((r) => (r.actualHours == null ? null : Math.round(r.actualHours * 10) / 10), {
       id: 'actualHours',
+      meta: { csvDecimals: 1 },
       header: 'Actual (h)',
       cell: (c) => hoursText(c.getValue()),
     }),
@@ -66,6 +68,7 @@ export function StopsRoute() {
       (r) => (r.actualHours != null && r.expectedHours != null ? Math.round((r.actualHours - r.expectedHours) * 10) / 10 : null),
       {
         id: 'overrun',
+        meta: { csvDecimals: 1 },
         header: 'Overrun (h)',
         cell: (c) => {
           const v = c.getValue();
@@ -74,7 +77,7 @@ export function StopsRoute() {
       },
     ),
     col.accessor((r) => r.crewName ?? '', { id: 'crew', header: 'Crew', cell: (c) => c.getValue() || '—' }),
-    col.accessor('positionCount', { header: 'Positions' }),
+    col.accessor('positionCount', { meta: { csvDecimals: 0 }, header: 'Positions' }),
   ];
 
   return (
