@@ -388,6 +388,19 @@ export const routeTable: RouteCase[] = [
     body: (c) => ({ number: uniq('PO'), lines: [{ partId: c.partId, qtyOrdered: 5, dueDate: '2027-03-01' }] }),
   },
   {
+    method: 'post',
+    path: '/api/projects/:projectId/parts/orders/batch',
+    roles: ['buyer'],
+    okStatus: 201,
+    prepare: partsRecords,
+    body: (c) => ({
+      orders: [
+        { number: uniq('PO'), supplier: 'Matrix A', lines: [{ partId: c.partId, qtyOrdered: 5, dueDate: '2027-03-01' }] },
+        { number: uniq('PO'), supplier: 'Matrix B', lines: [{ partId: c.partId, qtyOrdered: 2, dueDate: '2027-03-08' }] },
+      ],
+    }),
+  },
+  {
     method: 'get',
     path: '/api/projects/:projectId/parts/orders/:orderId',
     roles: ['planner', 'buyer', 'site_manager'],

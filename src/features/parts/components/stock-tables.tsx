@@ -91,7 +91,7 @@ export function SuggestionsTable({ demand }: { demand: PartsDemand }) {
     }),
     sugCol.accessor('supplier', { header: 'Supplier' }),
     sugCol.accessor('onHand', { header: 'On hand' }),
-    sugCol.accessor('dueWithinLeadTime', { header: 'Due in lead time', cell: ({ getValue }) => units(getValue()) }),
+    sugCol.accessor('rebuildsWithinLeadTime', { header: 'Rebuilt in lead time', cell: ({ getValue }) => units(getValue()) }),
     sugCol.accessor((s) => Number(s.leadTimeWeeks.toFixed(1)), { id: 'leadTime', header: 'Lead time (weeks)' }),
     sugCol.accessor((s) => Number(s.leadTimeDemand.toFixed(1)), { id: 'leadTimeDemand', header: 'Demand in lead time' }),
     sugCol.accessor((s) => Number(s.safetyStock.toFixed(1)), { id: 'safetyStock', header: 'Safety stock' }),
