@@ -31,7 +31,7 @@ import {
   projects,
   strokes,
 } from '../db/schema';
-import { refreshRolledDistance, UNKNOWN_GROUND } from './rolled-distance';
+import { refreshRolledDistance, UNKNOWN_GROUND, usableTrackRadius } from './rolled-distance';
 
 export const defaultForecastSettings = {
   // Common practice, no source: centre discs roll slowly and wear a little less per km, gauge discs more.
@@ -282,6 +282,12 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
   for (const p of data.positions) {
     if (!p.fitting_id) {
       problems.push(`Position ${p.number} has no cutter fitted.`);
+      continue;
+    }
+    if (!usableTrackRadius(p.track_radius_mm)) {
+      problems.push(
+        `Position ${p.number} has a track radius of ${p.track_radius_mm} mm, which no computation can use: it is left out of the forecast and the parts demand. Correct it in the cutterhead layout.`,
+      );
       continue;
     }
     const sinceFit = km.get(p.fitting_id) ?? {};

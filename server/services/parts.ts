@@ -53,6 +53,7 @@ import {
   workshopSettings,
 } from '../db/schema';
 import { computeForecast } from './forecast';
+import { usableTrackRadius } from './rolled-distance';
 
 /** Until the buyer saves settings: two weeks in the workshop, three rebuilds, 95 % service (common practice, no source). */
 export const defaultWorkshopSettings: WorkshopSettingsInput = { turnaroundDays: 14, maxRebuilds: 3, serviceLevel: 0.95, boms: {} };
@@ -313,6 +314,7 @@ export async function computePartsDemand(
   };
   if (advance) {
     for (const p of positionRows) {
+      if (!usableTrackRadius(p.trackRadiusMm)) continue; // named by the forecast's problems
       const assembly = assemblyForSize(p.discSizeIn);
       const discs = p.twinDisc ? 2 : 1;
       const mix = assembly ? eventMix(assembly.id) : {};

@@ -11,7 +11,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { weekIndexOf } from '../../shared/domain/parts-projection';
 import { createApp } from '../../server/app';
 import { db } from '../../server/db/client';
-import { auditLog, purchaseOrderLines, purchaseOrders, stockMovements } from '../../server/db/schema';
+import { auditLog, positions, purchaseOrderLines, purchaseOrders, stockMovements } from '../../server/db/schema';
 import type { DemandWeek } from '../../server/services/parts';
 import { siteDay } from '../../shared/site-time';
 import type { OrderSuggestion } from '../../shared/schemas/parts';
@@ -397,5 +397,22 @@ describe('orders filled from the suggestions of two suppliers', () => {
     expect(taken.status).toBe(409);
     expect(taken.body.error.message).toMatch(/already an order numbered PO-SPLIT-1/);
     expect(await orderCount()).toBe(n);
+  });
+});
+
+describe('stored values the computation cannot use', () => {
+  it('a position with track radius 0 does not break the parts pages: it is skipped and named', async () => {
+    const drive = await makeStopsDrive();
+    const agent = await buyerOf(drive.project.id);
+    await makeSmallCatalogue(drive.project.id);
+    const broken = drive.drive.positions[1];
+    // A value the input schemas refuse, stored before they did (or written around them).
+    await db.update(positions).set({ trackRadiusMm: 0 }).where(eq(positions.id, broken.id));
+    for (const path of ['parts', 'parts/demand?weeks=12', 'parts/demand/suggestions.csv?weeks=12']) {
+      const res = await agent.get(`/api/projects/${drive.project.id}/${path}`);
+      expect(res.status, `${path}: ${res.text.slice(0, 300)}`).toBe(200);
+    }
+    const list = await agent.get(`/api/projects/${drive.project.id}/parts`);
+    expect(list.body.problems.join(' ')).toMatch(new RegExp(`Position ${broken.number}\\b.*track radius`));
   });
 });
