@@ -4,7 +4,7 @@
  * utilisation, cutter-work share, metres per day, Pareto; cutter cost per m and per m³). Shared by
  * the downtime routes, the weekly digest job and the demo loader. All times in the site's zone.
  */
-import { and, asc, eq, gt, gte, lt, max, sql } from 'drizzle-orm';
+import { and, asc, eq, gt, gte, lt, lte, max, sql } from 'drizzle-orm';
 import { cutterCostBy, faceAreaM2, type CutterCostEntry } from '../../shared/domain/cutter-cost';
 import {
   cutterWorkShare,
@@ -166,8 +166,10 @@ export function previousIsoWeek(now: Date, timeZone: string): Period & { isoWeek
 }
 
 /**
- * The period asked for; without `to`, the last day with strokes or downtime (today without data,
- * never before `from`); without `from`, the Monday seven weeks before `to`'s week (eight ISO weeks).
+ * The period asked for; without `to`, the last day up to today with strokes or downtime (today
+ * without data, never before `from`): data after now (a planned stop's event ahead, a clock gone
+ * wrong) never moves the default period into the future; without `from`, the Monday seven weeks
+ * before `to`'s week (eight ISO weeks).
  */
 export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: string; to?: string }, now: Date): Promise<Period> {
   const tz = project.siteTimeZone;
@@ -177,11 +179,12 @@ export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: st
     const [s] = await tx
       .select({ at: max(strokes.endTime) })
       .from(strokes)
-      .where(eq(strokes.projectId, project.id));
+      .where(and(eq(strokes.projectId, project.id), lte(strokes.endTime, now)));
+    // An event under way counts up to now; one that has not started yet does not count.
     const [e] = await tx
-      .select({ at: max(downtimeEvents.endAt) })
+      .select({ at: sql<Date | string | null>`max(least(${downtimeEvents.endAt}, ${now.toISOString()}::timestamptz))` })
       .from(downtimeEvents)
-      .where(eq(downtimeEvents.projectId, project.id));
+      .where(and(eq(downtimeEvents.projectId, project.id), lte(downtimeEvents.startAt, now)));
     const latest = [s?.at, e?.at].flatMap((d) => (d ? [new Date(d)] : [])).sort((a, b) => b.getTime() - a.getTime())[0];
     // An event ending exactly at midnight belongs to the day before.
     to = siteDay(latest ? new Date(latest.getTime() - 1) : now, tz);

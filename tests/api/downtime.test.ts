@@ -19,6 +19,7 @@ import { addMember, makeProject, makeUser, signedInAgent, uniq } from '../suppor
 import { springEvents, springStrokes } from '../support/downtime-fixtures';
 import { ensureDefaultCauses } from '../../server/services/downtime';
 import { csvLines } from '../support/csv';
+import { insertStop } from '../support/stops-fixtures';
 
 const app: Express = createApp();
 type Agent = Awaited<ReturnType<typeof signedInAgent>>;
@@ -467,5 +468,42 @@ describe('cutter cost', () => {
     const labourOnly = (await agent.get(url('/cost?from=2026-03-23&to=2026-03-29'))).body;
     expect(labourOnly.total).toMatchObject({ partsCost: 0, labourCost: 240, totalCost: 240 });
     expect(labourOnly).toMatchObject({ unpricedParts: 3, currency: null });
+  });
+});
+
+describe('events ahead (issue 16)', () => {
+  it('refuses a future event unless it belongs to a planned stop, and keeps the default period on the data up to today', async () => {
+    const ctx = await driveWithManager();
+    for (const e of springEvents) {
+      const res = await ctx.agent.post(ctx.url('/events')).send({ startAt: e.startAt, endAt: e.endAt, causeId: ctx.causeId(e.cause) });
+      expect(res.status, JSON.stringify(res.body)).toBe(201);
+    }
+    const ahead = {
+      startAt: new Date(Date.now() + 20 * 86_400_000).toISOString(),
+      endAt: new Date(Date.now() + 21 * 86_400_000).toISOString(),
+    };
+    const before = await snapshot(ctx.project.id);
+    const refused = await ctx.agent.post(ctx.url('/events')).send({ ...ahead, causeId: ctx.causeId('Cutter change') });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.message).toMatch(/after now .*only for a planned stop: link the event to that stop/);
+    expect(refused.body.error.issues[0].path).toBe('endAt');
+    // A stop already done or cancelled is no planned stop.
+    const cancelled = await insertStop(ctx.project.id, { status: 'cancelled' });
+    const toCancelled = await ctx.agent.post(ctx.url('/events')).send({ ...ahead, stopId: cancelled.id });
+    expect(toCancelled.status).toBe(400);
+    expect(await snapshot(ctx.project.id)).toEqual(before);
+
+    const planned = await insertStop(ctx.project.id, { status: 'scheduled', plannedStart: new Date(ahead.startAt), expectedHours: 24 });
+    const accepted = await ctx.agent.post(ctx.url('/events')).send({ ...ahead, stopId: planned.id, causeId: ctx.causeId('Cutter change') });
+    expect(accepted.status, JSON.stringify(accepted.body)).toBe(201);
+
+    // derived (fixture): the last spring event ends Sun 2026-03-29 in site time; eight ISO weeks back start Mon 2026-02-02.
+    // The event ahead (after today, 2026-12 or later on this machine's clock) must not move the default period.
+    const events = await ctx.agent.get(ctx.url('/events'));
+    expect(events.body).toMatchObject({ from: '2026-02-02', to: '2026-03-29' });
+    const report = await ctx.agent.get(ctx.url('/report'));
+    expect(report.body).toMatchObject({ from: '2026-02-02', to: '2026-03-29' });
+    const cost = await ctx.agent.get(ctx.url('/cost'));
+    expect(cost.body).toMatchObject({ from: '2026-02-02', to: '2026-03-29' });
   });
 });
