@@ -468,6 +468,39 @@ describe('cutter cost', () => {
     const labourOnly = (await agent.get(url('/cost?from=2026-03-23&to=2026-03-29'))).body;
     expect(labourOnly.total).toMatchObject({ partsCost: 0, labourCost: 240, totalCost: 240 });
     expect(labourOnly).toMatchObject({ unpricedParts: 3, currency: null });
+    // The row names the prices it lacks instead of showing parts at 0 (issue 16).
+    expect(labourOnly.byWeek[0]).toMatchObject({ changes: 2, missingPrices: ['17″ cutter assembly', '17″ ring', '17″ seal kit'] });
+  });
+
+  it('costs a change the workshop has not finished in the week it happened, as an estimated rebuild with a new ring', async () => {
+    const { project, agent, url } = await driveWithManager();
+    const [c17, c19] = await db
+      .insert(cutters)
+      .values([
+        { projectId: project.id, serial: uniq('C'), discSizeIn: 17 },
+        { projectId: project.id, serial: uniq('D'), discSizeIn: 19 },
+      ])
+      .returning();
+    // Two changes on Wed 2026-03-25 (W13); neither has a workshop outcome yet. Only a 17″ ring is priced.
+    const at = new Date('2026-03-25T10:00:00+01:00');
+    await db.insert(cutterEvents).values([
+      { projectId: project.id, cutterId: c17.id, kind: 'removed', at, details: { chainageM: 50 } },
+      { projectId: project.id, cutterId: c19.id, kind: 'removed', at, details: { chainageM: 50 } },
+    ]);
+    await db
+      .insert(parts)
+      .values({ projectId: project.id, code: 'R17', name: 'R17', kind: 'ring', discSizeIn: 17, unitCost: '400.00', leadTimeMeanDays: 30 });
+    const c = (await agent.get(url('/cost?from=2026-03-23&to=2026-03-29'))).body;
+    // derived: rule of changePartsCost — each unfinished change is one ring; 17″ at 400, 19″ has no price.
+    expect(c.byWeek).toHaveLength(1);
+    expect(c.byWeek[0]).toMatchObject({
+      key: '2026-W13',
+      partsCost: 400,
+      changes: 2,
+      estimatedChanges: 2,
+      missingPrices: ['19″ ring'],
+    });
+    expect(c.unpricedParts).toBe(1);
   });
 });
 

@@ -20,7 +20,25 @@ const costColumns = (keyHeader: string, unit: string) => [
   col.accessor('key', { header: keyHeader }),
   col.accessor((r) => round(r.advanceM, 1), { id: 'advanceM', header: 'Advance (m)' }),
   col.accessor((r) => round(r.excavatedM3, 0), { id: 'excavatedM3', header: 'Excavated (m³)' }),
-  col.accessor((r) => round(r.partsCost, 2), { id: 'partsCost', header: `Parts${unit}`, cell: ({ getValue }) => money(getValue()) }),
+  col.accessor('changes', { header: 'Changes' }),
+  col.accessor((r) => round(r.partsCost, 2), {
+    id: 'partsCost',
+    header: `Parts${unit}`,
+    // Never a bare 0 for a week with changes: name the prices missing and the estimated changes.
+    cell: ({ row, getValue }) => (
+      <span>
+        {money(getValue())}
+        {row.original.estimatedChanges > 0 && (
+          <span className="block text-caption text-basalt-700">
+            {row.original.estimatedChanges} not yet back from the workshop: estimated
+          </span>
+        )}
+        {row.original.missingPrices.length > 0 && (
+          <span className="block text-caption font-semibold text-caution-700">No price: {row.original.missingPrices.join(', ')}</span>
+        )}
+      </span>
+    ),
+  }),
   col.accessor((r) => round(r.labourCost, 2), { id: 'labourCost', header: `Labour${unit}`, cell: ({ getValue }) => money(getValue()) }),
   col.accessor((r) => round(r.totalCost, 2), { id: 'totalCost', header: `Total${unit}`, cell: ({ getValue }) => money(getValue()) }),
   col.accessor((r) => round(r.costPerM, 2), { id: 'costPerM', header: `Cost per m${unit}`, cell: ({ getValue }) => money(getValue()) }),
@@ -70,7 +88,8 @@ export function CutterCostRoute() {
       )}
       {c.unpricedParts > 0 && (
         <Alert tone="caution" title={`${c.unpricedParts} part(s) used by the workshop have no price in the parts catalogue.`}>
-          They are not counted; the cost shown is labour{c.currency ? ' and the priced parts' : ''} only.
+          They are not counted; the cost shown is labour{c.currency ? ' and the priced parts' : ''} only. Each row names the parts it lacks
+          a price for; add them in Parts → Catalogue.
         </Alert>
       )}
       <Panel title="By week">
