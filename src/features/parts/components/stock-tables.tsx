@@ -127,7 +127,7 @@ export function SuggestionsTable({ demand }: { demand: PartsDemand }) {
       id: 'part',
       header: 'Part',
       cell: ({ row }) => (
-        <span className="block min-w-56">
+        <span className="block min-w-64">
           <span className="font-semibold">{row.original.code}</span> {row.original.name}
         </span>
       ),
