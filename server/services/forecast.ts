@@ -284,9 +284,14 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
       problems.push(`Position ${p.number} has no cutter fitted.`);
       continue;
     }
-    if (!usableTrackRadius(p.track_radius_mm)) {
+    // Stored values no computation can use: the position is skipped and named, never a 500 for the whole page.
+    const unusable = [
+      !usableTrackRadius(p.track_radius_mm) && `a track radius of ${p.track_radius_mm} mm`,
+      !(p.wear_limit_mm > 0) && `a wear limit of ${p.wear_limit_mm} mm`,
+    ].filter((x): x is string => !!x);
+    if (unusable.length > 0) {
       problems.push(
-        `Position ${p.number} has a track radius of ${p.track_radius_mm} mm, which no computation can use: it is left out of the forecast and the parts demand. Correct it in the cutterhead layout.`,
+        `Position ${p.number} has ${unusable.join(' and ')}, which no computation can use: it is left out of the forecast and the parts demand. Correct it in the cutterhead layout.`,
       );
       continue;
     }
@@ -297,32 +302,39 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
       rolledKm: Math.max(0, total - (atEntry[g] ?? 0)),
     }));
     const modelled = modelledWearSinceMm(since, rates, p.position_class);
-    const forecast = forecastChangeOut({
-      position: {
-        positionId: p.position_id,
-        positionNumber: p.number,
-        positionClass: p.position_class,
-        trackRadiusMm: p.track_radius_mm,
-        discsPerPosition: p.twin_disc ? 2 : 1,
-        allowableWearMm: p.wear_limit_mm,
-        gaugeTiltDeg: p.position_class === 'gauge' ? (p.tilt_deg ?? 0) : null,
-      },
-      wearNow: {
-        lastMeasuredWearMm: p.last_wear_mm ?? 0,
-        measuredAtChainageM: p.last_chainage_m ?? p.fitted_chainage_m ?? last.to,
-        modelledSinceMm: modelled.wearMm,
-      },
-      currentChainageM: last.to,
-      currentRingNumber: last.ringNumber,
-      ringLengthM: project.ringLengthM,
-      driveDirection: project.driveDirection,
-      geology,
-      rates,
-      penetrationMmPerRevByGround: driveRates.penetrationMmPerRevByGround,
-      advanceMPerDayByGround: driveRates.advanceMPerDayByGround,
-      overcutMarginMm: settings.overcutMarginMm,
-      now,
-    });
+    let forecast: ReturnType<typeof forecastChangeOut>;
+    try {
+      forecast = forecastChangeOut({
+        position: {
+          positionId: p.position_id,
+          positionNumber: p.number,
+          positionClass: p.position_class,
+          trackRadiusMm: p.track_radius_mm,
+          discsPerPosition: p.twin_disc ? 2 : 1,
+          allowableWearMm: p.wear_limit_mm,
+          gaugeTiltDeg: p.position_class === 'gauge' ? (p.tilt_deg ?? 0) : null,
+        },
+        wearNow: {
+          lastMeasuredWearMm: p.last_wear_mm ?? 0,
+          measuredAtChainageM: p.last_chainage_m ?? p.fitted_chainage_m ?? last.to,
+          modelledSinceMm: modelled.wearMm,
+        },
+        currentChainageM: last.to,
+        currentRingNumber: last.ringNumber,
+        ringLengthM: project.ringLengthM,
+        driveDirection: project.driveDirection,
+        geology,
+        rates,
+        penetrationMmPerRevByGround: driveRates.penetrationMmPerRevByGround,
+        advanceMPerDayByGround: driveRates.advanceMPerDayByGround,
+        overcutMarginMm: settings.overcutMarginMm,
+        now,
+      });
+    } catch (err) {
+      if (!(err instanceof RangeError)) throw err;
+      problems.push(`Position ${p.number} is left out of the forecast and the parts demand: ${err.message}.`);
+      continue;
+    }
     result.push({ ...forecast, serial: p.serial, lastMeasuredAt: p.last_at });
   }
   result.sort((a, b) => a.p90.remainingM - b.p90.remainingM || a.position.positionNumber - b.position.positionNumber);

@@ -314,7 +314,7 @@ export async function computePartsDemand(
   };
   if (advance) {
     for (const p of positionRows) {
-      if (!usableTrackRadius(p.trackRadiusMm)) continue; // named by the forecast's problems
+      if (!usableTrackRadius(p.trackRadiusMm) || !(p.wearLimitMm > 0)) continue; // named by the forecast's problems
       const assembly = assemblyForSize(p.discSizeIn);
       const discs = p.twinDisc ? 2 : 1;
       const mix = assembly ? eventMix(assembly.id) : {};

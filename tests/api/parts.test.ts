@@ -401,18 +401,21 @@ describe('orders filled from the suggestions of two suppliers', () => {
 });
 
 describe('stored values the computation cannot use', () => {
-  it('a position with track radius 0 does not break the parts pages: it is skipped and named', async () => {
+  it('a position with track radius 0 or wear limit 0 does not break the parts pages: it is skipped and named', async () => {
     const drive = await makeStopsDrive();
     const agent = await buyerOf(drive.project.id);
     await makeSmallCatalogue(drive.project.id);
     const broken = drive.drive.positions[1];
     // A value the input schemas refuse, stored before they did (or written around them).
     await db.update(positions).set({ trackRadiusMm: 0 }).where(eq(positions.id, broken.id));
+    const noLimit = drive.drive.positions[2];
+    await db.update(positions).set({ wearLimitMm: 0 }).where(eq(positions.id, noLimit.id));
     for (const path of ['parts', 'parts/demand?weeks=12', 'parts/demand/suggestions.csv?weeks=12']) {
       const res = await agent.get(`/api/projects/${drive.project.id}/${path}`);
       expect(res.status, `${path}: ${res.text.slice(0, 300)}`).toBe(200);
     }
     const list = await agent.get(`/api/projects/${drive.project.id}/parts`);
     expect(list.body.problems.join(' ')).toMatch(new RegExp(`Position ${broken.number}\\b.*track radius`));
+    expect(list.body.problems.join(' ')).toMatch(new RegExp(`Position ${noLimit.number} has a wear limit of 0 mm`));
   });
 });
