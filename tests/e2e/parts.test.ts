@@ -103,6 +103,11 @@ it('at 1366 px the suggestions show every column without wrapping a name word by
 
   // Orders tab: fill from the suggestions (two suppliers) and save: one order per supplier.
   await page.getByRole('tab', { name: 'Orders and receiving' }).click();
+  // An empty form is refused in the browser, each field saying what it needs; nothing is saved.
+  await page.getByRole('button', { name: 'Save the order' }).click();
+  await expect.poll(() => page.getByText('The quantity must be a whole number.').count(), { timeout: 10_000 }).toBe(1);
+  expect(await page.getByText('Enter the order number.').count()).toBe(1);
+  expect(await page.getByLabel('Quantity, line 1').inputValue()).toBe('');
   await page.getByRole('button', { name: /Fill from the suggestions \(2 to order now\)/ }).click();
   await page.getByLabel('Order number').fill('PO-E2E');
   await expect

@@ -179,7 +179,12 @@ export function NewOrder({
   today: string;
 }) {
   const create = useCreateOrders(projectId);
-  const blank = () => ({ partId: parts[0]?.id ?? '', qtyOrdered: Number.NaN, dueDate: addDays(today, parts[0]?.leadTimeMeanDays ?? 14) });
+  // An empty quantity box (not "NaN"): the schema names the missing quantity when the form is sent.
+  const blank = () => ({
+    partId: parts[0]?.id ?? '',
+    qtyOrdered: undefined as unknown as number,
+    dueDate: addDays(today, parts[0]?.leadTimeMeanDays ?? 14),
+  });
   const form = useForm<OrderFormIn, unknown, OrderFormOut>({
     resolver: zodResolver(orderFormSchema),
     defaultValues: { number: '', note: '', lines: [blank()] },
