@@ -32,6 +32,12 @@ import {
   strokes,
 } from '../db/schema';
 import { refreshRolledDistance, UNKNOWN_GROUND, usableTrackRadius } from './rolled-distance';
+import { formatChainage } from '../../shared/domain/chainage';
+
+/** Whether a stored geology section can be walked: finite ends, the end after the start. */
+export function usableSection(s: { chainageFromM: number; chainageToM: number }): boolean {
+  return Number.isFinite(s.chainageFromM) && Number.isFinite(s.chainageToM) && s.chainageToM > s.chainageFromM;
+}
 
 export const defaultForecastSettings = {
   // Common practice, no source: centre discs roll slowly and wear a little less per km, gauge discs more.
@@ -277,7 +283,14 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
 
   const km = new Map<string, Record<string, number>>();
   for (const r of data.rolled) km.set(r.key, { ...km.get(r.key), [r.ground_key]: r.km });
-  const geology = data.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId }));
+  // A stored section that ends where (or before) it starts cannot be walked: left out and named.
+  for (const s of data.sections.filter((x) => !usableSection(x)))
+    problems.push(
+      `The geology section from ${formatChainage(s.chainageFromM)} to ${formatChainage(s.chainageToM)} has no length: it is left out of the forecast and the parts demand. Correct it in the drive data.`,
+    );
+  const geology = data.sections
+    .filter(usableSection)
+    .map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId }));
   const result: PositionForecast[] = [];
   for (const p of data.positions) {
     if (!p.fitting_id) {

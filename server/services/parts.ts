@@ -52,7 +52,7 @@ import {
   stops,
   workshopSettings,
 } from '../db/schema';
-import { computeForecast } from './forecast';
+import { computeForecast, usableSection } from './forecast';
 import { usableTrackRadius } from './rolled-distance';
 
 /** Until the buyer saves settings: two weeks in the workshop, three rebuilds, 95 % service (common practice, no source). */
@@ -219,7 +219,9 @@ export async function computePartsDemand(
       : advanceAheadByWeek({
           currentChainageM: forecast.currentChainageM,
           direction: project.driveDirection,
-          sections: sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
+          sections: sections
+            .filter(usableSection) // the others are named by the forecast's problems
+            .map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
           penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
           advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
           weeks: horizonWeeks,

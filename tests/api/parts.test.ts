@@ -11,7 +11,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { weekIndexOf } from '../../shared/domain/parts-projection';
 import { createApp } from '../../server/app';
 import { db } from '../../server/db/client';
-import { auditLog, positions, purchaseOrderLines, purchaseOrders, stockMovements } from '../../server/db/schema';
+import { auditLog, geologySections, positions, purchaseOrderLines, purchaseOrders, stockMovements } from '../../server/db/schema';
 import type { DemandWeek } from '../../server/services/parts';
 import { siteDay } from '../../shared/site-time';
 import type { OrderSuggestion } from '../../shared/schemas/parts';
@@ -417,5 +417,27 @@ describe('stored values the computation cannot use', () => {
     const list = await agent.get(`/api/projects/${drive.project.id}/parts`);
     expect(list.body.problems.join(' ')).toMatch(new RegExp(`Position ${broken.number}\\b.*track radius`));
     expect(list.body.problems.join(' ')).toMatch(new RegExp(`Position ${noLimit.number} has a wear limit of 0 mm`));
+  });
+});
+
+describe('geology sections the computation cannot use', () => {
+  it('a section of no length or ending before it starts is left out and named, and the parts pages answer', async () => {
+    const drive = await makeStopsDrive();
+    const agent = await buyerOf(drive.project.id);
+    await makeSmallCatalogue(drive.project.id);
+    const [g] = await db.select().from(geologySections).where(eq(geologySections.projectId, drive.project.id));
+    await db.insert(geologySections).values([
+      { projectId: drive.project.id, chainageFromM: 600, chainageToM: 600, groundTypeId: g.groundTypeId },
+      { projectId: drive.project.id, chainageFromM: 900, chainageToM: 800, groundTypeId: g.groundTypeId },
+    ]);
+    for (const path of ['parts', 'parts/demand?weeks=52', 'parts/demand/suggestions.csv?weeks=12']) {
+      const res = await agent.get(`/api/projects/${drive.project.id}/${path}`);
+      expect(res.status, `${path}: ${res.text.slice(0, 300)}`).toBe(200);
+    }
+    const problems = (await agent.get(`/api/projects/${drive.project.id}/parts`)).body.problems.join(' ');
+    expect(problems).toMatch(/The geology section from 0\+600\.0 to 0\+600\.0 has no length/);
+    expect(problems).toMatch(/The geology section from 0\+900\.0 to 0\+800\.0 has no length/);
+    // The positions themselves are forecast: the bad sections do not take them out.
+    expect(problems).not.toMatch(/Position \d+ is left out/);
   });
 });
