@@ -207,6 +207,10 @@ downtimeRouter.get('/events', requireProject('downtime.read'), async (req, res) 
   );
 });
 
+/** Stops still ahead or under way: the only ones a future downtime event may belong to. */
+const plannedStopStatuses: readonly string[] = ['proposed', 'scheduled', 'in_progress'];
+const FUTURE_TOLERANCE_MS = 15 * 60_000;
+
 /**
  * Checks an event against the drive: its cause (active, unless an edit keeps the one it had), its
  * stop, and that it overlaps no other event (the message names that event). Call under lockDowntime.
@@ -233,15 +237,23 @@ async function checkEvent(
       ]);
     }
   }
+  let stopStatus: string | null = null;
   if (input.stopId) {
     const [stop] = await tx
-      .select({ id: stops.id })
+      .select({ id: stops.id, status: stops.status })
       .from(stops)
       .where(and(eq(stops.id, input.stopId), eq(stops.projectId, projectId)));
     if (!stop) throw badRequest('That stop is not one of this drive’s stops.', [{ path: 'stopId', message: 'Unknown stop.' }]);
+    stopStatus = stop.status;
   }
   const start = new Date(input.startAt);
   const end = new Date(input.endAt);
+  // Downtime that has not happened yet is only a planned stop's (decision 41); a few minutes allow for clocks.
+  const now = new Date();
+  if (end.getTime() > now.getTime() + FUTURE_TOLERANCE_MS && !(stopStatus && plannedStopStatuses.includes(stopStatus))) {
+    const message = `This event ends ${formatSiteDateTime(end, tz)}, after now (${formatSiteDateTime(now, tz)}, site time). Downtime ahead can be recorded only for a planned stop: link the event to that stop, or record it once it has happened.`;
+    throw badRequest(message, [{ path: 'endAt', message: 'In the future, and not linked to a planned stop.' }]);
+  }
   const [other] = await tx
     .select({ id: downtimeEvents.id, startAt: downtimeEvents.startAt, endAt: downtimeEvents.endAt, cause: downtimeCauses.name })
     .from(downtimeEvents)

@@ -4,7 +4,9 @@ import { writeCsv } from '../../shared/csv-writer';
 import {
   demandQuerySchema,
   partInputSchema,
+  purchaseOrderBatchInputSchema,
   purchaseOrderInputSchema,
+  type PurchaseOrderInput,
   receiveLineInputSchema,
   stockCountInputSchema,
   workshopSettingsInputSchema,
@@ -160,46 +162,73 @@ partsRouter.get('/orders', requireProject('parts.read'), async (req, res) => {
   res.json(await listOrders(db, projectOf(req.params)));
 });
 
+/** Saves purchase orders inside a transaction: every part must be in the catalogue and every number new. */
+async function insertOrders(tx: DbOrTx, projectId: string, userId: string, inputs: readonly PurchaseOrderInput[]) {
+  const partIds = [...new Set(inputs.flatMap((o) => o.lines.map((l) => l.partId)))];
+  const known = new Set(
+    (
+      await tx
+        .select({ id: parts.id })
+        .from(parts)
+        .where(and(eq(parts.projectId, projectId), inArray(parts.id, partIds)))
+    ).map((p) => p.id),
+  );
+  const batch = inputs.length > 1;
+  inputs.forEach((input, k) => {
+    const unknown = input.lines.findIndex((l) => !known.has(l.partId));
+    if (unknown >= 0)
+      throw badRequest(
+        `${batch ? `Order ${input.number}, line` : 'Line'} ${unknown + 1} names a part that is not in this drive’s catalogue.`,
+        [{ path: `${batch ? `orders.${k}.` : ''}lines.${unknown}.partId`, message: 'Unknown part.' }],
+      );
+  });
+  const dups = await tx
+    .select({ number: purchaseOrders.number })
+    .from(purchaseOrders)
+    .where(
+      and(
+        eq(purchaseOrders.projectId, projectId),
+        inArray(
+          purchaseOrders.number,
+          inputs.map((o) => o.number),
+        ),
+      ),
+    );
+  if (dups.length > 0)
+    throw conflict(
+      dups.length === 1
+        ? `There is already an order numbered ${dups[0].number}.`
+        : `There are already orders numbered ${dups.map((d) => d.number).join(', ')}.`,
+    );
+  const ids: string[] = [];
+  for (const input of inputs) {
+    const [order] = await tx
+      .insert(purchaseOrders)
+      .values({ projectId, number: input.number, supplier: input.supplier, note: input.note, createdBy: userId })
+      .returning();
+    await tx.insert(purchaseOrderLines).values(input.lines.map((l) => ({ ...l, purchaseOrderId: order.id })));
+    await audit(tx, { userId, projectId, entity: 'purchase_order', entityId: order.id, action: 'create', after: input });
+    ids.push(order.id);
+  }
+  return ids;
+}
+
 partsRouter.post('/orders', requireProject('parts.edit'), async (req, res) => {
   const projectId = projectOf(req.params);
   const me = requireUser(req);
   const input = purchaseOrderInputSchema.parse(req.body);
-  const orderId = await db.transaction(async (tx) => {
-    const known = new Set(
-      (
-        await tx
-          .select({ id: parts.id })
-          .from(parts)
-          .where(
-            and(
-              eq(parts.projectId, projectId),
-              inArray(
-                parts.id,
-                input.lines.map((l) => l.partId),
-              ),
-            ),
-          )
-      ).map((p) => p.id),
-    );
-    const unknown = input.lines.findIndex((l) => !known.has(l.partId));
-    if (unknown >= 0)
-      throw badRequest(`Line ${unknown + 1} names a part that is not in this drive’s catalogue.`, [
-        { path: `lines.${unknown}.partId`, message: 'Unknown part.' },
-      ]);
-    const [dup] = await tx
-      .select({ id: purchaseOrders.id })
-      .from(purchaseOrders)
-      .where(and(eq(purchaseOrders.projectId, projectId), eq(purchaseOrders.number, input.number)));
-    if (dup) throw conflict(`There is already an order numbered ${input.number}.`);
-    const [order] = await tx
-      .insert(purchaseOrders)
-      .values({ projectId, number: input.number, supplier: input.supplier, note: input.note, createdBy: me.id })
-      .returning();
-    await tx.insert(purchaseOrderLines).values(input.lines.map((l) => ({ ...l, purchaseOrderId: order.id })));
-    await audit(tx, { userId: me.id, projectId, entity: 'purchase_order', entityId: order.id, action: 'create', after: input });
-    return order.id;
-  });
+  const [orderId] = await db.transaction((tx) => insertOrders(tx, projectId, me.id, [input]));
   res.status(201).json((await listOrders(db, projectId, orderId))[0]);
+});
+
+/** Several orders at once, one per supplier (the suggestions filled in for two suppliers): all or none. */
+partsRouter.post('/orders/batch', requireProject('parts.edit'), async (req, res) => {
+  const projectId = projectOf(req.params);
+  const me = requireUser(req);
+  const input = purchaseOrderBatchInputSchema.parse(req.body);
+  const ids = await db.transaction((tx) => insertOrders(tx, projectId, me.id, input.orders));
+  const all = await listOrders(db, projectId);
+  res.status(201).json(ids.map((id) => all.find((o) => o.id === id)!));
 });
 
 partsRouter.get('/orders/:orderId', requireProject('parts.read'), async (req, res) => {

@@ -4,8 +4,15 @@
  * utilisation, cutter-work share, metres per day, Pareto; cutter cost per m and per m³). Shared by
  * the downtime routes, the weekly digest job and the demo loader. All times in the site's zone.
  */
-import { and, asc, eq, gt, gte, lt, max, sql } from 'drizzle-orm';
-import { cutterCostBy, faceAreaM2, type CutterCostEntry } from '../../shared/domain/cutter-cost';
+import { and, asc, eq, gt, gte, lt, lte, max, sql } from 'drizzle-orm';
+import {
+  changePartsCost,
+  cutterCostBy,
+  faceAreaM2,
+  type ChangeOutcome,
+  type ChangePartKind,
+  type CutterCostEntry,
+} from '../../shared/domain/cutter-cost';
 import {
   cutterWorkShare,
   downtimeHoursByCauseAndShift,
@@ -166,8 +173,10 @@ export function previousIsoWeek(now: Date, timeZone: string): Period & { isoWeek
 }
 
 /**
- * The period asked for; without `to`, the last day with strokes or downtime (today without data,
- * never before `from`); without `from`, the Monday seven weeks before `to`'s week (eight ISO weeks).
+ * The period asked for; without `to`, the last day up to today with strokes or downtime (today
+ * without data, never before `from`): data after now (a planned stop's event ahead, a clock gone
+ * wrong) never moves the default period into the future; without `from`, the Monday seven weeks
+ * before `to`'s week (eight ISO weeks).
  */
 export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: string; to?: string }, now: Date): Promise<Period> {
   const tz = project.siteTimeZone;
@@ -177,11 +186,12 @@ export async function resolvePeriod(tx: DbOrTx, project: Project, q: { from?: st
     const [s] = await tx
       .select({ at: max(strokes.endTime) })
       .from(strokes)
-      .where(eq(strokes.projectId, project.id));
+      .where(and(eq(strokes.projectId, project.id), lte(strokes.endTime, now)));
+    // An event under way counts up to now; one that has not started yet does not count.
     const [e] = await tx
-      .select({ at: max(downtimeEvents.endAt) })
+      .select({ at: sql<Date | string | null>`max(least(${downtimeEvents.endAt}, ${now.toISOString()}::timestamptz))` })
       .from(downtimeEvents)
-      .where(eq(downtimeEvents.projectId, project.id));
+      .where(and(eq(downtimeEvents.projectId, project.id), lte(downtimeEvents.startAt, now)));
     const latest = [s?.at, e?.at].flatMap((d) => (d ? [new Date(d)] : [])).sort((a, b) => b.getTime() - a.getTime())[0];
     // An event ending exactly at midnight belongs to the day before.
     to = siteDay(latest ? new Date(latest.getTime() - 1) : now, tz);
@@ -282,10 +292,11 @@ export async function buildDowntimeReport(tx: DbOrTx, project: Project, p: Perio
 // Cutter cost -----------------------------------------------------------------------------------
 
 export const PARTS_RULE =
-  'A rebuild uses one ring (when a new ring was fitted), one bearing kit and one seal kit (when new bearings or seals were fitted); ' +
-  'a scrapped cutter uses one cutter assembly. Each is priced at the unit cost of the catalogue part of that kind for the cutter’s ' +
-  'disc size (a part without a size fits every size; the lowest code first). Parts count in the week and ground of the removal that ' +
-  'sent the cutter to the workshop; labour is cutter-work downtime × the labour rate, in the ground where the machine stood.';
+  'Every cutter change uses parts, counted in the week and ground of the change (the removal): a rebuild uses one ring (when a new ring ' +
+  'was fitted), one bearing kit and one seal kit (when new bearings or seals were fitted); a scrapped cutter uses one cutter assembly; ' +
+  'a change whose workshop outcome is not recorded yet counts as a rebuild with a new ring (estimated). Each is priced at the unit cost ' +
+  'of the catalogue part of that kind for the cutter’s disc size (a part without a size fits every size; the lowest code first); a ' +
+  'row names the parts without a price. Labour is cutter-work downtime × the labour rate, in the ground where the machine stood.';
 
 const UNKNOWN_GROUND = 'Unknown ground';
 
@@ -350,53 +361,68 @@ export async function buildCutterCost(tx: DbOrTx, project: Project, p: Period): 
   const catalogue = await tx.select().from(parts).where(eq(parts.projectId, project.id)).orderBy(asc(parts.code));
   const partFor = (kind: string, discSizeIn: number) =>
     catalogue.find((x) => x.kind === kind && x.discSizeIn === discSizeIn) ?? catalogue.find((x) => x.kind === kind && x.discSizeIn == null);
-  const { rows: outcomes } = await tx.execute<{
-    kind: string;
-    details: Record<string, unknown>;
-    at: Date;
+  // Every change (a removal) in the period, with the workshop outcome that followed it if any; and outcomes
+  // recorded for cutters with no removal on record, at the outcome's time.
+  const { rows: changes } = await tx.execute<{
+    at: Date | string;
     disc_size_in: number;
-    removed_at: Date | null;
-    removed_chainage_m: number | null;
+    chainage_m: number | null;
+    outcome_kind: 'rebuilt' | 'scrapped' | null;
+    outcome_details: Record<string, unknown> | null;
   }>(sql`
-    select e.kind, e.details, e.at, c.disc_size_in, r.at as removed_at, (r.details->>'chainageM')::float8 as removed_chainage_m
+    select r.at, c.disc_size_in, (r.details->>'chainageM')::float8 as chainage_m, o.kind as outcome_kind, o.details as outcome_details
+    from cutter_events r
+    join cutters c on c.id = r.cutter_id
+    left join lateral (
+      select o.kind, o.details from cutter_events o
+      where o.cutter_id = r.cutter_id and o.kind in ('rebuilt', 'scrapped') and o.at >= r.at
+        and not exists (select 1 from cutter_events n where n.cutter_id = r.cutter_id and n.kind = 'removed' and n.at > r.at and n.at <= o.at)
+      order by o.at asc limit 1) o on true
+    where r.project_id = ${project.id} and r.kind = 'removed'
+      and r.at >= ${p.start.toISOString()}::timestamptz and r.at < ${p.end.toISOString()}::timestamptz
+    union all
+    select e.at, c.disc_size_in, null, e.kind, e.details
     from cutter_events e
     join cutters c on c.id = e.cutter_id
-    left join lateral (
-      select r.at, r.details from cutter_events r
-      where r.cutter_id = e.cutter_id and r.kind = 'removed' and r.at <= e.at
-      order by r.at desc limit 1) r on true
     where e.project_id = ${project.id} and e.kind in ('rebuilt', 'scrapped')
-      and coalesce(r.at, e.at) >= ${p.start.toISOString()}::timestamptz and coalesce(r.at, e.at) < ${p.end.toISOString()}::timestamptz`);
-  const missingChainage = outcomes.filter((o) => o.removed_chainage_m == null);
+      and not exists (select 1 from cutter_events r where r.cutter_id = e.cutter_id and r.kind = 'removed' and r.at <= e.at)
+      and e.at >= ${p.start.toISOString()}::timestamptz and e.at < ${p.end.toISOString()}::timestamptz`);
+  const missingChainage = changes.filter((o) => o.chainage_m == null);
   const machineAt = await chainagesAt(
     tx,
     project.id,
-    missingChainage.map((o) => new Date(o.removed_at ?? o.at)),
+    missingChainage.map((o) => new Date(o.at)),
   );
+  const partName: Record<ChangePartKind, string> = {
+    ring: 'ring',
+    'bearing-kit': 'bearing kit',
+    'seal-kit': 'seal kit',
+    'cutter-assembly': 'cutter assembly',
+  };
   let unpricedParts = 0;
-  for (const o of outcomes) {
-    const needs =
-      o.kind === 'scrapped'
-        ? ['cutter-assembly']
-        : [
-            o.details.newRing !== false && 'ring',
-            o.details.newBearings === true && 'bearing-kit',
-            o.details.newSeals === true && 'seal-kit',
-          ].filter((k): k is string => !!k);
-    let partsCost = 0;
-    for (const kind of needs) {
+  for (const o of changes) {
+    const d = o.outcome_details ?? {};
+    const outcome: ChangeOutcome =
+      o.outcome_kind === 'scrapped'
+        ? { kind: 'scrapped' }
+        : o.outcome_kind === 'rebuilt'
+          ? { kind: 'rebuilt', newRing: d.newRing !== false, newBearings: d.newBearings === true, newSeals: d.newSeals === true }
+          : { kind: 'not-recorded' };
+    const cost = changePartsCost(outcome, (kind) => {
       const part = partFor(kind, o.disc_size_in);
-      if (part) partsCost += Number(part.unitCost);
-      else unpricedParts++;
-    }
-    const chainage = o.removed_chainage_m ?? machineAt[missingChainage.indexOf(o)];
+      return part ? Number(part.unitCost) : null;
+    });
+    unpricedParts += cost.missing.length;
+    const chainage = o.chainage_m ?? machineAt[missingChainage.indexOf(o)];
     entries.push({
       ...zero,
-      week: siteIsoWeek(new Date(o.removed_at ?? o.at), tz),
+      week: siteIsoWeek(new Date(o.at), tz),
       groundType: groundAt(chainage),
-      partsCost,
-      // A rebuild with a new ring, or a scrapped assembly, uses up one ring.
-      ringsUsed: o.kind === 'scrapped' || needs.includes('ring') ? 1 : 0,
+      partsCost: cost.partsCost,
+      ringsUsed: cost.ringsUsed,
+      changes: 1,
+      estimatedChanges: cost.estimated ? 1 : 0,
+      missingPrices: cost.missing.map((k) => `${o.disc_size_in}″ ${partName[k]}`),
     });
   }
 

@@ -32,7 +32,13 @@ import {
   strokes,
 } from '../db/schema';
 import { buildForecastInWorker } from '../workers/pool';
-import { refreshRolledDistance, UNKNOWN_GROUND } from './rolled-distance';
+import { refreshRolledDistance, UNKNOWN_GROUND, usableTrackRadius } from './rolled-distance';
+import { formatChainage } from '../../shared/domain/chainage';
+
+/** Whether a stored geology section can be walked: finite ends, the end after the start. */
+export function usableSection(s: { chainageFromM: number; chainageToM: number }): boolean {
+  return Number.isFinite(s.chainageFromM) && Number.isFinite(s.chainageToM) && s.chainageToM > s.chainageFromM;
+}
 
 export const defaultForecastSettings = {
   // Common practice, no source: centre discs roll slowly and wear a little less per km, gauge discs more.
@@ -278,11 +284,29 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
 
   const km = new Map<string, Record<string, number>>();
   for (const r of data.rolled) km.set(r.key, { ...km.get(r.key), [r.ground_key]: r.km });
-  const geology = data.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId }));
+  // A stored section that ends where (or before) it starts cannot be walked: left out and named.
+  for (const s of data.sections.filter((x) => !usableSection(x)))
+    problems.push(
+      `The geology section from ${formatChainage(s.chainageFromM)} to ${formatChainage(s.chainageToM)} has no length: it is left out of the forecast and the parts demand. Correct it in the drive data.`,
+    );
+  const geology = data.sections
+    .filter(usableSection)
+    .map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId }));
   const result: PositionForecast[] = [];
   for (const p of data.positions) {
     if (!p.fitting_id) {
       problems.push(`Position ${p.number} has no cutter fitted.`);
+      continue;
+    }
+    // Stored values no computation can use: the position is skipped and named, never a 500 for the whole page.
+    const unusable = [
+      !usableTrackRadius(p.track_radius_mm) && `a track radius of ${p.track_radius_mm} mm`,
+      !(p.wear_limit_mm > 0) && `a wear limit of ${p.wear_limit_mm} mm`,
+    ].filter((x): x is string => !!x);
+    if (unusable.length > 0) {
+      problems.push(
+        `Position ${p.number} has ${unusable.join(' and ')}, which no computation can use: it is left out of the forecast and the parts demand. Correct it in the cutterhead layout.`,
+      );
       continue;
     }
     const sinceFit = km.get(p.fitting_id) ?? {};
@@ -292,32 +316,39 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
       rolledKm: Math.max(0, total - (atEntry[g] ?? 0)),
     }));
     const modelled = modelledWearSinceMm(since, rates, p.position_class);
-    const forecast = forecastChangeOut({
-      position: {
-        positionId: p.position_id,
-        positionNumber: p.number,
-        positionClass: p.position_class,
-        trackRadiusMm: p.track_radius_mm,
-        discsPerPosition: p.twin_disc ? 2 : 1,
-        allowableWearMm: p.wear_limit_mm,
-        gaugeTiltDeg: p.position_class === 'gauge' ? (p.tilt_deg ?? 0) : null,
-      },
-      wearNow: {
-        lastMeasuredWearMm: p.last_wear_mm ?? 0,
-        measuredAtChainageM: p.last_chainage_m ?? p.fitted_chainage_m ?? last.to,
-        modelledSinceMm: modelled.wearMm,
-      },
-      currentChainageM: last.to,
-      currentRingNumber: last.ringNumber,
-      ringLengthM: project.ringLengthM,
-      driveDirection: project.driveDirection,
-      geology,
-      rates,
-      penetrationMmPerRevByGround: driveRates.penetrationMmPerRevByGround,
-      advanceMPerDayByGround: driveRates.advanceMPerDayByGround,
-      overcutMarginMm: settings.overcutMarginMm,
-      now,
-    });
+    let forecast: ReturnType<typeof forecastChangeOut>;
+    try {
+      forecast = forecastChangeOut({
+        position: {
+          positionId: p.position_id,
+          positionNumber: p.number,
+          positionClass: p.position_class,
+          trackRadiusMm: p.track_radius_mm,
+          discsPerPosition: p.twin_disc ? 2 : 1,
+          allowableWearMm: p.wear_limit_mm,
+          gaugeTiltDeg: p.position_class === 'gauge' ? (p.tilt_deg ?? 0) : null,
+        },
+        wearNow: {
+          lastMeasuredWearMm: p.last_wear_mm ?? 0,
+          measuredAtChainageM: p.last_chainage_m ?? p.fitted_chainage_m ?? last.to,
+          modelledSinceMm: modelled.wearMm,
+        },
+        currentChainageM: last.to,
+        currentRingNumber: last.ringNumber,
+        ringLengthM: project.ringLengthM,
+        driveDirection: project.driveDirection,
+        geology,
+        rates,
+        penetrationMmPerRevByGround: driveRates.penetrationMmPerRevByGround,
+        advanceMPerDayByGround: driveRates.advanceMPerDayByGround,
+        overcutMarginMm: settings.overcutMarginMm,
+        now,
+      });
+    } catch (err) {
+      if (!(err instanceof RangeError)) throw err;
+      problems.push(`Position ${p.number} is left out of the forecast and the parts demand: ${err.message}.`);
+      continue;
+    }
     result.push({ ...forecast, serial: p.serial, lastMeasuredAt: p.last_at });
   }
   result.sort((a, b) => a.p90.remainingM - b.p90.remainingM || a.position.positionNumber - b.position.positionNumber);

@@ -25,7 +25,7 @@ import { and, asc, eq, gt, inArray, sql } from 'drizzle-orm';
 import { discConditions, type PositionClass } from '../../shared/cutters';
 import { advanceAheadByWeek, weightedRolledKm } from '../../shared/domain/advance-ahead';
 import { formatChainage } from '../../shared/domain/chainage';
-import { reorderPointUnits, safetyStockUnits, serviceLevelZ, suggestOrder } from '../../shared/domain/inventory';
+import { serviceLevelZ, suggestOrderFromWeeks } from '../../shared/domain/inventory';
 import {
   projectParts,
   weekIndexOf,
@@ -52,7 +52,8 @@ import {
   stops,
   workshopSettings,
 } from '../db/schema';
-import { computeForecast } from './forecast';
+import { computeForecast, usableSection } from './forecast';
+import { usableTrackRadius } from './rolled-distance';
 
 /** Until the buyer saves settings: two weeks in the workshop, three rebuilds, 95 % service (common practice, no source). */
 export const defaultWorkshopSettings: WorkshopSettingsInput = { turnaroundDays: 14, maxRebuilds: 3, serviceLevel: 0.95, boms: {} };
@@ -218,7 +219,9 @@ export async function computePartsDemand(
       : advanceAheadByWeek({
           currentChainageM: forecast.currentChainageM,
           direction: project.driveDirection,
-          sections: sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
+          sections: sections
+            .filter(usableSection) // the others are named by the forecast's problems
+            .map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
           penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
           advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
           weeks: horizonWeeks,
@@ -313,6 +316,7 @@ export async function computePartsDemand(
   };
   if (advance) {
     for (const p of positionRows) {
+      if (!usableTrackRadius(p.trackRadiusMm) || !(p.wearLimitMm > 0)) continue; // named by the forecast's problems
       const assembly = assemblyForSize(p.discSizeIn);
       const discs = p.twinDisc ? 2 : 1;
       const mix = assembly ? eventMix(assembly.id) : {};
@@ -423,31 +427,23 @@ function addSources(into: DemandSource[], from: readonly DemandSource[]) {
 }
 
 /**
- * The order suggestion of one part from its weekly rows: safety stock and reorder point from the
- * mean and spread of weekly demand over the horizon and the lead time with its spread (DOMAIN.md
- * §6, in weeks); the order covers the demand of the lead-time window plus safety stock beyond what
- * is on hand and due back within it, at least the minimum order quantity.
+ * The order suggestion of one part from its weekly rows (shared/domain/inventory.ts): every open
+ * order counts, whatever its due date, so an order just placed always reduces the suggestion.
  */
 function suggestionFor(part: CataloguePart, rows: DemandWeek[], z: number): OrderSuggestion {
-  const n = rows.length;
-  const mean = rows.reduce((s, r) => s + r.demand, 0) / n;
-  // Spread of weekly demand over the horizon (population standard deviation).
-  const sd = Math.sqrt(rows.reduce((s, r) => s + (r.demand - mean) ** 2, 0) / n);
   const leadTimeWeeks = part.leadTimeMeanDays / 7;
   const leadTimeSdWeeks = part.leadTimeSdDays / 7;
-  const demand = { meanDemandPerPeriod: mean, demandSdPerPeriod: sd, leadTimePeriods: leadTimeWeeks, leadTimeSdPeriods: leadTimeSdWeeks };
-  const safetyStock = safetyStockUnits(demand, z);
-  const window = Math.max(1, Math.ceil(leadTimeWeeks - 1e-9));
-  const inWindow = rows.slice(0, window);
-  const leadTimeDemand = inWindow.reduce((s, r) => s + r.demand, 0) + Math.max(0, window - n) * mean;
-  const dueWithinLeadTime = inWindow.reduce((s, r) => s + r.receipts + r.rebuildReturns, 0);
-  const s = suggestOrder({
+  const s = suggestOrderFromWeeks({
+    weeks: rows,
     onHandUnits: part.onHand,
-    onOrderUnits: dueWithinLeadTime,
-    projectedDemandUnits: leadTimeDemand,
-    safetyStockUnits: safetyStock,
+    openOrderUnits: part.onOrder,
+    leadTimeWeeks,
+    leadTimeSdWeeks,
+    z,
     minOrderUnits: part.minOrderQty,
   });
+  const mean = s.meanWeeklyDemand;
+  const inWindow = rows.slice(0, s.windowWeeks);
   const shortage = rows.find((r) => r.projectedStock < -1e-9);
   const sources: DemandSource[] = [];
   for (const r of inWindow) addSources(sources, r.sources);
@@ -465,12 +461,12 @@ function suggestionFor(part: CataloguePart, rows: DemandWeek[], z: number): Orde
     leadTimeWeeks,
     leadTimeSdWeeks,
     meanWeeklyDemand: mean,
-    weeklyDemandSd: sd,
-    safetyStock,
-    reorderPoint: reorderPointUnits(demand, z),
-    leadTimeWindowWeeks: window,
-    leadTimeDemand,
-    dueWithinLeadTime,
+    weeklyDemandSd: s.weeklyDemandSd,
+    safetyStock: s.safetyStockUnits,
+    reorderPoint: s.reorderPointUnits,
+    leadTimeWindowWeeks: s.windowWeeks,
+    leadTimeDemand: s.leadTimeDemandUnits,
+    rebuildsWithinLeadTime: s.rebuildsBackUnits,
     inventoryPosition: s.inventoryPositionUnits,
     orderQty: s.orderUnits,
     orderNow: s.orderUnits > 0,

@@ -76,14 +76,18 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
   }));
   const domainStrokes = strokeRows.map(toStroke);
   const { pieces, errors } = revolutionsByGround(domainStrokes, sections);
-  const radius = new Map(positionRows.map((p) => [p.id, p.trackRadiusMm]));
-  const periods: RadiusPeriod[] = fittingRows.map((f) => ({
-    id: f.id,
-    positionId: f.positionId,
-    trackRadiusMm: radius.get(f.positionId)!,
-    fromTime: f.fittedAt.toISOString(),
-    toTime: f.removedAt?.toISOString() ?? null,
-  }));
+  // A stored radius the computation cannot use (0, negative) rolls nothing: its fittings are left out here, and the
+  // forecast and parts demand name the position (usableTrackRadius).
+  const radius = new Map(positionRows.filter((p) => usableTrackRadius(p.trackRadiusMm)).map((p) => [p.id, p.trackRadiusMm]));
+  const periods: RadiusPeriod[] = fittingRows
+    .filter((f) => radius.has(f.positionId))
+    .map((f) => ({
+      id: f.id,
+      positionId: f.positionId,
+      trackRadiusMm: radius.get(f.positionId)!,
+      fromTime: f.fittedAt.toISOString(),
+      toTime: f.removedAt?.toISOString() ?? null,
+    }));
   // An inspection's exposure is a window too: from its disc's fitting to the round.
   const fittingById = new Map(fittingRows.map((f) => [f.id, f]));
   const entryRows = await tx
@@ -93,7 +97,7 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
   const entryWindows: RadiusPeriod[] = entryRows.flatMap((e) => {
     const f = fittingById.get(e.fittingId!);
-    return f
+    return f && radius.has(f.positionId)
       ? [
           {
             id: e.id,
@@ -194,4 +198,9 @@ export async function rolledSinceFitted(tx: DbOrTx, projectId: string, positionI
     .innerJoin(fittings, eq(fittings.id, fittingRolledKm.fittingId))
     .where(and(eq(fittings.projectId, projectId), eq(fittings.positionId, positionId), sql`${fittings.removedAt} is null`));
   return Object.fromEntries(rows.map((r) => [r.groundKey, r.rolledKm]));
+}
+
+/** Whether a stored track radius can enter the rolled-distance computation (finite, > 0 mm). */
+export function usableTrackRadius(trackRadiusMm: number): boolean {
+  return Number.isFinite(trackRadiusMm) && trackRadiusMm > 0;
 }

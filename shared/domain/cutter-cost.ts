@@ -7,6 +7,12 @@ export interface CutterCostEntry {
   partsCost: number;
   labourHours: number;
   ringsUsed: number;
+  /** Cutter changes (removals) counted here; 0 for advance and labour entries. */
+  changes?: number;
+  /** Changes whose workshop outcome is not recorded yet, costed by the rule of `changePartsCost`. */
+  estimatedChanges?: number;
+  /** Parts a change needed that have no price (e.g. '17″ ring'): not in `partsCost`. */
+  missingPrices?: readonly string[];
 }
 
 export interface CutterCostRow {
@@ -21,6 +27,61 @@ export interface CutterCostRow {
   costPerM: number | null;
   costPerM3: number | null;
   ringsPer1000M3: number | null;
+  /** Cutter changes in the group. */
+  changes: number;
+  /** Of them, changes whose workshop outcome is not recorded yet (parts estimated). */
+  estimatedChanges: number;
+  /** Parts without a price the group's changes needed, each named once (e.g. '17″ ring'). */
+  missingPrices: string[];
+}
+
+/** What the workshop did (or has not yet recorded) with a removed cutter. */
+export type ChangeOutcome =
+  { kind: 'rebuilt'; newRing: boolean; newBearings: boolean; newSeals: boolean } | { kind: 'scrapped' } | { kind: 'not-recorded' };
+
+export type ChangePartKind = 'ring' | 'bearing-kit' | 'seal-kit' | 'cutter-assembly';
+
+export interface ChangePartsCost {
+  partsCost: number;
+  ringsUsed: number;
+  /** Kinds needed that have no price: the change's cost leaves them out. */
+  missing: ChangePartKind[];
+  /** True when the outcome is not recorded yet and the cost follows the rule below. */
+  estimated: boolean;
+}
+
+/**
+ * The parts one cutter change uses: every change uses parts (the fitted cutter is a rebuilt or a
+ * new assembly). A rebuild uses one ring (unless none was fitted), a bearing kit and a seal kit
+ * when new ones were fitted; a scrapped cutter uses one new assembly. A change whose outcome the
+ * workshop has not recorded yet is costed as a rebuild with a new ring and nothing else, the least
+ * a rebuild uses (common practice, no source), and marked estimated. `priceOf` gives the unit
+ * price of a kind for the cutter's size, or null when the catalogue has none.
+ */
+export function changePartsCost(outcome: ChangeOutcome, priceOf: (kind: ChangePartKind) => number | null): ChangePartsCost {
+  const needs: ChangePartKind[] =
+    outcome.kind === 'scrapped'
+      ? ['cutter-assembly']
+      : outcome.kind === 'not-recorded'
+        ? ['ring']
+        : [
+            ...(outcome.newRing ? (['ring'] as const) : []),
+            ...(outcome.newBearings ? (['bearing-kit'] as const) : []),
+            ...(outcome.newSeals ? (['seal-kit'] as const) : []),
+          ];
+  let partsCost = 0;
+  const missing: ChangePartKind[] = [];
+  for (const kind of needs) {
+    const price = priceOf(kind);
+    if (price == null || !Number.isFinite(price)) missing.push(kind);
+    else partsCost += price;
+  }
+  return {
+    partsCost,
+    ringsUsed: outcome.kind === 'scrapped' || needs.includes('ring') ? 1 : 0,
+    missing,
+    estimated: outcome.kind === 'not-recorded',
+  };
 }
 
 /** Face area in m² of a bore of excavated diameter `diameterM` (m): π·D²/4. */
@@ -44,13 +105,35 @@ export function cutterCostBy(
   diameterM: number,
   labourRatePerHour: number,
 ): CutterCostRow[] {
-  const groups = new Map<string, { advanceM: number; partsCost: number; labourHours: number; ringsUsed: number }>();
+  const groups = new Map<
+    string,
+    {
+      advanceM: number;
+      partsCost: number;
+      labourHours: number;
+      ringsUsed: number;
+      changes: number;
+      estimatedChanges: number;
+      missing: Set<string>;
+    }
+  >();
   for (const e of entries) {
-    const g = groups.get(e[groupBy]) ?? { advanceM: 0, partsCost: 0, labourHours: 0, ringsUsed: 0 };
+    const g = groups.get(e[groupBy]) ?? {
+      advanceM: 0,
+      partsCost: 0,
+      labourHours: 0,
+      ringsUsed: 0,
+      changes: 0,
+      estimatedChanges: 0,
+      missing: new Set<string>(),
+    };
     g.advanceM += e.advanceM;
     g.partsCost += e.partsCost;
     g.labourHours += e.labourHours;
     g.ringsUsed += e.ringsUsed;
+    g.changes += e.changes ?? 0;
+    g.estimatedChanges += e.estimatedChanges ?? 0;
+    for (const m of e.missingPrices ?? []) g.missing.add(m);
     groups.set(e[groupBy], g);
   }
   return [...groups]
@@ -70,6 +153,9 @@ export function cutterCostBy(
         costPerM: bored ? totalCost / g.advanceM : null,
         costPerM3: bored ? totalCost / m3 : null,
         ringsPer1000M3: bored ? (g.ringsUsed / m3) * 1000 : null,
+        changes: g.changes,
+        estimatedChanges: g.estimatedChanges,
+        missingPrices: [...g.missing].sort(),
       };
     });
 }

@@ -14,7 +14,11 @@ export interface LeadTimeDemand {
 
 export interface OrderSuggestionInput {
   onHandUnits: number;
-  /** Open orders due within the lead time. */
+  /**
+   * Every open order's outstanding quantity, whatever its due date: an order on the way always
+   * counts (one due after the lead time must still stop the same quantity being suggested again),
+   * plus anything else certain to come back (e.g. rebuilt cutters due within the lead time).
+   */
   onOrderUnits: number;
   /** Projected demand over the lead time (e.g. from the parts projection). */
   projectedDemandUnits: number;
@@ -80,4 +84,79 @@ export function suggestOrder(input: OrderSuggestionInput): OrderSuggestion {
   if (wholeShortfall <= 0) return { inventoryPositionUnits, requiredUnits, orderUnits: 0 };
   const orderUnits = Math.ceil(Math.max(wholeShortfall, input.minOrderUnits) / multiple) * multiple;
   return { inventoryPositionUnits, requiredUnits, orderUnits };
+}
+
+/** One week of a part's projection, as far as the order suggestion needs it. */
+export interface ProjectedWeek {
+  demand: number;
+  /** Rebuilt cutters back in ready stock this week (0 for parts that are not assemblies). */
+  rebuildReturns: number;
+}
+
+export interface WeeklyOrderInput {
+  /** Week 0 first; at least one week. */
+  weeks: readonly ProjectedWeek[];
+  onHandUnits: number;
+  /** Outstanding quantity of every open order line of the part, whatever its due date. */
+  openOrderUnits: number;
+  leadTimeWeeks: number;
+  leadTimeSdWeeks: number;
+  z: number;
+  minOrderUnits: number;
+}
+
+export interface WeeklyOrderSuggestion extends OrderSuggestion {
+  meanWeeklyDemand: number;
+  /** Population standard deviation of the weekly demand over the horizon. */
+  weeklyDemandSd: number;
+  safetyStockUnits: number;
+  reorderPointUnits: number;
+  /** Whole weeks the order must bridge: the lead time rounded up, at least 1. */
+  windowWeeks: number;
+  /** Demand in the window; weeks beyond the horizon count at the mean. */
+  leadTimeDemandUnits: number;
+  /** Rebuilt cutters back within the window. */
+  rebuildsBackUnits: number;
+}
+
+/**
+ * The order suggestion of one part from its weekly projection (DOMAIN.md §6, in weeks): safety stock
+ * and reorder point from the mean and spread of the weekly demand and the lead time with its
+ * spread; the order covers the lead-time window's demand plus safety stock beyond what is on hand,
+ * on order (every open order, whatever its due date) and rebuilt within the window.
+ */
+export function suggestOrderFromWeeks(input: WeeklyOrderInput): WeeklyOrderSuggestion {
+  const n = input.weeks.length;
+  if (n < 1) throw new RangeError('the projection needs at least one week');
+  if (!(input.openOrderUnits >= 0)) throw new RangeError('open order units must be non-negative');
+  const mean = input.weeks.reduce((s, w) => s + w.demand, 0) / n;
+  const sd = Math.sqrt(input.weeks.reduce((s, w) => s + (w.demand - mean) ** 2, 0) / n);
+  const demand: LeadTimeDemand = {
+    meanDemandPerPeriod: mean,
+    demandSdPerPeriod: sd,
+    leadTimePeriods: input.leadTimeWeeks,
+    leadTimeSdPeriods: input.leadTimeSdWeeks,
+  };
+  const safety = safetyStockUnits(demand, input.z);
+  const windowWeeks = Math.max(1, Math.ceil(input.leadTimeWeeks - 1e-9));
+  const inWindow = input.weeks.slice(0, windowWeeks);
+  const leadTimeDemandUnits = inWindow.reduce((s, w) => s + w.demand, 0) + Math.max(0, windowWeeks - n) * mean;
+  const rebuildsBackUnits = inWindow.reduce((s, w) => s + w.rebuildReturns, 0);
+  const s = suggestOrder({
+    onHandUnits: input.onHandUnits,
+    onOrderUnits: input.openOrderUnits + rebuildsBackUnits,
+    projectedDemandUnits: leadTimeDemandUnits,
+    safetyStockUnits: safety,
+    minOrderUnits: input.minOrderUnits,
+  });
+  return {
+    ...s,
+    meanWeeklyDemand: mean,
+    weeklyDemandSd: sd,
+    safetyStockUnits: safety,
+    reorderPointUnits: reorderPointUnits(demand, input.z),
+    windowWeeks,
+    leadTimeDemandUnits,
+    rebuildsBackUnits,
+  };
 }

@@ -111,6 +111,39 @@ export const purchaseOrderInputSchema = z.object({
 });
 export type PurchaseOrderInput = z.infer<typeof purchaseOrderInputSchema>;
 
+/**
+ * Several purchase orders saved together (e.g. filled from the suggestions): one per supplier, each
+ * with its own number. Saved in one transaction: all or none.
+ */
+export const purchaseOrderBatchInputSchema = z
+  .object({
+    orders: z.array(purchaseOrderInputSchema).min(1, 'Send at least one order.').max(50, 'Save at most 50 orders at once.'),
+  })
+  .superRefine((batch, ctx) => {
+    const numbers = new Map<string, number>();
+    const suppliers = new Map<string, number>();
+    batch.orders.forEach((o, i) => {
+      const n = numbers.get(o.number);
+      if (n !== undefined)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['orders', i, 'number'],
+          message: `Orders ${n + 1} and ${i + 1} have the same number ${o.number}.`,
+        });
+      else numbers.set(o.number, i);
+      const key = o.supplier.trim().toLowerCase();
+      const sup = suppliers.get(key);
+      if (sup !== undefined)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['orders', i, 'supplier'],
+          message: `Orders ${sup + 1} and ${i + 1} go to the same supplier (${o.supplier || 'none given'}): put their lines in one order.`,
+        });
+      else suppliers.set(key, i);
+    });
+  });
+export type PurchaseOrderBatchInput = z.infer<typeof purchaseOrderBatchInputSchema>;
+
 export const receiveLineInputSchema = z.object({
   qty: z.number({ message: 'Enter the quantity received.' }).int('Receive whole units.').min(1, 'Receive at least 1.').max(1_000_000),
   note: freeText('The note', 500).default(''),
@@ -190,8 +223,9 @@ export interface OrderSuggestion {
   /** Whole weeks the order must bridge (lead time rounded up, at least 1). */
   leadTimeWindowWeeks: number;
   leadTimeDemand: number;
-  /** Receipts and rebuilt cutters back within the lead-time window. */
-  dueWithinLeadTime: number;
+  /** Rebuilt cutters back within the lead-time window. */
+  rebuildsWithinLeadTime: number;
+  /** On hand + every open order (whatever its due date) + rebuilt cutters back within the window. */
   inventoryPosition: number;
   orderQty: number;
   orderNow: boolean;

@@ -19,6 +19,7 @@ import { addMember, makeProject, makeUser, signedInAgent, uniq } from '../suppor
 import { springEvents, springStrokes } from '../support/downtime-fixtures';
 import { ensureDefaultCauses } from '../../server/services/downtime';
 import { csvLines } from '../support/csv';
+import { insertStop } from '../support/stops-fixtures';
 
 const app: Express = createApp();
 type Agent = Awaited<ReturnType<typeof signedInAgent>>;
@@ -467,5 +468,75 @@ describe('cutter cost', () => {
     const labourOnly = (await agent.get(url('/cost?from=2026-03-23&to=2026-03-29'))).body;
     expect(labourOnly.total).toMatchObject({ partsCost: 0, labourCost: 240, totalCost: 240 });
     expect(labourOnly).toMatchObject({ unpricedParts: 3, currency: null });
+    // The row names the prices it lacks instead of showing parts at 0 (issue 16).
+    expect(labourOnly.byWeek[0]).toMatchObject({ changes: 2, missingPrices: ['17″ cutter assembly', '17″ ring', '17″ seal kit'] });
+  });
+
+  it('costs a change the workshop has not finished in the week it happened, as an estimated rebuild with a new ring', async () => {
+    const { project, agent, url } = await driveWithManager();
+    const [c17, c19] = await db
+      .insert(cutters)
+      .values([
+        { projectId: project.id, serial: uniq('C'), discSizeIn: 17 },
+        { projectId: project.id, serial: uniq('D'), discSizeIn: 19 },
+      ])
+      .returning();
+    // Two changes on Wed 2026-03-25 (W13); neither has a workshop outcome yet. Only a 17″ ring is priced.
+    const at = new Date('2026-03-25T10:00:00+01:00');
+    await db.insert(cutterEvents).values([
+      { projectId: project.id, cutterId: c17.id, kind: 'removed', at, details: { chainageM: 50 } },
+      { projectId: project.id, cutterId: c19.id, kind: 'removed', at, details: { chainageM: 50 } },
+    ]);
+    await db
+      .insert(parts)
+      .values({ projectId: project.id, code: 'R17', name: 'R17', kind: 'ring', discSizeIn: 17, unitCost: '400.00', leadTimeMeanDays: 30 });
+    const c = (await agent.get(url('/cost?from=2026-03-23&to=2026-03-29'))).body;
+    // derived: rule of changePartsCost — each unfinished change is one ring; 17″ at 400, 19″ has no price.
+    expect(c.byWeek).toHaveLength(1);
+    expect(c.byWeek[0]).toMatchObject({
+      key: '2026-W13',
+      partsCost: 400,
+      changes: 2,
+      estimatedChanges: 2,
+      missingPrices: ['19″ ring'],
+    });
+    expect(c.unpricedParts).toBe(1);
+  });
+});
+
+describe('events ahead (issue 16)', () => {
+  it('refuses a future event unless it belongs to a planned stop, and keeps the default period on the data up to today', async () => {
+    const ctx = await driveWithManager();
+    for (const e of springEvents) {
+      const res = await ctx.agent.post(ctx.url('/events')).send({ startAt: e.startAt, endAt: e.endAt, causeId: ctx.causeId(e.cause) });
+      expect(res.status, JSON.stringify(res.body)).toBe(201);
+    }
+    const ahead = {
+      startAt: new Date(Date.now() + 20 * 86_400_000).toISOString(),
+      endAt: new Date(Date.now() + 21 * 86_400_000).toISOString(),
+    };
+    const before = await snapshot(ctx.project.id);
+    const refused = await ctx.agent.post(ctx.url('/events')).send({ ...ahead, causeId: ctx.causeId('Cutter change') });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.message).toMatch(/after now .*only for a planned stop: link the event to that stop/);
+    expect(refused.body.error.issues[0].path).toBe('endAt');
+    // A stop already done or cancelled is no planned stop.
+    const cancelled = await insertStop(ctx.project.id, { status: 'cancelled' });
+    const toCancelled = await ctx.agent.post(ctx.url('/events')).send({ ...ahead, stopId: cancelled.id });
+    expect(toCancelled.status).toBe(400);
+    expect(await snapshot(ctx.project.id)).toEqual(before);
+
+    const planned = await insertStop(ctx.project.id, { status: 'scheduled', plannedStart: new Date(ahead.startAt), expectedHours: 24 });
+    const accepted = await ctx.agent.post(ctx.url('/events')).send({ ...ahead, stopId: planned.id, causeId: ctx.causeId('Cutter change') });
+    expect(accepted.status, JSON.stringify(accepted.body)).toBe(201);
+
+    // derived (fixture): the last spring event ends Sun 2026-03-29 in site time; eight ISO weeks back start Mon 2026-02-02.
+    // The event ahead (after today, 2026-12 or later on this machine's clock) must not move the default period.
+    const events = await ctx.agent.get(ctx.url('/events'));
+    expect(events.body).toMatchObject({ from: '2026-02-02', to: '2026-03-29' });
+    const report = await ctx.agent.get(ctx.url('/report'));
+    expect(report.body).toMatchObject({ from: '2026-02-02', to: '2026-03-29' });
+    const cost = await ctx.agent.get(ctx.url('/cost'));
+    expect(cost.body).toMatchObject({ from: '2026-02-02', to: '2026-03-29' });
   });
 });

@@ -313,7 +313,7 @@ export const routeTable: RouteCase[] = [
     roles: ['site_manager', 'planner'],
     okStatus: 201,
     body: () => {
-      const startMs = Date.UTC(2027, 0, 1) + matrixEvents++ * 3_600_000;
+      const startMs = Date.UTC(2025, 0, 1) + matrixEvents++ * 3_600_000; // in the past: future events need a planned stop
       return { startAt: new Date(startMs).toISOString(), endAt: new Date(startMs + 1_800_000).toISOString() };
     },
   },
@@ -324,7 +324,7 @@ export const routeTable: RouteCase[] = [
     roles: ['site_manager', 'planner'],
     prepare: freshEvent,
     body: () => {
-      const startMs = Date.UTC(2027, 0, 1) + (matrixEvents - 1) * 3_600_000 + 900_000;
+      const startMs = Date.UTC(2025, 0, 1) + (matrixEvents - 1) * 3_600_000 + 900_000;
       return { startAt: new Date(startMs).toISOString(), endAt: new Date(startMs + 1_800_000).toISOString() };
     },
   },
@@ -388,6 +388,19 @@ export const routeTable: RouteCase[] = [
     okStatus: 201,
     prepare: partsRecords,
     body: (c) => ({ number: uniq('PO'), lines: [{ partId: c.partId, qtyOrdered: 5, dueDate: '2027-03-01' }] }),
+  },
+  {
+    method: 'post',
+    path: '/api/projects/:projectId/parts/orders/batch',
+    roles: ['buyer'],
+    okStatus: 201,
+    prepare: partsRecords,
+    body: (c) => ({
+      orders: [
+        { number: uniq('PO'), supplier: 'Matrix A', lines: [{ partId: c.partId, qtyOrdered: 5, dueDate: '2027-03-01' }] },
+        { number: uniq('PO'), supplier: 'Matrix B', lines: [{ partId: c.partId, qtyOrdered: 2, dueDate: '2027-03-08' }] },
+      ],
+    }),
   },
   {
     method: 'get',
@@ -503,7 +516,7 @@ async function freshCause({ projectId }: RouteContext): Promise<Partial<RouteCon
 async function freshEvent({ projectId }: RouteContext): Promise<Partial<RouteContext>> {
   const { db } = await import('../../server/db/client');
   const { downtimeEvents } = await import('../../server/db/schema');
-  const startMs = Date.UTC(2027, 0, 1) + matrixEvents++ * 3_600_000;
+  const startMs = Date.UTC(2025, 0, 1) + matrixEvents++ * 3_600_000; // in the past: future events need a planned stop
   const [e] = await db
     .insert(downtimeEvents)
     .values({ projectId, startAt: new Date(startMs), endAt: new Date(startMs + 1_800_000) })

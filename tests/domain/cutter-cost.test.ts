@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { type CutterCostEntry, cutterCostBy, excavatedM3, faceAreaM2 } from '../../shared/domain/cutter-cost';
+import {
+  type ChangePartKind,
+  changePartsCost,
+  type CutterCostEntry,
+  cutterCostBy,
+  excavatedM3,
+  faceAreaM2,
+} from '../../shared/domain/cutter-cost';
 
 describe('face area and excavated volume', () => {
   it('gives π·D²/4 and area × advance', () => {
@@ -56,5 +63,68 @@ describe('cutterCostBy', () => {
     expect(w12.costPerM).toBeNull();
     expect(w12.costPerM3).toBeNull();
     expect(w12.ringsPer1000M3).toBeNull();
+  });
+});
+
+describe('changePartsCost: every change uses parts', () => {
+  // Invented prices of one disc size: ring 400, bearing kit 900, seal kit 150, assembly 2400.
+  const prices: Record<ChangePartKind, number> = { ring: 400, 'bearing-kit': 900, 'seal-kit': 150, 'cutter-assembly': 2400 };
+  const all = (kind: ChangePartKind) => prices[kind];
+
+  it('costs a rebuild by what was renewed, a scrap as a new assembly (hand-worked)', () => {
+    // derived: ring 400 + seal kit 150 = 550, one ring used
+    expect(changePartsCost({ kind: 'rebuilt', newRing: true, newBearings: false, newSeals: true }, all)).toEqual({
+      partsCost: 550,
+      ringsUsed: 1,
+      missing: [],
+      estimated: false,
+    });
+    // derived: bearings only: 900, no ring used
+    expect(changePartsCost({ kind: 'rebuilt', newRing: false, newBearings: true, newSeals: false }, all)).toMatchObject({
+      partsCost: 900,
+      ringsUsed: 0,
+    });
+    // derived: the new assembly 2400; its ring counts as used
+    expect(changePartsCost({ kind: 'scrapped' }, all)).toMatchObject({ partsCost: 2400, ringsUsed: 1, estimated: false });
+  });
+
+  it('costs a change whose outcome is not recorded as a rebuild with a new ring, marked estimated', () => {
+    // common practice, no source: a rebuild at least renews the ring → 400
+    expect(changePartsCost({ kind: 'not-recorded' }, all)).toEqual({ partsCost: 400, ringsUsed: 1, missing: [], estimated: true });
+  });
+
+  it('names the kinds without a price instead of costing them at 0', () => {
+    const noSeals = (kind: ChangePartKind) => (kind === 'seal-kit' ? null : prices[kind]);
+    // derived: ring 400 priced, seal kit missing → 400 and the seal kit named
+    expect(changePartsCost({ kind: 'rebuilt', newRing: true, newBearings: false, newSeals: true }, noSeals)).toMatchObject({
+      partsCost: 400,
+      missing: ['seal-kit'],
+    });
+    expect(changePartsCost({ kind: 'not-recorded' }, () => null)).toMatchObject({ partsCost: 0, missing: ['ring'], estimated: true });
+  });
+
+  it('groups changes, estimates and missing prices by week', () => {
+    const rows = cutterCostBy(
+      [
+        {
+          week: 'W1',
+          groundType: 'g',
+          advanceM: 5,
+          partsCost: 400,
+          labourHours: 2,
+          ringsUsed: 1,
+          changes: 1,
+          estimatedChanges: 1,
+          missingPrices: [],
+        },
+        { week: 'W1', groundType: 'g', advanceM: 0, partsCost: 0, labourHours: 0, ringsUsed: 0, changes: 1, missingPrices: ['19″ ring'] },
+        { week: 'W1', groundType: 'g', advanceM: 0, partsCost: 0, labourHours: 0, ringsUsed: 0, changes: 1, missingPrices: ['19″ ring'] },
+      ],
+      'week',
+      6.2,
+      60,
+    );
+    // derived: 3 changes, 1 estimated, the missing price named once
+    expect(rows[0]).toMatchObject({ changes: 3, estimatedChanges: 1, missingPrices: ['19″ ring'], partsCost: 400 });
   });
 });

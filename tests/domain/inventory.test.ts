@@ -1,6 +1,6 @@
 import quantile from '@stdlib/stats-base-dists-normal-quantile';
 import { describe, expect, it } from 'vitest';
-import { reorderPointUnits, safetyStockUnits, serviceLevelZ, suggestOrder } from '../../shared/domain/inventory';
+import { reorderPointUnits, safetyStockUnits, serviceLevelZ, suggestOrder, suggestOrderFromWeeks } from '../../shared/domain/inventory';
 
 describe('serviceLevelZ', () => {
   it.each([0.9, 0.95, 0.99, 0.975, 0.5])('matches an independent normal quantile at %s', (level) => {
@@ -74,5 +74,59 @@ describe('suggestOrder', () => {
     expect(demand).toBeGreaterThan(3);
     const s = suggestOrder({ onHandUnits: 0, onOrderUnits: 0, projectedDemandUnits: demand, safetyStockUnits: 0, minOrderUnits: 1 });
     expect(s.orderUnits).toBe(3);
+  });
+});
+
+describe('suggestOrderFromWeeks', () => {
+  // Hand-worked example (derived: DOMAIN.md §6 formulas worked on paper):
+  // weekly demand 4, 0, 2, 2 → d̄ = 8/4 = 2; σ_d = √((2² + 2² + 0 + 0)/4) = √2 = 1.414214.
+  // L = 2 weeks, σ_L = 0, z = 1.6449 → SS = z·σ_d·√L = 1.6449·√2·√2 = 3.2898; ROP = 2·2 + 3.2898 = 7.2898.
+  // Window = 2 weeks: demand 4 + 0 = 4; 1 rebuilt assembly back in week 1.
+  // 3 on hand, minimum order 6.
+  const weeks = [
+    { demand: 4, rebuildReturns: 0 },
+    { demand: 0, rebuildReturns: 1 },
+    { demand: 2, rebuildReturns: 0 },
+    { demand: 2, rebuildReturns: 0 },
+  ];
+  const base = { weeks, onHandUnits: 3, leadTimeWeeks: 2, leadTimeSdWeeks: 0, z: 1.6449, minOrderUnits: 6 };
+
+  it('works the example with nothing on order', () => {
+    const s = suggestOrderFromWeeks({ ...base, openOrderUnits: 0 });
+    expect(s.meanWeeklyDemand).toBe(2); // derived: 8 / 4
+    expect(s.weeklyDemandSd).toBeCloseTo(1.414214, 6); // derived: √2
+    expect(s.safetyStockUnits).toBeCloseTo(3.2898, 4); // derived: 1.6449 · 2
+    expect(s.reorderPointUnits).toBeCloseTo(7.2898, 4); // derived: 4 + 3.2898
+    expect(s.windowWeeks).toBe(2); // derived: ⌈2⌉
+    expect(s.leadTimeDemandUnits).toBe(4); // derived: 4 + 0
+    expect(s.rebuildsBackUnits).toBe(1); // derived: the one in week 1
+    expect(s.inventoryPositionUnits).toBe(4); // derived: 3 + 0 + 1
+    // derived: required 4 + 3.2898 = 7.2898; short 3.2898 → 4 whole units, raised to the minimum 6.
+    expect(s.orderUnits).toBe(6);
+  });
+
+  it('counts an order on the way whatever its due date, so the same parts are not suggested again', () => {
+    // derived: the 6 just ordered (due in week 9, after the 2-week window and the 4-week horizon) make
+    // the position 3 + 6 + 1 = 10 ≥ 7.2898 → nothing more to order.
+    const s = suggestOrderFromWeeks({ ...base, openOrderUnits: 6 });
+    expect(s.inventoryPositionUnits).toBe(10);
+    expect(s.orderUnits).toBe(0);
+    // derived: 2 on order → position 6, short 1.2898 → 2 units, raised to the minimum 6.
+    expect(suggestOrderFromWeeks({ ...base, openOrderUnits: 2 }).orderUnits).toBe(6);
+    // derived: 3 on order → position 7, short 0.2898 → still an order of at least 1, raised to 6.
+    expect(suggestOrderFromWeeks({ ...base, openOrderUnits: 3 }).orderUnits).toBe(6);
+    // derived: 4 on order → position 8 ≥ 7.2898 → none.
+    expect(suggestOrderFromWeeks({ ...base, openOrderUnits: 4 }).orderUnits).toBe(0);
+  });
+
+  it('fills a lead time beyond the horizon at the mean demand', () => {
+    // derived: L = 6 weeks over a 4-week horizon: window 6, demand 8 + 2 · 2 = 12.
+    const s = suggestOrderFromWeeks({ ...base, leadTimeWeeks: 6, openOrderUnits: 0 });
+    expect(s.windowWeeks).toBe(6);
+    expect(s.leadTimeDemandUnits).toBe(12);
+  });
+
+  it('refuses an empty projection', () => {
+    expect(() => suggestOrderFromWeeks({ ...base, weeks: [], openOrderUnits: 0 })).toThrow(RangeError);
   });
 });

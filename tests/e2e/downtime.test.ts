@@ -7,6 +7,9 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import { launchBrowser, serveApp, signInThroughForm } from '../support/browser';
 import { makeSpringDowntimeDrive } from '../support/downtime-fixtures';
 import { addMember, makeUser, PASSWORD } from '../support/fixtures';
+import { insertStop } from '../support/stops-fixtures';
+import { db } from '../../server/db/client';
+import { downtimeEvents } from '../../server/db/schema';
 
 let browser: Browser;
 let app: Awaited<ReturnType<typeof serveApp>>;
@@ -41,8 +44,14 @@ async function rowByHeader(page: Page, title: string, first: string): Promise<Re
   return Object.fromEntries(headers.map((h, i) => [h, cells[i]]));
 }
 
-it('the site manager opens the weekly downtime table', async () => {
+it('the site manager opens the weekly downtime table (a planned stop’s event ahead does not move the default period)', async () => {
   const project = await makeSpringDowntimeDrive();
+  // A planned stop's downtime ahead (the only future event the API accepts): it must not move the default period.
+  const aheadMs = Date.now() + 30 * 86_400_000;
+  const stop = await insertStop(project.id, { status: 'scheduled', plannedStart: new Date(aheadMs), expectedHours: 12 });
+  await db
+    .insert(downtimeEvents)
+    .values({ projectId: project.id, startAt: new Date(aheadMs), endAt: new Date(aheadMs + 12 * 3_600_000), stopId: stop.id });
   const manager = await makeUser();
   await addMember(project.id, manager.id, 'site_manager');
 
@@ -54,7 +63,7 @@ it('the site manager opens the weekly downtime table', async () => {
   // The site manager's 'Parts & downtime' group opens on Downtime (src/components/layout/nav-groups.ts).
   await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Parts & downtime' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Downtime');
-  // The two events of the fixture, in site time.
+  // The two events of the fixture, in site time; the planned stop's event ahead lies after the default period.
   expect(
     await page
       .getByRole('status')
@@ -64,7 +73,8 @@ it('the site manager opens the weekly downtime table', async () => {
 
   await page.getByRole('navigation', { name: 'Downtime' }).getByRole('link', { name: 'Report' }).click();
   await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 20_000 }).toBe('Downtime report');
-  // Without a period the report shows the eight ISO weeks up to the last day with data (Sun 2026-03-29).
+  // Without a period the report shows the eight ISO weeks up to the last day with data up to today (Sun 2026-03-29),
+  // even with the planned stop's event ahead.
   expect(await page.getByLabel('From').inputValue()).toBe('2026-02-02');
   expect(await page.getByLabel('To (included)').inputValue()).toBe('2026-03-29');
 

@@ -1,6 +1,7 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type {
   PartInput,
+  PurchaseOrderBatchInput,
   PurchaseOrderInput,
   ReceiveLineInput,
   StockCountInput,
@@ -73,3 +74,9 @@ export const useReceiveLine = (projectId: string) =>
   usePartsMutation(projectId, ({ line, input }: { line: OrderLine; input: ReceiveLineInput }) => receiveLine(projectId, line, input));
 export const useSaveWorkshop = (projectId: string) =>
   usePartsMutation(projectId, (input: WorkshopSettingsInput) => saveWorkshop(projectId, input));
+
+/** Several orders in one transaction, one per supplier (POST parts/orders/batch). */
+export const createOrders = (projectId: string, input: PurchaseOrderBatchInput) =>
+  api<PurchaseOrder[]>('POST', `${base(projectId)}/orders/batch`, input);
+export const useCreateOrders = (projectId: string) =>
+  usePartsMutation(projectId, (input: PurchaseOrderBatchInput) => createOrders(projectId, input));

@@ -20,11 +20,25 @@ const costColumns = (keyHeader: string, unit: string) => [
   col.accessor('key', { header: keyHeader }),
   col.accessor((r) => round(r.advanceM, 1), { id: 'advanceM', meta: { csvDecimals: 1 }, header: 'Advance (m)' }),
   col.accessor((r) => round(r.excavatedM3, 0), { id: 'excavatedM3', meta: { csvDecimals: 0 }, header: 'Excavated (m³)' }),
+  col.accessor('changes', { meta: { csvDecimals: 0 }, header: 'Changes' }),
   col.accessor((r) => round(r.partsCost, 2), {
     id: 'partsCost',
     meta: { csvDecimals: 2 },
     header: `Parts${unit}`,
-    cell: ({ getValue }) => money(getValue()),
+    // Never a bare 0 for a week with changes: name the prices missing and the estimated changes.
+    cell: ({ row, getValue }) => (
+      <span>
+        {money(getValue())}
+        {row.original.estimatedChanges > 0 && (
+          <span className="block text-caption text-basalt-700">
+            {row.original.estimatedChanges} not yet back from the workshop: estimated
+          </span>
+        )}
+        {row.original.missingPrices.length > 0 && (
+          <span className="block text-caption font-semibold text-caution-700">No price: {row.original.missingPrices.join(', ')}</span>
+        )}
+      </span>
+    ),
   }),
   col.accessor((r) => round(r.labourCost, 2), {
     id: 'labourCost',
@@ -100,7 +114,8 @@ export function CutterCostRoute() {
       )}
       {c.unpricedParts > 0 && (
         <Alert tone="caution" title={`${c.unpricedParts} part(s) used by the workshop have no price in the parts catalogue.`}>
-          They are not counted; the cost shown is labour{c.currency ? ' and the priced parts' : ''} only.
+          They are not counted; the cost shown is labour{c.currency ? ' and the priced parts' : ''} only. Each row names the parts it lacks
+          a price for; add them in Parts → Catalogue.
         </Alert>
       )}
       <Panel title="By week">

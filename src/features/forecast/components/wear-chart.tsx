@@ -38,7 +38,7 @@ export function WearChart({ report, groundTypeId }: { report: WearFitReport; gro
       <div
         className="h-96 w-full"
         role="img"
-        aria-label={`Measured wear against km rolled in ${ground?.name ?? 'this ground'}: ${points.length} inspections, fitted rate ${formatRate(rate)} mm/km for a face disc`}
+        aria-label={`Measured wear against km rolled in ${ground?.name ?? 'this ground'}: ${points.length} inspections in this ground alone, fitted rate ${formatRate(rate)} mm/km for a face disc`}
       >
         <ResponsiveContainer width="100%" height="100%">
           <ComposedChart margin={{ top: 16, right: 24, bottom: 24, left: 8 }}>

@@ -84,7 +84,12 @@ const rateColumns = [
       </span>
     ),
   }),
-  col.accessor((g) => g.rate?.observationCount ?? 0, { id: 'n', meta: { csvDecimals: 0 }, header: 'Inspections' }),
+  // Two counts, two names (issue 16): the fit uses every inspection whose disc rolled here, the chart only those that rolled nowhere else.
+  col.accessor((g) => g.rate?.observationCount ?? 0, {
+    id: 'n',
+    meta: { csvDecimals: 0 },
+    header: 'Inspections in the fit (rolled here, alone or with other ground)',
+  }),
   col.accessor(sourceText, { id: 'source', header: 'Source' }),
   col.accessor(noteText, { id: 'note', header: 'Note', cell: ({ getValue }) => <span className="block min-w-56">{getValue()}</span> }),
 ];
@@ -181,11 +186,16 @@ export function WearFitsRoute() {
               <SelectField label="Ground type" value={groundId} onChange={(e) => setChosen(e.target.value)}>
                 {charted.map(({ ground, count }) => (
                   <option key={ground.id} value={ground.id}>
-                    {ground.name} ({whole(count)} inspections)
+                    {ground.name} ({whole(count)} inspections in this ground alone)
                   </option>
                 ))}
               </SelectField>
             </div>
+            <p className="max-w-prose text-caption text-basalt-700">
+              The chart shows only inspections of discs that rolled in this one ground since they were fitted, so it can count fewer than
+              the table: the fit also uses discs that rolled here and in other ground, their wear read as each ground’s rate times the km
+              rolled in it.
+            </p>
             <WearChart report={report} groundTypeId={groundId} />
           </div>
         )}

@@ -1,5 +1,8 @@
+import { zodResolver } from '@hookform/resolvers/zod';
 import { createColumnHelper } from '@tanstack/react-table';
-import { useState, type FormEvent } from 'react';
+import { useState } from 'react';
+import { useFieldArray, useForm, useWatch } from 'react-hook-form';
+import { z } from 'zod';
 import { purchaseOrderInputSchema, receiveLineInputSchema } from '../../../../shared/schemas/parts';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
@@ -8,8 +11,9 @@ import { SelectField, TextField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
 import { formatSiteDate } from '../../../../shared/site-time';
-import { useCreateOrder, useReceiveLine, type CataloguePart, type OrderLine, type PurchaseOrder } from '../api';
-import type { OrderSuggestion } from '../../../../shared/schemas/parts';
+import { useCreateOrders, useReceiveLine, type CataloguePart, type OrderLine, type PurchaseOrder } from '../api';
+import { serverErrors } from '../../../lib/form';
+import type { OrderSuggestion, PurchaseOrderInput } from '../../../../shared/schemas/parts';
 
 const lineCol = createColumnHelper<OrderLine>();
 /** An order's lines; `receiving` adds the column to receive an open line into stock. */
@@ -136,16 +140,43 @@ export function OrderList({
   );
 }
 
-interface DraftLine {
-  partId: string;
-  qty: string;
-  dueDate: string;
-}
+const orderLineSchema = purchaseOrderInputSchema.shape.lines.element;
+/** The form: number, note and lines; each line's supplier comes from the part's catalogue entry. */
+const orderFormSchema = z.object({
+  number: purchaseOrderInputSchema.shape.number,
+  note: purchaseOrderInputSchema.shape.note,
+  lines: z.array(orderLineSchema).min(1, 'An order needs at least one line.').max(200),
+});
+type OrderFormIn = z.input<typeof orderFormSchema>;
+type OrderFormOut = z.output<typeof orderFormSchema>;
 
 const addDays = (isoDate: string, days: number) =>
   new Date(Date.parse(`${isoDate}T00:00:00Z`) + Math.round(days) * 86_400_000).toISOString().slice(0, 10);
 
-/** A new purchase order; "Fill from the suggestions" puts in every part to order now, due after its lead time. */
+/**
+ * The orders a form saves: its lines split by the supplier of each part in the catalogue, one order
+ * each; with more than one supplier the numbers get -1, -2, … in supplier order.
+ */
+function splitBySupplier(form: OrderFormOut, parts: readonly CataloguePart[]): PurchaseOrderInput[] {
+  const supplierOf = new Map(parts.map((p) => [p.id, p.supplier.trim()]));
+  const groups = new Map<string, PurchaseOrderInput['lines']>();
+  for (const l of form.lines) {
+    const supplier = supplierOf.get(l.partId) ?? '';
+    groups.set(supplier, [...(groups.get(supplier) ?? []), l]);
+  }
+  const suppliers = [...groups.keys()].sort((a, b) => a.localeCompare(b));
+  return suppliers.map((supplier, i) => ({
+    number: suppliers.length === 1 ? form.number : `${form.number}-${i + 1}`,
+    supplier,
+    note: form.note,
+    lines: groups.get(supplier)!,
+  }));
+}
+
+/**
+ * A new purchase order; "Fill from the suggestions" puts in every part to order now, due after its
+ * lead time. Lines of different suppliers save as one order per supplier, in one transaction.
+ */
 export function NewOrder({
   projectId,
   parts,
@@ -157,56 +188,53 @@ export function NewOrder({
   suggestions: OrderSuggestion[];
   today: string;
 }) {
-  const create = useCreateOrder(projectId);
-  const blank = (): DraftLine => ({ partId: parts[0]?.id ?? '', qty: '', dueDate: addDays(today, parts[0]?.leadTimeMeanDays ?? 14) });
-  const [number, setNumber] = useState('');
-  const [supplier, setSupplier] = useState('');
-  const [note, setNote] = useState('');
-  const [lines, setLines] = useState<DraftLine[]>([blank()]);
+  const create = useCreateOrders(projectId);
+  // An empty quantity box (not "NaN"): the schema names the missing quantity when the form is sent.
+  const blank = () => ({
+    partId: parts[0]?.id ?? '',
+    qtyOrdered: undefined as unknown as number,
+    dueDate: addDays(today, parts[0]?.leadTimeMeanDays ?? 14),
+  });
+  const form = useForm<OrderFormIn, unknown, OrderFormOut>({
+    resolver: zodResolver(orderFormSchema),
+    defaultValues: { number: '', note: '', lines: [blank()] },
+  });
+  const { fields, append, remove, replace } = useFieldArray({ control: form.control, name: 'lines' });
   const [message, setMessage] = useState<{ tone: 'success' | 'error'; text: string; issues?: string[] } | null>(null);
   const toOrder = suggestions.filter((s) => s.orderNow);
+  const errors = form.formState.errors;
+  const watched = useWatch({ control: form.control, name: 'lines' });
+  const number = useWatch({ control: form.control, name: 'number' });
+  const preview = splitBySupplier({ number: number || '…', note: '', lines: (watched ?? []) as OrderFormOut['lines'] }, parts);
 
-  const fill = () => {
-    setLines(toOrder.map((s) => ({ partId: s.partId, qty: String(s.orderQty), dueDate: addDays(today, s.leadTimeWeeks * 7) })));
-    const suppliers = [...new Set(toOrder.map((s) => s.supplier).filter(Boolean))];
-    if (suppliers.length === 1) setSupplier(suppliers[0]);
-  };
-  const setLine = (i: number, patch: Partial<DraftLine>) => setLines((ls) => ls.map((l, k) => (k === i ? { ...l, ...patch } : l)));
+  const fill = () =>
+    replace(toOrder.map((s) => ({ partId: s.partId, qtyOrdered: s.orderQty, dueDate: addDays(today, s.leadTimeWeeks * 7) })));
 
-  const onSubmit = async (e: FormEvent) => {
-    e.preventDefault();
-    setMessage(null);
-    const parsed = purchaseOrderInputSchema.safeParse({
-      number,
-      supplier,
-      note,
-      lines: lines.map((l) => ({ partId: l.partId, qtyOrdered: Number(l.qty), dueDate: l.dueDate })),
-    });
-    if (!parsed.success) {
-      setMessage({
-        tone: 'error',
-        text: 'The order needs attention; nothing was saved.',
-        issues: parsed.error.issues.map((i) => (i.path.length > 1 ? `Line ${Number(i.path[1]) + 1}: ${i.message}` : i.message)),
-      });
-      return;
-    }
-    try {
-      const order = await create.mutateAsync(parsed.data);
-      setMessage({ tone: 'success', text: `Order ${order.number} saved with ${order.lines.length} line(s).` });
-      setNumber('');
-      setNote('');
-      setLines([blank()]);
-    } catch (err) {
-      setMessage({ tone: 'error', text: err instanceof ApiError ? err.message : 'Saving failed. Try again.' });
-    }
-  };
+  const onSubmit = form.handleSubmit(
+    async (values) => {
+      setMessage(null);
+      const orders = splitBySupplier(values, parts);
+      try {
+        const saved = await create.mutateAsync({ orders });
+        setMessage({
+          tone: 'success',
+          text: `Saved ${saved.map((o) => `order ${o.number} (${o.supplier || 'no supplier given'}, ${o.lines.length} line(s))`).join(', ')}.`,
+        });
+        form.reset({ number: '', note: '', lines: [blank()] });
+      } catch (err) {
+        const failure = serverErrors(err, form.setError, 'Saving failed. Try again.');
+        setMessage({ tone: 'error', text: failure.text, issues: failure.issues.map((i) => i.message) });
+      }
+    },
+    () => setMessage({ tone: 'error', text: 'The order needs attention; nothing was saved.' }),
+  );
 
   return (
     <Panel title="New purchase order">
       <form onSubmit={onSubmit} noValidate className="space-y-4">
         {message && (
           <Alert tone={message.tone} title={message.text}>
-            {message.issues && (
+            {message.issues && message.issues.length > 0 && (
               <ul className="list-disc pl-5">
                 {message.issues.map((i) => (
                   <li key={i}>{i}</li>
@@ -215,41 +243,50 @@ export function NewOrder({
             )}
           </Alert>
         )}
-        <div className="grid gap-4 md:grid-cols-3">
-          <TextField label="Order number" value={number} onChange={(e) => setNumber(e.target.value)} />
-          <TextField label="Supplier" value={supplier} onChange={(e) => setSupplier(e.target.value)} />
-          <TextField label="Note (optional)" value={note} onChange={(e) => setNote(e.target.value)} />
+        <div className="grid gap-4 md:grid-cols-2">
+          <TextField label="Order number" error={errors.number?.message} {...form.register('number')} />
+          <TextField label="Note (optional)" error={errors.note?.message} {...form.register('note')} />
         </div>
+        <p className="max-w-prose text-basalt-700">
+          Each line goes to the supplier of its part in the catalogue. Lines of several suppliers save as one order per supplier.
+        </p>
         <fieldset className="space-y-3">
           <legend className="font-semibold">Lines</legend>
-          {lines.map((l, i) => (
-            <div key={i} className="grid gap-3 rounded-md border border-basalt-200 p-3 md:grid-cols-[2fr_1fr_1fr_auto] md:items-end">
-              <SelectField label={`Part, line ${i + 1}`} value={l.partId} onChange={(e) => setLine(i, { partId: e.target.value })}>
+          {errors.lines?.root?.message && <p className="font-semibold text-alarm-700">{errors.lines.root.message}</p>}
+          {fields.map((field, i) => (
+            <div
+              key={field.id}
+              className="grid gap-3 rounded-md border border-basalt-200 p-3 md:grid-cols-[2fr_1fr_1fr_auto] md:items-start"
+            >
+              <SelectField label={`Part, line ${i + 1}`} error={errors.lines?.[i]?.partId?.message} {...form.register(`lines.${i}.partId`)}>
                 {parts.map((p) => (
                   <option key={p.id} value={p.id}>
                     {p.code} — {p.name}
+                    {p.supplier ? ` (${p.supplier})` : ''}
                   </option>
                 ))}
               </SelectField>
               <TextField
                 label={`Quantity, line ${i + 1}`}
                 inputMode="numeric"
-                value={l.qty}
-                onChange={(e) => setLine(i, { qty: e.target.value })}
+                error={errors.lines?.[i]?.qtyOrdered?.message}
+                {...form.register(`lines.${i}.qtyOrdered`, { valueAsNumber: true })}
               />
               <TextField
                 label={`Due, line ${i + 1}`}
                 type="date"
-                value={l.dueDate}
-                onChange={(e) => setLine(i, { dueDate: e.target.value })}
+                error={errors.lines?.[i]?.dueDate?.message}
+                {...form.register(`lines.${i}.dueDate`)}
               />
-              <Button variant="ghost" onClick={() => setLines((ls) => ls.filter((_, k) => k !== i))} disabled={lines.length === 1}>
-                Remove
-              </Button>
+              <div className="md:pt-8">
+                <Button variant="ghost" onClick={() => remove(i)} disabled={fields.length === 1}>
+                  Remove
+                </Button>
+              </div>
             </div>
           ))}
           <div className="flex flex-wrap gap-2">
-            <Button variant="secondary" onClick={() => setLines((ls) => [...ls, blank()])}>
+            <Button variant="secondary" onClick={() => append(blank())}>
               Add a line
             </Button>
             <Button variant="secondary" onClick={fill} disabled={toOrder.length === 0}>
@@ -257,7 +294,18 @@ export function NewOrder({
             </Button>
           </div>
         </fieldset>
-        <Button type="submit">Save the order</Button>
+        <p className="text-basalt-700">
+          Saves as{' '}
+          {preview
+            .map(
+              (o) => `order ${o.number} to ${o.supplier || 'no supplier given'} (${o.lines.length} line${o.lines.length === 1 ? '' : 's'})`,
+            )
+            .join('; ')}
+          .
+        </p>
+        <Button type="submit" disabled={create.isPending}>
+          {preview.length > 1 ? `Save the ${preview.length} orders` : 'Save the order'}
+        </Button>
       </form>
     </Panel>
   );
