@@ -80,6 +80,7 @@ export interface CutterLife {
     kind: string;
     positionId: string | null;
     positionNumber: number | null;
-    details: Record<string, unknown>;
+    /** What the event recorded (its shape depends on `kind`). */
+    details: unknown;
   }[];
 }

@@ -270,11 +270,7 @@ export interface WorkPack {
   cautions: string[];
 }
 
-export interface Crew {
-  id: string;
-  name: string;
-  members: { id: string; name: string; email: string }[];
-}
+export type { Crew } from './crew';
 
 export interface RoundOption {
   id: string;
