@@ -9,27 +9,15 @@ import type {
   DowntimeEventRow,
   DowntimeReport,
   EventListQuery,
+  PeriodQuery,
   ProposeFromGapsResult,
   SiteSettings,
   SiteSettingsInput,
 } from '../../../shared/schemas/downtime';
+import type { StopOption } from '../../../shared/schemas/stop';
+export type { PeriodQuery } from '../../../shared/schemas/downtime';
+export type { StopOption } from '../../../shared/schemas/stop';
 import { api, apiGet } from '../../lib/api-client';
-
-/** A period of site calendar days; left out, the server takes the last eight ISO weeks with data. */
-export interface PeriodQuery {
-  from?: string;
-  to?: string;
-}
-
-/** A stop of the drive, to link an event to (from the stops API). */
-export interface StopOption {
-  id: string;
-  chainageM: number;
-  ringNumber: number | null;
-  status: string;
-  plannedStart: string | null;
-  actualStart: string | null;
-}
 
 const base = (projectId: string) => `/api/projects/${projectId}/downtime`;
 
