@@ -548,7 +548,8 @@ export const forecastSettings = pgTable('forecast_settings', {
     .primaryKey()
     .references(() => projects.id, { onDelete: 'cascade' }),
   /** Wear multiplier per position class relative to face discs (face = 1). */
-  classFactors: jsonb().$type<{ centre: number; face: number; gauge: number }>().notNull(),
+  // Face discs are the reference: their factor is 1 (forecastSettingsInputSchema allows nothing else).
+  classFactors: jsonb().$type<{ centre: number; face: 1; gauge: number }>().notNull(),
   /** Scales the Gehring prior to the site. */
   gehringSiteFactor: doublePrecision().notNull(),
   /** Weight of the prior, as an equivalent number of inspections. */

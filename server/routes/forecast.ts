@@ -1,12 +1,19 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import { Router } from 'express';
-import { forecastQuerySchema, forecastSettingsInputSchema } from '../../shared/schemas/forecast';
+import {
+  forecastQuerySchema,
+  forecastSettingsInputSchema,
+  type Forecast,
+  type ForecastSettingsView,
+  type WearFitReport,
+} from '../../shared/schemas/forecast';
 import { db } from '../db/client';
 import { forecastSettings, positions } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { computeForecast, computeWearFit, forecastRates, loadForecastSettings } from '../services/forecast';
 
 export const wearFitRouter = Router({ mergeParams: true });
@@ -24,7 +31,7 @@ wearFitRouter.get('/', requireProject('forecast.read'), async (req, res) => {
     .slice(0, 4000)
     .map(({ entries: [[groundTypeId, rolledKm]], o }) => ({ groundTypeId, rolledKm, wearMm: o.wearMm, positionClass: o.positionClass }));
   const cautious = forecastRates(report);
-  res.json({
+  reply<WearFitReport>(res, 200, {
     grounds: report.grounds.map((g) => ({
       ...g,
       rate: report.fit.rates.find((r) => r.groundTypeId === g.id) ?? null,
@@ -47,7 +54,7 @@ forecastRouter.get('/', requireProject('forecast.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const { positionId } = forecastQuerySchema.parse(req.query);
   const result = await db.transaction((tx) => computeForecast(tx, projectId, new Date()));
-  res.json({
+  reply<Forecast>(res, 200, {
     now: result.now,
     currentChainageM: result.currentChainageM,
     currentRingNumber: result.currentRingNumber,
@@ -59,7 +66,7 @@ forecastRouter.get('/', requireProject('forecast.read'), async (req, res) => {
 });
 
 forecastRouter.get('/settings', requireProject('forecast.read'), async (req, res) => {
-  res.json(await loadForecastSettings(db, idParam(req.params, 'projectId', 'That project')));
+  reply<ForecastSettingsView>(res, 200, await loadForecastSettings(db, idParam(req.params, 'projectId', 'That project')));
 });
 
 forecastRouter.put('/settings', requireProject('forecast.edit'), async (req, res) => {
@@ -93,5 +100,5 @@ forecastRouter.put('/settings', requireProject('forecast.edit'), async (req, res
     await audit(tx, { userId: me.id, projectId, entity: 'forecast_settings', entityId: projectId, action: 'update', before, after });
     return after;
   });
-  res.json(saved);
+  reply<ForecastSettingsView>(res, 200, saved);
 });

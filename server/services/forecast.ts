@@ -6,7 +6,7 @@
  * (DEVELOPERS.md, decision 12). The split lets the benchmark time reading and computing apart.
  */
 import { and, asc, eq, sql } from 'drizzle-orm';
-import { discConditions, type PositionClass } from '../../shared/cutters';
+import { discConditions, type DiscCondition, type PositionClass } from '../../shared/cutters';
 import { cautiousRates, relativeScatter, type CautiousRate } from '../../shared/domain/cautious-rates';
 import { classifyCai } from '../../shared/domain/cerchar';
 import {
@@ -35,7 +35,7 @@ import { refreshRolledDistance, UNKNOWN_GROUND } from './rolled-distance';
 
 export const defaultForecastSettings = {
   // Common practice, no source: centre discs roll slowly and wear a little less per km, gauge discs more.
-  classFactors: { centre: 0.8, face: 1, gauge: 1.5 },
+  classFactors: { centre: 0.8, face: 1 as const, gauge: 1.5 },
   gehringSiteFactor: 1,
   priorStrength: 5,
   tipWidthMm: 19, // DOMAIN.md §4: about 19 mm on 17″ rings (common practice)
@@ -150,7 +150,7 @@ export interface WearFitReport {
   fit: WearFit;
   grounds: { id: string; name: string; cai: number | null; caiClass: ReturnType<typeof classifyCai> | null; priorMmPerKm: number | null }[];
   failures: ReturnType<typeof suddenFailureRatesPer1000Km>;
-  abnormalEvents: { entryId: string; at: Date; positionNumber: number; conditions: string[]; chainageM: number }[];
+  abnormalEvents: { entryId: string; at: Date; positionNumber: number; conditions: DiscCondition[]; chainageM: number }[];
   observations: NormalWearObservation[];
   ringDiameterMm: number;
 }
@@ -182,7 +182,8 @@ export function buildWearFit(data: ForecastData): WearFitReport {
         entryId: r.entryId,
         at: r.at,
         positionNumber: r.positionNumber,
-        conditions: r.conditions,
+        // Written only through conditionsSchema (shared/schemas/cutter.ts): known condition keys.
+        conditions: r.conditions as DiscCondition[],
         chainageM: r.chainageM,
       });
       // Counted in the ground the disc rolled most in since it was fitted (DEVELOPERS.md, decision 13).
