@@ -16,7 +16,7 @@ import {
   uniqueIndex,
   uuid,
 } from 'drizzle-orm/pg-core';
-import { cutterStatuses, positionClasses } from '../../shared/cutters';
+import { cutterStatuses, positionClasses, type DiscCondition } from '../../shared/cutters';
 import { projectRoles } from '../../shared/roles';
 
 const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow();
@@ -279,7 +279,7 @@ export const fittings = pgTable(
     removedChainageM: doublePrecision(),
     removedRing: integer(),
     removalReason: text(),
-    removalConditions: text().array(),
+    removalConditions: text().array().$type<DiscCondition[]>(),
   },
   (t) => [
     uniqueIndex('fittings_one_place_per_cutter')
@@ -353,6 +353,7 @@ export const inspectionEntries = pgTable(
     wearMm: doublePrecision(),
     conditions: text()
       .array()
+      .$type<DiscCondition[]>()
       .notNull()
       .default(sql`'{}'::text[]`),
     action: entryActionEnum().notNull().default('none'),

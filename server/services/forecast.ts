@@ -182,8 +182,7 @@ export function buildWearFit(data: ForecastData): WearFitReport {
         entryId: r.entryId,
         at: r.at,
         positionNumber: r.positionNumber,
-        // Written only through conditionsSchema (shared/schemas/cutter.ts): known condition keys.
-        conditions: r.conditions as DiscCondition[],
+        conditions: r.conditions,
         chainageM: r.chainageM,
       });
       // Counted in the ground the disc rolled most in since it was fitted (DEVELOPERS.md, decision 13).

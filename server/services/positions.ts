@@ -1,28 +1,29 @@
 /** The cutterhead's positions as the screens read them: shared by the positions and rounds routes. */
 import { sql } from 'drizzle-orm';
+import type { DiscCondition, PositionClass } from '../../shared/cutters';
 import { db } from '../db/client';
 
 /** Positions with the serial on each now and the last wear measured on that disc. */
 export async function listPositions(projectId: string) {
-  const rows = await db.execute<{
-    id: string;
-    number: number;
-    track_radius_mm: number;
-    position_class: string;
-    disc_size_in: number;
-    tilt_deg: number | null;
-    wear_limit_mm: number;
-    twin_disc: boolean;
-    angle_deg: number | null;
-    fitting_id: string | null;
-    serial: string | null;
-    cutter_id: string | null;
-    fitted_at: Date | null;
-    fitted_chainage_m: number | null;
-    last_wear_mm: number | null;
-    last_measured_at: Date | null;
-    last_conditions: string[] | null;
-  }>(sql`
+  const rows = await db.execute<
+    {
+      id: string;
+      number: number;
+      track_radius_mm: number;
+      position_class: PositionClass;
+      disc_size_in: number;
+      tilt_deg: number | null;
+      wear_limit_mm: number;
+      twin_disc: boolean;
+      angle_deg: number | null;
+      last_wear_mm: number | null;
+      last_measured_at: Date | null;
+      last_conditions: DiscCondition[] | null;
+    } & ( // the fitted disc's columns are all there when a disc is fitted (fittings and cutters columns are not null), else all null
+      | { fitting_id: string; serial: string; cutter_id: string; fitted_at: Date; fitted_chainage_m: number }
+      | { fitting_id: null; serial: null; cutter_id: null; fitted_at: null; fitted_chainage_m: null }
+    )
+  >(sql`
     select p.id, p.number, p.track_radius_mm, p.position_class, p.disc_size_in, p.tilt_deg, p.wear_limit_mm, p.twin_disc, p.angle_deg,
            f.id as fitting_id, c.serial, c.id as cutter_id, f.fitted_at, f.fitted_chainage_m,
            w.wear_mm as last_wear_mm, w.recorded_at as last_measured_at, w.conditions as last_conditions
