@@ -4,7 +4,7 @@ import { z } from 'zod';
 import { geologySectionFields } from '../../shared/csv-headers';
 import { classifyCai } from '../../shared/domain/cerchar';
 import { validateGeologySections } from '../../shared/domain/geology';
-import { geologySectionColumnMappingSchema, type GeologyMapping } from '../../shared/schemas/advance-log';
+import { geologySectionColumnMappingSchema, type GeologyImported, type GeologyMapping } from '../../shared/schemas/advance-log';
 import {
   groundTypeInputSchema,
   longSectionInputSchema,
@@ -279,7 +279,7 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
         message: `New ground type "${name}" was created; add its CAI so wear can be forecast before site data exists.`,
       })),
   ];
-  res.status(201).json({ saved: outcome.saved, warnings, detected: result.detected });
+  reply<GeologyImported>(res, 201, { saved: outcome.saved, warnings, detected: result.detected });
 });
 
 /** Whether the file gave no CAI for the ground type `name`. */

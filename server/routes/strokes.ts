@@ -5,6 +5,7 @@ import { z } from 'zod';
 import { advanceLogFields } from '../../shared/csv-headers';
 import {
   advanceLogColumnMappingSchema,
+  type AdvanceLogImported,
   type AdvanceLogMapping,
   type DailyAdvance,
   type StrokePage,
@@ -169,7 +170,7 @@ strokesRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
     ...unusedColumnWarnings(result.unusedColumns, { what: 'the advance log', keptAs: 'with each ring as extra data', canMap: true }),
     ...result.warnings,
   ];
-  res.status(outcome.inserted + outcome.replaced > 0 ? 201 : 200).json({ ...outcome, warnings, detected: result.detected });
+  reply<AdvanceLogImported>(res, outcome.inserted + outcome.replaced > 0 ? 201 : 200, { ...outcome, warnings, detected: result.detected });
 });
 
 /** The remembered column mapping of the advance log, with the fields Kerfwise knows. */

@@ -125,3 +125,14 @@ export interface RoundHistoryRow {
   userName: string | null;
   positionNumber: number;
 }
+
+/** POST /photos: the photo as stored (201), or as stored before when the same clientKey came again (200). */
+export interface PhotoStored {
+  id: string;
+  entryId: string;
+  clientKey: string;
+  mimeType: string;
+  sizeBytes: number;
+  originalName: string;
+  createdAt: string;
+}
