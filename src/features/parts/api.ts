@@ -1,5 +1,6 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type {
+  DemandQuery,
   PartInput,
   PurchaseOrderInput,
   ReceiveLineInput,
@@ -30,10 +31,8 @@ export type {
   WorkshopSettings,
 } from '../../../shared/schemas/parts';
 
-export interface DemandFilters {
-  weeks: number;
-  serviceLevel?: number;
-}
+/** The demand's filters: the query of GET /parts/demand (the service level takes its default when left out). */
+export type DemandFilters = Pick<DemandQuery, 'weeks'> & Partial<Pick<DemandQuery, 'serviceLevel'>>;
 
 const base = (projectId: string) => `/api/projects/${projectId}/parts`;
 const demandQuery = (f: DemandFilters) => `weeks=${f.weeks}${f.serviceLevel ? `&serviceLevel=${f.serviceLevel}` : ''}`;
