@@ -19,6 +19,27 @@ export type { PeriodQuery } from '../../../shared/schemas/downtime';
 export type { StopOption } from '../../../shared/schemas/stop';
 import { api, apiGet } from '../../lib/api-client';
 
+/** The cause filter's value for "no cause yet". */
+export const UNEXPLAINED = 'unexplained';
+
+/** The event list's filters from the address: the cause chosen (an id, UNEXPLAINED or '') and the query. Page and loader read them so. */
+export function eventFiltersFrom(params: URLSearchParams) {
+  const cause = params.get('unexplained') === 'true' ? UNEXPLAINED : (params.get('causeId') ?? '');
+  const query = {
+    from: params.get('from') ?? undefined,
+    to: params.get('to') ?? undefined,
+    causeId: cause && cause !== UNEXPLAINED ? cause : undefined,
+    unexplained: cause === UNEXPLAINED ? ('true' as const) : undefined,
+  };
+  return { cause, query };
+}
+
+/** The report's period from the address (?from=&to=). */
+export const periodFrom = (params: URLSearchParams): PeriodQuery => ({
+  from: params.get('from') ?? undefined,
+  to: params.get('to') ?? undefined,
+});
+
 const base = (projectId: string) => `/api/projects/${projectId}/downtime`;
 
 /** Query text with empty values left out. */

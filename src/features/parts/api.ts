@@ -34,6 +34,16 @@ export type {
 /** The demand's filters: the query of GET /parts/demand (the service level takes its default when left out). */
 export type DemandFilters = Pick<DemandQuery, 'weeks'> & Partial<Pick<DemandQuery, 'serviceLevel'>>;
 
+/** The horizons (weeks) the stock tab offers; 12 unless the address asks for another. */
+export const demandHorizons = [4, 8, 12, 26, 52];
+
+/** The demand's filters from the address (?weeks=&serviceLevel=), values outside the offer left out. Page and loader read them so. */
+export function demandFiltersFrom(search: URLSearchParams): DemandFilters {
+  const weeks = Number(search.get('weeks')) || 12;
+  const level = Number(search.get('serviceLevel'));
+  return { weeks: demandHorizons.includes(weeks) ? weeks : 12, serviceLevel: level >= 0.5 && level < 1 ? level : undefined };
+}
+
 const base = (projectId: string) => `/api/projects/${projectId}/parts`;
 const demandQuery = (f: DemandFilters) => `weeks=${f.weeks}${f.serviceLevel ? `&serviceLevel=${f.serviceLevel}` : ''}`;
 

@@ -2,12 +2,12 @@ import { useState, type FormEvent } from 'react';
 import { useSearchParams } from 'react-router';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
-import type { PeriodQuery } from '../api';
+import { periodFrom, type PeriodQuery } from '../api';
 
 /** The period in the address (?from=&to=), so it survives a reload and follows the tabs. */
 export function usePeriod(): PeriodQuery {
   const [params] = useSearchParams();
-  return { from: params.get('from') ?? undefined, to: params.get('to') ?? undefined };
+  return periodFrom(params);
 }
 
 /** From/to site days; `shown` is the period the server used (its default when none was asked for). */
