@@ -14,7 +14,7 @@ import type {
   SiteSettings,
   SiteSettingsInput,
 } from '../../../shared/schemas/downtime';
-import type { StopOption } from '../../../shared/schemas/stop';
+import { stopQueries } from '../stops/api';
 export type { PeriodQuery } from '../../../shared/schemas/downtime';
 export type { StopOption } from '../../../shared/schemas/stop';
 import { api, apiGet } from '../../lib/api-client';
@@ -69,7 +69,6 @@ export const getReport = (projectId: string, period: PeriodQuery) =>
   apiGet<DowntimeReport>(`${base(projectId)}/report${queryString(period)}`);
 export const getCost = (projectId: string, period: PeriodQuery) =>
   apiGet<CutterCostReport>(`${base(projectId)}/cost${queryString(period)}`);
-export const getStopOptions = (projectId: string) => apiGet<StopOption[]>(`/api/projects/${projectId}/stops`);
 
 export const downtimeQueries = {
   all: (projectId: string) => ['projects', projectId, 'downtime'] as const,
@@ -83,8 +82,8 @@ export const downtimeQueries = {
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'report', period], queryFn: () => getReport(projectId, period) }),
   cost: (projectId: string, period: PeriodQuery) =>
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'cost', period], queryFn: () => getCost(projectId, period) }),
-  stops: (projectId: string) =>
-    queryOptions({ queryKey: ['projects', projectId, 'stops', 'options'], queryFn: () => getStopOptions(projectId) }),
+  /** The drive's stops to link an event to: the stops list's own query (one fetch, one cache entry). */
+  stops: (projectId: string) => stopQueries.list(projectId),
 };
 
 /** Every downtime write invalidates `downtimeQueries.all`: events, causes, settings and reports move together. */
