@@ -17,7 +17,7 @@ import {
   uniqueIndex,
   uuid,
 } from 'drizzle-orm/pg-core';
-import { cutterStatuses, positionClasses } from '../../shared/cutters';
+import { cutterStatuses, positionClasses, type DiscCondition } from '../../shared/cutters';
 import { projectRoles } from '../../shared/roles';
 
 const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow();
@@ -285,7 +285,7 @@ export const fittings = pgTable(
     removedChainageM: doublePrecision(),
     removedRing: integer(),
     removalReason: text(),
-    removalConditions: text().array(),
+    removalConditions: text().array().$type<DiscCondition[]>(),
   },
   (t) => [
     uniqueIndex('fittings_one_place_per_cutter')
@@ -359,6 +359,7 @@ export const inspectionEntries = pgTable(
     wearMm: doublePrecision(),
     conditions: text()
       .array()
+      .$type<DiscCondition[]>()
       .notNull()
       .default(sql`'{}'::text[]`),
     action: entryActionEnum().notNull().default('none'),
@@ -584,7 +585,8 @@ export const forecastSettings = pgTable('forecast_settings', {
     .primaryKey()
     .references(() => projects.id, { onDelete: 'cascade' }),
   /** Wear multiplier per position class relative to face discs (face = 1). */
-  classFactors: jsonb().$type<{ centre: number; face: number; gauge: number }>().notNull(),
+  // Face discs are the reference: their factor is 1 (forecastSettingsInputSchema allows nothing else).
+  classFactors: jsonb().$type<{ centre: number; face: 1; gauge: number }>().notNull(),
   /** Scales the Gehring prior to the site. */
   gehringSiteFactor: doublePrecision().notNull(),
   /** Weight of the prior, as an equivalent number of inspections. */

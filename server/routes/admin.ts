@@ -4,7 +4,21 @@ import { z } from 'zod';
 import { projectInputSchema, projectPatchSchema } from '../../shared/schemas/project';
 import { inviteUserInputSchema, membershipInputSchema, updateUserInputSchema } from '../../shared/schemas/user';
 import { roleLabels } from '../../shared/roles';
-import { ADMIN_MAIL_LIMIT, adminMailQuerySchema, type AdminMail } from '../../shared/schemas/admin';
+import {
+  ADMIN_MAIL_LIMIT,
+  adminMailQuerySchema,
+  type AdminMail,
+  type AdminMailView,
+  type AdminMember,
+  type AdminMembership,
+  type AdminProject,
+  type AdminProjectRow,
+  type AdminUser,
+  type AdminUserRow,
+  type JobInfo,
+  type JobRunRow,
+  type ReleasedMail,
+} from '../../shared/schemas/admin';
 import { db } from '../db/client';
 import { jobRuns, memberships, outbox, projects, stops, users } from '../db/schema';
 import { ensureDefaultCauses } from '../services/downtime';
@@ -16,6 +30,7 @@ import { ConflictError } from '../lib/errors';
 import { badRequest, conflict, notFound } from '../lib/http-error';
 import { enqueueMail, kickMailDelivery, releaseUncertainMail, UNCERTAIN_AFTER_MINUTES } from '../lib/mail';
 import { issueToken } from '../lib/one-time-token';
+import { reply } from '../lib/reply';
 import { revokeAllSessions } from '../lib/session';
 
 export const adminRouter = Router();
@@ -40,7 +55,11 @@ adminRouter.get('/users', async (_req, res) => {
     .select({ userId: memberships.userId, projectId: memberships.projectId, projectName: projects.name, role: memberships.role })
     .from(memberships)
     .innerJoin(projects, eq(projects.id, memberships.projectId));
-  res.json(list.map((u) => ({ ...u, memberships: roles.filter((r) => r.userId === u.id) })));
+  reply<AdminUser[]>(
+    res,
+    200,
+    list.map((u) => ({ ...u, memberships: roles.filter((r) => r.userId === u.id) })),
+  );
 });
 
 /** Invites a person: the account exists at once, and they choose their password from the e-mailed link. */
@@ -68,7 +87,7 @@ adminRouter.post('/users', async (req, res) => {
     return user;
   });
   kickMailDelivery();
-  res.status(201).json(created);
+  reply<AdminUserRow>(res, 201, created);
 });
 
 adminRouter.patch('/users/:userId', async (req, res) => {
@@ -90,7 +109,7 @@ adminRouter.patch('/users/:userId', async (req, res) => {
     await audit(tx, { userId: me.id, entity: 'user', entityId: userId, action: 'update', before, after });
     return after;
   });
-  res.json(updated);
+  reply<AdminUserRow>(res, 200, updated);
 });
 
 adminRouter.get('/projects', async (_req, res) => {
@@ -98,7 +117,11 @@ adminRouter.get('/projects', async (_req, res) => {
     .select({ project: projects, members: sql<number>`(select count(*)::int from memberships m where m.project_id = projects.id)` })
     .from(projects)
     .orderBy(asc(projects.name));
-  res.json(rows.map((r) => ({ ...r.project, memberCount: r.members })));
+  reply<AdminProject[]>(
+    res,
+    200,
+    rows.map((r) => ({ ...r.project, memberCount: r.members })),
+  );
 });
 
 adminRouter.post('/projects', async (req, res) => {
@@ -113,7 +136,7 @@ adminRouter.post('/projects', async (req, res) => {
     await ensureDefaultCauses(tx, p.id, me.id);
     return p;
   });
-  res.status(201).json(project);
+  reply<AdminProjectRow>(res, 201, project);
 });
 
 adminRouter.patch('/projects/:projectId', async (req, res) => {
@@ -131,7 +154,7 @@ adminRouter.patch('/projects/:projectId', async (req, res) => {
     await audit(tx, { userId: me.id, projectId, entity: 'project', entityId: projectId, action: 'update', before, after });
     return after;
   });
-  res.json(project);
+  reply<AdminProjectRow>(res, 200, project);
 });
 
 adminRouter.get('/projects/:projectId/members', async (req, res) => {
@@ -142,7 +165,7 @@ adminRouter.get('/projects/:projectId/members', async (req, res) => {
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(eq(memberships.projectId, projectId))
     .orderBy(asc(users.name));
-  res.json(rows);
+  reply<AdminMember[]>(res, 200, rows);
 });
 
 /** Adds a person to a project or changes their role there. */
@@ -176,7 +199,7 @@ adminRouter.put('/projects/:projectId/members/:userId', async (req, res) => {
     });
     return after;
   });
-  res.json({ ...saved, roleLabel: roleLabels[saved.role] });
+  reply<AdminMembership>(res, 200, { ...saved, roleLabel: roleLabels[saved.role] });
 });
 
 adminRouter.delete('/projects/:projectId/members/:userId', async (req, res) => {
@@ -264,7 +287,7 @@ adminRouter.get('/mail', async (req, res) => {
     .from(outbox)
     .where(uncertainSql)
     .orderBy(asc(outbox.id));
-  res.json({ messages, matching, outbox: queue, uncertain });
+  reply<AdminMailView>(res, 200, { messages, matching, outbox: queue, uncertain });
 });
 
 /** Text matched literally by LIKE/ILIKE with `escape '\\'`. */
@@ -279,7 +302,7 @@ adminRouter.post('/outbox/:outboxId/release', async (req, res) => {
   if (!(await releaseUncertainMail(outboxId))) throw notFound('That message of uncertain delivery');
   await audit(db, { userId: me.id, entity: 'outbox', entityId: String(outboxId), action: 'release' });
   kickMailDelivery();
-  res.status(202).json({ released: outboxId });
+  reply<ReleasedMail>(res, 202, { released: outboxId });
 });
 
 /**
@@ -293,7 +316,11 @@ export function createAdminJobsRouter(jobs: readonly JobDefinition[]) {
   /** The scheduled jobs with their last runs (newest first). */
   adminJobsRouter.get('/', async (_req, res) => {
     const runs = await db.select().from(jobRuns).orderBy(desc(jobRuns.startedAt)).limit(300);
-    res.json(jobs.map((j) => ({ name: j.name, label: j.label, cron: j.cron, runs: runs.filter((r) => r.job === j.name).slice(0, 20) })));
+    reply<JobInfo[]>(
+      res,
+      200,
+      jobs.map((j) => ({ name: j.name, label: j.label, cron: j.cron, runs: runs.filter((r) => r.job === j.name).slice(0, 20) })),
+    );
   });
 
   /**
@@ -309,7 +336,7 @@ export function createAdminJobsRouter(jobs: readonly JobDefinition[]) {
     const now = new Date();
     const sentBefore = !again && job.alreadyDone ? await job.alreadyDone({ now }) : null;
     if (sentBefore) throw new ConflictError(sentBefore, [], { confirmAgain: true });
-    res.json(await runJob(job, 'admin', { userId: me.id, now, again }));
+    reply<JobRunRow>(res, 200, await runJob(job, 'admin', { userId: me.id, now, again }));
   });
   return adminJobsRouter;
 }

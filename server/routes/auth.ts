@@ -1,6 +1,14 @@
 import { and, count, eq, gt, isNull, max, sql, type SQL } from 'drizzle-orm';
 import { Router } from 'express';
-import { passwordResetRequestSchema, signInInputSchema } from '../../shared/schemas/auth';
+import {
+  passwordResetRequestSchema,
+  signInInputSchema,
+  type Me,
+  type NotificationChoice,
+  type NotificationChoiceChange,
+  type ResetRequested,
+  type SignedIn,
+} from '../../shared/schemas/auth';
 import { changePasswordInputSchema, setPasswordInputSchema } from '../../shared/schemas/password';
 import { db, type DbOrTx } from '../db/client';
 import { memberships, notificationOptOuts, passwordResetRequests, projects, signInAttempts, users } from '../db/schema';
@@ -13,6 +21,7 @@ import { badRequest, HttpError } from '../lib/http-error';
 import { enqueueMail, kickMailDelivery } from '../lib/mail';
 import { consumeToken, issueToken, revokeTokens } from '../lib/one-time-token';
 import { logger } from '../lib/logger';
+import { reply } from '../lib/reply';
 import { dummyPasswordHash, hashPassword, verifyPassword } from '../lib/password';
 import { knownDevice, rememberDevice } from '../lib/device-cookie';
 import { signInThrottle, waitS } from '../lib/sign-in-throttle';
@@ -85,7 +94,7 @@ authRouter.post('/sign-in', async (req, res) => {
   if (outcome.kind === 'refused') throw wrongCredentials();
   const { user } = outcome;
   await rememberDevice(req, res, input.email, deviceId);
-  res.json({ user: { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin } });
+  reply<SignedIn>(res, 200, { user: { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin } });
 });
 
 authRouter.post('/sign-out', async (req, res) => {
@@ -102,7 +111,7 @@ authRouter.get('/me', requireSignedIn, async (req, res) => {
     .innerJoin(projects, eq(projects.id, memberships.projectId))
     .where(eq(memberships.userId, user.id))
     .orderBy(projects.name);
-  res.json({ user, memberships: rows });
+  reply<Me>(res, 200, { user, memberships: rows });
 });
 
 /** Reset requests allowed per hour, per address asked for and per client address (decision 29). */
@@ -156,7 +165,7 @@ authRouter.post('/password-reset', async (req, res) => {
       `Too many reset requests. The last link sent is still valid for an hour; check your mail, or try again in ${resetLimits.windowMinutes} minutes.`,
     );
   }
-  res.status(202).json({ message: 'If that address has an account, a link to set a new password is on its way.' });
+  reply<ResetRequested>(res, 202, { message: 'If that address has an account, a link to set a new password is on its way.' });
   // After the answer: the time the lookup and the mail take does not show in the response.
   sendResetLink(email).catch((err: unknown) => logger.error({ err }, 'password-reset mail could not be queued'));
 });
@@ -187,7 +196,7 @@ authRouter.post('/set-password', async (req, res) => {
     return updated;
   });
   if (!user) throw badRequest('This link has expired or has already been used. Ask for a new one from the sign-in page.');
-  res.json({ user: { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin } });
+  reply<SignedIn>(res, 200, { user: { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin } });
 });
 
 authRouter.post('/change-password', requireSignedIn, async (req, res) => {
@@ -220,7 +229,9 @@ authRouter.get('/notifications', requireSignedIn, async (req, res) => {
     (await db.select({ role: memberships.role }).from(memberships).where(eq(memberships.userId, me.id))).map((r) => r.role as string),
   );
   const off = new Set((await db.select().from(notificationOptOuts).where(eq(notificationOptOuts.userId, me.id))).map((r) => r.kind));
-  res.json(
+  reply<NotificationChoice[]>(
+    res,
+    200,
     notificationKinds
       .filter((k) => k.roles.some((r) => roles.has(r)))
       .map((k) => ({ kind: k.key, label: k.label, enabled: !off.has(k.key) })),
@@ -242,5 +253,5 @@ authRouter.put('/notifications', requireSignedIn, async (req, res) => {
       after: input,
     });
   });
-  res.json(input);
+  reply<NotificationChoiceChange>(res, 200, input);
 });

@@ -1,12 +1,13 @@
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { Router } from 'express';
-import { crewInputSchema } from '../../shared/schemas/crew';
+import { crewInputSchema, type Crew, type CrewRow } from '../../shared/schemas/crew';
 import { db, type DbOrTx } from '../db/client';
 import { crewMembers, crews, users } from '../db/schema';
 import { requireAdmin, requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { conflict, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 
 /** Crews are read by every member (to pick one for a stop); the administrator keeps them. */
 export const crewsRouter = Router({ mergeParams: true });
@@ -29,7 +30,7 @@ export async function listCrews(tx: DbOrTx, projectId: string) {
 }
 
 crewsRouter.get('/', requireProject('stops.read'), async (req, res) => {
-  res.json(await listCrews(db, idParam(req.params, 'projectId', 'That project')));
+  reply<Crew[]>(res, 200, await listCrews(db, idParam(req.params, 'projectId', 'That project')));
 });
 
 async function saveMembers(tx: DbOrTx, crewId: string, members: { name: string; email: string }[]) {
@@ -64,7 +65,7 @@ crewsRouter.post('/', requireAdmin, async (req, res) => {
     await audit(tx, { userId: me.id, projectId, entity: 'crew', entityId: row.id, action: 'create', after: input });
     return row;
   });
-  res.status(201).json(crew);
+  reply<CrewRow>(res, 201, crew);
 });
 
 crewsRouter.put('/:crewId', requireAdmin, async (req, res) => {
@@ -91,5 +92,7 @@ crewsRouter.put('/:crewId', requireAdmin, async (req, res) => {
       after: input,
     });
   });
-  res.json((await listCrews(db, projectId)).find((c) => c.id === crewId));
+  const saved = (await listCrews(db, projectId)).find((c) => c.id === crewId);
+  if (!saved) throw notFound('That crew');
+  reply<Crew>(res, 200, saved);
 });

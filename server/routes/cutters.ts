@@ -1,12 +1,20 @@
 import { and, asc, eq, ilike, isNull, sql } from 'drizzle-orm';
 import { Router } from 'express';
-import { cutterListQuerySchema, receiveCutterInputSchema, workshopInputSchema } from '../../shared/schemas/cutter';
+import {
+  cutterListQuerySchema,
+  receiveCutterInputSchema,
+  workshopInputSchema,
+  type Cutter,
+  type CutterLife,
+  type CutterListItem,
+} from '../../shared/schemas/cutter';
 import { db } from '../db/client';
 import { cutterEvents, cutters, fittings, positions } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { conflict, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 
 export const cuttersRouter = Router({ mergeParams: true });
 
@@ -27,7 +35,11 @@ cuttersRouter.get('/', requireProject('cutters.read'), async (req, res) => {
       ),
     )
     .orderBy(asc(cutters.serial));
-  res.json(rows.map((r) => ({ ...r.cutter, positionNumber: r.positionNumber, fittedAt: r.fittedAt })));
+  reply<CutterListItem[]>(
+    res,
+    200,
+    rows.map((r) => ({ ...r.cutter, positionNumber: r.positionNumber, fittedAt: r.fittedAt })),
+  );
 });
 
 /** Receives a cutter assembly into the store. */
@@ -49,7 +61,7 @@ cuttersRouter.post('/', requireProject('cutters.edit'), async (req, res) => {
     await audit(tx, { userId: me.id, projectId, entity: 'cutter', entityId: row.id, action: 'create', after: row });
     return row;
   });
-  res.status(201).json(cutter);
+  reply<Cutter>(res, 201, cutter);
 });
 
 /** A serial's whole life: fitted periods and events. */
@@ -73,7 +85,7 @@ cuttersRouter.get('/:cutterId', requireProject('cutters.read'), async (req, res)
     .leftJoin(positions, eq(positions.id, cutterEvents.positionId))
     .where(eq(cutterEvents.cutterId, cutterId))
     .orderBy(asc(cutterEvents.at), asc(cutterEvents.id));
-  res.json({
+  reply<CutterLife>(res, 200, {
     cutter,
     periods: periods.map((p) => ({ ...p.fitting, positionNumber: p.positionNumber })),
     events: events.map((e) => ({ ...e.event, positionNumber: e.positionNumber })),
@@ -107,5 +119,5 @@ cuttersRouter.post('/:cutterId/workshop', requireProject('cutters.edit'), async 
     await audit(tx, { userId: me.id, projectId, entity: 'cutter', entityId: cutterId, action: input.outcome, before, after });
     return after;
   });
-  res.json(cutter);
+  reply<Cutter>(res, 200, cutter);
 });

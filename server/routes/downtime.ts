@@ -8,9 +8,14 @@ import {
   eventListQuerySchema,
   reportQuerySchema,
   siteSettingsInputSchema,
+  type CutterCostReport,
+  type DowntimeCause,
   type DowntimeEventInput,
   type DowntimeEventList,
   type DowntimeEventRow,
+  type DowntimeReport,
+  type ProposeFromGapsResult,
+  type SiteSettings,
 } from '../../shared/schemas/downtime';
 import { writeCsv, type CsvCell, type CsvColumn } from '../../shared/csv-writer';
 import { formatSiteDateTime, isoWithSiteOffset } from '../../shared/site-time';
@@ -20,6 +25,7 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, conflict, HttpError, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import {
   buildCutterCost,
   buildDowntimeReport,
@@ -55,7 +61,7 @@ const pctCol = (header: string): CsvColumn => ({ header, decimals: 1 });
 
 /** The drive's causes (the defaults are created with the project: a read never writes). */
 downtimeRouter.get('/causes', requireProject('downtime.read'), async (req, res) => {
-  res.json(await listCauses(db, projectIdOf(req)));
+  reply<DowntimeCause[]>(res, 200, await listCauses(db, projectIdOf(req)));
 });
 
 async function refuseDuplicateName(tx: DbOrTx, projectId: string, name: string, selfId: string | null) {
@@ -84,7 +90,7 @@ downtimeRouter.post('/causes', requireProject('downtime.edit'), async (req, res)
     await audit(tx, { userId: me.id, projectId, entity: 'downtime_cause', entityId: row.id, action: 'create', after: row });
     return row;
   });
-  res.status(201).json(cause);
+  reply<DowntimeCause>(res, 201, cause);
 });
 
 /** Rename, flag, reorder, deactivate or reactivate a cause (causes stay, so past events keep theirs). */
@@ -105,13 +111,13 @@ downtimeRouter.patch('/causes/:causeId', requireProject('downtime.edit'), async 
     await audit(tx, { userId: me.id, projectId, entity: 'downtime_cause', entityId: causeId, action: 'update', before, after });
     return after;
   });
-  res.json(cause);
+  reply<DowntimeCause>(res, 200, cause);
 });
 
 // Site settings ---------------------------------------------------------------------------------
 
 downtimeRouter.get('/settings', requireProject('downtime.read'), async (req, res) => {
-  res.json(await readSiteSettings(db, projectIdOf(req)));
+  reply<SiteSettings>(res, 200, await readSiteSettings(db, projectIdOf(req)));
 });
 
 downtimeRouter.put('/settings', requireProject('downtime.edit'), async (req, res) => {
@@ -137,7 +143,7 @@ downtimeRouter.put('/settings', requireProject('downtime.edit'), async (req, res
     });
     return after;
   });
-  res.json(saved);
+  reply<SiteSettings>(res, 200, saved);
 });
 
 // Events ----------------------------------------------------------------------------------------
@@ -186,7 +192,7 @@ downtimeRouter.get('/events', requireProject('downtime.read'), async (req, res) 
     ),
   );
   if (q.format === 'json') {
-    res.json({ from: period.from, to: period.to, timeZone: tz, events: rows } satisfies DowntimeEventList);
+    reply<DowntimeEventList>(res, 200, { from: period.from, to: period.to, timeZone: tz, events: rows });
     return;
   }
   sendCsv(
@@ -295,7 +301,7 @@ downtimeRouter.post('/events', requireProject('downtime.edit'), async (req, res)
     await audit(tx, { userId: me.id, projectId, entity: 'downtime_event', entityId: created.id, action: 'create', after: created });
     return (await listEvents(tx, projectId, eq(downtimeEvents.id, created.id)))[0];
   });
-  res.status(201).json(row);
+  reply<DowntimeEventRow>(res, 201, row);
 });
 
 downtimeRouter.put('/events/:eventId', requireProject('downtime.edit'), async (req, res) => {
@@ -316,7 +322,7 @@ downtimeRouter.put('/events/:eventId', requireProject('downtime.edit'), async (r
     await audit(tx, { userId: me.id, projectId, entity: 'downtime_event', entityId: eventId, action: 'update', before, after });
     return (await listEvents(tx, projectId, eq(downtimeEvents.id, eventId)))[0];
   });
-  res.json(row);
+  reply<DowntimeEventRow>(res, 200, row);
 });
 
 downtimeRouter.delete('/events/:eventId', requireProject('downtime.edit'), async (req, res) => {
@@ -338,7 +344,7 @@ downtimeRouter.delete('/events/:eventId', requireProject('downtime.edit'), async
 downtimeRouter.post('/propose-from-gaps', requireProject('downtime.edit'), async (req, res) => {
   const projectId = projectIdOf(req);
   const me = requireUser(req);
-  res.json(await db.transaction((tx) => proposeGapEvents(tx, projectId, me.id)));
+  reply<ProposeFromGapsResult>(res, 200, await db.transaction((tx) => proposeGapEvents(tx, projectId, me.id)));
 });
 
 // Reports ---------------------------------------------------------------------------------------
@@ -362,7 +368,7 @@ downtimeRouter.get('/report', requireProject('downtime.read'), async (req, res) 
     return buildDowntimeReport(tx, project, await resolvePeriod(tx, project, q, new Date()));
   });
   if (q.format === 'json') {
-    res.json(report);
+    reply<DowntimeReport>(res, 200, report);
     return;
   }
   const name = `downtime-${q.table}-${report.from}-${report.to}`;
@@ -405,7 +411,7 @@ downtimeRouter.get('/cost', requireProject('downtime.read'), async (req, res) =>
     return buildCutterCost(tx, project, await resolvePeriod(tx, project, q, new Date()));
   });
   if (q.format === 'json') {
-    res.json(cost);
+    reply<CutterCostReport>(res, 200, cost);
     return;
   }
   const rows = q.table === 'week' ? cost.byWeek : cost.byGround;

@@ -1,12 +1,20 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import { Router } from 'express';
-import { forecastQuerySchema, forecastSettingsInputSchema } from '../../shared/schemas/forecast';
+import {
+  forecastQuerySchema,
+  forecastSettingsInputSchema,
+  type Explanation,
+  type Forecast,
+  type ForecastSettingsView,
+  type WearFitReport,
+} from '../../shared/schemas/forecast';
 import { db } from '../db/client';
 import { forecastSettings, positions } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { computeWearFit, forecastRates, loadForecastSettings } from '../services/forecast';
 import { cachedExplanation, cachedForecast } from '../services/forecast-cache';
 
@@ -25,7 +33,7 @@ wearFitRouter.get('/', requireProject('forecast.read'), async (req, res) => {
     .slice(0, 4000)
     .map(({ entries: [[groundTypeId, rolledKm]], o }) => ({ groundTypeId, rolledKm, wearMm: o.wearMm, positionClass: o.positionClass }));
   const cautious = forecastRates(report);
-  res.json({
+  reply<WearFitReport>(res, 200, {
     grounds: report.grounds.map((g) => ({
       ...g,
       rate: report.fit.rates.find((r) => r.groundTypeId === g.id) ?? null,
@@ -59,17 +67,20 @@ forecastRouter.get('/', requireProject('forecast.read'), async (req, res) => {
     return;
   }
   if (!positionId) {
+    // The stored text was made by forecastAnswer, typed as Sendable<Forecast> (services/forecast-cache.ts).
     res.type('application/json').send(cached.body);
     return;
   }
-  const answer = JSON.parse(cached.body) as { positions: { position: { positionId: string }; explanation?: unknown }[] };
-  const explanation = await cachedExplanation(projectId, positionId, cached.dataVersion);
-  for (const p of answer.positions) if (p.position.positionId === positionId && explanation != null) p.explanation = explanation;
-  res.json(answer);
+  const answer = JSON.parse(cached.body) as Forecast;
+  const explanation = (await cachedExplanation(projectId, positionId, cached.dataVersion)) as Explanation | null;
+  reply<Forecast>(res, 200, {
+    ...answer,
+    positions: answer.positions.map((p) => (p.position.positionId === positionId && explanation != null ? { ...p, explanation } : p)),
+  });
 });
 
 forecastRouter.get('/settings', requireProject('forecast.read'), async (req, res) => {
-  res.json(await loadForecastSettings(db, idParam(req.params, 'projectId', 'That project')));
+  reply<ForecastSettingsView>(res, 200, await loadForecastSettings(db, idParam(req.params, 'projectId', 'That project')));
 });
 
 forecastRouter.put('/settings', requireProject('forecast.edit'), async (req, res) => {
@@ -103,5 +114,5 @@ forecastRouter.put('/settings', requireProject('forecast.edit'), async (req, res
     await audit(tx, { userId: me.id, projectId, entity: 'forecast_settings', entityId: projectId, action: 'update', before, after });
     return after;
   });
-  res.json(saved);
+  reply<ForecastSettingsView>(res, 200, saved);
 });

@@ -4,8 +4,14 @@ import { z } from 'zod';
 import { geologySectionFields } from '../../shared/csv-headers';
 import { classifyCai } from '../../shared/domain/cerchar';
 import { validateGeologySections } from '../../shared/domain/geology';
-import { geologySectionColumnMappingSchema } from '../../shared/schemas/advance-log';
-import { groundTypeInputSchema, longSectionInputSchema } from '../../shared/schemas/geology';
+import { geologySectionColumnMappingSchema, type GeologyImported, type GeologyMapping } from '../../shared/schemas/advance-log';
+import {
+  groundTypeInputSchema,
+  longSectionInputSchema,
+  type Geology,
+  type GroundType,
+  type LongSectionSaved,
+} from '../../shared/schemas/geology';
 import { db } from '../db/client';
 import { geologySections, groundTypes, strokes } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
@@ -23,6 +29,7 @@ import {
   uploadStream,
 } from '../lib/csv/upload';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { driveDataChanged } from '../services/drive-data';
 
 export const groundTypesRouter = Router({ mergeParams: true });
@@ -33,7 +40,7 @@ const withClass = (g: typeof groundTypes.$inferSelect) => ({ ...g, caiClass: g.c
 groundTypesRouter.get('/', requireProject('drive.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const rows = await db.select().from(groundTypes).where(eq(groundTypes.projectId, projectId)).orderBy(asc(groundTypes.name));
-  res.json(rows.map(withClass));
+  reply<GroundType[]>(res, 200, rows.map(withClass));
 });
 
 groundTypesRouter.post('/', requireProject('drive.edit'), async (req, res) => {
@@ -53,7 +60,7 @@ groundTypesRouter.post('/', requireProject('drive.edit'), async (req, res) => {
     await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: g.id, action: 'create', after: g });
     return g;
   });
-  res.status(201).json(withClass(row));
+  reply<GroundType>(res, 201, withClass(row));
 });
 
 groundTypesRouter.patch('/:groundTypeId', requireProject('drive.edit'), async (req, res) => {
@@ -72,7 +79,7 @@ groundTypesRouter.patch('/:groundTypeId', requireProject('drive.edit'), async (r
     await audit(tx, { userId: me.id, projectId, entity: 'ground_type', entityId: id, action: 'update', before, after });
     return after;
   });
-  res.json(withClass(row));
+  reply<GroundType>(res, 200, withClass(row));
 });
 
 groundTypesRouter.delete('/:groundTypeId', requireProject('drive.edit'), async (req, res) => {
@@ -117,7 +124,7 @@ geologyRouter.get('/', requireProject('drive.read'), async (req, res) => {
     .orderBy(sql`${strokes.ringNumber} desc`)
     .limit(1);
   const { warnings } = validateGeologySections(sections);
-  res.json({ sections, warnings, currentChainageM: last?.chainageM ?? null });
+  reply<Geology>(res, 200, { sections, warnings, currentChainageM: last?.chainageM ?? null });
 });
 
 /** Replaces the whole long section (the table form). Overlaps are errors; gaps come back as warnings. */
@@ -153,7 +160,7 @@ geologyRouter.put('/', requireProject('drive.edit'), async (req, res) => {
     // Ground attribution changes everywhere: recompute the rolled distances of the whole drive.
     await driveDataChanged(tx, projectId, { rewritesPast: true, refreshNow: true });
   });
-  res.json({ saved: sections.length, warnings: check.warnings });
+  reply<LongSectionSaved>(res, 200, { saved: sections.length, warnings: check.warnings });
 });
 
 const importQuerySchema = z.object({
@@ -272,7 +279,7 @@ geologyRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
         message: `New ground type "${name}" was created; add its CAI so wear can be forecast before site data exists.`,
       })),
   ];
-  res.status(201).json({ saved: outcome.saved, warnings, detected: result.detected });
+  reply<GeologyImported>(res, 201, { saved: outcome.saved, warnings, detected: result.detected });
 });
 
 /** Whether the file gave no CAI for the ground type `name`. */
@@ -283,5 +290,5 @@ function byNameHasNoCai(rows: { data: { groundTypeName: string; cai?: number } }
 /** The remembered column mapping of the long-section import, with the fields Kerfwise knows. */
 geologyRouter.get('/mapping', requireProject('drive.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
-  res.json({ mapping: await storedMapping(projectId, 'geology'), fields: geologySectionFields });
+  reply<GeologyMapping>(res, 200, { mapping: await storedMapping(projectId, 'geology'), fields: geologySectionFields });
 });

@@ -10,6 +10,13 @@ import {
   receiveLineInputSchema,
   stockCountInputSchema,
   workshopSettingsInputSchema,
+  type PartList,
+  type PartMovements,
+  type PartRow,
+  type PartsDemand,
+  type PurchaseOrder,
+  type StockCounted,
+  type WorkshopSettings,
 } from '../../shared/schemas/parts';
 import { db, type DbOrTx } from '../db/client';
 import { parts, purchaseOrderLines, purchaseOrders, stockMovements, workshopSettings } from '../db/schema';
@@ -17,6 +24,7 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { computePartsDemand, loadWorkshopSettings, lockPartStock, suggestionsCsvRows } from '../services/parts';
 
 /** The buyer's parts: catalogue, stock, purchase orders, workshop loop and demand. Planners and site managers read. */
@@ -29,7 +37,7 @@ partsRouter.get('/', requireProject('parts.read'), async (req, res) => {
   const projectId = projectOf(req.params);
   const demand = await db.transaction((tx) => computePartsDemand(tx, projectId, new Date(), { weeks: 12 }));
   const byPart = new Map(demand.suggestions.map((s) => [s.partId, s]));
-  res.json({
+  reply<PartList>(res, 200, {
     parts: demand.parts.map((p) => {
       const s = byPart.get(p.id)!;
       return {
@@ -63,12 +71,12 @@ partsRouter.post('/', requireProject('parts.edit'), async (req, res) => {
     await audit(tx, { userId: me.id, projectId, entity: 'part', entityId: row.id, action: 'create', after: row });
     return row;
   });
-  res.status(201).json({ ...part, unitCost: Number(part.unitCost) });
+  reply<PartRow>(res, 201, { ...part, unitCost: Number(part.unitCost) });
 });
 
 /** The workshop loop settings (defaults until the buyer saves them). */
 partsRouter.get('/workshop', requireProject('parts.read'), async (req, res) => {
-  res.json(await loadWorkshopSettings(db, projectOf(req.params)));
+  reply<WorkshopSettings>(res, 200, await loadWorkshopSettings(db, projectOf(req.params)));
 });
 
 partsRouter.put('/workshop', requireProject('parts.edit'), async (req, res) => {
@@ -107,14 +115,14 @@ partsRouter.put('/workshop', requireProject('parts.edit'), async (req, res) => {
       .onConflictDoUpdate({ target: workshopSettings.projectId, set: { ...input, updatedAt: sql`now()` } });
     await audit(tx, { userId: me.id, projectId, entity: 'workshop_settings', entityId: projectId, action: 'update', before, after: input });
   });
-  res.json(await loadWorkshopSettings(db, projectId));
+  reply<WorkshopSettings>(res, 200, await loadWorkshopSettings(db, projectId));
 });
 
 /** Demand per part per week, projected stock, where it comes from, and order suggestions. */
 partsRouter.get('/demand', requireProject('parts.read'), async (req, res) => {
   const projectId = projectOf(req.params);
   const query = demandQuerySchema.parse(req.query);
-  res.json(await db.transaction((tx) => computePartsDemand(tx, projectId, new Date(), query)));
+  reply<PartsDemand>(res, 200, await db.transaction((tx) => computePartsDemand(tx, projectId, new Date(), query)));
 });
 
 partsRouter.get('/demand/suggestions.csv', requireProject('parts.read'), async (req, res) => {
@@ -159,7 +167,7 @@ async function listOrders(tx: DbOrTx, projectId: string, orderId?: string) {
 }
 
 partsRouter.get('/orders', requireProject('parts.read'), async (req, res) => {
-  res.json(await listOrders(db, projectOf(req.params)));
+  reply<PurchaseOrder[]>(res, 200, await listOrders(db, projectOf(req.params)));
 });
 
 /** Saves purchase orders inside a transaction: every part must be in the catalogue and every number new. */
@@ -218,7 +226,7 @@ partsRouter.post('/orders', requireProject('parts.edit'), async (req, res) => {
   const me = requireUser(req);
   const input = purchaseOrderInputSchema.parse(req.body);
   const [orderId] = await db.transaction((tx) => insertOrders(tx, projectId, me.id, [input]));
-  res.status(201).json((await listOrders(db, projectId, orderId))[0]);
+  reply<PurchaseOrder>(res, 201, (await listOrders(db, projectId, orderId))[0]);
 });
 
 /** Several orders at once, one per supplier (the suggestions filled in for two suppliers): all or none. */
@@ -228,13 +236,17 @@ partsRouter.post('/orders/batch', requireProject('parts.edit'), async (req, res)
   const input = purchaseOrderBatchInputSchema.parse(req.body);
   const ids = await db.transaction((tx) => insertOrders(tx, projectId, me.id, input.orders));
   const all = await listOrders(db, projectId);
-  res.status(201).json(ids.map((id) => all.find((o) => o.id === id)!));
+  reply<PurchaseOrder[]>(
+    res,
+    201,
+    ids.map((id) => all.find((o) => o.id === id)!),
+  );
 });
 
 partsRouter.get('/orders/:orderId', requireProject('parts.read'), async (req, res) => {
   const [order] = await listOrders(db, projectOf(req.params), idParam(req.params, 'orderId', 'That order'));
   if (!order) throw notFound('That order');
-  res.json(order);
+  reply<PurchaseOrder>(res, 200, order);
 });
 
 /** Receives a quantity of one order line: a receipt movement, in one transaction with the line, audited. */
@@ -285,7 +297,7 @@ partsRouter.post('/orders/:orderId/lines/:lineId/receive', requireProject('parts
       after: { ...after, received: input.qty, note: input.note },
     });
   });
-  res.json((await listOrders(db, projectId, orderId))[0]);
+  reply<PurchaseOrder>(res, 200, (await listOrders(db, projectId, orderId))[0]);
 });
 
 partsRouter.put('/:partId', requireProject('parts.edit'), async (req, res) => {
@@ -313,7 +325,7 @@ partsRouter.put('/:partId', requireProject('parts.edit'), async (req, res) => {
     await audit(tx, { userId: me.id, projectId, entity: 'part', entityId: partId, action: 'update', before, after });
     return after;
   });
-  res.json({ ...part, unitCost: Number(part.unitCost) });
+  reply<PartRow>(res, 200, { ...part, unitCost: Number(part.unitCost) });
 });
 
 /** Removes a part that has no stock history, no order lines and no place in a workshop bill of materials. */
@@ -368,7 +380,7 @@ partsRouter.post('/:partId/count', requireProject('parts.edit'), async (req, res
     });
     return { partId, onHand: input.countedQty, difference };
   });
-  res.json(result);
+  reply<StockCounted>(res, 200, result);
 });
 
 /** The stock movements of one part, newest first. */
@@ -386,5 +398,5 @@ partsRouter.get('/:partId/movements', requireProject('parts.read'), async (req, 
     .where(eq(stockMovements.partId, partId))
     .orderBy(desc(stockMovements.at), desc(stockMovements.id))
     .limit(200);
-  res.json({ part: { ...part, unitCost: Number(part.unitCost) }, movements });
+  reply<PartMovements>(res, 200, { part: { ...part, unitCost: Number(part.unitCost) }, movements });
 });

@@ -3,12 +3,14 @@ import { Router, type NextFunction, type Request, type Response } from 'express'
 import { fileTypeFromBuffer } from 'file-type';
 import multer from 'multer';
 import { z } from 'zod';
+import type { PhotoStored } from '../../shared/schemas/inspection';
 import { db } from '../db/client';
 import { entrySubmissions, photos } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, HttpError, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { removeStoredFile, storagePath, storeFile } from '../lib/storage';
 
 export const photosRouter = Router({ mergeParams: true });
@@ -53,7 +55,7 @@ photosRouter.post('/', requireProject('rounds.record'), receivePhoto, async (req
     .from(photos)
     .where(and(eq(photos.projectId, projectId), eq(photos.clientKey, fields.clientKey)));
   if (replay) {
-    res.status(200).json(replay);
+    reply<PhotoStored>(res, 200, replay);
     return;
   }
   if (!req.file) throw badRequest('No photo was attached. Send it in the field "photo".');
@@ -96,7 +98,7 @@ photosRouter.post('/', requireProject('rounds.record'), receivePhoto, async (req
       });
       return row;
     });
-    res.status(201).json(photo);
+    reply<PhotoStored>(res, 201, photo);
   } catch (err) {
     await removeStoredFile('photos', storedName);
     throw err;

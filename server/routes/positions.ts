@@ -1,7 +1,16 @@
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { Router } from 'express';
 import { Readable } from 'node:stream';
-import { layoutCsvInputSchema, layoutInputSchema, type PositionInput } from '../../shared/schemas/cutterhead';
+import {
+  layoutCsvInputSchema,
+  layoutInputSchema,
+  type LayoutPosition,
+  type LayoutSaved,
+  type Measurement,
+  type PositionDetail,
+  type PositionInput,
+} from '../../shared/schemas/cutterhead';
+import type { Sendable } from '../../shared/schemas/wire';
 import { db } from '../db/client';
 import { cutters, fittings, inspectionEntries, photos, positions, projects } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
@@ -10,13 +19,14 @@ import { readLayoutCsv } from '../lib/csv/layout';
 import { csvRefusal, unusedColumnWarnings } from '../lib/csv/upload';
 import { badRequest, HttpError, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { driveDataChanged } from '../services/drive-data';
 import { listPositions } from '../services/positions';
 
 export const positionsRouter = Router({ mergeParams: true });
 
 positionsRouter.get('/', requireProject('layout.read'), async (req, res) => {
-  res.json(await listPositions(idParam(req.params, 'projectId', 'That project')));
+  reply<LayoutPosition[]>(res, 200, await listPositions(idParam(req.params, 'projectId', 'That project')));
 });
 
 /** Checks a whole layout against the drive: unique numbers, radii inside the bore. Returns issues by row. */
@@ -87,7 +97,7 @@ async function saveLayout(projectId: string, userId: string, list: PositionInput
 positionsRouter.put('/', requireProject('layout.edit'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const { positions: list } = layoutInputSchema.parse(req.body);
-  res.json(await saveLayout(projectId, requireUser(req).id, list, (i) => `positions.${i}`));
+  reply<LayoutSaved>(res, 200, await saveLayout(projectId, requireUser(req).id, list, (i) => `positions.${i}`));
 });
 
 /**
@@ -115,7 +125,10 @@ positionsRouter.post('/import', requireProject('layout.edit'), async (req, res) 
     rows.map((r) => r.data),
     (i) => `row ${rows[i].line}`,
   );
-  res.json({ ...saved, warnings: unusedColumnWarnings(result.unusedColumns, { what: 'a cutterhead layout', canMap: false }) });
+  reply<LayoutSaved>(res, 200, {
+    ...saved,
+    warnings: unusedColumnWarnings(result.unusedColumns, { what: 'a cutterhead layout', canMap: false }),
+  });
 });
 
 /** One position: the serial on it now, every fitted period, every measurement, and photos. */
@@ -133,7 +146,8 @@ positionsRouter.get('/:positionId', requireProject('layout.read'), async (req, r
     .innerJoin(cutters, eq(cutters.id, fittings.cutterId))
     .where(eq(fittings.positionId, positionId))
     .orderBy(asc(fittings.fittedAt));
-  const measurements = await db.execute(sql`
+  // The row shape the query below selects (timestamps come back as Dates).
+  const measurements = await db.execute<Sendable<Measurement>>(sql`
     select e.id, e.wear_mm as "wearMm", e.conditions, e.action, e.note, e.remeasured, e.recorded_at as "recordedAt",
            r.started_at as "roundAt", r.chainage_m as "chainageM", r.ring_number as "ringNumber", e.fitting_id as "fittingId",
            c.serial, rc.serial as "removedSerial", fc.serial as "fittedSerial", e.change_reason as "changeReason"
@@ -151,7 +165,7 @@ positionsRouter.get('/:positionId', requireProject('layout.read'), async (req, r
     .innerJoin(inspectionEntries, eq(inspectionEntries.id, photos.entryId))
     .where(eq(inspectionEntries.positionId, positionId))
     .orderBy(asc(photos.createdAt));
-  res.json({
+  reply<PositionDetail>(res, 200, {
     position,
     periods: periods.map((p) => ({ ...p.fitting, serial: p.serial })),
     measurements: measurements.rows,

@@ -1,9 +1,11 @@
 import { eq } from 'drizzle-orm';
 import { Router } from 'express';
+import type { Project } from '../../shared/schemas/project';
 import { db } from '../db/client';
 import { memberships, projects } from '../db/schema';
 import { requireProject, requireSignedIn, requireUser } from '../middleware/auth';
 import { notFound } from '../lib/http-error';
+import { reply } from '../lib/reply';
 
 export const projectsRouter = Router();
 
@@ -16,7 +18,11 @@ projectsRouter.get('/', requireSignedIn, async (req, res) => {
     .innerJoin(projects, eq(projects.id, memberships.projectId))
     .where(eq(memberships.userId, user.id))
     .orderBy(projects.name);
-  res.json(rows.map((r) => ({ ...r.project, role: r.role })));
+  reply<Project[]>(
+    res,
+    200,
+    rows.map((r) => ({ ...r.project, role: r.role })),
+  );
 });
 
 projectsRouter.get('/:projectId', requireProject('project.read'), async (req, res) => {
@@ -25,6 +31,7 @@ projectsRouter.get('/:projectId', requireProject('project.read'), async (req, re
     .from(projects)
     .where(eq(projects.id, String(req.params.projectId)))
     .limit(1);
-  if (!project) throw notFound('That project');
-  res.json({ ...project, role: req.projectRole });
+  // requireProject set the caller's role (it answers 404 to a non-member).
+  if (!project || !req.projectRole) throw notFound('That project');
+  reply<Project>(res, 200, { ...project, role: req.projectRole });
 });

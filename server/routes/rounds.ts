@@ -1,12 +1,22 @@
 import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import { Router } from 'express';
-import { entryInputSchema, startRoundInputSchema } from '../../shared/schemas/inspection';
+import {
+  entryInputSchema,
+  startRoundInputSchema,
+  type EntryRecorded,
+  type Round,
+  type RoundDetail,
+  type RoundHistoryRow,
+  type RoundListItem,
+} from '../../shared/schemas/inspection';
+import type { Sendable } from '../../shared/schemas/wire';
 import { db } from '../db/client';
 import { inspectionEntries, inspectionRounds, photos } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { conflict, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { entryFlags, recordEntry, startRound } from '../services/inspections';
 import { listPositions } from '../services/positions';
 
@@ -23,14 +33,18 @@ roundsRouter.get('/', requireProject('rounds.read'), async (req, res) => {
     .from(inspectionRounds)
     .where(eq(inspectionRounds.projectId, projectId))
     .orderBy(desc(inspectionRounds.startedAt));
-  res.json(rows.map((r) => ({ ...r.round, entryCount: r.entries, changeCount: r.changes })));
+  reply<RoundListItem[]>(
+    res,
+    200,
+    rows.map((r) => ({ ...r.round, entryCount: r.entries, changeCount: r.changes })),
+  );
 });
 
 roundsRouter.post('/', requireProject('rounds.record'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const input = startRoundInputSchema.parse(req.body);
   const round = await db.transaction((tx) => startRound(tx, projectId, requireUser(req).id, input));
-  res.status(201).json(round);
+  reply<Round>(res, 201, round);
 });
 
 /** The round with every position, what was recorded for each, and the walking order of the last round. */
@@ -69,7 +83,7 @@ roundsRouter.get('/:roundId', requireProject('rounds.read'), async (req, res) =>
           .orderBy(asc(inspectionEntries.recordedAt))
       ).map((r) => r.positionId)
     : [];
-  res.json({
+  reply<RoundDetail>(res, 200, {
     round,
     positions: positionList,
     entries: entries.map((e) => ({
@@ -87,7 +101,7 @@ roundsRouter.post('/:roundId/entries', requireProject('rounds.record'), async (r
   const roundId = idParam(req.params, 'roundId', 'That inspection round');
   const input = entryInputSchema.parse(req.body);
   const result = await db.transaction((tx) => recordEntry(tx, projectId, roundId, requireUser(req).id, input));
-  res.status(result.replayed ? 200 : 201).json(result);
+  reply<EntryRecorded>(res, result.replayed ? 200 : 201, result);
 });
 
 roundsRouter.post('/:roundId/close', requireProject('rounds.record'), async (req, res) => {
@@ -110,14 +124,15 @@ roundsRouter.post('/:roundId/close', requireProject('rounds.record'), async (req
     await audit(tx, { userId: me.id, projectId, entity: 'inspection_round', entityId: roundId, action: 'close', before, after });
     return after;
   });
-  res.json(round);
+  reply<Round>(res, 200, round);
 });
 
 /** Who changed what on the entries of a round (the audit trail of edits after the fact). */
 roundsRouter.get('/:roundId/history', requireProject('rounds.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const roundId = idParam(req.params, 'roundId', 'That inspection round');
-  const rows = await db.execute(sql`
+  // The row shape the query below selects.
+  const rows = await db.execute<Sendable<RoundHistoryRow>>(sql`
     select a.at, a.action, a.before, a.after, u.name as "userName", p.number as "positionNumber"
     from audit_log a
     join inspection_entries e on e.id::text = a.entity_id
@@ -125,5 +140,5 @@ roundsRouter.get('/:roundId/history', requireProject('rounds.read'), async (req,
     left join users u on u.id = a.user_id
     where a.project_id = ${projectId} and a.entity = 'inspection_entry' and e.round_id = ${roundId}
     order by a.at`);
-  res.json(rows.rows);
+  reply<RoundHistoryRow[]>(res, 200, rows.rows);
 });

@@ -10,6 +10,9 @@ import {
   stopListQuerySchema,
   stopPlanQuerySchema,
   type StopAction,
+  type StopListItem,
+  type StopPlanView,
+  type WorkPack as WorkPackAnswer,
 } from '../../shared/schemas/stop';
 import { formatChainage } from '../../shared/domain/chainage';
 import { workPackText } from '../../shared/domain/work-pack';
@@ -22,6 +25,7 @@ import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
 import { enqueueMail, kickMailDelivery } from '../lib/mail';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { recipientsFor } from '../services/recipients';
 import { describeStopPlace, listStops, loadWorkPack, planForProject, type WorkPack } from '../services/stops';
 
@@ -91,13 +95,13 @@ const stopUrl = (_req: Request, projectId: string, stopId: string) => `${appUrl(
 stopsRouter.get('/plan', requireProject('stops.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const overrides = stopPlanQuerySchema.parse(req.query);
-  res.json(await db.transaction((tx) => planForProject(tx, projectId, new Date(), overrides)));
+  reply<StopPlanView>(res, 200, await db.transaction((tx) => planForProject(tx, projectId, new Date(), overrides)));
 });
 
 stopsRouter.get('/', requireProject('stops.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const { status } = stopListQuerySchema.parse(req.query);
-  res.json(await listStops(db, projectId, status));
+  reply<StopListItem[]>(res, 200, await listStops(db, projectId, status));
 });
 
 /** A proposed stop from a stop of the plan: at an allowed chainage ahead of the machine, changing positions of this drive. */
@@ -178,13 +182,13 @@ stopsRouter.post('/', requireProject('stops.plan'), async (req, res) => {
     });
     return loadWorkPack(tx, projectId, stop.id);
   });
-  res.status(201).json(pack);
+  reply<WorkPackAnswer>(res, 201, pack);
 });
 
 /** The stop and its work pack. */
 stopsRouter.get('/:stopId', requireProject('stops.read'), async (req, res) => {
   const { projectId, stopId } = ids(req);
-  res.json(await loadWorkPack(db, projectId, stopId));
+  reply<WorkPackAnswer>(res, 200, await loadWorkPack(db, projectId, stopId));
 });
 
 /** Date and time, crew, expected hours, free or compressed air. A change after publishing needs a new publish (and new reminders). */
@@ -226,7 +230,7 @@ stopsRouter.post('/:stopId/schedule', requireProject('stops.plan'), async (req, 
     await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'schedule', before, after });
     return loadWorkPack(tx, projectId, stopId);
   });
-  res.json(pack);
+  reply<WorkPackAnswer>(res, 200, pack);
 });
 
 /** Publishes a scheduled stop: every crew member gets the work pack and the cautions by e-mail (outbox, same transaction). */
@@ -266,7 +270,7 @@ stopsRouter.post('/:stopId/publish', requireProject('stops.plan'), async (req, r
     return published;
   });
   kickMailDelivery();
-  res.json(pack);
+  reply<WorkPackAnswer>(res, 200, pack);
 });
 
 stopsRouter.post('/:stopId/start', requireProject('stops.run'), async (req, res) => {
@@ -284,7 +288,7 @@ stopsRouter.post('/:stopId/start', requireProject('stops.run'), async (req, res)
     await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'start', before, after });
     return loadWorkPack(tx, projectId, stopId);
   });
-  res.json(pack);
+  reply<WorkPackAnswer>(res, 200, pack);
 });
 
 /** Finishes a stop, with the inspection round done during it if there was one. */
@@ -319,7 +323,7 @@ stopsRouter.post('/:stopId/complete', requireProject('stops.run'), async (req, r
     await audit(tx, { userId: me.id, projectId, entity: 'stop', entityId: stopId, action: 'complete', before, after });
     return loadWorkPack(tx, projectId, stopId);
   });
-  res.json(pack);
+  reply<WorkPackAnswer>(res, 200, pack);
 });
 
 /** Cancels an open stop with a reason; a crew that had the work pack is told. */
@@ -358,5 +362,5 @@ stopsRouter.post('/:stopId/cancel', requireProject('stops.plan'), async (req, re
     return cancelled;
   });
   if (mailed) kickMailDelivery();
-  res.json(pack);
+  reply<WorkPackAnswer>(res, 200, pack);
 });

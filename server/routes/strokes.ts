@@ -3,7 +3,13 @@ import { Router } from 'express';
 import { csvHead, csvRecord } from '../../shared/csv-writer';
 import { z } from 'zod';
 import { advanceLogFields } from '../../shared/csv-headers';
-import { advanceLogColumnMappingSchema } from '../../shared/schemas/advance-log';
+import {
+  advanceLogColumnMappingSchema,
+  type AdvanceLogImported,
+  type AdvanceLogMapping,
+  type DailyAdvance,
+  type StrokePage,
+} from '../../shared/schemas/advance-log';
 import { strokeListQuerySchema } from '../../shared/schemas/geology';
 import { isoWithSiteOffset } from '../../shared/site-time';
 import { db } from '../db/client';
@@ -12,6 +18,7 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { readAdvanceLogCsv } from '../lib/csv/advance-log';
 import { chosenMapping, csvRefusal, requireRawCsv, storedMapping, unusedColumnWarnings, uploadStream } from '../lib/csv/upload';
 import { idParam } from '../lib/params';
+import { reply } from '../lib/reply';
 import { importAdvanceLog } from '../services/advance-log-import';
 
 export const strokesRouter = Router({ mergeParams: true });
@@ -59,7 +66,7 @@ strokesRouter.get('/', requireProject('drive.read'), async (req, res) => {
       .offset((q.page - 1) * q.pageSize),
     db.select({ total: count() }).from(strokes).where(where),
   ]);
-  res.json({ rows, total, page: q.page, pageSize: q.pageSize });
+  reply<StrokePage>(res, 200, { rows, total, page: q.page, pageSize: q.pageSize });
 });
 
 /** The filtered log as CSV, streamed. */
@@ -117,7 +124,11 @@ strokesRouter.get('/daily', requireProject('drive.read'), async (req, res) => {
            sum(abs(chainage_end_m - chainage_start_m))::float8 as advance_m, count(*)::int as strokes
     from strokes where project_id = ${projectId}
     group by 1 order by 1`);
-  res.json(rows.rows.map((r) => ({ day: r.day, advanceM: r.advance_m, strokes: r.strokes })));
+  reply<DailyAdvance[]>(
+    res,
+    200,
+    rows.rows.map((r) => ({ day: r.day, advanceM: r.advance_m, strokes: r.strokes })),
+  );
 });
 
 const importQuerySchema = z.object({
@@ -159,11 +170,11 @@ strokesRouter.post('/import', requireProject('drive.edit'), async (req, res) => 
     ...unusedColumnWarnings(result.unusedColumns, { what: 'the advance log', keptAs: 'with each ring as extra data', canMap: true }),
     ...result.warnings,
   ];
-  res.status(outcome.inserted + outcome.replaced > 0 ? 201 : 200).json({ ...outcome, warnings, detected: result.detected });
+  reply<AdvanceLogImported>(res, outcome.inserted + outcome.replaced > 0 ? 201 : 200, { ...outcome, warnings, detected: result.detected });
 });
 
 /** The remembered column mapping of the advance log, with the fields Kerfwise knows. */
 strokesRouter.get('/mapping', requireProject('drive.read'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
-  res.json({ mapping: await storedMapping(projectId, 'advance_log'), fields: advanceLogFields });
+  reply<AdvanceLogMapping>(res, 200, { mapping: await storedMapping(projectId, 'advance_log'), fields: advanceLogFields });
 });

@@ -15,7 +15,7 @@ export interface BackupStatus {
   missingAfterHours: number;
   /** The newest good backup, by job run or on disk; null when there is none. */
   newestAt: Date | null;
-  lastGood: { at: Date | null; summary: string | null } | null;
+  lastGood: { at: Date; summary: string | null } | null;
   failedSince: { at: Date; error: string | null } | null;
   backupDir: string;
   onDisk: number;
@@ -37,7 +37,7 @@ export async function backupStatus(now: Date): Promise<BackupStatus> {
     missing: now.getTime() - newestMs > BACKUP_MISSING_AFTER_HOURS * 3600_000,
     missingAfterHours: BACKUP_MISSING_AFTER_HOURS,
     newestAt: newestMs > 0 ? new Date(newestMs) : null,
-    lastGood: good ? { at: goodAt, summary: good.summary } : null,
+    lastGood: good ? { at: good.finishedAt ?? good.startedAt, summary: good.summary } : null,
     failedSince: failed ? { at: failed.startedAt, error: failed.error } : null,
     backupDir: env().BACKUP_DIR,
     onDisk: onDisk.length,

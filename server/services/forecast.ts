@@ -6,7 +6,7 @@
  * (DEVELOPERS.md, decision 12). The split lets the benchmark time reading and computing apart.
  */
 import { and, asc, eq, sql } from 'drizzle-orm';
-import { discConditions, type PositionClass } from '../../shared/cutters';
+import { discConditions, type DiscCondition, type PositionClass } from '../../shared/cutters';
 import { cautiousRates, relativeScatter, type CautiousRate } from '../../shared/domain/cautious-rates';
 import { classifyCai } from '../../shared/domain/cerchar';
 import {
@@ -42,7 +42,7 @@ export function usableSection(s: { chainageFromM: number; chainageToM: number })
 
 export const defaultForecastSettings = {
   // Common practice, no source: centre discs roll slowly and wear a little less per km, gauge discs more.
-  classFactors: { centre: 0.8, face: 1, gauge: 1.5 },
+  classFactors: { centre: 0.8, face: 1 as const, gauge: 1.5 },
   gehringSiteFactor: 1,
   priorStrength: 5,
   tipWidthMm: 19, // DOMAIN.md §4: about 19 mm on 17″ rings (common practice)
@@ -157,7 +157,7 @@ export interface WearFitReport {
   fit: WearFit;
   grounds: { id: string; name: string; cai: number | null; caiClass: ReturnType<typeof classifyCai> | null; priorMmPerKm: number | null }[];
   failures: ReturnType<typeof suddenFailureRatesPer1000Km>;
-  abnormalEvents: { entryId: string; at: Date; positionNumber: number; conditions: string[]; chainageM: number }[];
+  abnormalEvents: { entryId: string; at: Date; positionNumber: number; conditions: DiscCondition[]; chainageM: number }[];
   observations: NormalWearObservation[];
   ringDiameterMm: number;
 }

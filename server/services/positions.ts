@@ -1,5 +1,6 @@
 /** The cutterhead's positions as the screens read them: shared by the positions and rounds routes. */
 import { sql } from 'drizzle-orm';
+import type { DiscCondition, PositionClass } from '../../shared/cutters';
 import { db } from '../db/client';
 
 /** The query behind GET …/positions; the benchmark runs the same text in bare pg as its limit. */
@@ -25,21 +26,19 @@ type PositionRow = {
   id: string;
   number: number;
   track_radius_mm: number;
-  position_class: string;
+  position_class: PositionClass;
   disc_size_in: number;
   tilt_deg: number | null;
   wear_limit_mm: number;
   twin_disc: boolean;
   angle_deg: number | null;
-  fitting_id: string | null;
-  serial: string | null;
-  cutter_id: string | null;
-  fitted_at: Date | null;
-  fitted_chainage_m: number | null;
   last_wear_mm: number | null;
   last_measured_at: Date | null;
-  last_conditions: string[] | null;
-};
+  last_conditions: DiscCondition[] | null;
+} & ( // the fitted disc's columns are all there when a disc is fitted (fittings and cutters columns are not null), else all null
+  | { fitting_id: string; serial: string; cutter_id: string; fitted_at: Date; fitted_chainage_m: number }
+  | { fitting_id: null; serial: null; cutter_id: null; fitted_at: null; fitted_chainage_m: null }
+);
 
 /** Positions with the serial on each now and the last wear measured on that disc. */
 export async function listPositions(projectId: string) {

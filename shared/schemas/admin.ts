@@ -100,7 +100,8 @@ export interface AdminMailView {
   /** Messages matching the filters (the list shows at most ADMIN_MAIL_LIMIT of them). */
   matching: number;
   outbox: { waiting: number; failing: number };
-  uncertain: { id: number; subject: string; toAddresses: string[]; claimedAt: string }[];
+  /** `claimedAt` is never null here (the query asks for claimed rows); the column allows null. */
+  uncertain: { id: number; subject: string; toAddresses: string[]; claimedAt: string | null }[];
 }
 
 /** GET /api/admin/projects/:projectId/members. */
@@ -109,4 +110,35 @@ export interface AdminMember {
   name: string;
   email: string;
   role: ProjectRole;
+}
+
+/** POST and PATCH /api/admin/users: the user as saved (without memberships). */
+export type AdminUserRow = Omit<AdminUser, 'memberships'>;
+
+/** POST and PATCH /api/admin/projects: the project as saved (without the member count). */
+export type AdminProjectRow = Omit<AdminProject, 'memberCount'>;
+
+/** PUT /api/admin/projects/:projectId/members/:userId: the membership as saved, with its role's label. */
+export interface AdminMembership {
+  id: string;
+  userId: string;
+  projectId: string;
+  role: ProjectRole;
+  roleLabel: string;
+}
+
+/** POST /api/admin/outbox/:outboxId/release (202). */
+export interface ReleasedMail {
+  released: number;
+}
+
+/** GET /api/admin/backups/status: the last good backup, a failure since, and whether one is missing. */
+export interface BackupStatus {
+  missing: boolean;
+  missingAfterHours: number;
+  lastGood: { at: string; summary: string | null } | null;
+  failedSince: { at: string; error: string | null } | null;
+  backupDir: string;
+  onDisk: number;
+  newestOnDisk: string | null;
 }

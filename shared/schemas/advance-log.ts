@@ -184,3 +184,35 @@ export interface ImportMapping<F extends string> {
 }
 export type AdvanceLogMapping = ImportMapping<AdvanceLogField>;
 export type GeologyMapping = ImportMapping<GeologySectionField>;
+
+/** A note about an imported file by row (0: the file as a whole) and column header, e.g. a column it did not read. */
+export interface ImportWarning {
+  row: number;
+  column: string;
+  message: string;
+}
+
+/** What an import found out about the file: its format, and the header each field was read from. */
+export interface ImportDetected<F extends string> {
+  bom: boolean;
+  /** Null when the file was refused before its delimiter was known. */
+  delimiter: ',' | ';' | '\t' | null;
+  decimalComma: boolean;
+  mapping: ColumnMapping<F>;
+}
+
+/** POST /strokes/import: 201 when rings were stored or replaced, else 200. */
+export interface AdvanceLogImported {
+  inserted: number;
+  unchanged: number;
+  replaced: number;
+  warnings: ImportWarning[];
+  detected: ImportDetected<AdvanceLogField>;
+}
+
+/** POST /geology/import (201): the long section is replaced by the file's sections. */
+export interface GeologyImported {
+  saved: number;
+  warnings: ImportWarning[];
+  detected: ImportDetected<GeologySectionField>;
+}

@@ -18,3 +18,23 @@ export interface Me {
   user: { id: string; email: string; name: string; isAdmin: boolean };
   memberships: { projectId: string; projectName: string; role: ProjectRole }[];
 }
+
+/** POST /api/auth/sign-in and /api/auth/set-password (which signs in): who is now signed in. */
+export interface SignedIn {
+  user: Me['user'];
+}
+
+/** POST /api/auth/password-reset (202): the same words whether or not the address has an account. */
+export interface ResetRequested {
+  message: string;
+}
+
+/** GET /api/auth/notifications: one e-mail this person can get, and whether it is on. */
+export interface NotificationChoice {
+  kind: string;
+  label: string;
+  enabled: boolean;
+}
+
+/** PUT /api/auth/notifications: the choice as saved (also its request body). */
+export type NotificationChoiceChange = Pick<NotificationChoice, 'kind' | 'enabled'>;

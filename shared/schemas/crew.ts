@@ -10,3 +10,13 @@ export const crewInputSchema = z.object({
     .refine((m) => new Set(m.map((x) => x.email)).size === m.length, 'The same e-mail address is in the crew twice.'),
 });
 export type CrewInput = z.infer<typeof crewInputSchema>;
+
+/** GET /crews (a list) and PUT /crews/:crewId: a crew with its members. */
+export interface Crew {
+  id: string;
+  name: string;
+  members: { id: string; name: string; email: string }[];
+}
+
+/** POST /crews (201): the crew as saved; its members are read with GET /crews. */
+export type CrewRow = Omit<Crew, 'members'>;

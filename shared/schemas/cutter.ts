@@ -24,6 +24,7 @@ export const cutterListQuerySchema = z.object({
   status: z.enum(cutterStatuses).optional(),
   q: singleLine('The search', 40).optional(),
 });
+export type CutterListQuery = z.infer<typeof cutterListQuerySchema>;
 
 /** Workshop outcome for a removed cutter: rebuilt (what was renewed) and back in store, or scrapped. */
 export const workshopInputSchema = z.discriminatedUnion('outcome', [
@@ -80,6 +81,7 @@ export interface CutterLife {
     kind: string;
     positionId: string | null;
     positionNumber: number | null;
-    details: Record<string, unknown>;
+    /** What the event recorded (its shape depends on `kind`). */
+    details: unknown;
   }[];
 }

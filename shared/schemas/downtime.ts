@@ -68,6 +68,8 @@ const day = (label: string) => calendarDate(label);
 export const downtimePeriodQuerySchema = z
   .object({ from: day('from').optional(), to: day('to').optional() })
   .refine((q) => !q.from || !q.to || q.from <= q.to, { path: ['to'], message: 'to must not be before from.' });
+/** A period as the client asks for it (query text of /report and /cost). */
+export type PeriodQuery = z.input<typeof downtimePeriodQuerySchema>;
 
 export const reportQuerySchema = downtimePeriodQuerySchema.and(
   z.object({

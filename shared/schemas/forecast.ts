@@ -53,6 +53,9 @@ export const forecastSettingsInputSchema = z.object({
 });
 export type ForecastSettingsInput = z.infer<typeof forecastSettingsInputSchema>;
 
+/** GET /forecast/settings and the answer of PUT: the settings in force (the defaults until a change is saved). */
+export type ForecastSettingsView = ForecastSettingsInput;
+
 export const forecastQuerySchema = z.object({ positionId: z.uuid().optional() });
 
 export type Explanation = Wire<ChangeOutForecast['explanation']>;

@@ -73,3 +73,9 @@ export interface Geology {
   warnings: GeologyGapWarning[];
   currentChainageM: number | null;
 }
+
+/** PUT /geology: how many sections were saved, and the gaps and overlaps left to look at. */
+export interface LongSectionSaved {
+  saved: number;
+  warnings: GeologyGapWarning[];
+}

@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { chainageM, freeText, instant, ringNumber, singleLine } from './fields';
 import { conditionsSchema, serialSchema } from './cutter';
 import type { DiscCondition } from '../cutters';
+import type { LayoutPosition } from './cutterhead';
 
 export const startRoundInputSchema = z.object({
   startedAt: instant('The start of the round', 'Give the date and time of the round.'),
@@ -66,21 +67,8 @@ export interface RoundListItem extends Round {
   changeCount: number;
 }
 
-/** A cutterhead position as the round screen gets it: the serial on it now and its last wear. */
-export interface RoundPosition {
-  id: string;
-  number: number;
-  trackRadiusMm: number;
-  positionClass: 'centre' | 'face' | 'gauge';
-  discSizeIn: number;
-  tiltDeg: number | null;
-  wearLimitMm: number;
-  twinDisc: boolean;
-  current: { fittingId: string; cutterId: string; serial: string; fittedAt: string; fittedChainageM: number } | null;
-  lastWearMm: number | null;
-  lastMeasuredAt: string | null;
-  lastConditions: DiscCondition[];
-}
+/** A cutterhead position as the round screen gets it (GET /positions' rows): the serial on it now and its last wear. */
+export type RoundPosition = LayoutPosition;
 
 /** What the server stored for one position in this round, with the flags the fitter sees. */
 export interface RoundEntry {
@@ -114,4 +102,37 @@ export interface StoreCutter {
   serial: string;
   discSizeIn: number;
   rebuildCount: number;
+}
+
+/** The flags the fitter sees beside an entry. */
+export interface EntryFlags {
+  overLimit: boolean;
+  needsChange: boolean;
+}
+
+/** POST /rounds/:roundId/entries: the entry as stored (201), or as stored before when the same clientKey came again (200, `replayed`). */
+export interface EntryRecorded extends EntryFlags {
+  entry: Omit<RoundEntry, keyof EntryFlags | 'photoIds'>;
+  replayed: boolean;
+}
+
+/** GET /rounds/:roundId/history: one change to an entry of the round, oldest first. */
+export interface RoundHistoryRow {
+  at: string;
+  action: string;
+  before: unknown;
+  after: unknown;
+  userName: string | null;
+  positionNumber: number;
+}
+
+/** POST /photos: the photo as stored (201), or as stored before when the same clientKey came again (200). */
+export interface PhotoStored {
+  id: string;
+  entryId: string;
+  clientKey: string;
+  mimeType: string;
+  sizeBytes: number;
+  originalName: string;
+  createdAt: string;
 }

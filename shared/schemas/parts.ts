@@ -323,3 +323,40 @@ export interface PurchaseOrder {
   open: boolean;
   lines: OrderLine[];
 }
+
+/** GET /parts: the catalogue with stock and order flags, and what kept the demand from being complete. */
+export interface PartList {
+  parts: PartListItem[];
+  problems: string[];
+}
+
+/** POST /parts and PUT /parts/:partId: the part as saved (stock is read with GET /parts). */
+export type PartRow = Omit<CataloguePart, 'onHand' | 'onOrder'>;
+
+/** GET and PUT /parts/workshop: the workshop loop settings in force (the defaults until the buyer saves them). */
+export type WorkshopSettings = WorkshopSettingsInput;
+
+/** POST /parts/:partId/count: the counted stock and its difference from the book stock. */
+export interface StockCounted {
+  partId: string;
+  onHand: number;
+  difference: number;
+}
+
+/** One stock movement; `qty` is signed. */
+export interface StockMovement {
+  id: number;
+  partId: string;
+  at: string;
+  qty: number;
+  kind: string;
+  note: string;
+  purchaseOrderLineId: string | null;
+  userId: string | null;
+}
+
+/** GET /parts/:partId/movements: the part and its last 200 movements, newest first. */
+export interface PartMovements {
+  part: PartRow;
+  movements: StockMovement[];
+}

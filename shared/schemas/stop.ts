@@ -248,6 +248,9 @@ export interface StopListItem extends Stop {
   positionCount: number;
 }
 
+/** What a downtime event needs of a stop to link to it: a row of GET /stops, read in part. */
+export type StopOption = Pick<StopListItem, 'id' | 'chainageM' | 'ringNumber' | 'status' | 'plannedStart' | 'actualStart'>;
+
 /** GET /stops/:stopId and the answer of every change to a stop. */
 export interface WorkPack {
   stop: Stop;
@@ -270,11 +273,7 @@ export interface WorkPack {
   cautions: string[];
 }
 
-export interface Crew {
-  id: string;
-  name: string;
-  members: { id: string; name: string; email: string }[];
-}
+export type { Crew } from './crew';
 
 export interface RoundOption {
   id: string;

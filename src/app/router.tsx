@@ -12,7 +12,9 @@ import { driveDataQueries } from '../features/drive-data/api';
 import { forecastQueries } from '../features/forecast/api';
 import { projectQueries } from '../features/projects/api';
 import { roundQueries } from '../features/rounds/api';
-import { stopQueries } from '../features/stops/api';
+import { downtimeQueries, eventFiltersFrom, periodFrom } from '../features/downtime/api';
+import { demandFiltersFrom, partQueries } from '../features/parts/api';
+import { stopListStatus, stopPlanOverrides, stopQueries } from '../features/stops/api';
 import { geologyQueries } from '../lib/geology-queries';
 import { queryClient } from '../lib/query-client';
 import { RouteError } from './route-error';
@@ -20,8 +22,12 @@ import { RouteError } from './route-error';
 type Params = LoaderFunctionArgs['params'];
 /** Any feature's queryOptions (their data types differ; the loader only starts them). */
 type Prefetch = { queryKey: readonly unknown[] };
-/** What a page reads first: started together by its loader (below), so the page does not wait for one query after another. */
-type PageQueries = (params: Params) => Prefetch[];
+/**
+ * What a page reads first, from the address's ids and its query text (read by the same function
+ * the page uses, e.g. `stopPlanOverrides`, so the keys match): started together by its loader
+ * (below), so the page does not wait for one query after another.
+ */
+type PageQueries = (params: Params, search: URLSearchParams) => Prefetch[];
 
 /**
  * A page: its module loaded lazily (so the first load stays small) and, when it names them, its
@@ -34,10 +40,11 @@ function page(pattern: string, load: () => Promise<ComponentType>, queries?: Pag
     path: pattern,
     lazy: async () => ({ Component: await load() }),
     loader: queries
-      ? async ({ params }) => {
+      ? async ({ params, request }) => {
           // A failure here is the AppShell's to show ("could not reach its server").
           const me = await queryClient.ensureQueryData(authQueries.me()).catch(() => null);
-          if (me) for (const q of queries(params)) void queryClient.prefetchQuery(q as FetchQueryOptions);
+          const search = new URL(request.url).searchParams;
+          if (me) for (const q of queries(params, search)) void queryClient.prefetchQuery(q as FetchQueryOptions);
           return null;
         }
       : undefined,
@@ -46,8 +53,22 @@ function page(pattern: string, load: () => Promise<ComponentType>, queries?: Pag
 
 const project = (params: Params) => projectQueries.detail(params.projectId ?? '');
 const withProject =
-  (more: (projectId: string, params: Params) => Prefetch[]): PageQueries =>
-  (params) => [project(params), ...more(params.projectId ?? '', params)];
+  (more: (projectId: string, params: Params, search: URLSearchParams) => Prefetch[]): PageQueries =>
+  (params, search) => [project(params), ...more(params.projectId ?? '', params, search)];
+
+/** The parts page's open tab (?tab=, the stock tab unless named) and what it reads first. */
+function partsTabQueries(projectId: string, search: URLSearchParams): Prefetch[] {
+  switch (search.get('tab')) {
+    case 'orders':
+      return [partQueries.orders(projectId)];
+    case 'catalogue':
+      return [partQueries.list(projectId)];
+    case 'workshop':
+      return [partQueries.workshop(projectId), partQueries.list(projectId)];
+    default:
+      return [partQueries.demand(projectId, demandFiltersFrom(search))];
+  }
+}
 
 /** Every route; patterns come from `paths` (src/config/paths.ts), never written here. */
 export const router = createBrowserRouter([
@@ -136,32 +157,36 @@ export const router = createBrowserRouter([
           page(
             paths.parts.pattern,
             async () => (await import('../features/parts/routes/parts')).PartsRoute,
-            withProject(() => []),
+            withProject((id, _p, search) => partsTabQueries(id, search)),
           ),
           page(
             paths.downtime.pattern,
             async () => (await import('../features/downtime/routes/downtime-events')).DowntimeEventsRoute,
-            withProject(() => []),
+            withProject((id, _p, search) => [
+              downtimeQueries.events(id, eventFiltersFrom(search).query),
+              downtimeQueries.causes(id),
+              downtimeQueries.settings(id),
+            ]),
           ),
           page(
             paths.downtimeReport.pattern,
             async () => (await import('../features/downtime/routes/downtime-report')).DowntimeReportRoute,
-            withProject(() => []),
+            withProject((id, _p, search) => [downtimeQueries.report(id, periodFrom(search))]),
           ),
           page(
             paths.cutterCost.pattern,
             async () => (await import('../features/downtime/routes/cutter-cost')).CutterCostRoute,
-            withProject(() => []),
+            withProject((id, _p, search) => [downtimeQueries.cost(id, periodFrom(search))]),
           ),
           page(
             paths.stops.pattern,
             async () => (await import('../features/stops/routes/stops')).StopsRoute,
-            withProject(() => []),
+            withProject((id, _p, search) => [stopQueries.list(id, stopListStatus(search))]),
           ),
           page(
             paths.stopPlan.pattern,
             async () => (await import('../features/stops/routes/plan')).StopPlanRoute,
-            withProject(() => []),
+            withProject((id, _p, search) => [stopQueries.plan(id, stopPlanOverrides(search))]),
           ),
           page(
             paths.stop.pattern,

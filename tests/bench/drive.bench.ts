@@ -98,7 +98,7 @@ export async function loadBenchDrive(): Promise<string> {
       clientKey: randomUUIDLike(r, i),
       fittingId: fitted[i].id,
       wearMm: Math.round(((p.trackRadiusMm / 4500) * r * 0.6 + 0.1) * 10) / 10,
-      conditions: ['even_wear'],
+      conditions: ['even_wear' as const],
     }));
     const saved = await db
       .insert(inspectionEntries)

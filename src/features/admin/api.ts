@@ -7,18 +7,27 @@ import type {
   AdminMailQuery,
   AdminMailView,
   AdminMember,
+  AdminMembership,
   AdminProject,
+  AdminProjectRow,
   AdminUser,
+  AdminUserRow,
+  BackupStatus,
   JobInfo,
   JobRunRow,
+  ReleasedMail,
 } from '../../../shared/schemas/admin';
 export type {
   AdminMail,
   AdminMailQuery,
   AdminMailView,
   AdminMember,
+  AdminMembership,
   AdminUser,
+  AdminUserRow,
   AdminProject,
+  AdminProjectRow,
+  BackupStatus,
   JobRunRow,
   JobInfo,
   MailAbout,
@@ -30,16 +39,6 @@ export type {
  * project yet). See DEVELOPERS.md, decision 30.
  */
 export const installationTimeZone = (projects: readonly Pick<AdminProject, 'siteTimeZone'>[]) => projects[0]?.siteTimeZone ?? 'UTC';
-
-export interface BackupStatus {
-  missing: boolean;
-  missingAfterHours: number;
-  lastGood: { at: string; summary: string | null } | null;
-  failedSince: { at: string; error: string | null } | null;
-  backupDir: string;
-  onDisk: number;
-  newestOnDisk: string | null;
-}
 
 export const adminQueries = {
   all: ['admin'] as const,
@@ -74,17 +73,17 @@ export const adminQueries = {
     }),
 };
 
-export const inviteUser = (input: InviteUserInput) => api<AdminUser>('POST', '/api/admin/users', input);
-export const updateUser = (userId: string, input: UpdateUserInput) => api<AdminUser>('PATCH', `/api/admin/users/${userId}`, input);
-export const createProject = (input: ProjectInput) => api<AdminProject>('POST', '/api/admin/projects', input);
+export const inviteUser = (input: InviteUserInput) => api<AdminUserRow>('POST', '/api/admin/users', input);
+export const updateUser = (userId: string, input: UpdateUserInput) => api<AdminUserRow>('PATCH', `/api/admin/users/${userId}`, input);
+export const createProject = (input: ProjectInput) => api<AdminProjectRow>('POST', '/api/admin/projects', input);
 export const setMembership = (projectId: string, userId: string, role: ProjectRole) =>
-  api('PUT', `/api/admin/projects/${projectId}/members/${userId}`, { role });
+  api<AdminMembership>('PUT', `/api/admin/projects/${projectId}/members/${userId}`, { role });
 export const removeMembership = (projectId: string, userId: string) =>
   api<void>('DELETE', `/api/admin/projects/${projectId}/members/${userId}`);
 /** `again`: the administrator confirmed sending a weekly digest's week a second time. */
 export const runJobNow = ({ name, again = false }: { name: string; again?: boolean }) =>
   api<JobRunRow>('POST', `/api/admin/jobs/${name}/run${again ? '?again=true' : ''}`);
-export const releaseUncertainMail = (id: number) => api('POST', `/api/admin/outbox/${id}/release`);
+export const releaseUncertainMail = (id: number) => api<ReleasedMail>('POST', `/api/admin/outbox/${id}/release`);
 
 /** Every administrative change invalidates `adminQueries.all`: users, projects and members move together. */
 function useAdminMutation<TInput, TResult>(mutationFn: (input: TInput) => Promise<TResult>) {

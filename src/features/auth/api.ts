@@ -2,8 +2,8 @@ import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query
 import type { PasswordResetRequest, SignInInput } from '../../../shared/schemas/auth';
 import type { ChangePasswordInput, SetPasswordInput } from '../../../shared/schemas/password';
 import { api, apiGet, ApiError } from '../../lib/api-client';
-import type { Me } from '../../../shared/schemas/auth';
-export type { Me } from '../../../shared/schemas/auth';
+import type { Me, NotificationChoice, NotificationChoiceChange, ResetRequested, SignedIn } from '../../../shared/schemas/auth';
+export type { Me, NotificationChoice, NotificationChoiceChange } from '../../../shared/schemas/auth';
 
 /** The signed-in user, or null when nobody is signed in. */
 export async function getMe(): Promise<Me | null> {
@@ -21,19 +21,13 @@ export const authQueries = {
   notifications: () => queryOptions({ queryKey: [...authQueries.all, 'notifications'], queryFn: getNotificationChoices }),
 };
 
-/** One e-mail this person can get, and whether it is on. */
-export interface NotificationChoice {
-  kind: string;
-  label: string;
-  enabled: boolean;
-}
 export const getNotificationChoices = () => apiGet<NotificationChoice[]>('/api/auth/notifications');
-export const setNotificationChoice = (c: { kind: string; enabled: boolean }) => api('PUT', '/api/auth/notifications', c);
+export const setNotificationChoice = (c: NotificationChoiceChange) => api<NotificationChoiceChange>('PUT', '/api/auth/notifications', c);
 
-export const signIn = (input: SignInInput) => api<{ user: Me['user'] }>('POST', '/api/auth/sign-in', input);
+export const signIn = (input: SignInInput) => api<SignedIn>('POST', '/api/auth/sign-in', input);
 export const signOut = () => api<void>('POST', '/api/auth/sign-out');
-export const requestPasswordReset = (input: PasswordResetRequest) => api<{ message: string }>('POST', '/api/auth/password-reset', input);
-export const setPassword = (input: SetPasswordInput) => api<{ user: Me['user'] }>('POST', '/api/auth/set-password', input);
+export const requestPasswordReset = (input: PasswordResetRequest) => api<ResetRequested>('POST', '/api/auth/password-reset', input);
+export const setPassword = (input: SetPasswordInput) => api<SignedIn>('POST', '/api/auth/set-password', input);
 export const changePassword = (input: ChangePasswordInput) => api<void>('POST', '/api/auth/change-password', input);
 
 /** Signing in (or setting a password, which signs in) drops every cached answer about who is signed in. */

@@ -1,14 +1,11 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
-import type { CutterStatus } from '../../../shared/cutters';
-import type { ReceiveCutterInput, WorkshopInput } from '../../../shared/schemas/cutter';
+import type { CutterListQuery, ReceiveCutterInput, WorkshopInput } from '../../../shared/schemas/cutter';
 import { api, apiGet } from '../../lib/api-client';
 import type { Cutter, CutterListItem, CutterLife } from '../../../shared/schemas/cutter';
 export type { Cutter, CutterListItem, CutterLife } from '../../../shared/schemas/cutter';
 
-export interface CutterFilters {
-  status?: CutterStatus;
-  q?: string;
-}
+/** The store list's filters: the query of GET /cutters. */
+export type CutterFilters = CutterListQuery;
 
 const base = (projectId: string) => `/api/projects/${projectId}/cutters`;
 

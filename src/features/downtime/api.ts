@@ -9,27 +9,36 @@ import type {
   DowntimeEventRow,
   DowntimeReport,
   EventListQuery,
+  PeriodQuery,
   ProposeFromGapsResult,
   SiteSettings,
   SiteSettingsInput,
 } from '../../../shared/schemas/downtime';
+import { stopQueries } from '../stops/api';
+export type { PeriodQuery } from '../../../shared/schemas/downtime';
+export type { StopOption } from '../../../shared/schemas/stop';
 import { api, apiGet } from '../../lib/api-client';
 
-/** A period of site calendar days; left out, the server takes the last eight ISO weeks with data. */
-export interface PeriodQuery {
-  from?: string;
-  to?: string;
+/** The cause filter's value for "no cause yet". */
+export const UNEXPLAINED = 'unexplained';
+
+/** The event list's filters from the address: the cause chosen (an id, UNEXPLAINED or '') and the query. Page and loader read them so. */
+export function eventFiltersFrom(params: URLSearchParams) {
+  const cause = params.get('unexplained') === 'true' ? UNEXPLAINED : (params.get('causeId') ?? '');
+  const query = {
+    from: params.get('from') ?? undefined,
+    to: params.get('to') ?? undefined,
+    causeId: cause && cause !== UNEXPLAINED ? cause : undefined,
+    unexplained: cause === UNEXPLAINED ? ('true' as const) : undefined,
+  };
+  return { cause, query };
 }
 
-/** A stop of the drive, to link an event to (from the stops API). */
-export interface StopOption {
-  id: string;
-  chainageM: number;
-  ringNumber: number | null;
-  status: string;
-  plannedStart: string | null;
-  actualStart: string | null;
-}
+/** The report's period from the address (?from=&to=). */
+export const periodFrom = (params: URLSearchParams): PeriodQuery => ({
+  from: params.get('from') ?? undefined,
+  to: params.get('to') ?? undefined,
+});
 
 const base = (projectId: string) => `/api/projects/${projectId}/downtime`;
 
@@ -60,7 +69,6 @@ export const getReport = (projectId: string, period: PeriodQuery) =>
   apiGet<DowntimeReport>(`${base(projectId)}/report${queryString(period)}`);
 export const getCost = (projectId: string, period: PeriodQuery) =>
   apiGet<CutterCostReport>(`${base(projectId)}/cost${queryString(period)}`);
-export const getStopOptions = (projectId: string) => apiGet<StopOption[]>(`/api/projects/${projectId}/stops`);
 
 export const downtimeQueries = {
   all: (projectId: string) => ['projects', projectId, 'downtime'] as const,
@@ -74,8 +82,8 @@ export const downtimeQueries = {
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'report', period], queryFn: () => getReport(projectId, period) }),
   cost: (projectId: string, period: PeriodQuery) =>
     queryOptions({ queryKey: [...downtimeQueries.all(projectId), 'cost', period], queryFn: () => getCost(projectId, period) }),
-  stops: (projectId: string) =>
-    queryOptions({ queryKey: ['projects', projectId, 'stops', 'options'], queryFn: () => getStopOptions(projectId) }),
+  /** The drive's stops to link an event to: the stops list's own query (one fetch, one cache entry). */
+  stops: (projectId: string) => stopQueries.list(projectId),
 };
 
 /** Every downtime write invalidates `downtimeQueries.all`: events, causes, settings and reports move together. */

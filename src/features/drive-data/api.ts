@@ -1,11 +1,10 @@
 import { keepPreviousData, queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
-import type { GeologyGapWarning } from '../../../shared/domain/geology';
 import type { GroundTypeInput, SectionInput, StrokeListQuery } from '../../../shared/schemas/geology';
 import type { ApiIssue } from '../../../shared/schemas/api-error';
 import { api, apiGet, ApiError } from '../../lib/api-client';
 import type { StrokePage, DailyAdvance, AdvanceLogMapping, GeologyMapping } from '../../../shared/schemas/advance-log';
-import type { GroundType } from '../../../shared/schemas/geology';
-export type { GroundType, GeologySection, Geology } from '../../../shared/schemas/geology';
+import type { GroundType, LongSectionSaved } from '../../../shared/schemas/geology';
+export type { GroundType, GeologySection, Geology, LongSectionSaved } from '../../../shared/schemas/geology';
 export type { Stroke, StrokePage, DailyAdvance, AdvanceLogMapping, GeologyMapping } from '../../../shared/schemas/advance-log';
 
 /** Filters of the advance-log list (the paging and sorting come with them in StrokeListQuery). */
@@ -36,7 +35,7 @@ export const updateGroundType = (projectId: string, id: string, input: GroundTyp
   api<GroundType>('PATCH', `${base(projectId)}/ground-types/${id}`, input);
 export const deleteGroundType = (projectId: string, id: string) => api<void>('DELETE', `${base(projectId)}/ground-types/${id}`);
 export const saveLongSection = (projectId: string, sections: SectionInput[]) =>
-  api<{ saved: number; warnings: GeologyGapWarning[] }>('PUT', `${base(projectId)}/geology`, { sections });
+  api<LongSectionSaved>('PUT', `${base(projectId)}/geology`, { sections });
 
 export const driveDataQueries = {
   all: (projectId: string) => ['projects', projectId, 'drive-data'] as const,

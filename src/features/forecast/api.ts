@@ -1,5 +1,5 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
-import type { ForecastSettingsInput } from '../../../shared/schemas/forecast';
+import type { ForecastSettingsInput, ForecastSettingsView } from '../../../shared/schemas/forecast';
 import { api, apiGet } from '../../lib/api-client';
 import type { Forecast, WearFitReport } from '../../../shared/schemas/forecast';
 export type { Geology, GroundType } from '../../../shared/schemas/geology';
@@ -10,9 +10,9 @@ const base = (projectId: string) => `/api/projects/${projectId}`;
 export const getWearFit = (projectId: string) => apiGet<WearFitReport>(`${base(projectId)}/wear-fit`);
 export const getForecast = (projectId: string, positionId?: string) =>
   apiGet<Forecast>(`${base(projectId)}/forecast${positionId ? `?positionId=${encodeURIComponent(positionId)}` : ''}`);
-export const getForecastSettings = (projectId: string) => apiGet<ForecastSettingsInput>(`${base(projectId)}/forecast/settings`);
+export const getForecastSettings = (projectId: string) => apiGet<ForecastSettingsView>(`${base(projectId)}/forecast/settings`);
 export const saveForecastSettings = (projectId: string, input: ForecastSettingsInput) =>
-  api<unknown>('PUT', `${base(projectId)}/forecast/settings`, input);
+  api<ForecastSettingsView>('PUT', `${base(projectId)}/forecast/settings`, input);
 
 /**
  * The forecast follows every new inspection, import and geology change, so its queries go stale

@@ -1,5 +1,6 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { LayoutInput } from '../../../shared/schemas/cutterhead';
+import type { Forecast, PositionForecast } from '../../../shared/schemas/forecast';
 import { api, apiGet } from '../../lib/api-client';
 import type { LayoutPosition, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
 export type { LayoutPosition, FittedPeriod, Measurement, PositionDetail, LayoutSaved } from '../../../shared/schemas/cutterhead';
@@ -13,16 +14,10 @@ export const importLayoutCsv = (projectId: string, csv: string) => api<LayoutSav
 export const photoUrl = (projectId: string, photoId: string) => `/api/projects/${projectId}/photos/${photoId}`;
 
 /** What the picture's forecast view needs of GET /forecast: metres left per position (cautious P90). */
-export interface RemainingMetres {
-  positionId: string;
-  remainingM: number;
-  status: 'reaches_limit' | 'over_limit' | 'beyond_known_ground';
-}
+export type RemainingMetres = Pick<PositionForecast['p90'], 'remainingM' | 'status'> & { positionId: string };
 
 export async function getRemainingMetres(projectId: string): Promise<RemainingMetres[]> {
-  const f = await apiGet<{
-    positions: { position: { positionId: string }; p90: { remainingM: number; status: RemainingMetres['status'] } }[];
-  }>(`/api/projects/${projectId}/forecast`);
+  const f = await apiGet<Forecast>(`/api/projects/${projectId}/forecast`);
   return f.positions.map((p) => ({ positionId: p.position.positionId, remainingM: p.p90.remainingM, status: p.p90.status }));
 }
 

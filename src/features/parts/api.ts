@@ -1,5 +1,6 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type {
+  DemandQuery,
   PartInput,
   PurchaseOrderBatchInput,
   PurchaseOrderInput,
@@ -8,7 +9,15 @@ import type {
   WorkshopSettingsInput,
 } from '../../../shared/schemas/parts';
 import { api, apiGet } from '../../lib/api-client';
-import type { CataloguePart, PartListItem, PartsDemand, OrderLine, PurchaseOrder } from '../../../shared/schemas/parts';
+import type {
+  PartList,
+  PartRow,
+  PartsDemand,
+  OrderLine,
+  PurchaseOrder,
+  StockCounted,
+  WorkshopSettings,
+} from '../../../shared/schemas/parts';
 export type {
   CataloguePart,
   PartListItem,
@@ -17,32 +26,44 @@ export type {
   PartsDemand,
   OrderLine,
   PurchaseOrder,
+  PartList,
+  PartRow,
+  StockCounted,
+  WorkshopSettings,
 } from '../../../shared/schemas/parts';
 
-export interface DemandFilters {
-  weeks: number;
-  serviceLevel?: number;
+/** The demand's filters: the query of GET /parts/demand (the service level takes its default when left out). */
+export type DemandFilters = Pick<DemandQuery, 'weeks'> & Partial<Pick<DemandQuery, 'serviceLevel'>>;
+
+/** The horizons (weeks) the stock tab offers; 12 unless the address asks for another. */
+export const demandHorizons = [4, 8, 12, 26, 52];
+
+/** The demand's filters from the address (?weeks=&serviceLevel=), values outside the offer left out. Page and loader read them so. */
+export function demandFiltersFrom(search: URLSearchParams): DemandFilters {
+  const weeks = Number(search.get('weeks')) || 12;
+  const level = Number(search.get('serviceLevel'));
+  return { weeks: demandHorizons.includes(weeks) ? weeks : 12, serviceLevel: level >= 0.5 && level < 1 ? level : undefined };
 }
 
 const base = (projectId: string) => `/api/projects/${projectId}/parts`;
 const demandQuery = (f: DemandFilters) => `weeks=${f.weeks}${f.serviceLevel ? `&serviceLevel=${f.serviceLevel}` : ''}`;
 
-export const getParts = (projectId: string) => apiGet<{ parts: PartListItem[]; problems: string[] }>(base(projectId));
+export const getParts = (projectId: string) => apiGet<PartList>(base(projectId));
 export const getDemand = (projectId: string, f: DemandFilters) => apiGet<PartsDemand>(`${base(projectId)}/demand?${demandQuery(f)}`);
 export const getOrders = (projectId: string) => apiGet<PurchaseOrder[]>(`${base(projectId)}/orders`);
-export const getWorkshop = (projectId: string) => apiGet<WorkshopSettingsInput>(`${base(projectId)}/workshop`);
+export const getWorkshop = (projectId: string) => apiGet<WorkshopSettings>(`${base(projectId)}/workshop`);
 
-export const createPart = (projectId: string, input: PartInput) => api<CataloguePart>('POST', base(projectId), input);
+export const createPart = (projectId: string, input: PartInput) => api<PartRow>('POST', base(projectId), input);
 export const updatePart = (projectId: string, partId: string, input: PartInput) =>
-  api<CataloguePart>('PUT', `${base(projectId)}/${partId}`, input);
+  api<PartRow>('PUT', `${base(projectId)}/${partId}`, input);
 export const deletePart = (projectId: string, partId: string) => api<void>('DELETE', `${base(projectId)}/${partId}`);
 export const countStock = (projectId: string, partId: string, input: StockCountInput) =>
-  api<{ partId: string; onHand: number; difference: number }>('POST', `${base(projectId)}/${partId}/count`, input);
+  api<StockCounted>('POST', `${base(projectId)}/${partId}/count`, input);
 export const createOrder = (projectId: string, input: PurchaseOrderInput) => api<PurchaseOrder>('POST', `${base(projectId)}/orders`, input);
 export const receiveLine = (projectId: string, line: OrderLine, input: ReceiveLineInput) =>
   api<PurchaseOrder>('POST', `${base(projectId)}/orders/${line.purchaseOrderId}/lines/${line.id}/receive`, input);
 export const saveWorkshop = (projectId: string, input: WorkshopSettingsInput) =>
-  api<WorkshopSettingsInput>('PUT', `${base(projectId)}/workshop`, input);
+  api<WorkshopSettings>('PUT', `${base(projectId)}/workshop`, input);
 
 /** Stock, orders and the forecast move together: every parts mutation invalidates `all`. */
 export const partQueries = {

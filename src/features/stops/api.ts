@@ -10,6 +10,7 @@ import type {
   StopStatus,
 } from '../../../shared/schemas/stop';
 export type { PlanChange, PlanStop, PlanView, StopPlanSettings } from '../../../shared/schemas/stop';
+import { stopListQuerySchema, stopPlanQuerySchema } from '../../../shared/schemas/stop';
 import { api, apiGet } from '../../lib/api-client';
 import type { StopListItem, WorkPack, Crew, RoundOption } from '../../../shared/schemas/stop';
 export type { Stop, StopListItem, WorkPack, Crew, RoundOption } from '../../../shared/schemas/stop';
@@ -39,6 +40,14 @@ export const completeStop = (projectId: string, stopId: string, input: CompleteS
   api<WorkPack>('POST', `${base(projectId)}/${stopId}/complete`, input);
 export const cancelStop = (projectId: string, stopId: string, input: CancelStopInput) =>
   api<WorkPack>('POST', `${base(projectId)}/${stopId}/cancel`, input);
+
+/** The list's status filter from the address (?status=); an unknown status shows every stop. Page and loader read it so. */
+export const stopListStatus = (search: URLSearchParams): StopStatus | undefined =>
+  stopListQuerySchema.catch({}).parse({ status: search.get('status') ?? undefined }).status;
+
+/** The plan's overrides from the address; when they do not parse, the plan takes its defaults. Page and loader read them so. */
+export const stopPlanOverrides = (search: URLSearchParams): StopPlanQuery =>
+  stopPlanQuerySchema.catch({}).parse(Object.fromEntries(search));
 
 export const stopQueries = {
   all: (projectId: string) => ['projects', projectId, 'stops'] as const,

@@ -5,7 +5,7 @@ import type { z } from 'zod';
 import { downtimePeriodQuerySchema } from '../../../../shared/schemas/downtime';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
-import type { PeriodQuery } from '../api';
+import { periodFrom, type PeriodQuery } from '../api';
 
 /** An empty date is "not given" (the server then picks its default period). */
 export const dayOrNothing = { setValueAs: (v: unknown) => (v === '' || v == null ? undefined : String(v)) };
@@ -13,7 +13,7 @@ export const dayOrNothing = { setValueAs: (v: unknown) => (v === '' || v == null
 /** The period in the address (?from=&to=), so it survives a reload and follows the tabs. */
 export function usePeriod(): PeriodQuery {
   const [params] = useSearchParams();
-  return { from: params.get('from') ?? undefined, to: params.get('to') ?? undefined };
+  return periodFrom(params);
 }
 
 /** From/to site days; `shown` is the period the server used (its default when none was asked for). */

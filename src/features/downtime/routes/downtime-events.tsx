@@ -16,7 +16,7 @@ import { ApiError } from '../../../lib/api-client';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { downtimeQueries, useProposeFromGaps } from '../api';
+import { downtimeQueries, eventFiltersFrom, UNEXPLAINED, useProposeFromGaps } from '../api';
 import { CausesPanel } from '../components/causes-panel';
 import { DowntimeTabs } from '../components/downtime-tabs';
 import { EventForm } from '../components/event-form';
@@ -24,7 +24,6 @@ import { dayOrNothing } from '../components/period-filter';
 import { SiteSettingsPanel } from '../components/site-settings-panel';
 
 const col = createColumnHelper<DowntimeEventRow>();
-const UNEXPLAINED = 'unexplained';
 
 interface EventFilterValues {
   from: string;
@@ -36,13 +35,7 @@ interface EventFilterValues {
 /** The filters in the address: site days (events overlapping them), a cause, or "no cause yet". */
 function useEventFilters() {
   const [params, setParams] = useSearchParams();
-  const cause = params.get('unexplained') === 'true' ? UNEXPLAINED : (params.get('causeId') ?? '');
-  const query = {
-    from: params.get('from') ?? undefined,
-    to: params.get('to') ?? undefined,
-    causeId: cause && cause !== UNEXPLAINED ? cause : undefined,
-    unexplained: cause === UNEXPLAINED ? ('true' as const) : undefined,
-  };
+  const { cause, query } = eventFiltersFrom(params);
   const apply = (next: EventFilterValues) => {
     const p = new URLSearchParams();
     if (next.from) p.set('from', next.from);

@@ -6,7 +6,7 @@ import { Alert } from '../../../components/ui/alert';
 import { SelectField } from '../../../components/ui/field';
 import { Page } from '../../../components/ui/page';
 import { projectQueries } from '../../projects/api';
-import { partQueries, type DemandFilters } from '../api';
+import { demandFiltersFrom, demandHorizons, partQueries, type DemandFilters } from '../api';
 import { CatalogueEditor } from '../components/catalogue-editor';
 import { NewOrder, OrderList } from '../components/orders';
 import { StockChart } from '../components/stock-chart';
@@ -21,7 +21,6 @@ const tabs = [
   { key: 'workshop', label: 'Workshop loop' },
 ] as const;
 type Tab = (typeof tabs)[number]['key'];
-const horizons = [4, 8, 12, 26, 52];
 const serviceLevels = [0.9, 0.95, 0.975, 0.99];
 
 function Problems({ problems }: { problems: string[] }) {
@@ -61,7 +60,7 @@ function StockTab({
     <div className="space-y-6">
       <div className="grid max-w-xl gap-4 sm:grid-cols-2">
         <SelectField label="Weeks ahead" value={filters.weeks} onChange={(e) => setFilter('weeks', e.target.value)}>
-          {horizons.map((w) => (
+          {demandHorizons.map((w) => (
             <option key={w} value={w}>
               {w} weeks
             </option>
@@ -133,12 +132,7 @@ export function PartsRoute() {
   const [params, setParams] = useSearchParams();
   const tab: Tab = tabs.find((t) => t.key === params.get('tab'))?.key ?? 'stock';
   const canEdit = roleCan(project.role, 'parts.edit');
-  const weeks = Number(params.get('weeks')) || 12;
-  const level = Number(params.get('serviceLevel'));
-  const filters: DemandFilters = {
-    weeks: horizons.includes(weeks) ? weeks : 12,
-    serviceLevel: level >= 0.5 && level < 1 ? level : undefined,
-  };
+  const filters = demandFiltersFrom(params);
   const setParam = (name: string, value: string) =>
     setParams(
       (prev) => {

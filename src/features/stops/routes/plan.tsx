@@ -17,7 +17,7 @@ import { ApiError } from '../../../lib/api-client';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDate as formatDate, formatSiteDateTime as formatDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { stopQueries, useProposeStop, type PlanStop, type PlanView, type StopPlan, type StopPlanSettings } from '../api';
+import { stopPlanOverrides, stopQueries, useProposeStop, type PlanStop, type PlanView, type StopPlan, type StopPlanSettings } from '../api';
 import { AirBadge } from '../components/air-badge';
 import { StopCautions } from '../components/cautions';
 import { hoursText } from '../format';
@@ -28,7 +28,7 @@ const linkClass = 'inline-flex min-h-touch items-center font-semibold text-ember
 export function StopPlanRoute() {
   const { projectId = '' } = useParams();
   const [search, setSearch] = useSearchParams();
-  const overrides = stopPlanQuerySchema.catch({}).parse(Object.fromEntries(search));
+  const overrides = stopPlanOverrides(search);
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
   const { data: plan } = useSuspenseQuery(stopQueries.plan(projectId, overrides));
   const canPlan = roleCan(project.role, 'stops.plan');

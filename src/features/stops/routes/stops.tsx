@@ -2,7 +2,7 @@ import { keepPreviousData, useQuery, useSuspenseQuery } from '@tanstack/react-qu
 import { createColumnHelper } from '@tanstack/react-table';
 import { Link, useParams, useSearchParams } from 'react-router';
 import { roleCan } from '../../../../shared/roles';
-import { stopListQuerySchema, stopStatuses, stopStatusLabels } from '../../../../shared/schemas/stop';
+import { stopStatuses, stopStatusLabels } from '../../../../shared/schemas/stop';
 import { Alert } from '../../../components/ui/alert';
 import { DataTable } from '../../../components/ui/data-table';
 import { SelectField } from '../../../components/ui/field';
@@ -11,7 +11,7 @@ import { paths } from '../../../config/paths';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
-import { stopQueries, type StopListItem } from '../api';
+import { stopListStatus, stopQueries, type StopListItem } from '../api';
 import { hoursText } from '../format';
 
 const col = createColumnHelper<StopListItem>();
@@ -21,7 +21,7 @@ const linkClass = 'inline-flex min-h-touch items-center font-semibold text-ember
 export function StopsRoute() {
   const { projectId = '' } = useParams();
   const [search, setSearch] = useSearchParams();
-  const { status } = stopListQuerySchema.catch({}).parse({ status: search.get('status') ?? undefined });
+  const status = stopListStatus(search);
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
   const { data: stops, error, isPending } = useQuery({ ...stopQueries.list(projectId, status), placeholderData: keepPreviousData });
   const tz = project.siteTimeZone;
