@@ -76,7 +76,16 @@ export function createApp(options: AppOptions = {}): Express {
 
   const clientDir = options.clientDir && path.resolve(options.clientDir);
   if (clientDir && existsSync(path.join(clientDir, 'index.html'))) {
-    app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
+    app.use(
+      express.static(clientDir, {
+        index: false,
+        maxAge: '1h',
+        // The service worker and the manifest are checked on every visit, so a new build is found at once (decision 42).
+        setHeaders: (res, file) => {
+          if (/(?:^|[\\/])(?:sw\.js|manifest\.webmanifest)$/.test(file)) res.setHeader('Cache-Control', 'no-cache');
+        },
+      }),
+    );
     // Client-side routes: every other GET gets the app shell.
     app.get('/{*splat}', (_req, res) => {
       res.set('Cache-Control', 'no-cache').sendFile(path.join(clientDir, 'index.html'));

@@ -7,7 +7,7 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { conflict, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
-import { entryFlags, recordEntry, startRound } from '../services/inspections';
+import { entryFlags, recordEntry, startRoundOnce } from '../services/inspections';
 import { listPositions } from '../services/positions';
 
 export const roundsRouter = Router({ mergeParams: true });
@@ -29,8 +29,8 @@ roundsRouter.get('/', requireProject('rounds.read'), async (req, res) => {
 roundsRouter.post('/', requireProject('rounds.record'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const input = startRoundInputSchema.parse(req.body);
-  const round = await db.transaction((tx) => startRound(tx, projectId, requireUser(req).id, input));
-  res.status(201).json(round);
+  const { round, replayed } = await db.transaction((tx) => startRoundOnce(tx, projectId, requireUser(req).id, input));
+  res.status(replayed ? 200 : 201).json(round);
 });
 
 /** The round with every position, what was recorded for each, and the walking order of the last round. */

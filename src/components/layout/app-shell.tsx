@@ -6,6 +6,7 @@ import { paths } from '../../config/paths';
 import { authQueries, signOut } from '../../features/auth/api';
 import { PageLoading } from '../ui/page';
 import { Logo } from './logo';
+import { OutboxCount } from './outbox-count';
 
 const navLink = ({ isActive }: { isActive: boolean }) =>
   `flex min-h-touch items-center rounded-md px-3 font-semibold ${isActive ? 'bg-ember-600 text-white' : 'text-basalt-100 hover:bg-basalt-800'}`;
@@ -140,6 +141,7 @@ export function AppShell() {
               Sign out
             </button>
           </nav>
+          <OutboxCount />
         </div>
       </header>
       <main>

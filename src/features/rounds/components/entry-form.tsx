@@ -6,7 +6,7 @@ import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { photoUrl, type RoundEntry, type RoundPosition, type StoreCutter } from '../api';
 import { formatSiteDateTime } from '../../../../shared/site-time';
-import { discardItem, getOutboxItem, queueEntry, type QueuedEntry } from '../offline-queue';
+import { discardItem, getOutboxItem, queueEntry, type QueuedEntry } from '../../../lib/outbox';
 import { CutterPicker } from './cutter-picker';
 import { overLimitBadge, OverLimitMark } from './marks';
 import { Toggle } from './toggle';

@@ -5,7 +5,7 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { paths } from '../../../config/paths';
 import { roundQueries } from '../api';
-import { discardItem, retryItem, useOutbox, type QueuedItem } from '../offline-queue';
+import { discardItem, retryItem, useOutbox, type QueuedItem } from '../../../lib/outbox';
 import { DoneMark, RefusedMark, WaitingMark } from './marks';
 
 function useOnline() {

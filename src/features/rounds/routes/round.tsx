@@ -14,7 +14,7 @@ import { AttentionList, SaveStatus } from '../components/outbox-status';
 import { positionMark, PositionStrip } from '../components/position-strip';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime } from '../../../../shared/site-time';
-import { useOutbox, type QueuedEntry, type QueuedItem } from '../offline-queue';
+import { useOutbox, type QueuedEntry, type QueuedItem } from '../../../lib/outbox';
 
 /** Puts what the server just stored into the cached round, so the screen shows it before the refetch. */
 function withStored(detail: RoundDetail, item: QueuedItem, answer: unknown): RoundDetail {
