@@ -5,9 +5,9 @@ import { roleCan } from '../../../../shared/roles';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { paths } from '../../../config/paths';
-import { ApiError } from '../../../lib/api-client';
 import { projectQueries } from '../../projects/api';
-import { closeRound, roundQueries, type RoundDetail, type RoundEntry } from '../api';
+import { roundQueries, type RoundDetail, type RoundEntry } from '../api';
+import { closeRoundOnDevice } from '../offline-round';
 import { draftFrom, EntryForm, type Draft } from '../components/entry-form';
 import { Legend } from '../components/marks';
 import { AttentionList, SaveStatus } from '../components/outbox-status';
@@ -109,11 +109,11 @@ export function RoundRoute() {
   const onClose = async () => {
     setCloseError(null);
     if (!window.confirm('Close this round? No more positions can be recorded in it.')) return;
+    // Through the outbox: sent after every entry and photo of the round, with or without network.
     try {
-      await closeRound(projectId, roundId);
-      await queryClient.invalidateQueries({ queryKey: roundQueries.all(projectId) });
-    } catch (err) {
-      setCloseError(err instanceof ApiError ? err.message : 'The round could not be closed. Try again.');
+      await closeRoundOnDevice(queryClient, projectId, roundId);
+    } catch {
+      setCloseError('The round could not be closed on this device. Try again.');
     }
   };
 
@@ -225,11 +225,13 @@ export function RoundRoute() {
       {!readOnly && (
         <div className="space-y-2 border-t-2 border-basalt-200 pt-4">
           {closeError && <Alert tone="error">{closeError}</Alert>}
-          <Button variant="secondary" onClick={onClose} disabled={roundItems.length > 0}>
+          <Button variant="secondary" onClick={onClose} disabled={roundItems.some((i) => i.state === 'attention')}>
             Close the round
           </Button>
-          {roundItems.length > 0 && (
-            <p className="text-caption text-basalt-700">The round can be closed once everything on this device is stored.</p>
+          {roundItems.some((i) => i.state === 'attention') && (
+            <p className="text-caption text-basalt-700">
+              The round can be closed once the entries that need attention are fixed or discarded.
+            </p>
           )}
         </div>
       )}
