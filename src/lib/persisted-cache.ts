@@ -7,7 +7,7 @@
  */
 import { createAsyncStoragePersister } from '@tanstack/query-async-storage-persister';
 import { persistQueryClientRestore, persistQueryClientSubscribe } from '@tanstack/react-query-persist-client';
-import type { QueryClient } from '@tanstack/react-query';
+import type { Query, QueryClient } from '@tanstack/react-query';
 import { createStore, del, get, set } from 'idb-keyval';
 
 declare const __KERFWISE_BUILD__: string;
@@ -45,7 +45,16 @@ function keepToOneUser(queryClient: QueryClient) {
 
 /** Restores the cache kept on the device (never throws: a broken store only means an empty cache), then keeps it saved. */
 export async function restoreAndPersist(queryClient: QueryClient): Promise<void> {
-  const options = { queryClient, persister, maxAge: PERSIST_MAX_AGE_MS, buster: __KERFWISE_BUILD__ };
+  const options = {
+    queryClient,
+    persister,
+    maxAge: PERSIST_MAX_AGE_MS,
+    buster: __KERFWISE_BUILD__,
+    dehydrateOptions: {
+      // Only answers that were read successfully; "nobody signed in" is never kept (the next start asks the server).
+      shouldDehydrateQuery: (q: Query) => q.state.status === 'success' && !(JSON.stringify(q.queryKey) === meKey && q.state.data == null),
+    },
+  };
   await Promise.race([persistQueryClientRestore(options), new Promise((r) => setTimeout(r, 3000))]).catch(() => undefined);
   keepToOneUser(queryClient);
   persistQueryClientSubscribe(options);
