@@ -5,12 +5,15 @@
  * It never caches API answers: the data a round needs lives in the persisted query cache.
  */
 /// <reference lib="webworker" />
+import { clientsClaim } from 'workbox-core';
 import { cleanupOutdatedCaches, createHandlerBoundToURL, precacheAndRoute } from 'workbox-precaching';
 import { NavigationRoute, registerRoute } from 'workbox-routing';
 
 declare const self: ServiceWorkerGlobalScope & { __WB_MANIFEST: (string | { url: string; revision: string | null })[] };
 
 precacheAndRoute(self.__WB_MANIFEST);
+// Once active, it serves the open pages too (the first install would otherwise wait for a reload).
+clientsClaim();
 cleanupOutdatedCaches();
 registerRoute(new NavigationRoute(createHandlerBoundToURL('index.html'), { denylist: [/^\/api\//] }));
 

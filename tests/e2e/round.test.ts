@@ -68,7 +68,7 @@ it(
     await expect.poll(() => status(page).textContent()).toContain('Saved');
 
     // The main controls are large enough for gloves.
-    for (const name of ['Save position', /^Next position/]) {
+    for (const name of ['Save position', /^Next\b/]) {
       expect((await page.getByRole('button', { name }).boundingBox())!.height).toBeGreaterThanOrEqual(56);
     }
 

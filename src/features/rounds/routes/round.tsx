@@ -1,5 +1,5 @@
 import { useQuery, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
-import { useMemo, useState } from 'react';
+import { useEffect, useMemo, useState } from 'react';
 import { Link, useParams, useSearchParams } from 'react-router';
 import { roleCan } from '../../../../shared/roles';
 import { Alert } from '../../../components/ui/alert';
@@ -8,6 +8,7 @@ import { paths } from '../../../config/paths';
 import { projectQueries } from '../../projects/api';
 import { roundQueries, type RoundDetail, type RoundEntry } from '../api';
 import { closeRoundOnDevice } from '../offline-round';
+import { CutterheadCaution } from '../../../components/ui/cutterhead-caution';
 import { draftFrom, EntryForm, type Draft } from '../components/entry-form';
 import { Legend } from '../components/marks';
 import { AttentionList, SaveStatus } from '../components/outbox-status';
@@ -60,6 +61,12 @@ export function RoundRoute() {
   const [params, setParams] = useSearchParams();
   const [drafts, setDrafts] = useState<Record<string, Draft>>({});
   const [closeError, setCloseError] = useState<string | null>(null);
+  // The Save bar is fixed at the bottom: whatever is scrolled or focused into view stops above it.
+  useEffect(() => {
+    const html = document.documentElement;
+    html.style.scrollPaddingBottom = '15rem';
+    return () => void (html.style.scrollPaddingBottom = '');
+  }, []);
 
   const { round, positions, entries, lastRoundOrder } = data;
   const tz = project.siteTimeZone;
@@ -183,6 +190,8 @@ export function RoundRoute() {
           <Legend />
         </details>
       </div>
+
+      <CutterheadCaution />
 
       {/* The current position's own refusal is shown in its form. */}
       <AttentionList

@@ -14,6 +14,7 @@ import { ApiError } from '../../../lib/api-client';
 import { projectQueries } from '../../projects/api';
 import { roundQueries, startRound, type RoundListItem } from '../api';
 import { OutboxBanner } from '../components/outbox-status';
+import { CutterheadCaution } from '../../../components/ui/cutterhead-caution';
 import { startRoundOnDevice } from '../offline-round';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime, fromSiteInput, toSiteInput } from '../../../../shared/site-time';
@@ -56,6 +57,7 @@ export function RoundsRoute() {
 
   return (
     <Page title="Inspection rounds">
+      <CutterheadCaution />
       <OutboxBanner />
       {roleCan(project.role, 'rounds.record') && <StartRoundForm projectId={projectId} timeZone={tz} />}
       <DataTable data={rounds} columns={columns} exportName="kerfwise-rounds" emptyText="No rounds recorded yet." />
