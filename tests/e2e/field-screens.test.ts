@@ -80,7 +80,16 @@ describe.each([
         )) {
           const r = el.getBoundingClientRect();
           if (r.width === 0 && r.height === 0) continue; // not shown
-          if (el.matches('input[type=file]') && getComputedStyle(el).opacity === '0') continue;
+          // A visually hidden file input: its label (checked below as the visible control) is what is pressed.
+          if (el.matches('input.sr-only')) {
+            const label = el.id ? document.querySelector<HTMLElement>(`label[for="${el.id}"]`) : el.closest('label');
+            if (label) {
+              const lr = label.getBoundingClientRect();
+              if (lr.height < min - 0.5 || lr.width < min - 0.5)
+                out.push(`LABEL "${label.textContent?.trim()}" ${Math.round(lr.width)}×${Math.round(lr.height)}`);
+            } else out.push('INPUT without a label');
+            continue;
+          }
           if (r.height < min - 0.5 || r.width < min - 0.5)
             out.push(
               `${el.tagName} "${(el.textContent || el.getAttribute('aria-label') || '').trim().slice(0, 40)}" ${Math.round(r.width)}×${Math.round(r.height)}`,

@@ -129,7 +129,7 @@ export function RoundRoute() {
       <div className="flex flex-wrap items-center justify-between gap-x-4 gap-y-2">
         <div>
           <h1 className="text-lead font-bold md:text-title">
-            <Link to={paths.rounds(projectId)} className="font-semibold underline">
+            <Link to={paths.rounds(projectId)} className="inline-flex min-h-touch min-w-touch items-center font-semibold underline">
               Rounds
             </Link>
             <span aria-hidden="true"> › </span>
