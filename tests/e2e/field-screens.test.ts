@@ -64,7 +64,7 @@ describe.each([
         await page.evaluate(() => window.scrollTo(0, document.body.scrollHeight));
         await target.evaluate((el) => el.scrollIntoView({ block: 'nearest' }));
         const again = (await target.boundingBox())!;
-        expect(again.y).toBeGreaterThanOrEqual(0);
+        expect(again.y).toBeGreaterThanOrEqual(-1); // sub-pixel rounding
         expect(again.y + again.height).toBeLessThanOrEqual(await saveBarTop(page));
       }
       await page.evaluate(() => window.scrollTo(0, document.body.scrollHeight));
