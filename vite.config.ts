@@ -3,15 +3,45 @@ import { defineConfig } from 'vite';
 import react from '@vitejs/plugin-react';
 import tailwindcss from '@tailwindcss/vite';
 import { compression, defineAlgorithm } from 'vite-plugin-compression2';
+import { VitePWA } from 'vite-plugin-pwa';
 
 const apiPort = Number(process.env.PORT ?? 3000);
+/** Names this build: the persisted query cache of an older build is dropped (decision 42). */
+const buildId = new Date().toISOString();
 
 export default defineConfig({
+  define: { __KERFWISE_BUILD__: JSON.stringify(buildId) },
   plugins: [
     react(),
     tailwindcss(),
+    // An installable app that opens with no network (decision 42): our own service worker
+    // (src/sw.ts) precaches the shell, every route chunk and the fonts.
+    VitePWA({
+      strategies: 'injectManifest',
+      srcDir: 'src',
+      filename: 'sw.ts',
+      registerType: 'prompt',
+      injectRegister: false,
+      injectManifest: {
+        globPatterns: ['**/*.{js,css,html,svg,woff2,woff,png}'],
+        maximumFileSizeToCacheInBytes: 5 * 1024 * 1024,
+      },
+      includeAssets: ['icon.svg'],
+      manifest: {
+        name: 'Kerfwise — cutter rounds and wear',
+        short_name: 'Kerfwise',
+        description: 'Disc-cutter wear rounds, change-outs and stops for a tunnel boring machine drive.',
+        start_url: '/',
+        scope: '/',
+        display: 'standalone',
+        background_color: '#1d201c',
+        theme_color: '#1d201c',
+        icons: [{ src: '/icon.svg', sizes: 'any', type: 'image/svg+xml', purpose: 'any' }],
+      },
+      devOptions: { enabled: false },
+    }),
     // Brotli and gzip copies written at build time beside each asset; the server sends the one the
-    // browser accepts (express-static-gzip, decision 45).
+    // browser accepts (express-static-gzip, decision 44).
     compression({
       algorithms: [defineAlgorithm('brotliCompress'), defineAlgorithm('gzip')],
       include: /\.(js|css|html|svg|json|woff2?)$/,

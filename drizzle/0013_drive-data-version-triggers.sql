@@ -1,5 +1,5 @@
 -- Raises a drive's data version in the same transaction as any write to a forecast input, so no
--- write path can forget it (DEVELOPERS.md decision 43). Statement-level triggers with transition
+-- write path can forget it (DEVELOPERS.md decision 38). Statement-level triggers with transition
 -- tables: an import of 10,000 strokes raises the version once, not 10,000 times. A row whose
 -- project is being deleted in the same statement is skipped (the join finds no project).
 CREATE FUNCTION bump_drive_data_version() RETURNS trigger LANGUAGE plpgsql AS $$

@@ -81,7 +81,8 @@ export function createApp(options: AppOptions = {}): Express {
   if (clientDir && existsSync(path.join(clientDir, 'index.html'))) {
     // Hashed assets never change under their name: a year, immutable. Anything else (index.html,
     // unhashed files) is revalidated. Brotli or gzip copies made at build time are sent to a
-    // browser that accepts them (decision 45).
+    // browser that accepts them (decision 44). The service worker and the manifest are unhashed, so
+    // they are checked on every visit and a new build is found at once (decision 42).
     app.use(
       expressStaticGzip(clientDir, {
         index: false,

@@ -2,16 +2,40 @@ import '@fontsource/barlow/400.css';
 import '@fontsource/barlow/600.css';
 import '@fontsource/barlow/700.css';
 import './styles.css';
-import { StrictMode } from 'react';
+import { StrictMode, useSyncExternalStore } from 'react';
 import { createRoot } from 'react-dom/client';
 import { RouterProvider } from 'react-router';
+import { registerSW } from 'virtual:pwa-register';
 import { AppProvider } from './app/provider';
-import { router } from './app/router';
+import { offerUpdate, UpdateBanner } from './components/layout/update-banner';
+import { startOutbox } from './lib/outbox';
+import { restoreAndPersist } from './lib/persisted-cache';
+import { queryClient } from './lib/query-client';
+
+// The service worker makes the app open with no network; a new version waits for "Reload to update" (decision 42).
+if ('serviceWorker' in navigator && import.meta.env.PROD) {
+  const update = registerSW({ onNeedRefresh: () => offerUpdate(() => void update(true)) });
+}
+
+// The data last synced is restored before the router's first loaders read it, so a cold start offline shows the drive.
+await restoreAndPersist(queryClient);
+startOutbox(queryClient);
+const { router } = await import('./app/router');
+
+function Root() {
+  const pathname = useSyncExternalStore(router.subscribe, () => router.state.location.pathname);
+  return (
+    <>
+      <RouterProvider router={router} />
+      <UpdateBanner pathname={pathname} />
+    </>
+  );
+}
 
 createRoot(document.getElementById('root')!).render(
   <StrictMode>
     <AppProvider>
-      <RouterProvider router={router} />
+      <Root />
     </AppProvider>
   </StrictMode>,
 );

@@ -553,7 +553,7 @@ export const entryRolledKm = pgTable(
  * A counter per drive, raised by database triggers in the same transaction as any write to a
  * forecast input (layout, cutters and fittings, inspections, advance log, geology, ground types,
  * forecast settings, the project's own row); see drizzle/0013_drive-data-version-triggers.sql.
- * Derived data (the forecast cache) is valid only for the version it was computed from (decision 43).
+ * Derived data (the forecast cache) is valid only for the version it was computed from (decision 38).
  */
 export const driveDataVersions = pgTable('drive_data_versions', {
   projectId: uuid()

@@ -24,6 +24,9 @@ export function buildClient(root = '.'): void {
   const r = spawnSync(process.execPath, [path.join(root, 'node_modules/vite/bin/vite.js'), 'build', '--logLevel', 'warn'], {
     cwd: root,
     stdio: 'inherit',
+    // A production build whoever runs it (vitest sets NODE_ENV=test, which would give React's
+    // development build and no service worker registration — decision 42).
+    env: { ...process.env, NODE_ENV: 'production' },
   });
   if (r.status !== 0) throw new Error('The client build failed (see above).');
 }

@@ -17,7 +17,7 @@ import { audit } from '../lib/audit';
 import { conflict, notFound } from '../lib/http-error';
 import { idParam } from '../lib/params';
 import { reply } from '../lib/reply';
-import { entryFlags, recordEntry, startRound } from '../services/inspections';
+import { entryFlags, recordEntry, startRoundOnce } from '../services/inspections';
 import { listPositions } from '../services/positions';
 
 export const roundsRouter = Router({ mergeParams: true });
@@ -43,8 +43,8 @@ roundsRouter.get('/', requireProject('rounds.read'), async (req, res) => {
 roundsRouter.post('/', requireProject('rounds.record'), async (req, res) => {
   const projectId = idParam(req.params, 'projectId', 'That project');
   const input = startRoundInputSchema.parse(req.body);
-  const round = await db.transaction((tx) => startRound(tx, projectId, requireUser(req).id, input));
-  reply<Round>(res, 201, round);
+  const { round, replayed } = await db.transaction((tx) => startRoundOnce(tx, projectId, requireUser(req).id, input));
+  reply<Round>(res, replayed ? 200 : 201, round);
 });
 
 /** The round with every position, what was recorded for each, and the walking order of the last round. */

@@ -3,7 +3,7 @@
  * recorded back in time): derived data follows from here, so a new kind of derived data is added
  * in one place instead of at every write. Today that is the stored rolled distances
  * (services/rolled-distance.ts, DEVELOPERS.md decision 12). The cached forecast needs no call:
- * database triggers raise the drive's data version in the same transaction (decision 43).
+ * database triggers raise the drive's data version in the same transaction (decision 38).
  */
 import type { DbOrTx } from '../db/client';
 import { invalidateRolledDistance, refreshRolledDistance } from './rolled-distance';

@@ -1,6 +1,6 @@
 /**
  * A drive's forecast, computed once per change of its data and kept in PostgreSQL so every server
- * instance answers from the same copy (DEVELOPERS.md, decision 43, which supersedes decision 12).
+ * instance answers from the same copy (DEVELOPERS.md, decision 38, which supersedes decision 12).
  *
  * - The data version (`drive_data_versions`) is raised by triggers in the same transaction as any
  *   write to a forecast input, so a cached answer is valid exactly while the version is unchanged.

@@ -358,7 +358,7 @@ export function buildForecast(data: ForecastData, now: Date): ProjectForecast {
 /** Brings rolled distances up to date, reads, and computes the forecast. */
 export async function computeForecast(tx: DbOrTx, projectId: string, now: Date): Promise<ProjectForecast> {
   await refreshRolledDistance(tx, projectId);
-  // Computed in a worker thread: a large drive's forecast must not stall other requests (decision 44).
+  // Computed in a worker thread: a large drive's forecast must not stall other requests (decision 43).
   return buildForecastInWorker(await loadForecastData(tx, projectId), now);
 }
 

@@ -26,10 +26,22 @@ import { ConflictError, NotFoundError } from '../lib/errors';
 
 type Entry = typeof inspectionEntries.$inferSelect;
 
+/** Starts a round, or — for a round started offline and sent again with its id — answers with the one stored (decision 42). */
+export async function startRoundOnce(tx: DbOrTx, projectId: string, userId: string | null, input: StartRoundInput) {
+  if (input.id) {
+    await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`kerfwise-round:${input.id}`}))`);
+    const [existing] = await tx.select().from(inspectionRounds).where(eq(inspectionRounds.id, input.id));
+    if (existing && existing.projectId !== projectId) throw new ConflictError('That round id is already used. Start the round again.');
+    if (existing) return { round: existing, replayed: true };
+  }
+  return { round: await startRound(tx, projectId, userId, input), replayed: false };
+}
+
 export async function startRound(tx: DbOrTx, projectId: string, userId: string | null, input: StartRoundInput) {
   const [round] = await tx
     .insert(inspectionRounds)
     .values({
+      ...(input.id ? { id: input.id } : {}),
       projectId,
       createdBy: userId,
       startedAt: new Date(input.startedAt),
@@ -109,6 +121,22 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
     .select()
     .from(inspectionEntries)
     .where(and(eq(inspectionEntries.roundId, round.id), eq(inspectionEntries.positionId, position.id)));
+  // Two tablets, same position, same round, both offline: the later-recorded entry wins whatever
+  // order they arrive in; the earlier one is kept in the audit trail as overtaken (decision 42).
+  const recordedAt = input.recordedAt ? new Date(input.recordedAt) : new Date();
+  if (prior && input.recordedAt && recordedAt.getTime() < prior.recordedAt.getTime()) {
+    await audit(tx, {
+      userId,
+      projectId,
+      entity: 'inspection_entry',
+      entityId: prior.id,
+      action: 'overtaken',
+      before: { ...input, recordedBy: userId },
+      after: prior,
+    });
+    await tx.insert(entrySubmissions).values({ projectId, clientKey: input.clientKey, entryId: prior.id });
+    return { entry: prior, replayed: false, overtaken: true, ...entryFlags(prior, position.wearLimitMm) };
+  }
   if (prior?.action === 'changed' && input.action === 'none') {
     throw new ConflictError(
       `Position ${position.number} was recorded as changed in this round. A change cannot be undone by an edit; ask the planner to correct it.`,
@@ -177,7 +205,7 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
   if (prior) {
     [entry] = await tx
       .update(inspectionEntries)
-      .set({ ...values, recordedBy: userId, updatedAt: sql`now()` })
+      .set({ ...values, recordedBy: userId, recordedAt, updatedAt: sql`now()` })
       .where(eq(inspectionEntries.id, prior.id))
       .returning();
     await audit(tx, { userId, projectId, entity: 'inspection_entry', entityId: entry.id, action: 'update', before: prior, after: entry });
@@ -192,14 +220,14 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
         clientKey: input.clientKey,
         fittingId: measuredFittingId,
         recordedBy: userId,
-        recordedAt: input.recordedAt ? new Date(input.recordedAt) : undefined,
+        recordedAt,
       })
       .returning();
     await audit(tx, { userId, projectId, entity: 'inspection_entry', entityId: entry.id, action: 'create', after: entry });
   }
   await tx.insert(entrySubmissions).values({ projectId, clientKey: input.clientKey, entryId: entry.id });
   if (!prior && entry.fittingId) await recordEntryExposure(tx, projectId, entry.id, entry.fittingId, round.startedAt);
-  return { entry, replayed: false, ...entryFlags(entry, position.wearLimitMm) };
+  return { entry, replayed: false, overtaken: false, ...entryFlags(entry, position.wearLimitMm) };
 }
 
 interface ChangeContext {

@@ -1,6 +1,6 @@
 /**
  * Heavy computations (stop plans, forecasts) run in a pool of worker threads, so one planner's
- * 2 km plan does not stall everyone else's requests (DEVELOPERS.md, decision 44). piscina keeps
+ * 2 km plan does not stall everyone else's requests (DEVELOPERS.md, decision 43). piscina keeps
  * the threads and the queue; `server/workers/bootstrap.mjs` loads the TypeScript in each thread.
  * Threads start on first use and end after a minute idle; `closeWorkerPool()` ends them at shutdown.
  */

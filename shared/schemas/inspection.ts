@@ -5,6 +5,8 @@ import type { DiscCondition } from '../cutters';
 import type { LayoutPosition } from './cutterhead';
 
 export const startRoundInputSchema = z.object({
+  /** Made by the tablet when the round is started offline: sent again, the same round answers 200 (decision 42). */
+  id: z.uuid({ message: 'The round id must be a UUID made by the device.' }).optional(),
   startedAt: instant('The start of the round', 'Give the date and time of the round.'),
   chainageM: z.coerce
     .number({ message: 'Give the chainage where the machine stands, in metres.' })

@@ -1,5 +1,5 @@
 /**
- * The forecast is computed once per change of the drive's data (DEVELOPERS.md, decision 43): a
+ * The forecast is computed once per change of the drive's data (DEVELOPERS.md, decision 38): a
  * second request is served from the cache with the same ETag (304 when the client has it), any
  * write to a forecast input — through the API or straight in SQL — raises the data version in the
  * same transaction and makes the next request compute again, and a write to another drive leaves

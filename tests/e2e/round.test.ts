@@ -47,7 +47,7 @@ it(
     const setup = await makeRoundSetup(project.id, fitter.id, { count: 6, inStore: 2, earlierWearMm: 8 });
     const [p1, p2, p3, p4, p5, p6] = setup.positions;
 
-    const context = await browser.newContext({ viewport: { width: 768, height: 1024 } });
+    const context = await browser.newContext({ viewport: { width: 768, height: 1024 }, serviceWorkers: 'block' });
     const page = await context.newPage();
     await page.goto(`${app.url}/projects/${project.id}/rounds`);
     await page.waitForURL(/\/sign-in/);
@@ -68,7 +68,7 @@ it(
     await expect.poll(() => status(page).textContent()).toContain('Saved');
 
     // The main controls are large enough for gloves.
-    for (const name of ['Save position', /^Next position/]) {
+    for (const name of ['Save position', /^Next\b/]) {
       expect((await page.getByRole('button', { name }).boundingBox())!.height).toBeGreaterThanOrEqual(56);
     }
 

@@ -1,5 +1,5 @@
 /**
- * The built client as the server sends it (decision 45): hashed assets with a year's immutable
+ * The built client as the server sends it (decision 44): hashed assets with a year's immutable
  * cache, brotli or gzip copies made at build time sent to a browser that accepts them (and the
  * plain file to one that does not), index.html revalidated every time. The decoded bytes are
  * checked against the file on disk with Node's own zlib, not with the plugin that wrote them.

@@ -1,5 +1,5 @@
 /**
- * Forecasts and stop plans are computed in worker threads (DEVELOPERS.md, decision 44): the answer
+ * Forecasts and stop plans are computed in worker threads (DEVELOPERS.md, decision 43): the answer
  * from the pool equals the same pure function run on the request thread, and the work is counted
  * by the pool, not done in place. Invented drive (makeStopsDrive).
  */

@@ -7,6 +7,7 @@ import { authQueries, signOut } from '../../features/auth/api';
 import { PageLoading } from '../ui/page';
 import { Logo } from './logo';
 import { currentGroup, isItemCurrent, landingOf, navGroupsFor, type NavGroup } from './nav-groups';
+import { OutboxCount } from './outbox-count';
 
 /** A tab of the main row: the current group gets a heavy bar under it as well as a lighter fill (not colour alone). */
 const groupTab = (current: boolean) =>
@@ -63,6 +64,7 @@ export function AppShell() {
           )}
           {/* The right side of the top bar: status badges go first here, then the person's own links. */}
           <div className="ml-auto flex items-center gap-1" data-slot="top-bar-end">
+            <OutboxCount />
             <NavLink
               to={paths.account}
               className={({ isActive }) =>

@@ -131,7 +131,6 @@ export function CausesPanel({ projectId, causes, canEdit }: { projectId: string;
                 </Button>
                 <Button
                   variant="secondary"
-                  aria-label={`${c.cutterWork ? 'Unmark' : 'Mark'} ${c.name} as cutter work`}
                   onClick={() =>
                     change(
                       c,
@@ -141,15 +140,16 @@ export function CausesPanel({ projectId, causes, canEdit }: { projectId: string;
                   }
                 >
                   {c.cutterWork ? 'Unflag cutter work' : 'Flag as cutter work'}
+                  <span className="sr-only">: {c.name}</span>
                 </Button>
                 <Button
                   variant="secondary"
-                  aria-label={`${c.active ? 'Take' : 'Put'} ${c.name} ${c.active ? 'out of' : 'back in'} use`}
                   onClick={() =>
                     change(c, { active: !c.active }, (s) => `${s.name} is ${s.active ? 'back in use' : 'out of use; past events keep it'}.`)
                   }
                 >
                   {c.active ? 'Take out of use' : 'Put back in use'}
+                  <span className="sr-only">: {c.name}</span>
                 </Button>
               </div>
             ),

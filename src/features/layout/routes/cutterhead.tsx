@@ -11,6 +11,7 @@ import { paths } from '../../../config/paths';
 import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { layoutQueries, type LayoutPosition } from '../api';
+import { CutterheadCaution } from '../../../components/ui/cutterhead-caution';
 import { CutterheadPicture, remainingBand, remainingLegend, WearLegend, wearBand } from '../components/cutterhead-picture';
 
 const col = createColumnHelper<LayoutPosition>();
@@ -81,6 +82,7 @@ export function CutterheadRoute() {
   const over = positions.filter((p) => wearBand(p).kind === 'over').length;
   return (
     <Page title="Cutterhead">
+      <CutterheadCaution />
       {positions.length === 0 ? (
         <Alert title="No layout yet">
           {roleCan(project.role, 'layout.edit') ? (

@@ -6,7 +6,7 @@ import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
 import { photoUrl, type RoundEntry, type RoundPosition, type StoreCutter } from '../api';
 import { formatSiteDateTime } from '../../../../shared/site-time';
-import { discardItem, getOutboxItem, queueEntry, type QueuedEntry } from '../offline-queue';
+import { discardItem, getOutboxItem, queueEntry, type QueuedEntry } from '../../../lib/outbox';
 import { CutterPicker } from './cutter-picker';
 import { overLimitBadge, OverLimitMark } from './marks';
 import { Toggle } from './toggle';
@@ -389,12 +389,12 @@ function NavButton({
       type="button"
       onClick={onClick ?? undefined}
       disabled={!onClick}
-      aria-label={number != null ? `${label} position (${number})` : `${label} position`}
       className={`flex min-h-16 items-center justify-center gap-1 rounded-md border-[3px] border-basalt-900 bg-white px-2 text-lead font-bold text-basalt-900 hover:bg-basalt-100 disabled:border-basalt-300 disabled:text-basalt-400 ${direction === 'next' ? 'flex-row-reverse' : ''}`}
     >
       {arrow}
-      <span className="hidden sm:inline">{label}</span>
-      {number != null && <span className="tabular-nums">{number}</span>}
+      {/* The accessible name is the visible text ("Next 4"); on a phone the word is read out but not shown. */}
+      <span className="sr-only sm:not-sr-only">{label}</span>
+      {number != null && <span className="tabular-nums"> {number}</span>}
     </button>
   );
 }

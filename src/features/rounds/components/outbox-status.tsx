@@ -5,7 +5,7 @@ import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { paths } from '../../../config/paths';
 import { roundQueries } from '../api';
-import { discardItem, retryItem, useOutbox, type QueuedItem } from '../offline-queue';
+import { discardItem, retryItem, useOutbox, type QueuedItem } from '../../../lib/outbox';
 import { DoneMark, RefusedMark, WaitingMark } from './marks';
 
 function useOnline() {
@@ -73,7 +73,12 @@ export function AttentionList({ items, positionNumber, onOpen }: AttentionProps)
       </h2>
       <ul className="space-y-2">
         {refused.map((item) => {
-          const what = `${item.kind === 'photo' ? 'Photo for position' : 'Position'} ${positionNumber(item.positionId) ?? '?'}`;
+          const what =
+            item.kind === 'round'
+              ? 'The round started on this device'
+              : item.kind === 'close'
+                ? 'Closing the round'
+                : `${item.kind === 'photo' ? 'Photo for position' : 'Position'} ${positionNumber(item.positionId) ?? '?'}`;
           return (
             <li key={item.key} className="flex flex-wrap items-center gap-2 rounded-md bg-white p-2">
               <p className="min-w-48 flex-1">
@@ -86,7 +91,7 @@ export function AttentionList({ items, positionNumber, onOpen }: AttentionProps)
               <Button
                 variant="ghost"
                 onClick={() => {
-                  if (window.confirm(`Discard this ${item.kind === 'photo' ? 'photo' : 'entry'} (${what})? It will not be stored.`))
+                  if (window.confirm(`Discard this ${item.kind === 'photo' ? 'photo' : 'item'} (${what})? It will not be stored.`))
                     void discardItem(item);
                 }}
               >

@@ -1,7 +1,7 @@
 import { useEffect, useRef, type ReactNode } from 'react';
 import { conditionNeedsChange, wearState } from '../../../../shared/cutters';
 import type { RoundEntry, RoundPosition } from '../api';
-import type { QueuedEntry } from '../offline-queue';
+import type { QueuedEntry } from '../../../lib/outbox';
 import { changeBadge, ChangeMark, DoneMark, DraftMark, overLimitBadge, OverLimitMark, RefusedMark, WaitingMark } from './marks';
 
 export type PositionState = 'todo' | 'saved' | 'waiting' | 'refused';

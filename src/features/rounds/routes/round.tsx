@@ -1,20 +1,21 @@
 import { useQuery, useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
-import { useMemo, useState } from 'react';
+import { useEffect, useMemo, useState } from 'react';
 import { Link, useParams, useSearchParams } from 'react-router';
 import { roleCan } from '../../../../shared/roles';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { paths } from '../../../config/paths';
-import { ApiError } from '../../../lib/api-client';
 import { projectQueries } from '../../projects/api';
-import { closeRound, roundQueries, type RoundDetail, type RoundEntry } from '../api';
+import { roundQueries, type RoundDetail, type RoundEntry } from '../api';
+import { closeRoundOnDevice } from '../offline-round';
+import { CutterheadCaution } from '../../../components/ui/cutterhead-caution';
 import { draftFrom, EntryForm, type Draft } from '../components/entry-form';
 import { Legend } from '../components/marks';
 import { AttentionList, SaveStatus } from '../components/outbox-status';
 import { positionMark, PositionStrip } from '../components/position-strip';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime } from '../../../../shared/site-time';
-import { useOutbox, type QueuedEntry, type QueuedItem } from '../offline-queue';
+import { useOutbox, type QueuedEntry, type QueuedItem } from '../../../lib/outbox';
 
 /** Puts what the server just stored into the cached round, so the screen shows it before the refetch. */
 function withStored(detail: RoundDetail, item: QueuedItem, answer: unknown): RoundDetail {
@@ -60,6 +61,12 @@ export function RoundRoute() {
   const [params, setParams] = useSearchParams();
   const [drafts, setDrafts] = useState<Record<string, Draft>>({});
   const [closeError, setCloseError] = useState<string | null>(null);
+  // The Save bar is fixed at the bottom: whatever is scrolled or focused into view stops above it.
+  useEffect(() => {
+    const html = document.documentElement;
+    html.style.scrollPaddingBottom = '15rem';
+    return () => void (html.style.scrollPaddingBottom = '');
+  }, []);
 
   const { round, positions, entries, lastRoundOrder } = data;
   const tz = project.siteTimeZone;
@@ -109,11 +116,11 @@ export function RoundRoute() {
   const onClose = async () => {
     setCloseError(null);
     if (!window.confirm('Close this round? No more positions can be recorded in it.')) return;
+    // Through the outbox: sent after every entry and photo of the round, with or without network.
     try {
-      await closeRound(projectId, roundId);
-      await queryClient.invalidateQueries({ queryKey: roundQueries.all(projectId) });
-    } catch (err) {
-      setCloseError(err instanceof ApiError ? err.message : 'The round could not be closed. Try again.');
+      await closeRoundOnDevice(queryClient, projectId, roundId);
+    } catch {
+      setCloseError('The round could not be closed on this device. Try again.');
     }
   };
 
@@ -122,7 +129,7 @@ export function RoundRoute() {
       <div className="flex flex-wrap items-center justify-between gap-x-4 gap-y-2">
         <div>
           <h1 className="text-lead font-bold md:text-title">
-            <Link to={paths.rounds(projectId)} className="font-semibold underline">
+            <Link to={paths.rounds(projectId)} className="inline-flex min-h-touch min-w-touch items-center font-semibold underline">
               Rounds
             </Link>
             <span aria-hidden="true"> › </span>
@@ -184,6 +191,8 @@ export function RoundRoute() {
         </details>
       </div>
 
+      <CutterheadCaution />
+
       {/* The current position's own refusal is shown in its form. */}
       <AttentionList
         items={roundItems.filter((i) => i.kind !== 'entry' || i.positionId !== position.id)}
@@ -225,11 +234,13 @@ export function RoundRoute() {
       {!readOnly && (
         <div className="space-y-2 border-t-2 border-basalt-200 pt-4">
           {closeError && <Alert tone="error">{closeError}</Alert>}
-          <Button variant="secondary" onClick={onClose} disabled={roundItems.length > 0}>
+          <Button variant="secondary" onClick={onClose} disabled={roundItems.some((i) => i.state === 'attention')}>
             Close the round
           </Button>
-          {roundItems.length > 0 && (
-            <p className="text-caption text-basalt-700">The round can be closed once everything on this device is stored.</p>
+          {roundItems.some((i) => i.state === 'attention') && (
+            <p className="text-caption text-basalt-700">
+              The round can be closed once the entries that need attention are fixed or discarded.
+            </p>
           )}
         </div>
       )}

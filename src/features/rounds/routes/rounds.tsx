@@ -1,6 +1,6 @@
 import { useQueryClient, useSuspenseQuery } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
-import { useState, type FormEvent } from 'react';
+import { useEffect, useState, type FormEvent } from 'react';
 import { Link, useNavigate, useParams } from 'react-router';
 import { roleCan } from '../../../../shared/roles';
 import { startRoundInputSchema } from '../../../../shared/schemas/inspection';
@@ -14,6 +14,8 @@ import { ApiError } from '../../../lib/api-client';
 import { projectQueries } from '../../projects/api';
 import { roundQueries, startRound, type RoundListItem } from '../api';
 import { OutboxBanner } from '../components/outbox-status';
+import { CutterheadCaution } from '../../../components/ui/cutterhead-caution';
+import { startRoundOnDevice } from '../offline-round';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDateTime, fromSiteInput, toSiteInput } from '../../../../shared/site-time';
 
@@ -24,6 +26,14 @@ export function RoundsRoute() {
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
   const { data: rounds } = useSuspenseQuery(roundQueries.list(projectId));
   const tz = project.siteTimeZone;
+  const queryClient = useQueryClient();
+  // What a round needs offline is read now, while online, and kept on the device (decision 42).
+  const newest = rounds[0]?.id;
+  useEffect(() => {
+    if (!newest || !navigator.onLine) return;
+    void queryClient.prefetchQuery(roundQueries.detail(projectId, newest));
+    void queryClient.prefetchQuery(roundQueries.inStore(projectId));
+  }, [queryClient, projectId, newest]);
 
   const columns = [
     col.accessor('startedAt', {
@@ -47,6 +57,7 @@ export function RoundsRoute() {
 
   return (
     <Page title="Inspection rounds">
+      <CutterheadCaution />
       <OutboxBanner />
       {roleCan(project.role, 'rounds.record') && <StartRoundForm projectId={projectId} timeZone={tz} />}
       <DataTable data={rounds} columns={columns} exportName="kerfwise-rounds" emptyText="No rounds recorded yet." />
@@ -89,12 +100,18 @@ function StartRoundForm({ projectId, timeZone }: { projectId: string; timeZone: 
     }
     setErrors({});
     setBusy(true);
+    // The id is made here, so a round started with no network keeps it when the server creates it.
+    const input = { ...parsed.data, id: crypto.randomUUID() };
     try {
-      const round = await startRound(projectId, parsed.data);
+      const round = await startRound(projectId, input);
       await queryClient.invalidateQueries({ queryKey: roundQueries.all(projectId) });
       navigate(paths.round(projectId, round.id));
     } catch (err) {
-      if (err instanceof ApiError) {
+      if (err instanceof ApiError && err.status === 0) {
+        const id = await startRoundOnDevice(queryClient, projectId, input);
+        if (id) navigate(paths.round(projectId, id));
+        else setMessage('No network, and this device has no cutterhead positions of this drive yet. Open a round once while online.');
+      } else if (err instanceof ApiError) {
         setErrors(Object.fromEntries(err.issues.map((i) => [i.path.split('.')[0], i.message])));
         setMessage(err.message);
       } else setMessage('The round could not be started. Try again.');

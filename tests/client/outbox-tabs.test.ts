@@ -1,6 +1,6 @@
 /** Two tabs work through one device queue: an entry one of them had stored never comes back as refused. */
 import { describe, expect, it } from 'vitest';
-import { drainQueue, type QueuedEntry, type QueuedItem, type QueueStorage, type SendError } from '../../src/features/rounds/offline-queue';
+import { drainQueue, type QueuedEntry, type QueuedItem, type QueueStorage, type SendError } from '../../src/lib/outbox';
 
 const entry = (key: string, seq: number): QueuedEntry => ({
   kind: 'entry',

@@ -7,7 +7,7 @@ import {
   type QueuedPhoto,
   type QueueStorage,
   type SendError,
-} from '../../src/features/rounds/offline-queue';
+} from '../../src/lib/outbox';
 
 const where = { projectId: 'p', roundId: 'r' };
 
@@ -72,13 +72,14 @@ describe('outcomeOf', () => {
     [200, 'done'],
     [201, 'done'],
     [400, 'attention'],
-    [401, 'attention'],
     [404, 'attention'],
     [409, 'attention'],
     [413, 'attention'],
     [415, 'attention'],
     [408, 'retry'],
     [429, 'retry'],
+    // 401 (RFC 9110 §15.5.2, the session ended): kept on the device until the same user signs in again (decision 42).
+    [401, 'retry'],
     [0, 'retry'],
     [500, 'retry'],
     [503, 'retry'],
@@ -121,5 +122,55 @@ describe('drainQueue', () => {
     expect(await drainQueue(storage, send)).toBe(0);
     expect(sent).toEqual(['e2']);
     expect(map.get('e2')?.state).toBe('pending');
+  });
+
+  it("sends only the signed-in user's items; another user's stay on the device (derived: issue 13, never sent as someone else)", async () => {
+    const mine = { ...entry('e1', 1), userId: 'u1' };
+    const theirs = { ...entry('e2', 2), userId: 'u2' };
+    const { map, storage } = memory([mine, theirs]);
+    const { sent, send } = server();
+    expect(await drainQueue(storage, send, 'u1')).toBe(1);
+    expect(sent).toEqual(['e1']);
+    expect(map.has('e2')).toBe(true);
+    expect(await drainQueue(storage, send, 'u2')).toBe(1);
+    expect(sent).toEqual(['e1', 'e2']);
+  });
+
+  it('holds a session-ended (401) entry and everything after it, then sends them in order after sign-in', async () => {
+    const { map, storage } = memory([entry('e1', 1), entry('e2', 2)]);
+    let signedIn = false;
+    const sent: string[] = [];
+    const send = async (item: QueuedItem): Promise<SendError | null> => {
+      sent.push(item.key);
+      return signedIn ? null : { status: 401, message: 'session ended', issues: [] };
+    };
+    expect(await drainQueue(storage, send)).toBe(0);
+    expect([...map.values()].map((i) => i.state)).toEqual(['pending', 'pending']);
+    signedIn = true;
+    expect(await drainQueue(storage, send)).toBe(2);
+    expect(sent).toEqual(['e1', 'e1', 'e2']);
+  });
+
+  it('sends a round started offline before its entries and its close; its entries wait while it is refused', async () => {
+    const round: QueuedItem = {
+      kind: 'round',
+      key: 'r',
+      seq: 0,
+      ...where,
+      positionId: '',
+      state: 'pending',
+      body: { id: 'r', startedAt: '2026-09-01T07:00:00Z', chainageM: 120, ringNumber: null, crew: '', notes: '' },
+    };
+    const close: QueuedItem = { kind: 'close', key: 'c', seq: 9, ...where, positionId: '', state: 'pending' };
+    const ok = memory([close, entry('e1', 2), round]);
+    const okServer = server();
+    expect(await drainQueue(ok.storage, okServer.send)).toBe(3);
+    expect(okServer.sent).toEqual(['r', 'e1', 'c']);
+
+    const refused = memory([close, entry('e1', 2), round]);
+    const refusing = server({ r: 409 });
+    expect(await drainQueue(refused.storage, refusing.send)).toBe(0);
+    expect(refusing.sent).toEqual(['r']);
+    expect(refused.map.get('e1')?.state).toBe('pending');
   });
 });
