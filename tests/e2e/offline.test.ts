@@ -83,7 +83,8 @@ it(
     const context: BrowserContext = await browser.newContext({ viewport: { width: 768, height: 1024 } });
     const first = await context.newPage();
     await signIn(first, app.url, `/projects/${project.id}`, fitter.email);
-    await first.getByRole('link', { name: 'Rounds', exact: true }).first().click();
+    // The group's tab opens a fitter's rounds (nav-groups.ts).
+    await first.getByRole('link', { name: 'Cutterhead & rounds', exact: true }).first().click();
     await first.waitForURL(/\/rounds$/);
     await first.goto(`${app.url}${roundUrl}`);
     await atPosition(first, 1);
@@ -96,8 +97,9 @@ it(
     await context.setOffline(true);
     const page = await context.newPage();
     await page.goto(`${app.url}/projects/${project.id}`);
-    await expect.poll(() => page.getByRole('link', { name: 'Rounds', exact: true }).first().isVisible(), { timeout: 20_000 }).toBe(true);
-    await page.getByRole('link', { name: 'Rounds', exact: true }).first().click();
+    const group = page.getByRole('link', { name: 'Cutterhead & rounds', exact: true }).first();
+    await expect.poll(() => group.isVisible(), { timeout: 20_000 }).toBe(true);
+    await group.click();
     await page.waitForURL(/\/rounds$/);
     await page.goto(`${app.url}${roundUrl}`);
     await atPosition(page, 1);

@@ -36,6 +36,8 @@ export const navGroups: readonly NavGroup[] = [
       { key: 'rounds', label: 'Rounds', to: paths.rounds, permission: 'rounds.read' },
       { key: 'cutters', label: 'Cutters', to: paths.cutters },
     ],
+    // A fitter's day is the rounds: the group's tab opens them.
+    landing: { fitter: 'rounds' },
     also: [(projectId) => `${paths.project(projectId)}/positions`],
   },
   {

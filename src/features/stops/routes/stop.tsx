@@ -164,7 +164,11 @@ const packPositionColumns = [
   pCol.display({
     id: 'serialOn',
     header: 'Serial on',
-    cell: () => <span className="block h-6 min-w-32 border-b-2 border-dotted border-basalt-400" aria-label="To be written in" />,
+    cell: () => (
+      <span className="block h-6 min-w-32 border-b-2 border-dotted border-basalt-400">
+        <span className="sr-only">To be written in</span>
+      </span>
+    ),
   }),
 ];
 const sCol = createColumnHelper<WorkPack['storeSerials'][number]>();
