@@ -80,6 +80,8 @@ type CacheRow = {
   data_version: number | null;
   code_version: string | null;
   computed_ms: number | null;
+  /** The cached answer, only when it was computed from the current version. */
+  body: string | null;
 };
 
 function etagOf(projectId: string, dataVersion: number, computedAt: Date): string {
@@ -98,10 +100,16 @@ function fresh(row: CacheRow | undefined, now: Date): boolean {
 }
 
 const stateQuery = (projectId: string) => sql`
-  select coalesce(v.version, 0) as version, c.data_version, c.code_version, (extract(epoch from c.computed_at) * 1000)::float8 as computed_ms
+  select coalesce(v.version, 0) as version, c.data_version, c.code_version, (extract(epoch from c.computed_at) * 1000)::float8 as computed_ms,
+         case when c.data_version = coalesce(v.version, 0) then c.body end as body
   from (select ${projectId}::uuid as project_id) p
   left join drive_data_versions v on v.project_id = p.project_id
   left join forecast_cache c on c.project_id = p.project_id`;
+
+function fromState(projectId: string, state: CacheRow): CachedForecast {
+  const computedAt = new Date(state.computed_ms!);
+  return { body: state.body!, dataVersion: state.version, computedAt, etag: etagOf(projectId, state.version, computedAt), computed: false };
+}
 
 /**
  * The drive's current forecast: the cached one while the data version, code and age allow,
@@ -109,25 +117,14 @@ const stateQuery = (projectId: string) => sql`
  * explanation, read from the same cached row.
  */
 export async function cachedForecast(projectId: string, now = new Date()): Promise<CachedForecast> {
+  // One query: the version, the cache's state and, when current, its answer.
   const [state] = (await db.execute<CacheRow>(stateQuery(projectId))).rows;
-  if (fresh(state, now)) {
-    const [row] = await db
-      .select({ body: forecastCache.body, dataVersion: forecastCache.dataVersion, computedAt: forecastCache.computedAt })
-      .from(forecastCache)
-      .where(sql`${forecastCache.projectId} = ${projectId} and ${forecastCache.dataVersion} = ${state.version}`);
-    if (row) return { ...row, etag: etagOf(projectId, row.dataVersion, row.computedAt), computed: false };
-  }
+  if (fresh(state, now) && state.body != null) return fromState(projectId, state);
   return db.transaction(async (tx) => {
     await tx.execute(sql`select pg_advisory_xact_lock(hashtextextended(${'forecast:' + projectId}, 0))`);
     // Another instance may have computed it while this one waited for the lock.
     const [again] = (await tx.execute<CacheRow>(stateQuery(projectId))).rows;
-    if (fresh(again, now)) {
-      const [row] = await tx
-        .select({ body: forecastCache.body, dataVersion: forecastCache.dataVersion, computedAt: forecastCache.computedAt })
-        .from(forecastCache)
-        .where(sql`${forecastCache.projectId} = ${projectId}`);
-      if (row) return { ...row, etag: etagOf(projectId, row.dataVersion, row.computedAt), computed: false };
-    }
+    if (fresh(again, now) && again.body != null) return fromState(projectId, again);
     // Read the version before the data: a write committed in between leaves the stored answer
     // one version behind, so the next request computes again (never the other way round).
     const dataVersion = again.version;
