@@ -11,7 +11,8 @@ import { enqueueMail, kickMailDelivery } from '../server/lib/mail';
 import type { JobContext } from '../server/services/job-runner';
 import { siteIsoWeek } from '../shared/site-time';
 import { claimDigestWeek } from './digest-weeks';
-import { computePartsDemand, sourcesText, type PartsDemand } from '../server/services/parts';
+import type { PartsDemand } from '../shared/schemas/parts';
+import { computePartsDemand, sourcesText } from '../server/services/parts';
 import { recipientsFor } from '../server/services/recipients';
 
 /** Weeks the digest looks ahead (about a quarter: longer than most lead times; common practice, no source). */
@@ -22,7 +23,7 @@ const money = (v: number, currency: string) =>
 const units = (v: number) => (Number.isInteger(v) ? String(v) : v.toFixed(1));
 
 /** The digest text: order-now lines with their reasons, then parts that reach their reorder point. */
-export function partsDigestText(driveName: string, demand: PartsDemand, link: string | null): { subject: string; text: string } {
+export function partsDigestText(driveName: string, demand: PartsDemand<Date>, link: string | null): { subject: string; text: string } {
   const stopsById = new Map(demand.stops.map((s) => [s.id, s]));
   const now = demand.suggestions.filter((s) => s.orderNow);
   const low = demand.suggestions.filter((s) => !s.orderNow && s.firstShortageDate);

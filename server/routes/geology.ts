@@ -18,7 +18,7 @@ import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { badRequest, conflict, notFound } from '../lib/http-error';
 import { readGeologyCsv } from '../lib/csv/geology';
-import type { CsvIssue } from '../lib/csv/issues';
+import type { CsvIssue } from '../../shared/schemas/advance-log';
 import {
   csvRefusal,
   chosenMapping,

@@ -33,11 +33,18 @@ import {
   type ExpectedChange,
   type ExpectedFailure,
   type OpenOrder,
-  type PartWeek,
   type RebuildInProgress,
   type RebuildOutcome,
 } from '../../shared/domain/parts-projection';
-import type { DemandSource, OrderSuggestion, WorkshopSettingsInput } from '../../shared/schemas/parts';
+import type {
+  CataloguePart,
+  DemandSource,
+  DemandStop,
+  DemandWeek,
+  OrderSuggestion,
+  PartsDemand,
+  WorkshopSettingsInput,
+} from '../../shared/schemas/parts';
 import { siteDay } from '../../shared/site-time';
 import type { DbOrTx } from '../db/client';
 import {
@@ -68,14 +75,6 @@ export async function loadWorkshopSettings(tx: DbOrTx, projectId: string): Promi
     ? { turnaroundDays: row.turnaroundDays, maxRebuilds: row.maxRebuilds, serviceLevel: row.serviceLevel, boms: row.boms }
     : defaultWorkshopSettings;
 }
-
-export type CataloguePart = Omit<typeof parts.$inferSelect, 'unitCost'> & {
-  unitCost: number;
-  /** Sum of all stock movements. */
-  onHand: number;
-  /** Ordered and not yet received, on all open order lines. */
-  onOrder: number;
-};
 
 /** The catalogue with stock on hand and on order, by code. */
 export async function listCatalogue(tx: DbOrTx, projectId: string): Promise<CataloguePart[]> {
@@ -111,49 +110,13 @@ function perGround(byGround: Readonly<Record<string, number>>, groundTypeId: str
   return known.length > 0 ? Math.max(...known) : 0;
 }
 
-/** One source of a part's demand in a week: a stop, the forecast (positions due without a stop), or sudden failures. */
-
-export type DemandWeek = Omit<PartWeek, 'demandSources'> & { sources: DemandSource[] };
-
-export interface DemandStop {
-  id: string;
-  status: string;
-  chainageM: number;
-  ringNumber: number | null;
-  plannedStart: Date | null;
-  /** Where the change week comes from: the stop's date, or the positions' P90 dates. */
-  dateBasis: 'planned' | 'p90';
-  positionNumbers: number[];
-  /** Plain-words name for lists, CSV and mail. */
-  label: string;
-}
-
-export interface PartsDemand {
-  now: Date;
-  startDate: string;
-  horizonWeeks: number;
-  serviceLevel: number;
-  z: number;
-  parts: CataloguePart[];
-  weeks: DemandWeek[];
-  suggestions: OrderSuggestion[];
-  stops: DemandStop[];
-  estimate: {
-    /** Km all discs are expected to roll per week (the basis of the sudden failures). */
-    rolledKmPerWeek: number[];
-    suddenFailuresPerWeek: number[];
-    geologyEndsWeek: number | null;
-  };
-  problems: string[];
-}
-
 /** Demand per part and week over `weeks` weeks from `now`, with order suggestions at `serviceLevel` (default: the workshop setting). */
 export async function computePartsDemand(
   tx: DbOrTx,
   projectId: string,
   now: Date,
   options: { weeks: number; serviceLevel?: number },
-): Promise<PartsDemand> {
+): Promise<PartsDemand<Date>> {
   const horizonWeeks = options.weeks;
   const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
   const settings = await loadWorkshopSettings(tx, projectId);
@@ -263,7 +226,7 @@ export async function computePartsDemand(
     .where(and(eq(stops.projectId, projectId), inArray(stops.status, [...openStopStatuses])))
     .orderBy(asc(stops.plannedStart), asc(stops.chainageM), asc(positions.number));
   const p90Of = new Map(forecast.positions.map((p) => [p.position.positionId, p.p90]));
-  const demandStops = new Map<string, DemandStop>();
+  const demandStops = new Map<string, DemandStop<Date>>();
   for (const { stop, positionId, positionNumber } of openStops) {
     const dated = stop.status === 'in_progress' ? (stop.actualStart ?? stop.plannedStart ?? now) : stop.plannedStart;
     let ds = demandStops.get(stop.id);
@@ -479,7 +442,7 @@ function suggestionFor(part: CataloguePart, rows: DemandWeek[], z: number): Orde
 }
 
 /** Words for where a suggestion's demand comes from, e.g. "Stop at 0+350.0 …: 4; forecast without a stop: 1.3". */
-export function sourcesText(sources: readonly DemandSource[], stopsById: ReadonlyMap<string, DemandStop>): string {
+export function sourcesText(sources: readonly DemandSource[], stopsById: ReadonlyMap<string, DemandStop<Date>>): string {
   const qty = (q: number) => (Number.isInteger(q) ? String(q) : q.toFixed(1));
   return sources
     .map(
@@ -490,7 +453,7 @@ export function sourcesText(sources: readonly DemandSource[], stopsById: Readonl
 }
 
 /** The suggestion table as CSV rows (header first), for the export and the digest. */
-export function suggestionsCsvRows(demand: PartsDemand): (string | number)[][] {
+export function suggestionsCsvRows(demand: PartsDemand<Date>): (string | number)[][] {
   const stopsById = new Map(demand.stops.map((s) => [s.id, s]));
   const round = (v: number, d = 2) => Number(v.toFixed(d));
   return [

@@ -185,19 +185,29 @@ export interface ImportMapping<F extends string> {
 export type AdvanceLogMapping = ImportMapping<AdvanceLogField>;
 export type GeologyMapping = ImportMapping<GeologySectionField>;
 
-/** A note about an imported file by row (0: the file as a whole) and column header, e.g. a column it did not read. */
-export interface ImportWarning {
+/**
+ * A problem in, or a note about, an uploaded CSV file (server/lib/csv reads it; an import's answer
+ * lists its notes as `warnings`, e.g. a column it did not read). `row` is the 1-based line of the
+ * file (the header is line 1; a row that spans lines inside quotes has the line it starts on), 0
+ * for the file as a whole. `column` is the header as written in the file, the field's label when
+ * the file has no such column, '' for a whole row or file.
+ */
+export interface CsvIssue {
   row: number;
   column: string;
   message: string;
 }
 
+/** The delimiters a CSV file may use (server/lib/csv/detect.ts finds which). */
+export type CsvDelimiter = ',' | ';' | '\t';
+
 /** What an import found out about the file: its format, and the header each field was read from. */
 export interface ImportDetected<F extends string> {
   bom: boolean;
   /** Null when the file was refused before its delimiter was known. */
-  delimiter: ',' | ';' | '\t' | null;
+  delimiter: CsvDelimiter | null;
   decimalComma: boolean;
+  /** Field → header of the column it was read from. */
   mapping: ColumnMapping<F>;
 }
 
@@ -206,13 +216,13 @@ export interface AdvanceLogImported {
   inserted: number;
   unchanged: number;
   replaced: number;
-  warnings: ImportWarning[];
+  warnings: CsvIssue[];
   detected: ImportDetected<AdvanceLogField>;
 }
 
 /** POST /geology/import (201): the long section is replaced by the file's sections. */
 export interface GeologyImported {
   saved: number;
-  warnings: ImportWarning[];
+  warnings: CsvIssue[];
   detected: ImportDetected<GeologySectionField>;
 }

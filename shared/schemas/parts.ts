@@ -250,7 +250,9 @@ export interface CataloguePart {
   leadTimeMeanDays: number;
   leadTimeSdDays: number;
   minOrderQty: number;
+  /** Sum of all stock movements. */
   onHand: number;
+  /** Ordered and not yet received, on all open order lines. */
   onOrder: number;
 }
 
@@ -264,32 +266,40 @@ export interface PartListItem extends CataloguePart {
   firstShortageDate: string | null;
 }
 
+/** One part in one week of the horizon (shared/domain/parts-projection.ts `PartWeek`, its sources named `sources`). */
 export interface DemandWeek {
   partId: string;
   week: number;
+  /** Calendar date (YYYY-MM-DD) the week starts. */
   weekStartDate: string;
   demand: number;
   receipts: number;
+  /** Rebuilt cutters back in ready stock (assemblies only). */
   rebuildReturns: number;
+  /** Removed cutters scrapped (assemblies only). */
   scrapped: number;
+  /** Stock at the end of the week; negative means a shortage. */
   projectedStock: number;
   sources: DemandSource[];
 }
 
-export interface DemandStop {
+/** An open stop the demand counts; `TDate` is Date on the server and the ISO text the client receives. */
+export interface DemandStop<TDate = string> {
   id: string;
   status: string;
   chainageM: number;
   ringNumber: number | null;
-  plannedStart: string | null;
+  plannedStart: TDate | null;
+  /** Where the change week comes from: the stop's date, or the positions' P90 dates. */
   dateBasis: 'planned' | 'p90';
   positionNumbers: number[];
+  /** Plain-words name for lists, CSV and mail. */
   label: string;
 }
 
-/** GET /parts/demand. */
-export interface PartsDemand {
-  now: string;
+/** GET /parts/demand; `TDate` is Date on the server (server/services/parts.ts) and ISO text on the client. */
+export interface PartsDemand<TDate = string> {
+  now: TDate;
   startDate: string;
   horizonWeeks: number;
   serviceLevel: number;
@@ -297,8 +307,13 @@ export interface PartsDemand {
   parts: CataloguePart[];
   weeks: DemandWeek[];
   suggestions: OrderSuggestion[];
-  stops: DemandStop[];
-  estimate: { rolledKmPerWeek: number[]; suddenFailuresPerWeek: number[]; geologyEndsWeek: number | null };
+  stops: DemandStop<TDate>[];
+  estimate: {
+    /** Km all discs are expected to roll per week (the basis of the sudden failures). */
+    rolledKmPerWeek: number[];
+    suddenFailuresPerWeek: number[];
+    geologyEndsWeek: number | null;
+  };
   problems: string[];
 }
 

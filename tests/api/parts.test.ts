@@ -12,7 +12,7 @@ import { weekIndexOf } from '../../shared/domain/parts-projection';
 import { createApp } from '../../server/app';
 import { db } from '../../server/db/client';
 import { auditLog, geologySections, positions, purchaseOrderLines, purchaseOrders, stockMovements } from '../../server/db/schema';
-import type { DemandWeek } from '../../server/services/parts';
+import type { DemandWeek } from '../../shared/schemas/parts';
 import { siteDay } from '../../shared/site-time';
 import type { OrderSuggestion } from '../../shared/schemas/parts';
 import { addMember, makeProject, makeUser, signedInAgent } from '../support/fixtures';

@@ -9,9 +9,8 @@
  * - Decimal comma: only in semicolon or tab files, when a value in those first lines looks like
  *   12,5. The whole file is then read that way (see cells.ts).
  */
-import { fileIssue, type CsvIssue } from './issues';
-
-export type CsvDelimiter = ',' | ';' | '\t';
+import type { CsvDelimiter, CsvIssue } from '../../../shared/schemas/advance-log';
+import { fileIssue } from './issues';
 
 export interface CsvFormat {
   bom: boolean;

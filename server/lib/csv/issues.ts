@@ -1,16 +1,5 @@
-/** Problems found in an uploaded CSV file, and the log that collects them while it is read. */
-
-/**
- * A problem in a file. `row` is the 1-based line of the file (the header is line 1; a row that
- * spans lines inside quotes has the line it starts on), 0 for the file as a whole. `column` is
- * the header as written in the file, the field's label when the file has no such column, '' for
- * a whole row or file.
- */
-export interface CsvIssue {
-  row: number;
-  column: string;
-  message: string;
-}
+/** Problems found in an uploaded CSV file (`CsvIssue`, declared in shared/schemas), and the log that collects them while it is read. */
+import type { CsvIssue } from '../../../shared/schemas/advance-log';
 
 export const fileIssue = (message: string): CsvIssue => ({ row: 0, column: '', message });
 

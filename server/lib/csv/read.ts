@@ -17,20 +17,12 @@
 import { Readable, pipeline } from 'node:stream';
 import { CsvError, parse, type Info } from 'csv-parse';
 import type { ColumnMapping } from '../../../shared/csv-headers';
+import type { CsvIssue, ImportDetected } from '../../../shared/schemas/advance-log';
 import { readCell, TIME_FORMAT_NAMES, type TimeFormat } from './cells';
 import { planColumns, type ColumnPlan } from './columns';
-import { DELIMITER_NAMES, detectCsvFormat, SAMPLE_BYTES, type CsvDelimiter } from './detect';
-import { FileRefused, fileIssue, IssueLog, type CsvIssue } from './issues';
+import { DELIMITER_NAMES, detectCsvFormat, SAMPLE_BYTES } from './detect';
+import { FileRefused, fileIssue, IssueLog } from './issues';
 import type { CsvLineRow, RowReport, TableSpec } from './table';
-
-export interface CsvDetected<F extends string> {
-  bom: boolean;
-  /** Null when the file was refused before its delimiter was known. */
-  delimiter: CsvDelimiter | null;
-  decimalComma: boolean;
-  /** Field → header of the column it was read from. */
-  mapping: ColumnMapping<F>;
-}
 
 export interface CsvProgress {
   bytesRead: number;
@@ -57,7 +49,7 @@ export interface CsvReadOptions<F extends string> {
 
 interface CsvResultCommon<F extends string> {
   warnings: CsvIssue[];
-  detected: CsvDetected<F>;
+  detected: ImportDetected<F>;
   /** Headers of the columns that fill no field ("column N" when unnamed), for the caller to keep or name. */
   unusedColumns: string[];
 }
@@ -160,7 +152,7 @@ export async function readCsv<F extends string, Row>(
   const maxBytes = options.maxBytes ?? DEFAULT_MAX_BYTES;
   const maxRows = options.maxRows ?? DEFAULT_MAX_ROWS;
   const log = new IssueLog(options.maxErrors ?? DEFAULT_MAX_ERRORS);
-  const detected: CsvDetected<F> = { bom: false, delimiter: null, decimalComma: false, mapping: {} };
+  const detected: ImportDetected<F> = { bom: false, delimiter: null, decimalComma: false, mapping: {} };
   const progress: CsvProgress = { bytesRead: 0, rowsParsed: 0 };
   const reportProgress = () => options.onProgress?.({ ...progress });
   const rows: CsvLineRow<Row>[] = [];

@@ -11,7 +11,7 @@ import type { z } from 'zod';
 import { db, type DbOrTx } from '../../db/client';
 import { importMappings } from '../../db/schema';
 import { badRequest, HttpError } from '../http-error';
-import type { CsvIssue } from './issues';
+import type { CsvIssue } from '../../../shared/schemas/advance-log';
 
 /** The imports whose column mapping is remembered per project (`import_mappings.kind`). */
 export type MappingKind = 'advance_log' | 'geology';

@@ -1,11 +1,26 @@
 import { keepPreviousData, queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
 import type { GroundTypeInput, SectionInput, StrokeListQuery } from '../../../shared/schemas/geology';
-import type { ApiIssue } from '../../../shared/schemas/api-error';
+import type { ApiErrorBody, ApiIssue } from '../../../shared/schemas/api-error';
 import { api, apiGet, ApiError } from '../../lib/api-client';
-import type { StrokePage, DailyAdvance, AdvanceLogMapping, GeologyMapping } from '../../../shared/schemas/advance-log';
+import type {
+  StrokePage,
+  DailyAdvance,
+  AdvanceLogMapping,
+  GeologyMapping,
+  AdvanceLogImported,
+  GeologyImported,
+} from '../../../shared/schemas/advance-log';
 import type { GroundType, LongSectionSaved } from '../../../shared/schemas/geology';
 export type { GroundType, GeologySection, Geology, LongSectionSaved } from '../../../shared/schemas/geology';
-export type { Stroke, StrokePage, DailyAdvance, AdvanceLogMapping, GeologyMapping } from '../../../shared/schemas/advance-log';
+export type {
+  Stroke,
+  StrokePage,
+  DailyAdvance,
+  AdvanceLogMapping,
+  GeologyMapping,
+  AdvanceLogImported,
+  GeologyImported,
+} from '../../../shared/schemas/advance-log';
 
 /** Filters of the advance-log list (the paging and sorting come with them in StrokeListQuery). */
 export type StrokeFilters = Pick<StrokeListQuery, 'ringFrom' | 'ringTo' | 'from' | 'to'>;
@@ -57,24 +72,38 @@ export const driveDataQueries = {
 /** A problem the server found in an uploaded file; row 0 is the file as a whole. */
 export type ImportIssue = ApiIssue;
 
-/** The server's answer to an upload: the body of a success, or of a refusal (`error`). */
-export type UploadAnswer =
-  | { ok: true; status: number; body: Record<string, unknown> }
-  | { ok: false; status: number; message: string; issues: ImportIssue[]; errorCount: number };
+/** What an import answers on success (shared/schemas/advance-log.ts): every one lists its notes on the file. */
+export type ImportAnswer = AdvanceLogImported | GeologyImported;
+
+/** The server's refusal of an upload (its error body), or the upload's own failure. */
+export interface UploadRefusal {
+  ok: false;
+  status: number;
+  message: string;
+  issues: ImportIssue[];
+  errorCount: number;
+}
+
+/** The server's answer to an upload: the import's answer `T` (its type declared in shared/schemas), or a refusal. */
+export type UploadAnswer<T extends ImportAnswer> = { ok: true; status: number; body: T } | UploadRefusal;
+
+/** A count in an error body (`errorCount`, `conflictCount`), if the body has it. */
+const countIn = (error: Record<string, unknown>, key: string): number | undefined =>
+  typeof error[key] === 'number' ? error[key] : undefined;
 
 /**
  * Sends a file as the raw request body (text/csv) with XMLHttpRequest, whose upload events give
  * the progress that fetch cannot. `onProgress` receives the share sent (0–1); `onSent` fires when
  * the last byte is out and the server starts checking.
  */
-export function uploadCsv(
+export function uploadCsv<T extends ImportAnswer>(
   url: string,
   file: File,
   onProgress: (fraction: number) => void,
   onSent: () => void,
-): { answer: Promise<UploadAnswer>; abort: () => void } {
+): { answer: Promise<UploadAnswer<T>>; abort: () => void } {
   const xhr = new XMLHttpRequest();
-  const answer = new Promise<UploadAnswer>((resolve, reject) => {
+  const answer = new Promise<UploadAnswer<T>>((resolve, reject) => {
     xhr.open('POST', url);
     xhr.setRequestHeader('Content-Type', 'text/csv');
     xhr.responseType = 'json';
@@ -83,16 +112,23 @@ export function uploadCsv(
     };
     xhr.upload.onload = onSent;
     xhr.onload = () => {
-      const body = xhr.response as Record<string, unknown> | null;
-      if (xhr.status >= 200 && xhr.status < 300) return resolve({ ok: true, status: xhr.status, body: body ?? {} });
-      const error = (body?.error ?? {}) as { message?: string; issues?: ImportIssue[]; errorCount?: number; conflictCount?: number };
+      const ok = xhr.status >= 200 && xhr.status < 300;
+      // responseType 'json' gives null for a body that is not JSON: named, never read as an empty answer.
+      if (xhr.response === null) {
+        const message = ok
+          ? `The server answered ${xhr.status} but its answer could not be read; reload the page to see what was imported.`
+          : `The server answered ${xhr.status}.`;
+        return resolve({ ok: false, status: xhr.status, message, issues: [], errorCount: 0 });
+      }
+      if (ok) return resolve({ ok: true, status: xhr.status, body: xhr.response as T });
+      const error: Partial<ApiErrorBody['error']> = (xhr.response as Partial<ApiErrorBody>).error ?? {};
       const issues = error.issues ?? [];
       resolve({
         ok: false,
         status: xhr.status,
         message: error.message ?? `The server answered ${xhr.status}.`,
         issues,
-        errorCount: error.errorCount ?? error.conflictCount ?? issues.length,
+        errorCount: countIn(error, 'errorCount') ?? countIn(error, 'conflictCount') ?? issues.length,
       });
     };
     xhr.onerror = () => reject(new ApiError(0, 'No connection to the Kerfwise server. Check the network and try again.'));

@@ -1,10 +1,10 @@
 import { useSuspenseQuery } from '@tanstack/react-query';
 import { advanceLogRequiredColumns } from '../../../../shared/csv-headers';
-import { advanceLogImportUrl, driveDataQueries } from '../api';
+import { advanceLogImportUrl, driveDataQueries, type AdvanceLogImported } from '../api';
 import { ColumnMappingStep, useColumnMappingChoice } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
-const count = (body: Record<string, unknown>, key: string) => Number(body[key] ?? 0).toLocaleString('en-GB');
+const count = (n: number) => n.toLocaleString('en-GB');
 
 /** The planner's import of the machine's advance log, with the column mapping as an optional step. */
 export function AdvanceLogImport({ projectId, onImported }: { projectId: string; onImported: () => void }) {
@@ -17,7 +17,7 @@ export function AdvanceLogImport({ projectId, onImported }: { projectId: string;
   };
 
   return (
-    <CsvUpload
+    <CsvUpload<AdvanceLogImported>
       title="Import the advance log"
       url={url}
       onFile={onFile}
@@ -36,7 +36,7 @@ export function AdvanceLogImport({ projectId, onImported }: { projectId: string;
         )
       }
       successTitle={(name, body) =>
-        `${name} imported: ${count(body, 'inserted')} new, ${count(body, 'unchanged')} already stored and unchanged, ${count(body, 'replaced')} replaced.`
+        `${name} imported: ${count(body.inserted)} new, ${count(body.unchanged)} already stored and unchanged, ${count(body.replaced)} replaced.`
       }
       replaceLabel="Replace these rings"
       onImported={onImported}

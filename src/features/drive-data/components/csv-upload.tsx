@@ -5,23 +5,26 @@ import { DataTable } from '../../../components/ui/data-table';
 import { createColumnHelper } from '@tanstack/react-table';
 import { Panel } from '../../../components/ui/page';
 import { ApiError } from '../../../lib/api-client';
-import { uploadCsv, type ImportIssue, type UploadAnswer } from '../api';
+import type { CsvIssue } from '../../../../shared/schemas/advance-log';
+import { uploadCsv, type ImportAnswer, type ImportIssue, type UploadRefusal } from '../api';
 
 /** The server refuses larger files (server/lib/csv/read.ts); checking here saves the upload. */
 const MAX_BYTES = 50 * 1024 * 1024;
 
-type Refusal = Extract<UploadAnswer, { ok: false }>;
 type Stage =
   | { kind: 'idle' }
   | { kind: 'sending'; fraction: number; abort: () => void }
   | { kind: 'checking' }
-  | { kind: 'done'; title: string; warnings: ImportIssue[] }
-  | { kind: 'refused'; refusal: Refusal };
+  | { kind: 'done'; title: string; warnings: CsvIssue[] }
+  | { kind: 'refused'; refusal: UploadRefusal };
 
 const fileSize = (bytes: number) => (bytes < 1024 * 1024 ? `${(bytes / 1024).toFixed(1)} kB` : `${(bytes / 1024 / 1024).toFixed(1)} MB`);
 const plural = (n: number, one: string, many = `${one}s`) => `${n.toLocaleString('en-GB')} ${n === 1 ? one : many}`;
 
-const issueCol = createColumnHelper<ImportIssue>();
+/** A refusal's problem or an import's note: both have row, column and message. */
+type ShownIssue = Pick<ImportIssue, 'row' | 'column' | 'message'>;
+
+const issueCol = createColumnHelper<ShownIssue>();
 const issueColumns = [
   issueCol.accessor((issue) => (issue.row === 0 ? 'Whole file' : (issue.row ?? '—')), {
     id: 'row',
@@ -35,7 +38,7 @@ const issueColumns = [
 ];
 
 /** Problems (or warnings) of a file by row and column, in a table that scrolls when long. */
-function IssueTable({ issues, label }: { issues: ImportIssue[]; label: string }) {
+function IssueTable({ issues, label }: { issues: ShownIssue[]; label: string }) {
   return (
     <div className="mt-2 text-caption text-basalt-900">
       <DataTable data={issues} columns={issueColumns} label={label} exportName="kerfwise-import-problems" filterable={issues.length > 10} />
@@ -43,7 +46,7 @@ function IssueTable({ issues, label }: { issues: ImportIssue[]; label: string })
   );
 }
 
-interface CsvUploadProps {
+interface CsvUploadProps<T extends ImportAnswer> {
   title: string;
   /** What the file should hold. */
   children: ReactNode;
@@ -54,7 +57,7 @@ interface CsvUploadProps {
   /** A step shown between choosing the file and sending it (the column mapping). */
   step?: ReactNode;
   /** Words for a successful answer. */
-  successTitle: (fileName: string, body: Record<string, unknown>) => string;
+  successTitle: (fileName: string, body: T) => string;
   /** Offered on a 409 (rows that differ from stored ones): the button that resends with replace. */
   replaceLabel?: string;
   onImported: () => void;
@@ -64,7 +67,16 @@ interface CsvUploadProps {
  * Choose a CSV file, send it with upload progress, then wait while the server checks every row:
  * a refusal lists every problem by row and column (nothing was stored); conflicts may be replaced.
  */
-export function CsvUpload({ title, children, url, onFile, step, successTitle, replaceLabel, onImported }: CsvUploadProps) {
+export function CsvUpload<T extends ImportAnswer>({
+  title,
+  children,
+  url,
+  onFile,
+  step,
+  successTitle,
+  replaceLabel,
+  onImported,
+}: CsvUploadProps<T>) {
   const [file, setFile] = useState<File | null>(null);
   const [stage, setStage] = useState<Stage>({ kind: 'idle' });
   const busy = stage.kind === 'sending' || stage.kind === 'checking';
@@ -84,7 +96,7 @@ export function CsvUpload({ title, children, url, onFile, step, successTitle, re
       setStage({ kind: 'refused', refusal: { ok: false, status: 413, message, issues: [], errorCount: 0 } });
       return;
     }
-    const upload = uploadCsv(
+    const upload = uploadCsv<T>(
       url(replace),
       file,
       (fraction) => setStage((s) => (s.kind === 'sending' ? { ...s, fraction } : s)),
@@ -97,8 +109,7 @@ export function CsvUpload({ title, children, url, onFile, step, successTitle, re
         setStage({ kind: 'refused', refusal: answer });
         return;
       }
-      const warnings = (answer.body.warnings ?? []) as ImportIssue[];
-      setStage({ kind: 'done', title: successTitle(file.name, answer.body), warnings });
+      setStage({ kind: 'done', title: successTitle(file.name, answer.body), warnings: answer.body.warnings });
       onImported();
     } catch (err) {
       const message = err instanceof ApiError ? err.message : 'The upload failed. Try again.';

@@ -1,6 +1,6 @@
 import { useSuspenseQuery } from '@tanstack/react-query';
 import { geologySectionRequiredColumns } from '../../../../shared/csv-headers';
-import { driveDataQueries, geologyImportUrl } from '../api';
+import { driveDataQueries, geologyImportUrl, type GeologyImported } from '../api';
 import { ColumnMappingStep, useColumnMappingChoice } from './column-mapping';
 import { CsvUpload } from './csv-upload';
 
@@ -12,7 +12,7 @@ export function GeologyImport({ projectId, onImported }: { projectId: string; on
     mappingParam ? `${geologyImportUrl(projectId)}?${new URLSearchParams({ mapping: mappingParam })}` : geologyImportUrl(projectId);
 
   return (
-    <CsvUpload
+    <CsvUpload<GeologyImported>
       title="Import the long section"
       url={url}
       onFile={onFile}
@@ -30,9 +30,7 @@ export function GeologyImport({ projectId, onImported }: { projectId: string; on
           />
         )
       }
-      successTitle={(name, body) =>
-        `${name} imported: ${Number(body.saved ?? 0)} sections saved; they replace the long section stored before.`
-      }
+      successTitle={(name, body) => `${name} imported: ${body.saved} sections saved; they replace the long section stored before.`}
       onImported={onImported}
     >
       <p>
