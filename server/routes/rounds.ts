@@ -4,6 +4,7 @@ import {
   entryInputSchema,
   startRoundInputSchema,
   type EntryRecorded,
+  type OvertakenEntry,
   type Round,
   type RoundDetail,
   type RoundHistoryRow,
@@ -11,7 +12,7 @@ import {
 } from '../../shared/schemas/inspection';
 import type { Sendable } from '../../shared/schemas/wire';
 import { db } from '../db/client';
-import { inspectionEntries, inspectionRounds, photos } from '../db/schema';
+import { auditLog, inspectionEntries, inspectionRounds, photos, users } from '../db/schema';
 import { requireProject, requireUser } from '../middleware/auth';
 import { audit } from '../lib/audit';
 import { conflict, notFound } from '../lib/http-error';
@@ -45,6 +46,37 @@ roundsRouter.post('/', requireProject('rounds.record'), async (req, res) => {
   const input = startRoundInputSchema.parse(req.body);
   const { round, replayed } = await db.transaction((tx) => startRoundOnce(tx, projectId, requireUser(req).id, input));
   reply<Round>(res, replayed ? 200 : 201, round);
+});
+
+/**
+ * The caller's entries overtaken by another fitter's later-recorded entry for the same position
+ * and round, in either arrival order (decision 42), newest first.
+ */
+roundsRouter.get('/overtaken', requireProject('rounds.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const me = requireUser(req);
+  const rows = await db
+    .select({
+      id: auditLog.id,
+      roundId: sql<string>`${auditLog.after}->>'roundId'`,
+      positionId: sql<string>`${auditLog.after}->>'positionId'`,
+      // The entry that stands names its fitter in both arrival orders (`after.recordedBy`).
+      byName: users.name,
+      at: auditLog.at,
+    })
+    .from(auditLog)
+    .leftJoin(users, sql`${users.id}::text = ${auditLog.after}->>'recordedBy'`)
+    .where(
+      and(
+        eq(auditLog.projectId, projectId),
+        eq(auditLog.entity, 'inspection_entry'),
+        eq(auditLog.action, 'overtaken'),
+        sql`${auditLog.before}->>'recordedBy' = ${me.id}`,
+      ),
+    )
+    .orderBy(desc(auditLog.at))
+    .limit(200);
+  reply<OvertakenEntry[]>(res, 200, rows);
 });
 
 /** The round with every position, what was recorded for each, and the walking order of the last round. */

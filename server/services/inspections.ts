@@ -208,7 +208,18 @@ export async function recordEntry(tx: DbOrTx, projectId: string, roundId: string
       .set({ ...values, recordedBy: userId, recordedAt, updatedAt: sql`now()` })
       .where(eq(inspectionEntries.id, prior.id))
       .returning();
-    await audit(tx, { userId, projectId, entity: 'inspection_entry', entityId: entry.id, action: 'update', before: prior, after: entry });
+    // Another user's entry overwritten (two tablets, the earlier-recorded arrived first): kept in
+    // the trail as overtaken, naming its fitter in `before.recordedBy` (decision 42).
+    const overtaken = prior.recordedBy != null && userId != null && prior.recordedBy !== userId;
+    await audit(tx, {
+      userId,
+      projectId,
+      entity: 'inspection_entry',
+      entityId: entry.id,
+      action: overtaken ? 'overtaken' : 'update',
+      before: prior,
+      after: entry,
+    });
   } else {
     [entry] = await tx
       .insert(inspectionEntries)

@@ -119,6 +119,17 @@ export interface EntryRecorded extends EntryFlags {
 }
 
 /** GET /rounds/:roundId/history: one change to an entry of the round, oldest first. */
+/** One of the caller's entries that another fitter's later-recorded entry overtook (decision 42). */
+export interface OvertakenEntry {
+  /** The audit event's id; the client keeps dismissed ones on the device. */
+  id: number;
+  roundId: string;
+  positionId: string;
+  /** Who recorded the entry that stands. */
+  byName: string | null;
+  at: Date;
+}
+
 export interface RoundHistoryRow {
   at: string;
   action: string;

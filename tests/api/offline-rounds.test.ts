@@ -93,7 +93,20 @@ describe('two tablets record the same position offline', () => {
     const wears = trail.flatMap((a) => [a.before, a.after]).map((v) => (v as { wearMm?: number } | null)?.wearMm);
     expect(wears).toContain(10.5);
     expect(wears).toContain(11.5);
-    if (laterFirst) expect(trail.map((a) => a.action)).toContain('overtaken');
+    // Both arrival orders leave one overtaken event naming fitter A's entry as the one overtaken.
+    const overtakenEvents = trail.filter((a) => a.action === 'overtaken');
+    expect(overtakenEvents).toHaveLength(1);
+    expect((overtakenEvents[0].before as { recordedBy: string; wearMm: number }).recordedBy).toBe(fitters[0].id);
+    expect((overtakenEvents[0].before as { wearMm: number }).wearMm).toBe(10.5);
+
+    // Fitter A is told, whichever arrived first: by fitter B, for this round and position.
+    const mine = await agents[0].get(`/api/projects/${project.id}/rounds/overtaken`);
+    expect(mine.status).toBe(200);
+    expect(mine.body).toHaveLength(1);
+    expect(mine.body[0]).toMatchObject({ roundId: round.body.id, positionId: pos.id, byName: fitters[1].name });
+    // Fitter B's entry stands: nothing of theirs was overtaken.
+    const theirs = await agents[1].get(`/api/projects/${project.id}/rounds/overtaken`);
+    expect(theirs.body).toHaveLength(0);
 
     // The overtaken entry sent again (the tablet did not get the answer) is a replay: nothing changes.
     const replay = await agents[0].post(url).send(early);

@@ -140,7 +140,7 @@ it(
 );
 
 it(
-  'two tablets record the same position offline: both are in the audit trail, the later one stands, the overtaken fitter sees it',
+  'two tablets record the same position offline: both are in the audit trail, the later one stands, the overtaken fitter sees it in both arrival orders',
   { timeout: 120_000 },
   async () => {
     const { project, fitter, round, setup } = await driveWithOpenRound(3);
@@ -185,6 +185,47 @@ it(
       .where(and(eq(auditLog.entity, 'inspection_entry'), eq(auditLog.entityId, stored.id)));
     expect(trail.map((t) => t.action).sort()).toEqual(['create', 'overtaken']);
     expect((trail.find((t) => t.action === 'overtaken')!.before as { wearMm: number }).wearMm).toBe(10.5);
+    // Beside the position on A's round screen, naming B.
+    await a.page.goto(`${app.url}${roundUrl}?p=1`);
+    await atPosition(a.page, 1);
+    await expect
+      .poll(() => a.page.getByText(`Your entry for position 1 was overtaken by ${other.name}`).count(), { timeout: 30_000 })
+      .toBe(1);
+
+    // A dismisses the top-bar notice; it stays dismissed after a reload (kept on the device).
+    await a.page.getByRole('button', { name: 'Dismiss overtaken notice' }).click();
+    await expect.poll(() => outboxCount(a.page).textContent()).not.toContain('overtaken');
+    await a.page.reload();
+    await expect.poll(() => outboxCount(a.page).textContent(), { timeout: 30_000 }).toContain('All sent');
+    await a.page.waitForTimeout(1000);
+    expect(await outboxCount(a.page).textContent()).not.toContain('overtaken');
+
+    // The other arrival order: A's earlier entry for position 2 arrives first, B's later one
+    // overwrites it. A's fitter learns of it without sending anything more.
+    await a.page.goto(`${app.url}${roundUrl}?p=2`);
+    await atPosition(a.page, 2);
+    await wearField(a.page).fill('9');
+    await a.page.getByRole('button', { name: 'Save position' }).click();
+    await expect.poll(() => outboxCount(a.page).textContent(), { timeout: 30_000 }).toContain('All sent');
+    await b.page.waitForTimeout(1100);
+    await b.page.goto(`${app.url}${roundUrl}?p=2`);
+    await atPosition(b.page, 2);
+    await b.context.setOffline(true);
+    await wearField(b.page).fill('9.5');
+    await b.page.getByRole('button', { name: 'Save position' }).click();
+    await b.context.setOffline(false);
+    await expect.poll(() => outboxCount(b.page).textContent(), { timeout: 30_000 }).toContain('All sent');
+    await expect.poll(() => outboxCount(a.page).textContent(), { timeout: 30_000 }).toContain('1 of your entries overtaken');
+    await a.page.goto(`${app.url}${roundUrl}?p=2`);
+    await atPosition(a.page, 2);
+    await expect
+      .poll(() => a.page.getByText(`Your entry for position 2 was overtaken by ${other.name}`).count(), { timeout: 30_000 })
+      .toBe(1);
+    const [second] = await db
+      .select()
+      .from(inspectionEntries)
+      .where(and(eq(inspectionEntries.roundId, round.id), eq(inspectionEntries.positionId, setup.positions[1].id)));
+    expect(second).toMatchObject({ wearMm: 9.5, recordedBy: other.id });
     for (const t of tablets) await t.context.close();
   },
 );

@@ -64,7 +64,7 @@ export function AppShell() {
           )}
           {/* The right side of the top bar: status badges go first here, then the person's own links. */}
           <div className="ml-auto flex items-center gap-1" data-slot="top-bar-end">
-            <OutboxCount />
+            <OutboxCount projectId={membership ? projectId : undefined} />
             <NavLink
               to={paths.account}
               className={({ isActive }) =>

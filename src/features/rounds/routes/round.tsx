@@ -10,6 +10,7 @@ import { roundQueries, type RoundDetail, type RoundEntry } from '../api';
 import { closeRoundOnDevice } from '../offline-round';
 import { CutterheadCaution } from '../../../components/ui/cutterhead-caution';
 import { draftFrom, EntryForm, type Draft } from '../components/entry-form';
+import { useOvertaken } from '../overtaken';
 import { Legend } from '../components/marks';
 import { AttentionList, SaveStatus } from '../components/outbox-status';
 import { positionMark, PositionStrip } from '../components/position-strip';
@@ -56,6 +57,7 @@ export function RoundRoute() {
     if (item.kind === 'entry' && item.body.action === 'changed')
       void queryClient.invalidateQueries({ queryKey: roundQueries.inStore(projectId).queryKey });
   });
+  const overtaken = useOvertaken(projectId);
   const [order, setOrder] = useState<Order>('number');
   const [grid, setGrid] = useState(false);
   const [params, setParams] = useSearchParams();
@@ -100,6 +102,7 @@ export function RoundRoute() {
     ordered.findIndex((p) => String(p.number) === params.get('p')),
   );
   const position = ordered[index];
+  const overtakenHere = overtaken.all.find((o) => o.roundId === roundId && o.positionId === position.id);
   const prev = ordered[index - 1];
   const next = ordered[index + 1];
   const goTo = (positionId: string) => {
@@ -204,6 +207,12 @@ export function RoundRoute() {
           {round.closedAt
             ? 'This round is closed; what was recorded is shown.'
             : 'You can look at this round; recording is for fitters and planners.'}
+        </Alert>
+      )}
+
+      {overtakenHere && (
+        <Alert tone="info">
+          {`Your entry for position ${position.number} was overtaken by ${overtakenHere.byName ?? 'another user'} at ${formatSiteDateTime(overtakenHere.at, tz)}: their later-recorded entry stands; yours is kept in the audit trail.`}
         </Alert>
       )}
 
