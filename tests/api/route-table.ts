@@ -148,6 +148,7 @@ export const routeTable: RouteCase[] = [
     body: () => ({ startedAt: '2026-11-20T06:00:00Z', chainageM: 700 }),
     okStatus: 201,
   },
+  { method: 'get', path: '/api/projects/:projectId/rounds/overtaken', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/rounds/:roundId', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/rounds/:roundId/history', roles: everyone },
   {
