@@ -323,3 +323,31 @@ function Pager<T>({ table, paging, label }: { table: ReturnType<typeof useReactT
     </nav>
   );
 }
+
+/** The button that opens a row of a DataTable to show more under it ("Why?", "How?"); its hidden text says what opens. */
+export function RowExpandButton<T>({
+  row,
+  controls,
+  label,
+  hiddenText,
+}: {
+  row: Row<T>;
+  controls: string;
+  label: string;
+  hiddenText: string;
+}) {
+  const isOpen = row.getIsExpanded();
+  return (
+    <Button
+      variant="ghost"
+      aria-expanded={isOpen}
+      aria-controls={controls}
+      onClick={() => row.toggleExpanded()}
+      className="whitespace-nowrap border-2 border-basalt-200"
+    >
+      <span aria-hidden="true">{isOpen ? '▾' : '▸'}</span>
+      {isOpen ? 'Hide' : label}
+      <span className="sr-only"> {hiddenText}</span>
+    </Button>
+  );
+}

@@ -2,8 +2,7 @@ import type { ColumnDef } from '@tanstack/react-table';
 import type { ReactNode } from 'react';
 import { Link } from 'react-router';
 import { positionClassLabels } from '../../../../shared/cutters';
-import { Button } from '../../../components/ui/button';
-import { DataTable } from '../../../components/ui/data-table';
+import { DataTable, RowExpandButton } from '../../../components/ui/data-table';
 import { paths } from '../../../config/paths';
 import { formatChainage } from '../../../../shared/domain/chainage';
 import { formatSiteDate } from '../../../../shared/site-time';
@@ -171,22 +170,14 @@ export function ForecastTable({
       header: 'How was this made',
       enableSorting: false,
       enableGlobalFilter: false,
-      cell: ({ row }) => {
-        const isOpen = row.getIsExpanded();
-        return (
-          <Button
-            variant="ghost"
-            aria-expanded={isOpen}
-            aria-controls={`explain-${row.id}`}
-            onClick={() => row.toggleExpanded()}
-            className="whitespace-nowrap border-2 border-basalt-200"
-          >
-            <span aria-hidden="true">{isOpen ? '▾' : '▸'}</span>
-            {isOpen ? 'Hide' : 'How?'}
-            <span className="sr-only"> How was the forecast of position {row.original.position.positionNumber} made</span>
-          </Button>
-        );
-      },
+      cell: ({ row }) => (
+        <RowExpandButton
+          row={row}
+          controls={`explain-${row.id}`}
+          label="How?"
+          hiddenText={`How was the forecast of position ${row.original.position.positionNumber} made`}
+        />
+      ),
     },
   ];
 

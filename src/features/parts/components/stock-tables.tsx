@@ -1,10 +1,9 @@
 import { createColumnHelper } from '@tanstack/react-table';
 import { partKindLabels } from '../../../../shared/schemas/parts';
-import { DataTable } from '../../../components/ui/data-table';
+import { DataTable, RowExpandButton } from '../../../components/ui/data-table';
 import { Panel } from '../../../components/ui/page';
 import type { OrderSuggestion } from '../../../../shared/schemas/parts';
 import type { CataloguePart, DemandStop, PartsDemand } from '../api';
-import { Button } from '../../../components/ui/button';
 import { money, sourceLabel, sourcesText, units } from '../format';
 
 /** "Order now" in words and colour, so the flag reads without colour too. */
@@ -168,22 +167,14 @@ export function SuggestionsTable({ demand }: { demand: PartsDemand }) {
     sugCol.display({
       id: 'details',
       header: 'Details',
-      cell: ({ row }) => {
-        const isOpen = row.getIsExpanded();
-        return (
-          <Button
-            variant="ghost"
-            aria-expanded={isOpen}
-            aria-controls={`suggestion-${row.id}`}
-            onClick={() => row.toggleExpanded()}
-            className="whitespace-nowrap border-2 border-basalt-200"
-          >
-            <span aria-hidden="true">{isOpen ? '▾' : '▸'}</span>
-            {isOpen ? 'Hide' : 'Why?'}
-            <span className="sr-only"> How the suggestion for {row.original.code} was worked out</span>
-          </Button>
-        );
-      },
+      cell: ({ row }) => (
+        <RowExpandButton
+          row={row}
+          controls={`suggestion-${row.id}`}
+          label="Why?"
+          hiddenText={`How the suggestion for ${row.original.code} was worked out`}
+        />
+      ),
     }),
   ];
   const csvHeader = [
