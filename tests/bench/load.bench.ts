@@ -72,8 +72,8 @@ export async function benchLoad(databaseUrl: string, smtpUrl: string): Promise<s
   const out: string[] = [];
   const { projectId } = await seedDemo(db);
   ensureClientBuilt('.');
-  const appPort = 3910;
-  const barePort = 3911;
+  const appPort = Number(process.env.KERFWISE_BENCH_HTTP_PORT ?? 3910);
+  const barePort = appPort + 1;
   const base = `http://127.0.0.1:${appPort}`;
   const bare = `http://127.0.0.1:${barePort}`;
   const common = { DATABASE_URL: databaseUrl, LOG_LEVEL: 'warn' };
