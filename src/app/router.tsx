@@ -1,21 +1,9 @@
 import type { FetchQueryOptions } from '@tanstack/react-query';
 import type { ComponentType } from 'react';
 import { createBrowserRouter, Navigate, type LoaderFunctionArgs, type RouteObject } from 'react-router';
-import { AppShell } from '../components/layout/app-shell';
 import { PageLoading } from '../components/ui/page';
 import { paths } from '../config/paths';
-import { adminQueries } from '../features/admin/api';
 import { authQueries } from '../features/auth/api';
-import { layoutQueries } from '../features/layout/api';
-import { cutterQueries } from '../features/cutters/api';
-import { driveDataQueries } from '../features/drive-data/api';
-import { forecastQueries } from '../features/forecast/api';
-import { projectQueries } from '../features/projects/api';
-import { roundQueries } from '../features/rounds/api';
-import { downtimeQueries, eventFiltersFrom, periodFrom } from '../features/downtime/api';
-import { demandFiltersFrom, partQueries } from '../features/parts/api';
-import { stopListStatus, stopPlanOverrides, stopQueries } from '../features/stops/api';
-import { geologyQueries } from '../lib/geology-queries';
 import { queryClient } from '../lib/query-client';
 import { RouteError } from './route-error';
 
@@ -27,7 +15,26 @@ type Prefetch = { queryKey: readonly unknown[] };
  * the page uses, e.g. `stopPlanOverrides`, so the keys match): started together by its loader
  * (below), so the page does not wait for one query after another.
  */
-type PageQueries = (params: Params, search: URLSearchParams) => Prefetch[];
+type PageQueries = (params: Params, search: URLSearchParams) => Promise<Prefetch[]>;
+
+/**
+ * Each feature's api module, imported by a loader only when one of its pages opens (decision 47):
+ * the sign-in page's JavaScript carries no feature's queries or schemas. The page's own module
+ * imports the same file, so the two share one chunk and load side by side.
+ */
+const api = {
+  admin: () => import('../features/admin/api'),
+  cutters: () => import('../features/cutters/api'),
+  downtime: () => import('../features/downtime/api'),
+  driveData: () => import('../features/drive-data/api'),
+  forecast: () => import('../features/forecast/api'),
+  geology: () => import('../lib/geology-queries'),
+  layout: () => import('../features/layout/api'),
+  parts: () => import('../features/parts/api'),
+  projects: () => import('../features/projects/api'),
+  rounds: () => import('../features/rounds/api'),
+  stops: () => import('../features/stops/api'),
+};
 
 /**
  * A page: its module loaded lazily (so the first load stays small) and, when it names them, its
@@ -41,23 +48,33 @@ function page(pattern: string, load: () => Promise<ComponentType>, queries?: Pag
     lazy: async () => ({ Component: await load() }),
     loader: queries
       ? async ({ params, request }) => {
-          // A failure here is the AppShell's to show ("could not reach its server").
-          const me = await queryClient.ensureQueryData(authQueries.me()).catch(() => null);
           const search = new URL(request.url).searchParams;
-          if (me) for (const q of queries(params, search)) void queryClient.prefetchQuery(q as FetchQueryOptions);
+          const [me, first] = await Promise.all([
+            // A failure here is the AppShell's to show ("could not reach its server").
+            queryClient.ensureQueryData(authQueries.me()).catch(() => null),
+            // The queries' module not loading is the page's own module failing too (it imports
+            // it): the route's error shows that, so the loader only skips its head start.
+            queries(params, search).catch(() => []),
+          ]);
+          if (me) for (const q of first) void queryClient.prefetchQuery(q as FetchQueryOptions);
           return null;
         }
       : undefined,
   };
 }
 
-const project = (params: Params) => projectQueries.detail(params.projectId ?? '');
+/** A drive's page: the drive itself, then what `more` names from the drive's id and the address. */
 const withProject =
-  (more: (projectId: string, params: Params, search: URLSearchParams) => Prefetch[]): PageQueries =>
-  (params, search) => [project(params), ...more(params.projectId ?? '', params, search)];
+  (more?: (projectId: string, params: Params, search: URLSearchParams) => Promise<Prefetch[]>): PageQueries =>
+  async (params, search) => {
+    const projectId = params.projectId ?? '';
+    const [{ projectQueries }, rest] = await Promise.all([api.projects(), more ? more(projectId, params, search) : []]);
+    return [projectQueries.detail(projectId), ...rest];
+  };
 
 /** The parts page's open tab (?tab=, the stock tab unless named) and what it reads first. */
-function partsTabQueries(projectId: string, search: URLSearchParams): Prefetch[] {
+async function partsTabQueries(projectId: string, search: URLSearchParams): Promise<Prefetch[]> {
+  const { demandFiltersFrom, partQueries } = await api.parts();
   switch (search.get('tab')) {
     case 'orders':
       return [partQueries.orders(projectId)];
@@ -81,7 +98,8 @@ export const router = createBrowserRouter([
       page(paths.setPassword, async () => (await import('../features/auth/routes/set-password')).SetPasswordRoute),
       {
         path: paths.home,
-        Component: AppShell,
+        // The signed-in frame loads with the first signed-in page, not with the sign-in page.
+        lazy: async () => ({ Component: (await import('../components/layout/app-shell')).AppShell }),
         errorElement: <RouteError />,
         children: [
           {
@@ -92,67 +110,72 @@ export const router = createBrowserRouter([
           page(
             paths.project.pattern,
             async () => (await import('../features/projects/routes/project-home')).ProjectHomeRoute,
-            withProject(() => []),
+            withProject(),
           ),
           page(
             paths.cutterhead.pattern,
             async () => (await import('../features/layout/routes/cutterhead')).CutterheadRoute,
-            withProject((id) => [layoutQueries.list(id)]),
+            withProject(async (id) => [(await api.layout()).layoutQueries.list(id)]),
           ),
           page(
             paths.layout.pattern,
             async () => (await import('../features/layout/routes/layout')).LayoutRoute,
-            withProject((id) => [layoutQueries.list(id)]),
+            withProject(async (id) => [(await api.layout()).layoutQueries.list(id)]),
           ),
           page(
             paths.position.pattern,
             async () => (await import('../features/layout/routes/position')).PositionRoute,
-            withProject((id, p) => [layoutQueries.detail(id, p.positionId ?? '')]),
+            withProject(async (id, p) => [(await api.layout()).layoutQueries.detail(id, p.positionId ?? '')]),
           ),
-          page(
-            paths.cutters.pattern,
-            async () => (await import('../features/cutters/routes/cutters')).CuttersRoute,
-            withProject(() => []),
-          ),
+          page(paths.cutters.pattern, async () => (await import('../features/cutters/routes/cutters')).CuttersRoute, withProject()),
           page(
             paths.cutter.pattern,
             async () => (await import('../features/cutters/routes/cutter')).CutterRoute,
-            withProject((id, p) => [cutterQueries.detail(id, p.cutterId ?? '')]),
+            withProject(async (id, p) => [(await api.cutters()).cutterQueries.detail(id, p.cutterId ?? '')]),
           ),
           page(
             paths.rounds.pattern,
             async () => (await import('../features/rounds/routes/rounds')).RoundsRoute,
-            withProject((id) => [roundQueries.list(id)]),
+            withProject(async (id) => [(await api.rounds()).roundQueries.list(id)]),
           ),
           page(
             paths.round.pattern,
             async () => (await import('../features/rounds/routes/round')).RoundRoute,
-            withProject((id, p) => [roundQueries.detail(id, p.roundId ?? '')]),
+            withProject(async (id, p) => [(await api.rounds()).roundQueries.detail(id, p.roundId ?? '')]),
           ),
           page(
             paths.forecast.pattern,
             async () => (await import('../features/forecast/routes/forecast')).ForecastRoute,
-            withProject((id) => [
-              forecastQueries.forecast(id),
-              geologyQueries.geology(id),
-              geologyQueries.groundTypes(id),
-              forecastQueries.settings(id),
-            ]),
+            withProject(async (id) => {
+              const [{ forecastQueries }, { geologyQueries }] = await Promise.all([api.forecast(), api.geology()]);
+              return [
+                forecastQueries.forecast(id),
+                geologyQueries.geology(id),
+                geologyQueries.groundTypes(id),
+                forecastQueries.settings(id),
+              ];
+            }),
           ),
           page(
             paths.wearFits.pattern,
             async () => (await import('../features/forecast/routes/wear-fits')).WearFitsRoute,
-            withProject((id) => [forecastQueries.wearFit(id)]),
+            withProject(async (id) => [(await api.forecast()).forecastQueries.wearFit(id)]),
           ),
           page(
             paths.advanceLog.pattern,
             async () => (await import('../features/drive-data/routes/advance-log')).AdvanceLogRoute,
-            withProject((id) => [driveDataQueries.daily(id), driveDataQueries.mapping(id)]),
+            withProject(async (id) => {
+              const { driveDataQueries } = await api.driveData();
+              return [driveDataQueries.daily(id), driveDataQueries.mapping(id)];
+            }),
           ),
           page(
             paths.geology.pattern,
             async () => (await import('../features/drive-data/routes/geology')).GeologyRoute,
-            withProject((id) => [geologyQueries.geology(id), geologyQueries.groundTypes(id)]),
+            withProject(async (id) => {
+              const { geologyQueries } = await api.geology();
+              return [geologyQueries.geology(id), geologyQueries.groundTypes(id)];
+            }),
           ),
           page(
             paths.parts.pattern,
@@ -162,57 +185,80 @@ export const router = createBrowserRouter([
           page(
             paths.downtime.pattern,
             async () => (await import('../features/downtime/routes/downtime-events')).DowntimeEventsRoute,
-            withProject((id, _p, search) => [
-              downtimeQueries.events(id, eventFiltersFrom(search).query),
-              downtimeQueries.causes(id),
-              downtimeQueries.settings(id),
-            ]),
+            withProject(async (id, _p, search) => {
+              const { downtimeQueries, eventFiltersFrom } = await api.downtime();
+              return [downtimeQueries.events(id, eventFiltersFrom(search).query), downtimeQueries.causes(id), downtimeQueries.settings(id)];
+            }),
           ),
           page(
             paths.downtimeReport.pattern,
             async () => (await import('../features/downtime/routes/downtime-report')).DowntimeReportRoute,
-            withProject((id, _p, search) => [downtimeQueries.report(id, periodFrom(search))]),
+            withProject(async (id, _p, search) => {
+              const { downtimeQueries, periodFrom } = await api.downtime();
+              return [downtimeQueries.report(id, periodFrom(search))];
+            }),
           ),
           page(
             paths.cutterCost.pattern,
             async () => (await import('../features/downtime/routes/cutter-cost')).CutterCostRoute,
-            withProject((id, _p, search) => [downtimeQueries.cost(id, periodFrom(search))]),
+            withProject(async (id, _p, search) => {
+              const { downtimeQueries, periodFrom } = await api.downtime();
+              return [downtimeQueries.cost(id, periodFrom(search))];
+            }),
           ),
           page(
             paths.stops.pattern,
             async () => (await import('../features/stops/routes/stops')).StopsRoute,
-            withProject((id, _p, search) => [stopQueries.list(id, stopListStatus(search))]),
+            withProject(async (id, _p, search) => {
+              const { stopListStatus, stopQueries } = await api.stops();
+              return [stopQueries.list(id, stopListStatus(search))];
+            }),
           ),
           page(
             paths.stopPlan.pattern,
             async () => (await import('../features/stops/routes/plan')).StopPlanRoute,
-            withProject((id, _p, search) => [stopQueries.plan(id, stopPlanOverrides(search))]),
+            withProject(async (id, _p, search) => {
+              const { stopPlanOverrides, stopQueries } = await api.stops();
+              return [stopQueries.plan(id, stopPlanOverrides(search))];
+            }),
           ),
           page(
             paths.stop.pattern,
             async () => (await import('../features/stops/routes/stop')).StopRoute,
-            withProject((id, p) => [stopQueries.detail(id, p.stopId ?? ''), stopQueries.crews(id), stopQueries.rounds(id)]),
+            withProject(async (id, p) => {
+              const { stopQueries } = await api.stops();
+              return [stopQueries.detail(id, p.stopId ?? ''), stopQueries.crews(id), stopQueries.rounds(id)];
+            }),
           ),
           { path: paths.admin.home, element: <Navigate to={paths.admin.users} replace /> },
           page(
             paths.admin.users,
             async () => (await import('../features/admin/routes/users')).AdminUsersRoute,
-            () => [adminQueries.users(), adminQueries.projects()],
+            async () => {
+              const { adminQueries } = await api.admin();
+              return [adminQueries.users(), adminQueries.projects()];
+            },
           ),
           page(
             paths.admin.projects,
             async () => (await import('../features/admin/routes/projects')).AdminProjectsRoute,
-            () => [adminQueries.projects()],
+            async () => [(await api.admin()).adminQueries.projects()],
           ),
           page(
             paths.admin.jobs,
             async () => (await import('../features/admin/routes/jobs')).AdminJobsRoute,
-            () => [adminQueries.jobs(), adminQueries.projects()],
+            async () => {
+              const { adminQueries } = await api.admin();
+              return [adminQueries.jobs(), adminQueries.projects()];
+            },
           ),
           page(
             paths.admin.mail,
             async () => (await import('../features/admin/routes/mail')).AdminMailRoute,
-            () => [adminQueries.mail(), adminQueries.projects()],
+            async () => {
+              const { adminQueries } = await api.admin();
+              return [adminQueries.mail(), adminQueries.projects()];
+            },
           ),
           { path: '*', element: <RouteError /> },
         ],
