@@ -18,11 +18,16 @@ const buildId = new Date().toISOString();
  */
 const framework =
   /[\\/]node_modules[\\/](react|react-dom|scheduler|react-router|@tanstack[\\/](query-core|react-query|query-persist-client-core|react-query-persist-client|query-async-storage-persister)|idb-keyval|workbox-window)[\\/]/;
+/** TanStack Query's reading side (observers, useQuery and its kin): for the pages that read data, not the sign-in form. */
+const queryHooks =
+  /[\\/]@tanstack[\\/](query-core[\\/]build[\\/]modern[\\/](queryObserver|queriesObserver|infiniteQueryObserver)|react-query[\\/]build[\\/]modern[\\/](useBaseQuery|useQuery|useQueries|useSuspenseQuery|useSuspenseQueries|useInfiniteQuery|useSuspenseInfiniteQuery|suspense|errorBoundaryUtils|QueryErrorResetBoundary|IsRestoringProvider))\.js$/;
 const forms = /[\\/]node_modules[\\/](zod|react-hook-form|@hookform[\\/]resolvers)[\\/]/;
 const charts = /[\\/]node_modules[\\/]recharts[\\/]/;
 /** Our own building blocks that nearly every screen imports (controls, paths, the fetch client, form errors). */
 const blocks =
-  /[\\/](src[\\/](components[\\/]ui[\\/](alert|button|field|page)|components[\\/]layout[\\/]logo|config[\\/]paths|lib[\\/](api-client|form|query-client))|shared[\\/]schemas[\\/]fields)\.tsx?$/;
+  /[\\/](src[\\/](components[\\/]ui[\\/](alert|button|field|page)|components[\\/]layout[\\/]logo|config[\\/]paths|lib[\\/](api-client|form|query-client)|features[\\/]auth[\\/]api)|shared[\\/]schemas[\\/](fields|auth))\.tsx?$/;
+/** The bundler's own helpers (module runtime, preload) and the service worker registration: with the framework. */
+const helpers = (id: string) => id.startsWith('\0') || id.includes('virtual:pwa-register');
 
 export default defineConfig({
   define: { __KERFWISE_BUILD__: JSON.stringify(buildId) },
@@ -76,7 +81,8 @@ export default defineConfig({
       output: {
         codeSplitting: {
           groups: [
-            { name: 'framework', test: framework, priority: 3 },
+            { name: 'query-hooks', test: queryHooks, priority: 4, includeDependenciesRecursively: false },
+            { name: 'framework', test: (id) => framework.test(id) || helpers(id), priority: 3 },
             { name: 'forms', test: forms, priority: 2 },
             { name: 'charts', test: charts, priority: 1 },
             { name: 'blocks', test: blocks, priority: 1 },
