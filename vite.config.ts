@@ -1,5 +1,6 @@
 /// <reference types="vitest/config" />
-import { defineConfig } from 'vite';
+import path from 'node:path';
+import { defineConfig, type Plugin } from 'vite';
 import react from '@vitejs/plugin-react';
 import tailwindcss from '@tailwindcss/vite';
 import { compression, defineAlgorithm } from 'vite-plugin-compression2';
@@ -29,10 +30,44 @@ const blocks =
 /** The bundler's own helpers (module runtime, preload) and the service worker registration: with the framework. */
 const helpers = (id: string) => id.startsWith('\0') || id.includes('virtual:pwa-register');
 
+/**
+ * Writes `dist/.vite/chunks.json`: each chunk's file, the module it stands for, its static and
+ * dynamic imports and the modules with code in it (paths from the project root), so that
+ * `tests/server/static-files.test.ts` can check what the sign-in page loads (decision 47). A
+ * dot-folder is not served, and JSON is not precached.
+ */
+function chunkMap(): Plugin {
+  const fromRoot = (id: string) => (id.startsWith('\0') ? id : path.relative(process.cwd(), id).split(path.sep).join('/'));
+  return {
+    name: 'kerfwise-chunk-map',
+    apply: 'build',
+    generateBundle(_options, bundle) {
+      const chunks = Object.values(bundle).flatMap((c) =>
+        c.type === 'chunk'
+          ? [
+              {
+                file: c.fileName,
+                isEntry: c.isEntry,
+                facade: c.facadeModuleId ? fromRoot(c.facadeModuleId) : null,
+                imports: c.imports,
+                dynamicImports: c.dynamicImports,
+                modules: Object.entries(c.modules)
+                  .filter(([, m]) => m.renderedLength > 0)
+                  .map(([id]) => fromRoot(id)),
+              },
+            ]
+          : [],
+      );
+      this.emitFile({ type: 'asset', fileName: '.vite/chunks.json', source: JSON.stringify(chunks, null, 1) });
+    },
+  };
+}
+
 export default defineConfig({
   define: { __KERFWISE_BUILD__: JSON.stringify(buildId) },
   plugins: [
     react(),
+    chunkMap(),
     tailwindcss(),
     // An installable app that opens with no network (decision 42): our own service worker
     // (src/sw.ts) precaches the shell, every route chunk and the fonts.
@@ -65,6 +100,8 @@ export default defineConfig({
     compression({
       algorithms: [defineAlgorithm('brotliCompress'), defineAlgorithm('gzip')],
       include: /\.(js|css|html|svg|json|woff2?)$/,
+      // The chunk list is for the tests, never sent (decision 47).
+      exclude: /(^|[\\/])\.vite[\\/]/,
       threshold: 1024,
     }),
   ],

@@ -73,3 +73,90 @@ describe('static files', () => {
     expect(res.text).toMatch(/<div id="root">/);
   });
 });
+
+/** One chunk of the build as `dist/.vite/chunks.json` lists it (written by vite.config.ts, decision 47). */
+interface BuiltChunk {
+  file: string;
+  isEntry: boolean;
+  /** The module the chunk stands for (an entry or a lazily imported module), from the project root. */
+  facade: string | null;
+  imports: string[];
+  dynamicImports: string[];
+  /** The modules with code in this chunk, from the project root (`node_modules/…`, `src/…`, `shared/…`). */
+  modules: string[];
+}
+
+describe('what the sign-in page loads (decision 47)', () => {
+  let chunks: BuiltChunk[];
+  /** The chunks the browser fetches for /sign-in: the entry, the router and the sign-in route, each with what it imports statically. */
+  let signInChunks: BuiltChunk[];
+  let signInModules: string[];
+
+  beforeAll(() => {
+    ensureClientBuilt('.');
+    chunks = JSON.parse(readFileSync('dist/.vite/chunks.json', 'utf8')) as BuiltChunk[];
+    const byFile = new Map(chunks.map((c) => [c.file, c]));
+    const lazy = (facade: string) => {
+      const c = chunks.find((x) => x.facade === facade);
+      if (!c) throw new Error(`no chunk stands for ${facade} in dist/.vite/chunks.json`);
+      return c;
+    };
+    const entry = chunks.filter((c) => c.isEntry);
+    expect(entry.map((c) => c.facade)).toEqual(['index.html']);
+    const seen = new Set<BuiltChunk>();
+    const visit = (c: BuiltChunk) => {
+      if (seen.has(c)) return;
+      seen.add(c);
+      for (const f of c.imports) visit(byFile.get(f)!);
+    };
+    for (const c of [...entry, lazy('src/app/router.tsx'), lazy('src/features/auth/routes/sign-in.tsx')]) visit(c);
+    signInChunks = [...seen];
+    signInModules = signInChunks.flatMap((c) => c.modules);
+  });
+
+  it('includes what the sign-in form runs on (so the checks below look at the real graph)', () => {
+    for (const m of [
+      'src/main.tsx',
+      'src/features/auth/routes/sign-in.tsx',
+      'shared/schemas/auth.ts',
+      'node_modules/react-dom/',
+      'node_modules/react-hook-form/',
+    ])
+      expect(
+        signInModules.some((id) => id.startsWith(m)),
+        m,
+      ).toBe(true);
+  });
+
+  it('loads no charting code, though the build has it for the chart screens', () => {
+    const charting = /^node_modules\/(recharts|d3-[a-z-]+|victory-vendor|@reduxjs)\//;
+    expect(chunks.flatMap((c) => c.modules).some((id) => charting.test(id))).toBe(true);
+    expect(signInModules.filter((id) => charting.test(id))).toEqual([]);
+  });
+
+  it("loads no other feature's code or schemas and not the signed-in frame", () => {
+    expect(signInModules.filter((id) => id.startsWith('src/features/') && !id.startsWith('src/features/auth/'))).toEqual([]);
+    // The sign-in form's schema and the field blocks it is made of; no other resource's schemas.
+    expect(signInModules.filter((id) => id.startsWith('shared/schemas/')).sort()).toEqual([
+      'shared/schemas/auth.ts',
+      'shared/schemas/fields.ts',
+    ]);
+    expect(signInModules).not.toContain('src/components/layout/app-shell.tsx');
+  });
+
+  it('does not serve the chunk list (a dot-folder: the browser gets the app shell instead)', async () => {
+    for (const encoding of ['br, gzip', 'identity']) {
+      const res = await request(app).get('/.vite/chunks.json').set('Accept-Encoding', encoding);
+      expect(res.text).not.toMatch(/"modules"/);
+      expect(res.text).toMatch(/<div id="root">/);
+    }
+  });
+
+  it('precaches every chunk for offline use (decision 42), the ones the sign-in page does not load included', () => {
+    // The precache list Workbox's build step wrote into the worker: {"revision":…,"url":"assets/…"}.
+    const precached = new Set([...readFileSync('dist/sw.js', 'utf8').matchAll(/"url":"([^"]+)"/g)].map((m) => m[1]));
+    const missing = chunks.map((c) => c.file).filter((f) => !precached.has(f));
+    expect(chunks.length).toBeGreaterThan(signInChunks.length);
+    expect(missing).toEqual([]);
+  });
+});
