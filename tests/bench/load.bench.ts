@@ -48,8 +48,8 @@ async function load(url: string, headers: Record<string, string> = {}, seconds =
   };
 }
 
-function start(script: string, env: Record<string, string>, readyUrl: string): Promise<ChildProcess> {
-  const child = fork(script, [], { execArgv: ['--import', 'tsx'], env: { ...process.env, ...env }, stdio: 'inherit' });
+function start(script: string, env: Record<string, string>, readyUrl: string, execArgv: string[] = []): Promise<ChildProcess> {
+  const child = fork(script, [], { execArgv: ['--import', 'tsx', ...execArgv], env: { ...process.env, ...env }, stdio: 'inherit' });
   return new Promise((resolve, reject) => {
     const deadline = Date.now() + 60_000;
     const poll = () =>
@@ -81,6 +81,15 @@ export async function benchLoad(databaseUrl: string, smtpUrl: string): Promise<s
     'server/index.ts',
     { ...common, SMTP_URL: smtpUrl, PORT: String(appPort), APP_URL: base, SESSION_SECRET: 'bench-'.repeat(8), NODE_ENV: 'production' },
     `${base}/api/health`,
+    // KERFWISE_BENCH_CPU_PROF=<dir>: a V8 CPU profile of Kerfwise's process (open in Chrome DevTools).
+    // The profile is written at exit, so SIGTERM exits normally there.
+    process.env.KERFWISE_BENCH_CPU_PROF
+      ? [
+          '--cpu-prof',
+          `--cpu-prof-dir=${process.env.KERFWISE_BENCH_CPU_PROF}`,
+          `--import=data:text/javascript,process.on('SIGTERM',()=>process.exit(0))`,
+        ]
+      : [],
   );
   const bareServer = await start(
     'tests/bench/bare-server.ts',
