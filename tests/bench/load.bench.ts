@@ -111,14 +111,22 @@ export async function benchLoad(databaseUrl: string, smtpUrl: string): Promise<s
       `Load: ${CONNECTIONS} connections, ${DURATION_S} s per figure; load average before: ${os.loadavg()[0].toFixed(2)} on ${os.availableParallelism()} cores`,
     );
 
+    // The server's very first forecast (its process just started: code not yet optimised), printed
+    // beside the figure with a limit, which is a running server's first answer after a change.
+    const forecastMs = async () => {
+      const t = performance.now();
+      const res = await fetch(`${api}/forecast`, { headers: auth });
+      await res.arrayBuffer();
+      if (res.status !== 200) throw new Error(`forecast answered ${res.status}`);
+      return performance.now() - t;
+    };
+    const coldMs = await forecastMs();
     // Forecast after a change: the first answer computes (once), later ones come from the cache.
     await db.execute(sql`update projects set name = name where id = ${projectId}`);
-    const t = performance.now();
-    const first = await fetch(`${api}/forecast`, { headers: auth });
-    const firstMs = performance.now() - t;
+    const firstMs = await forecastMs();
     const { rows } = await db.execute<{ n: number }>(sql`select count(*)::int as n from positions where project_id = ${projectId}`);
     out.push(
-      `Forecast after a change, first answer (computes, ${rows[0].n} positions): ${firstMs.toFixed(0)} ms (status ${first.status}) — target ≤ 150 ms`,
+      `Forecast after a change, first answer (computes, ${rows[0].n} positions): ${firstMs.toFixed(0)} ms — target ≤ 150 ms (the server's first forecast after its start: ${coldMs.toFixed(0)} ms)`,
     );
 
     const me = await load(`${base}/api/auth/me`, auth);
