@@ -30,8 +30,15 @@ function percentile(sorted: number[], p: number): number {
   return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
 }
 
+/** Seconds of load before each figure, not counted: both servers' code is compiled and optimised first. */
+const WARM_UP_S = Number(process.env.BENCH_WARM_UP_SECONDS ?? 2);
+
 /** autocannon at 50 connections; p95 from every response time it reports (its own summary stops at p90 and p97.5). */
 async function load(url: string, headers: Record<string, string> = {}, seconds = DURATION_S): Promise<Load> {
+  if (WARM_UP_S > 0)
+    await new Promise((resolve, reject) =>
+      autocannon({ url, connections: CONNECTIONS, duration: WARM_UP_S, headers }, (err, r) => (err ? reject(err) : resolve(r))),
+    );
   const times: number[] = [];
   const result = await new Promise<autocannon.Result>((resolve, reject) => {
     const instance = autocannon({ url, connections: CONNECTIONS, duration: seconds, headers }, (err, r) =>
@@ -108,7 +115,7 @@ export async function benchLoad(databaseUrl: string, smtpUrl: string): Promise<s
     const auth = { cookie };
     const api = `${base}/api/projects/${projectId}`;
     out.push(
-      `Load: ${CONNECTIONS} connections, ${DURATION_S} s per figure; load average before: ${os.loadavg()[0].toFixed(2)} on ${os.availableParallelism()} cores`,
+      `Load: ${CONNECTIONS} connections, ${DURATION_S} s per figure after ${WARM_UP_S} s not counted; load average before: ${os.loadavg()[0].toFixed(2)} on ${os.availableParallelism()} cores`,
     );
 
     // The server's very first forecast (its process just started: code not yet optimised), printed
