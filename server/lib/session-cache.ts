@@ -24,6 +24,7 @@ import type { ProjectRole } from '../../shared/roles';
 import { pool } from '../db/client';
 import { env } from '../env';
 import { logger } from './logger';
+import type { JsonText } from './reply';
 
 export const AUTH_CHANNEL = 'kerfwise_auth';
 /** The listener's application_name in pg_stat_activity (the scale-out test cuts it on purpose). */
@@ -51,7 +52,7 @@ export interface ResolvedSession {
   memberships: Me['memberships'];
   roles: ReadonlyMap<string, ProjectRole>;
   /** GET /api/auth/me's JSON text, made once per entry (server/routes/auth.ts). */
-  meJson?: string;
+  meJson?: JsonText<Me>;
 }
 
 interface Entry {

@@ -21,7 +21,7 @@ import { badRequest, HttpError } from '../lib/http-error';
 import { enqueueMail, kickMailDelivery } from '../lib/mail';
 import { consumeToken, issueToken, revokeTokens } from '../lib/one-time-token';
 import { logger } from '../lib/logger';
-import { reply } from '../lib/reply';
+import { jsonText, reply, replyText } from '../lib/reply';
 import { dummyPasswordHash, hashPassword, verifyPassword } from '../lib/password';
 import { knownDevice, rememberDevice } from '../lib/device-cookie';
 import { signInThrottle, waitS } from '../lib/sign-in-throttle';
@@ -111,9 +111,8 @@ authRouter.post('/sign-out', async (req, res) => {
 authRouter.get('/me', requireSignedIn, (req, res) => {
   const session = req.authSession!;
   // Read with the session (one query, or none when cached); the JSON text is made once per cached session.
-  const me: Me = { user: session.user, memberships: session.memberships };
-  session.meJson ??= JSON.stringify(me);
-  res.type('application/json').send(session.meJson);
+  session.meJson ??= jsonText<Me>({ user: session.user, memberships: session.memberships });
+  replyText<Me>(res, 200, session.meJson);
 });
 
 /** Reset requests allowed per hour, per address asked for and per client address (decision 29). */
