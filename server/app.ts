@@ -1,5 +1,5 @@
 import cookieParser from 'cookie-parser';
-import express, { type Express } from 'express';
+import express, { type Express, type RequestHandler, type Response } from 'express';
 import helmet from 'helmet';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
@@ -39,14 +39,40 @@ export interface AppOptions {
   jobs?: readonly JobDefinition[];
 }
 
+/**
+ * Helmet's headers (no upgrade-insecure-requests: the local product is served over plain http on
+ * 127.0.0.1). They are the same for every response, so Helmet runs once here and each request gets
+ * the recorded headers in one step instead of a dozen middleware calls (decision 45).
+ */
+export const helmetOptions = { contentSecurityPolicy: { directives: { upgradeInsecureRequests: null } } } as const;
+
+export function securityHeaders(): RequestHandler {
+  const set: [string, string][] = [];
+  const removed: string[] = [];
+  const recorder = {
+    setHeader: (name: string, value: unknown) => set.push([name, String(value)]),
+    removeHeader: (name: string) => removed.push(name),
+  };
+  let ran = false;
+  helmet(helmetOptions)({} as never, recorder as unknown as Response, () => (ran = true));
+  if (!ran) throw new Error('Helmet did not finish synchronously; its headers cannot be recorded once.');
+  return (_req, res, next) => {
+    for (const [name, value] of set) res.setHeader(name, value);
+    for (const name of removed) res.removeHeader(name);
+    next();
+  };
+}
+
 /** Builds the Express app; `listen` happens elsewhere (server/index.ts, server/start.ts, tests). */
 export function createApp(options: AppOptions = {}): Express {
   const app = express();
   app.set('trust proxy', env().TRUST_PROXY);
   app.disable('x-powered-by');
-  // No upgrade-insecure-requests: the local product is served over plain http on 127.0.0.1.
-  app.use(helmet({ contentSecurityPolicy: { directives: { upgradeInsecureRequests: null } } }));
-  app.use(pinoHttp({ logger, autoLogging: { ignore: (req) => req.url === '/api/health' } }));
+  app.use(securityHeaders());
+  // One line per request at level info; below it (LOG_LEVEL=warn…) no line would ever be written,
+  // so the per-request logger (a child bound to the serialized request) is not made at all.
+  // (Unhandled errors are logged by the error handler at level error either way.)
+  if (logger.isLevelEnabled('info')) app.use(pinoHttp({ logger, autoLogging: { ignore: (req) => req.url === '/api/health' } }));
   app.use(express.json({ limit: '1mb' }));
   app.use(cookieParser());
 

@@ -26,6 +26,8 @@ const envSchema = z.object({
   /** At least 32 characters; every instance behind a load balancer needs the same one. */
   SESSION_SECRET: z.string().min(32, 'SESSION_SECRET must be at least 32 characters'),
   SESSION_HOURS: z.coerce.number().positive().default(12),
+  /** Resolved sessions kept in memory, forgotten on PostgreSQL's notice (decision 45); 'off' reads every request's session from the database. */
+  SESSION_CACHE: z.enum(['on', 'off'], { message: "SESSION_CACHE must be 'on' or 'off'" }).default('on'),
   /** Set to the number of proxies in front of the app, so client addresses and HTTPS are seen. */
   TRUST_PROXY: z.coerce.number().int().min(0).default(0),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),

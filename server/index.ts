@@ -10,6 +10,7 @@ const { createApp } = await import('./app');
 const { jobs, startJobs } = await import('../jobs/index');
 const { logger } = await import('./lib/logger');
 const { installProcessGuards } = await import('./lib/process-guards');
+const { startWorkerPool } = await import('./workers/pool');
 
 installProcessGuards();
 
@@ -22,3 +23,4 @@ if (!env().APP_URL) {
 const port = env().PORT;
 createApp({ clientDir: 'dist', jobs }).listen(port, () => logger.info(`Kerfwise listening on port ${port}`));
 startJobs();
+startWorkerPool();

@@ -66,6 +66,7 @@ try {
     server!.once('error', reject);
   });
   stopJobs = startJobs();
+  (await import('./workers/pool')).startWorkerPool();
 
   const width = Math.max(...demoUsers.map((u) => u.email.length));
   console.log(`

@@ -32,6 +32,7 @@ import { enqueueMail, kickMailDelivery, releaseUncertainMail, UNCERTAIN_AFTER_MI
 import { issueToken } from '../lib/one-time-token';
 import { reply } from '../lib/reply';
 import { revokeAllSessions } from '../lib/session';
+import { authChangesDelivered } from '../lib/session-cache';
 
 export const adminRouter = Router();
 adminRouter.use(requireAdmin);
@@ -109,6 +110,7 @@ adminRouter.patch('/users/:userId', async (req, res) => {
     await audit(tx, { userId: me.id, entity: 'user', entityId: userId, action: 'update', before, after });
     return after;
   });
+  await authChangesDelivered();
   reply<AdminUserRow>(res, 200, updated);
 });
 
@@ -154,6 +156,7 @@ adminRouter.patch('/projects/:projectId', async (req, res) => {
     await audit(tx, { userId: me.id, projectId, entity: 'project', entityId: projectId, action: 'update', before, after });
     return after;
   });
+  await authChangesDelivered();
   reply<AdminProjectRow>(res, 200, project);
 });
 
@@ -199,6 +202,7 @@ adminRouter.put('/projects/:projectId/members/:userId', async (req, res) => {
     });
     return after;
   });
+  await authChangesDelivered();
   reply<AdminMembership>(res, 200, { ...saved, roleLabel: roleLabels[saved.role] });
 });
 
@@ -213,6 +217,7 @@ adminRouter.delete('/projects/:projectId/members/:userId', async (req, res) => {
     if (!before) throw notFound('That membership');
     await audit(tx, { userId: me.id, projectId, entity: 'membership', entityId: before.id, action: 'delete', before });
   });
+  await authChangesDelivered();
   res.status(204).end();
 });
 

@@ -11,7 +11,7 @@ import {
 } from '../../shared/schemas/auth';
 import { changePasswordInputSchema, setPasswordInputSchema } from '../../shared/schemas/password';
 import { db, type DbOrTx } from '../db/client';
-import { memberships, notificationOptOuts, passwordResetRequests, projects, signInAttempts, users } from '../db/schema';
+import { memberships, notificationOptOuts, passwordResetRequests, signInAttempts, users } from '../db/schema';
 import { notificationKeys, notificationKinds } from '../../shared/notifications';
 import { z } from 'zod';
 import { requireSignedIn, requireUser } from '../middleware/auth';
@@ -21,11 +21,12 @@ import { badRequest, HttpError } from '../lib/http-error';
 import { enqueueMail, kickMailDelivery } from '../lib/mail';
 import { consumeToken, issueToken, revokeTokens } from '../lib/one-time-token';
 import { logger } from '../lib/logger';
-import { reply } from '../lib/reply';
+import { jsonText, reply, replyText } from '../lib/reply';
 import { dummyPasswordHash, hashPassword, verifyPassword } from '../lib/password';
 import { knownDevice, rememberDevice } from '../lib/device-cookie';
 import { signInThrottle, waitS } from '../lib/sign-in-throttle';
 import { clearSessionCookie, revokeAllSessions, revokeSession, startSession } from '../lib/session';
+import { authChangesDelivered } from '../lib/session-cache';
 
 export const authRouter = Router();
 
@@ -98,20 +99,20 @@ authRouter.post('/sign-in', async (req, res) => {
 });
 
 authRouter.post('/sign-out', async (req, res) => {
-  if (req.sessionId) await revokeSession(db, req.sessionId);
+  if (req.sessionId) {
+    await revokeSession(db, req.sessionId);
+    // Every instance has been told before the answer (decision 45).
+    await authChangesDelivered();
+  }
   clearSessionCookie(req, res);
   res.status(204).end();
 });
 
-authRouter.get('/me', requireSignedIn, async (req, res) => {
-  const user = requireUser(req);
-  const rows = await db
-    .select({ projectId: projects.id, projectName: projects.name, role: memberships.role })
-    .from(memberships)
-    .innerJoin(projects, eq(projects.id, memberships.projectId))
-    .where(eq(memberships.userId, user.id))
-    .orderBy(projects.name);
-  reply<Me>(res, 200, { user, memberships: rows });
+authRouter.get('/me', requireSignedIn, (req, res) => {
+  const session = req.authSession!;
+  // Read with the session (one query, or none when cached); the JSON text is made once per cached session.
+  session.meJson ??= jsonText<Me>({ user: session.user, memberships: session.memberships });
+  replyText<Me>(res, 200, session.meJson);
 });
 
 /** Reset requests allowed per hour, per address asked for and per client address (decision 29). */
@@ -196,6 +197,7 @@ authRouter.post('/set-password', async (req, res) => {
     return updated;
   });
   if (!user) throw badRequest('This link has expired or has already been used. Ask for a new one from the sign-in page.');
+  await authChangesDelivered();
   reply<SignedIn>(res, 200, { user: { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin } });
 });
 
@@ -219,6 +221,7 @@ authRouter.post('/change-password', requireSignedIn, async (req, res) => {
     await audit(tx, { userId: me.id, entity: 'user', entityId: me.id, action: 'change_password' });
     await startSession(tx, req, res, me.id);
   });
+  await authChangesDelivered();
   res.status(204).end();
 });
 

@@ -15,7 +15,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { sql } from 'drizzle-orm';
-import { db } from '../db/client';
+import { db, pool } from '../db/client';
 import { forecastCache } from '../db/schema';
 import { computeForecast, type ProjectForecast } from './forecast';
 
@@ -99,12 +99,15 @@ function fresh(row: CacheRow | undefined, now: Date): boolean {
   );
 }
 
-const stateQuery = (projectId: string) => sql`
+const stateText = `
   select coalesce(v.version, 0) as version, c.data_version, c.code_version, (extract(epoch from c.computed_at) * 1000)::float8 as computed_ms,
          case when c.data_version = coalesce(v.version, 0) then c.body end as body
-  from (select ${projectId}::uuid as project_id) p
+  from (select $1::uuid as project_id) p
   left join drive_data_versions v on v.project_id = p.project_id
   left join forecast_cache c on c.project_id = p.project_id`;
+const [stateBefore, stateAfter] = stateText.split('$1');
+/** The same text for a transaction (Drizzle), the project id bound as a parameter. */
+const stateQuery = (projectId: string) => sql`${sql.raw(stateBefore)}${projectId}${sql.raw(stateAfter)}`;
 
 function fromState(projectId: string, state: CacheRow): CachedForecast {
   const computedAt = new Date(state.computed_ms!);
@@ -118,7 +121,8 @@ function fromState(projectId: string, state: CacheRow): CachedForecast {
  */
 export async function cachedForecast(projectId: string, now = new Date()): Promise<CachedForecast> {
   // One query: the version, the cache's state and, when current, its answer.
-  const [state] = (await db.execute<CacheRow>(stateQuery(projectId))).rows;
+  // A named statement: each pooled connection parses and plans it once, not per request (decision 45).
+  const [state] = (await pool.query<CacheRow>({ name: 'forecast-cache-state', text: stateText, values: [projectId] })).rows;
   if (fresh(state, now) && state.body != null) return fromState(projectId, state);
   return db.transaction(async (tx) => {
     await tx.execute(sql`select pg_advisory_xact_lock(hashtextextended(${'forecast:' + projectId}, 0))`);

@@ -2,7 +2,9 @@
  * Heavy computations (stop plans, forecasts) run in a pool of worker threads, so one planner's
  * 2 km plan does not stall everyone else's requests (DEVELOPERS.md, decision 43). piscina keeps
  * the threads and the queue; `server/workers/bootstrap.mjs` loads the TypeScript in each thread.
- * Threads start on first use and end after a minute idle; `closeWorkerPool()` ends them at shutdown.
+ * One thread is kept (started by the entries with `startWorkerPool()`, its TypeScript loaded), so the
+ * first forecast after a change does not pay a thread's start (decision 45); others start on demand
+ * and end after a minute idle; `closeWorkerPool()` ends them at shutdown.
  */
 import os from 'node:os';
 import { Piscina } from 'piscina';
@@ -16,11 +18,16 @@ let pool: Piscina | undefined;
 function thePool(): Piscina {
   pool ??= new Piscina({
     filename: new URL('./bootstrap.mjs', import.meta.url).href,
-    minThreads: 0,
+    minThreads: 1,
     maxThreads: WORKER_THREADS,
     idleTimeout: 60_000,
   });
   return pool;
+}
+
+/** Starts the pool's kept thread now (server entries, at start), not at the first forecast. */
+export function startWorkerPool(): void {
+  thePool();
 }
 
 export function planStopsInWorker(input: StopPlanInput, options: PlanStopsOptions): Promise<StopPlanResult> {
