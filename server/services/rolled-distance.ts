@@ -40,7 +40,19 @@ export interface RefreshResult {
   errors: { ringNumber: number; reason: string }[];
 }
 
-const toStroke = (s: typeof strokes.$inferSelect): Stroke => ({
+/** The columns of a stroke the computation reads (not the extra data, thrust, torque or speed). */
+const strokeColumns = {
+  id: strokes.id,
+  ringNumber: strokes.ringNumber,
+  chainageStartM: strokes.chainageStartM,
+  chainageEndM: strokes.chainageEndM,
+  revolutions: strokes.revolutions,
+  penetrationMmPerRev: strokes.penetrationMmPerRev,
+  startTime: strokes.startTime,
+  endTime: strokes.endTime,
+};
+
+const toStroke = (s: { [K in keyof typeof strokeColumns]: (typeof strokes.$inferSelect)[K] }): Stroke => ({
   id: String(s.id),
   ringNumber: s.ringNumber,
   chainageStartM: s.chainageStartM,
@@ -56,7 +68,7 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
   const [state] = await tx.select().from(rolledDistanceState).where(eq(rolledDistanceState.projectId, projectId)).for('update');
   const full = !state;
   const strokeRows = await tx
-    .select()
+    .select(strokeColumns)
     .from(strokes)
     .where(and(eq(strokes.projectId, projectId), full ? undefined : gt(strokes.ringNumber, state.throughRing)))
     .orderBy(asc(strokes.ringNumber));

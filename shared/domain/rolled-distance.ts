@@ -3,7 +3,7 @@
  * radius r rolls 2·π·r (the helix of pitch p is longer by a negligible amount). Revolutions come
  * from the advance log when measured, otherwise from advance / penetration.
  */
-import { splitChainageBySection, type GeologySection } from './geology';
+import { chainageSplitter, type GeologySection } from './geology';
 
 /** One stroke (or ring) of the advance log. */
 export interface Stroke {
@@ -177,6 +177,7 @@ export function revolutionsByGround(
 ): { pieces: StrokeGroundRevolutions[]; errors: StrokeError[] } {
   const pieces: StrokeGroundRevolutions[] = [];
   const errors: StrokeError[] = [];
+  const split = chainageSplitter(sections);
   for (const stroke of strokes) {
     const revs = strokeRevolutions(stroke);
     const startMs = isoTimeMs(stroke.startTime);
@@ -187,7 +188,7 @@ export function revolutionsByGround(
     }
     const advanceM = Math.abs(stroke.chainageEndM - stroke.chainageStartM);
     const revsByGround = new Map<string | null, number>();
-    for (const piece of splitChainageBySection(sections, stroke.chainageStartM, stroke.chainageEndM)) {
+    for (const piece of split(stroke.chainageStartM, stroke.chainageEndM)) {
       const share = advanceM > 0 ? piece.lengthM / advanceM : 1;
       revsByGround.set(piece.groundTypeId, (revsByGround.get(piece.groundTypeId) ?? 0) + revs.revolutions * share);
     }

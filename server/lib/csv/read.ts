@@ -18,6 +18,7 @@ import { Readable, pipeline } from 'node:stream';
 import { CsvError, parse, type Info } from 'csv-parse';
 import type { ColumnMapping } from '../../../shared/csv-headers';
 import type { CsvIssue, ImportDetected } from '../../../shared/schemas/advance-log';
+import { siteTimes } from '../../../shared/site-time';
 import { readCell, TIME_FORMAT_NAMES, type TimeFormat } from './cells';
 import { planColumns, type ColumnPlan } from './columns';
 import { DELIMITER_NAMES, detectCsvFormat, SAMPLE_BYTES } from './detect';
@@ -149,6 +150,7 @@ export async function readCsv<F extends string, Row>(
   table: TableSpec<F, Row>,
   timeZone?: string,
 ): Promise<CsvImportResult<Row, F>> {
+  const times = timeZone === undefined ? undefined : siteTimes(timeZone);
   const maxBytes = options.maxBytes ?? DEFAULT_MAX_BYTES;
   const maxRows = options.maxRows ?? DEFAULT_MAX_ROWS;
   const log = new IssueLog(options.maxErrors ?? DEFAULT_MAX_ERRORS);
@@ -189,7 +191,7 @@ export async function readCsv<F extends string, Row>(
     const failed = new Set<string>();
     for (const info of table.fields) {
       const index = columns.columns.get(info.field);
-      const cell = readCell(info, index === undefined ? '' : record[index].trim(), detected.decimalComma, timeZone);
+      const cell = readCell(info, index === undefined ? '' : record[index].trim(), detected.decimalComma, times);
       if (!cell.ok) {
         failed.add(info.field);
         report.error(line, info.field, cell.message);
@@ -205,16 +207,21 @@ export async function readCsv<F extends string, Row>(
         }
       }
     }
-    const parsed = table.schema.safeParse(candidate);
-    if (!parsed.success) {
-      for (const issue of parsed.error.issues) {
-        const field = String(issue.path[0]);
-        if (!failed.has(field)) report.error(line, field as F, issue.message);
+    let data: Row;
+    if (failed.size === 0 && table.isRow?.(candidate)) data = candidate;
+    else {
+      const parsed = table.schema.safeParse(candidate);
+      if (!parsed.success) {
+        for (const issue of parsed.error.issues) {
+          const field = String(issue.path[0]);
+          if (!failed.has(field)) report.error(line, field as F, issue.message);
+        }
+        return;
       }
-      return;
+      data = parsed.data;
     }
-    table.checkRow(parsed.data, line, report);
-    if (!log.hasError(line)) rows.push({ line, data: parsed.data });
+    table.checkRow(data, line, report);
+    if (!log.hasError(line)) rows.push({ line, data });
   };
 
   const bytes = limitedBytes(source, maxBytes, progress, reportProgress);
