@@ -14,8 +14,8 @@
  * - Checks between rows (table specs) use only the rows without errors of their own; after fixing
  *   those, an upload may show further errors.
  */
-import { Readable, pipeline } from 'node:stream';
-import { CsvError, parse, type Info } from 'csv-parse';
+import type { Readable } from 'node:stream';
+import type { CsvError } from 'csv-parse';
 import type { ColumnMapping } from '../../../shared/csv-headers';
 import type { CsvIssue, ImportDetected } from '../../../shared/schemas/advance-log';
 import { siteTimes } from '../../../shared/site-time';
@@ -23,6 +23,7 @@ import { readCell, TIME_FORMAT_NAMES, type TimeFormat } from './cells';
 import { planColumns, type ColumnPlan } from './columns';
 import { DELIMITER_NAMES, detectCsvFormat, SAMPLE_BYTES } from './detect';
 import { FileRefused, fileIssue, IssueLog } from './issues';
+import { csvRecords, MAX_RECORD_CHARS } from './records';
 import type { CsvLineRow, RowReport, TableSpec } from './table';
 
 export interface CsvProgress {
@@ -63,7 +64,6 @@ const MB = 1024 * 1024;
 export const DEFAULT_MAX_BYTES = 50 * MB;
 export const DEFAULT_MAX_ROWS = 50_000;
 const DEFAULT_MAX_ERRORS = 200;
-const MAX_RECORD_CHARS = 64 * 1024;
 
 /** Bytes of `source`, refusing the file as soon as more than `maxBytes` have arrived. */
 async function* limitedBytes(source: Readable, maxBytes: number, progress: CsvProgress, report: () => void): AsyncGenerator<Buffer> {
@@ -248,21 +248,10 @@ export async function readCsv<F extends string, Row>(
     // A CSV syntax error refuses the file at the line it starts on. Reported through on_skip, not
     // as a stream error, so the records before it still arrive and the line count stays right.
     let syntaxError: CsvError | undefined;
-    const parser = parse({
-      delimiter: format.delimiter,
-      info: true,
-      relax_column_count: true,
-      relax_quotes: true,
-      skip_empty_lines: true,
-      max_record_size: MAX_RECORD_CHARS,
-      skip_records_with_error: true,
-      on_skip: (err) => {
-        syntaxError ??= err;
-      },
+    const records = csvRecords(utf8Text(sample, bytes), format.delimiter, (err) => {
+      syntaxError ??= err;
     });
-    // A refusal while reading ends the iteration below with that error; nothing to do in the callback.
-    pipeline(Readable.from(utf8Text(sample, bytes)), parser, () => undefined);
-    for await (const { record, info } of parser as AsyncIterable<{ record: string[]; info: Info }>) {
+    for await (const { record, info } of records) {
       if (syntaxError && info.records > Number(syntaxError.records)) break;
       const line = previousEndLine + 1 + (info.empty_lines - previousEmptyLines);
       previousEndLine = info.lines;
