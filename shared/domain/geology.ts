@@ -137,6 +137,10 @@ export function splitChainageBySection(sections: readonly GeologySection[], from
  */
 export function chainageSplitter(sections: readonly GeologySection[]): (fromM: number, toM: number) => ChainagePiece[] {
   const order = sortedValidIndices(sections);
+  // reach[k]: the furthest chainage to among order[0..k]; sections before the first k whose reach
+  // passes the interval's lower end lie wholly below it and add no piece, so the walk starts there.
+  const reach: number[] = [];
+  for (const i of order) reach.push(Math.max(reach.at(-1) ?? -Infinity, sections[i].chainageToM));
   return (fromM, toM) => {
     if (!Number.isFinite(fromM) || !Number.isFinite(toM)) throw new RangeError(`Chainage must be finite, got ${fromM} to ${toM}`);
     if (fromM === toM) {
@@ -156,7 +160,15 @@ export function chainageSplitter(sections: readonly GeologySection[]): (fromM: n
       });
     };
     let cursorM = loM;
-    for (const i of order) {
+    let lo = 0;
+    let hi = order.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (reach[mid] <= loM) lo = mid + 1;
+      else hi = mid;
+    }
+    for (let k = lo; k < order.length; k += 1) {
+      const i = order[k];
       const s = sections[i];
       const startM = Math.max(cursorM, s.chainageFromM);
       const endM = Math.min(hiM, s.chainageToM);
