@@ -116,7 +116,7 @@ const HOUR_MS = 3_600_000;
 const DAYS_IN_MONTH = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 
 /** Whether the parts name a real wall time (Gregorian calendar; years from 100, as Date reads 0–99 as 1900–1999). */
-function isCalendarTime(year: number, month: number, day: number, hour: number, minute: number, second: number): boolean {
+export function isCalendarTime(year: number, month: number, day: number, hour: number, minute: number, second: number): boolean {
   const whole = Number.isInteger;
   if (!(whole(year) && whole(month) && whole(day) && whole(hour) && whole(minute) && whole(second))) return false;
   if (year < 100 || month < 1 || month > 12 || day < 1 || hour < 0 || hour > 23 || minute < 0 || minute > 59 || second < 0 || second > 59) {

@@ -40,10 +40,8 @@ async function csvParseAlone(chunks: string[], delimiter: string): Promise<Seen>
 
 async function ours(chunks: string[], delimiter: string): Promise<Seen> {
   const seen: Seen = { records: [], skipped: [] };
-  for await (const { record, info } of csvRecords(chunked(chunks)[Symbol.asyncIterator](), delimiter, (err) =>
-    seen.skipped.push(skippedOf(err)),
-  ))
-    seen.records.push([record, info.lines, info.empty_lines, info.records]);
+  for await (const batch of csvRecords(chunked(chunks)[Symbol.asyncIterator](), delimiter, (err) => seen.skipped.push(skippedOf(err))))
+    for (const { record, info } of batch) seen.records.push([record, info.lines, info.empty_lines, info.records]);
   return seen;
 }
 

@@ -11,7 +11,7 @@
  *   site's offset, to the second. (A file mixing the two formats is refused in read.ts.)
  * - An empty cell is null; whether that is allowed is the row schema's business.
  */
-import type { SiteTimes } from '../../../shared/site-time';
+import { isCalendarTime, type SiteTimes } from '../../../shared/site-time';
 import type { CsvFieldInfo } from '../../../shared/csv-headers';
 
 export type TimeFormat = 'iso' | 'dayFirst';
@@ -49,41 +49,36 @@ function readNumber(raw: string, label: string, decimalComma: boolean): Cell {
 }
 
 function readTime(raw: string, label: string, times: SiteTimes): Cell {
-  let parts: number[];
+  let year: number, month: number, day: number, hour: number, minute: number, second: number;
   let offset: string | undefined;
   let timeFormat: TimeFormat;
   const iso = ISO_TIME.exec(raw);
   const dayFirst = iso ? null : DAY_FIRST_TIME.exec(raw);
   if (iso) {
-    parts = iso.slice(1, 7).map((p) => Number(p ?? 0));
+    [year, month, day, hour, minute, second] = [+iso[1], +iso[2], +iso[3], +iso[4], +iso[5], +(iso[6] ?? 0)];
     offset = iso[8];
     timeFormat = 'iso';
   } else if (dayFirst) {
-    const [, day, month, year, hour, minute, second] = dayFirst;
-    parts = [year, month, day, hour, minute, second ?? '0'].map(Number);
+    [day, month, year, hour, minute, second] = [+dayFirst[1], +dayFirst[2], +dayFirst[3], +dayFirst[4], +dayFirst[5], +(dayFirst[6] ?? 0)];
     timeFormat = 'dayFirst';
   } else {
     return { ok: false, message: `${label}: '${raw}' is not a date and time Kerfwise reads. Write ${TIME_EXAMPLES}.` };
   }
   // Fractions of a second are dropped: times are kept to the second.
-  const [year, month, day, hour, minute, second] = parts;
-  const calendar = new Date(Date.UTC(year, month - 1, day, hour, minute, second));
-  const real =
-    calendar.getUTCFullYear() === year &&
-    calendar.getUTCMonth() === month - 1 &&
-    calendar.getUTCDate() === day &&
-    calendar.getUTCHours() === hour &&
-    calendar.getUTCMinutes() === minute &&
-    calendar.getUTCSeconds() === second;
-  if (!real) return { ok: false, message: `${label}: '${raw}' is not a real date and time.` };
+  if (!isCalendarTime(year, month, day, hour, minute, second))
+    return { ok: false, message: `${label}: '${raw}' is not a real date and time.` };
+  const calendarMs = Date.UTC(year, month - 1, day, hour, minute, second);
   let instantMs: number;
   if (offset) {
     // A written offset is arithmetic on the written wall time, not a time-zone rule.
-    const sign = offset.startsWith('-') ? -1 : 1;
-    const digits = offset.replace(/[^0-9]/g, '');
-    const offsetMin = offset.toUpperCase() === 'Z' ? 0 : sign * (Number(digits.slice(0, 2)) * 60 + Number(digits.slice(2) || 0));
+    let offsetMin = 0;
+    if (offset !== 'Z' && offset !== 'z') {
+      const sign = offset.startsWith('-') ? -1 : 1;
+      const digits = offset.replace(/[^0-9]/g, '');
+      offsetMin = sign * (Number(digits.slice(0, 2)) * 60 + Number(digits.slice(2) || 0));
+    }
     if (Math.abs(offsetMin) > 14 * 60) return { ok: false, message: `${label}: '${raw}' has a UTC offset beyond ±14:00.` };
-    instantMs = calendar.getTime() - offsetMin * 60_000;
+    instantMs = calendarMs - offsetMin * 60_000;
   } else {
     instantMs = times.wallTimeToMs(year, month, day, hour, minute, second);
     if (Number.isNaN(instantMs)) {

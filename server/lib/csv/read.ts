@@ -251,28 +251,29 @@ export async function readCsv<F extends string, Row>(
     const records = csvRecords(utf8Text(sample, bytes), format.delimiter, (err) => {
       syntaxError ??= err;
     });
-    for await (const { record, info } of records) {
-      if (syntaxError && info.records > Number(syntaxError.records)) break;
-      const line = previousEndLine + 1 + (info.empty_lines - previousEmptyLines);
-      previousEndLine = info.lines;
-      previousEmptyLines = info.empty_lines;
-      if (record.every((cell) => cell.trim() === '')) continue;
-      if (!plan) {
-        plan = planColumns(record, table, options.mapping ?? {}, log, options.remembered ?? {});
-        if (!plan) break;
-        detected.mapping = Object.fromEntries([...plan.columns].map(([field, i]) => [field, plan!.headers[i]])) as ColumnMapping<F>;
-        continue;
+    read: for await (const batch of records)
+      for (const { record, info } of batch) {
+        if (syntaxError && info.records > Number(syntaxError.records)) break read;
+        const line = previousEndLine + 1 + (info.empty_lines - previousEmptyLines);
+        previousEndLine = info.lines;
+        previousEmptyLines = info.empty_lines;
+        if (record.every((cell) => cell.trim() === '')) continue;
+        if (!plan) {
+          plan = planColumns(record, table, options.mapping ?? {}, log, options.remembered ?? {});
+          if (!plan) break read;
+          detected.mapping = Object.fromEntries([...plan.columns].map(([field, i]) => [field, plan!.headers[i]])) as ColumnMapping<F>;
+          continue;
+        }
+        progress.rowsParsed += 1;
+        if (progress.rowsParsed > maxRows) {
+          throw new FileRefused(
+            fileIssue(
+              `The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`,
+            ),
+          );
+        }
+        readRow(record, line, plan);
       }
-      progress.rowsParsed += 1;
-      if (progress.rowsParsed > maxRows) {
-        throw new FileRefused(
-          fileIssue(
-            `The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`,
-          ),
-        );
-      }
-      readRow(record, line, plan);
-    }
     if (syntaxError && plan !== null) {
       const emptyLines = Number(syntaxError.empty_lines ?? previousEmptyLines);
       throw new FileRefused(syntaxIssue(syntaxError, previousEndLine + 1 + (emptyLines - previousEmptyLines), plan?.headers));

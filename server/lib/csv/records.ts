@@ -47,15 +47,17 @@ export function csvParser(delimiter: string, onSkip: (err: CsvError) => void, re
 }
 
 /**
- * Records of `text` split by `delimiter` (one character). A record that csv-parse refuses (an
- * unclosed quote, a record too long) is skipped and handed to `onSkip`, its `lines`, `records` and
- * `empty_lines` counted from the start of the file, as csv-parse's own `on_skip` would have them.
+ * Records of `text` split by `delimiter` (one character), in batches: one per chunk of text read,
+ * so a file of 10,000 lines costs a few dozen awaits rather than 10,000. A record that csv-parse
+ * refuses (an unclosed quote, a record too long) is skipped and handed to `onSkip`, its `lines`,
+ * `records` and `empty_lines` counted from the start of the file, as csv-parse's own `on_skip`
+ * would have them.
  */
 export async function* csvRecords(
   text: AsyncIterator<string>,
   delimiter: string,
   onSkip: (err: CsvError) => void,
-): AsyncGenerator<CsvRecord> {
+): AsyncGenerator<CsvRecord[]> {
   let ending: '\n' | '\r\n' | undefined;
   let pending = '';
   let lines = 0;
@@ -65,7 +67,10 @@ export async function* csvRecords(
   let handedOver = false;
   try {
     // Plain lines, split here.
+    let batch: CsvRecord[] = [];
     plain: while (!ended) {
+      if (batch.length > 0) yield batch;
+      batch = [];
       const next = await text.next();
       if (next.done) ended = true;
       else pending += next.value;
@@ -107,15 +112,16 @@ export async function* csvRecords(
           // End of the file: csv-parse emits the last line when it holds anything.
           if (line !== '') {
             records += 1;
-            yield { record: line.split(delimiter), info: { lines: lines + 1, empty_lines: emptyLines, records } };
+            batch.push({ record: line.split(delimiter), info: { lines: lines + 1, empty_lines: emptyLines, records } });
           }
+          if (batch.length > 0) yield batch;
           pending = '';
           return;
         }
         if (line === '') emptyLines += 1;
         else {
           records += 1;
-          yield { record: line.split(delimiter), info: { lines: lines + 1, empty_lines: emptyLines, records } };
+          batch.push({ record: line.split(delimiter), info: { lines: lines + 1, empty_lines: emptyLines, records } });
         }
         lines += 1;
         start = lf + 1;
@@ -123,6 +129,7 @@ export async function* csvRecords(
       pending = pending.slice(start);
       if (!ended && pending.length > MAX_RECORD_CHARS + 2) break;
     }
+    if (batch.length > 0) yield batch;
     if (ended && pending === '') return;
 
     // From here on csv-parse, counting on from where the plain lines stopped.
@@ -146,10 +153,12 @@ export async function* csvRecords(
     // A refusal while reading (too large, not UTF-8) ends the iteration below with that error.
     pipeline(Readable.from(remaining()), parser, () => undefined);
     for await (const { record, info } of parser as AsyncIterable<{ record: string[]; info: Info }>) {
-      yield {
-        record,
-        info: { lines: info.lines + base.lines, empty_lines: info.empty_lines + base.emptyLines, records: info.records + base.records },
-      };
+      yield [
+        {
+          record,
+          info: { lines: info.lines + base.lines, empty_lines: info.empty_lines + base.emptyLines, records: info.records + base.records },
+        },
+      ];
     }
   } finally {
     if (!handedOver) await text.return?.(undefined);
