@@ -4,8 +4,12 @@
  * adds nothing; a ring stored with other values is a conflict that needs an explicit "replace";
  * everything else goes in, all or nothing, in one transaction.
  */
-import { and, eq, inArray, sql } from 'drizzle-orm';
+import { and, eq, sql } from 'drizzle-orm';
+import { Readable } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
+import { from as copyFrom } from 'pg-copy-streams';
 import type { AdvanceLogRow } from '../../shared/schemas/advance-log';
+import type pg from 'pg';
 import type { DbOrTx } from '../db/client';
 import { strokes } from '../db/schema';
 import { audit } from '../lib/audit';
@@ -30,22 +34,48 @@ export function strokeDifferences(stored: StoredStroke, row: AdvanceLogRow): str
 }
 
 /**
- * Inserts many strokes in one statement: one array per column, unnested by PostgreSQL. Much
- * cheaper than building a row-by-row INSERT for tens of thousands of rows.
+ * The connection of a Drizzle transaction (node-postgres), for COPY, which Drizzle does not speak.
+ * Refuses the pool itself: COPY outside the import's transaction could not be rolled back.
  */
-async function insertStrokes(tx: DbOrTx, projectId: string, rows: AdvanceLogRow[]): Promise<void> {
-  for (let i = 0; i < rows.length; i += 20_000) {
-    const chunk = rows.slice(i, i + 20_000);
-    // sql.param keeps each array one parameter (node-postgres sends it as an array literal).
-    const col = <T>(f: (r: AdvanceLogRow) => T) => sql.param(chunk.map(f));
-    await tx.execute(sql`
-      insert into strokes (project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra)
-      select ${projectId}::uuid, * from unnest(
-        ${col((r) => r.ringNumber)}::int[], ${col((r) => r.startTime)}::timestamptz[], ${col((r) => r.endTime)}::timestamptz[],
-        ${col((r) => r.chainageStartM)}::float8[], ${col((r) => r.chainageEndM)}::float8[], ${col((r) => r.revolutions)}::float8[],
-        ${col((r) => r.penetrationMmPerRev)}::float8[], ${col((r) => r.rpm)}::float8[], ${col((r) => r.thrustKn)}::float8[],
-        ${col((r) => r.torqueKnm)}::float8[], ${col((r) => JSON.stringify(r.extra))}::jsonb[])`);
+function transactionClient(tx: DbOrTx): pg.PoolClient {
+  const client = (tx as unknown as { session?: { client?: unknown } }).session?.client;
+  if (!client || typeof (client as pg.PoolClient).release !== 'function') {
+    throw new Error('COPY of strokes needs a transaction (db.transaction), not the pool.');
   }
+  return client as pg.PoolClient;
+}
+
+/** COPY text-format field: backslash is COPY's escape character (JSON.stringify already escapes tabs and line breaks). */
+const copyText = (v: string) => (v.includes('\\') ? v.replaceAll('\\', '\\\\') : v);
+const copyNumber = (v: number | null) => (v === null ? '\\N' : String(v));
+
+/**
+ * Writes new strokes with COPY … FROM STDIN on the transaction's own connection (decision 46), so a
+ * refusal later in the transaction still rolls them back. Numbers go as JavaScript writes them
+ * (the shortest text that reads back as the same double), times as the reader's ISO 8601 text.
+ */
+async function copyStrokes(tx: DbOrTx, projectId: string, rows: readonly AdvanceLogRow[]): Promise<void> {
+  if (rows.length === 0) return;
+  const client = transactionClient(tx);
+  function* lines(): Generator<string> {
+    let chunk = '';
+    for (const r of rows) {
+      chunk += `${projectId}\t${r.ringNumber}\t${r.startTime}\t${r.endTime}\t${r.chainageStartM}\t${r.chainageEndM}\t${copyNumber(r.revolutions)}\t${copyNumber(r.penetrationMmPerRev)}\t${copyNumber(r.rpm)}\t${copyNumber(r.thrustKn)}\t${copyNumber(r.torqueKnm)}\t${copyText(JSON.stringify(r.extra))}\n`;
+      if (chunk.length >= 64 * 1024) {
+        yield chunk;
+        chunk = '';
+      }
+    }
+    if (chunk) yield chunk;
+  }
+  await pipeline(
+    Readable.from(lines()),
+    client.query(
+      copyFrom(
+        'copy strokes (project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra) from stdin',
+      ),
+    ),
+  );
 }
 
 export interface ImportOutcome {
@@ -63,13 +93,12 @@ export async function importAdvanceLog(
 ): Promise<ImportOutcome> {
   const rings = rows.map((r) => r.data.ringNumber);
   const stored = new Map<number, StoredStroke>();
-  for (let i = 0; i < rings.length; i += 5000) {
-    const found = await tx
-      .select()
-      .from(strokes)
-      .where(and(eq(strokes.projectId, projectId), inArray(strokes.ringNumber, rings.slice(i, i + 5000))));
-    for (const s of found) stored.set(s.ringNumber, s);
-  }
+  // One array parameter for all rings (not one parameter per ring): only the rings already stored come back.
+  const found = await tx
+    .select()
+    .from(strokes)
+    .where(and(eq(strokes.projectId, projectId), sql`${strokes.ringNumber} = any(${sql.param(rings)}::int[])`));
+  for (const s of found) stored.set(s.ringNumber, s);
   const fresh: typeof rows = [];
   const conflicts: ((typeof rows)[number] & { diffs: string[]; stored: StoredStroke })[] = [];
   let unchanged = 0;
@@ -140,7 +169,7 @@ export async function importAdvanceLog(
     torqueKnm: r.torqueKnm,
     extra: r.extra,
   });
-  await insertStrokes(
+  await copyStrokes(
     tx,
     projectId,
     fresh.map((r) => r.data),

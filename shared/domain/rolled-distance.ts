@@ -3,7 +3,7 @@
  * radius r rolls 2·π·r (the helix of pitch p is longer by a negligible amount). Revolutions come
  * from the advance log when measured, otherwise from advance / penetration.
  */
-import { splitChainageBySection, type GeologySection } from './geology';
+import { chainageSplitter, type GeologySection } from './geology';
 
 /** One stroke (or ring) of the advance log. */
 export interface Stroke {
@@ -177,6 +177,7 @@ export function revolutionsByGround(
 ): { pieces: StrokeGroundRevolutions[]; errors: StrokeError[] } {
   const pieces: StrokeGroundRevolutions[] = [];
   const errors: StrokeError[] = [];
+  const splitStroke = chainageSplitter(sections);
   for (const stroke of strokes) {
     const revs = strokeRevolutions(stroke);
     const startMs = isoTimeMs(stroke.startTime);
@@ -186,8 +187,19 @@ export function revolutionsByGround(
       continue;
     }
     const advanceM = Math.abs(stroke.chainageEndM - stroke.chainageStartM);
+    const split = splitStroke(stroke.chainageStartM, stroke.chainageEndM);
+    if (split.length === 1) {
+      // Most strokes lie in one section: all their revolutions are in its ground.
+      pieces.push({
+        strokeId: stroke.id,
+        startMs,
+        groundTypeId: split[0].groundTypeId,
+        revolutions: revs.revolutions * (advanceM > 0 ? split[0].lengthM / advanceM : 1),
+      });
+      continue;
+    }
     const revsByGround = new Map<string | null, number>();
-    for (const piece of splitChainageBySection(sections, stroke.chainageStartM, stroke.chainageEndM)) {
+    for (const piece of split) {
       const share = advanceM > 0 ? piece.lengthM / advanceM : 1;
       revsByGround.set(piece.groundTypeId, (revsByGround.get(piece.groundTypeId) ?? 0) + revs.revolutions * share);
     }

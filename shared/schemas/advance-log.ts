@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { chainageM, freeText, INT32_MAX, instant, requiredLine } from './fields';
+import { CHAINAGE_LIMIT_M, chainageM, CONTROL, freeText, INT32_MAX, instant, inWindow, requiredLine } from './fields';
 import type { ColumnMapping, CsvFieldInfo } from '../csv-headers';
 
 /**
@@ -30,6 +30,9 @@ const whenValid =
   (...fields: string[]) =>
   (payload: { issues: readonly { path?: readonly PropertyKey[] }[] }) =>
     !payload.issues.some((issue) => fields.includes(String(issue.path?.[0])));
+
+/** The longest value of an extra column (characters). */
+const EXTRA_MAX_CHARS = 10_000;
 
 const isoWithOffset = (what: string) => instant(what, `${what} is missing or is not a date and time with its UTC offset.`);
 
@@ -64,7 +67,7 @@ export const advanceLogRowSchema = z
     thrustKn: nullableAtLeastZero('Thrust'),
     torqueKnm: nullableAtLeastZero('Torque'),
     /** Columns of the file that map to no field, by header, as text. */
-    extra: z.record(z.string(), freeText('An extra column', 10_000)),
+    extra: z.record(z.string(), freeText('An extra column', EXTRA_MAX_CHARS)),
   })
   .refine((row) => Date.parse(row.endTime) > Date.parse(row.startTime), {
     path: ['endTime'],
@@ -77,6 +80,40 @@ export const advanceLogRowSchema = z
     when: whenValid('revolutions', 'penetrationMmPerRev'),
   });
 export type AdvanceLogRow = z.infer<typeof advanceLogRowSchema>;
+
+/** The ISO 8601 form `instant` (z.iso.datetime with an offset) accepts. */
+const ISO_INSTANT = z.regexes.datetime({ offset: true });
+const isInstant = (v: unknown): v is string => typeof v === 'string' && ISO_INSTANT.test(v) && inWindow(Date.parse(v));
+const isChainage = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v) && Math.abs(v) <= CHAINAGE_LIMIT_M;
+const isNullableAtLeastZero = (v: unknown) => v === null || (typeof v === 'number' && Number.isFinite(v) && v >= 0);
+
+/**
+ * A quick yes to `advanceLogRowSchema`, without building zod's result objects: true only for a
+ * candidate the schema accepts unchanged (its extra values already trimmed), so an import of
+ * 10,000 good rows allocates nothing per row for checking (decision 46). False does not mean
+ * invalid: the caller then asks the schema, whose issues (and messages) stay the one source.
+ * tests/server/advance-log-row-check.test.ts holds the two together.
+ */
+export function isAdvanceLogRow(c: Record<string, unknown>): c is AdvanceLogRow {
+  const ring = c.ringNumber;
+  if (typeof ring !== 'number' || !Number.isInteger(ring) || ring < 0 || ring > INT32_MAX) return false;
+  if (!isInstant(c.startTime) || !isInstant(c.endTime) || !(Date.parse(c.endTime) > Date.parse(c.startTime))) return false;
+  if (!isChainage(c.chainageStartM) || !isChainage(c.chainageEndM)) return false;
+  const revolutions = c.revolutions;
+  const penetration = c.penetrationMmPerRev;
+  if (!isNullableAtLeastZero(revolutions) || !isNullableAtLeastZero(c.rpm) || !isNullableAtLeastZero(c.thrustKn)) return false;
+  if (!isNullableAtLeastZero(c.torqueKnm)) return false;
+  if (penetration !== null && !(typeof penetration === 'number' && Number.isFinite(penetration) && penetration > 0)) return false;
+  if (revolutions === null && penetration === null) return false;
+  const extra = c.extra;
+  if (typeof extra !== 'object' || extra === null || Array.isArray(extra) || Object.getPrototypeOf(extra) !== Object.prototype)
+    return false;
+  for (const key in extra) {
+    const v = (extra as Record<string, unknown>)[key];
+    if (typeof v !== 'string' || v.length > EXTRA_MAX_CHARS || CONTROL.test(v) || (v.length > 0 && v.trim() !== v)) return false;
+  }
+  return true;
+}
 
 export const advanceLogColumnMappingSchema = z.partialRecord(
   z.enum(advanceLogFieldNames),

@@ -19,7 +19,8 @@ export const EMAIL_MAX = 254;
 
 const yearMs = (day: string) => Date.parse(`${day}T00:00:00Z`);
 const WINDOW_MS = { from: yearMs(DATE_WINDOW.from), to: yearMs(DATE_WINDOW.to) + 86_400_000 };
-const inWindow = (ms: number) => ms >= WINDOW_MS.from - 14 * 3_600_000 && ms < WINDOW_MS.to + 14 * 3_600_000;
+/** Whether an instant (ms since the epoch) lies in the window `instant` accepts. */
+export const inWindow = (ms: number) => ms >= WINDOW_MS.from - 14 * 3_600_000 && ms < WINDOW_MS.to + 14 * 3_600_000;
 const windowText = `between ${DATE_WINDOW.from.slice(0, 4)} and ${DATE_WINDOW.to.slice(0, 4)}`;
 
 /** A calendar date YYYY-MM-DD between 1990 and 2100. */
@@ -61,7 +62,7 @@ export const lengthM = (label: string, max: number = LENGTH_LIMIT_M) =>
 
 // Control characters (C0, DEL, C1) other than line feed and carriage return; and the line breaks themselves.
 // eslint-disable-next-line no-control-regex
-const CONTROL = /[\u0000-\u0009\u000b\u000c\u000e-\u001f\u007f-\u009f]/;
+export const CONTROL = /[\u0000-\u0009\u000b\u000c\u000e-\u001f\u007f-\u009f]/;
 const LINE_BREAK = /[\r\n]/;
 
 /** Free text (notes, reasons): trimmed, at most `max` characters, no control characters except line breaks. */

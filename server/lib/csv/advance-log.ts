@@ -9,7 +9,7 @@
 import type { Readable } from 'node:stream';
 import { advanceLogFields, advanceLogRequiredColumns } from '../../../shared/csv-headers';
 import { aheadM } from '../../../shared/domain/chainage';
-import { advanceLogRowSchema, type AdvanceLogField, type AdvanceLogRow } from '../../../shared/schemas/advance-log';
+import { advanceLogRowSchema, isAdvanceLogRow, type AdvanceLogField, type AdvanceLogRow } from '../../../shared/schemas/advance-log';
 import type { driveDirections } from '../../../shared/schemas/project';
 import { readCsv, type CsvImportResult, type CsvReadOptions } from './read';
 import { m, type CsvLineRow, type TableSpec } from './table';
@@ -61,6 +61,7 @@ export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLog
     fields: advanceLogFields,
     requiredColumns: advanceLogRequiredColumns,
     schema: advanceLogRowSchema,
+    isRow: isAdvanceLogRow,
     checkRow(row, line, report) {
       const advanceM = aheadM(row.chainageStartM, row.chainageEndM, direction);
       if (advanceM <= 0) {

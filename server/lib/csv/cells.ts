@@ -11,7 +11,7 @@
  *   site's offset, to the second. (A file mixing the two formats is refused in read.ts.)
  * - An empty cell is null; whether that is allowed is the row schema's business.
  */
-import { isoWithSiteOffset, siteWallTimeToInstant } from '../../../shared/site-time';
+import { isCalendarTime, type SiteTimes } from '../../../shared/site-time';
 import type { CsvFieldInfo } from '../../../shared/csv-headers';
 
 export type TimeFormat = 'iso' | 'dayFirst';
@@ -24,8 +24,9 @@ const DAY_FIRST_TIME = /^(\d{1,2})\.(\d{1,2})\.(\d{4}) +(\d{1,2}):(\d{2})(?::(\d
 const TIME_EXAMPLES = '2026-03-14T06:30 (ISO 8601, optionally with an offset like +01:00) or 14.03.2026 06:30';
 
 /** isoWithSiteOffset (shared/site-time.ts), with a zero offset written "+00:00" as the reader always has. */
-function siteIso(instant: Date, timeZone: string): string {
-  return isoWithSiteOffset(instant, timeZone).replace(/Z$/, '+00:00');
+function siteIso(ms: number, times: SiteTimes): string {
+  const iso = times.isoWithOffset(ms);
+  return iso.endsWith('Z') ? `${iso.slice(0, -1)}+00:00` : iso;
 }
 
 export type Cell = { ok: true; value: unknown; timeFormat?: TimeFormat } | { ok: false; message: string };
@@ -47,64 +48,58 @@ function readNumber(raw: string, label: string, decimalComma: boolean): Cell {
   return { ok: false, message: `${label} must be a number; '${raw}' is not one.` };
 }
 
-function readTime(raw: string, label: string, timeZone: string): Cell {
-  let parts: number[];
+function readTime(raw: string, label: string, times: SiteTimes): Cell {
+  let year: number, month: number, day: number, hour: number, minute: number, second: number;
   let offset: string | undefined;
   let timeFormat: TimeFormat;
   const iso = ISO_TIME.exec(raw);
   const dayFirst = iso ? null : DAY_FIRST_TIME.exec(raw);
   if (iso) {
-    parts = iso.slice(1, 7).map((p) => Number(p ?? 0));
+    [year, month, day, hour, minute, second] = [+iso[1], +iso[2], +iso[3], +iso[4], +iso[5], +(iso[6] ?? 0)];
     offset = iso[8];
     timeFormat = 'iso';
   } else if (dayFirst) {
-    const [, day, month, year, hour, minute, second] = dayFirst;
-    parts = [year, month, day, hour, minute, second ?? '0'].map(Number);
+    [day, month, year, hour, minute, second] = [+dayFirst[1], +dayFirst[2], +dayFirst[3], +dayFirst[4], +dayFirst[5], +(dayFirst[6] ?? 0)];
     timeFormat = 'dayFirst';
   } else {
     return { ok: false, message: `${label}: '${raw}' is not a date and time Kerfwise reads. Write ${TIME_EXAMPLES}.` };
   }
   // Fractions of a second are dropped: times are kept to the second.
-  const [year, month, day, hour, minute, second] = parts;
-  const calendar = new Date(Date.UTC(year, month - 1, day, hour, minute, second));
-  const real =
-    calendar.getUTCFullYear() === year &&
-    calendar.getUTCMonth() === month - 1 &&
-    calendar.getUTCDate() === day &&
-    calendar.getUTCHours() === hour &&
-    calendar.getUTCMinutes() === minute &&
-    calendar.getUTCSeconds() === second;
-  if (!real) return { ok: false, message: `${label}: '${raw}' is not a real date and time.` };
-  let instant: Date;
+  if (!isCalendarTime(year, month, day, hour, minute, second))
+    return { ok: false, message: `${label}: '${raw}' is not a real date and time.` };
+  const calendarMs = Date.UTC(year, month - 1, day, hour, minute, second);
+  let instantMs: number;
   if (offset) {
     // A written offset is arithmetic on the written wall time, not a time-zone rule.
-    const sign = offset.startsWith('-') ? -1 : 1;
-    const digits = offset.replace(/[^0-9]/g, '');
-    const offsetMin = offset.toUpperCase() === 'Z' ? 0 : sign * (Number(digits.slice(0, 2)) * 60 + Number(digits.slice(2) || 0));
+    let offsetMin = 0;
+    if (offset !== 'Z' && offset !== 'z') {
+      const sign = offset.startsWith('-') ? -1 : 1;
+      const digits = offset.replace(/[^0-9]/g, '');
+      offsetMin = sign * (Number(digits.slice(0, 2)) * 60 + Number(digits.slice(2) || 0));
+    }
     if (Math.abs(offsetMin) > 14 * 60) return { ok: false, message: `${label}: '${raw}' has a UTC offset beyond ±14:00.` };
-    instant = new Date(calendar.getTime() - offsetMin * 60_000);
+    instantMs = calendarMs - offsetMin * 60_000;
   } else {
-    const local = siteWallTimeToInstant({ year, month, day, hour, minute, second }, timeZone);
-    if (local === null) {
+    instantMs = times.wallTimeToMs(year, month, day, hour, minute, second);
+    if (Number.isNaN(instantMs)) {
       return {
         ok: false,
-        message: `${label}: '${raw}' does not exist in ${timeZone} (the clocks jump forward over it). Give the time with its UTC offset, like 2026-03-29T02:30+01:00.`,
+        message: `${label}: '${raw}' does not exist in ${times.timeZone} (the clocks jump forward over it). Give the time with its UTC offset, like 2026-03-29T02:30+01:00.`,
       };
     }
-    instant = local;
   }
-  return { ok: true, value: siteIso(instant, timeZone), timeFormat };
+  return { ok: true, value: siteIso(instantMs, times), timeFormat };
 }
 
 /** Reads a trimmed cell as the field's type; '' is null. */
-export function readCell(info: CsvFieldInfo<string>, raw: string, decimalComma: boolean, timeZone: string | undefined): Cell {
+export function readCell(info: CsvFieldInfo<string>, raw: string, decimalComma: boolean, times: SiteTimes | undefined): Cell {
   if (raw === '') return { ok: true, value: null };
   switch (info.type) {
     case 'number':
       return readNumber(raw, info.label, decimalComma);
     case 'time':
-      if (timeZone === undefined) throw new Error(`No time zone given to read ${info.label}.`);
-      return readTime(raw, info.label, timeZone);
+      if (times === undefined) throw new Error(`No time zone given to read ${info.label}.`);
+      return readTime(raw, info.label, times);
     case 'yesNo':
       if (/^(yes|y|true|1)$/i.test(raw)) return { ok: true, value: true };
       if (/^(no|n|false|0)$/i.test(raw)) return { ok: true, value: false };

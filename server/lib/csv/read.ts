@@ -14,14 +14,16 @@
  * - Checks between rows (table specs) use only the rows without errors of their own; after fixing
  *   those, an upload may show further errors.
  */
-import { Readable, pipeline } from 'node:stream';
-import { CsvError, parse, type Info } from 'csv-parse';
+import type { Readable } from 'node:stream';
+import type { CsvError } from 'csv-parse';
 import type { ColumnMapping } from '../../../shared/csv-headers';
 import type { CsvIssue, ImportDetected } from '../../../shared/schemas/advance-log';
+import { siteTimes } from '../../../shared/site-time';
 import { readCell, TIME_FORMAT_NAMES, type TimeFormat } from './cells';
 import { planColumns, type ColumnPlan } from './columns';
 import { DELIMITER_NAMES, detectCsvFormat, SAMPLE_BYTES } from './detect';
 import { FileRefused, fileIssue, IssueLog } from './issues';
+import { csvRecords, MAX_RECORD_CHARS } from './records';
 import type { CsvLineRow, RowReport, TableSpec } from './table';
 
 export interface CsvProgress {
@@ -62,7 +64,6 @@ const MB = 1024 * 1024;
 export const DEFAULT_MAX_BYTES = 50 * MB;
 export const DEFAULT_MAX_ROWS = 50_000;
 const DEFAULT_MAX_ERRORS = 200;
-const MAX_RECORD_CHARS = 64 * 1024;
 
 /** Bytes of `source`, refusing the file as soon as more than `maxBytes` have arrived. */
 async function* limitedBytes(source: Readable, maxBytes: number, progress: CsvProgress, report: () => void): AsyncGenerator<Buffer> {
@@ -149,6 +150,7 @@ export async function readCsv<F extends string, Row>(
   table: TableSpec<F, Row>,
   timeZone?: string,
 ): Promise<CsvImportResult<Row, F>> {
+  const times = timeZone === undefined ? undefined : siteTimes(timeZone);
   const maxBytes = options.maxBytes ?? DEFAULT_MAX_BYTES;
   const maxRows = options.maxRows ?? DEFAULT_MAX_ROWS;
   const log = new IssueLog(options.maxErrors ?? DEFAULT_MAX_ERRORS);
@@ -189,7 +191,7 @@ export async function readCsv<F extends string, Row>(
     const failed = new Set<string>();
     for (const info of table.fields) {
       const index = columns.columns.get(info.field);
-      const cell = readCell(info, index === undefined ? '' : record[index].trim(), detected.decimalComma, timeZone);
+      const cell = readCell(info, index === undefined ? '' : record[index].trim(), detected.decimalComma, times);
       if (!cell.ok) {
         failed.add(info.field);
         report.error(line, info.field, cell.message);
@@ -205,16 +207,21 @@ export async function readCsv<F extends string, Row>(
         }
       }
     }
-    const parsed = table.schema.safeParse(candidate);
-    if (!parsed.success) {
-      for (const issue of parsed.error.issues) {
-        const field = String(issue.path[0]);
-        if (!failed.has(field)) report.error(line, field as F, issue.message);
+    let data: Row;
+    if (failed.size === 0 && table.isRow?.(candidate)) data = candidate;
+    else {
+      const parsed = table.schema.safeParse(candidate);
+      if (!parsed.success) {
+        for (const issue of parsed.error.issues) {
+          const field = String(issue.path[0]);
+          if (!failed.has(field)) report.error(line, field as F, issue.message);
+        }
+        return;
       }
-      return;
+      data = parsed.data;
     }
-    table.checkRow(parsed.data, line, report);
-    if (!log.hasError(line)) rows.push({ line, data: parsed.data });
+    table.checkRow(data, line, report);
+    if (!log.hasError(line)) rows.push({ line, data });
   };
 
   const bytes = limitedBytes(source, maxBytes, progress, reportProgress);
@@ -241,42 +248,32 @@ export async function readCsv<F extends string, Row>(
     // A CSV syntax error refuses the file at the line it starts on. Reported through on_skip, not
     // as a stream error, so the records before it still arrive and the line count stays right.
     let syntaxError: CsvError | undefined;
-    const parser = parse({
-      delimiter: format.delimiter,
-      info: true,
-      relax_column_count: true,
-      relax_quotes: true,
-      skip_empty_lines: true,
-      max_record_size: MAX_RECORD_CHARS,
-      skip_records_with_error: true,
-      on_skip: (err) => {
-        syntaxError ??= err;
-      },
+    const records = csvRecords(utf8Text(sample, bytes), format.delimiter, (err) => {
+      syntaxError ??= err;
     });
-    // A refusal while reading ends the iteration below with that error; nothing to do in the callback.
-    pipeline(Readable.from(utf8Text(sample, bytes)), parser, () => undefined);
-    for await (const { record, info } of parser as AsyncIterable<{ record: string[]; info: Info }>) {
-      if (syntaxError && info.records > Number(syntaxError.records)) break;
-      const line = previousEndLine + 1 + (info.empty_lines - previousEmptyLines);
-      previousEndLine = info.lines;
-      previousEmptyLines = info.empty_lines;
-      if (record.every((cell) => cell.trim() === '')) continue;
-      if (!plan) {
-        plan = planColumns(record, table, options.mapping ?? {}, log, options.remembered ?? {});
-        if (!plan) break;
-        detected.mapping = Object.fromEntries([...plan.columns].map(([field, i]) => [field, plan!.headers[i]])) as ColumnMapping<F>;
-        continue;
+    read: for await (const batch of records)
+      for (const { record, info } of batch) {
+        if (syntaxError && info.records > Number(syntaxError.records)) break read;
+        const line = previousEndLine + 1 + (info.empty_lines - previousEmptyLines);
+        previousEndLine = info.lines;
+        previousEmptyLines = info.empty_lines;
+        if (record.every((cell) => cell.trim() === '')) continue;
+        if (!plan) {
+          plan = planColumns(record, table, options.mapping ?? {}, log, options.remembered ?? {});
+          if (!plan) break read;
+          detected.mapping = Object.fromEntries([...plan.columns].map(([field, i]) => [field, plan!.headers[i]])) as ColumnMapping<F>;
+          continue;
+        }
+        progress.rowsParsed += 1;
+        if (progress.rowsParsed > maxRows) {
+          throw new FileRefused(
+            fileIssue(
+              `The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`,
+            ),
+          );
+        }
+        readRow(record, line, plan);
       }
-      progress.rowsParsed += 1;
-      if (progress.rowsParsed > maxRows) {
-        throw new FileRefused(
-          fileIssue(
-            `The file has more than ${maxRows.toLocaleString('en')} data rows. Split it into smaller files and import them one after another.`,
-          ),
-        );
-      }
-      readRow(record, line, plan);
-    }
     if (syntaxError && plan !== null) {
       const emptyLines = Number(syntaxError.empty_lines ?? previousEmptyLines);
       throw new FileRefused(syntaxIssue(syntaxError, previousEndLine + 1 + (emptyLines - previousEmptyLines), plan?.headers));

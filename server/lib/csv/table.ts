@@ -17,6 +17,11 @@ export interface RowReport<F extends string> {
 export interface TableSpec<F extends string, Row> extends ColumnSpec<F> {
   /** Checks one row after its cells were read (null for empty cells, unused columns as text in `extra`). */
   schema: z.ZodType<Row>;
+  /**
+   * Optional quick check: true only for a candidate `schema` accepts as it is (then the schema is
+   * not run for that row); false sends the row to the schema, whose issues are reported.
+   */
+  isRow?: (candidate: Record<string, unknown>) => candidate is Record<string, unknown> & Row;
   /** Checks of one valid row that need the options or earlier rows, in file order. */
   checkRow(row: Row, line: number, report: RowReport<F>): void;
   /**
