@@ -227,6 +227,7 @@ export function RoundRoute() {
         waitingPhotos={roundItems.filter((i) => i.kind === 'photo' && i.positionId === position.id).length}
         storeCutters={storeCutters.filter((c) => ![...queuedByPosition.values()].some((q) => q.body.fitted?.serial === c.serial))}
         draft={drafts[position.id] ?? draftFrom(position, storedByPosition.get(position.id), queuedByPosition.get(position.id))}
+        edited={position.id in drafts}
         onDraft={(d) => setDrafts((all) => ({ ...all, [position.id]: d }))}
         readOnly={readOnly}
         onSaved={(refused) => {
