@@ -167,6 +167,13 @@ describe.each([
       const onHub = setup.fitted[0].serial;
       const stored = () => db.select().from(inspectionEntries).where(eq(inspectionEntries.roundId, round.id));
 
+      // Nothing entered: the form's own check names the wear field, nothing is sent; "Not measured" answers it.
+      await page.getByRole('button', { name: 'Save position' }).click();
+      await expect.poll(() => wear.getAttribute('aria-invalid')).toBe('true');
+      expect(await describedBy(page, wear)).toBe('Enter the wear, or choose “Not measured”.');
+      await page.getByRole('button', { name: 'Not measured' }).click();
+      await expect.poll(() => wear.getAttribute('aria-invalid')).toBeNull();
+
       // 12 mm on the keypad and a change, with a removed serial that is not the one on the hub: only the server knows.
       for (const key of ['1', '2']) await keypad.getByRole('button', { name: key, exact: true }).click();
       await page.getByRole('button', { name: 'Cutter changed' }).click();

@@ -158,7 +158,8 @@ export function EntryForm(props: Props) {
     });
 
   const wear = useController({ control, name: 'wearMm' });
-  const notMeasured = useController({ control, name: 'notMeasured' });
+  // "Not measured" answers the wear field's "enter the wear" check, so it re-checks that field.
+  const notMeasured = useController({ control, name: 'notMeasured', rules: { deps: ['wearMm'] } });
   const action = form.watch('action');
   const fitted = form.watch('fitted');
   const changeReason = form.watch('changeReason');
