@@ -107,10 +107,11 @@ export function EntryForm(props: Props) {
     return () => sub.unsubscribe();
   }, [form]);
 
-  // Not edited here: the screen follows what the outbox and the server hold (after a save, a refusal, a refetch).
+  // Not edited here: the screen follows what the outbox and the server hold (after a save, a refusal, a refetch),
+  // keeping a refusal's errors and re-checking each field as it is changed, as after any submit.
   const incoming = draftKey(draft);
   useEffect(() => {
-    if (!edited && draftKey(form.getValues()) !== incoming) form.reset(draft, { keepErrors: true });
+    if (!edited && draftKey(form.getValues()) !== incoming) form.reset(draft, { keepErrors: true, keepIsSubmitted: true });
     // eslint-disable-next-line react-hooks/exhaustive-deps -- `incoming` stands for `draft`
   }, [incoming, edited, form]);
 
