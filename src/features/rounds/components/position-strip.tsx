@@ -129,7 +129,7 @@ export function PositionStrip({ positions, marks, currentId, onPick, grid }: Pro
               {m.overtakenBy != null && (
                 <span
                   data-mark="overtaken"
-                  className={`absolute -left-1 top-1/2 inline-flex h-[18px] w-[18px] -translate-y-1/2 items-center justify-center ring-2 ring-white ${overtakenBadge}`}
+                  className={`absolute -bottom-1.5 left-1/2 inline-flex h-4 w-4 -translate-x-1/2 items-center justify-center ring-2 ring-white ${overtakenBadge}`}
                 >
                   <OvertakenMark className="h-3 w-3" />
                 </span>
