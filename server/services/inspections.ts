@@ -250,16 +250,21 @@ interface ChangeContext {
   input: EntryInput;
 }
 
+/** The issue of a refused fitted serial, beside the form's cutter picker. */
+const fittedIssue = (message: string) => [{ path: 'fitted.serial', message }];
+
 /** Closes the removed serial's fitted period and opens the fitted one's, at the round's place and time. */
 async function changeCutter(tx: DbOrTx, { projectId, userId, round, position, current, input }: ChangeContext) {
   if (input.removedSerial && !current) {
     throw new ConflictError(
       `Kerfwise has no cutter on position ${position.number}, so ${input.removedSerial} cannot be taken off it. Check the position number.`,
+      [{ path: 'removedSerial', message: 'Kerfwise has no cutter here; leave it empty if none was on.' }],
     );
   }
   if (input.removedSerial && current && input.removedSerial !== current.serial) {
     throw new ConflictError(
       `Kerfwise has serial ${current.serial} on position ${position.number}, not ${input.removedSerial}. Check the serial stamped on the hub.`,
+      [{ path: 'removedSerial', message: `Kerfwise has ${current.serial} here, not ${input.removedSerial}. Check the serial on the hub.` }],
     );
   }
   const fittedSerial = input.fitted!.serial;
@@ -287,14 +292,20 @@ async function changeCutter(tx: DbOrTx, { projectId, userId, round, position, cu
       .where(and(eq(fittings.cutterId, fitted.id), isNull(fittings.removedAt)));
     throw new ConflictError(
       `Serial ${fittedSerial} is already fitted at position ${where?.number ?? '?'}${where ? ` since ${formatSiteDate(where.since, await siteTimeZoneOf(tx, projectId))}` : ''}. A cutter cannot be in two places; check the serial.`,
+      fittedIssue(`${fittedSerial} is already fitted at position ${where?.number ?? '?'}. Pick another cutter.`),
     );
   }
-  if (fitted.status === 'scrapped') throw new ConflictError(`Serial ${fittedSerial} was scrapped and cannot be fitted.`);
+  if (fitted.status === 'scrapped')
+    throw new ConflictError(`Serial ${fittedSerial} was scrapped and cannot be fitted.`, fittedIssue(`${fittedSerial} was scrapped.`));
   if (fitted.status === 'workshop')
-    throw new ConflictError(`Serial ${fittedSerial} is in the workshop. Record its rebuild (Cutters → ${fittedSerial}) before fitting it.`);
+    throw new ConflictError(
+      `Serial ${fittedSerial} is in the workshop. Record its rebuild (Cutters → ${fittedSerial}) before fitting it.`,
+      fittedIssue(`${fittedSerial} is in the workshop, not in store.`),
+    );
   if (fitted.discSizeIn !== position.discSizeIn) {
     throw new ConflictError(
       `Serial ${fittedSerial} is a ${fitted.discSizeIn}″ cutter; position ${position.number} takes ${position.discSizeIn}″.`,
+      fittedIssue(`${fittedSerial} is a ${fitted.discSizeIn}″ cutter; this position takes ${position.discSizeIn}″.`),
     );
   }
 

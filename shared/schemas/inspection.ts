@@ -20,37 +20,51 @@ export type StartRoundInput = z.infer<typeof startRoundInputSchema>;
 /** The cutter put on the position: one from the store, or a new serial entered on the spot. */
 const fittedSchema = z.object({ serial: serialSchema, isNew: z.boolean().default(false) });
 
+/** What the fitter records for one position: the fields of an entry, without its keys and times. */
+const entryFields = z.object({
+  wearMm: z
+    .number({ message: 'Wear must be a number of millimetres.' })
+    .min(0, 'Wear cannot be negative.')
+    .max(100, 'Wear above 100 mm is not possible; check the value.')
+    .refine((v) => Math.abs(v * 10 - Math.round(v * 10)) < 1e-6, 'Give wear to one decimal, like 12.5.')
+    .nullable(),
+  conditions: conditionsSchema.default([]),
+  action: z.enum(['none', 'changed']).default('none'),
+  /** The serial taken off; defaults to the one Kerfwise has on the position. */
+  removedSerial: serialSchema.nullable().default(null),
+  fitted: fittedSchema.nullable().default(null),
+  changeReason: freeText('The reason for the change', 300).nullable().default(null),
+  note: freeText('The note', 2000).default(''),
+});
+
+/** The rules across fields of a change, applied to both schemas below (zod cannot pick or omit from a refined object). */
+type ChangeFields = { action: 'none' | 'changed'; fitted: unknown; changeReason: string | null };
+type Rule = [(e: ChangeFields) => boolean, { path: string[]; message: string }];
+const changeNeedsFitted: Rule = [
+  (e: ChangeFields) => e.action !== 'changed' || e.fitted !== null,
+  { path: ['fitted'], message: 'A change needs the serial of the cutter put on.' },
+];
+const changeNeedsReason: Rule = [
+  (e: ChangeFields) => e.action !== 'changed' || (e.changeReason ?? '') !== '',
+  { path: ['changeReason'], message: 'Give the reason for the change.' },
+];
+
+/** The values of an entry as the round screen's form hands them over (its keys and times are added when it is saved). */
+export const entryValuesSchema = entryFields.refine(...changeNeedsFitted).refine(...changeNeedsReason);
+export type EntryValues = z.infer<typeof entryValuesSchema>;
+
 /** One position in a round. Sent again with the same clientKey it is stored once. */
-export const entryInputSchema = z
-  .object({
+export const entryInputSchema = entryFields
+  .extend({
     clientKey: z.uuid({ message: 'clientKey must be a UUID.' }),
     positionId: z.uuid({ message: 'Choose a position.' }),
-    wearMm: z
-      .number({ message: 'Wear must be a number of millimetres.' })
-      .min(0, 'Wear cannot be negative.')
-      .max(100, 'Wear above 100 mm is not possible; check the value.')
-      .refine((v) => Math.abs(v * 10 - Math.round(v * 10)) < 1e-6, 'Give wear to one decimal, like 12.5.')
-      .nullable(),
-    conditions: conditionsSchema.default([]),
-    action: z.enum(['none', 'changed']).default('none'),
-    /** The serial taken off; defaults to the one Kerfwise has on the position. */
-    removedSerial: serialSchema.nullable().default(null),
-    fitted: fittedSchema.nullable().default(null),
-    changeReason: freeText('The reason for the change', 300).nullable().default(null),
-    note: freeText('The note', 2000).default(''),
     /** Confirms a wear lower than the last measurement of the same disc as a correction. */
     remeasured: z.boolean().default(false),
     /** When the fitter entered it (offline entries arrive later). */
     recordedAt: instant('The time recorded').optional(),
   })
-  .refine((e) => e.action !== 'changed' || e.fitted !== null, {
-    path: ['fitted'],
-    message: 'A change needs the serial of the cutter put on.',
-  })
-  .refine((e) => e.action !== 'changed' || (e.changeReason ?? '') !== '', {
-    path: ['changeReason'],
-    message: 'Give the reason for the change.',
-  });
+  .refine(...changeNeedsFitted)
+  .refine(...changeNeedsReason);
 export type EntryInput = z.infer<typeof entryInputSchema>;
 
 export interface Round {

@@ -151,6 +151,8 @@ describe('inspection entries', () => {
     );
     expect(res.status).toBe(409);
     expect(res.body.error.message).toMatch(/already fitted at position 1/);
+    // Named on the fitted serial, so the round screen shows it beside the cutter picker.
+    expect(res.body.error.issues).toEqual([{ path: 'fitted.serial', message: expect.stringMatching(/already fitted at position 1/) }]);
     const open = await db
       .select()
       .from(fittings)
@@ -171,6 +173,7 @@ describe('inspection entries', () => {
     );
     expect(wrong.status).toBe(409);
     expect(wrong.body.error.message).toMatch(/not NOT-ON-HUB/);
+    expect(wrong.body.error.issues).toEqual([{ path: 'removedSerial', message: expect.stringMatching(/not NOT-ON-HUB/) }]);
     const unknown = await fitter
       .post(`/api/projects/${projectId}/rounds/${roundId}/entries`)
       .send(entry({ positionId: pos.id, action: 'changed', fitted: { serial: 'NEVER-SEEN-1' }, changeReason: 'x' }));

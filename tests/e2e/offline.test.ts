@@ -33,6 +33,8 @@ afterAll(async () => {
 const PNG_1X1 = Buffer.from('iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNkYPhfDwAChwGA60e6kgAAAABJRU5ErkJggg==', 'base64');
 
 const wearField = (page: Page) => page.getByLabel('Radial wear (mm)');
+const tile = (page: Page, n: number) =>
+  page.getByRole('list', { name: 'Positions' }).getByRole('button', { name: new RegExp(`^Position ${n}:`) });
 const outboxCount = (page: Page) => page.getByTestId('outbox-count');
 
 async function atPosition(page: Page, n: number) {
@@ -191,6 +193,14 @@ it(
     await expect
       .poll(() => a.page.getByText(`Your entry for position 1 was overtaken by ${other.name}`).count(), { timeout: 30_000 })
       .toBe(1);
+    // The position strip marks it too: a shape (not a colour) and words naming who overtook it.
+    expect(await tile(a.page, 1).getAttribute('aria-label')).toContain(`your entry overtaken by ${other.name}`);
+    expect(await tile(a.page, 1).locator('[data-mark="overtaken"] svg rect').count()).toBe(2);
+    expect(await tile(a.page, 2).getAttribute('aria-label')).not.toContain('overtaken');
+    expect(await tile(a.page, 2).locator('[data-mark="overtaken"]').count()).toBe(0);
+    // B's entry stands: B's tablet marks nothing.
+    await expect.poll(() => tile(b.page, 1).getAttribute('aria-label'), { timeout: 30_000 }).toBe('Position 1: saved');
+    expect(await b.page.locator('[data-mark="overtaken"]').count()).toBe(0);
 
     // A dismisses the top-bar notice; it stays dismissed after a reload (kept on the device).
     await a.page.getByRole('button', { name: 'Dismiss overtaken notice' }).click();
@@ -221,6 +231,8 @@ it(
     await expect
       .poll(() => a.page.getByText(`Your entry for position 2 was overtaken by ${other.name}`).count(), { timeout: 30_000 })
       .toBe(1);
+    expect(await tile(a.page, 2).getAttribute('aria-label')).toContain(`your entry overtaken by ${other.name}`);
+    expect(await tile(a.page, 2).locator('[data-mark="overtaken"] svg rect').count()).toBe(2);
     const [second] = await db
       .select()
       .from(inspectionEntries)

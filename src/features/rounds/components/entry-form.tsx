@@ -1,63 +1,24 @@
-import { useEffect, useId, useRef, useState, type FormEvent, type ReactNode } from 'react';
-import { discConditions, positionClassLabels, type DiscCondition } from '../../../../shared/cutters';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useEffect, useId, useRef, useState, type ReactNode } from 'react';
+import { Controller, useController, useForm, type FieldPath } from 'react-hook-form';
+import { discConditions, positionClassLabels } from '../../../../shared/cutters';
 import { entryInputSchema } from '../../../../shared/schemas/inspection';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { TextField } from '../../../components/ui/field';
-import { photoUrl, type RoundEntry, type RoundPosition, type StoreCutter } from '../api';
+import { ApiError } from '../../../lib/api-client';
+import { serverErrors } from '../../../lib/form';
+import { photoUrl, useRecordEntry, type RoundEntry, type RoundPosition, type StoreCutter } from '../api';
+import { entryFormSchema, isDraftField, type Draft, type EntryValues } from '../entry-draft';
 import { formatSiteDateTime } from '../../../../shared/site-time';
-import { discardItem, getOutboxItem, queueEntry, type QueuedEntry } from '../../../lib/outbox';
+import { discardItem, type QueuedEntry } from '../../../lib/outbox';
 import { CutterPicker } from './cutter-picker';
 import { overLimitBadge, OverLimitMark } from './marks';
 import { Toggle } from './toggle';
 import { WearKeypad } from './wear-keypad';
 
-/** What the fitter has on the screen for one position, before it is saved. */
-export interface Draft {
-  wearText: string;
-  notMeasured: boolean;
-  conditions: DiscCondition[];
-  action: 'none' | 'changed';
-  removedSerial: string;
-  fitted: { serial: string; isNew: boolean } | null;
-  changeReason: string;
-  note: string;
-  photos: File[];
-}
+export { draftFrom, type Draft } from '../entry-draft';
 
-/** The screen's starting point for a position: the newest queued entry, else what the server stored, else empty. */
-export function draftFrom(position: RoundPosition, stored: RoundEntry | undefined, queued: QueuedEntry | undefined): Draft {
-  const source = queued?.body ?? stored;
-  if (!source) {
-    return {
-      wearText: '',
-      notMeasured: false,
-      conditions: [],
-      action: 'none',
-      removedSerial: position.current?.serial ?? '',
-      fitted: null,
-      changeReason: '',
-      note: '',
-      photos: [],
-    };
-  }
-  const changedOnServer = !queued && stored?.action === 'changed';
-  return {
-    wearText: source.wearMm == null ? '' : String(source.wearMm),
-    notMeasured: source.wearMm == null,
-    conditions: [...source.conditions],
-    action: source.action,
-    removedSerial: queued?.body.removedSerial ?? (changedOnServer ? '' : (position.current?.serial ?? '')),
-    // A change the server holds: the serial on the position now is the one that was fitted.
-    fitted: queued?.body.fitted ?? (changedOnServer && position.current ? { serial: position.current.serial, isNew: false } : null),
-    changeReason: source.changeReason ?? '',
-    note: source.note,
-    photos: [],
-  };
-}
-
-const MAX_PHOTO_BYTES = 10 * 1024 * 1024;
-const ANSWER_WAIT_MS = 4000;
 const quickReasons = ['Worn to the limit', 'Ring damaged', 'Blocked disc', 'Bearing or seal', 'Planned change'];
 
 interface Props {
@@ -69,7 +30,10 @@ interface Props {
   queued: QueuedEntry | undefined;
   waitingPhotos: number;
   storeCutters: StoreCutter[];
+  /** What the screen starts from: the fitter's unsaved changes (`edited`), else the queued or stored entry. */
   draft: Draft;
+  edited: boolean;
+  /** Every change the fitter makes, so it is kept while they look at other positions. */
   onDraft: (draft: Draft) => void;
   readOnly: boolean;
   /** After a save: stored, waiting for the network, or refused by the server (then the fitter stays here). */
@@ -81,9 +45,29 @@ interface Props {
   status: ReactNode;
 }
 
-/** One position of the round: what the fitter found and did, saved the moment "Save position" is pressed. */
+/** The first message in a field's error, nested ones included (`fitted.serial`, `conditions.0`). */
+function firstMessage(error: unknown): string | undefined {
+  if (!error || typeof error !== 'object') return undefined;
+  const { message, ref: _ref, type: _type, types: _types, ...nested } = error as Record<string, unknown>;
+  if (typeof message === 'string' && message) return message;
+  for (const inner of Object.values(nested)) {
+    const m = firstMessage(inner);
+    if (m) return m;
+  }
+  return undefined;
+}
+
+/** A draft compared by its values (photos by count: a saved draft's photos have gone to the outbox). */
+const draftKey = (d: Draft) => JSON.stringify({ ...d, photos: d.photos.length });
+
+/**
+ * One position of the round: what the fitter found and did, saved the moment "Save position" is
+ * pressed. A react-hook-form form on the server's own entry rules (`entryFormSchema`); the save goes
+ * to the app's outbox through `useRecordEntry`, and a refusal — now, or later from the outbox —
+ * shows each issue beside its field.
+ */
 export function EntryForm(props: Props) {
-  const { projectId, roundId, timeZone, position, stored, queued, draft, onDraft, readOnly } = props;
+  const { projectId, roundId, timeZone, position, stored, queued, draft, edited, readOnly } = props;
   const formId = useId();
   const headerRef = useRef<HTMLElement>(null);
   const mounted = useRef(false);
@@ -98,84 +82,104 @@ export function EntryForm(props: Props) {
     const header = headerRef.current;
     if (header && header.getBoundingClientRect().top < 0) header.scrollIntoView({ block: 'start' });
   }, []);
-  const [clientIssues, setClientIssues] = useState<{ path: string; message: string }[] | null>(null);
-  const [saving, setSaving] = useState(false);
+
+  const record = useRecordEntry(projectId, roundId);
+  const form = useForm<Draft, unknown, EntryValues>({ resolver: zodResolver(entryFormSchema), defaultValues: draft });
+  const { control, formState } = form;
+  const fieldError = (name: keyof Draft) => firstMessage(formState.errors[name]);
+  /** A problem that belongs to no field (the device could not keep the entry), shown at the top. */
+  const [failure, setFailure] = useState<string | null>(null);
+  const saving = record.isPending;
   const refused = queued?.state === 'attention' ? queued.error : undefined;
-  const issues = clientIssues ?? refused?.issues ?? [];
-  const fieldError = (path: string) => issues.find((i) => i.path === path || i.path.startsWith(`${path}.`))?.message;
   const wearFell = refused?.status === 409 && refused.issues.some((i) => i.path === 'wearMm');
   const changeLocked = !queued && stored?.action === 'changed';
 
-  const update = (patch: Partial<Draft>) => {
-    setClientIssues(null);
-    onDraft({ ...draft, ...patch });
-  };
-  const toggleCondition = (key: DiscCondition) =>
-    update({ conditions: draft.conditions.includes(key) ? draft.conditions.filter((c) => c !== key) : [...draft.conditions, key] });
-
-  const save = async (remeasured: boolean) => {
-    if (!draft.notMeasured && draft.wearText === '') {
-      setClientIssues([{ path: 'wearMm', message: 'Enter the wear, or choose “Not measured”.' }]);
-      return;
-    }
-    if (draft.photos.some((f) => f.size > MAX_PHOTO_BYTES)) {
-      setClientIssues([{ path: 'photos', message: 'A photo is larger than 10 MB. Take it at a lower resolution.' }]);
-      return;
-    }
-    const changed = draft.action === 'changed';
-    const parsed = entryInputSchema.safeParse({
-      // A refused entry is fixed under its own key: the server never stored it, and its photos point to it.
-      clientKey: refused ? queued!.key : crypto.randomUUID(),
-      positionId: position.id,
-      wearMm: draft.notMeasured ? null : Number(draft.wearText),
-      conditions: draft.conditions,
-      action: draft.action,
-      removedSerial: changed && draft.removedSerial.trim() ? draft.removedSerial.trim() : null,
-      fitted: changed ? draft.fitted : null,
-      changeReason: changed ? draft.changeReason : null,
-      note: draft.note,
-      remeasured,
-      recordedAt: new Date().toISOString(),
+  // The fitter's own changes (events carry a type; a reset does not) go to the round screen.
+  const onDraft = useRef(props.onDraft);
+  onDraft.current = props.onDraft;
+  useEffect(() => {
+    const sub = form.watch((values, { type }) => {
+      if (type) {
+        setFailure(null);
+        onDraft.current(values as Draft);
+      }
     });
-    if (!parsed.success) {
-      setClientIssues(parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })));
-      return;
-    }
-    setClientIssues(null);
-    setSaving(true);
-    try {
-      const where = { projectId, roundId, positionId: position.id };
-      // Waits a moment for the server's answer so a refusal shows here; after that the queue carries on alone.
-      await Promise.race([
-        queueEntry(where, parsed.data, draft.photos, refused ? queued : undefined),
-        new Promise((r) => setTimeout(r, ANSWER_WAIT_MS)),
-      ]);
-    } catch (err) {
-      setClientIssues([
-        {
-          path: '',
-          message: `This device could not keep the entry (${err instanceof Error ? err.message : 'storage failed'}). Nothing was saved; try again.`,
-        },
-      ]);
-      return;
-    } finally {
-      setSaving(false);
-    }
-    // The fitter may have moved on while the answer was awaited; then there is nothing to move from.
-    if (mounted.current) props.onSaved(getOutboxItem(parsed.data.clientKey)?.state === 'attention');
-  };
+    return () => sub.unsubscribe();
+  }, [form]);
 
-  const onSubmit = (e: FormEvent) => {
-    e.preventDefault();
-    if (!readOnly && !saving) void save(false);
-  };
+  // Not edited here: the screen follows what the outbox and the server hold (after a save, a refusal, a refetch),
+  // keeping a refusal's errors and re-checking each field as it is changed, as after any submit.
+  const incoming = draftKey(draft);
+  useEffect(() => {
+    if (!edited && draftKey(form.getValues()) !== incoming) form.reset(draft, { keepErrors: true, keepIsSubmitted: true });
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- `incoming` stands for `draft`
+  }, [incoming, edited, form]);
+
+  // A refusal held by the outbox (answered now, or later while the fitter was elsewhere, or before a reload): beside its fields.
+  const refusal = refused && queued ? `${queued.key}:${JSON.stringify(refused)}` : '';
+  useEffect(() => {
+    if (!refused) return;
+    for (const issue of refused.issues)
+      if (isDraftField(issue.path)) form.setError(issue.path as FieldPath<Draft>, { type: 'server', message: issue.message });
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- `refusal` stands for `refused`
+  }, [refusal, form]);
+
+  const save = (remeasured: boolean) =>
+    form.handleSubmit(async (values) => {
+      setFailure(null);
+      try {
+        const body = entryInputSchema.parse({
+          ...values,
+          // A refused entry is fixed under its own key: the server never stored it, and its photos point to it.
+          clientKey: refused ? queued!.key : crypto.randomUUID(),
+          positionId: position.id,
+          remeasured,
+          recordedAt: new Date().toISOString(),
+        });
+        await record.mutateAsync({
+          positionId: position.id,
+          body,
+          photos: form.getValues('photos'),
+          replacing: refused ? queued : undefined,
+        });
+      } catch (err) {
+        if (!(err instanceof ApiError)) {
+          setFailure(
+            `This device could not keep the entry (${err instanceof Error ? err.message : 'storage failed'}). Nothing was saved; try again.`,
+          );
+          return;
+        }
+        // Refused: the entry stays queued with the server's words; each issue goes beside its field.
+        serverErrors(err, form.setError, err.message);
+        if (mounted.current) props.onSaved(true);
+        return;
+      }
+      // The fitter may have moved on while the answer was awaited; then there is nothing to move from.
+      if (mounted.current) props.onSaved(false);
+    });
+
+  const wear = useController({ control, name: 'wearMm' });
+  // "Not measured" answers the wear field's "enter the wear" check, so it re-checks that field.
+  const notMeasured = useController({ control, name: 'notMeasured', rules: { deps: ['wearMm'] } });
+  const action = form.watch('action');
+  const fitted = form.watch('fitted');
+  const changeReason = form.watch('changeReason');
 
   const lastOver = position.lastWearMm != null && position.lastWearMm >= position.wearLimitMm;
   const fittingCutters = props.storeCutters.filter((c) => c.discSizeIn === position.discSizeIn);
+  const unplaced = refused?.issues.filter((i) => !isDraftField(i.path)) ?? [];
 
   return (
     <>
-      <form id={formId} onSubmit={onSubmit} noValidate className="space-y-5">
+      <form
+        id={formId}
+        onSubmit={(e) => {
+          if (readOnly || saving) e.preventDefault();
+          else void save(false)(e);
+        }}
+        noValidate
+        className="space-y-5"
+      >
         <header ref={headerRef} className="scroll-mt-2 rounded-lg border-2 border-basalt-800 bg-white px-4 py-2">
           <div className="flex flex-wrap items-baseline gap-x-4">
             <h2 className="text-display">Position {position.number}</h2>
@@ -212,6 +216,11 @@ export function EntryForm(props: Props) {
         {refused && (
           <Alert tone="error" title="The server did not store this position">
             <p>{refused.message}</p>
+            {unplaced.map((i) => (
+              <p key={`${i.path}:${i.message}`} className="mt-1">
+                {i.message}
+              </p>
+            ))}
             {!wearFell && <p className="mt-1">Fix the values and press “Save position” again, or discard the entry.</p>}
             {!readOnly && queued && (
               <Button
@@ -227,92 +236,136 @@ export function EntryForm(props: Props) {
             )}
           </Alert>
         )}
-        {clientIssues?.some((i) => !knownPaths.some((p) => i.path === p || i.path.startsWith(`${p}.`))) && (
-          <Alert tone="error">{clientIssues.map((i) => i.message).join(' ')}</Alert>
-        )}
+        {failure && <Alert tone="error">{failure}</Alert>}
 
         <fieldset disabled={readOnly || saving} className="grid gap-6 md:grid-cols-2">
-          <WearKeypad text={draft.wearText} notMeasured={draft.notMeasured} onChange={update} error={fieldError('wearMm')}>
+          <WearKeypad
+            text={wear.field.value}
+            notMeasured={notMeasured.field.value}
+            inputRef={wear.field.ref}
+            onChange={(patch) => {
+              if (patch.wearText !== undefined) wear.field.onChange(patch.wearText);
+              if (patch.notMeasured !== undefined) notMeasured.field.onChange(patch.notMeasured);
+            }}
+            error={fieldError('wearMm') ?? fieldError('notMeasured')}
+          >
             {wearFell && (
-              <Button variant="danger" className="min-h-14 w-full text-lead" onClick={() => void save(true)}>
+              <Button variant="danger" className="min-h-14 w-full text-lead" onClick={() => void save(true)()}>
                 Confirm as re-measured
               </Button>
             )}
           </WearKeypad>
 
-          <fieldset className="space-y-2">
-            <legend className="mb-2 text-lead font-semibold">
-              Condition <span className="text-body font-normal text-basalt-700">(all that apply)</span>
-            </legend>
-            <div className="grid grid-cols-2 gap-2 md:grid-cols-1 lg:grid-cols-2">
-              {discConditions.map((c) => (
-                <Toggle key={c.key} pressed={draft.conditions.includes(c.key)} onToggle={() => toggleCondition(c.key)}>
-                  {c.label}
-                  {c.needsChange && <span className="block text-caption font-normal">calls for a change</span>}
-                </Toggle>
-              ))}
-            </div>
-            {fieldError('conditions') && <p className="font-semibold text-alarm-700">{fieldError('conditions')}</p>}
-          </fieldset>
+          <Controller
+            control={control}
+            name="conditions"
+            render={({ field }) => (
+              <fieldset className="space-y-2">
+                <legend className="mb-2 text-lead font-semibold">
+                  Condition <span className="text-body font-normal text-basalt-700">(all that apply)</span>
+                </legend>
+                <div className="grid grid-cols-2 gap-2 md:grid-cols-1 lg:grid-cols-2">
+                  {discConditions.map((c) => (
+                    <Toggle
+                      key={c.key}
+                      pressed={field.value.includes(c.key)}
+                      onToggle={() =>
+                        field.onChange(field.value.includes(c.key) ? field.value.filter((k) => k !== c.key) : [...field.value, c.key])
+                      }
+                    >
+                      {c.label}
+                      {c.needsChange && <span className="block text-caption font-normal">calls for a change</span>}
+                    </Toggle>
+                  ))}
+                </div>
+                {fieldError('conditions') && <p className="font-semibold text-alarm-700">{fieldError('conditions')}</p>}
+              </fieldset>
+            )}
+          />
         </fieldset>
 
         <fieldset disabled={readOnly || saving} className="space-y-3 rounded-lg border-2 border-basalt-300 bg-white p-4">
           <legend className="px-1 text-lead font-semibold">Action</legend>
           {changeLocked ? (
             <p>
-              Cutter changed in this round: <strong>{draft.fitted?.serial}</strong> fitted. Reason: {draft.changeReason}. A recorded change
-              is corrected by the planner, not here.
+              Cutter changed in this round: <strong>{fitted?.serial}</strong> fitted. Reason: {changeReason}. A recorded change is corrected
+              by the planner, not here.
             </p>
           ) : (
             <>
-              <div role="group" aria-label="Action" className="grid grid-cols-2 gap-2">
-                <Toggle pressed={draft.action === 'none'} onToggle={() => update({ action: 'none' })}>
-                  No change
-                </Toggle>
-                <Toggle pressed={draft.action === 'changed'} onToggle={() => update({ action: 'changed' })}>
-                  Cutter changed
-                </Toggle>
-              </div>
-              {draft.action === 'changed' && (
-                <div className="grid gap-4 md:grid-cols-2">
-                  <TextField
-                    label="Serial removed"
-                    value={draft.removedSerial}
-                    autoComplete="off"
-                    onChange={(e) => update({ removedSerial: e.target.value })}
-                    error={fieldError('removedSerial')}
-                    hint={
-                      position.current
-                        ? `Kerfwise has ${position.current.serial} here.`
-                        : 'Kerfwise has no cutter here; leave empty if none was on.'
-                    }
-                  />
-                  <div className="space-y-2">
-                    <TextField
-                      label="Reason for the change"
-                      value={draft.changeReason}
-                      onChange={(e) => update({ changeReason: e.target.value })}
-                      error={fieldError('changeReason')}
-                    />
-                    <div className="flex flex-wrap gap-2">
-                      {quickReasons.map((r) => (
-                        <button
-                          key={r}
-                          type="button"
-                          onClick={() => update({ changeReason: r })}
-                          className="min-h-touch rounded-md border-2 border-basalt-300 bg-basalt-50 px-3 font-semibold"
-                        >
-                          {r}
-                        </button>
-                      ))}
-                    </div>
+              <Controller
+                control={control}
+                name="action"
+                render={({ field }) => (
+                  <div role="group" aria-label="Action" className="grid grid-cols-2 gap-2">
+                    <Toggle pressed={field.value === 'none'} onToggle={() => field.onChange('none')}>
+                      No change
+                    </Toggle>
+                    <Toggle pressed={field.value === 'changed'} onToggle={() => field.onChange('changed')}>
+                      Cutter changed
+                    </Toggle>
                   </div>
+                )}
+              />
+              {action === 'changed' && (
+                <div className="grid gap-4 md:grid-cols-2">
+                  <Controller
+                    control={control}
+                    name="removedSerial"
+                    render={({ field }) => (
+                      <TextField
+                        label="Serial removed"
+                        ref={field.ref}
+                        name={field.name}
+                        value={field.value}
+                        autoComplete="off"
+                        onChange={(e) => field.onChange(e.target.value)}
+                        onBlur={field.onBlur}
+                        error={fieldError('removedSerial')}
+                        hint={
+                          position.current
+                            ? `Kerfwise has ${position.current.serial} here.`
+                            : 'Kerfwise has no cutter here; leave empty if none was on.'
+                        }
+                      />
+                    )}
+                  />
+                  <Controller
+                    control={control}
+                    name="changeReason"
+                    render={({ field }) => (
+                      <div className="space-y-2">
+                        <TextField
+                          label="Reason for the change"
+                          ref={field.ref}
+                          name={field.name}
+                          value={field.value}
+                          onChange={(e) => field.onChange(e.target.value)}
+                          onBlur={field.onBlur}
+                          error={fieldError('changeReason')}
+                        />
+                        <div className="flex flex-wrap gap-2">
+                          {quickReasons.map((r) => (
+                            <button
+                              key={r}
+                              type="button"
+                              onClick={() => field.onChange(r)}
+                              className="min-h-touch rounded-md border-2 border-basalt-300 bg-basalt-50 px-3 font-semibold"
+                            >
+                              {r}
+                            </button>
+                          ))}
+                        </div>
+                      </div>
+                    )}
+                  />
                   <div className="md:col-span-2">
-                    <CutterPicker
-                      cutters={fittingCutters}
-                      value={draft.fitted}
-                      onChange={(fitted) => update({ fitted })}
-                      error={fieldError('fitted')}
+                    <Controller
+                      control={control}
+                      name="fitted"
+                      render={({ field }) => (
+                        <CutterPicker cutters={fittingCutters} value={field.value} onChange={field.onChange} error={fieldError('fitted')} />
+                      )}
                     />
                   </div>
                 </div>
@@ -322,14 +375,24 @@ export function EntryForm(props: Props) {
         </fieldset>
 
         <fieldset disabled={readOnly || saving} className="grid gap-6 md:grid-cols-2">
-          <NoteField value={draft.note} onChange={(note) => update({ note })} error={fieldError('note')} />
-          <Photos
-            projectId={projectId}
-            files={draft.photos}
-            storedIds={stored?.photoIds ?? []}
-            waiting={props.waitingPhotos}
-            onFiles={(photos) => update({ photos })}
-            error={fieldError('photos')}
+          <Controller
+            control={control}
+            name="note"
+            render={({ field }) => <NoteField value={field.value} onChange={field.onChange} error={fieldError('note')} />}
+          />
+          <Controller
+            control={control}
+            name="photos"
+            render={({ field }) => (
+              <Photos
+                projectId={projectId}
+                files={field.value}
+                storedIds={stored?.photoIds ?? []}
+                waiting={props.waitingPhotos}
+                onFiles={field.onChange}
+                error={fieldError('photos')}
+              />
+            )}
           />
         </fieldset>
       </form>
@@ -356,8 +419,6 @@ export function EntryForm(props: Props) {
     </>
   );
 }
-
-const knownPaths = ['wearMm', 'conditions', 'removedSerial', 'fitted', 'changeReason', 'note', 'photos'];
 
 function NavButton({
   onClick,

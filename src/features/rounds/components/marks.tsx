@@ -55,9 +55,19 @@ export const ChangeMark = ({ className }: { className?: string }) => (
   </Svg>
 );
 
+/** One entry laid over another: the fitter's entry for the position was overtaken by another tablet's (decision 42). */
+export const OvertakenMark = ({ className }: { className?: string }) => (
+  <Svg className={className}>
+    <rect x="2" y="6" width="8" height="8" rx="1" />
+    <rect x="6" y="2" width="8" height="8" rx="1" fill="currentColor" />
+  </Svg>
+);
+
 /** Flags shown as small badges with their own background, readable on light and dark tiles alike. */
 export const overLimitBadge = 'bg-alarm-500 text-white';
 export const changeBadge = 'bg-caution-500 text-basalt-950';
+/** Square, unlike the round flags: it tells of another fitter's entry, not of the disc. */
+export const overtakenBadge = 'rounded-sm bg-basalt-950 text-white';
 
 export function Legend() {
   const item = (mark: ReactNode, text: string) => (
@@ -92,6 +102,12 @@ export function Legend() {
       {item(<DraftMark />, 'Edited, not saved')}
       {item(badge(overLimitBadge, <OverLimitMark className="h-3 w-3" />), 'Over limit')}
       {item(badge(changeBadge, <ChangeMark className="h-3.5 w-3.5" />), 'Needs a change')}
+      {item(
+        <span className={`inline-flex h-5 w-5 items-center justify-center ${overtakenBadge}`}>
+          <OvertakenMark className="h-3.5 w-3.5" />
+        </span>,
+        'Your entry overtaken by another tablet',
+      )}
     </ul>
   );
 }

@@ -2,7 +2,18 @@ import { useEffect, useRef, type ReactNode } from 'react';
 import { conditionNeedsChange, wearState } from '../../../../shared/cutters';
 import type { RoundEntry, RoundPosition } from '../api';
 import type { QueuedEntry } from '../../../lib/outbox';
-import { changeBadge, ChangeMark, DoneMark, DraftMark, overLimitBadge, OverLimitMark, RefusedMark, WaitingMark } from './marks';
+import {
+  changeBadge,
+  ChangeMark,
+  DoneMark,
+  DraftMark,
+  overLimitBadge,
+  OverLimitMark,
+  overtakenBadge,
+  OvertakenMark,
+  RefusedMark,
+  WaitingMark,
+} from './marks';
 
 export type PositionState = 'todo' | 'saved' | 'waiting' | 'refused';
 
@@ -12,6 +23,8 @@ export interface PositionMark {
   needsChange: boolean;
   /** The fitter changed something on the screen and has not saved it. */
   edited: boolean;
+  /** This fitter's entry for the position was overtaken by another's later one: who overtook it; null when not. */
+  overtakenBy: string | null;
 }
 
 /**
@@ -24,14 +37,15 @@ export function positionMark(
   stored: RoundEntry | undefined,
   queued: QueuedEntry | undefined,
   edited: boolean,
+  overtakenBy: string | null = null,
 ): PositionMark {
   if (queued) {
     const { overLimit } = wearState(queued.body.wearMm, position.wearLimitMm);
     const needsChange = queued.body.action === 'none' && (overLimit || conditionNeedsChange(queued.body.conditions));
-    return { state: queued.state === 'attention' ? 'refused' : 'waiting', overLimit, needsChange, edited };
+    return { state: queued.state === 'attention' ? 'refused' : 'waiting', overLimit, needsChange, edited, overtakenBy };
   }
-  if (stored) return { state: 'saved', overLimit: stored.overLimit, needsChange: stored.needsChange, edited };
-  return { state: 'todo', overLimit: false, needsChange: false, edited };
+  if (stored) return { state: 'saved', overLimit: stored.overLimit, needsChange: stored.needsChange, edited, overtakenBy };
+  return { state: 'todo', overLimit: false, needsChange: false, edited, overtakenBy };
 }
 
 const stateWords: Record<PositionState, string> = {
@@ -81,6 +95,7 @@ export function PositionStrip({ positions, marks, currentId, onPick, grid }: Pro
           m.overLimit && 'over the wear limit',
           m.needsChange && 'needs a change',
           m.edited && 'edited, not saved',
+          m.overtakenBy != null && `your entry overtaken by ${m.overtakenBy}`,
         ]
           .filter(Boolean)
           .join(', ');
@@ -109,6 +124,14 @@ export function PositionStrip({ positions, marks, currentId, onPick, grid }: Pro
                   className={`absolute -right-1 -top-1 inline-flex h-[18px] w-[18px] items-center justify-center rounded-full ring-2 ring-white ${overLimitBadge}`}
                 >
                   <OverLimitMark className="h-2.5 w-2.5" />
+                </span>
+              )}
+              {m.overtakenBy != null && (
+                <span
+                  data-mark="overtaken"
+                  className={`absolute -bottom-1.5 left-1/2 inline-flex h-4 w-4 -translate-x-1/2 items-center justify-center ring-2 ring-white ${overtakenBadge}`}
+                >
+                  <OvertakenMark className="h-3 w-3" />
                 </span>
               )}
               {m.needsChange && (

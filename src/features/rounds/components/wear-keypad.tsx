@@ -1,4 +1,4 @@
-import { useEffect, useId, useRef, type ReactNode } from 'react';
+import { useEffect, useId, useRef, type ReactNode, type Ref } from 'react';
 import { Toggle } from './toggle';
 
 /** Wear as the fitter enters it: up to three digits, a point and one decimal. */
@@ -31,12 +31,14 @@ interface Props {
   onChange: (patch: { wearText?: string; notMeasured?: boolean }) => void;
   error?: string;
   disabled?: boolean;
+  /** Also given the input (e.g. a form library's ref, to focus the field that needs attention). */
+  inputRef?: Ref<HTMLInputElement>;
   /** Under the keypad: e.g. the "confirm as re-measured" choice. */
   children?: ReactNode;
 }
 
 /** Radial wear in mm with one decimal: a large readout, an on-screen keypad for gloved hands, and "not measured". */
-export function WearKeypad({ text, notMeasured, onChange, error, disabled, children }: Props) {
+export function WearKeypad({ text, notMeasured, onChange, error, disabled, inputRef, children }: Props) {
   const id = useId();
   const input = useRef<HTMLInputElement>(null);
   // When the previous position's form went away with the focus in it, keyboard users continue here.
@@ -53,7 +55,11 @@ export function WearKeypad({ text, notMeasured, onChange, error, disabled, child
         className={`flex items-center rounded-md border-[3px] bg-white px-3 focus-within:border-ember-500 ${error ? 'border-alarm-500' : 'border-basalt-700'}`}
       >
         <input
-          ref={input}
+          ref={(el) => {
+            input.current = el;
+            if (typeof inputRef === 'function') inputRef(el);
+            else if (inputRef) inputRef.current = el;
+          }}
           id={id}
           // The keypad below replaces the system keyboard on a tablet; a hardware keyboard types directly.
           inputMode="none"

@@ -84,8 +84,15 @@ export function RoundRoute() {
   const queuedByPosition = new Map<string, QueuedEntry>();
   for (const i of roundItems) if (i.kind === 'entry') queuedByPosition.set(i.positionId, i); // in queue order: the newest wins
   const storedByPosition = new Map(entries.map((e) => [e.positionId, e]));
+  // The caller's entries overtaken in this round (newest first): who overtook each position's.
+  const overtakenBy = new Map<string, string>();
+  for (const o of overtaken.all)
+    if (o.roundId === roundId && !overtakenBy.has(o.positionId)) overtakenBy.set(o.positionId, o.byName ?? 'another user');
   const marks = new Map(
-    positions.map((p) => [p.id, positionMark(p, storedByPosition.get(p.id), queuedByPosition.get(p.id), p.id in drafts)]),
+    positions.map((p) => [
+      p.id,
+      positionMark(p, storedByPosition.get(p.id), queuedByPosition.get(p.id), p.id in drafts, overtakenBy.get(p.id) ?? null),
+    ]),
   );
 
   if (positions.length === 0) {
@@ -227,6 +234,7 @@ export function RoundRoute() {
         waitingPhotos={roundItems.filter((i) => i.kind === 'photo' && i.positionId === position.id).length}
         storeCutters={storeCutters.filter((c) => ![...queuedByPosition.values()].some((q) => q.body.fitted?.serial === c.serial))}
         draft={drafts[position.id] ?? draftFrom(position, storedByPosition.get(position.id), queuedByPosition.get(position.id))}
+        edited={position.id in drafts}
         onDraft={(d) => setDrafts((all) => ({ ...all, [position.id]: d }))}
         readOnly={readOnly}
         onSaved={(refused) => {
