@@ -20,6 +20,8 @@ if ('serviceWorker' in navigator && import.meta.env.PROD) {
 // The data last synced is restored before the router's first loaders read it, so a cold start offline shows the drive.
 await restoreAndPersist(queryClient);
 startOutbox(queryClient);
+// What a round needs is read while online and kept on the device, screens opened or not.
+void import('./app/offline-data').then((m) => m.keepRoundDataOnDevice(queryClient));
 const { router } = await import('./app/router');
 
 function Root() {
