@@ -3,7 +3,8 @@
  * round close is written to IndexedDB before it is sent, so a dropped connection, a closed tab, a
  * reload or a cold start loses nothing. One sender per page, started with the app (not by a
  * screen), works through the queue in order — at start, on reconnect, every 10 s while items wait,
- * and when Background Sync wakes the page; the server stores each key once, so sending again is
+ * and when Background Sync fires (with no Kerfwise window visible the service worker sends the
+ * same queue itself, src/sw.ts); the server stores each key once, so sending again is
  * always safe. Each item belongs to the user who made it and is sent only while that user is
  * signed in (a 401 keeps it waiting on the device).
  */
