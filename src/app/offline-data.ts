@@ -18,6 +18,9 @@ import { stopQueries } from '../features/stops/api';
 /** How often the data is read again while the app is open and online. */
 export const OFFLINE_REFRESH_MS = 5 * 60_000;
 
+/** A position's id (its detail query's last key); the layout's other keys are words ('history', 'remaining'). */
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
 let running: Promise<void> | null = null;
 
 /** Reads what a round needs for every drive where the signed-in user records rounds (never throws). */
@@ -38,12 +41,22 @@ export function refreshOfflineData(queryClient: QueryClient): Promise<void> {
           prefetch(layoutQueries.history(id)),
           prefetch(roundQueries.inStore(id)),
           prefetch(stopQueries.crews(id)),
-          queryClient.fetchQuery(roundQueries.list(id)).then((rounds) =>
-            Promise.all(
-              // The open rounds, and the newest one (a round started offline takes its positions and last wear).
-              rounds.filter((r, i) => r.closedAt == null || i === 0).map((r) => prefetch(roundQueries.detail(id, r.id))),
-            ),
-          ),
+          // Positions opened on this device before keep their whole history, read again too (the rest start from `history`).
+          ...queryClient
+            .getQueryCache()
+            .findAll({ queryKey: layoutQueries.all(id) })
+            .map((q) => q.queryKey[3])
+            .filter((positionId): positionId is string => typeof positionId === 'string' && UUID.test(positionId))
+            .map((positionId) => prefetch(layoutQueries.detail(id, positionId))),
+          queryClient
+            .fetchQuery(roundQueries.list(id))
+            .then((rounds) =>
+              Promise.all(
+                // The open rounds, and the newest one (a round started offline takes its positions and last wear).
+                rounds.filter((r, i) => r.closedAt == null || i === 0).map((r) => prefetch(roundQueries.detail(id, r.id))),
+              ),
+            )
+            .catch(() => undefined), // this drive's rounds stay as last synced; the other drives go on
         ]);
       }
     } catch {
