@@ -7,19 +7,29 @@ import { createRoot } from 'react-dom/client';
 import { RouterProvider } from 'react-router';
 import { registerSW } from 'virtual:pwa-register';
 import { AppProvider } from './app/provider';
-import { offerUpdate, UpdateBanner } from './components/layout/update-banner';
+import { applyWaitingUpdate, offerUpdate, UPDATE_CHECK_MS, UpdateBanner } from './components/layout/update-banner';
 import { startOutbox } from './lib/outbox';
 import { restoreAndPersist } from './lib/persisted-cache';
 import { queryClient } from './lib/query-client';
 
 // The service worker makes the app open with no network; a new version waits for "Reload to update" (decision 42).
 if ('serviceWorker' in navigator && import.meta.env.PROD) {
-  const update = registerSW({ onNeedRefresh: () => offerUpdate(() => void update(true)) });
+  registerSW({
+    onNeedRefresh: () => offerUpdate(() => void applyWaitingUpdate()),
+    // A tablet keeps the app open for days: look for a new version now and then, not only at page loads.
+    onRegisteredSW: (_url, registration) =>
+      registration &&
+      window.setInterval(() => {
+        if (navigator.onLine) void registration.update().catch(() => undefined);
+      }, UPDATE_CHECK_MS),
+  });
 }
 
 // The data last synced is restored before the router's first loaders read it, so a cold start offline shows the drive.
 await restoreAndPersist(queryClient);
 startOutbox(queryClient);
+// What a round needs is read while online and kept on the device, screens opened or not.
+void import('./app/offline-data').then((m) => m.keepRoundDataOnDevice(queryClient));
 const { router } = await import('./app/router');
 
 function Root() {

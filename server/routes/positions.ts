@@ -8,6 +8,8 @@ import {
   type LayoutSaved,
   type Measurement,
   type PositionDetail,
+  type PositionHistories,
+  positionHistoryQuerySchema,
   type PositionInput,
 } from '../../shared/schemas/cutterhead';
 import type { Sendable } from '../../shared/schemas/wire';
@@ -128,6 +130,68 @@ positionsRouter.post('/import', requireProject('layout.edit'), async (req, res) 
   reply<LayoutSaved>(res, 200, {
     ...saved,
     warnings: unusedColumnWarnings(result.unusedColumns, { what: 'a cutterhead layout', canMap: false }),
+  });
+});
+
+/**
+ * Every position of the drive with its recent history — fitted periods, the newest `last`
+ * measurements and their photos' ids — in one read of four queries, so a tablet keeps every
+ * position's history for offline use without 80 requests (decision 42). Registered before
+ * `/:positionId`, which would otherwise take "history" for an id.
+ */
+positionsRouter.get('/history', requireProject('layout.read'), async (req, res) => {
+  const projectId = idParam(req.params, 'projectId', 'That project');
+  const { last } = positionHistoryQuerySchema.parse(req.query);
+  const readAt = new Date().toISOString();
+  const rows = await db.select().from(positions).where(eq(positions.projectId, projectId)).orderBy(asc(positions.number));
+  const periods = await db
+    .select({ fitting: fittings, serial: cutters.serial })
+    .from(fittings)
+    .innerJoin(cutters, eq(cutters.id, fittings.cutterId))
+    .innerJoin(positions, eq(positions.id, fittings.positionId))
+    .where(eq(positions.projectId, projectId))
+    .orderBy(asc(fittings.fittedAt));
+  // The same columns as GET /:positionId, the newest `last` per position, each with its position's total.
+  const measurements = await db.execute<Sendable<Measurement> & { positionId: string; total: number; newest: string }>(sql`
+    select * from (
+      select e.id, e.wear_mm as "wearMm", e.conditions, e.action, e.note, e.remeasured, e.recorded_at as "recordedAt",
+             r.started_at as "roundAt", r.chainage_m as "chainageM", r.ring_number as "ringNumber", e.fitting_id as "fittingId",
+             c.serial, rc.serial as "removedSerial", fc.serial as "fittedSerial", e.change_reason as "changeReason",
+             e.position_id as "positionId",
+             (count(*) over (partition by e.position_id))::int as total,
+             row_number() over (partition by e.position_id order by r.started_at desc, e.recorded_at desc) as newest
+      from inspection_entries e
+      join inspection_rounds r on r.id = e.round_id
+      join positions p on p.id = e.position_id
+      left join fittings f on f.id = e.fitting_id
+      left join cutters c on c.id = f.cutter_id
+      left join cutters rc on rc.id = e.removed_cutter_id
+      left join cutters fc on fc.id = e.fitted_cutter_id
+      where p.project_id = ${projectId}
+    ) m
+    where m.newest <= ${last}
+    order by m."roundAt", m."recordedAt"`);
+  const photoRows = await db
+    .select({ id: photos.id, entryId: photos.entryId, createdAt: photos.createdAt, mimeType: photos.mimeType })
+    .from(photos)
+    .innerJoin(inspectionEntries, eq(inspectionEntries.id, photos.entryId))
+    .innerJoin(positions, eq(positions.id, inspectionEntries.positionId))
+    .where(eq(positions.projectId, projectId))
+    .orderBy(asc(photos.createdAt));
+  reply<PositionHistories>(res, 200, {
+    readAt,
+    last,
+    positions: rows.map((position) => {
+      const own = measurements.rows.filter((m) => m.positionId === position.id);
+      const ownIds = new Set(own.map((m) => m.id));
+      return {
+        position,
+        periods: periods.filter((p) => p.fitting.positionId === position.id).map((p) => ({ ...p.fitting, serial: p.serial })),
+        measurements: own.map(({ positionId: _p, total: _t, newest: _n, ...m }) => m),
+        photos: photoRows.filter((ph) => ownIds.has(ph.entryId)),
+        olderMeasurements: own.length === 0 ? 0 : own[0].total - own.length,
+      };
+    }),
   });
 });
 

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { positionClasses } from '../cutters';
 import type { DiscCondition, PositionClass } from '../cutters';
+import { wholeNumberText } from './fields';
 
 const num = (label: string) =>
   z.coerce.number({ message: `${label} must be a number.` }).refine(Number.isFinite, `${label} must be a number.`);
@@ -97,6 +98,32 @@ export interface PositionDetail {
   periods: FittedPeriod[];
   measurements: Measurement[];
   photos: { id: string; entryId: string; createdAt: string; mimeType: string }[];
+}
+
+/** The most measurements per position GET …/positions/history answers. */
+export const POSITION_HISTORY_MAX = 200;
+
+/** GET …/positions/history?last=N: the newest N measurements of every position (named by the caller, 1–200). */
+export const positionHistoryQuerySchema = z.object({
+  last: wholeNumberText('The number of measurements per position (?last=)', POSITION_HISTORY_MAX).refine(
+    (n) => n >= 1,
+    'The number of measurements per position (?last=) must be at least 1.',
+  ),
+});
+
+/** One position's recent history: as GET …/positions/:id answers, with only the newest measurements (and their photos). */
+export interface PositionHistory extends PositionDetail {
+  /** Older measurements left out of this answer (0: the whole history is here). */
+  olderMeasurements: number;
+}
+
+/** Every position of a drive with its recent history, in one read (kept on the tablet for offline use, decision 42). */
+export interface PositionHistories {
+  /** When the server read it (ISO). */
+  readAt: string;
+  /** The newest measurements kept per position. */
+  last: number;
+  positions: PositionHistory[];
 }
 
 export interface LayoutSaved {

@@ -51,8 +51,9 @@ export async function restoreAndPersist(queryClient: QueryClient): Promise<void>
     maxAge: PERSIST_MAX_AGE_MS,
     buster: __KERFWISE_BUILD__,
     dehydrateOptions: {
-      // Only answers that were read successfully; "nobody signed in" is never kept (the next start asks the server).
-      shouldDehydrateQuery: (q: Query) => q.state.status === 'success' && !(JSON.stringify(q.queryKey) === meKey && q.state.data == null),
+      // Every answer the device holds, including one whose refetch failed with no network (its last synced
+      // data must survive the next cold start); "nobody signed in" is never kept (the next start asks the server).
+      shouldDehydrateQuery: (q: Query) => q.state.data !== undefined && !(JSON.stringify(q.queryKey) === meKey && q.state.data == null),
     },
   };
   await Promise.race([persistQueryClientRestore(options), new Promise((r) => setTimeout(r, 3000))]).catch(() => undefined);

@@ -109,6 +109,8 @@ export const routeTable: RouteCase[] = [
 
   // Cutterhead layout
   { method: 'get', path: '/api/projects/:projectId/positions', roles: everyone },
+  // Every position's recent history in one read (kept on the tablet for offline use, decision 42).
+  { method: 'get', path: '/api/projects/:projectId/positions/history?last=5', roles: everyone },
   { method: 'get', path: '/api/projects/:projectId/positions/:positionId', roles: everyone },
   {
     method: 'put',

@@ -74,12 +74,58 @@ async function installed(page: Page) {
   await page.waitForTimeout(1500);
 }
 
+/** Whether the query cache saved on the device (IndexedDB kerfwise-cache) holds every one of these texts. */
+async function keptOnDevice(page: Page, texts: string[]): Promise<boolean> {
+  const saved = await page.evaluate(
+    () =>
+      new Promise<string>((resolve) => {
+        const open = indexedDB.open('kerfwise-cache');
+        open.onerror = () => resolve('');
+        open.onsuccess = () => {
+          try {
+            const get = open.result.transaction('queries').objectStore('queries').get('kerfwise-query-cache');
+            get.onsuccess = () => resolve(String(get.result ?? ''));
+            get.onerror = () => resolve('');
+          } catch {
+            resolve('');
+          }
+        };
+      }),
+  );
+  return texts.every((t) => saved.includes(t));
+}
+
+/**
+ * The "as last synced at <site time>" note, its time within the online visit (to the minute).
+ * Reference: the browser's Intl in the site's zone (sv-SE formats as YYYY-MM-DD HH:mm) — not
+ * shared/site-time.ts, which the screen uses.
+ */
+async function expectLastSynced(page: Page, timeZone: string, from: number, until: number) {
+  const note = page.getByTestId('last-synced');
+  await expect.poll(() => note.count(), { timeout: 15_000 }).toBe(1);
+  const text = (await note.textContent()) ?? '';
+  const m = text.match(/as last synced at (\d{4}-\d{2}-\d{2} \d{2}:\d{2}) (\S+)\./);
+  expect(m, text).not.toBeNull();
+  expect(m![2]).toBe(timeZone);
+  const fmt = new Intl.DateTimeFormat('sv-SE', {
+    timeZone,
+    year: 'numeric',
+    month: '2-digit',
+    day: '2-digit',
+    hour: '2-digit',
+    minute: '2-digit',
+  });
+  expect(m![1] >= fmt.format(from)).toBe(true);
+  expect(m![1] <= fmt.format(until)).toBe(true);
+}
+
 it(
-  'cold start offline: the shell, the drive and the open round load; 10 positions and a photo survive two reloads and arrive exactly once',
+  'cold start offline: the shell, the drive, the open round, the cutterhead picture and a position never opened online load; 10 positions and a photo survive two reloads and arrive exactly once',
   { timeout: 180_000 },
   async () => {
-    const { project, fitter, round } = await driveWithOpenRound(10);
+    const { project, fitter, round, setup } = await driveWithOpenRound(10);
     const roundUrl = `/projects/${project.id}/rounds/${round.id}`;
+    const onlineFrom = Date.now();
 
     // In the office, online: sign in, look at the drive and the open round.
     const context: BrowserContext = await browser.newContext({ viewport: { width: 768, height: 1024 } });
@@ -93,6 +139,10 @@ it(
     await first.reload(); // the second load is controlled by the service worker
     await atPosition(first, 1);
     await installed(first);
+    // Kept on the device without opening them: every position's history with the layout (src/app/offline-data.ts).
+    await expect.poll(() => keptOnDevice(first, [`"positions","history"`, setup.fitted[2].serial]), { timeout: 20_000 }).toBe(true);
+    await first.waitForTimeout(1000); // the persister writes at most every 0.5 s
+    const onlineUntil = Date.now();
     await first.close();
 
     // At the face: no network, the app opened from scratch.
@@ -103,6 +153,19 @@ it(
     await expect.poll(() => group.isVisible(), { timeout: 20_000 }).toBe(true);
     await group.click();
     await page.waitForURL(/\/rounds$/);
+
+    // The cutterhead picture and a position's history, never opened online, show what was last synced.
+    await page.goto(`${app.url}/projects/${project.id}/cutterhead`);
+    const picture = page.getByRole('group', { name: /^Cutterhead seen from the face/ });
+    await expect.poll(() => picture.getByRole('link').count(), { timeout: 20_000 }).toBe(10);
+    await expectLastSynced(page, project.siteTimeZone, onlineFrom, onlineUntil);
+    await picture.getByRole('link', { name: /^Position 3:/ }).click();
+    await expect.poll(() => page.getByRole('heading', { level: 1 }).textContent(), { timeout: 15_000 }).toBe('Position 3');
+    await expectLastSynced(page, project.siteTimeZone, onlineFrom, onlineUntil);
+    // The fixture's serial on position 3 and its one earlier measurement, 8 mm (tests/support/rounds-fixtures.ts).
+    expect(await page.getByRole('link', { name: setup.fitted[2].serial, exact: true }).count()).toBeGreaterThan(0);
+    expect(await page.getByRole('cell', { name: '8.0', exact: true }).count()).toBe(1);
+
     await page.goto(`${app.url}${roundUrl}`);
     await atPosition(page, 1);
 

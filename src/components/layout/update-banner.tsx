@@ -15,6 +15,29 @@ const subscribe = (l: () => void) => {
   return () => void listeners.delete(l);
 };
 
+/**
+ * Switches to the waiting version and reloads once it controls the page. Not left to the PWA
+ * plugin's `updateSW(true)`: that reloads only in a page that was already controlled when it
+ * loaded, so a fitter who first opened the app in this very tab pressed the button and nothing
+ * happened (found by tests/e2e/service-worker.test.ts).
+ */
+export async function applyWaitingUpdate() {
+  let reloading = false;
+  const reload = () => {
+    if (reloading) return;
+    reloading = true;
+    window.location.reload();
+  };
+  navigator.serviceWorker.addEventListener('controllerchange', reload);
+  const registration = await navigator.serviceWorker.getRegistration();
+  // Another tab may have switched already: then this page only needs the reload.
+  if (registration?.waiting) registration.waiting.postMessage({ type: 'SKIP_WAITING' });
+  else reload();
+}
+
+/** How often an open app asks the server for a new version (besides every page load). */
+export const UPDATE_CHECK_MS = 30 * 60_000;
+
 /** Round screens: a reload there would break a fitter's flow, so the offer waits until they leave (decision 42). */
 export const isRoundScreen = (pathname: string) =>
   matchPath(paths.rounds.pattern, pathname) != null || matchPath(paths.round.pattern, pathname) != null;

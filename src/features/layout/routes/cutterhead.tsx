@@ -12,6 +12,7 @@ import { formatSiteDate } from '../../../../shared/site-time';
 import { projectQueries } from '../../projects/api';
 import { layoutQueries, type LayoutPosition } from '../api';
 import { CutterheadCaution } from '../../../components/ui/cutterhead-caution';
+import { LastSynced } from '../../../components/ui/last-synced';
 import { CutterheadPicture, remainingBand, remainingLegend, WearLegend, wearBand } from '../components/cutterhead-picture';
 
 const col = createColumnHelper<LayoutPosition>();
@@ -20,7 +21,7 @@ const linkClass = 'font-semibold text-ember-700 underline underline-offset-2';
 export function CutterheadRoute() {
   const { projectId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: positions } = useSuspenseQuery(layoutQueries.list(projectId));
+  const { data: positions, dataUpdatedAt } = useSuspenseQuery(layoutQueries.list(projectId));
   const [view, setView] = useState<'wear' | 'forecast'>('wear');
   const remaining = useQuery({ ...layoutQueries.remaining(projectId), enabled: view === 'forecast' });
   const forecastBandOf = useCallback(
@@ -83,6 +84,7 @@ export function CutterheadRoute() {
   return (
     <Page title="Cutterhead">
       <CutterheadCaution />
+      <LastSynced at={dataUpdatedAt} timeZone={project.siteTimeZone} />
       {positions.length === 0 ? (
         <Alert title="No layout yet">
           {roleCan(project.role, 'layout.edit') ? (

@@ -6,6 +6,7 @@ import { CartesianGrid, Legend, Line, LineChart, ReferenceLine, ResponsiveContai
 import { conditionLabel, positionClassLabels, type DiscCondition } from '../../../../shared/cutters';
 import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
+import { LastSynced, useOnline } from '../../../components/ui/last-synced';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
 import { formatChainage } from '../../../../shared/domain/chainage';
@@ -79,8 +80,11 @@ function WearChart({ detail, axis, timeZone, reversed }: { detail: PositionDetai
 export function PositionRoute() {
   const { projectId = '', positionId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: detail } = useSuspenseQuery(layoutQueries.detail(projectId, positionId));
+  const { data: detail, dataUpdatedAt } = useSuspenseQuery(layoutQueries.detail(projectId, positionId));
+  // Offline, a position never opened on this device shows the recent history kept for every position (decision 42).
+  const olderNotKept = 'olderMeasurements' in detail ? detail.olderMeasurements : 0;
   const [axis, setAxis] = useState<Axis>('date');
+  const online = useOnline();
   const tz = project.siteTimeZone;
   const { position, periods, measurements, photos } = detail;
   const current = periods.find((p) => p.removedAt == null);
@@ -179,6 +183,16 @@ export function PositionRoute() {
         </Link>
       }
     >
+      <LastSynced
+        at={dataUpdatedAt}
+        timeZone={tz}
+        always={olderNotKept > 0}
+        more={
+          olderNotKept > 0
+            ? `This device keeps the newest ${detail.measurements.length} measurements; ${olderNotKept} older ones show when the network is back.`
+            : undefined
+        }
+      />
       <Panel title="The position">
         <dl className="grid gap-x-6 gap-y-2 sm:grid-cols-[max-content_1fr]">
           <dt className="font-semibold">Class</dt>
@@ -258,6 +272,10 @@ export function PositionRoute() {
       <Panel title="Photos">
         {photos.length === 0 ? (
           <p className="text-basalt-600">No photos of this position yet.</p>
+        ) : !online ? (
+          <p className="text-basalt-600">
+            {photos.length} photo(s). Photos stay on the server, not on this device; they show when the network is back.
+          </p>
         ) : (
           <ul className="grid grid-cols-2 gap-3 sm:grid-cols-3 md:grid-cols-4">
             {photos.map((photo) => {
