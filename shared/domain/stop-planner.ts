@@ -81,7 +81,7 @@
 import type { DriveDirection, PositionClass } from './forecast';
 import { fixedIntervalPlan, latestChangePlan, ownLatestChains, practicePlan } from './stop-planner-steps/baselines';
 import { searchBounds } from './stop-planner-steps/bounds';
-import { lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
+import { improveStops, lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
 import { prepare, pricePlan, validate } from './stop-planner-steps/model';
 import { exactSearch } from './stop-planner-steps/search';
 
@@ -210,6 +210,8 @@ export interface PlanStopsOptions {
   boundIterations?: number;
   /** The bound stops improving once the plan is within this share of it. */
   targetGap?: number;
+  /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
+  localSearchMs?: number;
   rules?: ComparisonRules;
 }
 
@@ -224,6 +226,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     maxStates = Infinity,
     boundIterations = BOUND_ITERATIONS,
     targetGap = TARGET_GAP,
+    localSearchMs = 0,
     rules = DEFAULT_COMPARISON_RULES,
   } = options;
   if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
@@ -256,6 +259,17 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
     if (searched.cost.totalH < best.cost.totalH) best = searched;
+  }
+  // Step 5: local search over stop sets from the best plan, each set priced exactly.
+  const lowerSoFarH = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH);
+  if (!found.complete && localSearchMs > 0 && best.cost.totalH - lowerSoFarH > targetGap * lowerSoFarH) {
+    const stopIdx = (s: PlannedStop) => prep.aheadM.indexOf(s.aheadM);
+    const improved = improveStops(
+      prep,
+      best.stops.map((s) => ({ idx: stopIdx(s), changed: [] })),
+      performance.now() + localSearchMs,
+    );
+    if (improved.totalH < best.cost.totalH - 1e-9) best = pricePlan(prep, improved.plan);
   }
   const totalH = best.cost.totalH;
   const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH));
