@@ -12,14 +12,23 @@
  * Each position's part is a shortest path over the places, solved exactly in O(m) by a dynamic
  * programme with a sliding-window minimum (a ring fitted at a later place reaches at least as
  * far, so the places a ring can be changed from form a window). λ is improved by projected
- * subgradient steps (Polyak step length, halved when the bound stalls; Held, Wolfe & Crowder
+ * subgradient steps (Polyak step length, shrunk when the bound stalls; Held, Wolfe & Crowder
  * 1974; Fisher 1981, "The Lagrangian relaxation method for solving integer programming
- * problems"). Any λ gives a valid bound, so stopping early only makes the bound weaker.
+ * problems"). Any λ ≥ 0 gives a valid bound, so stopping early only makes the bound weaker.
+ *
+ * The multipliers are kept in {λ ≥ 0, Σ_i λ_ij ≤ s_j}: if Σ_i λ_ij > s_j, lowering some λ_ij by
+ * δ ≤ Σ_i λ_ij − s_j raises the stop term by δ and lowers position i's shortest path by at most
+ * δ (its chain pays λ_ij at most once at j), so L does not fall; the best λ lies in the set, and
+ * in it the stop term is 0 (each stop's hours shared among the positions, as in the dual of
+ * facility location). Steps start from the equal share s_j/n and are projected back onto the
+ * set place by place (Euclidean projection onto a capped simplex; Michelot 1986). The best
+ * this can reach is the LP bound of the same formulation (the subproblems are shortest paths,
+ * whose LPs are integral; Geoffrion 1974).
  *
  * Plans from the relaxation: the places the positions' chains use form a stop set; for a fixed
  * stop set the cheapest plan splits into one shortest path per position (the same programme,
- * restricted to those places), so a stop set is priced exactly; stops are then dropped one at a
- * time while that lowers the total (a local search, not a proof).
+ * restricted to those places), so a stop set is priced exactly. A local search over stop sets
+ * (drop, move anywhere, add; best move first) improves a plan within a time budget (not a proof).
  */
 import { lastReachable, type IndexPlan, type Prepared } from './model';
 
