@@ -28,7 +28,7 @@
  * Plans from the relaxation: the places the positions' chains use form a stop set; for a fixed
  * stop set the cheapest plan splits into one shortest path per position (the same programme,
  * restricted to those places), so a stop set is priced exactly. A local search over stop sets
- * (drop, move anywhere, add; best move first) improves a plan within a time budget (not a proof).
+ * (drop, move anywhere, add; the first improving move taken) improves a plan within a time budget (not a proof).
  */
 import { lastReachable, type IndexPlan, type Prepared } from './model';
 
@@ -173,8 +173,9 @@ export function cheapestPlanForStops(prep: Prepared, allowed: Uint8Array): { tot
 
 /**
  * Local search over stop sets, each priced exactly (one cheapest chain per position restricted
- * to the set): drop a stop, move a stop to any other place, add a place, best move first, until
- * none lowers the total or `deadline` (performance.now(), ms) passes. Not a proof: a local optimum.
+ * to the set): drop a stop, move a stop to any other place, add a place, the first move that
+ * lowers the total taken, until none does or `deadline` (performance.now(), ms) passes. Not a
+ * proof: a local optimum.
  */
 export function improveStops(prep: Prepared, plan: IndexPlan, deadline = Infinity): { totalH: number; plan: IndexPlan } {
   const m = prep.aheadM.length;
@@ -198,27 +199,25 @@ export function improveStops(prep: Prepared, plan: IndexPlan, deadline = Infinit
     if (!placed) T[p++] = x;
     return p;
   };
-  for (let improved = true; improved && performance.now() < deadline;) {
-    improved = false;
-    let moveH = bestH - 1e-9 * (1 + bestH);
-    let move: [number, number] | null = null;
-    for (let skip = -1; skip < S.length && performance.now() < deadline; skip++) {
-      for (let x = skip < 0 ? 0 : -1; x < m; x++) {
-        const p = build(skip, x);
-        if (p === 0 && x >= 0) continue;
-        const h = solver.priceStops(T, p);
-        if (h < moveH) {
-          moveH = h;
-          move = [skip, x];
-        }
+  // The first improving move is taken at once (a round over every move can outlast the time
+  // budget on a long drive); the scan goes on from there, stop by stop, "add a place" last
+  // (skip = S.length), and ends after a full round without a move.
+  let sinceMove = 0;
+  for (let skip = 0; sinceMove <= S.length && performance.now() < deadline;) {
+    const drop = skip < S.length ? skip : -1;
+    let moved = false;
+    for (let x = drop < 0 ? 0 : -1; x < m && !moved; x++) {
+      const p = build(drop, x);
+      if (p === 0 && x >= 0) continue;
+      const h = solver.priceStops(T, p);
+      if (h < bestH - 1e-9 * (1 + bestH)) {
+        S = T.slice(0, p);
+        bestH = h;
+        moved = true;
       }
     }
-    if (move !== null) {
-      const p = build(move[0], move[1]);
-      S = T.slice(0, p);
-      bestH = moveH;
-      improved = true;
-    }
+    sinceMove = moved ? 0 : sinceMove + 1;
+    skip = skip + 1 > S.length ? 0 : skip + 1;
   }
   // Keep only the stops the cheapest plan on S uses (the same hours).
   const allowed = new Uint8Array(m);
