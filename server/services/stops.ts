@@ -47,8 +47,10 @@ import { computeForecast } from './forecast';
  */
 /** States the exact stop search may expand in one request (about 1–2 s on the project’s 2-core machine). */
 export const PLANNER_MAX_STATES = 3_000;
-/** Steps of the lower bound per request (about 1 s on the demo drive; `npm run bench`). */
-export const PLANNER_BOUND_ITERATIONS = 300;
+/** Steps of the lower bound per request (about 1.5 s on the demo drive; `npm run bench`; DEVELOPERS.md, decision 48). */
+export const PLANNER_BOUND_ITERATIONS = 600;
+/** Milliseconds of local search over stop sets when the plan is not proven (DEVELOPERS.md, decision 48). */
+export const PLANNER_LOCAL_SEARCH_MS = 500;
 
 export const defaultStopPlanSettings = {
   horizonM: 2000,
@@ -147,6 +149,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   const options = {
     maxStates: PLANNER_MAX_STATES,
     boundIterations: PLANNER_BOUND_ITERATIONS,
+    localSearchMs: PLANNER_LOCAL_SEARCH_MS,
     rules: { changeShare: settings.practiceChangeSharePercent / 100, intervalM: settings.fixedIntervalM },
   };
   const first = await planStopsInWorker(fullInput, options);

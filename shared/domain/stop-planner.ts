@@ -69,6 +69,15 @@
  *
  * Certificate: the Lagrangian bound L ≤ cheapest plan; a plan of H hours is then at most
  * (H − L)/L above the cheapest. When the exact search runs to the end, the plan is proven cheapest.
+ * Order of work: the search's quick pass first (its plan aims the bound's steps), the bound, the
+ * exact search (pruned with the bound's multipliers), then, when nothing proved the plan, a local
+ * search over stop sets, each set priced exactly (./stop-planner-steps/lagrangian.ts).
+ * Where the gap comes from (measured, DEVELOPERS.md decision 48): on the bench drive with wear × 3
+ * the bound was the loose part (converged, it is within 1 % of the plan, and with it the search
+ * proves the plan); on the demo drive the converged bound stays ≈ 19 % under the best plan any of
+ * our methods finds, and on the demo drive cut to 300 m / 450 m (proven optima) it is 1.3 % / 2.1 %
+ * under the optimum: the relaxation itself weakens on long abrasive horizons. A gap of 2 % there
+ * needs a stronger relaxation (valid inequalities, or branching on stops), not more steps.
  *
  * Feasibility: changing every ring at its own latest place (the latest-change plan) is feasible
  * exactly when any plan is; an instance is infeasible exactly when some ring falls due before the
@@ -81,7 +90,7 @@
 import type { DriveDirection, PositionClass } from './forecast';
 import { fixedIntervalPlan, latestChangePlan, ownLatestChains, practicePlan } from './stop-planner-steps/baselines';
 import { searchBounds } from './stop-planner-steps/bounds';
-import { lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
+import { improveStops, lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
 import { prepare, pricePlan, validate } from './stop-planner-steps/model';
 import { exactSearch } from './stop-planner-steps/search';
 
@@ -210,6 +219,8 @@ export interface PlanStopsOptions {
   boundIterations?: number;
   /** The bound stops improving once the plan is within this share of it. */
   targetGap?: number;
+  /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
+  localSearchMs?: number;
   rules?: ComparisonRules;
 }
 
@@ -224,6 +235,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     maxStates = Infinity,
     boundIterations = BOUND_ITERATIONS,
     targetGap = TARGET_GAP,
+    localSearchMs = 0,
     rules = DEFAULT_COMPARISON_RULES,
   } = options;
   if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
@@ -241,21 +253,46 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   let best = [pricePlan(prep, latestChangePlan(chains)), practice, fixedInterval]
     .filter((p): p is StopPlan => p !== null)
     .reduce((a, b) => (b.cost.totalH < a.cost.totalH ? b : a));
-  // Step 3: the lower bound, and plans found from it.
+  // Step 3: the quick pass of the search first, when the bound runs: its plan steers the bound's
+  // step lengths (Polyak steps aim at the best plan's hours; a far target slows the ascent).
+  const bounds = searchBounds(prep);
+  let quickStates = 0;
+  const quickFirst = quickPassStates > 0 && boundIterations > 0 && best.cost.totalH > 0;
+  if (quickFirst) {
+    const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH });
+    quickStates = quick.statesExpanded;
+    if (quick.plan !== null) {
+      const quickPlan = pricePlan(prep, quick.plan);
+      if (quickPlan.cost.totalH < best.cost.totalH) best = quickPlan;
+    }
+  }
+  // Step 4: the lower bound, and plans found from it.
   const relaxed =
     best.cost.totalH > 0 && boundIterations > 0
       ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap })
       : null;
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
-  // Step 4: the exact search, bounded by the best plan so far.
+  // Step 5: the exact search, bounded by the best plan so far.
   const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);
   const restBoundH = relaxed ? lagrangianRestBound(prep, relaxed.lambda) : undefined;
-  const found = proven0
+  const searched0 = proven0
     ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
-    : exactSearch(prep, searchBounds(prep), { quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
+    : exactSearch(prep, bounds, { quickPassStates: quickFirst ? 0 : quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
+  const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates };
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
     if (searched.cost.totalH < best.cost.totalH) best = searched;
+  }
+  // Step 6: local search over stop sets from the best plan, each set priced exactly.
+  const lowerSoFarH = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH);
+  if (!found.complete && localSearchMs > 0 && best.cost.totalH - lowerSoFarH > targetGap * lowerSoFarH) {
+    const stopIdx = (s: PlannedStop) => prep.aheadM.indexOf(s.aheadM);
+    const improved = improveStops(
+      prep,
+      best.stops.map((s) => ({ idx: stopIdx(s), changed: [] })),
+      performance.now() + localSearchMs,
+    );
+    if (improved.totalH < best.cost.totalH - 1e-9) best = pricePlan(prep, improved.plan);
   }
   const totalH = best.cost.totalH;
   const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH));

@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import type { PositionClass } from '../../shared/domain/forecast';
 import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
-import { lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
-import { prepare } from '../../shared/domain/stop-planner-steps/model';
+import { chainSolver, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
+import { prepare, pricePlan } from '../../shared/domain/stop-planner-steps/model';
 
 // All data invented (no real project).
 
@@ -522,4 +522,102 @@ describe('search budget', () => {
     expect(capped.certificate.lowerBoundH).toBeLessThanOrEqual(exact.optimised.cost.totalH + 1e-9);
     expect(capped.optimised.cost.totalH).toBeGreaterThanOrEqual(exact.optimised.cost.totalH - 1e-9);
   }, 120_000);
+});
+
+/**
+ * Position i's least hours when its rings may be changed only at the usable places of bitmask
+ * `allowed`, by brute force: every subset of those places as its change places (written apart
+ * from the planner, like bruteForceMinH). Infinity when no subset keeps every ring in its limit.
+ */
+function bruteForcePositionH(input: StopPlanInput, i: number, allowed: number): number {
+  const places = placesAhead(input);
+  const p = input.positions[i];
+  const v = input.wastedRingLifeHPerMm;
+  const w = places.map((pl) => wearAddedMm(p.wearStretches, pl.aheadM));
+  const wHorizon = wearAddedMm(p.wearStretches, input.horizonM);
+  let best = Infinity;
+  for (let t = allowed; ; t = (t - 1) & allowed) {
+    let budget = p.limitMm - p.wearNowMm;
+    let costH = 0;
+    for (let j = 0; j < places.length && costH < Infinity; j++) {
+      if (!(t & (1 << j))) continue;
+      if (w[j] > budget + EPS) costH = Infinity;
+      else {
+        costH += input.changeHByClass[p.positionClass] + v * (budget - w[j]);
+        budget = w[j] + p.limitMm;
+      }
+    }
+    if (wHorizon <= budget + EPS) best = Math.min(best, costH);
+    if (t === 0) break;
+  }
+  return best;
+}
+
+describe('certificate: bound, stop-set pricing and local search against the brute force', () => {
+  it('prices a stop set exactly: each position as the brute force over the subsets of the set (300 seeded tiny instances)', () => {
+    const rng = mulberry32(20261203);
+    let priced = 0;
+    for (let k = 0; k < 300; k++) {
+      const input = tinyInstance(rng);
+      const prep = prepare(input);
+      const m = prep.aheadM.length;
+      // Usable places are the sorted distinct ones; the tiny instances have distinct places.
+      expect(placesAhead(input).length, `instance ${k}`).toBe(m);
+      const mask = Math.floor(rng() * (1 << m));
+      const S = Int32Array.from({ length: m }, (_, j) => j).filter((j) => (mask >> j) & 1);
+      const solver = chainSolver(prep);
+      for (let i = 0; i < input.positions.length; i++) {
+        const bruteH = bruteForcePositionH(input, i, mask);
+        const h = solver.restricted(i, S, S.length, null);
+        if (bruteH === Infinity) expect(h, `instance ${k} position ${i}`).toBe(Infinity);
+        else expect(h, `instance ${k} position ${i}`).toBeCloseTo(bruteH, 9);
+      }
+      if (solver.priceStops(S, S.length) < Infinity) priced++;
+    }
+    expect(priced).toBeGreaterThanOrEqual(40);
+  });
+
+  it('the bound never exceeds the brute-force optimum; plans from it and from the local search are valid and cost what the brute force allows (300 seeded tiny instances)', () => {
+    const rng = mulberry32(20261204);
+    let fromBound = 0;
+    let improvedByLocal = 0;
+    for (let k = 0; k < 300; k++) {
+      const input = tinyInstance(rng);
+      const bruteH = bruteForceMinH(input);
+      const label = `instance ${k}`;
+      if (bruteH === null) continue;
+      const prep = prepare(input);
+      const upperH = 1e6;
+      for (const iterations of [1, 20, 300]) {
+        const relaxed = lagrangianBound(prep, { iterations, upperH, targetGap: 0 });
+        expect(relaxed.lowerH, label).toBeLessThanOrEqual(bruteH + 1e-9);
+        if (relaxed.plan !== null) {
+          fromBound++;
+          const priced = pricePlan(prep, relaxed.plan);
+          expect(priced.cost.totalH, label).toBeCloseTo(relaxed.planH, 9);
+          expect(replay(input, priced), label).toBeGreaterThanOrEqual(bruteH - 1e-9);
+        }
+      }
+      // Local search from every place as a stop (a valid start whenever any plan is).
+      const start = prep.aheadM.map((_, idx) => ({ idx, changed: [] }));
+      const all = chainSolver(prep).priceStops(
+        Int32Array.from(start, (s) => s.idx),
+        start.length,
+      );
+      const local = improveStops(prep, start);
+      const priced = pricePlan(prep, local.plan);
+      expect(priced.cost.totalH, label).toBeCloseTo(local.totalH, 9);
+      expect(replay(input, priced), label).toBeGreaterThanOrEqual(bruteH - 1e-9);
+      expect(local.totalH, label).toBeLessThanOrEqual(all + 1e-9);
+      if (local.totalH < all - 1e-9) improvedByLocal++;
+      // The planner with the search stopped at once and the local search on: a valid certificate.
+      const r = planStops(input, { maxStates: 0, localSearchMs: 50 });
+      if (!r.feasible) throw new Error(label);
+      expect(r.certificate.lowerBoundH, label).toBeLessThanOrEqual(bruteH + 1e-9);
+      expect(replay(input, r.optimised), label).toBeGreaterThanOrEqual(bruteH - 1e-9);
+      if (r.certificate.proven) expect(r.optimised.cost.totalH, label).toBeCloseTo(bruteH, 9);
+    }
+    expect(fromBound).toBeGreaterThan(100);
+    expect(improvedByLocal).toBeGreaterThan(20);
+  });
 });

@@ -12,16 +12,125 @@
  * Each position's part is a shortest path over the places, solved exactly in O(m) by a dynamic
  * programme with a sliding-window minimum (a ring fitted at a later place reaches at least as
  * far, so the places a ring can be changed from form a window). λ is improved by projected
- * subgradient steps (Polyak step length, halved when the bound stalls; Held, Wolfe & Crowder
+ * subgradient steps (Polyak step length, shrunk when the bound stalls; Held, Wolfe & Crowder
  * 1974; Fisher 1981, "The Lagrangian relaxation method for solving integer programming
- * problems"). Any λ gives a valid bound, so stopping early only makes the bound weaker.
+ * problems"). Any λ ≥ 0 gives a valid bound, so stopping early only makes the bound weaker.
+ *
+ * The multipliers are kept in {λ ≥ 0, Σ_i λ_ij ≤ s_j}: if Σ_i λ_ij > s_j, lowering some λ_ij by
+ * δ ≤ Σ_i λ_ij − s_j raises the stop term by δ and lowers position i's shortest path by at most
+ * δ (its chain pays λ_ij at most once at j), so L does not fall; the best λ lies in the set, and
+ * in it the stop term is 0 (each stop's hours shared among the positions, as in the dual of
+ * facility location). Steps start from the equal share s_j/n and are projected back onto the
+ * set place by place (Euclidean projection onto a capped simplex; Michelot 1986). The best
+ * this can reach is the LP bound of the same formulation (the subproblems are shortest paths,
+ * whose LPs are integral; Geoffrion 1974).
  *
  * Plans from the relaxation: the places the positions' chains use form a stop set; for a fixed
  * stop set the cheapest plan splits into one shortest path per position (the same programme,
- * restricted to those places), so a stop set is priced exactly; stops are then dropped one at a
- * time while that lowers the total (a local search, not a proof).
+ * restricted to those places), so a stop set is priced exactly. A local search over stop sets
+ * (drop, move anywhere, add; the first improving move taken) improves a plan within a time budget (not a proof).
  */
 import { lastReachable, type IndexPlan, type Prepared } from './model';
+
+/**
+ * Position i's cheapest chain: a dynamic programme over the places with a sliding-window
+ * minimum, O(m). Buffers are allocated once per prepared instance and reused (no allocation in
+ * the inner loops; the bound runs it n times per step).
+ */
+export interface ChainSolver {
+  /** Cheapest chain of position i with `extraH[k]` added per change at place k (all places); the chain is written to `out`, its length returned by `length()`. */
+  full(i: number, extraH: Float64Array | null, out: Int32Array | null): number;
+  /** Cheapest chain of position i using only the places `S[0…p)` (increasing); the chain to `out` if given. */
+  restricted(i: number, S: Int32Array, p: number, out: Int32Array | null): number;
+  /** Length of the chain last written to `out`. */
+  length(): number;
+  /** The cheapest plan using only the stops `S[0…p)` (increasing): its hours; `used[k]` = 1 for the stops it uses. */
+  priceStops(S: Int32Array, p: number): number;
+  used: Uint8Array;
+}
+
+export function chainSolver(prep: Prepared): ChainSolver {
+  const m = prep.aheadM.length;
+  const n = prep.input.positions.length;
+  const { done, v } = prep;
+  const r0 = Int32Array.from(prep.startBudgetMm, (b, i) => lastReachable(prep, i, b));
+  const dist = new Float64Array(m);
+  const pred = new Int32Array(m);
+  // leaveH[a] = dist[a] + v·(budget of the ring fitted at a); a monotone deque of places a
+  // (increasing a, increasing leaveH) whose new ring still reaches the place being priced.
+  const leaveH = new Float64Array(m);
+  const deque = new Int32Array(m);
+  const tmp = new Int32Array(m);
+  const used = new Uint8Array(m);
+  let lastLength = 0;
+  // One programme for both: over places S[a] (S null: place a itself).
+  const run = (i: number, extraH: Float64Array | null, S: Int32Array | null, p: number, out: Int32Array | null): number => {
+    lastLength = 0;
+    if (r0[i] === done) return 0;
+    const w = prep.wearAt[i];
+    const reach = prep.reachNew[i];
+    const c = prep.changeH[i];
+    const startH = v * prep.startBudgetMm[i];
+    const vLimitH = v * prep.limitMm[i];
+    const ri = r0[i];
+    let head = 0;
+    let tail = 0;
+    let bestH = Infinity;
+    let bestLast = -1;
+    for (let a = 0; a < p; a++) {
+      const k = S === null ? a : S[a];
+      if (a > 0 && dist[a - 1] < Infinity && reach[S === null ? a - 1 : S[a - 1]] >= k) {
+        const val = leaveH[a - 1];
+        while (tail > head && leaveH[deque[tail - 1]] >= val) tail--;
+        deque[tail++] = a - 1;
+      }
+      while (tail > head && reach[S === null ? deque[head] : S[deque[head]]] < k) head++;
+      let fromH = k <= ri ? startH : Infinity;
+      let from = -1;
+      if (tail > head && leaveH[deque[head]] < fromH) {
+        fromH = leaveH[deque[head]];
+        from = deque[head];
+      }
+      if (fromH === Infinity) {
+        dist[a] = Infinity;
+        continue;
+      }
+      const d = fromH + c - v * w[k] + (extraH === null ? 0 : extraH[k]);
+      dist[a] = d;
+      leaveH[a] = d + v * w[k] + vLimitH;
+      pred[a] = from;
+      if (reach[k] === done && d < bestH) {
+        bestH = d;
+        bestLast = a;
+      }
+    }
+    if (out !== null && bestLast >= 0) {
+      let len = 0;
+      for (let a = bestLast; a >= 0; a = pred[a]) out[len++] = S === null ? a : S[a];
+      out.subarray(0, len).reverse();
+      lastLength = len;
+    }
+    return bestH;
+  };
+  return {
+    full: (i, extraH, out) => run(i, extraH, null, m, out),
+    restricted: (i, S, p, out) => run(i, null, S, p, out),
+    length: () => lastLength,
+    priceStops(S, p) {
+      used.fill(0);
+      let totalH = 0;
+      for (let i = 0; i < n; i++) {
+        const h = run(i, null, S, p, tmp);
+        if (h === Infinity) return Infinity;
+        totalH += h;
+        for (let a = 0; a < lastLength; a++) used[tmp[a]] = 1;
+      }
+      for (let a = 0; a < p; a++) if (used[S[a]] === 1) totalH += prep.stopH[S[a]];
+      return totalH;
+    },
+    used,
+  };
+}
 
 /** Position i's cheapest chain with `extraH[j]` added per change at place j, using only `allowed` places (all when null). */
 export function cheapestChain(
@@ -30,111 +139,100 @@ export function cheapestChain(
   extraH: Float64Array | null,
   allowed: Uint8Array | null,
 ): { costH: number; chain: number[] } {
+  const solver = chainSolver(prep);
   const m = prep.aheadM.length;
-  const { done, v } = prep;
-  const r0 = lastReachable(prep, i, prep.startBudgetMm[i]);
-  if (r0 === done) return { costH: 0, chain: [] };
-  const w = prep.wearAt[i];
-  const reach = prep.reachNew[i];
-  const c = prep.changeH[i];
-  const dist = new Float64Array(m).fill(Infinity);
-  const pred = new Int32Array(m).fill(-1);
-  // leaveH[j] = dist[j] + v·(budget of the ring fitted at j); a monotone deque of places j
-  // (increasing j, increasing leaveH) whose new ring still reaches the place being priced.
-  const leaveH = new Float64Array(m);
-  const deque = new Int32Array(m);
-  let head = 0;
-  let tail = 0;
-  const startH = v * prep.startBudgetMm[i];
-  const vLimitH = v * prep.limitMm[i];
-  let bestH = Infinity;
-  let bestLast = -1;
-  for (let k = 0; k < m; k++) {
-    if (k > 0 && dist[k - 1] < Infinity && reach[k - 1] >= k) {
-      const val = leaveH[k - 1];
-      while (tail > head && leaveH[deque[tail - 1]] >= val) tail--;
-      deque[tail++] = k - 1;
-    }
-    while (tail > head && reach[deque[head]] < k) head++;
-    if (allowed !== null && allowed[k] === 0) continue;
-    let fromH = k <= r0 ? startH : Infinity;
-    let from = -1;
-    if (tail > head && leaveH[deque[head]] < fromH) {
-      fromH = leaveH[deque[head]];
-      from = deque[head];
-    }
-    if (fromH === Infinity) continue;
-    const d = fromH + c - v * w[k] + (extraH === null ? 0 : extraH[k]);
-    dist[k] = d;
-    leaveH[k] = d + v * w[k] + vLimitH;
-    pred[k] = from;
-    if (reach[k] === done && d < bestH) {
-      bestH = d;
-      bestLast = k;
-    }
+  const out = new Int32Array(m);
+  let costH: number;
+  if (allowed === null) costH = solver.full(i, extraH, out);
+  else {
+    const S = Int32Array.from(allowed.keys()).filter((j) => allowed[j] === 1);
+    if (extraH !== null) throw new RangeError('cheapestChain: extra hours with allowed places is not supported');
+    costH = solver.restricted(i, S, S.length, out);
   }
-  if (bestLast < 0) return { costH: Infinity, chain: [] };
-  const chain: number[] = [];
-  for (let k = bestLast; k >= 0; k = pred[k]) chain.unshift(k);
-  return { costH: bestH, chain };
+  return { costH, chain: costH === Infinity ? [] : Array.from(out.subarray(0, solver.length())) };
 }
 
 /** The cheapest plan using only the stops in `allowed` (each position's changes searched, not assumed): hours and plan. */
 export function cheapestPlanForStops(prep: Prepared, allowed: Uint8Array): { totalH: number; plan: IndexPlan } {
   const n = prep.input.positions.length;
+  const solver = chainSolver(prep);
+  const S = Int32Array.from(allowed.keys()).filter((j) => allowed[j] === 1);
+  const out = new Int32Array(prep.aheadM.length);
   const byIdx = new Map<number, number[]>();
   let totalH = 0;
   for (let i = 0; i < n; i++) {
-    const { costH, chain } = cheapestChain(prep, i, null, allowed);
+    const costH = solver.restricted(i, S, S.length, out);
     if (costH === Infinity) return { totalH: Infinity, plan: [] };
     totalH += costH;
-    for (const j of chain) byIdx.set(j, [...(byIdx.get(j) ?? []), i]);
+    for (let a = 0; a < solver.length(); a++) byIdx.set(out[a], [...(byIdx.get(out[a]) ?? []), i]);
   }
   for (const j of byIdx.keys()) totalH += prep.stopH[j];
   const plan = [...byIdx.entries()].sort((a, b) => a[0] - b[0]).map(([idx, changed]) => ({ idx, changed }));
   return { totalH, plan };
 }
 
-/** Drops stops one at a time while the total falls, then tries each stop one place earlier or later. */
-export function improveStops(prep: Prepared, plan: IndexPlan): { totalH: number; plan: IndexPlan } {
+/**
+ * Local search over stop sets, each priced exactly (one cheapest chain per position restricted
+ * to the set): drop a stop, move a stop to any other place, add a place, the first move that
+ * lowers the total taken, until none does or `deadline` (performance.now(), ms) passes. Not a
+ * proof: a local optimum.
+ */
+export function improveStops(prep: Prepared, plan: IndexPlan, deadline = Infinity): { totalH: number; plan: IndexPlan } {
   const m = prep.aheadM.length;
-  const allowed = new Uint8Array(m);
-  for (const s of plan) allowed[s.idx] = 1;
-  let best = cheapestPlanForStops(prep, allowed);
-  for (let improved = true; improved;) {
-    improved = false;
-    for (const { idx } of [...best.plan]) {
-      allowed[idx] = 0;
-      const tried = cheapestPlanForStops(prep, allowed);
-      if (tried.totalH < best.totalH - 1e-9) {
-        best = tried;
-        improved = true;
-        continue;
+  const solver = chainSolver(prep);
+  let S = Int32Array.from(new Set(plan.map((s) => s.idx))).sort();
+  let bestH = solver.priceStops(S, S.length);
+  const T = new Int32Array(m + 1);
+  // T = S without S[skip] (−1: none) with place x inserted (−1: none); returns its length (0 if x is already in).
+  const build = (skip: number, x: number): number => {
+    let p = 0;
+    let placed = x < 0;
+    for (let a = 0; a < S.length; a++) {
+      if (a === skip) continue;
+      if (!placed && x <= S[a]) {
+        if (x === S[a]) return 0;
+        T[p++] = x;
+        placed = true;
       }
-      let moved = false;
-      for (const to of [idx - 1, idx + 1]) {
-        if (to < 0 || to >= m || allowed[to] === 1) continue;
-        allowed[to] = 1;
-        const shifted = cheapestPlanForStops(prep, allowed);
-        if (shifted.totalH < best.totalH - 1e-9) {
-          best = shifted;
-          improved = moved = true;
-          break;
-        }
-        allowed[to] = 0;
-      }
-      if (!moved) allowed[idx] = 1;
+      T[p++] = S[a];
     }
-    for (let j = 0; j < m; j++) allowed[j] = 0;
-    for (const s of best.plan) allowed[s.idx] = 1;
+    if (!placed) T[p++] = x;
+    return p;
+  };
+  // The first improving move is taken at once (a round over every move can outlast the time
+  // budget on a long drive); the scan goes on from there, stop by stop, "add a place" last
+  // (skip = S.length), and ends after a full round without a move.
+  let sinceMove = 0;
+  for (let skip = 0; sinceMove <= S.length && performance.now() < deadline;) {
+    const drop = skip < S.length ? skip : -1;
+    let moved = false;
+    for (let x = drop < 0 ? 0 : -1; x < m && !moved; x++) {
+      const p = build(drop, x);
+      if (p === 0 && x >= 0) continue;
+      const h = solver.priceStops(T, p);
+      if (h < bestH - 1e-9 * (1 + bestH)) {
+        S = T.slice(0, p);
+        bestH = h;
+        moved = true;
+      }
+    }
+    sinceMove = moved ? 0 : sinceMove + 1;
+    skip = skip + 1 > S.length ? 0 : skip + 1;
   }
-  return best;
+  // Keep only the stops the cheapest plan on S uses (the same hours).
+  const allowed = new Uint8Array(m);
+  for (const j of S) allowed[j] = 1;
+  return cheapestPlanForStops(prep, allowed);
 }
 
-/** Steps without a better bound before the step length is halved (tuned on the bench drive). */
-const STALL_STEPS = 30;
+/** Steps without a better bound before the step length is shrunk (tuned on the bench drives). */
+const STALL_STEPS = 20;
+/** Factor the step length is divided by when the bound stalls. */
+const SHRINK = 1.5;
 /** Share of the last direction added to the subgradient. */
-const DEFLECTION = 0.5;
+const DEFLECTION = 0.7;
+/** Steps between plans built from the relaxed answer. */
+const PLAN_EVERY = 10;
 
 export interface LagrangianResult {
   /** A lower bound on the hours of every plan (the best L(λ) found). */
@@ -148,90 +246,134 @@ export interface LagrangianResult {
 }
 
 /**
- * Subgradient ascent on L(λ) for at most `iterations` steps, stopping once the best plan is
- * within `targetGap` (relative) of the bound. `upperH` is the hours of a plan already known.
+ * Deflected subgradient ascent on L(λ) for at most `iterations` steps, over the multipliers that
+ * share each stop's hours among the positions (λ ≥ 0, Σ_i λ_ij ≤ s_j: the optimum has this form,
+ * see the top of this file), stopping once the best plan is within `targetGap` (relative) of
+ * the bound or `deadline` (performance.now(), ms) passes. `upperH` is the hours of a plan
+ * already known.
  */
 export function lagrangianBound(
   prep: Prepared,
-  { iterations, upperH, targetGap }: { iterations: number; upperH: number; targetGap: number },
+  {
+    iterations,
+    upperH,
+    targetGap,
+    deadline = Infinity,
+    localSearchUntil = -Infinity,
+  }: { iterations: number; upperH: number; targetGap: number; deadline?: number; localSearchUntil?: number },
 ): LagrangianResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
+  const solver = chainSolver(prep);
+  // Start from every stop's hours shared equally (a valid point of the set above).
   const lambda = Array.from({ length: n }, () => new Float64Array(m));
+  for (let j = 0; j < m; j++) for (let i = 0; i < n; i++) lambda[i][j] = prep.stopH[j] / n;
   let lowerH = -Infinity;
-  let bestLambda: Float64Array[] = lambda;
+  const bestLambda: Float64Array[] = lambda.map((l) => l.slice());
   let bestPlan: IndexPlan | null = null;
   let bestH = upperH;
-  let theta = 2;
+  let theta = 1;
   let sinceGain = 0;
   let it = 0;
+  const chains = Array.from({ length: n }, () => new Int32Array(m));
+  const lengths = new Int32Array(n);
   const used = new Uint8Array(m);
-  const count = new Int32Array(m);
   const mark = new Int32Array(n * m);
   const dir = new Float64Array(n * m);
-  for (; it < iterations; it++) {
-    count.fill(0);
+  const stopSet = new Int32Array(m);
+  // Σ_i λ_ij per place, kept up to date.
+  const sumH = new Float64Array(m);
+  for (let i = 0; i < n; i++) for (let j = 0; j < m; j++) sumH[j] += lambda[i][j];
+  for (; it < iterations && performance.now() < deadline; it++) {
     let valueH = 0;
-    const chains: number[][] = [];
     for (let i = 0; i < n; i++) {
-      const { costH, chain } = cheapestChain(prep, i, lambda[i], null);
-      valueH += costH;
-      chains.push(chain);
-      for (const j of chain) count[j]++;
+      valueH += solver.full(i, lambda[i], chains[i]);
+      lengths[i] = solver.length();
     }
-    const open = new Uint8Array(m);
-    for (let j = 0; j < m; j++) {
-      let sigmaH = 0;
-      for (let i = 0; i < n; i++) sigmaH += lambda[i][j];
-      if (prep.stopH[j] - sigmaH < 0) {
-        valueH += prep.stopH[j] - sigmaH;
-        open[j] = 1;
-      }
-    }
+    // The stop term Σ_j min(0, s_j − Σ_i λ_ij): zero inside the set, kept so any λ ≥ 0 is counted right.
+    for (let j = 0; j < m; j++) if (prep.stopH[j] - sumH[j] < 0) valueH += prep.stopH[j] - sumH[j];
     if (it === 0 || valueH > lowerH + 1e-9 * (1 + Math.abs(lowerH))) {
       lowerH = valueH;
-      bestLambda = lambda.map((l) => l.slice());
+      for (let i = 0; i < n; i++) bestLambda[i].set(lambda[i]);
       sinceGain = 0;
     } else if (++sinceGain >= STALL_STEPS) {
-      theta /= 2;
+      theta /= SHRINK;
       sinceGain = 0;
     }
-    // A plan from the places this relaxed answer uses.
-    if (it % 5 === 0) {
+    // A plan from the places this relaxed answer uses, priced exactly.
+    if (it % PLAN_EVERY === 0) {
       used.fill(0);
-      for (const chain of chains) for (const j of chain) used[j] = 1;
-      const found = cheapestPlanForStops(prep, used);
-      if (found.totalH < bestH - 1e-9) {
-        const better = improveStops(prep, found.plan);
-        bestH = better.totalH;
-        bestPlan = better.plan;
+      for (let i = 0; i < n; i++) for (let a = 0; a < lengths[i]; a++) used[chains[i][a]] = 1;
+      let p = 0;
+      for (let j = 0; j < m; j++) if (used[j] === 1) stopSet[p++] = j;
+      const foundH = solver.priceStops(stopSet, p);
+      if (foundH < bestH - 1e-9) {
+        const allowed = new Uint8Array(m);
+        for (let a = 0; a < p; a++) allowed[stopSet[a]] = 1;
+        const found = cheapestPlanForStops(prep, allowed);
+        bestH = found.totalH;
+        bestPlan = found.plan;
       }
     }
-    if (bestH - lowerH <= targetGap * Math.max(lowerH, 1e-9) || theta < 1e-4) break;
-    // Direction: the subgradient y_ij − z_j (projected where λ_ij = 0 and it points below 0),
-    // deflected by a share of the last direction (Camerini, Fratta & Maffioli 1975), which
-    // damps the zig-zag of plain subgradient steps.
-    for (let i = 0; i < n; i++) for (const j of chains[i]) mark[i * m + j] = it + 1;
+    if (bestH - lowerH <= targetGap * Math.max(lowerH, 1e-9) || theta < 1e-6) break;
+    // Direction: the subgradient y_ij (the chains' places), deflected by a share of the last
+    // direction (Camerini, Fratta & Maffioli 1975), which damps the zig-zag of plain steps;
+    // zeroed where λ_ij = 0 and it points below 0.
+    for (let i = 0; i < n; i++) for (let a = 0; a < lengths[i]; a++) mark[i * m + chains[i][a]] = it + 1;
     let normSq = 0;
     for (let i = 0; i < n; i++) {
       const lam = lambda[i];
-      for (let j = 0; j < m; j++) {
-        const k = i * m + j;
-        let g = (mark[k] === it + 1 ? 1 : 0) - open[j];
-        g += DEFLECTION * dir[k];
+      for (let j = 0, k = i * m; j < m; j++, k++) {
+        let g = (mark[k] === it + 1 ? 1 : 0) + DEFLECTION * dir[k];
         if (g < 0 && lam[j] <= 0) g = 0;
         dir[k] = g;
         normSq += g * g;
       }
     }
-    if (normSq === 0) break; // the relaxed answer is a plan: the bound is reached
+    if (normSq === 0) break;
     const stepH = (theta * (bestH - valueH)) / normSq;
+    sumH.fill(0);
     for (let i = 0; i < n; i++) {
       const lam = lambda[i];
-      for (let j = 0; j < m; j++) {
-        const g = dir[i * m + j];
+      for (let j = 0, k = i * m; j < m; j++, k++) {
+        const g = dir[k];
         if (g !== 0) lam[j] = Math.max(0, lam[j] + stepH * g);
+        sumH[j] += lam[j];
       }
+    }
+    // Back onto Σ_i λ_ij ≤ s_j: Euclidean projection onto the capped simplex, place by place
+    // (Michelot 1986: subtract the mean excess from the entries above it until none is left).
+    for (let j = 0; j < m; j++) {
+      if (sumH[j] <= prep.stopH[j]) continue;
+      let tauH = 0;
+      for (let changed = true; changed;) {
+        changed = false;
+        let activeH = 0;
+        let count = 0;
+        for (let i = 0; i < n; i++) {
+          const x = lambda[i][j];
+          if (x > tauH) {
+            activeH += x;
+            count++;
+          }
+        }
+        const t = (activeH - prep.stopH[j]) / count;
+        if (t > tauH + 1e-15) {
+          tauH = t;
+          changed = true;
+        }
+      }
+      let projectedH = 0;
+      for (let i = 0; i < n; i++) projectedH += lambda[i][j] = Math.max(0, lambda[i][j] - tauH);
+      sumH[j] = projectedH;
+    }
+  }
+  // The best plan found, improved by local search while time allows.
+  if (bestPlan !== null && localSearchUntil > performance.now()) {
+    const better = improveStops(prep, bestPlan, localSearchUntil);
+    if (better.totalH < bestH - 1e-9) {
+      bestH = better.totalH;
+      bestPlan = better.plan;
     }
   }
   return { lowerH, plan: bestPlan, planH: bestH, iterations: it, lambda: bestLambda };
