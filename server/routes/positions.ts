@@ -133,6 +133,18 @@ positionsRouter.post('/import', requireProject('layout.edit'), async (req, res) 
   });
 });
 
+/** A measurement's columns (shared/schemas Measurement) and the tables they come from, for both history reads. */
+const measurementColumns =
+  sql.raw(`e.id, e.wear_mm as "wearMm", e.conditions, e.action, e.note, e.remeasured, e.recorded_at as "recordedAt",
+  r.started_at as "roundAt", r.chainage_m as "chainageM", r.ring_number as "ringNumber", e.fitting_id as "fittingId",
+  c.serial, rc.serial as "removedSerial", fc.serial as "fittedSerial", e.change_reason as "changeReason"`);
+const measurementTables = sql.raw(`inspection_entries e
+  join inspection_rounds r on r.id = e.round_id
+  left join fittings f on f.id = e.fitting_id
+  left join cutters c on c.id = f.cutter_id
+  left join cutters rc on rc.id = e.removed_cutter_id
+  left join cutters fc on fc.id = e.fitted_cutter_id`);
+
 /**
  * Every position of the drive with its recent history — fitted periods, the newest `last`
  * measurements and their photos' ids — in one read of four queries, so a tablet keeps every
@@ -154,19 +166,11 @@ positionsRouter.get('/history', requireProject('layout.read'), async (req, res) 
   // The same columns as GET /:positionId, the newest `last` per position, each with its position's total.
   const measurements = await db.execute<Sendable<Measurement> & { positionId: string; total: number; newest: string }>(sql`
     select * from (
-      select e.id, e.wear_mm as "wearMm", e.conditions, e.action, e.note, e.remeasured, e.recorded_at as "recordedAt",
-             r.started_at as "roundAt", r.chainage_m as "chainageM", r.ring_number as "ringNumber", e.fitting_id as "fittingId",
-             c.serial, rc.serial as "removedSerial", fc.serial as "fittedSerial", e.change_reason as "changeReason",
-             e.position_id as "positionId",
+      select ${measurementColumns}, e.position_id as "positionId",
              (count(*) over (partition by e.position_id))::int as total,
              row_number() over (partition by e.position_id order by r.started_at desc, e.recorded_at desc) as newest
-      from inspection_entries e
-      join inspection_rounds r on r.id = e.round_id
+      from ${measurementTables}
       join positions p on p.id = e.position_id
-      left join fittings f on f.id = e.fitting_id
-      left join cutters c on c.id = f.cutter_id
-      left join cutters rc on rc.id = e.removed_cutter_id
-      left join cutters fc on fc.id = e.fitted_cutter_id
       where p.project_id = ${projectId}
     ) m
     where m.newest <= ${last}
@@ -178,11 +182,17 @@ positionsRouter.get('/history', requireProject('layout.read'), async (req, res) 
     .innerJoin(positions, eq(positions.id, inspectionEntries.positionId))
     .where(eq(positions.projectId, projectId))
     .orderBy(asc(photos.createdAt));
+  const measurementsOf = new Map<string, typeof measurements.rows>();
+  for (const m of measurements.rows) {
+    const own = measurementsOf.get(m.positionId);
+    if (own) own.push(m);
+    else measurementsOf.set(m.positionId, [m]);
+  }
   reply<PositionHistories>(res, 200, {
     readAt,
     last,
     positions: rows.map((position) => {
-      const own = measurements.rows.filter((m) => m.positionId === position.id);
+      const own = measurementsOf.get(position.id) ?? [];
       const ownIds = new Set(own.map((m) => m.id));
       return {
         position,
@@ -212,15 +222,8 @@ positionsRouter.get('/:positionId', requireProject('layout.read'), async (req, r
     .orderBy(asc(fittings.fittedAt));
   // The row shape the query below selects (timestamps come back as Dates).
   const measurements = await db.execute<Sendable<Measurement>>(sql`
-    select e.id, e.wear_mm as "wearMm", e.conditions, e.action, e.note, e.remeasured, e.recorded_at as "recordedAt",
-           r.started_at as "roundAt", r.chainage_m as "chainageM", r.ring_number as "ringNumber", e.fitting_id as "fittingId",
-           c.serial, rc.serial as "removedSerial", fc.serial as "fittedSerial", e.change_reason as "changeReason"
-    from inspection_entries e
-    join inspection_rounds r on r.id = e.round_id
-    left join fittings f on f.id = e.fitting_id
-    left join cutters c on c.id = f.cutter_id
-    left join cutters rc on rc.id = e.removed_cutter_id
-    left join cutters fc on fc.id = e.fitted_cutter_id
+    select ${measurementColumns}
+    from ${measurementTables}
     where e.position_id = ${positionId}
     order by r.started_at, e.recorded_at`);
   const photoRows = await db
