@@ -26,46 +26,50 @@ let running: Promise<void> | null = null;
 /** Reads what a round needs for every drive where the signed-in user records rounds (never throws). */
 export function refreshOfflineData(queryClient: QueryClient): Promise<void> {
   if (running) return running;
-  running = (async () => {
-    try {
-      if (!navigator.onLine) return;
-      const me = queryClient.getQueryData(authQueries.me().queryKey);
-      if (!me) return;
-      const projects = await queryClient.fetchQuery(projectQueries.list());
-      for (const project of projects.filter((p) => roleCan(p.role, 'rounds.record'))) {
-        const id = project.id;
-        const prefetch = (q: { queryKey: readonly unknown[] }) => queryClient.prefetchQuery(q as FetchQueryOptions);
-        await Promise.all([
-          prefetch(projectQueries.detail(id)),
-          prefetch(layoutQueries.list(id)),
-          prefetch(layoutQueries.history(id)),
-          prefetch(roundQueries.inStore(id)),
-          prefetch(stopQueries.crews(id)),
-          // Positions opened on this device before keep their whole history, read again too (the rest start from `history`).
-          ...queryClient
-            .getQueryCache()
-            .findAll({ queryKey: layoutQueries.all(id) })
-            .map((q) => q.queryKey[3])
-            .filter((positionId): positionId is string => typeof positionId === 'string' && UUID.test(positionId))
-            .map((positionId) => prefetch(layoutQueries.detail(id, positionId))),
-          queryClient
-            .fetchQuery(roundQueries.list(id))
-            .then((rounds) =>
-              Promise.all(
-                // The open rounds, and the newest one (a round started offline takes its positions and last wear).
-                rounds.filter((r, i) => r.closedAt == null || i === 0).map((r) => prefetch(roundQueries.detail(id, r.id))),
-              ),
-            )
-            .catch(() => undefined), // this drive's rounds stay as last synced; the other drives go on
-        ]);
-      }
-    } catch {
-      // No network or the server refused: what the device holds stays as last synced; the next turn tries again.
-    } finally {
-      running = null;
-    }
-  })();
+  // Cleared when the read settles — not inside it: a read that ends before its first await would
+  // clear the slot before it is filled and leave every later read waiting on a finished one.
+  running = readRoundData(queryClient).finally(() => {
+    running = null;
+  });
   return running;
+}
+
+async function readRoundData(queryClient: QueryClient): Promise<void> {
+  try {
+    if (!navigator.onLine) return;
+    const me = queryClient.getQueryData(authQueries.me().queryKey);
+    if (!me) return;
+    const projects = await queryClient.fetchQuery(projectQueries.list());
+    for (const project of projects.filter((p) => roleCan(p.role, 'rounds.record'))) {
+      const id = project.id;
+      const prefetch = (q: { queryKey: readonly unknown[] }) => queryClient.prefetchQuery(q as FetchQueryOptions);
+      await Promise.all([
+        prefetch(projectQueries.detail(id)),
+        prefetch(layoutQueries.list(id)),
+        prefetch(layoutQueries.history(id)),
+        prefetch(roundQueries.inStore(id)),
+        prefetch(stopQueries.crews(id)),
+        // Positions opened on this device before keep their whole history, read again too (the rest start from `history`).
+        ...queryClient
+          .getQueryCache()
+          .findAll({ queryKey: layoutQueries.all(id) })
+          .map((q) => q.queryKey[3])
+          .filter((positionId): positionId is string => typeof positionId === 'string' && UUID.test(positionId))
+          .map((positionId) => prefetch(layoutQueries.detail(id, positionId))),
+        queryClient
+          .fetchQuery(roundQueries.list(id))
+          .then((rounds) =>
+            Promise.all(
+              // The open rounds, and the newest one (a round started offline takes its positions and last wear).
+              rounds.filter((r, i) => r.closedAt == null || i === 0).map((r) => prefetch(roundQueries.detail(id, r.id))),
+            ),
+          )
+          .catch(() => undefined), // this drive's rounds stay as last synced; the other drives go on
+      ]);
+    }
+  } catch {
+    // No network or the server refused: what the device holds stays as last synced; the next turn tries again.
+  }
 }
 
 let started = false;
