@@ -1,6 +1,7 @@
 /**
- * `npm run lint` inside `npm test`, so the CI totals line counts a lint or formatting failure:
- * ESLint (the project's eslint.config.js) and Prettier (.prettierrc.json) over the repository.
+ * `npm run lint` and `npm run typecheck` inside `npm test`, so the CI totals line counts a lint,
+ * formatting or type failure: ESLint (the project's eslint.config.js), Prettier (.prettierrc.json)
+ * and the TypeScript compiler (tsconfig.json and the service worker's tsconfig.sw.json).
  */
 import { execFileSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
@@ -35,4 +36,17 @@ it('every file is formatted as Prettier writes it', async () => {
     if (!(await prettier.check(source, { ...options, filepath: file }))) unformatted.push(file);
   }
   expect(unformatted, 'run `npm run format`').toEqual([]);
+}, 300_000);
+
+it('TypeScript finds no type errors (app, server, tests and the service worker)', () => {
+  const errors: string[] = [];
+  for (const project of ['tsconfig.json', 'tsconfig.sw.json']) {
+    try {
+      execFileSync(process.execPath, ['node_modules/typescript/bin/tsc', '--noEmit', '-p', project], { encoding: 'utf8', stdio: 'pipe' });
+    } catch (e) {
+      const { stdout, stderr } = e as { stdout?: string; stderr?: string };
+      errors.push(`${project}:\n${stdout ?? ''}${stderr ?? ''}`);
+    }
+  }
+  expect(errors).toEqual([]);
 }, 300_000);

@@ -74,16 +74,11 @@ export function knownGroundAheadM(geology: DriveGeology, currentChainageM: numbe
 }
 
 /**
- * Cautious (P90) wear growth per metre ahead of one position over the whole known ground. The
- * forecast's own explanation stops at the position's limit point; a ring fitted later wears on
- * through the ground beyond, so the same forecast walk is repeated with the limit lifted.
+ * The forecast's walk of one position over the whole known ground, its limit lifted (so the walk
+ * does not stop at the limit point): wear growth and advance days per ground section ahead.
  */
-export function p90WearStretches(
-  position: PlannerForecast['positions'][number],
-  forecast: PlannerForecast,
-  geology: DriveGeology,
-): WearStretch[] {
-  const walk = forecastChangeOut({
+function walkWithoutLimit(position: PlannerForecast['positions'][number], forecast: PlannerForecast, geology: DriveGeology) {
+  return forecastChangeOut({
     position: { ...position.position, allowableWearMm: Infinity },
     wearNow: position.explanation.wearNow,
     currentChainageM: forecast.currentChainageM!,
@@ -97,6 +92,19 @@ export function p90WearStretches(
     overcutMarginMm: 0,
     now: forecast.now,
   });
+}
+
+/**
+ * Cautious (P90) wear growth per metre ahead of one position over the whole known ground. The
+ * forecast's own explanation stops at the position's limit point; a ring fitted later wears on
+ * through the ground beyond, so the same forecast walk is repeated with the limit lifted.
+ */
+export function p90WearStretches(
+  position: PlannerForecast['positions'][number],
+  forecast: PlannerForecast,
+  geology: DriveGeology,
+): WearStretch[] {
+  const walk = walkWithoutLimit(position, forecast, geology);
   let fromAheadM = 0;
   return walk.explanation.sections.map((s) => {
     const stretch = { fromAheadM, wearMmPerM: s.wearMmPerM.p90 };
@@ -152,20 +160,7 @@ export function buildStopPlanInput(forecast: PlannerForecast, geology: DriveGeol
 export function expectedAtAhead(forecast: PlannerForecast, geology: DriveGeology, aheadByM: number): Date | null {
   const position = forecast.positions[0];
   if (!position || forecast.currentChainageM == null) return null;
-  const walk = forecastChangeOut({
-    position: { ...position.position, allowableWearMm: Infinity },
-    wearNow: position.explanation.wearNow,
-    currentChainageM: forecast.currentChainageM,
-    currentRingNumber: forecast.currentRingNumber!,
-    ringLengthM: geology.ringLengthM,
-    driveDirection: geology.direction,
-    geology: geology.sections.map((s) => ({ fromChainageM: s.chainageFromM, toChainageM: s.chainageToM, groundTypeId: s.groundTypeId })),
-    rates: forecast.rates,
-    penetrationMmPerRevByGround: forecast.driveRates.penetrationMmPerRevByGround,
-    advanceMPerDayByGround: forecast.driveRates.advanceMPerDayByGround,
-    overcutMarginMm: 0,
-    now: forecast.now,
-  });
+  const walk = walkWithoutLimit(position, forecast, geology);
   let fromM = 0;
   let days = 0;
   for (const s of walk.explanation.sections) {

@@ -7,8 +7,10 @@ import { QueryClient } from '@tanstack/react-query';
 import { afterEach, beforeEach, expect, it, vi } from 'vitest';
 import { refreshOfflineData } from '../../src/app/offline-data';
 import { authQueries } from '../../src/features/auth/api';
+import type { Me } from '../../shared/schemas/auth';
 
 const asked: string[] = [];
+const signedIn: Me = { user: { id: 'u1', email: 'fitter@example.com', name: 'Fitter', isAdmin: false }, memberships: [] };
 
 beforeEach(() => {
   asked.length = 0;
@@ -27,10 +29,7 @@ it('reads the drives once someone is signed in, after a read that found nobody',
   await refreshOfflineData(queryClient); // at start, before sign-in: nothing to read
   expect(asked).toEqual([]);
 
-  queryClient.setQueryData(authQueries.me().queryKey, {
-    user: { id: 'u1', email: 'fitter@example.com', name: 'Fitter', isAdmin: false },
-    memberships: [],
-  });
+  queryClient.setQueryData(authQueries.me().queryKey, signedIn);
   await refreshOfflineData(queryClient);
   expect(asked).toEqual(['/api/projects']);
 });
@@ -38,10 +37,7 @@ it('reads the drives once someone is signed in, after a read that found nobody',
 it('does not read while the device is offline', async () => {
   vi.stubGlobal('navigator', { onLine: false });
   const queryClient = new QueryClient();
-  queryClient.setQueryData(authQueries.me().queryKey, {
-    user: { id: 'u1', email: 'fitter@example.com', name: 'Fitter', isAdmin: false },
-    memberships: [],
-  });
+  queryClient.setQueryData(authQueries.me().queryKey, signedIn);
   await refreshOfflineData(queryClient);
   expect(asked).toEqual([]);
 });
