@@ -43,6 +43,19 @@ function keepToOneUser(queryClient: QueryClient) {
   });
 }
 
+/**
+ * Forgets the cache kept on the device now (at sign-out, after the query cache is cleared). The
+ * cleared cache would also be saved, but only up to half a second later: a reload or a closed tab
+ * in between brought the signed-out person's screens back from the device.
+ */
+export async function forgetPersistedCache(): Promise<void> {
+  try {
+    await persister.removeClient();
+  } catch {
+    // A broken store holds nothing to forget.
+  }
+}
+
 /** Restores the cache kept on the device (never throws: a broken store only means an empty cache), then keeps it saved. */
 export async function restoreAndPersist(queryClient: QueryClient): Promise<void> {
   const options = {

@@ -2,12 +2,18 @@
 import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { chromium, type Browser } from 'playwright-core';
+import { vi } from 'vitest';
 import { createApp } from '../../server/app';
 import { jobs } from '../../jobs/index';
 import { ensureClientBuilt } from '../../server/devenv/client-build';
 import { chromiumPath, ensureDebianPackages } from '../../server/devenv/debian-packages';
 
 export const CHROMIUM = chromiumPath();
+
+// A browser test walks a whole flow (sign-in hashes a password, pages load chunks): on a loaded
+// 2-core machine that takes longer than a unit test's 30 s. Every file that drives the browser
+// imports this module, so its tests get two minutes unless they name their own limit.
+vi.setConfig({ testTimeout: 120_000 });
 
 /**
  * Launches Debian's Chromium. Missing, it fails the file's set-up loudly with the apt-get command

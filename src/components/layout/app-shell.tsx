@@ -4,6 +4,7 @@ import { Link, Navigate, NavLink, Outlet, useLocation, useMatch, useNavigate } f
 import { roleLabels } from '../../../shared/roles';
 import { paths } from '../../config/paths';
 import { authQueries, signOut } from '../../features/auth/api';
+import { forgetPersistedCache } from '../../lib/persisted-cache';
 import { PageLoading } from '../ui/page';
 import { Logo } from './logo';
 import { currentGroup, isItemCurrent, landingOf, navGroupsFor, type NavGroup } from './nav-groups';
@@ -47,6 +48,7 @@ export function AppShell() {
   const onSignOut = async () => {
     await signOut().catch(() => {});
     queryClient.clear();
+    await forgetPersistedCache();
     navigate(paths.signIn, { replace: true });
   };
 
