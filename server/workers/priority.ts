@@ -10,11 +10,12 @@ import { readlinkSync } from 'node:fs';
 import os from 'node:os';
 
 /**
- * The nice value of the computation threads: 10 gives a thread about a tenth of the CPU share of a
- * nice-0 thread when both want the same core (Linux CFS weights 110 against 1024), and the whole
- * core when nothing else wants it (derived: kernel/sched/core.c, sched_prio_to_weight).
+ * The nice value of the computation threads, the lowest priority there is: when a request thread (nice 0)
+ * wants the same core, a thread at 19 gets about 1.5 % of it (Linux CFS weights 15 against 1024),
+ * and the whole core when nothing else wants it (derived: kernel/sched/core.c, sched_prio_to_weight).
+ * 10 (weight 110) was measured too: see DEVELOPERS.md, decision 49.
  */
-export const COMPUTE_THREAD_NICE = 10;
+export const COMPUTE_THREAD_NICE = 19;
 
 export interface ThreadPriority {
   /** The thread's kernel id (Linux), or null where the thread cannot be named. */
