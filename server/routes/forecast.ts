@@ -67,8 +67,8 @@ forecastRouter.get('/', requireProject('forecast.read'), async (req, res) => {
     return;
   }
   if (!positionId) {
-    // The stored text was made by forecastAnswer, typed as Sendable<Forecast> (services/forecast-cache.ts).
-    res.type('application/json').send(cached.body);
+    // The stored text was made by forecastAnswer, typed as Sendable<Forecast> (services/forecast-cache.ts), sent as its UTF-8 made once.
+    res.type('application/json').send(cached.bytes);
     return;
   }
   const answer = JSON.parse(cached.body) as Forecast;

@@ -67,6 +67,8 @@ export function forecastAnswer(result: ProjectForecast) {
 export interface CachedForecast {
   /** JSON text of the answer without explanations. */
   body: string;
+  /** The same text as UTF-8, made once per answer (sent as it is). */
+  bytes: Buffer;
   dataVersion: number;
   computedAt: Date;
   /** Strong validator of this answer: same drive data, same code, same computation. */
@@ -80,7 +82,7 @@ type CacheRow = {
   data_version: number | null;
   code_version: string | null;
   computed_ms: number | null;
-  /** The cached answer, only when it was computed from the current version. */
+  /** The cached answer, only when it was computed from the current version and is not the instance's own copy. */
   body: string | null;
 };
 
@@ -99,19 +101,68 @@ function fresh(row: CacheRow | undefined, now: Date): boolean {
   );
 }
 
+/**
+ * This instance's copy of a drive's cached answer, named by the stored row it came from (data
+ * version, code version, computed at). A request still asks PostgreSQL for the row's state every
+ * time, so a copy is served only while the stored row is that very row (decision 49); the body
+ * itself crosses from PostgreSQL only when the row has changed.
+ */
+interface Copy extends CachedForecast {
+  codeVersion: string;
+  computedMs: number;
+}
+const copies = new Map<string, Copy>();
+/** One copy per drive; beyond this many drives the oldest copy is dropped (common practice, no source). */
+const MAX_COPIES = 1000;
+
+function keep(projectId: string, row: { dataVersion: number; codeVersion: string; computedMs: number; body: string }): Copy {
+  const computedAt = new Date(row.computedMs);
+  const copy: Copy = {
+    ...row,
+    bytes: Buffer.from(row.body),
+    computedAt,
+    etag: etagOf(projectId, row.dataVersion, computedAt),
+    computed: false,
+  };
+  copies.delete(projectId);
+  if (copies.size >= MAX_COPIES) copies.delete(copies.keys().next().value!);
+  copies.set(projectId, copy);
+  return copy;
+}
+
+/** Drops this instance's copies (tests: the next request reads the stored body again). */
+export function forgetForecastCopies(): void {
+  copies.clear();
+}
+
+const computedMsSql = '(extract(epoch from c.computed_at) * 1000)::float8';
+// $1 the drive; $2–$4 name the instance's copy (data version, code version, computed at), or null.
 const stateText = `
-  select coalesce(v.version, 0) as version, c.data_version, c.code_version, (extract(epoch from c.computed_at) * 1000)::float8 as computed_ms,
-         case when c.data_version = coalesce(v.version, 0) then c.body end as body
+  select coalesce(v.version, 0) as version, c.data_version, c.code_version, ${computedMsSql} as computed_ms,
+         case when c.data_version = coalesce(v.version, 0)
+                   and (c.data_version, c.code_version, ${computedMsSql}) is distinct from ($2::int, $3::text, $4::float8)
+              then c.body end as body
   from (select $1::uuid as project_id) p
   left join drive_data_versions v on v.project_id = p.project_id
   left join forecast_cache c on c.project_id = p.project_id`;
-const [stateBefore, stateAfter] = stateText.split('$1');
-/** The same text for a transaction (Drizzle), the project id bound as a parameter. */
-const stateQuery = (projectId: string) => sql`${sql.raw(stateBefore)}${projectId}${sql.raw(stateAfter)}`;
+/** The same text for a transaction (Drizzle), the project id bound as a parameter and no copy named: the body comes when current. */
+const stateQuery = (projectId: string) => {
+  const values: Record<string, string | null> = { $1: projectId, $2: null, $3: null, $4: null };
+  // split with a capture group: text at even places, the placeholder's name at odd ones.
+  const parts = stateText.split(/(\$\d)/);
+  return sql.join(
+    parts.map((part, i) => (i % 2 === 0 ? sql.raw(part) : sql`${values[part]}`)),
+    sql.raw(''),
+  );
+};
 
-function fromState(projectId: string, state: CacheRow): CachedForecast {
-  const computedAt = new Date(state.computed_ms!);
-  return { body: state.body!, dataVersion: state.version, computedAt, etag: etagOf(projectId, state.version, computedAt), computed: false };
+function fromState(projectId: string, state: CacheRow): Copy {
+  return keep(projectId, {
+    dataVersion: state.version,
+    codeVersion: state.code_version!,
+    computedMs: state.computed_ms!,
+    body: state.body!,
+  });
 }
 
 /**
@@ -120,10 +171,27 @@ function fromState(projectId: string, state: CacheRow): CachedForecast {
  * explanation, read from the same cached row.
  */
 export async function cachedForecast(projectId: string, now = new Date()): Promise<CachedForecast> {
-  // One query: the version, the cache's state and, when current, its answer.
-  // A named statement: each pooled connection parses and plans it once, not per request (decision 45).
-  const [state] = (await pool.query<CacheRow>({ name: 'forecast-cache-state', text: stateText, values: [projectId] })).rows;
-  if (fresh(state, now) && state.body != null) return fromState(projectId, state);
+  // One query: the version, the cache's state and, when current and not the copy this instance
+  // already holds, its answer. A named statement: each pooled connection parses and plans it once,
+  // not per request (decision 45).
+  const copy = copies.get(projectId);
+  const [state] = (
+    await pool.query<CacheRow>({
+      name: 'forecast-cache-state',
+      text: stateText,
+      values: [projectId, copy?.dataVersion ?? null, copy?.codeVersion ?? null, copy?.computedMs ?? null],
+    })
+  ).rows;
+  if (fresh(state, now)) {
+    if (state.body != null) return fromState(projectId, state);
+    if (
+      copy != null &&
+      copy.dataVersion === state.data_version &&
+      copy.codeVersion === state.code_version &&
+      copy.computedMs === state.computed_ms
+    )
+      return copy;
+  }
   return db.transaction(async (tx) => {
     await tx.execute(sql`select pg_advisory_xact_lock(hashtextextended(${'forecast:' + projectId}, 0))`);
     // Another instance may have computed it while this one waited for the lock.
@@ -138,7 +206,8 @@ export async function cachedForecast(projectId: string, now = new Date()): Promi
     const explanations = Object.fromEntries(result.positions.map((p) => [p.position.positionId, p.explanation]));
     const values = { projectId, dataVersion, codeVersion: forecastCodeVersion(), computedAt: now, body, explanations };
     await tx.insert(forecastCache).values(values).onConflictDoUpdate({ target: forecastCache.projectId, set: values });
-    return { body, dataVersion, computedAt: now, etag: etagOf(projectId, dataVersion, now), computed: true };
+    // The copy is kept only once the row is committed (a rolled-back computation leaves none).
+    return { body, bytes: Buffer.from(body), dataVersion, computedAt: now, etag: etagOf(projectId, dataVersion, now), computed: true };
   });
 }
 

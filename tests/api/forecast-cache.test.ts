@@ -11,7 +11,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/app';
 import { db } from '../../server/db/client';
 import { forecastCache, strokes } from '../../server/db/schema';
-import { cachedForecast } from '../../server/services/forecast-cache';
+import { cachedForecast, forgetForecastCopies } from '../../server/services/forecast-cache';
 import { addMember, makeUser, signedInAgent } from '../support/fixtures';
 import { makeStopsDrive } from '../support/stops-fixtures';
 
@@ -132,5 +132,38 @@ describe('forecast cache', () => {
     ]);
     expect(answers.filter((a) => a.computed).length).toBe(1);
     expect(new Set(answers.map((a) => a.etag)).size).toBe(1);
+  });
+
+  it('an instance sends its own copy while the stored row is unchanged, and the stored body again once the row changes', async () => {
+    forgetForecastCopies();
+    const first = await cachedForecast(drive.project.id); // reads the stored body and keeps a copy
+    expect(first.computed).toBe(false);
+    expect(first.bytes.toString('utf8')).toBe(first.body);
+    // The stored body is changed behind the row's back (same version, code and time): the copy is
+    // what is sent, so the body did not cross from PostgreSQL for this request.
+    const marker = JSON.stringify({ marker: 'stored body, changed in SQL' });
+    await db.execute(sql`update forecast_cache set body = ${marker} where project_id = ${drive.project.id}`);
+    const second = await cachedForecast(drive.project.id);
+    expect(second.body).toBe(first.body);
+    expect(second.etag).toBe(first.etag);
+    // The row itself changes (another instance computed it a millisecond later): its body is read.
+    await db.execute(
+      sql`update forecast_cache set computed_at = computed_at + interval '1 millisecond' where project_id = ${drive.project.id}`,
+    );
+    const third = await cachedForecast(drive.project.id);
+    expect(third.computed).toBe(false);
+    expect(third.body).toBe(marker);
+    expect(third.bytes.toString('utf8')).toBe(marker);
+    expect(third.etag).not.toBe(first.etag);
+    // A write to a forecast input: the copy is not sent, the forecast is computed again.
+    await db.execute(sql`update strokes set revolutions = revolutions where project_id = ${drive.project.id}`);
+    const fourth = await cachedForecast(drive.project.id);
+    expect(fourth.computed).toBe(true);
+    expect(JSON.parse(fourth.body).positions.length).toBe(3);
+    // And over HTTP the answer is the new computation's, byte for byte.
+    const answer = await agent.get(`${base}/forecast`);
+    expect(answer.status).toBe(200);
+    expect(answer.text).toBe(fourth.body);
+    expect(answer.headers['content-type']).toMatch(/^application\/json/);
   });
 });
