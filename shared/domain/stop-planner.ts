@@ -95,7 +95,7 @@ import { prepare, pricePlan, validate } from './stop-planner-steps/model';
 import { exactSearch } from './stop-planner-steps/search';
 
 /** States expanded per place by the first, quick pass that finds a good plan to bound the exact pass. */
-const QUICK_PASS_STATES = 8;
+const QUICK_PASS_STATES = 2;
 /** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
 const BOUND_ITERATIONS = 400;
 /** The bound stops improving once the plan is certified within this share. */
