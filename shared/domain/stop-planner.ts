@@ -96,6 +96,8 @@ import { exactSearch } from './stop-planner-steps/search';
 
 /** States expanded per place by the first, quick pass that finds a good plan to bound the exact pass. */
 const QUICK_PASS_STATES = 2;
+/** States of the short exact search run before the bound (it proves easy drives at once: the bench drive in under 100). */
+const PROBE_STATES = 300;
 /** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
 const BOUND_ITERATIONS = 400;
 /** The bound stops improving once the plan is certified within this share. */
@@ -266,25 +268,41 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
       if (quickPlan.cost.totalH < best.cost.totalH) best = quickPlan;
     }
   }
-  // Step 4: the lower bound, and plans found from it.
+  // Step 4: a short exact search without the bound (PROBE_STATES): on easy drives it proves the
+  // plan at once, and the bound's steps (most of the time on a long drive) are not needed.
+  let probeStates = 0;
+  let probed: ReturnType<typeof exactSearch> | null = null;
+  if (quickFirst) {
+    probed = exactSearch(prep, bounds, { quickPassStates: 0, maxStates: Math.min(maxStates, PROBE_STATES), boundH: best.cost.totalH });
+    probeStates = probed.statesExpanded;
+    if (probed.plan !== null) {
+      const probePlan = pricePlan(prep, probed.plan);
+      if (probePlan.cost.totalH < best.cost.totalH) best = probePlan;
+    }
+  }
+  const probeProven = probed !== null && probed.complete;
+  // Step 5: the lower bound, and plans found from it.
   const relaxed =
-    best.cost.totalH > 0 && boundIterations > 0
+    !probeProven && best.cost.totalH > 0 && boundIterations > 0
       ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap })
       : null;
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
-  // Step 5: the exact search, bounded by the best plan so far.
+  // Step 6: the exact search, bounded by the best plan so far.
   const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);
   const restBoundH = relaxed ? lagrangianRestBound(prep, relaxed.lambda) : undefined;
-  const searched0 = proven0
-    ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
-    : exactSearch(prep, bounds, { quickPassStates: quickFirst ? 0 : quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
-  const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates };
+  const searched0 =
+    probeProven && probed !== null
+      ? { ...probed, plan: null, statesExpanded: 0 }
+      : proven0
+        ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
+        : exactSearch(prep, bounds, { quickPassStates: quickFirst ? 0 : quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
+  const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates + probeStates };
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
     if (searched.cost.totalH < best.cost.totalH) best = searched;
   }
-  // Step 6: local search over stop sets from the best plan, each set priced exactly.
-  const lowerSoFarH = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH);
+  // Step 7: local search over stop sets from the best plan, each set priced exactly.
+  const lowerSoFarH = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH, probed?.lowerH ?? 0);
   if (!found.complete && localSearchMs > 0 && best.cost.totalH - lowerSoFarH > targetGap * lowerSoFarH) {
     const stopIdx = (s: PlannedStop) => prep.aheadM.indexOf(s.aheadM);
     const improved = improveStops(
@@ -295,7 +313,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     if (improved.totalH < best.cost.totalH - 1e-9) best = pricePlan(prep, improved.plan);
   }
   const totalH = best.cost.totalH;
-  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH));
+  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH, probed?.lowerH ?? 0));
   const gap = found.complete || totalH <= lowerBoundH ? 0 : lowerBoundH > 0 ? (totalH - lowerBoundH) / lowerBoundH : Infinity;
   return {
     feasible: true,

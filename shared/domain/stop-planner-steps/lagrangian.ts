@@ -112,8 +112,61 @@ export function chainSolver(prep: Prepared): ChainSolver {
     }
     return bestH;
   };
+  // The programme over every place with per-place extra hours: `run` without the indirection
+  // through S (the bound calls it n times per step, so it is most of the bound's time).
+  const runFull = (i: number, extraH: Float64Array | null, out: Int32Array | null): number => {
+    lastLength = 0;
+    const ri = r0[i];
+    if (ri === done) return 0;
+    const w = prep.wearAt[i];
+    const reach = prep.reachNew[i];
+    const c = prep.changeH[i];
+    const startH = v * prep.startBudgetMm[i];
+    const vLimitH = v * prep.limitMm[i];
+    let head = 0;
+    let tail = 0;
+    let bestH = Infinity;
+    let bestLast = -1;
+    let prevFinite = false;
+    for (let k = 0; k < m; k++) {
+      if (prevFinite && reach[k - 1] >= k) {
+        const val = leaveH[k - 1];
+        while (tail > head && leaveH[deque[tail - 1]] >= val) tail--;
+        deque[tail++] = k - 1;
+      }
+      while (tail > head && reach[deque[head]] < k) head++;
+      let fromH = k <= ri ? startH : Infinity;
+      let from = -1;
+      if (tail > head && leaveH[deque[head]] < fromH) {
+        fromH = leaveH[deque[head]];
+        from = deque[head];
+      }
+      if (fromH === Infinity) {
+        dist[k] = Infinity;
+        prevFinite = false;
+        continue;
+      }
+      const wk = w[k];
+      const d = fromH + c - v * wk + (extraH === null ? 0 : extraH[k]);
+      dist[k] = d;
+      leaveH[k] = d + v * wk + vLimitH;
+      pred[k] = from;
+      prevFinite = true;
+      if (d < bestH && reach[k] === done) {
+        bestH = d;
+        bestLast = k;
+      }
+    }
+    if (out !== null && bestLast >= 0) {
+      let len = 0;
+      for (let a = bestLast; a >= 0; a = pred[a]) out[len++] = a;
+      out.subarray(0, len).reverse();
+      lastLength = len;
+    }
+    return bestH;
+  };
   return {
-    full: (i, extraH, out) => run(i, extraH, null, m, out),
+    full: runFull,
     restricted: (i, S, p, out) => run(i, null, S, p, out),
     length: () => lastLength,
     priceStops(S, p) {
@@ -281,6 +334,7 @@ export function lagrangianBound(
   const mark = new Int32Array(n * m);
   const dir = new Float64Array(n * m);
   const stopSet = new Int32Array(m);
+  const column = new Float64Array(n);
   // Σ_i λ_ij per place, kept up to date.
   const sumH = new Float64Array(m);
   for (let i = 0; i < n; i++) for (let j = 0; j < m; j++) sumH[j] += lambda[i][j];
@@ -343,15 +397,17 @@ export function lagrangianBound(
     }
     // Back onto Σ_i λ_ij ≤ s_j: Euclidean projection onto the capped simplex, place by place
     // (Michelot 1986: subtract the mean excess from the entries above it until none is left).
+    // The place's column is gathered once into a contiguous buffer (the rows are per position).
     for (let j = 0; j < m; j++) {
       if (sumH[j] <= prep.stopH[j]) continue;
+      for (let i = 0; i < n; i++) column[i] = lambda[i][j];
       let tauH = 0;
       for (let changed = true; changed;) {
         changed = false;
         let activeH = 0;
         let count = 0;
         for (let i = 0; i < n; i++) {
-          const x = lambda[i][j];
+          const x = column[i];
           if (x > tauH) {
             activeH += x;
             count++;
@@ -364,7 +420,11 @@ export function lagrangianBound(
         }
       }
       let projectedH = 0;
-      for (let i = 0; i < n; i++) projectedH += lambda[i][j] = Math.max(0, lambda[i][j] - tauH);
+      for (let i = 0; i < n; i++) {
+        const x = column[i] > tauH ? column[i] - tauH : 0;
+        if (x !== column[i]) lambda[i][j] = x;
+        projectedH += x;
+      }
       sumH[j] = projectedH;
     }
   }
