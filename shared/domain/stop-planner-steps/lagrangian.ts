@@ -31,6 +31,7 @@
  * (drop, move anywhere, add; the first improving move taken) improves a plan within a time budget (not a proof).
  */
 import { lastReachable, type IndexPlan, type Prepared } from './model';
+import { stopPathCopy } from './stop-path-copy';
 
 /**
  * Position i's cheapest chain: a dynamic programme over the places with a sliding-window
@@ -313,19 +314,36 @@ export function lagrangianBound(
     targetGap,
     deadline = Infinity,
     localSearchUntil = -Infinity,
-  }: { iterations: number; upperH: number; targetGap: number; deadline?: number; localSearchUntil?: number },
+    copies = null,
+    startLambda = null,
+    stepScale = 1,
+  }: {
+    iterations: number;
+    upperH: number;
+    targetGap: number;
+    deadline?: number;
+    localSearchUntil?: number;
+    /** Positions (1) solved with a stop path of their own (./stop-path-copy.ts): a stronger, slower bound. */
+    copies?: Uint8Array | null;
+    /** Multipliers to start from (in the set above), e.g. a plain bound's. */
+    startLambda?: Float64Array[] | null;
+    /** First step length scale (Polyak's θ; smaller when starting from good multipliers). */
+    stepScale?: number;
+  },
 ): LagrangianResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
   const solver = chainSolver(prep);
   // Start from every stop's hours shared equally (a valid point of the set above).
   const lambda = Array.from({ length: n }, () => new Float64Array(m));
-  for (let j = 0; j < m; j++) for (let i = 0; i < n; i++) lambda[i][j] = prep.stopH[j] / n;
+  for (let j = 0; j < m; j++) for (let i = 0; i < n; i++) lambda[i][j] = startLambda ? startLambda[i][j] : prep.stopH[j] / n;
+  const copy = copies ? stopPathCopy(prep) : null;
+  const copyStops = copies ? Array.from({ length: n }, (_, i) => (copies[i] === 1 ? new Uint8Array(m) : null)) : [];
   let lowerH = -Infinity;
   const bestLambda: Float64Array[] = lambda.map((l) => l.slice());
   let bestPlan: IndexPlan | null = null;
   let bestH = upperH;
-  let theta = 1;
+  let theta = stepScale;
   let sinceGain = 0;
   let it = 0;
   const chains = Array.from({ length: n }, () => new Int32Array(m));
@@ -341,8 +359,11 @@ export function lagrangianBound(
   for (; it < iterations && performance.now() < deadline; it++) {
     let valueH = 0;
     for (let i = 0; i < n; i++) {
-      valueH += solver.full(i, lambda[i], chains[i]);
+      const chainH = solver.full(i, lambda[i], chains[i]);
       lengths[i] = solver.length();
+      // A position with a copy: its changes with a stop path of its own (≥ chainH at the same λ).
+      const own = copy && copyStops[i];
+      valueH += own ? copy.solve(i, lambda[i], own) : chainH;
     }
     // The stop term Σ_j min(0, s_j − Σ_i λ_ij): zero inside the set, kept so any λ ≥ 0 is counted right.
     for (let j = 0; j < m; j++) if (prep.stopH[j] - sumH[j] < 0) valueH += prep.stopH[j] - sumH[j];
@@ -373,7 +394,12 @@ export function lagrangianBound(
     // Direction: the subgradient y_ij (the chains' places), deflected by a share of the last
     // direction (Camerini, Fratta & Maffioli 1975), which damps the zig-zag of plain steps;
     // zeroed where λ_ij = 0 and it points below 0.
-    for (let i = 0; i < n; i++) for (let a = 0; a < lengths[i]; a++) mark[i * m + chains[i][a]] = it + 1;
+    for (let i = 0; i < n; i++) {
+      const own = copyStops[i];
+      if (own) {
+        for (let j = 0; j < m; j++) if (own[j] === 1) mark[i * m + j] = it + 1;
+      } else for (let a = 0; a < lengths[i]; a++) mark[i * m + chains[i][a]] = it + 1;
+    }
     let normSq = 0;
     for (let i = 0; i < n; i++) {
       const lam = lambda[i];
