@@ -90,7 +90,7 @@
 import type { DriveDirection, PositionClass } from './forecast';
 import { fixedIntervalPlan, latestChangePlan, ownLatestChains, practicePlan } from './stop-planner-steps/baselines';
 import { searchBounds } from './stop-planner-steps/bounds';
-import { improveStops, lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
+import { decompositionBound, improveStops, lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
 import { prepare, pricePlan, validate } from './stop-planner-steps/model';
 import { exactSearch } from './stop-planner-steps/search';
 
@@ -221,6 +221,11 @@ export interface PlanStopsOptions {
   boundIterations?: number;
   /** The bound stops improving once the plan is within this share of it. */
   targetGap?: number;
+  /**
+   * Milliseconds for the stronger bound (Lagrangian decomposition, ./stop-planner-steps/stop-path-copy.ts)
+   * after the exact search, when it did not prove the plan and the gap is above `targetGap` (0: none).
+   */
+  strongBoundMs?: number;
   /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
   localSearchMs?: number;
   rules?: ComparisonRules;
@@ -238,6 +243,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     boundIterations = BOUND_ITERATIONS,
     targetGap = TARGET_GAP,
     localSearchMs = 0,
+    strongBoundMs = 0,
     rules = DEFAULT_COMPARISON_RULES,
   } = options;
   if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
@@ -301,8 +307,19 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     const searched = pricePlan(prep, found.plan);
     if (searched.cost.totalH < best.cost.totalH) best = searched;
   }
-  // Step 7: local search over stop sets from the best plan, each set priced exactly.
-  const lowerSoFarH = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH, probed?.lowerH ?? 0);
+  // Step 7: the stronger bound, when the search did not prove the plan and the gap is still wide.
+  let strongH = 0;
+  const lowerSoFar0H = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH, probed?.lowerH ?? 0);
+  if (!found.complete && relaxed !== null && strongBoundMs > 0 && best.cost.totalH - lowerSoFar0H > targetGap * lowerSoFar0H) {
+    const strong = decompositionBound(prep, relaxed.lambda, {
+      upperH: best.cost.totalH,
+      targetGap,
+      deadline: performance.now() + strongBoundMs,
+    });
+    strongH = Math.max(0, strong.lowerH);
+  }
+  // Step 8: local search over stop sets from the best plan, each set priced exactly.
+  const lowerSoFarH = Math.max(lowerSoFar0H, strongH);
   if (!found.complete && localSearchMs > 0 && best.cost.totalH - lowerSoFarH > targetGap * lowerSoFarH) {
     const stopIdx = (s: PlannedStop) => prep.aheadM.indexOf(s.aheadM);
     const improved = improveStops(
@@ -313,7 +330,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     if (improved.totalH < best.cost.totalH - 1e-9) best = pricePlan(prep, improved.plan);
   }
   const totalH = best.cost.totalH;
-  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH, probed?.lowerH ?? 0));
+  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(lowerSoFar0H, strongH));
   const gap = found.complete || totalH <= lowerBoundH ? 0 : lowerBoundH > 0 ? (totalH - lowerBoundH) / lowerBoundH : Infinity;
   return {
     feasible: true,

@@ -112,6 +112,7 @@ export function stopPathCopy(prep: Prepared): StopPathCopy {
       let bestD = -1;
       let oh = 0;
       let ot = 0;
+      let fMin = 0;
       for (let bp = 0; bp < m; bp++) {
         const lo = theta[bp];
         const lamB = lambda[bp];
@@ -146,11 +147,14 @@ export function stopPathCopy(prep: Prepared): StopPathCopy {
           }
         }
         // Rings fitted at f < bp still in use at bp, kept.
-        for (let d = 1; d < W; d++) {
+        // Only f ≥ fMin can still be in use (a ring fitted later reaches at least as far).
+        while (fMin < bp && reach[fMin] < bp) fMin++;
+        const dMax = Math.min(W - 1, bp - fMin);
+        for (let d = 1; d <= dMax; d++) {
           const f = bp - d;
           const k = base + d;
           V[k] = Infinity;
-          if (f < 0 || reach[f] < bp || reach[f] === done) continue;
+          if (reach[f] === done) continue;
           // The deque of f over the stops b in [max(lo, f), bp): bp − 1 enters now (f entered at bp = f + 1).
           const q = f * W;
           if (d === 1) hd[f] = tl[f] = 0;
