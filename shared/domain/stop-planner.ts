@@ -69,15 +69,23 @@
  *
  * Certificate: the Lagrangian bound L ≤ cheapest plan; a plan of H hours is then at most
  * (H − L)/L above the cheapest. When the exact search runs to the end, the plan is proven cheapest.
- * Order of work: the search's quick pass first (its plan aims the bound's steps), the bound, the
- * exact search (pruned with the bound's multipliers), then, when nothing proved the plan, a local
- * search over stop sets, each set priced exactly (./stop-planner-steps/lagrangian.ts).
+ * Order of work: the search's quick pass (2 states per place; its plan aims the bound's steps), a
+ * short exact search without the bound (300 states: it proves easy drives at once, so the bound's
+ * steps are skipped there), the bound, the exact search (pruned with the bound's multipliers),
+ * then, when nothing proved the plan, the stronger decomposition bound for a time budget
+ * (./stop-planner-steps/stop-path-copy.ts) and a local search over stop sets, each set priced
+ * exactly (./stop-planner-steps/lagrangian.ts).
  * Where the gap comes from (measured, DEVELOPERS.md decision 48): on the bench drive with wear × 3
  * the bound was the loose part (converged, it is within 1 % of the plan, and with it the search
- * proves the plan); on the demo drive the converged bound stays ≈ 19 % under the best plan any of
- * our methods finds, and on the demo drive cut to 300 m / 450 m (proven optima) it is 1.3 % / 2.1 %
- * under the optimum: the relaxation itself weakens on long abrasive horizons. A gap of 2 % there
- * needs a stronger relaxation (valid inequalities, or branching on stops), not more steps.
+ * proves the plan). On the demo drive the plain bound stays ≈ 19 % under the best plan even
+ * converged: eight gauge positions whose rings last 32–35 m force a stop about every 32 m, and a
+ * position whose ring lasts 87–110 m must then change every second or third stop (63–95 m) — the
+ * plain relaxation lets it change at fractions of stops placed anywhere, so it never pays for
+ * that (in the best plan the positions' chains cost 283 h more than their own best chains, about
+ * the whole gap). The decomposition bound gives some positions a stop path of their own, which
+ * must be a real path, and so recovers part of it (≈ 22 % → 17 % in 1.5 s); closing it to 2 %
+ * would need every position's copy to agree with the others (branching on stops, or far more
+ * steps than a request allows).
  *
  * Feasibility: changing every ring at its own latest place (the latest-change plan) is feasible
  * exactly when any plan is; an instance is infeasible exactly when some ring falls due before the
