@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { PositionClass } from '../../shared/domain/forecast';
 import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
-import { chainSolver, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
+import { chainSolver, decompositionBound, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
 import { prepare, pricePlan } from '../../shared/domain/stop-planner-steps/model';
 import { stopPathCopy } from '../../shared/domain/stop-planner-steps/stop-path-copy';
 
@@ -689,6 +689,7 @@ describe('certificate: the bound with stop-path copies (Lagrangian decomposition
   it('never exceeds the brute-force optimum, and at the same multipliers is never below the plain bound (300 seeded tiny instances)', () => {
     const rng = mulberry32(20261206);
     let stronger = 0;
+    let chosen = 0;
     for (let k = 0; k < 300; k++) {
       const input = tinyInstance(rng);
       const bruteH = bruteForceMinH(input);
@@ -715,7 +716,12 @@ describe('certificate: the bound with stop-path copies (Lagrangian decomposition
         });
         expect(fromPlain.lowerH, label).toBeLessThanOrEqual(bruteH + 1e-9);
       }
+      // As the planner runs it: copies chosen among the fast positions, steps until a deadline.
+      const strong = decompositionBound(prep, plain.lambda, { upperH: bruteH, targetGap: 0, deadline: performance.now() + 5 });
+      expect(strong.lowerH, label).toBeLessThanOrEqual(bruteH + 1e-9);
+      if (strong.copies > 0) chosen++;
     }
     expect(stronger).toBeGreaterThan(10);
+    expect(chosen).toBeGreaterThanOrEqual(5); // 9 with these seeds
   });
 });

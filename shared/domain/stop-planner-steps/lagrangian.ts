@@ -570,7 +570,18 @@ export function decompositionBound(
   const copy = stopPathCopy(prep);
   const copies = new Uint8Array(n);
   let count = 0;
-  for (let i = 0; i < n && performance.now() < deadline; i++) {
+  // Copies for the fast-wearing positions (a ring in use over at most twice the fewest places of
+  // any position): the stops they force are what the plain bound misses (on the demo drive the
+  // gains are all there), and their copies are cheap (a copy costs about places × places a ring
+  // stays in use). Among those, only the ones that already gain at the plain multipliers.
+  const inUse = prep.reachNew.map((reach) => {
+    let widest = 0;
+    for (let f = 0; f < reach.length; f++) if (reach[f] !== prep.done) widest = Math.max(widest, reach[f] - f);
+    return widest;
+  });
+  const fewest = Math.min(...inUse.filter((w) => w > 0));
+  for (let i = 0; i < n; i++) {
+    if (!(inUse[i] > 0 && inUse[i] <= 2 * fewest)) continue;
     if (copy.solve(i, lambda[i], null) > solver.full(i, lambda[i], null) + 1e-9) {
       copies[i] = 1;
       count++;
