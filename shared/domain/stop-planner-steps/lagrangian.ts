@@ -35,7 +35,7 @@
  * from the plain bound's multipliers. It stays in the same set of multipliers, so the search's
  * rest bound accepts its multipliers too. Measured (decision 48): demo drive, from ≈ 1,415 h after
  * 600 plain steps to ≈ 1,460 h at the same multipliers (every position a copy; the whole gain is
- * on five gauge positions) and ≈ 1,484 h after 1.5 s with copies for those; the demo drive cut to
+ * on five gauge positions) and ≈ 1,490 h after 1.5 s with copies for the eight fastest; the demo drive cut to
  * 450 m gains only 0.3 % (222.1 → 222.9 h after 100 steps, every position a copy; optimum 227.7 h).
  */
 import { lastReachable, type IndexPlan, type Prepared } from './model';
