@@ -51,7 +51,7 @@ export const PLANNER_MAX_STATES = 3_000;
 export const PLANNER_BOUND_ITERATIONS = 600;
 /** Milliseconds of local search over stop sets when the plan is not proven (DEVELOPERS.md, decision 48). */
 export const PLANNER_LOCAL_SEARCH_MS = 500;
-/** Milliseconds for the stronger bound (Lagrangian decomposition) when the plan is not proven; demo drive: gap ≈ 22 % → 17 % (DEVELOPERS.md, decision 48). */
+/** Milliseconds for the stronger bound (Lagrangian decomposition) when the plan is not proven; demo drive: gap ≈ 22 % → 16 % (DEVELOPERS.md, decision 48). */
 export const PLANNER_STRONG_BOUND_MS = 1_500;
 
 export const defaultStopPlanSettings = {

@@ -84,7 +84,7 @@
  * that (in the best plan the positions' chains cost 283 h more than their own best chains, about
  * the whole gap). The decomposition bound gives the fast-wearing positions a stop path of their
  * own, which must be a real path (each stop within reach of every ring fitted at the one before),
- * and so recovers part of it (≈ 22 % → 17 % in 1.5 s; the gain is on gauge positions whose rings
+ * and so recovers part of it (≈ 22 % → 16 % in 1.5 s; the gain is on gauge positions whose rings
  * last 33–35 m, held to the stops the 32 m rings set). Copies for the slower positions gain
  * nothing at the plain bound's multipliers and little after many steps; closing the gap to 2 %
  * would need every position's copy to agree with the others (branching on stops, or far more
