@@ -51,6 +51,8 @@ export const PLANNER_MAX_STATES = 3_000;
 export const PLANNER_BOUND_ITERATIONS = 600;
 /** Milliseconds of local search over stop sets when the plan is not proven (DEVELOPERS.md, decision 48). */
 export const PLANNER_LOCAL_SEARCH_MS = 500;
+/** Milliseconds for the stronger bound (Lagrangian decomposition) when the plan is not proven; demo drive: gap ≈ 22 % → 16 % (DEVELOPERS.md, decision 48). */
+export const PLANNER_STRONG_BOUND_MS = 1_500;
 
 export const defaultStopPlanSettings = {
   horizonM: 2000,
@@ -150,6 +152,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
     maxStates: PLANNER_MAX_STATES,
     boundIterations: PLANNER_BOUND_ITERATIONS,
     localSearchMs: PLANNER_LOCAL_SEARCH_MS,
+    strongBoundMs: PLANNER_STRONG_BOUND_MS,
     rules: { changeShare: settings.practiceChangeSharePercent / 100, intervalM: settings.fixedIntervalM },
   };
   const first = await planStopsInWorker(fullInput, options);

@@ -69,15 +69,26 @@
  *
  * Certificate: the Lagrangian bound L ≤ cheapest plan; a plan of H hours is then at most
  * (H − L)/L above the cheapest. When the exact search runs to the end, the plan is proven cheapest.
- * Order of work: the search's quick pass first (its plan aims the bound's steps), the bound, the
- * exact search (pruned with the bound's multipliers), then, when nothing proved the plan, a local
- * search over stop sets, each set priced exactly (./stop-planner-steps/lagrangian.ts).
+ * Order of work: the search's quick pass (2 states per place; its plan aims the bound's steps), a
+ * short exact search without the bound (300 states: it proves easy drives at once, so the bound's
+ * steps are skipped there), the bound, the exact search (pruned with the bound's multipliers),
+ * then, when nothing proved the plan, the stronger decomposition bound for a time budget
+ * (./stop-planner-steps/stop-path-copy.ts) and a local search over stop sets, each set priced
+ * exactly (./stop-planner-steps/lagrangian.ts).
  * Where the gap comes from (measured, DEVELOPERS.md decision 48): on the bench drive with wear × 3
  * the bound was the loose part (converged, it is within 1 % of the plan, and with it the search
- * proves the plan); on the demo drive the converged bound stays ≈ 19 % under the best plan any of
- * our methods finds, and on the demo drive cut to 300 m / 450 m (proven optima) it is 1.3 % / 2.1 %
- * under the optimum: the relaxation itself weakens on long abrasive horizons. A gap of 2 % there
- * needs a stronger relaxation (valid inequalities, or branching on stops), not more steps.
+ * proves the plan). On the demo drive the plain bound stays ≈ 19 % under the best plan even
+ * converged: eight gauge positions whose rings last 32–35 m force a stop about every 32 m, and a
+ * position whose ring lasts 87–110 m must then change every second or third stop (63–95 m) — the
+ * plain relaxation lets it change at fractions of stops placed anywhere, so it never pays for
+ * that (in the best plan the positions' chains cost 283 h more than their own best chains, about
+ * the whole gap). The decomposition bound gives the fast-wearing positions a stop path of their
+ * own, which must be a real path (each stop within reach of every ring fitted at the one before),
+ * and so recovers part of it (≈ 22 % → 16 % in 1.5 s; the gain is on gauge positions whose rings
+ * last 33–35 m, held to the stops the 32 m rings set). Copies for the slower positions gain
+ * nothing at the plain bound's multipliers and little after many steps; closing the gap to 2 %
+ * would need every position's copy to agree with the others (branching on stops, or far more
+ * steps than a request allows).
  *
  * Feasibility: changing every ring at its own latest place (the latest-change plan) is feasible
  * exactly when any plan is; an instance is infeasible exactly when some ring falls due before the
@@ -90,12 +101,14 @@
 import type { DriveDirection, PositionClass } from './forecast';
 import { fixedIntervalPlan, latestChangePlan, ownLatestChains, practicePlan } from './stop-planner-steps/baselines';
 import { searchBounds } from './stop-planner-steps/bounds';
-import { improveStops, lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
+import { decompositionBound, improveStops, lagrangianBound, lagrangianRestBound } from './stop-planner-steps/lagrangian';
 import { prepare, pricePlan, validate } from './stop-planner-steps/model';
 import { exactSearch } from './stop-planner-steps/search';
 
 /** States expanded per place by the first, quick pass that finds a good plan to bound the exact pass. */
-const QUICK_PASS_STATES = 8;
+const QUICK_PASS_STATES = 2;
+/** States of the short exact search run before the bound (it proves easy drives at once: the bench drive in under 100). */
+const PROBE_STATES = 300;
 /** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
 const BOUND_ITERATIONS = 400;
 /** The bound stops improving once the plan is certified within this share. */
@@ -219,6 +232,11 @@ export interface PlanStopsOptions {
   boundIterations?: number;
   /** The bound stops improving once the plan is within this share of it. */
   targetGap?: number;
+  /**
+   * Milliseconds for the stronger bound (Lagrangian decomposition, ./stop-planner-steps/stop-path-copy.ts)
+   * after the exact search, when it did not prove the plan and the gap is above `targetGap` (0: none).
+   */
+  strongBoundMs?: number;
   /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
   localSearchMs?: number;
   rules?: ComparisonRules;
@@ -236,6 +254,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     boundIterations = BOUND_ITERATIONS,
     targetGap = TARGET_GAP,
     localSearchMs = 0,
+    strongBoundMs = 0,
     rules = DEFAULT_COMPARISON_RULES,
   } = options;
   if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
@@ -266,25 +285,52 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
       if (quickPlan.cost.totalH < best.cost.totalH) best = quickPlan;
     }
   }
-  // Step 4: the lower bound, and plans found from it.
+  // Step 4: a short exact search without the bound (PROBE_STATES): on easy drives it proves the
+  // plan at once, and the bound's steps (most of the time on a long drive) are not needed.
+  let probeStates = 0;
+  let probed: ReturnType<typeof exactSearch> | null = null;
+  if (quickFirst) {
+    probed = exactSearch(prep, bounds, { quickPassStates: 0, maxStates: Math.min(maxStates, PROBE_STATES), boundH: best.cost.totalH });
+    probeStates = probed.statesExpanded;
+    if (probed.plan !== null) {
+      const probePlan = pricePlan(prep, probed.plan);
+      if (probePlan.cost.totalH < best.cost.totalH) best = probePlan;
+    }
+  }
+  const probeProven = probed !== null && probed.complete;
+  // Step 5: the lower bound, and plans found from it.
   const relaxed =
-    best.cost.totalH > 0 && boundIterations > 0
+    !probeProven && best.cost.totalH > 0 && boundIterations > 0
       ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap })
       : null;
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
-  // Step 5: the exact search, bounded by the best plan so far.
+  // Step 6: the exact search, bounded by the best plan so far.
   const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);
   const restBoundH = relaxed ? lagrangianRestBound(prep, relaxed.lambda) : undefined;
-  const searched0 = proven0
-    ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
-    : exactSearch(prep, bounds, { quickPassStates: quickFirst ? 0 : quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
-  const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates };
+  const searched0 =
+    probeProven && probed !== null
+      ? { ...probed, plan: null, statesExpanded: 0 }
+      : proven0
+        ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
+        : exactSearch(prep, bounds, { quickPassStates: quickFirst ? 0 : quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
+  const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates + probeStates };
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
     if (searched.cost.totalH < best.cost.totalH) best = searched;
   }
-  // Step 6: local search over stop sets from the best plan, each set priced exactly.
-  const lowerSoFarH = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH);
+  // Step 7: the stronger bound, when the search did not prove the plan and the gap is still wide.
+  let strongH = 0;
+  const lowerSoFar0H = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH, probed?.lowerH ?? 0);
+  if (!found.complete && relaxed !== null && strongBoundMs > 0 && best.cost.totalH - lowerSoFar0H > targetGap * lowerSoFar0H) {
+    const strong = decompositionBound(prep, relaxed.lambda, {
+      upperH: best.cost.totalH,
+      targetGap,
+      deadline: performance.now() + strongBoundMs,
+    });
+    strongH = Math.max(0, strong.lowerH);
+  }
+  // Step 8: local search over stop sets from the best plan, each set priced exactly.
+  const lowerSoFarH = Math.max(lowerSoFar0H, strongH);
   if (!found.complete && localSearchMs > 0 && best.cost.totalH - lowerSoFarH > targetGap * lowerSoFarH) {
     const stopIdx = (s: PlannedStop) => prep.aheadM.indexOf(s.aheadM);
     const improved = improveStops(
@@ -295,7 +341,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     if (improved.totalH < best.cost.totalH - 1e-9) best = pricePlan(prep, improved.plan);
   }
   const totalH = best.cost.totalH;
-  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(0, relaxed?.lowerH ?? 0, found.lowerH));
+  const lowerBoundH = found.complete ? totalH : Math.min(totalH, Math.max(lowerSoFar0H, strongH));
   const gap = found.complete || totalH <= lowerBoundH ? 0 : lowerBoundH > 0 ? (totalH - lowerBoundH) / lowerBoundH : Infinity;
   return {
     feasible: true,

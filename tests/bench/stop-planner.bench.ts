@@ -82,7 +82,8 @@ export function planFigures(name: string, ms: number, r: ReturnType<typeof planS
 
 /** Runs the planner on the bench instance and the harder one with the server's settings; returns the lines to print. */
 export async function benchStopPlanner(): Promise<string[]> {
-  const { PLANNER_MAX_STATES, PLANNER_BOUND_ITERATIONS, PLANNER_LOCAL_SEARCH_MS } = await import('../../server/services/stops');
+  const { PLANNER_MAX_STATES, PLANNER_BOUND_ITERATIONS, PLANNER_LOCAL_SEARCH_MS, PLANNER_STRONG_BOUND_MS } =
+    await import('../../server/services/stops');
   const lines: string[] = [];
   for (const wearFactor of [1, 3]) {
     const input = benchInput(wearFactor);
@@ -92,6 +93,7 @@ export async function benchStopPlanner(): Promise<string[]> {
       maxStates: PLANNER_MAX_STATES,
       boundIterations: PLANNER_BOUND_ITERATIONS,
       localSearchMs: PLANNER_LOCAL_SEARCH_MS,
+      strongBoundMs: PLANNER_STRONG_BOUND_MS,
     });
     const ms = performance.now() - t0;
     const cpu = process.cpuUsage(cpu0);

@@ -1,8 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import type { PositionClass } from '../../shared/domain/forecast';
 import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
-import { chainSolver, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
+import { chainSolver, decompositionBound, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
 import { prepare, pricePlan } from '../../shared/domain/stop-planner-steps/model';
+import { stopPathCopy } from '../../shared/domain/stop-planner-steps/stop-path-copy';
 
 // All data invented (no real project).
 
@@ -619,5 +620,108 @@ describe('certificate: bound, stop-set pricing and local search against the brut
     }
     expect(fromBound).toBeGreaterThan(100);
     expect(improvedByLocal).toBeGreaterThan(20);
+  });
+});
+
+describe('certificate: the bound with stop-path copies (Lagrangian decomposition) against the brute force', () => {
+  /**
+   * Position i's least hours plus λ over a stop path containing its changes, by brute force over
+   * every subset T of the places as the path, with the path conditions written from their
+   * definition (stop-path-copy.ts): every ring that must be changed inside the horizon (some
+   * position's) fitted at a stop lasts to the next stop; the first stop comes before any ring now
+   * fitted passes its limit; a ring fitted at the last stop lasts to the horizon.
+   */
+  function bruteForceCopyH(input: StopPlanInput, i: number, lambda: number[]): number {
+    const places = placesAhead(input);
+    const m = places.length;
+    const needs = input.positions.filter((p) => p.wearNowMm + wearAddedMm(p.wearStretches, input.horizonM) > p.limitMm + EPS);
+    const lasts = (p: (typeof needs)[number], fromM: number, toM: number, budgetMm: number) =>
+      wearAddedMm(p.wearStretches, toM) - wearAddedMm(p.wearStretches, fromM) <= budgetMm + EPS;
+    let best = Infinity;
+    for (let t = 1; t < 1 << m; t++) {
+      const stops = places.map((pl, j) => ((t >> j) & 1 ? pl.aheadM : null)).filter((x): x is number => x !== null);
+      let ok = needs.every((p) => lasts(p, 0, stops[0], p.limitMm - p.wearNowMm));
+      for (let k = 0; ok && k + 1 < stops.length; k++) ok = needs.every((p) => lasts(p, stops[k], stops[k + 1], p.limitMm));
+      ok = ok && needs.every((p) => lasts(p, stops[stops.length - 1], input.horizonM, p.limitMm));
+      if (!ok) continue;
+      let pathH = 0;
+      for (let j = 0; j < m; j++) if ((t >> j) & 1) pathH += lambda[j];
+      best = Math.min(best, pathH + bruteForcePositionH(input, i, t));
+    }
+    return best;
+  }
+
+  it('solves a position with its own stop path as the brute force does, for multipliers of either sign (300 seeded tiny instances)', () => {
+    const rng = mulberry32(20261205);
+    let solved = 0;
+    for (let k = 0; k < 300; k++) {
+      const input = tinyInstance(rng);
+      const prep = prepare(input);
+      const copy = stopPathCopy(prep);
+      const m = prep.aheadM.length;
+      for (let i = 0; i < input.positions.length; i++) {
+        const p = input.positions[i];
+        if (p.wearNowMm + wearAddedMm(p.wearStretches, input.horizonM) <= p.limitMm + EPS) continue;
+        const lambda = Array.from({ length: m }, () => 6 * rng() - 2);
+        const bruteH = bruteForceCopyH(input, i, lambda);
+        const stops = new Uint8Array(m);
+        const h = copy.solve(i, Float64Array.from(lambda), stops);
+        if (bruteH === Infinity) expect(h, `instance ${k} position ${i}`).toBe(Infinity);
+        else {
+          expect(h, `instance ${k} position ${i}`).toBeCloseTo(bruteH, 9);
+          // The path it reports costs what it says: λ over it plus the position's best on it.
+          let mask = 0;
+          let pathH = 0;
+          stops.forEach((s, j) => {
+            if (s === 1) {
+              mask |= 1 << j;
+              pathH += lambda[j];
+            }
+          });
+          expect(pathH + bruteForcePositionH(input, i, mask), `instance ${k} position ${i}`).toBeCloseTo(h, 9);
+          solved++;
+        }
+      }
+    }
+    expect(solved).toBeGreaterThan(150);
+  });
+
+  it('never exceeds the brute-force optimum, and at the same multipliers is never below the plain bound (300 seeded tiny instances)', () => {
+    const rng = mulberry32(20261206);
+    let stronger = 0;
+    let chosen = 0;
+    for (let k = 0; k < 300; k++) {
+      const input = tinyInstance(rng);
+      const bruteH = bruteForceMinH(input);
+      if (bruteH === null) continue;
+      const label = `instance ${k}`;
+      const prep = prepare(input);
+      const copies = new Uint8Array(input.positions.length).fill(1);
+      const plain = lagrangianBound(prep, { iterations: 50, upperH: 1e6, targetGap: 0 });
+      expect(plain.lowerH, label).toBeLessThanOrEqual(bruteH + 1e-9);
+      // One step from the plain bound's multipliers: the value there, with copies.
+      const atSame = lagrangianBound(prep, { iterations: 1, upperH: 1e6, targetGap: 0, copies, startLambda: plain.lambda });
+      expect(atSame.lowerH, label).toBeGreaterThanOrEqual(plain.lowerH - 1e-9);
+      if (atSame.lowerH > plain.lowerH + 1e-6) stronger++;
+      for (const iterations of [20, 200]) {
+        const fromStart = lagrangianBound(prep, { iterations, upperH: 1e6, targetGap: 0, copies });
+        expect(fromStart.lowerH, label).toBeLessThanOrEqual(bruteH + 1e-9);
+        const fromPlain = lagrangianBound(prep, {
+          iterations,
+          upperH: bruteH,
+          targetGap: 0,
+          copies,
+          startLambda: plain.lambda,
+          stepScale: 0.1,
+        });
+        expect(fromPlain.lowerH, label).toBeLessThanOrEqual(bruteH + 1e-9);
+      }
+      // As the planner runs it: copies chosen among the fast positions, steps until a deadline.
+      const strong = decompositionBound(prep, plain.lambda, { upperH: bruteH, targetGap: 0, deadline: performance.now() + 5 });
+      expect(strong.lowerH, label).toBeLessThanOrEqual(bruteH + 1e-9);
+      if (strong.copies > 0) chosen++;
+    }
+    expect(stronger).toBeGreaterThan(10);
+    expect(chosen).toBeGreaterThanOrEqual(5); // the copies are exercised, not only skipped
   });
 });

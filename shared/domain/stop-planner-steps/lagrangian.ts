@@ -29,8 +29,17 @@
  * stop set the cheapest plan splits into one shortest path per position (the same programme,
  * restricted to those places), so a stop set is priced exactly. A local search over stop sets
  * (drop, move anywhere, add; the first improving move taken) improves a plan within a time budget (not a proof).
+ *
+ * A stronger bound (decompositionBound, below): the same steps with some positions solved
+ * together with a stop path of their own (./stop-path-copy.ts, where the bound is proven), started
+ * from the plain bound's multipliers. It stays in the same set of multipliers, so the search's
+ * rest bound accepts its multipliers too. Measured (decision 48): demo drive, from ≈ 1,415 h after
+ * 600 plain steps to ≈ 1,460 h at the same multipliers (every position a copy; the whole gain is
+ * on five gauge positions) and ≈ 1,490 h after 1.5 s with copies for the eight fastest; the demo drive cut to
+ * 450 m gains only 0.3 % (222.1 → 222.9 h after 100 steps, every position a copy; optimum 227.7 h).
  */
 import { lastReachable, type IndexPlan, type Prepared } from './model';
+import { stopPathCopy } from './stop-path-copy';
 
 /**
  * Position i's cheapest chain: a dynamic programme over the places with a sliding-window
@@ -112,8 +121,61 @@ export function chainSolver(prep: Prepared): ChainSolver {
     }
     return bestH;
   };
+  // The programme over every place with per-place extra hours: `run` without the indirection
+  // through S (the bound calls it n times per step, so it is most of the bound's time).
+  const runFull = (i: number, extraH: Float64Array | null, out: Int32Array | null): number => {
+    lastLength = 0;
+    const ri = r0[i];
+    if (ri === done) return 0;
+    const w = prep.wearAt[i];
+    const reach = prep.reachNew[i];
+    const c = prep.changeH[i];
+    const startH = v * prep.startBudgetMm[i];
+    const vLimitH = v * prep.limitMm[i];
+    let head = 0;
+    let tail = 0;
+    let bestH = Infinity;
+    let bestLast = -1;
+    let prevFinite = false;
+    for (let k = 0; k < m; k++) {
+      if (prevFinite && reach[k - 1] >= k) {
+        const val = leaveH[k - 1];
+        while (tail > head && leaveH[deque[tail - 1]] >= val) tail--;
+        deque[tail++] = k - 1;
+      }
+      while (tail > head && reach[deque[head]] < k) head++;
+      let fromH = k <= ri ? startH : Infinity;
+      let from = -1;
+      if (tail > head && leaveH[deque[head]] < fromH) {
+        fromH = leaveH[deque[head]];
+        from = deque[head];
+      }
+      if (fromH === Infinity) {
+        dist[k] = Infinity;
+        prevFinite = false;
+        continue;
+      }
+      const wk = w[k];
+      const d = fromH + c - v * wk + (extraH === null ? 0 : extraH[k]);
+      dist[k] = d;
+      leaveH[k] = d + v * wk + vLimitH;
+      pred[k] = from;
+      prevFinite = true;
+      if (d < bestH && reach[k] === done) {
+        bestH = d;
+        bestLast = k;
+      }
+    }
+    if (out !== null && bestLast >= 0) {
+      let len = 0;
+      for (let a = bestLast; a >= 0; a = pred[a]) out[len++] = a;
+      out.subarray(0, len).reverse();
+      lastLength = len;
+    }
+    return bestH;
+  };
   return {
-    full: (i, extraH, out) => run(i, extraH, null, m, out),
+    full: runFull,
     restricted: (i, S, p, out) => run(i, null, S, p, out),
     length: () => lastLength,
     priceStops(S, p) {
@@ -231,6 +293,8 @@ const STALL_STEPS = 20;
 const SHRINK = 1.5;
 /** Share of the last direction added to the subgradient. */
 const DEFLECTION = 0.7;
+/** First step scale of the decomposition bound, which starts from good multipliers (tuned on the demo drive: 0.1 beat 1 and 0.02). */
+const DECOMPOSITION_STEP_SCALE = 0.1;
 /** Steps between plans built from the relaxed answer. */
 const PLAN_EVERY = 10;
 
@@ -260,19 +324,36 @@ export function lagrangianBound(
     targetGap,
     deadline = Infinity,
     localSearchUntil = -Infinity,
-  }: { iterations: number; upperH: number; targetGap: number; deadline?: number; localSearchUntil?: number },
+    copies = null,
+    startLambda = null,
+    stepScale = 1,
+  }: {
+    iterations: number;
+    upperH: number;
+    targetGap: number;
+    deadline?: number;
+    localSearchUntil?: number;
+    /** Positions (1) solved with a stop path of their own (./stop-path-copy.ts): a stronger, slower bound. */
+    copies?: Uint8Array | null;
+    /** Multipliers to start from (in the set above), e.g. a plain bound's. */
+    startLambda?: Float64Array[] | null;
+    /** First step length scale (Polyak's θ; smaller when starting from good multipliers). */
+    stepScale?: number;
+  },
 ): LagrangianResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
   const solver = chainSolver(prep);
   // Start from every stop's hours shared equally (a valid point of the set above).
   const lambda = Array.from({ length: n }, () => new Float64Array(m));
-  for (let j = 0; j < m; j++) for (let i = 0; i < n; i++) lambda[i][j] = prep.stopH[j] / n;
+  for (let j = 0; j < m; j++) for (let i = 0; i < n; i++) lambda[i][j] = startLambda ? startLambda[i][j] : prep.stopH[j] / n;
+  const copy = copies ? stopPathCopy(prep) : null;
+  const copyStops = copies ? Array.from({ length: n }, (_, i) => (copies[i] === 1 ? new Uint8Array(m) : null)) : [];
   let lowerH = -Infinity;
   const bestLambda: Float64Array[] = lambda.map((l) => l.slice());
   let bestPlan: IndexPlan | null = null;
   let bestH = upperH;
-  let theta = 1;
+  let theta = stepScale;
   let sinceGain = 0;
   let it = 0;
   const chains = Array.from({ length: n }, () => new Int32Array(m));
@@ -281,14 +362,18 @@ export function lagrangianBound(
   const mark = new Int32Array(n * m);
   const dir = new Float64Array(n * m);
   const stopSet = new Int32Array(m);
+  const column = new Float64Array(n);
   // Σ_i λ_ij per place, kept up to date.
   const sumH = new Float64Array(m);
   for (let i = 0; i < n; i++) for (let j = 0; j < m; j++) sumH[j] += lambda[i][j];
   for (; it < iterations && performance.now() < deadline; it++) {
     let valueH = 0;
     for (let i = 0; i < n; i++) {
-      valueH += solver.full(i, lambda[i], chains[i]);
+      const chainH = solver.full(i, lambda[i], chains[i]);
       lengths[i] = solver.length();
+      // A position with a copy: its changes with a stop path of its own (≥ chainH at the same λ).
+      const own = copy && copyStops[i];
+      valueH += own ? copy.solve(i, lambda[i], own) : chainH;
     }
     // The stop term Σ_j min(0, s_j − Σ_i λ_ij): zero inside the set, kept so any λ ≥ 0 is counted right.
     for (let j = 0; j < m; j++) if (prep.stopH[j] - sumH[j] < 0) valueH += prep.stopH[j] - sumH[j];
@@ -319,7 +404,12 @@ export function lagrangianBound(
     // Direction: the subgradient y_ij (the chains' places), deflected by a share of the last
     // direction (Camerini, Fratta & Maffioli 1975), which damps the zig-zag of plain steps;
     // zeroed where λ_ij = 0 and it points below 0.
-    for (let i = 0; i < n; i++) for (let a = 0; a < lengths[i]; a++) mark[i * m + chains[i][a]] = it + 1;
+    for (let i = 0; i < n; i++) {
+      const own = copyStops[i];
+      if (own) {
+        for (let j = 0; j < m; j++) if (own[j] === 1) mark[i * m + j] = it + 1;
+      } else for (let a = 0; a < lengths[i]; a++) mark[i * m + chains[i][a]] = it + 1;
+    }
     let normSq = 0;
     for (let i = 0; i < n; i++) {
       const lam = lambda[i];
@@ -343,15 +433,17 @@ export function lagrangianBound(
     }
     // Back onto Σ_i λ_ij ≤ s_j: Euclidean projection onto the capped simplex, place by place
     // (Michelot 1986: subtract the mean excess from the entries above it until none is left).
+    // The place's column is gathered once into a contiguous buffer (the rows are per position).
     for (let j = 0; j < m; j++) {
       if (sumH[j] <= prep.stopH[j]) continue;
+      for (let i = 0; i < n; i++) column[i] = lambda[i][j];
       let tauH = 0;
       for (let changed = true; changed;) {
         changed = false;
         let activeH = 0;
         let count = 0;
         for (let i = 0; i < n; i++) {
-          const x = lambda[i][j];
+          const x = column[i];
           if (x > tauH) {
             activeH += x;
             count++;
@@ -364,7 +456,11 @@ export function lagrangianBound(
         }
       }
       let projectedH = 0;
-      for (let i = 0; i < n; i++) projectedH += lambda[i][j] = Math.max(0, lambda[i][j] - tauH);
+      for (let i = 0; i < n; i++) {
+        const x = column[i] > tauH ? column[i] - tauH : 0;
+        if (x !== column[i]) lambda[i][j] = x;
+        projectedH += x;
+      }
       sumH[j] = projectedH;
     }
   }
@@ -456,4 +552,47 @@ export function lagrangianRestBound(
     }
     return restH;
   };
+}
+
+/**
+ * The stronger bound of ./stop-path-copy.ts from a plain bound's multipliers: the fast-wearing
+ * positions get a stop path of their own, and the subgradient steps go on, small, until
+ * `deadline` (performance.now(), ms). Any answer is a valid bound (every λ ≥ 0 gives one);
+ * the time only decides how strong.
+ */
+export function decompositionBound(
+  prep: Prepared,
+  lambda: Float64Array[],
+  { upperH, targetGap, deadline }: { upperH: number; targetGap: number; deadline: number },
+): { lowerH: number; copies: number; iterations: number; lambda: Float64Array[] } {
+  const n = prep.input.positions.length;
+  const copies = new Uint8Array(n);
+  let count = 0;
+  // Copies for the fast-wearing positions (a ring in use over at most twice the fewest places of
+  // any position): the stops they force are what the plain bound misses (on the demo drive the
+  // gains are there), and their copies are cheap (a copy costs about places × places a ring
+  // stays in use; the slowest cost ~7× the fastest and gained nothing there).
+  const inUse = prep.reachNew.map((reach) => {
+    let widest = 0;
+    for (let f = 0; f < reach.length; f++) if (reach[f] !== prep.done) widest = Math.max(widest, reach[f] - f);
+    return widest;
+  });
+  const fewest = Math.min(...inUse.filter((w) => w > 0));
+  for (let i = 0; i < n; i++) {
+    if (inUse[i] > 0 && inUse[i] <= 2 * fewest) {
+      copies[i] = 1;
+      count++;
+    }
+  }
+  if (count === 0) return { lowerH: -Infinity, copies: 0, iterations: 0, lambda };
+  const r = lagrangianBound(prep, {
+    iterations: Infinity,
+    upperH,
+    targetGap,
+    deadline,
+    copies,
+    startLambda: lambda,
+    stepScale: DECOMPOSITION_STEP_SCALE,
+  });
+  return { lowerH: r.lowerH, copies: count, iterations: r.iterations, lambda: r.lambda };
 }
