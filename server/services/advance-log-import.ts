@@ -4,7 +4,7 @@
  * adds nothing; a ring stored with other values is a conflict that needs an explicit "replace";
  * everything else goes in, all or nothing, in one transaction.
  */
-import { and, eq, sql } from 'drizzle-orm';
+import { and, between, eq, getTableColumns, sql } from 'drizzle-orm';
 import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import { from as copyFrom } from 'pg-copy-streams';
@@ -16,6 +16,7 @@ import { audit } from '../lib/audit';
 import { rememberMapping } from '../lib/csv/upload';
 import { ConflictError, InvalidInputError, type Issue } from '../lib/errors';
 import { driveDataChanged } from './drive-data';
+import { strokeEndMsSql, strokeStartMsSql, type KnownStroke, type KnownStrokes } from './rolled-distance';
 
 type StoredStroke = typeof strokes.$inferSelect;
 
@@ -48,6 +49,11 @@ function transactionClient(tx: DbOrTx): pg.PoolClient {
 /** COPY text-format field: backslash is COPY's escape character (JSON.stringify already escapes tabs and line breaks). */
 const copyText = (v: string) => (v.includes('\\') ? v.replaceAll('\\', '\\\\') : v);
 const copyNumber = (v: number | null) => (v === null ? '\\N' : String(v));
+/** The extra columns as COPY text of JSON; most files have none, and `{}` needs no serialising. */
+function copyExtra(extra: Record<string, string>): string {
+  for (const _ in extra) return copyText(JSON.stringify(extra));
+  return '{}';
+}
 
 /**
  * Writes new strokes with COPY … FROM STDIN on the transaction's own connection (decision 46), so a
@@ -60,7 +66,7 @@ async function copyStrokes(tx: DbOrTx, projectId: string, rows: readonly Advance
   function* lines(): Generator<string> {
     let chunk = '';
     for (const r of rows) {
-      chunk += `${projectId}\t${r.ringNumber}\t${r.startTime}\t${r.endTime}\t${r.chainageStartM}\t${r.chainageEndM}\t${copyNumber(r.revolutions)}\t${copyNumber(r.penetrationMmPerRev)}\t${copyNumber(r.rpm)}\t${copyNumber(r.thrustKn)}\t${copyNumber(r.torqueKnm)}\t${copyText(JSON.stringify(r.extra))}\n`;
+      chunk += `${projectId}\t${r.ringNumber}\t${r.startTime}\t${r.endTime}\t${r.chainageStartM}\t${r.chainageEndM}\t${copyNumber(r.revolutions)}\t${copyNumber(r.penetrationMmPerRev)}\t${copyNumber(r.rpm)}\t${copyNumber(r.thrustKn)}\t${copyNumber(r.torqueKnm)}\t${copyExtra(r.extra)}\n`;
       if (chunk.length >= 64 * 1024) {
         yield chunk;
         chunk = '';
@@ -84,6 +90,40 @@ export interface ImportOutcome {
   replaced: number;
 }
 
+/** A stored stroke as the import reads it: the row, and its times as the rolled-distance refresh reads them. */
+type StoredWithMs = StoredStroke & { startMs: number; endMs: number };
+
+/** -0 as 0: what a number reads back as from PostgreSQL (COPY and parameters write -0 as "0"). */
+const stored0 = (v: number) => v + 0;
+const stored0OrNull = (v: number | null) => (v === null ? null : v + 0);
+
+/** A stroke of the file as the refresh will find it stored: the file's values, times to the ms. */
+function knownFromRow(r: AdvanceLogRow): KnownStroke {
+  return {
+    id: `file:${r.ringNumber}`,
+    ringNumber: r.ringNumber,
+    chainageStartM: stored0(r.chainageStartM),
+    chainageEndM: stored0(r.chainageEndM),
+    revolutions: stored0OrNull(r.revolutions),
+    penetrationMmPerRev: stored0OrNull(r.penetrationMmPerRev),
+    startMs: Date.parse(r.startTime),
+    endMs: Date.parse(r.endTime),
+  };
+}
+
+function knownFromStored(s: StoredWithMs): KnownStroke {
+  return {
+    id: String(s.id),
+    ringNumber: s.ringNumber,
+    chainageStartM: s.chainageStartM,
+    chainageEndM: s.chainageEndM,
+    revolutions: s.revolutions,
+    penetrationMmPerRev: s.penetrationMmPerRev,
+    startMs: s.startMs,
+    endMs: s.endMs,
+  };
+}
+
 export async function importAdvanceLog(
   tx: DbOrTx,
   projectId: string,
@@ -91,16 +131,27 @@ export async function importAdvanceLog(
   rows: { line: number; data: AdvanceLogRow }[],
   options: { replace: boolean; mapping: Record<string, string> },
 ): Promise<ImportOutcome> {
-  const rings = rows.map((r) => r.data.ringNumber);
-  const stored = new Map<number, StoredStroke>();
-  // One array parameter for all rings (not one parameter per ring): only the rings already stored come back.
-  const found = await tx
-    .select()
-    .from(strokes)
-    .where(and(eq(strokes.projectId, projectId), sql`${strokes.ringNumber} = any(${sql.param(rings)}::int[])`));
-  for (const s of found) stored.set(s.ringNumber, s);
+  let minRing = Infinity;
+  let maxRing = -Infinity;
+  for (const r of rows) {
+    if (r.data.ringNumber < minRing) minRing = r.data.ringNumber;
+    if (r.data.ringNumber > maxRing) maxRing = r.data.ringNumber;
+  }
+  // Every stored stroke from the file's first ring to its last, in one range read of the ring
+  // index: the file's rings among them are compared with it, and all of them are what the
+  // rolled-distance refresh needs over that range (so it does not read them back).
+  const inRange: StoredWithMs[] =
+    rows.length === 0
+      ? []
+      : await tx
+          .select({ ...getTableColumns(strokes), startMs: sql<number>`${strokeStartMsSql}`, endMs: sql<number>`${strokeEndMsSql}` })
+          .from(strokes)
+          .where(and(eq(strokes.projectId, projectId), between(strokes.ringNumber, minRing, maxRing)))
+          .orderBy(strokes.ringNumber);
+  const stored = new Map<number, StoredWithMs>();
+  for (const s of inRange) stored.set(s.ringNumber, s);
   const fresh: typeof rows = [];
-  const conflicts: ((typeof rows)[number] & { diffs: string[]; stored: StoredStroke })[] = [];
+  const conflicts: ((typeof rows)[number] & { diffs: string[]; stored: StoredWithMs })[] = [];
   let unchanged = 0;
   for (const r of rows) {
     const s = stored.get(r.data.ringNumber);
@@ -127,8 +178,12 @@ export async function importAdvanceLog(
 
   // New rings may not overlap stored strokes in chainage (the engine checked the file itself).
   if (fresh.length > 0) {
-    const lo = Math.min(...fresh.map((r) => Math.min(r.data.chainageStartM, r.data.chainageEndM)));
-    const hi = Math.max(...fresh.map((r) => Math.max(r.data.chainageStartM, r.data.chainageEndM)));
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (const { data } of fresh) {
+      lo = Math.min(lo, data.chainageStartM, data.chainageEndM);
+      hi = Math.max(hi, data.chainageStartM, data.chainageEndM);
+    }
     const near = await tx
       .select({ ringNumber: strokes.ringNumber, a: strokes.chainageStartM, b: strokes.chainageEndM })
       .from(strokes)
@@ -140,18 +195,21 @@ export async function importAdvanceLog(
         ),
       );
     const issues: Issue[] = [];
-    for (const r of fresh) {
-      const a = Math.min(r.data.chainageStartM, r.data.chainageEndM);
-      const b = Math.max(r.data.chainageStartM, r.data.chainageEndM);
-      const hit = near.find((n) => n.ringNumber !== r.data.ringNumber && Math.min(n.a, n.b) < b - 0.001 && Math.max(n.a, n.b) > a + 0.001);
-      if (hit)
-        issues.push({
-          path: `row ${r.line}`,
-          row: r.line,
-          column: 'chainage start',
-          message: `Ring ${r.data.ringNumber} overlaps the stored ring ${hit.ringNumber} (${Math.min(hit.a, hit.b)}–${Math.max(hit.a, hit.b)} m).`,
-        });
-    }
+    if (near.length > 0)
+      for (const r of fresh) {
+        const a = Math.min(r.data.chainageStartM, r.data.chainageEndM);
+        const b = Math.max(r.data.chainageStartM, r.data.chainageEndM);
+        const hit = near.find(
+          (n) => n.ringNumber !== r.data.ringNumber && Math.min(n.a, n.b) < b - 0.001 && Math.max(n.a, n.b) > a + 0.001,
+        );
+        if (hit)
+          issues.push({
+            path: `row ${r.line}`,
+            row: r.line,
+            column: 'chainage start',
+            message: `Ring ${r.data.ringNumber} overlaps the stored ring ${hit.ringNumber} (${Math.min(hit.a, hit.b)}–${Math.max(hit.a, hit.b)} m).`,
+          });
+      }
     if (issues.length > 0)
       throw new InvalidInputError(`${issues.length} row(s) overlap strokes already stored; nothing was imported.`, issues.slice(0, 200));
   }
@@ -184,15 +242,57 @@ export async function importAdvanceLog(
     entity: 'advance_log',
     entityId: projectId,
     action: 'import',
-    before: conflicts.length ? conflicts.map((c) => c.stored) : null,
+    before: conflicts.length ? conflicts.map((c) => storedRow(c.stored)) : null,
     after: {
       inserted: fresh.length,
       unchanged,
       replaced: conflicts.length,
-      rings: rings.length ? [Math.min(...rings), Math.max(...rings)] : [],
+      rings: rows.length ? [minRing, maxRing] : [],
     },
   });
   // Replaced rings change the past; new rings after the last computed one only add.
-  if (fresh.length + conflicts.length > 0) await driveDataChanged(tx, projectId, { rewritesPast: conflicts.length > 0, refreshNow: true });
+  if (fresh.length + conflicts.length > 0)
+    await driveDataChanged(tx, projectId, {
+      rewritesPast: conflicts.length > 0,
+      refreshNow: true,
+      known: knownAfterImport(minRing, maxRing, rows, inRange, stored),
+    });
   return { inserted: fresh.length, unchanged, replaced: conflicts.length };
+}
+
+/** The stored row without the times the import read beside it (as the audit log has always kept it). */
+function storedRow(s: StoredWithMs): StoredStroke {
+  const { startMs: _startMs, endMs: _endMs, ...row } = s;
+  return row;
+}
+
+/**
+ * Every stroke stored from `minRing` to `maxRing` once the import is written, from memory: the
+ * file's values for its new and replaced rings, the stored values for its unchanged rings (equal
+ * within the tolerances, not to the bit) and for the stored rings it does not name.
+ */
+function knownAfterImport(
+  minRing: number,
+  maxRing: number,
+  rows: readonly { data: AdvanceLogRow }[],
+  inRange: readonly StoredWithMs[],
+  stored: ReadonlyMap<number, StoredWithMs>,
+): KnownStrokes {
+  const inFile = new Set<number>();
+  const known: KnownStroke[] = [];
+  for (const { data } of rows) {
+    inFile.add(data.ringNumber);
+    const s = stored.get(data.ringNumber);
+    // Unchanged: the stored stroke stays; otherwise (new or replaced) the file's values are stored now.
+    known.push(s && strokeDifferences(s, data).length === 0 ? knownFromStored(s) : knownFromRow(data));
+  }
+  let ordered = true;
+  for (const s of inRange) {
+    if (inFile.has(s.ringNumber)) continue;
+    known.push(knownFromStored(s));
+    ordered = false;
+  }
+  for (let i = 1; ordered && i < known.length; i++) ordered = known[i - 1].ringNumber < known[i].ringNumber;
+  if (!ordered) known.sort((x, y) => x.ringNumber - y.ringNumber);
+  return { fromRing: minRing, toRing: maxRing, strokes: known };
 }
