@@ -113,6 +113,8 @@ export function fromSiteInput(value: string, timeZone: string): string | null {
 }
 
 const HOUR_MS = 3_600_000;
+/** "00" to "59". */
+const TWO_DIGITS = Array.from({ length: 60 }, (_, n) => String(n).padStart(2, '0'));
 const DAYS_IN_MONTH = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 
 /** Whether the parts name a real wall time (Gregorian calendar; years from 100, as Date reads 0–99 as 1900–1999). */
@@ -186,6 +188,8 @@ export function siteTimes(timeZone: string): SiteTimes {
     return first && last && last.getTime() - first.getTime() === lengthMs - 1000 ? wallFromMs - first.getTime() : NaN;
   };
   const pad = (n: number) => (n < 10 ? `0${n}` : String(n));
+  const datePrefixByWallDay = new Map<number, string>();
+  const suffixByOffset = new Map<number, string>();
   return {
     timeZone,
     wallTimeToMs(year, month, day, hour, minute, second) {
@@ -204,10 +208,22 @@ export function siteTimes(timeZone: string): SiteTimes {
     },
     isoWithOffset(ms) {
       const offsetMin = offsetMinutesAt(ms);
-      const wall = new Date(Math.floor(ms / 1000) * 1000 + offsetMin * 60_000).toISOString().slice(0, 19);
-      if (offsetMin === 0) return `${wall}Z`;
-      const abs = Math.abs(offsetMin);
-      return `${wall}${offsetMin < 0 ? '-' : '+'}${pad(Math.floor(abs / 60))}:${pad(abs % 60)}`;
+      const wallMs = Math.floor(ms / 1000) * 1000 + offsetMin * 60_000;
+      // The wall day's "YYYY-MM-DDT" once per day, the offset's text once per offset; the time of day from a table.
+      const wallDay = Math.floor(wallMs / DAY_MS);
+      let date = datePrefixByWallDay.get(wallDay);
+      if (date === undefined) datePrefixByWallDay.set(wallDay, (date = new Date(wallDay * DAY_MS).toISOString().slice(0, 11)));
+      let suffix = suffixByOffset.get(offsetMin);
+      if (suffix === undefined) {
+        const abs = Math.abs(offsetMin);
+        suffix = offsetMin === 0 ? 'Z' : `${offsetMin < 0 ? '-' : '+'}${pad(Math.floor(abs / 60))}:${pad(abs % 60)}`;
+        suffixByOffset.set(offsetMin, suffix);
+      }
+      // Years outside 0000–9999 are written with six digits and a sign: the whole text from Date then.
+      if (date.length !== 11) return `${new Date(wallMs).toISOString().slice(0, 19)}${suffix}`;
+      const seconds = (wallMs - wallDay * DAY_MS) / 1000;
+      const minutes = Math.floor(seconds / 60);
+      return `${date}${TWO_DIGITS[Math.floor(minutes / 60)]}:${TWO_DIGITS[minutes % 60]}:${TWO_DIGITS[seconds % 60]}${suffix}`;
     },
   };
 }
