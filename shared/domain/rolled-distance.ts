@@ -243,7 +243,11 @@ export function sumRolledKmForPeriods(
   previous: readonly PeriodRolledKm[] = [],
 ): PeriodRolledKm[] {
   const byGround = new Map<string | null, { times: number[]; cum: number[] }>();
-  const sorted = [...pieces].sort((a, b) => a.startMs - b.startMs);
+  // Pieces of strokes in ring order mostly come in time order already; sorting (stable) would keep that order.
+  let inOrder = periods.length > 0;
+  for (let i = 1; inOrder && i < pieces.length; i++) inOrder = pieces[i - 1].startMs <= pieces[i].startMs;
+  const sorted = periods.length === 0 ? [] : inOrder ? pieces : [...pieces].sort((a, b) => a.startMs - b.startMs);
+  // (No periods: only the previous totals come back, and no piece needs sorting.)
   for (const piece of sorted) {
     let series = byGround.get(piece.groundTypeId);
     if (!series) byGround.set(piece.groundTypeId, (series = { times: [], cum: [0] }));
