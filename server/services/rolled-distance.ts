@@ -150,11 +150,15 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string, known
     }));
   // An inspection's exposure is a window too: from its disc's fitting to the round.
   const fittingById = new Map(fittingRows.map((f) => [f.id, f]));
-  const entryRows = await tx
-    .select({ id: inspectionEntries.id, fittingId: inspectionEntries.fittingId, at: inspectionRounds.startedAt })
-    .from(inspectionEntries)
-    .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
-    .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
+  // Without a fitted period there is no exposure window either (a drive before its first fitting).
+  const entryRows =
+    periods.length === 0
+      ? []
+      : await tx
+          .select({ id: inspectionEntries.id, fittingId: inspectionEntries.fittingId, at: inspectionRounds.startedAt })
+          .from(inspectionEntries)
+          .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
+          .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
   const entryWindows: RadiusPeriod[] = entryRows.flatMap((e) => {
     const f = fittingById.get(e.fittingId!);
     return f && radius.has(f.positionId)

@@ -129,17 +129,9 @@ function readTime(raw: string, label: string, times: SiteTimes): Cell {
   return { ok: true, value: siteIso(instantMs, times), timeFormat };
 }
 
-/** Reads a trimmed cell as the field's type; '' is null. */
-export function readCell(info: CsvFieldInfo<string>, raw: string, decimalComma: boolean, times: SiteTimes | undefined): Cell {
-  const slot = cellSlot();
-  return readCellInto(slot, info, raw, decimalComma, times)
-    ? { ok: true, value: slot.value, ...(slot.timeFormat ? { timeFormat: slot.timeFormat } : {}) }
-    : { ok: false, message: slot.message };
-}
-
 /**
- * `readCell` into `slot` (true when the cell was read): the same values and messages, with no
- * object made for a number, an empty cell, yes/no or text.
+ * Reads a trimmed cell as the field's type ('' is null) into `slot`; true when it was read, else
+ * `slot.message` says why. No object is made for a number, an empty cell, yes/no or text.
  */
 export function readCellInto(
   slot: CellSlot,
