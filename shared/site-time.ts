@@ -162,10 +162,23 @@ export function siteTimes(timeZone: string): SiteTimes {
     const last = Math.round(tzOffset(timeZone, new Date(fromMs + lengthMs - 1)));
     return first === last ? first : NaN;
   };
+  // The offset at the start of each UTC day seen: a day whose start and the next day's start share
+  // an offset keeps it all day (the next day's start stands in for the day's last moment, so a run
+  // of days asks the zone once per day, not twice; a change at midnight UTC only sends that day
+  // to the hour-by-hour path).
+  const offsetAtDayStart = new Map<number, number>();
+  const dayStartOffset = (day: number) => {
+    let offset = offsetAtDayStart.get(day);
+    if (offset === undefined) offsetAtDayStart.set(day, (offset = Math.round(tzOffset(timeZone, new Date(day * DAY_MS)))));
+    return offset;
+  };
   const offsetMinutesAt = (ms: number): number => {
     const day = Math.floor(ms / DAY_MS);
     let offset = offsetByUtcDay.get(day);
-    if (offset === undefined) offsetByUtcDay.set(day, (offset = offsetOver(day * DAY_MS, DAY_MS)));
+    if (offset === undefined) {
+      const first = dayStartOffset(day);
+      offsetByUtcDay.set(day, (offset = first === dayStartOffset(day + 1) ? first : NaN));
+    }
     if (!Number.isNaN(offset)) return offset;
     const hour = Math.floor(ms / HOUR_MS);
     offset = offsetByUtcHour.get(hour);
