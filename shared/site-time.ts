@@ -113,6 +113,8 @@ export function fromSiteInput(value: string, timeZone: string): string | null {
 }
 
 const HOUR_MS = 3_600_000;
+/** "00" to "59". */
+const TWO_DIGITS = Array.from({ length: 60 }, (_, n) => String(n).padStart(2, '0'));
 const DAYS_IN_MONTH = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 
 /** Whether the parts name a real wall time (Gregorian calendar; years from 100, as Date reads 0–99 as 1900–1999). */
@@ -160,10 +162,23 @@ export function siteTimes(timeZone: string): SiteTimes {
     const last = Math.round(tzOffset(timeZone, new Date(fromMs + lengthMs - 1)));
     return first === last ? first : NaN;
   };
+  // The offset at the start of each UTC day seen: a day whose start and the next day's start share
+  // an offset keeps it all day (the next day's start stands in for the day's last moment, so a run
+  // of days asks the zone once per day, not twice; a change at midnight UTC only sends that day
+  // to the hour-by-hour path).
+  const offsetAtDayStart = new Map<number, number>();
+  const dayStartOffset = (day: number) => {
+    let offset = offsetAtDayStart.get(day);
+    if (offset === undefined) offsetAtDayStart.set(day, (offset = Math.round(tzOffset(timeZone, new Date(day * DAY_MS)))));
+    return offset;
+  };
   const offsetMinutesAt = (ms: number): number => {
     const day = Math.floor(ms / DAY_MS);
     let offset = offsetByUtcDay.get(day);
-    if (offset === undefined) offsetByUtcDay.set(day, (offset = offsetOver(day * DAY_MS, DAY_MS)));
+    if (offset === undefined) {
+      const first = dayStartOffset(day);
+      offsetByUtcDay.set(day, (offset = first === dayStartOffset(day + 1) ? first : NaN));
+    }
     if (!Number.isNaN(offset)) return offset;
     const hour = Math.floor(ms / HOUR_MS);
     offset = offsetByUtcHour.get(hour);
@@ -186,6 +201,8 @@ export function siteTimes(timeZone: string): SiteTimes {
     return first && last && last.getTime() - first.getTime() === lengthMs - 1000 ? wallFromMs - first.getTime() : NaN;
   };
   const pad = (n: number) => (n < 10 ? `0${n}` : String(n));
+  const datePrefixByWallDay = new Map<number, string>();
+  const suffixByOffset = new Map<number, string>();
   return {
     timeZone,
     wallTimeToMs(year, month, day, hour, minute, second) {
@@ -204,10 +221,22 @@ export function siteTimes(timeZone: string): SiteTimes {
     },
     isoWithOffset(ms) {
       const offsetMin = offsetMinutesAt(ms);
-      const wall = new Date(Math.floor(ms / 1000) * 1000 + offsetMin * 60_000).toISOString().slice(0, 19);
-      if (offsetMin === 0) return `${wall}Z`;
-      const abs = Math.abs(offsetMin);
-      return `${wall}${offsetMin < 0 ? '-' : '+'}${pad(Math.floor(abs / 60))}:${pad(abs % 60)}`;
+      const wallMs = Math.floor(ms / 1000) * 1000 + offsetMin * 60_000;
+      // The wall day's "YYYY-MM-DDT" once per day, the offset's text once per offset; the time of day from a table.
+      const wallDay = Math.floor(wallMs / DAY_MS);
+      let date = datePrefixByWallDay.get(wallDay);
+      if (date === undefined) datePrefixByWallDay.set(wallDay, (date = new Date(wallDay * DAY_MS).toISOString().slice(0, 11)));
+      let suffix = suffixByOffset.get(offsetMin);
+      if (suffix === undefined) {
+        const abs = Math.abs(offsetMin);
+        suffix = offsetMin === 0 ? 'Z' : `${offsetMin < 0 ? '-' : '+'}${pad(Math.floor(abs / 60))}:${pad(abs % 60)}`;
+        suffixByOffset.set(offsetMin, suffix);
+      }
+      // Years outside 0000–9999 are written with six digits and a sign: the whole text from Date then.
+      if (date.length !== 11) return `${new Date(wallMs).toISOString().slice(0, 19)}${suffix}`;
+      const seconds = (wallMs - wallDay * DAY_MS) / 1000;
+      const minutes = Math.floor(seconds / 60);
+      return `${date}${TWO_DIGITS[Math.floor(minutes / 60)]}:${TWO_DIGITS[minutes % 60]}:${TWO_DIGITS[seconds % 60]}${suffix}`;
     },
   };
 }

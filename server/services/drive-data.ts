@@ -6,7 +6,7 @@
  * database triggers raise the drive's data version in the same transaction (decision 38).
  */
 import type { DbOrTx } from '../db/client';
-import { invalidateRolledDistance, refreshRolledDistance } from './rolled-distance';
+import { invalidateRolledDistance, refreshRolledDistance, type KnownStrokes } from './rolled-distance';
 
 export interface DriveDataChange {
   /**
@@ -20,10 +20,12 @@ export interface DriveDataChange {
    * a write must choose when it calls this before it has finished changing the data.
    */
   refreshNow: boolean;
+  /** Strokes the write holds in memory (rolled-distance.ts, KnownStrokes): the refresh reads only the others. */
+  known?: KnownStrokes;
 }
 
 /** Keeps a drive's derived data in step with a write to its data; call inside the write's transaction. */
 export async function driveDataChanged(tx: DbOrTx, projectId: string, change: DriveDataChange): Promise<void> {
   if (change.rewritesPast) await invalidateRolledDistance(tx, projectId);
-  if (change.refreshNow) await refreshRolledDistance(tx, projectId);
+  if (change.refreshNow) await refreshRolledDistance(tx, projectId, change.known);
 }

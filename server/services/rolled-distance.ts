@@ -8,11 +8,11 @@
 import { and, eq, sql } from 'drizzle-orm';
 import type { GeologySection } from '../../shared/domain/geology';
 import {
-  revolutionsByGround,
+  revolutionsByGroundMs,
   sumRolledKmForPeriods,
   type PeriodRolledKm,
   type RadiusPeriod,
-  type Stroke,
+  type TimedStroke,
 } from '../../shared/domain/rolled-distance';
 import type { DbOrTx } from '../db/client';
 import {
@@ -56,29 +56,71 @@ type StrokeRow = {
   end_ms: number;
 };
 
-const toStroke = (s: StrokeRow): Stroke => ({
+/** A stroke as the refresh uses it: the stored values, times in ms since the epoch (floored to the ms). */
+export type KnownStroke = Omit<TimedStroke, 'startMs' | 'endMs'> & { startMs: number; endMs: number };
+
+/**
+ * Strokes a write already holds in memory, so the refresh in its transaction need not read them
+ * back: every stroke stored for the drive with a ring number from `fromRing` to `toRing` (both
+ * included), with the values as stored once the write is done, in ring order. Ids only need to be
+ * unique among them (they name no row; errors are reported by ring).
+ */
+export interface KnownStrokes {
+  fromRing: number;
+  toRing: number;
+  strokes: readonly KnownStroke[];
+}
+
+const fromRow = (s: StrokeRow): KnownStroke => ({
   id: String(s.id),
   ringNumber: s.ring_number,
   chainageStartM: s.chainage_start_m,
   chainageEndM: s.chainage_end_m,
   revolutions: s.revolutions,
   penetrationMmPerRev: s.penetration_mm_per_rev,
-  startTime: new Date(s.start_ms).toISOString(),
-  endTime: new Date(s.end_ms).toISOString(),
+  startMs: s.start_ms,
+  endMs: s.end_ms,
 });
 
-/** Brings the rolled distances of a project up to date, incrementally when only new strokes came in. */
-export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Promise<RefreshResult> {
-  const [state] = await tx.select().from(rolledDistanceState).where(eq(rolledDistanceState.projectId, projectId)).for('update');
-  const full = !state;
-  const strokeRows = (
+/** The SQL of a stroke's times as the refresh reads them: ms since the epoch, floored (as a Date holds a timestamp). */
+export const strokeStartMsSql = sql`floor(extract(epoch from start_time) * 1000)::float8`;
+export const strokeEndMsSql = sql`floor(extract(epoch from end_time) * 1000)::float8`;
+
+/**
+ * The strokes the refresh counts, in ring order: all of the drive's (full) or those after
+ * `afterRing` (incremental). With `known`, the rings it covers come from memory and only the
+ * stored strokes before and after that range are read.
+ */
+async function strokesToCount(tx: DbOrTx, projectId: string, afterRing: number | null, known?: KnownStrokes): Promise<KnownStroke[]> {
+  const outside = known ? sql`and (ring_number < ${known.fromRing} or ring_number > ${known.toRing})` : sql``;
+  const after = afterRing === null ? sql`` : sql`and ring_number > ${afterRing}`;
+  const rows = (
     await tx.execute<StrokeRow>(sql`
       select id, ring_number, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev,
-             floor(extract(epoch from start_time) * 1000)::float8 as start_ms, floor(extract(epoch from end_time) * 1000)::float8 as end_ms
+             ${strokeStartMsSql} as start_ms, ${strokeEndMsSql} as end_ms
       from strokes
-      where project_id = ${projectId} ${full ? sql`` : sql`and ring_number > ${state.throughRing}`}
+      where project_id = ${projectId} ${after} ${outside}
       order by ring_number`)
-  ).rows;
+  ).rows.map(fromRow);
+  if (!known) return rows;
+  const inRange = afterRing === null ? known.strokes : known.strokes.filter((s) => s.ringNumber > afterRing);
+  if (inRange.length === 0) return rows;
+  // Stored strokes below the range, the range, then those above it: ring order throughout.
+  let below = 0;
+  while (below < rows.length && rows[below].ringNumber < known.fromRing) below++;
+  if (below === rows.length) return rows.length === 0 ? [...inRange] : rows.concat(inRange);
+  return rows.slice(0, below).concat(inRange, rows.slice(below));
+}
+
+/**
+ * Brings the rolled distances of a project up to date, incrementally when only new strokes came
+ * in. `known`: strokes the caller's write holds in memory (see KnownStrokes); the result is the
+ * same as without them.
+ */
+export async function refreshRolledDistance(tx: DbOrTx, projectId: string, known?: KnownStrokes): Promise<RefreshResult> {
+  const [state] = await tx.select().from(rolledDistanceState).where(eq(rolledDistanceState.projectId, projectId)).for('update');
+  const full = !state;
+  const strokeRows = await strokesToCount(tx, projectId, full ? null : state.throughRing, known);
   if (!full && strokeRows.length === 0) return { mode: 'none', strokes: 0, errors: [] };
 
   const positionRows = await tx.select().from(positions).where(eq(positions.projectId, projectId));
@@ -93,8 +135,7 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     stopAllowed: s.stopAllowed,
     stopReason: s.stopReason,
   }));
-  const domainStrokes = strokeRows.map(toStroke);
-  const { pieces, errors } = revolutionsByGround(domainStrokes, sections);
+  const { pieces, errors } = revolutionsByGroundMs(strokeRows, sections);
   // A stored radius the computation cannot use (0, negative) rolls nothing: its fittings are left out here, and the
   // forecast and parts demand name the position (usableTrackRadius).
   const radius = new Map(positionRows.filter((p) => usableTrackRadius(p.trackRadiusMm)).map((p) => [p.id, p.trackRadiusMm]));
@@ -109,11 +150,15 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     }));
   // An inspection's exposure is a window too: from its disc's fitting to the round.
   const fittingById = new Map(fittingRows.map((f) => [f.id, f]));
-  const entryRows = await tx
-    .select({ id: inspectionEntries.id, fittingId: inspectionEntries.fittingId, at: inspectionRounds.startedAt })
-    .from(inspectionEntries)
-    .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
-    .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
+  // Without a fitted period there is no exposure window either (a drive before its first fitting).
+  const entryRows =
+    periods.length === 0
+      ? []
+      : await tx
+          .select({ id: inspectionEntries.id, fittingId: inspectionEntries.fittingId, at: inspectionRounds.startedAt })
+          .from(inspectionEntries)
+          .innerJoin(inspectionRounds, eq(inspectionRounds.id, inspectionEntries.roundId))
+          .where(and(eq(inspectionEntries.projectId, projectId), sql`${inspectionEntries.fittingId} is not null`));
   const entryWindows: RadiusPeriod[] = entryRows.flatMap((e) => {
     const f = fittingById.get(e.fittingId!);
     return f && radius.has(f.positionId)
@@ -142,12 +187,13 @@ export async function refreshRolledDistance(tx: DbOrTx, projectId: string): Prom
     entryTotals.filter((t) => t.rolledKm > 0),
   );
 
-  const throughRing = Math.max(state?.throughRing ?? -1, ...strokeRows.map((s) => s.ring_number));
+  // Rings come in ascending order: the last is the highest.
+  const throughRing = Math.max(state?.throughRing ?? -1, strokeRows.at(-1)?.ringNumber ?? -1);
   await tx
     .insert(rolledDistanceState)
     .values({ projectId, throughRing })
     .onConflictDoUpdate({ target: rolledDistanceState.projectId, set: { throughRing, computedAt: sql`now()` } });
-  const ringOf = new Map(domainStrokes.map((s) => [s.id, s.ringNumber]));
+  const ringOf = new Map(errors.length ? strokeRows.map((s) => [s.id, s.ringNumber]) : []);
   return {
     mode: full ? 'full' : 'incremental',
     strokes: strokeRows.length,

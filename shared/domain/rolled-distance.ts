@@ -116,7 +116,7 @@ export function rolledMPerAdvanceM(trackRadiusM: number, penetrationMmPerRev: nu
 }
 
 /** Cutterhead revolutions over a stroke: the measured count when logged, else advance (mm) / penetration (mm/rev). */
-export function strokeRevolutions(stroke: Stroke): StrokeRevolutions {
+export function strokeRevolutions(stroke: Omit<Stroke, 'startTime' | 'endTime'>): StrokeRevolutions {
   if (!Number.isFinite(stroke.chainageStartM) || !Number.isFinite(stroke.chainageEndM)) return { error: 'invalid_chainage' };
   if (stroke.revolutions !== null) {
     if (!Number.isFinite(stroke.revolutions) || stroke.revolutions < 0) return { error: 'invalid_revolutions' };
@@ -175,13 +175,30 @@ export function revolutionsByGround(
   strokes: readonly Stroke[],
   sections: readonly GeologySection[],
 ): { pieces: StrokeGroundRevolutions[]; errors: StrokeError[] } {
+  return revolutionsByGroundMs(
+    strokes.map((s) => ({ ...s, startMs: isoTimeMs(s.startTime), endMs: isoTimeMs(s.endTime) })),
+    sections,
+  );
+}
+
+/** A stroke whose times are already ms since the epoch (null: not a time with an offset). */
+export type TimedStroke = Omit<Stroke, 'startTime' | 'endTime'> & { startMs: number | null; endMs: number | null };
+
+/**
+ * `revolutionsByGround` for strokes whose times are already read (a stored stroke's times come
+ * from the database as numbers): the same pieces and errors, without writing and re-reading ISO
+ * text for every stroke.
+ */
+export function revolutionsByGroundMs(
+  strokes: readonly TimedStroke[],
+  sections: readonly GeologySection[],
+): { pieces: StrokeGroundRevolutions[]; errors: StrokeError[] } {
   const pieces: StrokeGroundRevolutions[] = [];
   const errors: StrokeError[] = [];
   const splitStroke = chainageSplitter(sections);
   for (const stroke of strokes) {
     const revs = strokeRevolutions(stroke);
-    const startMs = isoTimeMs(stroke.startTime);
-    const endMs = isoTimeMs(stroke.endTime);
+    const { startMs, endMs } = stroke;
     if ('error' in revs || startMs === null || endMs === null || endMs < startMs) {
       errors.push({ strokeId: stroke.id, ringNumber: stroke.ringNumber, reason: 'error' in revs ? revs.error : 'invalid_time' });
       continue;
@@ -226,7 +243,11 @@ export function sumRolledKmForPeriods(
   previous: readonly PeriodRolledKm[] = [],
 ): PeriodRolledKm[] {
   const byGround = new Map<string | null, { times: number[]; cum: number[] }>();
-  const sorted = [...pieces].sort((a, b) => a.startMs - b.startMs);
+  // Pieces of strokes in ring order mostly come in time order already; sorting (stable) would keep that order.
+  let inOrder = periods.length > 0;
+  for (let i = 1; inOrder && i < pieces.length; i++) inOrder = pieces[i - 1].startMs <= pieces[i].startMs;
+  const sorted = periods.length === 0 ? [] : inOrder ? pieces : [...pieces].sort((a, b) => a.startMs - b.startMs);
+  // (No periods: only the previous totals come back, and no piece needs sorting.)
   for (const piece of sorted) {
     let series = byGround.get(piece.groundTypeId);
     if (!series) byGround.set(piece.groundTypeId, (series = { times: [], cum: [0] }));

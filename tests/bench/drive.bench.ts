@@ -142,6 +142,26 @@ export async function benchDrive(): Promise<string[]> {
   return out;
 }
 
+/** Starts V8's CPU profiler in this process; `stop(file)` writes the profile there. */
+async function startCpuProfile(): Promise<{ stop: (file: string) => Promise<void> }> {
+  const { Session } = await import('node:inspector/promises');
+  const { mkdir, writeFile } = await import('node:fs/promises');
+  const { dirname } = await import('node:path');
+  const session = new Session();
+  session.connect();
+  await session.post('Profiler.enable');
+  await session.post('Profiler.setSamplingInterval', { interval: 100 });
+  await session.post('Profiler.start');
+  return {
+    async stop(file) {
+      const { profile } = await session.post('Profiler.stop');
+      session.disconnect();
+      await mkdir(dirname(file), { recursive: true });
+      await writeFile(file, JSON.stringify(profile));
+    },
+  };
+}
+
 /**
  * Import of 10,000 advance-log rows end to end through the HTTP API (sign-in, upload, parse,
  * validate, insert, rolled distance), against PostgreSQL's own COPY of the same rows.
@@ -195,6 +215,9 @@ export async function benchImport(): Promise<string[]> {
       body: JSON.stringify({ email, password: 'bench password 1' }),
     });
     const cookie = (signIn.headers.get('set-cookie') ?? '').split(';')[0];
+    // KERFWISE_BENCH_CPU_PROF=<dir>: a V8 CPU profile of this process over the import request alone
+    // (the server runs in this process), written as import-<time>.cpuprofile.
+    const profiler = process.env.KERFWISE_BENCH_CPU_PROF ? await startCpuProfile() : undefined;
     const t = performance.now();
     const res = await fetch(`${base}/api/projects/${project.id}/strokes/import`, {
       method: 'POST',
@@ -202,6 +225,7 @@ export async function benchImport(): Promise<string[]> {
       body: csv,
     });
     const apiMs = performance.now() - t;
+    if (profiler) await profiler.stop(`${process.env.KERFWISE_BENCH_CPU_PROF}/import-${Date.now()}.cpuprofile`);
     const body = (await res.json()) as { inserted?: number; error?: { message: string } };
     if (res.status !== 201) throw new Error(`import failed: ${res.status} ${JSON.stringify(body).slice(0, 300)}`);
 

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { GeologySection } from '../../shared/domain/geology';
 import {
   revolutionsByGround,
+  revolutionsByGroundMs,
   rolledKm,
   rolledKmByStroke,
   rolledMPerAdvanceM,
@@ -220,6 +221,25 @@ describe('sumRolledKmByPeriod', () => {
     const stored = sumRolledKmForPeriods(withRadius, revolutionsByGround(strokes.slice(0, 3), sections).pieces);
     const updated = asRecord(sumRolledKmForPeriods(withRadius, revolutionsByGround(strokes.slice(3), sections).pieces, stored));
     for (const key of Object.keys(expected)) expect(updated[key]).toBeCloseTo(expected[key], 12);
+  });
+
+  it('pieces out of time order, strokes with times already read, and no periods (decision 46)', () => {
+    const radius: Record<string, number> = { A: 3000, B: 1500 };
+    const withRadius = periods.map((p) => ({ ...p, trackRadiusMm: radius[p.positionId] }));
+    const { pieces } = revolutionsByGround(strokes, sections);
+    // derived: the hand-worked totals above, whatever order the pieces come in.
+    const expected = asRecord(full());
+    const shuffled = asRecord(sumRolledKmForPeriods(withRadius, [...pieces].reverse()));
+    for (const key of Object.keys(expected)) expect(shuffled[key]).toBeCloseTo(expected[key], 12);
+    // derived: times as ms give the same pieces and errors as the ISO text they were read from.
+    const bad = { ...strokes[0], id: 'bad', startTime: '2027-03-01T01:00' };
+    const timed = [...strokes, bad].map((s) => ({ ...s, startMs: Date.parse(s.startTime) as number | null, endMs: Date.parse(s.endTime) }));
+    timed[timed.length - 1].startMs = null;
+    expect(revolutionsByGroundMs(timed, sections)).toEqual(revolutionsByGround([...strokes, bad], sections));
+    expect(revolutionsByGround([bad], sections).errors).toEqual([{ strokeId: 'bad', ringNumber: bad.ringNumber, reason: 'invalid_time' }]);
+    // No periods: only the previous totals come back.
+    const previous = [{ periodId: 'P9', groundTypeId: 'granite', rolledKm: 1.25 }];
+    expect(sumRolledKmForPeriods([], pieces, previous)).toEqual(previous);
   });
 
   it('rejects rows whose stroke is missing and periods with an unreadable time', () => {

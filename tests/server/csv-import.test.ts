@@ -480,6 +480,14 @@ describe('mapping, times and checks between rows (inline files)', () => {
     expect(rowsOf(await readAdvanceLogCsv(textStream(text), ZURICH))[0].data.extra).toEqual({ Shift: 'B', 'column 9': 'seal kit' });
   });
 
+  it('keeps a column headed __proto__ in extra as data (the extra object is built in place, decision 46)', async () => {
+    const text = `${HEADER},__proto__\n${rows[0]},  x  \n`;
+    const extra = rowsOf(await readAdvanceLogCsv(textStream(text), ZURICH))[0].data.extra;
+    // derived: Object.fromEntries([['__proto__', 'x']]) makes an own property; it must not become the prototype.
+    expect(Object.getPrototypeOf(extra)).toBe(Object.prototype);
+    expect(Object.entries(extra)).toEqual([['__proto__', 'x']]);
+  });
+
   it('treats a stroke overlapping by 1 mm as touching, by 2 mm as overlapping', async () => {
     const touching = `${HEADER}\n${strokeRow(101, '2026-03-14T06:00', '2026-03-14T06:37', 2450, 2451.5)}\n${strokeRow(102, '2026-03-14T07:00', '2026-03-14T07:34', 2451.499, 2453)}\n`;
     expect(rowsOf(await readAdvanceLogCsv(textStream(touching), ZURICH))).toHaveLength(2);

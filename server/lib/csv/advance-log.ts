@@ -57,6 +57,7 @@ function sweepSpans<Row>(
 export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLogField, AdvanceLogRow> {
   const ringLines = new Map<number, number>();
   let previous: CsvLineRow<AdvanceLogRow> | undefined;
+  let previousStartMs = NaN;
   return {
     fields: advanceLogFields,
     requiredColumns: advanceLogRequiredColumns,
@@ -99,7 +100,7 @@ export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLog
           );
           return;
         }
-        if (Date.parse(row.startTime) < Date.parse(prev.startTime)) {
+        if (Date.parse(row.startTime) < previousStartMs) {
           report.error(
             line,
             'startTime',
@@ -110,6 +111,7 @@ export function advanceLogTable(direction: DriveDirection): TableSpec<AdvanceLog
       }
       ringLines.set(row.ringNumber, line);
       previous = { line, data: row };
+      previousStartMs = Date.parse(row.startTime);
     },
     finish(rows, report, allRowsValid) {
       const byChainage = rows.map(({ line, data }) => ({

@@ -19,7 +19,7 @@ import type { CsvError } from 'csv-parse';
 import type { ColumnMapping } from '../../../shared/csv-headers';
 import type { CsvIssue, ImportDetected } from '../../../shared/schemas/advance-log';
 import { siteTimes } from '../../../shared/site-time';
-import { readCell, TIME_FORMAT_NAMES, type TimeFormat } from './cells';
+import { cellSlot, readCellInto, TIME_FORMAT_NAMES, type TimeFormat } from './cells';
 import { planColumns, type ColumnPlan } from './columns';
 import { DELIMITER_NAMES, detectCsvFormat, SAMPLE_BYTES } from './detect';
 import { FileRefused, fileIssue, IssueLog } from './issues';
@@ -176,6 +176,10 @@ export async function readCsv<F extends string, Row>(
     warning: (line, field, message) => log.warning({ row: line, column: columnName(field), message }),
   };
 
+  // One slot for every cell of the file, and the time format last seen with its count.
+  const cell = cellSlot();
+  let lastFormat: TimeFormat | undefined;
+  let lastUse: TimeFormatUse | undefined;
   const readRow = (record: string[], line: number, columns: ColumnPlan<F>) => {
     if (record.length !== columns.headers.length) {
       const delimiterName = DELIMITER_NAMES[detected.delimiter!];
@@ -186,21 +190,30 @@ export async function readCsv<F extends string, Row>(
       });
       return;
     }
-    const candidate: Record<string, unknown> = { extra: Object.fromEntries(columns.unused.map(([key, i]) => [key, record[i].trim()])) };
-    for (const [, i] of columns.unused) if (record[i].trim() !== '') unusedWithValues.add(i);
-    const failed = new Set<string>();
+    const extra: Record<string, string> = {};
+    for (const [key, i] of columns.unused) {
+      const v = record[i].trim();
+      // A column headed "__proto__" is kept as data, as Object.fromEntries keeps it.
+      if (key === '__proto__') Object.defineProperty(extra, key, { value: v, enumerable: true, writable: true, configurable: true });
+      else extra[key] = v;
+      if (v !== '') unusedWithValues.add(i);
+    }
+    const candidate: Record<string, unknown> = { extra };
+    // Made only for a row with a cell that cannot be read (most rows have none).
+    let failed: Set<string> | undefined;
     for (const info of table.fields) {
       const index = columns.columns.get(info.field);
-      const cell = readCell(info, index === undefined ? '' : record[index].trim(), detected.decimalComma, times);
-      if (!cell.ok) {
-        failed.add(info.field);
+      if (!readCellInto(cell, info, index === undefined ? '' : record[index].trim(), detected.decimalComma, times)) {
+        (failed ??= new Set()).add(info.field);
         report.error(line, info.field, cell.message);
         continue;
       }
       candidate[info.field] = cell.value;
       if (cell.timeFormat) {
-        const use = timeFormats.get(cell.timeFormat) ?? { count: 0, lines: [], column: columnName(info.field) };
-        timeFormats.set(cell.timeFormat, use);
+        let use = cell.timeFormat === lastFormat ? lastUse : timeFormats.get(cell.timeFormat);
+        if (!use) timeFormats.set(cell.timeFormat, (use = { count: 0, lines: [], column: columnName(info.field) }));
+        lastFormat = cell.timeFormat;
+        lastUse = use;
         if (use.lines.at(-1) !== line) {
           if (use.lines.length < 10) use.lines.push(line);
           use.count += 1;
@@ -208,13 +221,13 @@ export async function readCsv<F extends string, Row>(
       }
     }
     let data: Row;
-    if (failed.size === 0 && table.isRow?.(candidate)) data = candidate;
+    if (failed === undefined && table.isRow?.(candidate)) data = candidate;
     else {
       const parsed = table.schema.safeParse(candidate);
       if (!parsed.success) {
         for (const issue of parsed.error.issues) {
           const field = String(issue.path[0]);
-          if (!failed.has(field)) report.error(line, field as F, issue.message);
+          if (!failed?.has(field)) report.error(line, field as F, issue.message);
         }
         return;
       }
