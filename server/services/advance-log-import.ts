@@ -267,6 +267,20 @@ export async function importAdvanceLog(
       throw new InvalidInputError(`${issues.length} row(s) overlap strokes already stored; nothing was imported.`, issues.slice(0, 200));
   }
 
+  // A new ring below a stored one fills a gap in what may already be counted: the incremental
+  // refresh counts only rings after the last counted one, so such an import rewrites the past.
+  let fillsGap = false;
+  if (fresh.length > 0) {
+    let lowestFresh = Infinity;
+    for (const { data } of fresh) lowestFresh = Math.min(lowestFresh, data.ringNumber);
+    const [above] = await tx
+      .select({ ringNumber: strokes.ringNumber })
+      .from(strokes)
+      .where(and(eq(strokes.projectId, projectId), sql`${strokes.ringNumber} > ${lowestFresh}`))
+      .limit(1);
+    fillsGap = above !== undefined;
+  }
+
   const values = (r: AdvanceLogRow) => ({
     ringNumber: r.ringNumber,
     startTime: new Date(r.startTime),
@@ -303,10 +317,10 @@ export async function importAdvanceLog(
       rings: rows.length ? [minRing, maxRing] : [],
     },
   });
-  // Replaced rings change the past; new rings after the last computed one only add.
+  // Replaced rings and rings filling a gap change the past; new rings after the last stored one only add.
   if (fresh.length + conflicts.length > 0)
     await driveDataChanged(tx, projectId, {
-      rewritesPast: conflicts.length > 0,
+      rewritesPast: conflicts.length > 0 || fillsGap,
       refreshNow: true,
       known: knownAfterImport(minRing, maxRing, rows, inRange, stored),
     });

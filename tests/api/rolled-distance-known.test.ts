@@ -235,6 +235,23 @@ describe('rolled-distance refresh with the strokes a write holds', () => {
     }
   }, 60_000);
 
+  it('an import that only fills a gap below the last counted ring counts the gap (no replaced ring)', async () => {
+    const { projectId, userId, drive } = await randomProject(7);
+    // Stored and counted: rings 1–400 without 200–219; then a file with only the gap.
+    const first = drive.slice(0, 400).filter((r) => r.ringNumber < 200 || r.ringNumber > 219);
+    await db.transaction((tx) => importAdvanceLog(tx, projectId, userId, lines(first), options));
+    const { imported, reference } = await rolledBack(async (tx) => {
+      const outcome = await importAdvanceLog(tx, projectId, userId, lines(drive.slice(199, 219)), options);
+      expect(outcome).toEqual({ inserted: 20, unchanged: 0, replaced: 0 });
+      const imported = await totals(tx, projectId);
+      await invalidateRolledDistance(tx, projectId);
+      await refreshRolledDistance(tx, projectId);
+      return { imported, reference: await totals(tx, projectId) };
+    });
+    expect(imported.fitted.length).toBeGreaterThan(5);
+    expect(imported).toEqual(reference);
+  }, 60_000);
+
   it('full and incremental refreshes with any known range equal the refresh that reads every stroke', async () => {
     for (const { projectId, userId, drive, rand } of setups) {
       // Stored and counted: rings 1–450; then rings 451–520 written without a refresh.
