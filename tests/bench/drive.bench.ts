@@ -163,8 +163,15 @@ async function startCpuProfile(): Promise<{ stop: (file: string) => Promise<void
 }
 
 /**
- * Import of 10,000 advance-log rows end to end through the HTTP API (sign-in, upload, parse,
- * validate, insert, rolled distance), against PostgreSQL's own COPY of the same rows.
+ * Import of 10,000 advance-log rows end to end through the HTTP API (upload, parse, validate,
+ * insert, rolled distance), against PostgreSQL's own COPY of the same rows into the same table.
+ *
+ * The limit is what the database itself costs to store those rows where Kerfwise stores them:
+ * `COPY … FROM STDIN` into `strokes` (its keys, indexes, foreign key, triggers and WAL), one
+ * transaction, for a second drive set up the same way. A scratch table with none of those is
+ * printed beside it as well. The server runs as it does on a site, for days: a 500-row import into
+ * a third drive goes first, so the figure is not the first request's code being compiled; that
+ * first (cold) import is printed too.
  */
 export async function benchImport(): Promise<string[]> {
   const { createApp } = await import('../../server/app');
@@ -179,31 +186,38 @@ export async function benchImport(): Promise<string[]> {
   const out: string[] = [];
   const rows = benchStrokes(1, 10_000, START_M, START_MS);
   const csv = strokesCsv(rows);
-
-  const [project] = await db
-    .insert(projects)
-    .values({ name: `Bench import ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' })
-    .returning();
-  const grounds = await db
-    .insert(groundTypes)
-    .values(benchGroundTypes.map((g) => ({ ...g, projectId: project.id })))
-    .returning();
-  await db.insert(geologySections).values(
-    benchGeology(START_M).map((s) => ({
-      projectId: project.id,
-      chainageFromM: s.fromM,
-      chainageToM: s.toM,
-      groundTypeId: grounds[s.ground].id,
-      stopAllowed: true,
-    })),
-  );
-  await db.insert(positions).values(benchLayout().map((p) => ({ ...p, projectId: project.id })));
   const email = `bench-${Date.now()}@kerfwise.test`;
   const [user] = await db
     .insert(users)
     .values({ email, name: 'Bench planner', passwordHash: await hashPassword('bench password 1') })
     .returning();
-  await db.insert(memberships).values({ projectId: project.id, userId: user.id, role: 'planner' });
+
+  /** A drive with the bench's geology and layout, the bench planner a member. */
+  async function benchProject(name: string) {
+    const [project] = await db
+      .insert(projects)
+      .values({ name: `${name} ${Date.now()}`, excavatedDiameterM: 9.6, startChainageM: START_M, siteTimeZone: 'Europe/Zurich' })
+      .returning();
+    const grounds = await db
+      .insert(groundTypes)
+      .values(benchGroundTypes.map((g) => ({ ...g, projectId: project.id })))
+      .returning();
+    await db.insert(geologySections).values(
+      benchGeology(START_M).map((s) => ({
+        projectId: project.id,
+        chainageFromM: s.fromM,
+        chainageToM: s.toM,
+        groundTypeId: grounds[s.ground].id,
+        stopAllowed: true,
+      })),
+    );
+    await db.insert(positions).values(benchLayout().map((p) => ({ ...p, projectId: project.id })));
+    await db.insert(memberships).values({ projectId: project.id, userId: user.id, role: 'planner' });
+    return project;
+  }
+  const warmUp = await benchProject('Bench import warm-up');
+  const project = await benchProject('Bench import');
+  const copied = await benchProject('Bench import COPY');
 
   const server = createApp().listen(0, '127.0.0.1');
   await new Promise((r) => server.once('listening', r));
@@ -215,62 +229,71 @@ export async function benchImport(): Promise<string[]> {
       body: JSON.stringify({ email, password: 'bench password 1' }),
     });
     const cookie = (signIn.headers.get('set-cookie') ?? '').split(';')[0];
+    const importCsv = async (projectId: string, text: string) => {
+      const t = performance.now();
+      const res = await fetch(`${base}/api/projects/${projectId}/strokes/import`, {
+        method: 'POST',
+        headers: { 'content-type': 'text/csv', cookie },
+        body: text,
+      });
+      const ms = performance.now() - t;
+      const body = (await res.json()) as { inserted?: number; error?: { message: string } };
+      if (res.status !== 201) throw new Error(`import failed: ${res.status} ${JSON.stringify(body).slice(0, 300)}`);
+      return { ms, inserted: body.inserted };
+    };
+    const cold = await importCsv(warmUp.id, strokesCsv(rows.slice(0, 500)));
     // KERFWISE_BENCH_CPU_PROF=<dir>: a V8 CPU profile of this process over the import request alone
     // (the server runs in this process), written as import-<time>.cpuprofile.
     const profiler = process.env.KERFWISE_BENCH_CPU_PROF ? await startCpuProfile() : undefined;
-    const t = performance.now();
-    const res = await fetch(`${base}/api/projects/${project.id}/strokes/import`, {
-      method: 'POST',
-      headers: { 'content-type': 'text/csv', cookie },
-      body: csv,
-    });
-    const apiMs = performance.now() - t;
+    const api = await importCsv(project.id, csv);
     if (profiler) await profiler.stop(`${process.env.KERFWISE_BENCH_CPU_PROF}/import-${Date.now()}.cpuprofile`);
-    const body = (await res.json()) as { inserted?: number; error?: { message: string } };
-    if (res.status !== 201) throw new Error(`import failed: ${res.status} ${JSON.stringify(body).slice(0, 300)}`);
 
-    // The same rows through COPY into a scratch table of the same shape, defaults and indexes.
+    const columns =
+      '(project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra)';
+    const copyText = (projectId: string) =>
+      rows
+        .map((r) =>
+          [
+            projectId,
+            r.ringNumber,
+            r.startTime.toISOString(),
+            r.endTime.toISOString(),
+            r.chainageStartM,
+            r.chainageEndM,
+            r.revolutions,
+            r.penetrationMmPerRev,
+            r.rpm,
+            r.thrustKn,
+            r.torqueKnm,
+            '{}',
+          ].join('\t'),
+        )
+        .join('\n') + '\n';
     const client = await pool.connect();
     let copyMs: number;
+    let scratchMs: number;
     try {
-      await client.query('create temp table strokes_copy (like strokes including all)');
-      const lines =
-        rows
-          .map((r) =>
-            [
-              project.id,
-              r.ringNumber,
-              r.startTime.toISOString(),
-              r.endTime.toISOString(),
-              r.chainageStartM,
-              r.chainageEndM,
-              r.revolutions,
-              r.penetrationMmPerRev,
-              r.rpm,
-              r.thrustKn,
-              r.torqueKnm,
-              '{}',
-            ].join('\t'),
-          )
-          .join('\n') + '\n';
+      // The limit: the same rows into the same table, one transaction, committed.
+      const text = copyText(copied.id);
       const c = performance.now();
-      await pipeline(
-        Readable.from([lines]),
-        client.query(
-          copyFrom(
-            'copy strokes_copy (project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra) from stdin',
-          ),
-        ),
-      );
+      await client.query('begin');
+      await pipeline(Readable.from([text]), client.query(copyFrom(`copy strokes ${columns} from stdin`)));
+      await client.query('commit');
       copyMs = performance.now() - c;
+      // Beside it: a scratch table of the same shape with no foreign key and no WAL (a temporary table).
+      await client.query('create temp table strokes_copy (like strokes including all)');
+      const scratch = copyText(project.id);
+      const d = performance.now();
+      await pipeline(Readable.from([scratch]), client.query(copyFrom(`copy strokes_copy ${columns} from stdin`)));
+      scratchMs = performance.now() - d;
     } finally {
       client.release();
     }
     out.push(
-      `Advance-log import of 10,000 rows through the API: ${apiMs.toFixed(0)} ms end to end (${body.inserted} inserted) — target ≤ 3,000 ms`,
+      `Advance-log import of 10,000 rows through the API: ${api.ms.toFixed(0)} ms end to end (${api.inserted} inserted; the server's first import, 500 rows: ${cold.ms.toFixed(0)} ms) — target ≤ 3,000 ms`,
     );
     out.push(
-      `PostgreSQL COPY of the same 10,000 rows: ${copyMs.toFixed(0)} ms; API / COPY = ${(apiMs / copyMs).toFixed(1)}× — target ≤ 5×`,
+      `PostgreSQL COPY of the same 10,000 rows into strokes: ${copyMs.toFixed(0)} ms; API / COPY = ${(api.ms / copyMs).toFixed(1)}× — target ≤ 5× (into a temporary table with no keys or WAL: ${scratchMs.toFixed(0)} ms, ${(api.ms / scratchMs).toFixed(1)}×)`,
     );
   } finally {
     server.close();
