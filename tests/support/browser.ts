@@ -12,8 +12,9 @@ export const CHROMIUM = chromiumPath();
 
 // A browser test walks a whole flow (sign-in hashes a password, pages load chunks): on a loaded
 // 2-core machine that takes longer than a unit test's 30 s. Every file that drives the browser
-// imports this module, so its tests get two minutes unless they name their own limit.
-vi.setConfig({ testTimeout: 120_000 });
+// imports this module, so its tests get two minutes unless they name their own limit (the bench
+// imports it too, outside vitest).
+if (process.env.VITEST) vi.setConfig({ testTimeout: 120_000 });
 
 /**
  * Launches Debian's Chromium. Missing, it fails the file's set-up loudly with the apt-get command
