@@ -7,6 +7,7 @@ import { createRoot } from 'react-dom/client';
 import { RouterProvider } from 'react-router';
 import { registerSW } from 'virtual:pwa-register';
 import { AppProvider } from './app/provider';
+import { authQueries } from './features/auth/api';
 import { applyWaitingUpdate, offerUpdate, UPDATE_CHECK_MS, UpdateBanner } from './components/layout/update-banner';
 import { startOutbox } from './lib/outbox';
 import { restoreAndPersist } from './lib/persisted-cache';
@@ -28,8 +29,18 @@ if ('serviceWorker' in navigator && import.meta.env.PROD) {
 // The data last synced is restored before the router's first loaders read it, so a cold start offline shows the drive.
 await restoreAndPersist(queryClient);
 startOutbox(queryClient);
-// What a round needs is read while online and kept on the device, screens opened or not.
-void import('./app/offline-data').then((m) => m.keepRoundDataOnDevice(queryClient));
+// What a round needs is read while online and kept on the device, screens opened or not — from
+// the moment someone is signed in (the sign-in page does not load that code or the features it reads).
+const keepOnceSignedIn = () => {
+  if (!queryClient.getQueryData(authQueries.me().queryKey)) return false;
+  void import('./app/offline-data').then((m) => m.keepRoundDataOnDevice(queryClient));
+  return true;
+};
+if (!keepOnceSignedIn()) {
+  const stop = queryClient.getQueryCache().subscribe(() => {
+    if (keepOnceSignedIn()) stop();
+  });
+}
 const { router } = await import('./app/router');
 
 function Root() {
