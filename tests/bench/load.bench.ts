@@ -129,11 +129,16 @@ export async function benchLoad(databaseUrl: string, smtpUrl: string): Promise<s
     };
     const coldMs = await forecastMs();
     // Forecast after a change: the first answer computes (once), later ones come from the cache.
-    await db.execute(sql`update projects set name = name where id = ${projectId}`);
-    const firstMs = await forecastMs();
+    // A server on site has computed many: the median of five changes, each answered once.
+    const afterChange: number[] = [];
+    for (let i = 0; i < 5; i++) {
+      await db.execute(sql`update projects set name = name where id = ${projectId}`);
+      afterChange.push(await forecastMs());
+    }
+    const firstMs = afterChange.sort((a, b) => a - b)[2];
     const { rows } = await db.execute<{ n: number }>(sql`select count(*)::int as n from positions where project_id = ${projectId}`);
     out.push(
-      `Forecast after a change, first answer (computes, ${rows[0].n} positions): ${firstMs.toFixed(0)} ms — target ≤ 150 ms (the server's first forecast after its start: ${coldMs.toFixed(0)} ms)`,
+      `Forecast after a change, first answer (computes, ${rows[0].n} positions): ${firstMs.toFixed(0)} ms, median of 5 changes (${afterChange.map((m) => m.toFixed(0)).join(', ')}) — target ≤ 150 ms (the server's first forecast after its start: ${coldMs.toFixed(0)} ms)`,
     );
 
     const me = await load(`${base}/api/auth/me`, auth);
