@@ -65,7 +65,7 @@ export function AppShell() {
             </span>
           )}
           {/* The right side of the top bar: status badges go first here, then the person's own links. */}
-          <div className="ml-auto flex items-center gap-1" data-slot="top-bar-end">
+          <div className="ml-auto flex flex-wrap items-center justify-end gap-1 whitespace-nowrap" data-slot="top-bar-end">
             <OutboxCount projectId={membership ? projectId : undefined} />
             <NavLink
               to={paths.account}
@@ -73,7 +73,8 @@ export function AppShell() {
                 `flex min-h-touch items-center rounded-md px-3 font-semibold ${isActive ? 'underline decoration-4 underline-offset-8' : 'text-basalt-100 hover:bg-basalt-800'}`
               }
             >
-              {me.user.name}
+              {/* On a phone a long name is cut short rather than breaking the bar's words apart. */}
+              <span className="max-w-36 truncate sm:max-w-none">{me.user.name}</span>
             </NavLink>
             <button
               type="button"
