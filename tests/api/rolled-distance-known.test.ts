@@ -30,18 +30,7 @@ import {
 import type { AdvanceLogRow } from '../../shared/schemas/advance-log';
 import { makeProject, makeUser } from '../support/fixtures';
 import { makeCutterhead } from '../support/drive-fixtures';
-
-/** mulberry32: a small seeded generator, so a failing drive can be made again. */
-function random(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 as random } from '../support/random';
 
 const iso = (ms: number) => new Date(ms).toISOString().replace('Z', '+00:00');
 

@@ -4,22 +4,11 @@ import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '
 import { chainSolver, decompositionBound, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
 import { prepare, pricePlan } from '../../shared/domain/stop-planner-steps/model';
 import { stopPathCopy } from '../../shared/domain/stop-planner-steps/stop-path-copy';
+import { mulberry32 } from '../support/random';
 
 // All data invented (no real project).
 
 const EPS = 1e-9;
-
-/** Seeded PRNG (mulberry32), so the random instances are the same on every run. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Wear added from here to `aheadM` (mm), summed stretch by stretch; written apart from the planner's own. */
 function wearAddedMm(stretches: WearStretch[], aheadM: number): number {

@@ -6,23 +6,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import { ISO_TIME, quickIsoParts } from '../../server/lib/csv/cells';
+import { mulberry32 as random } from '../support/random';
 
 function regexParts(raw: string) {
   const m = ISO_TIME.exec(raw);
   if (!m) return null;
   return { year: +m[1], month: +m[2], day: +m[3], hour: +m[4], minute: +m[5], second: +(m[6] ?? 0), offset: m[8] };
-}
-
-/** mulberry32, seeded: a failing cell can be made again. */
-function random(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 describe('quick ISO time cells', () => {
