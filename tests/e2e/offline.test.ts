@@ -153,6 +153,8 @@ it(
     await expect.poll(() => group.isVisible(), { timeout: 20_000 }).toBe(true);
     await group.click();
     await page.waitForURL(/\/rounds$/);
+    // The rounds list says it is the device's copy, as the cutterhead and a position do.
+    await expectLastSynced(page, project.siteTimeZone, onlineFrom, onlineUntil);
 
     // The cutterhead picture and a position's history, never opened online, show what was last synced.
     await page.goto(`${app.url}/projects/${project.id}/cutterhead`);

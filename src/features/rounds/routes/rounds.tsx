@@ -7,6 +7,7 @@ import { startRoundInputSchema } from '../../../../shared/schemas/inspection';
 import { Alert } from '../../../components/ui/alert';
 import { Button } from '../../../components/ui/button';
 import { DataTable } from '../../../components/ui/data-table';
+import { LastSynced } from '../../../components/ui/last-synced';
 import { TextField } from '../../../components/ui/field';
 import { Page, Panel } from '../../../components/ui/page';
 import { paths } from '../../../config/paths';
@@ -24,7 +25,7 @@ const col = createColumnHelper<RoundListItem>();
 export function RoundsRoute() {
   const { projectId = '' } = useParams();
   const { data: project } = useSuspenseQuery(projectQueries.detail(projectId));
-  const { data: rounds } = useSuspenseQuery(roundQueries.list(projectId));
+  const { data: rounds, dataUpdatedAt } = useSuspenseQuery(roundQueries.list(projectId));
   const tz = project.siteTimeZone;
   const queryClient = useQueryClient();
   // What a round needs offline is read now, while online, and kept on the device (decision 42).
@@ -58,6 +59,7 @@ export function RoundsRoute() {
   return (
     <Page title="Inspection rounds">
       <CutterheadCaution />
+      <LastSynced at={dataUpdatedAt} timeZone={tz} />
       <OutboxBanner />
       {roleCan(project.role, 'rounds.record') && <StartRoundForm projectId={projectId} timeZone={tz} />}
       <DataTable data={rounds} columns={columns} exportName="kerfwise-rounds" emptyText="No rounds recorded yet." />
