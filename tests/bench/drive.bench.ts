@@ -181,7 +181,7 @@ export async function benchImport(): Promise<string[]> {
   const { from: copyFrom } = await import('pg-copy-streams');
   const { pipeline } = await import('node:stream/promises');
   const { Readable } = await import('node:stream');
-  const { strokesCsv } = await import('./generate-drive');
+  const { strokesCsv, strokeValues } = await import('./generate-drive');
 
   const out: string[] = [];
   const rows = benchStrokes(1, 10_000, START_M, START_MS);
@@ -250,25 +250,7 @@ export async function benchImport(): Promise<string[]> {
 
     const columns =
       '(project_id, ring_number, start_time, end_time, chainage_start_m, chainage_end_m, revolutions, penetration_mm_per_rev, rpm, thrust_kn, torque_knm, extra)';
-    const copyText = (projectId: string) =>
-      rows
-        .map((r) =>
-          [
-            projectId,
-            r.ringNumber,
-            r.startTime.toISOString(),
-            r.endTime.toISOString(),
-            r.chainageStartM,
-            r.chainageEndM,
-            r.revolutions,
-            r.penetrationMmPerRev,
-            r.rpm,
-            r.thrustKn,
-            r.torqueKnm,
-            '{}',
-          ].join('\t'),
-        )
-        .join('\n') + '\n';
+    const copyText = (projectId: string) => rows.map((r) => [projectId, ...strokeValues(r), '{}'].join('\t')).join('\n') + '\n';
     const client = await pool.connect();
     let copyMs: number;
     let scratchMs: number;

@@ -70,25 +70,23 @@ export function benchStrokes(fromRing: number, count: number, startM: number, st
   return rows;
 }
 
+/** A stroke's values in the advance log's column order (ring, times in UTC, chainages, machine data). */
+export function strokeValues(r: ReturnType<typeof benchStrokes>[number]) {
+  return [
+    r.ringNumber,
+    r.startTime.toISOString(),
+    r.endTime.toISOString(),
+    r.chainageStartM,
+    r.chainageEndM,
+    r.revolutions,
+    r.penetrationMmPerRev,
+    r.rpm,
+    r.thrustKn,
+    r.torqueKnm,
+  ];
+}
+
 export function strokesCsv(rows: ReturnType<typeof benchStrokes>): string {
   const header = 'ring,start time,end time,chainage start,chainage end,revolutions,penetration,rpm,thrust,torque';
-  return (
-    [
-      header,
-      ...rows.map((r) =>
-        [
-          r.ringNumber,
-          r.startTime.toISOString(),
-          r.endTime.toISOString(),
-          r.chainageStartM,
-          r.chainageEndM,
-          r.revolutions,
-          r.penetrationMmPerRev,
-          r.rpm,
-          r.thrustKn,
-          r.torqueKnm,
-        ].join(','),
-      ),
-    ].join('\n') + '\n'
-  );
+  return [header, ...rows.map((r) => strokeValues(r).join(','))].join('\n') + '\n';
 }
