@@ -53,6 +53,12 @@ export const PLANNER_BOUND_ITERATIONS = 600;
 export const PLANNER_LOCAL_SEARCH_MS = 500;
 /** Milliseconds for the stronger bound (Lagrangian decomposition) when the plan is not proven; demo drive: gap ≈ 22 % → 16 % (DEVELOPERS.md, decision 48). */
 export const PLANNER_STRONG_BOUND_MS = 1_500;
+/**
+ * The planner's answer is due this many milliseconds after it starts: the stronger bound and the
+ * local search are cut to fit, so a request (forecast first, then the plan) answers within 5 s on
+ * the demo drive (`npm run bench`; DEVELOPERS.md, decision 50).
+ */
+export const PLANNER_ANSWER_WITHIN_MS = 4_000;
 
 export const defaultStopPlanSettings = {
   horizonM: 2000,
@@ -153,6 +159,7 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
     boundIterations: PLANNER_BOUND_ITERATIONS,
     localSearchMs: PLANNER_LOCAL_SEARCH_MS,
     strongBoundMs: PLANNER_STRONG_BOUND_MS,
+    answerWithinMs: PLANNER_ANSWER_WITHIN_MS,
     rules: { changeShare: settings.practiceChangeSharePercent / 100, intervalM: settings.fixedIntervalM },
   };
   const first = await planStopsInWorker(fullInput, options);

@@ -71,8 +71,9 @@
  * (H − L)/L above the cheapest. When the exact search runs to the end, the plan is proven cheapest.
  * Order of work: the search's quick pass (2 states per place; its plan aims the bound's steps), a
  * short exact search without the bound (300 states: it proves easy drives at once, so the bound's
- * steps are skipped there), the bound, the exact search (pruned with the bound's multipliers),
- * then, when nothing proved the plan, the stronger decomposition bound for a time budget
+ * steps are skipped there), the bound, a second quick pass (3 states per place) that keeps the
+ * states whose cost plus the bound's rest is least, the exact search (pruned with the bound's
+ * multipliers), then, when nothing proved the plan, the stronger decomposition bound for a time budget
  * (./stop-planner-steps/stop-path-copy.ts) and a local search over stop sets, each set priced
  * exactly (./stop-planner-steps/lagrangian.ts).
  * Where the gap comes from (measured, DEVELOPERS.md decision 48): on the bench drive with wear × 3
@@ -107,6 +108,12 @@ import { exactSearch } from './stop-planner-steps/search';
 
 /** States expanded per place by the first, quick pass that finds a good plan to bound the exact pass. */
 const QUICK_PASS_STATES = 2;
+/**
+ * States expanded per place by the second quick pass, run after the bound and ranked by cost plus
+ * the bound's rest (decision 50): on the demo drive cut to 450 m it finds the cheapest plan, which
+ * the exact search then proves (the first pass's plan was 0.5 % above it).
+ */
+const RANKED_PASS_STATES = 3;
 /** States of the short exact search run before the bound (it proves easy drives at once: the bench drive in under 100). */
 const PROBE_STATES = 300;
 /** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
@@ -239,6 +246,11 @@ export interface PlanStopsOptions {
   strongBoundMs?: number;
   /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
   localSearchMs?: number;
+  /**
+   * The answer is due this many milliseconds after the call: the stronger bound and the local
+   * search are cut short to fit (the steps before them do a fixed amount of work and are not).
+   */
+  answerWithinMs?: number;
   rules?: ComparisonRules;
 }
 
@@ -255,8 +267,10 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     targetGap = TARGET_GAP,
     localSearchMs = 0,
     strongBoundMs = 0,
+    answerWithinMs = Infinity,
     rules = DEFAULT_COMPARISON_RULES,
   } = options;
+  const answerBy = performance.now() + answerWithinMs;
   if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
   if (!(rules.intervalM > 0)) throw new RangeError(`interval must be > 0 m, got ${rules.intervalM}`);
   // Step 1: prepare.
@@ -304,7 +318,8 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
       ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap })
       : null;
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
-  // Step 6: the exact search, bounded by the best plan so far.
+  // Step 6: the exact search, bounded by the best plan so far; first a quick pass that keeps the
+  // states whose cost plus the bound's rest is least (the rest counts the stops still to come).
   const proven0 = relaxed !== null && best.cost.totalH - relaxed.lowerH <= 1e-9 * (1 + best.cost.totalH);
   const restBoundH = relaxed ? lagrangianRestBound(prep, relaxed.lambda) : undefined;
   const searched0 =
@@ -312,7 +327,12 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
       ? { ...probed, plan: null, statesExpanded: 0 }
       : proven0
         ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
-        : exactSearch(prep, bounds, { quickPassStates: quickFirst ? 0 : quickPassStates, maxStates, boundH: best.cost.totalH, restBoundH });
+        : exactSearch(prep, bounds, {
+            quickPassStates: quickFirst ? RANKED_PASS_STATES : quickPassStates,
+            maxStates,
+            boundH: best.cost.totalH,
+            restBoundH,
+          });
   const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates + probeStates };
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
@@ -325,7 +345,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     const strong = decompositionBound(prep, relaxed.lambda, {
       upperH: best.cost.totalH,
       targetGap,
-      deadline: performance.now() + strongBoundMs,
+      deadline: Math.min(performance.now() + strongBoundMs, answerBy - localSearchMs),
     });
     strongH = Math.max(0, strong.lowerH);
   }
@@ -336,7 +356,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     const improved = improveStops(
       prep,
       best.stops.map((s) => ({ idx: stopIdx(s), changed: [] })),
-      performance.now() + localSearchMs,
+      Math.min(performance.now() + localSearchMs, answerBy),
     );
     if (improved.totalH < best.cost.totalH - 1e-9) best = pricePlan(prep, improved.plan);
   }

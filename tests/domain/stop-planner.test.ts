@@ -512,6 +512,20 @@ describe('search budget', () => {
     expect(capped.certificate.lowerBoundH).toBeLessThanOrEqual(exact.optimised.cost.totalH + 1e-9);
     expect(capped.optimised.cost.totalH).toBeGreaterThanOrEqual(exact.optimised.cost.totalH - 1e-9);
   }, 120_000);
+
+  it('an answer already due cuts the stronger bound and the local search, and nothing else', async () => {
+    // The drive-sized case capped so the plan is not proven: both timed steps would run.
+    const { benchInputForTests } = await import('../bench/stop-planner.bench');
+    const input = benchInputForTests(2);
+    const fixed = { maxStates: 50, boundIterations: 60 };
+    const due = planStops(input, { ...fixed, strongBoundMs: 60_000, localSearchMs: 60_000, answerWithinMs: 0 });
+    const without = planStops(input, { ...fixed, strongBoundMs: 0, localSearchMs: 0 });
+    expect(due.feasible && without.feasible).toBe(true);
+    if (!due.feasible || !without.feasible) return;
+    expect(without.provenOptimal).toBe(false);
+    expect(due.optimised.cost.totalH).toBe(without.optimised.cost.totalH);
+    expect(due.certificate).toEqual(without.certificate);
+  }, 120_000);
 });
 
 /**

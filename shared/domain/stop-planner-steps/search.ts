@@ -33,7 +33,11 @@ export interface SearchOptions {
   maxStates: number;
   /** Hours of a plan already known (the search looks only for cheaper ones). */
   boundH: number;
-  /** A lower bound on the rest from a state at place q (./lagrangian.ts), if known. */
+  /**
+   * A lower bound on the rest from a state at place q (./lagrangian.ts), if known. The quick pass
+   * then keeps the states whose cost plus this bound is least (it includes the stops still to
+   * come), not those whose cost plus their own chains is least.
+   */
   restBoundH?: (q: number, reach: Int32Array, budgetMm: Float64Array) => number;
 }
 
@@ -99,12 +103,19 @@ export function exactSearch(
   };
 
   let statesExpanded = 0;
+  /** States the exact pass has expanded (the cap is on these; the quick pass's come on top). */
+  let exactStates = 0;
   let stoppedEarly = false;
   let frontierH = Infinity;
+  const boundOf = new WeakMap<Label, number>();
   const stateBoundH = (l: Label) => {
     if (!restBoundH) return l.costH + stopsAfterH[l.idx] + l.ownH;
+    const known = boundOf.get(l);
+    if (known !== undefined) return known;
     const { reach, budgetMm } = fill(l);
-    return Math.max(l.costH + stopsAfterH[l.idx] + l.ownH, l.costH + restBoundH(l.idx, reach, budgetMm));
+    const boundH = Math.max(l.costH + stopsAfterH[l.idx] + l.ownH, l.costH + restBoundH(l.idx, reach, budgetMm));
+    boundOf.set(l, boundH);
+    return boundH;
   };
   // One pass over the places in order; `beamWidth` caps the states expanded per place (Infinity:
   // exact). Returns the best plan costing less than `boundH`, if any.
@@ -142,7 +153,7 @@ export function exactSearch(
     }
 
     for (let q = 0; q < m; q++) {
-      if (beamWidth === Infinity && statesExpanded > maxStates) {
+      if (beamWidth === Infinity && exactStates > maxStates) {
         stoppedEarly = true;
         // Every plan cheaper than the best found passes through a state left here.
         for (let r = q; r < m; r++)
@@ -171,7 +182,10 @@ export function exactSearch(
       entries.sort((x, y) => x.keyH - y.keyH);
       const kept: Label[] = [];
       for (const e of entries) if (!kept.some((k) => dominates(k, e))) kept.push(e);
-      kept.sort((x, y) => x.costH + x.ownH - (y.costH + y.ownH));
+      // The quick pass keeps the states that look cheapest in the end: cost plus the rest bound when
+      // one is known (it counts the stops still to come), else cost plus the own chains.
+      if (beamWidth !== Infinity && restBoundH) kept.sort((x, y) => stateBoundH(x) - stateBoundH(y));
+      else kept.sort((x, y) => x.costH + x.ownH - (y.costH + y.ownH));
 
       for (const label of kept.slice(0, beamWidth)) {
         if (label.costH + stopsAfterH[q] + label.ownH >= bestH - tolH) break;
@@ -189,6 +203,7 @@ export function exactSearch(
         }
         if (baseH + Math.max(extraH, stopsAfterH[q]) >= bestH - tolH) continue;
         statesExpanded++;
+        if (beamWidth === Infinity) exactStates++;
         // Change the k due first; the next stop must lie beyond the last of them.
         let changeSumH = 0;
         let penSumH = 0;
