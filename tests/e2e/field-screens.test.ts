@@ -7,7 +7,7 @@ import { inspectionEntries } from '../../server/db/schema';
 import { recordEntry, startRound } from '../../server/services/inspections';
 import { CUTTERHEAD_ENTRY_CAUTION } from '../../shared/cautions';
 import { entryInputSchema, startRoundInputSchema } from '../../shared/schemas/inspection';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInAt } from '../support/browser';
 import { addMember, makeProject, makeUser, PASSWORD } from '../support/fixtures';
 import { makeRoundSetup } from '../support/rounds-fixtures';
 
@@ -91,12 +91,7 @@ describe.each([
       const context = await browser.newContext({ viewport, serviceWorkers: 'block' });
       const page = await context.newPage();
       const roundUrl = `/projects/${project.id}/rounds/${round.id}`;
-      await page.goto(`${app.url}${roundUrl}`);
-      await page.waitForURL(/\/sign-in/);
-      await page.getByLabel('E-mail').fill(fitter.email);
-      await page.getByLabel('Password').fill(PASSWORD);
-      await page.getByRole('button', { name: 'Sign in' }).click();
-      await page.waitForURL((u) => u.pathname === roundUrl);
+      await signInAt(page, app.url, roundUrl, fitter.email, PASSWORD);
       await expect.poll(() => page.getByRole('heading', { level: 2, name: 'Position 1' }).isVisible(), { timeout: 15_000 }).toBe(true);
 
       // Brought into view as the browser does it (focus, or scrolling to it), each stays above the bar.
@@ -150,12 +145,7 @@ describe.each([
       const context = await browser.newContext({ viewport, serviceWorkers: 'block' });
       const page = await context.newPage();
       const roundUrl = `/projects/${project.id}/rounds/${round.id}`;
-      await page.goto(`${app.url}${roundUrl}`);
-      await page.waitForURL(/\/sign-in/);
-      await page.getByLabel('E-mail').fill(fitter.email);
-      await page.getByLabel('Password').fill(PASSWORD);
-      await page.getByRole('button', { name: 'Sign in' }).click();
-      await page.waitForURL((u) => u.pathname === roundUrl);
+      await signInAt(page, app.url, roundUrl, fitter.email, PASSWORD);
       const heading = page.getByRole('heading', { level: 2, name: 'Position 1' });
       await expect.poll(() => heading.isVisible(), { timeout: 15_000 }).toBe(true);
 

@@ -11,7 +11,7 @@ import { db } from '../../server/db/client';
 import { auditLog, inspectionEntries } from '../../server/db/schema';
 import { startRound } from '../../server/services/inspections';
 import { startRoundInputSchema } from '../../shared/schemas/inspection';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInAt } from '../support/browser';
 import { addMember, makeProject, makeUser, PASSWORD, signedInAgent } from '../support/fixtures';
 import { makeRoundSetup } from '../support/rounds-fixtures';
 
@@ -41,14 +41,7 @@ async function atPosition(page: Page, n: number) {
   await expect.poll(() => page.getByRole('heading', { level: 2, name: `Position ${n}` }).isVisible(), { timeout: 15_000 }).toBe(true);
 }
 
-async function signIn(page: Page, appUrl: string, next: string, email: string) {
-  await page.goto(`${appUrl}${next}`);
-  await page.waitForURL(/\/sign-in/);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((u) => u.pathname === next);
-}
+const signIn = (page: Page, appUrl: string, next: string, email: string) => signInAt(page, appUrl, next, email, PASSWORD);
 
 async function driveWithOpenRound(count: number) {
   const project = await makeProject();

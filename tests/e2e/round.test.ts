@@ -3,7 +3,7 @@ import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { db } from '../../server/db/client';
 import { auditLog, cutters, fittings, inspectionEntries, inspectionRounds, photos } from '../../server/db/schema';
-import { launchBrowser, serveApp } from '../support/browser';
+import { launchBrowser, serveApp, signInAt } from '../support/browser';
 import { addMember, makeProject, makeUser, PASSWORD } from '../support/fixtures';
 import { makeRoundSetup } from '../support/rounds-fixtures';
 
@@ -49,12 +49,7 @@ it(
 
     const context = await browser.newContext({ viewport: { width: 768, height: 1024 }, serviceWorkers: 'block' });
     const page = await context.newPage();
-    await page.goto(`${app.url}/projects/${project.id}/rounds`);
-    await page.waitForURL(/\/sign-in/);
-    await page.getByLabel('E-mail').fill(fitter.email);
-    await page.getByLabel('Password').fill(PASSWORD);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.waitForURL(new RegExp(`/projects/${project.id}/rounds$`));
+    await signInAt(page, app.url, `/projects/${project.id}/rounds`, fitter.email, PASSWORD);
 
     // Start a round: the date defaults to now; chainage, ring and crew are typed.
     expect(await page.getByLabel(/Date and time/).inputValue()).toMatch(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}$/);

@@ -21,7 +21,7 @@ import { inspectionEntries } from '../../server/db/schema';
 import { ensureClientBuilt } from '../../server/devenv/client-build';
 import { startRound } from '../../server/services/inspections';
 import { startRoundInputSchema } from '../../shared/schemas/inspection';
-import { launchBrowser } from '../support/browser';
+import { launchBrowser, signInAt } from '../support/browser';
 import { addMember, makeProject, makeUser, PASSWORD } from '../support/fixtures';
 import { makeRoundSetup } from '../support/rounds-fixtures';
 
@@ -67,12 +67,7 @@ async function driveWithOpenRound() {
 /** Signs in through the form and waits until the service worker controls the page. */
 async function signedInPage(context: BrowserContext, next: string, email: string): Promise<Page> {
   const page = await context.newPage();
-  await page.goto(`${appUrl}${next}`);
-  await page.waitForURL(/\/sign-in/);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((u) => u.pathname === next);
+  await signInAt(page, appUrl, next, email, PASSWORD);
   await expect
     .poll(() => page.evaluate(() => navigator.serviceWorker.ready.then(() => !!navigator.serviceWorker.controller)), { timeout: 20_000 })
     .toBe(true);

@@ -1,7 +1,7 @@
 /** Headless Chromium from Debian's package, driven by playwright-core; and the app served from dist/. */
 import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { chromium, type Browser } from 'playwright-core';
+import { chromium, type Browser, type Page } from 'playwright-core';
 import { vi } from 'vitest';
 import { createApp } from '../../server/app';
 import { jobs } from '../../jobs/index';
@@ -61,4 +61,17 @@ export async function signInThroughForm(
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
   return page;
+}
+
+/**
+ * Opens `next` on a page nobody is signed in on, is sent to the sign-in form, signs in there and
+ * waits until the app has brought the person back to `next` (the path a link or a bookmark named).
+ */
+export async function signInAt(page: Page, appUrl: string, next: string, email: string, password: string): Promise<void> {
+  await page.goto(`${appUrl}${next}`);
+  await page.waitForURL(/\/sign-in/);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((u) => u.pathname === next);
 }
