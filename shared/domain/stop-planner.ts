@@ -118,6 +118,8 @@ const RANKED_PASS_STATES = 3;
 const PROBE_STATES = 300;
 /** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
 const BOUND_ITERATIONS = 400;
+/** With an answer due (`answerWithinMs`), the bound may take this share of the time left before the local search; the exact search gets the rest. */
+const BOUND_TIME_SHARE = 0.75;
 /** The bound stops improving once the plan is certified within this share. */
 const TARGET_GAP = 0.005;
 
@@ -247,8 +249,12 @@ export interface PlanStopsOptions {
   /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
   localSearchMs?: number;
   /**
-   * The answer is due this many milliseconds after the call: the stronger bound and the local
-   * search are cut short to fit (the steps before them do a fixed amount of work and are not).
+   * The answer is due this many milliseconds after the call. Every step after the baseline plans
+   * is cut to fit: the quick passes end with what they found, the bound may take three quarters
+   * of the time left when it starts (less the local search's), the exact search ends as past
+   * `maxStates` (not proven), and the stronger bound and the local search get what is left. Only
+   * the certificate and the plan's cost can suffer, never the plan's validity. Default: no limit
+   * (the work is fixed by the other options, so the answer does not depend on the machine's speed).
    */
   answerWithinMs?: number;
   rules?: ComparisonRules;
@@ -292,7 +298,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   let quickStates = 0;
   const quickFirst = quickPassStates > 0 && boundIterations > 0 && best.cost.totalH > 0;
   if (quickFirst) {
-    const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH });
+    const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH, deadline: answerBy });
     quickStates = quick.statesExpanded;
     if (quick.plan !== null) {
       const quickPlan = pricePlan(prep, quick.plan);
@@ -304,7 +310,12 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   let probeStates = 0;
   let probed: ReturnType<typeof exactSearch> | null = null;
   if (quickFirst) {
-    probed = exactSearch(prep, bounds, { quickPassStates: 0, maxStates: Math.min(maxStates, PROBE_STATES), boundH: best.cost.totalH });
+    probed = exactSearch(prep, bounds, {
+      quickPassStates: 0,
+      maxStates: Math.min(maxStates, PROBE_STATES),
+      boundH: best.cost.totalH,
+      deadline: answerBy,
+    });
     probeStates = probed.statesExpanded;
     if (probed.plan !== null) {
       const probePlan = pricePlan(prep, probed.plan);
@@ -315,7 +326,12 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   // Step 5: the lower bound, and plans found from it.
   const relaxed =
     !probeProven && best.cost.totalH > 0 && boundIterations > 0
-      ? lagrangianBound(prep, { iterations: boundIterations, upperH: best.cost.totalH, targetGap })
+      ? lagrangianBound(prep, {
+          iterations: boundIterations,
+          upperH: best.cost.totalH,
+          targetGap,
+          deadline: performance.now() + BOUND_TIME_SHARE * Math.max(0, answerBy - localSearchMs - performance.now()),
+        })
       : null;
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
   // Step 6: the exact search, bounded by the best plan so far; first a quick pass that keeps the
@@ -332,6 +348,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
             maxStates,
             boundH: best.cost.totalH,
             restBoundH,
+            deadline: answerBy - localSearchMs,
           });
   const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates + probeStates };
   if (found.plan !== null) {
@@ -341,11 +358,12 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   // Step 7: the stronger bound, when the search did not prove the plan and the gap is still wide.
   let strongH = 0;
   const lowerSoFar0H = Math.max(0, relaxed?.lowerH ?? 0, found.lowerH, probed?.lowerH ?? 0);
-  if (!found.complete && relaxed !== null && strongBoundMs > 0 && best.cost.totalH - lowerSoFar0H > targetGap * lowerSoFar0H) {
+  const strongBy = Math.min(performance.now() + strongBoundMs, answerBy - localSearchMs);
+  if (!found.complete && relaxed !== null && strongBy > performance.now() && best.cost.totalH - lowerSoFar0H > targetGap * lowerSoFar0H) {
     const strong = decompositionBound(prep, relaxed.lambda, {
       upperH: best.cost.totalH,
       targetGap,
-      deadline: Math.min(performance.now() + strongBoundMs, answerBy - localSearchMs),
+      deadline: strongBy,
     });
     strongH = Math.max(0, strong.lowerH);
   }

@@ -27,7 +27,7 @@ const GROUND_AHEAD = [
 ];
 const CLASS_FACTOR = { centre: 1.2, face: 1, gauge: 1.6 } as const;
 
-function benchInput(wearFactor = 1): StopPlanInput {
+function benchInput(wearFactor = 1, horizonM = HORIZON_M): StopPlanInput {
   const positions: PlannerPosition[] = Array.from({ length: 80 }, (_, k) => {
     // 4 twin centre positions, 64 face positions, 12 gauge positions on a 10 m cutterhead.
     const positionClass = k < 4 ? 'centre' : k < 68 ? 'face' : 'gauge';
@@ -47,14 +47,14 @@ function benchInput(wearFactor = 1): StopPlanInput {
     };
   });
   // Every ring is an allowed place; 500–800 m ahead lies under high groundwater (compressed air).
-  const stopPlaces: StopPlace[] = Array.from({ length: Math.floor(HORIZON_M / RING_LENGTH_M) + 1 }, (_, j) => ({
+  const stopPlaces: StopPlace[] = Array.from({ length: Math.floor(horizonM / RING_LENGTH_M) + 1 }, (_, j) => ({
     chainageM: 12_000 + j * RING_LENGTH_M,
     compressedAir: j * RING_LENGTH_M >= 500 && j * RING_LENGTH_M <= 800,
   }));
   return {
     currentChainageM: 12_000,
     direction: 'increasing',
-    horizonM: HORIZON_M,
+    horizonM,
     positions,
     stopPlaces,
     freeAirStopH: 6,
@@ -68,7 +68,7 @@ function benchInput(wearFactor = 1): StopPlanInput {
 export const benchInputForTests = (wearFactor: number) => benchInput(wearFactor);
 
 /** One line of figures for a plan: time, certificate, saving against the practice rule and the fixed interval. */
-export function planFigures(name: string, ms: number, r: ReturnType<typeof planStops>): string {
+export function planFigures(name: string, ms: number, r: ReturnType<typeof planStops>, gapTarget = true): string {
   if (!r.feasible) return `${name}: infeasible (${r.problems.length} positions), ${ms.toFixed(0)} ms`;
   const gapPercent = 100 * r.certificate.gap;
   const certificate = r.certificate.proven
@@ -76,8 +76,9 @@ export function planFigures(name: string, ms: number, r: ReturnType<typeof planS
     : `at most ${gapPercent.toFixed(2)} % above the cheapest (lower bound ${r.certificate.lowerBoundH.toFixed(1)} h)`;
   const saving = (p: typeof r.practice) =>
     p ? `${(p.cost.totalH - r.optimised.cost.totalH).toFixed(1)} h (${p.stops.length} stops, ${p.cost.totalH.toFixed(1)} h)` : 'rule stuck';
-  const ok = ms <= TARGET_MS && (r.certificate.proven || gapPercent <= TARGET_GAP_PERCENT) ? 'OK' : 'OVER TARGET';
-  return `${name}: ${ms.toFixed(0)} ms, ${r.optimised.stops.length} stops, ${r.optimised.cost.totalH.toFixed(1)} h, ${certificate}; saving vs practice ${saving(r.practice)}, vs fixed interval ${saving(r.fixedInterval)} (target ≤ ${TARGET_MS} ms, ≤ ${TARGET_GAP_PERCENT} %) ${ok}`;
+  const ok = ms <= TARGET_MS && (!gapTarget || r.certificate.proven || gapPercent <= TARGET_GAP_PERCENT) ? 'OK' : 'OVER TARGET';
+  const target = gapTarget ? `target ≤ ${TARGET_MS} ms, ≤ ${TARGET_GAP_PERCENT} %` : `target ≤ ${TARGET_MS} ms`;
+  return `${name}: ${ms.toFixed(0)} ms, ${r.optimised.stops.length} stops, ${r.optimised.cost.totalH.toFixed(1)} h, ${certificate}; saving vs practice ${saving(r.practice)}, vs fixed interval ${saving(r.fixedInterval)} (${target}) ${ok}`;
 }
 
 /** Runs the planner on the bench instance and the harder one with the server's settings; returns the lines to print. */
@@ -85,8 +86,15 @@ export async function benchStopPlanner(): Promise<string[]> {
   const { PLANNER_MAX_STATES, PLANNER_BOUND_ITERATIONS, PLANNER_LOCAL_SEARCH_MS, PLANNER_STRONG_BOUND_MS, PLANNER_ANSWER_WITHIN_MS } =
     await import('../../server/services/stops');
   const lines: string[] = [];
-  for (const wearFactor of [1, 3]) {
-    const input = benchInput(wearFactor);
+  // The two cases of the target, then the longest horizon a request accepts (20 km, every ring):
+  // the answer must still come in time, and the planner's tables must stay small.
+  for (const [wearFactor, horizonM] of [
+    [1, HORIZON_M],
+    [3, HORIZON_M],
+    [3, 20_000],
+  ]) {
+    const input = benchInput(wearFactor, horizonM);
+    const buffers0 = process.memoryUsage().arrayBuffers;
     const t0 = performance.now();
     const cpu0 = process.cpuUsage();
     const result = planStops(input, {
@@ -100,9 +108,16 @@ export async function benchStopPlanner(): Promise<string[]> {
     const cpu = process.cpuUsage(cpu0);
     // CPU time beside wall time: the machine's cores are shared, so wall time alone overstates.
     const cpuMs = (cpu.user + cpu.system) / 1000;
+    // Typed-array memory right after the call, less before it: what the planner allocated and the
+    // collector has not yet freed (about all of it when no collection ran in between).
+    const buffersMb = (process.memoryUsage().arrayBuffers - buffers0) / 1e6;
     lines.push(
-      planFigures(`stop planner, 80 positions, ${input.stopPlaces.length} places, wear × ${wearFactor}`, ms, result) +
-        ` [CPU ${cpuMs.toFixed(0)} ms]`,
+      planFigures(
+        `stop planner, 80 positions, ${horizonM / 1000} km, ${input.stopPlaces.length} places, wear × ${wearFactor}`,
+        ms,
+        result,
+        horizonM === HORIZON_M,
+      ) + ` [CPU ${cpuMs.toFixed(0)} ms; typed arrays ${buffersMb.toFixed(0)} MB]`,
     );
   }
   return lines;
@@ -115,8 +130,11 @@ export async function benchDemoStopPlan(): Promise<string[]> {
   const { planForProject } = await import('../../server/services/stops');
   const { projectId } = await seedDemo(db);
   const lines: string[] = [];
-  // The default horizon (2 km) as the target asks, then shorter ones: where the certificate holds.
-  for (const horizonM of [undefined, 450, 1000]) {
+  // The default horizon (2 km) as the target asks, then shorter ones (where the certificate
+  // holds), then the longest a request accepts, where only the time is a target (the plan covers
+  // the ground known ahead).
+  for (const horizonM of [undefined, 450, 1000, 20_000]) {
+    const gapTarget = horizonM === undefined || horizonM <= HORIZON_M;
     const t0 = performance.now();
     const cpu0 = process.cpuUsage();
     const plan = await db.transaction((tx) => planForProject(tx, projectId, new Date(), horizonM ? { horizonM } : {}));
@@ -133,7 +151,8 @@ export async function benchDemoStopPlan(): Promise<string[]> {
     lines.push(
       `${name}: ${ms.toFixed(0)} ms, ${plan.candidatePlaceCount} places, ${plan.optimised.stops.length} stops, ${plan.optimised.cost.totalH.toFixed(1)} h, ` +
         `${c.proven ? 'proven cheapest' : `at most ${c.gapPercent.toFixed(2)} % above the cheapest`}; saving vs practice ${saving(plan.savingVsPracticeH)}, vs fixed interval ${saving(plan.savingVsIntervalH)} ` +
-        `(target ≤ ${TARGET_MS} ms, ≤ ${TARGET_GAP_PERCENT} %) ${ms <= TARGET_MS && (c.proven || c.gapPercent <= TARGET_GAP_PERCENT) ? 'OK' : 'OVER TARGET'}${cpuNote}`,
+        `(target ≤ ${TARGET_MS} ms${gapTarget ? `, ≤ ${TARGET_GAP_PERCENT} %` : ''}) ` +
+        `${ms <= TARGET_MS && (!gapTarget || c.proven || c.gapPercent <= TARGET_GAP_PERCENT) ? 'OK' : 'OVER TARGET'}${cpuNote}`,
     );
   }
   return lines;

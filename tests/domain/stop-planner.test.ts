@@ -513,18 +513,22 @@ describe('search budget', () => {
     expect(capped.optimised.cost.totalH).toBeGreaterThanOrEqual(exact.optimised.cost.totalH - 1e-9);
   }, 120_000);
 
-  it('an answer already due cuts the stronger bound and the local search, and nothing else', async () => {
-    // The drive-sized case capped so the plan is not proven: both timed steps would run.
+  it('an answer already due stops every step after the baseline plans, with a bound still below the optimum', async () => {
+    // The drive-sized case that the full search proves (previous test): with no time left it must
+    // not be searched to the end, and what it says must still hold.
     const { benchInputForTests } = await import('../bench/stop-planner.bench');
     const input = benchInputForTests(2);
-    const fixed = { maxStates: 50, boundIterations: 60 };
-    const due = planStops(input, { ...fixed, strongBoundMs: 60_000, localSearchMs: 60_000, answerWithinMs: 0 });
-    const without = planStops(input, { ...fixed, strongBoundMs: 0, localSearchMs: 0 });
-    expect(due.feasible && without.feasible).toBe(true);
-    if (!due.feasible || !without.feasible) return;
-    expect(without.provenOptimal).toBe(false);
-    expect(due.optimised.cost.totalH).toBe(without.optimised.cost.totalH);
-    expect(due.certificate).toEqual(without.certificate);
+    const exact = planStops(input);
+    const due = planStops(input, { strongBoundMs: 60_000, localSearchMs: 60_000, answerWithinMs: 0 });
+    expect(exact.feasible && due.feasible).toBe(true);
+    if (!exact.feasible || !due.feasible) return;
+    expect(exact.provenOptimal).toBe(true);
+    expect(due.provenOptimal).toBe(false);
+    expect(due.statesExpanded).toBe(0);
+    expect(due.certificate.lowerBoundH).toBeLessThanOrEqual(exact.optimised.cost.totalH + 1e-9);
+    expect(due.optimised.cost.totalH).toBeGreaterThanOrEqual(exact.optimised.cost.totalH - 1e-9);
+    expect(due.optimised.cost.totalH).toBeLessThanOrEqual(due.practice!.cost.totalH + 1e-9);
+    expect(due.certificate.gap).toBeCloseTo((due.optimised.cost.totalH - due.certificate.lowerBoundH) / due.certificate.lowerBoundH, 9);
   }, 120_000);
 });
 

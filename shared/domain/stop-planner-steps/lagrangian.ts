@@ -347,7 +347,7 @@ export function lagrangianBound(
   // Start from every stop's hours shared equally (a valid point of the set above).
   const lambda = Array.from({ length: n }, () => new Float64Array(m));
   for (let j = 0; j < m; j++) for (let i = 0; i < n; i++) lambda[i][j] = startLambda ? startLambda[i][j] : prep.stopH[j] / n;
-  const copy = copies ? stopPathCopy(prep) : null;
+  const copy = copies ? stopPathCopy(prep, copies) : null;
   const copyStops = copies ? Array.from({ length: n }, (_, i) => (copies[i] === 1 ? new Uint8Array(m) : null)) : [];
   let lowerH = -Infinity;
   const bestLambda: Float64Array[] = lambda.map((l) => l.slice());

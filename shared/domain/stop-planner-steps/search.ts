@@ -39,6 +39,11 @@ export interface SearchOptions {
    * come), not those whose cost plus their own chains is least.
    */
   restBoundH?: (q: number, reach: Int32Array, budgetMm: Float64Array) => number;
+  /**
+   * performance.now() (ms) by which the search ends: the exact pass then stops as past `maxStates`
+   * (not proven, with the least bound over the states left), the quick pass with what it found.
+   */
+  deadline?: number;
 }
 
 export interface SearchResult {
@@ -55,7 +60,7 @@ export interface SearchResult {
 export function exactSearch(
   prep: Prepared,
   bounds: SearchBounds,
-  { quickPassStates, maxStates, boundH, restBoundH }: SearchOptions,
+  { quickPassStates, maxStates, boundH, restBoundH, deadline = Infinity }: SearchOptions,
 ): SearchResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
@@ -153,7 +158,9 @@ export function exactSearch(
     }
 
     for (let q = 0; q < m; q++) {
-      if (beamWidth === Infinity && exactStates > maxStates) {
+      const late = performance.now() >= deadline;
+      if (late && beamWidth !== Infinity) break;
+      if (beamWidth === Infinity && (exactStates > maxStates || late)) {
         stoppedEarly = true;
         // Every plan cheaper than the best found passes through a state left here.
         for (let r = q; r < m; r++)

@@ -40,7 +40,11 @@ export interface StopPathCopy {
   solve(i: number, lambda: Float64Array, outStops: Uint8Array | null): number;
 }
 
-export function stopPathCopy(prep: Prepared): StopPathCopy {
+/**
+ * The programme's tables, sized for the positions in `only` (all when null): they take
+ * places × (widest gap + 1) entries, and a slow position's gap can be most of the horizon.
+ */
+export function stopPathCopy(prep: Prepared, only: Uint8Array | null = null): StopPathCopy {
   const m = prep.aheadM.length;
   const n = prep.input.positions.length;
   const { done, v } = prep;
@@ -58,6 +62,7 @@ export function stopPathCopy(prep: Prepared): StopPathCopy {
   // Per position, the widest gap between a fitting place and the last place still in use.
   const widths = Array.from({ length: n }, (_, i) => {
     let w = 0;
+    if (only !== null && only[i] !== 1) return 0;
     for (let f = 0; f < m; f++) if (prep.reachNew[i][f] !== done) w = Math.max(w, prep.reachNew[i][f] - f);
     return w;
   });
@@ -79,6 +84,7 @@ export function stopPathCopy(prep: Prepared): StopPathCopy {
   const dqo = new Int32Array(m);
   return {
     solve(i, lambda, outStops) {
+      if (only !== null && only[i] !== 1) throw new RangeError(`stopPathCopy: position ${i} was not among those the tables were sized for`);
       const reach = prep.reachNew[i];
       const w = prep.wearAt[i];
       const c = prep.changeH[i];
