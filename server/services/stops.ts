@@ -262,7 +262,12 @@ export async function planForProject(tx: DbOrTx, projectId: string, now: Date, o
   return {
     ...base,
     optimised,
-    certificate: { proven: certificate.proven, gapPercent: 100 * certificate.gap, lowerBoundH: certificate.lowerBoundH },
+    certificate: {
+      proven: certificate.proven,
+      gapPercent: 100 * certificate.gap,
+      lowerBoundH: certificate.lowerBoundH,
+      cutAfterS: certificate.cutForTime ? PLANNER_ANSWER_WITHIN_MS / 1000 : null,
+    },
     practice,
     fixedInterval,
     savingVsPracticeH: practice && practice.cost.totalH - optimised.cost.totalH,

@@ -203,6 +203,11 @@ export interface PlanCertificate {
   proven: boolean;
   /** (plan hours − lower bound) / lower bound: the plan is at most this share above the cheapest; 0 when proven. */
   gap: number;
+  /**
+   * True when the answer time (`answerWithinMs`) stopped the search or the bound before the work
+   * the other options allow: the plan and the bound still hold, but less was tried.
+   */
+  cutForTime: boolean;
 }
 
 export type StopPlanResult =
@@ -296,10 +301,12 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   // step lengths (Polyak steps aim at the best plan's hours; a far target slows the ascent).
   const bounds = searchBounds(prep);
   let quickStates = 0;
+  let cutForTime = false;
   const quickFirst = quickPassStates > 0 && boundIterations > 0 && best.cost.totalH > 0;
   if (quickFirst) {
     const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH, deadline: answerBy });
     quickStates = quick.statesExpanded;
+    cutForTime ||= quick.timedOut;
     if (quick.plan !== null) {
       const quickPlan = pricePlan(prep, quick.plan);
       if (quickPlan.cost.totalH < best.cost.totalH) best = quickPlan;
@@ -317,6 +324,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
       deadline: answerBy,
     });
     probeStates = probed.statesExpanded;
+    cutForTime ||= probed.timedOut;
     if (probed.plan !== null) {
       const probePlan = pricePlan(prep, probed.plan);
       if (probePlan.cost.totalH < best.cost.totalH) best = probePlan;
@@ -333,6 +341,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
           deadline: performance.now() + BOUND_TIME_SHARE * Math.max(0, answerBy - localSearchMs - performance.now()),
         })
       : null;
+  cutForTime ||= relaxed?.timedOut ?? false;
   if (relaxed?.plan && relaxed.planH < best.cost.totalH) best = pricePlan(prep, relaxed.plan);
   // Step 6: the exact search, bounded by the best plan so far; first a quick pass that keeps the
   // states whose cost plus the bound's rest is least (the rest counts the stops still to come).
@@ -342,7 +351,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     probeProven && probed !== null
       ? { ...probed, plan: null, statesExpanded: 0 }
       : proven0
-        ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH }
+        ? { plan: null, statesExpanded: 0, complete: true, lowerH: best.cost.totalH, timedOut: false }
         : exactSearch(prep, bounds, {
             quickPassStates: quickFirst ? RANKED_PASS_STATES : quickPassStates,
             maxStates,
@@ -350,6 +359,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
             restBoundH,
             deadline: answerBy - localSearchMs,
           });
+  cutForTime ||= searched0.timedOut;
   const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates + probeStates };
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
@@ -384,7 +394,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   return {
     feasible: true,
     optimised: best,
-    certificate: { lowerBoundH, proven: found.complete, gap },
+    certificate: { lowerBoundH, proven: found.complete, gap, cutForTime },
     practice,
     fixedInterval,
     statesExpanded: found.statesExpanded,

@@ -149,6 +149,8 @@ export interface PlanCertificateView {
   gapPercent: number;
   /** No plan can cost less than this, in hours. */
   lowerBoundH: number;
+  /** Seconds after which the planner's answer time stopped the search before its end (the plan and the bound hold, less was tried); null when it did not. */
+  cutAfterS: number | null;
 }
 
 export interface PlanChange {

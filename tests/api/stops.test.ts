@@ -114,7 +114,7 @@ describe('the plan', () => {
       expect(rowsH).toBeCloseTo(plan[which].cost.totalH, 9);
     }
     // A small drive: the search runs to the end, so the plan is proven cheapest.
-    expect(plan.certificate).toMatchObject({ proven: true, gapPercent: 0 });
+    expect(plan.certificate).toMatchObject({ proven: true, gapPercent: 0, cutAfterS: null });
     expect(plan.certificate.lowerBoundH).toBeCloseTo(plan.optimised.cost.totalH, 9);
     // The long section of the planned stretch, with the fault zone (230–260 m) where no stop is allowed.
     expect(plan.longSection.some((s: { chainageFromM: number; stopAllowed: boolean }) => s.chainageFromM === 230 && !s.stopAllowed)).toBe(

@@ -523,7 +523,9 @@ describe('search budget', () => {
     expect(exact.feasible && due.feasible).toBe(true);
     if (!exact.feasible || !due.feasible) return;
     expect(exact.provenOptimal).toBe(true);
+    expect(exact.certificate.cutForTime).toBe(false);
     expect(due.provenOptimal).toBe(false);
+    expect(due.certificate.cutForTime).toBe(true);
     expect(due.statesExpanded).toBe(0);
     expect(due.certificate.lowerBoundH).toBeLessThanOrEqual(exact.optimised.cost.totalH + 1e-9);
     expect(due.optimised.cost.totalH).toBeGreaterThanOrEqual(exact.optimised.cost.totalH - 1e-9);

@@ -139,3 +139,14 @@ it('the planner proposes, schedules and publishes the first stop of the plan; th
   expect(await fitter.getByRole('button', { name: /Schedule|Publish|Cancel the stop/ }).count()).toBe(0);
   await fitter.close();
 }, 180_000);
+
+it('a plan cut short by the answer time says so beside its certificate', async () => {
+  // 20 km, the longest horizon a request accepts: the search cannot run its course in the 4 s
+  // the planner is given (decision 50), and the page must not pass that over in silence.
+  const planner = await signIn('planner@kerfwise.test');
+  await planner.goto(`${app.url}/projects/${projectId}/stops/plan?horizonM=20000`);
+  await expect.poll(() => planner.getByRole('table', { name: 'Cost of the plans, in hours' }).count(), { timeout: 90_000 }).toBe(1);
+  expect(await planner.getByText(/At most [\d.]+ % above the cheapest possible plan/).count()).toBe(1);
+  expect(await planner.getByText(/The search was stopped after 4 s so that the plan comes in time/).count()).toBe(1);
+  await planner.close();
+}, 150_000);

@@ -307,6 +307,8 @@ export interface LagrangianResult {
   iterations: number;
   /** The multipliers of the best bound. */
   lambda: Float64Array[];
+  /** True when `deadline` ended the steps before `iterations` (not a target met or a step too small to matter). */
+  timedOut: boolean;
 }
 
 /**
@@ -356,6 +358,8 @@ export function lagrangianBound(
   let theta = stepScale;
   let sinceGain = 0;
   let it = 0;
+  /** Set when the steps end on their own (target met, step too small, nothing to move). */
+  let ended = false;
   const chains = Array.from({ length: n }, () => new Int32Array(m));
   const lengths = new Int32Array(n);
   const used = new Uint8Array(m);
@@ -400,7 +404,10 @@ export function lagrangianBound(
         bestPlan = found.plan;
       }
     }
-    if (bestH - lowerH <= targetGap * Math.max(lowerH, 1e-9) || theta < 1e-6) break;
+    if (bestH - lowerH <= targetGap * Math.max(lowerH, 1e-9) || theta < 1e-6) {
+      ended = true;
+      break;
+    }
     // Direction: the subgradient y_ij (the chains' places), deflected by a share of the last
     // direction (Camerini, Fratta & Maffioli 1975), which damps the zig-zag of plain steps;
     // zeroed where λ_ij = 0 and it points below 0.
@@ -420,7 +427,10 @@ export function lagrangianBound(
         normSq += g * g;
       }
     }
-    if (normSq === 0) break;
+    if (normSq === 0) {
+      ended = true;
+      break;
+    }
     const stepH = (theta * (bestH - valueH)) / normSq;
     sumH.fill(0);
     for (let i = 0; i < n; i++) {
@@ -472,7 +482,7 @@ export function lagrangianBound(
       bestPlan = better.plan;
     }
   }
-  return { lowerH, plan: bestPlan, planH: bestH, iterations: it, lambda: bestLambda };
+  return { lowerH, plan: bestPlan, planH: bestH, iterations: it, lambda: bestLambda, timedOut: !ended && it < iterations };
 }
 
 /**

@@ -55,6 +55,8 @@ export interface SearchResult {
   complete: boolean;
   /** No plan costs less than this: `bestH` when complete, else the least bound over the states left. */
   lowerH: number;
+  /** True when `deadline` stopped a pass (the quick pass or the exact one) before its end. */
+  timedOut: boolean;
 }
 
 export function exactSearch(
@@ -70,7 +72,7 @@ export function exactSearch(
   const startReach = Int32Array.from(prep.startBudgetMm, (b, i) => lastReachable(prep, i, b));
   const startBudgetMm = Float64Array.from(prep.startBudgetMm);
   const firstLim = startReach.reduce((a, r) => Math.min(a, r), done);
-  if (firstLim === done) return { plan: [], bestH: 0, statesExpanded: 0, complete: true, lowerH: 0 };
+  if (firstLim === done) return { plan: [], bestH: 0, statesExpanded: 0, complete: true, lowerH: 0, timedOut: false };
   // State hashes: Σ (reach + 1)·c_i over two sets of odd 32-bit multipliers, updated per change.
   const hashA = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x9e3779b1) | 1);
   const hashB = Int32Array.from({ length: n }, (_, i) => Math.imul(i + 1, 0x85ebca77) | 1);
@@ -111,6 +113,7 @@ export function exactSearch(
   /** States the exact pass has expanded (the cap is on these; the quick pass's come on top). */
   let exactStates = 0;
   let stoppedEarly = false;
+  let timedOut = false;
   let frontierH = Infinity;
   const boundOf = new WeakMap<Label, number>();
   const stateBoundH = (l: Label) => {
@@ -159,6 +162,7 @@ export function exactSearch(
 
     for (let q = 0; q < m; q++) {
       const late = performance.now() >= deadline;
+      if (late) timedOut = true;
       if (late && beamWidth !== Infinity) break;
       if (beamWidth === Infinity && (exactStates > maxStates || late)) {
         stoppedEarly = true;
@@ -269,7 +273,7 @@ export function exactSearch(
   const best = exact.best ?? quick.best;
   const bestH = exact.best ? exact.bestH : quick.bestH;
   const lowerH = stoppedEarly ? Math.min(bestH, frontierH) : bestH;
-  if (best === null) return { plan: null, bestH, statesExpanded, complete: !stoppedEarly, lowerH };
+  if (best === null) return { plan: null, bestH, statesExpanded, complete: !stoppedEarly, lowerH, timedOut };
   const plan: IndexPlan = [];
   let changedUpTo = best.changedUpTo;
   for (let l: Label | null = best.last; l !== null; l = l.parent) {
@@ -277,5 +281,5 @@ export function exactSearch(
     plan.unshift({ idx: l.idx, changed: [...reach.keys()].filter((i) => reach[i] !== done && reach[i] <= changedUpTo) });
     changedUpTo = l.changedUpTo;
   }
-  return { plan, bestH, statesExpanded, complete: !stoppedEarly, lowerH };
+  return { plan, bestH, statesExpanded, complete: !stoppedEarly, lowerH, timedOut };
 }

@@ -120,11 +120,19 @@ function CertificateText({ plan }: { plan: StopPlan }) {
   const c = plan.certificate;
   if (!c || !plan.optimised) return null;
   return (
-    <p className="mb-3 text-lead font-semibold">
-      {c.proven
-        ? 'Cheapest possible plan (proven).'
-        : `At most ${c.gapPercent.toFixed(1)} % above the cheapest possible plan: no plan can cost less than ${hoursText(c.lowerBoundH)}.`}
-    </p>
+    <>
+      <p className="mb-3 text-lead font-semibold">
+        {c.proven
+          ? 'Cheapest possible plan (proven).'
+          : `At most ${c.gapPercent.toFixed(1)} % above the cheapest possible plan: no plan can cost less than ${hoursText(c.lowerBoundH)}.`}
+      </p>
+      {c.cutAfterS !== null && (
+        <p className="mb-3">
+          The search was stopped after {c.cutAfterS} s so that the plan comes in time: this is the best plan found by then, and the figure
+          above still holds. A shorter horizon is searched further.
+        </p>
+      )}
+    </>
   );
 }
 
