@@ -75,7 +75,8 @@
  * states whose cost plus the bound's rest is least, the exact search (pruned with the bound's
  * multipliers), then, when nothing proved the plan, the stronger decomposition bound for a time budget
  * (./stop-planner-steps/stop-path-copy.ts) and a local search over stop sets, each set priced
- * exactly (./stop-planner-steps/lagrangian.ts).
+ * exactly (./stop-planner-steps/lagrangian.ts). With an answer time (`answerWithinMs`) every step
+ * after the baseline plans is cut to fit, and the certificate says when that happened.
  * Where the gap comes from (measured, DEVELOPERS.md decision 48): on the bench drive with wear × 3
  * the bound was the loose part (converged, it is within 1 % of the plan, and with it the search
  * proves the plan). On the demo drive the plain bound stays ≈ 19 % under the best plan even
