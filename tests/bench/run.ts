@@ -53,8 +53,9 @@ try {
     for (const l of await benchLoad(stack.databaseUrl, stack.smtpUrl)) print(l);
   }
   if (runs('planner')) {
-    const { benchStopPlanner, benchDemoStopPlan } = await import('./stop-planner.bench');
+    const { benchStopPlanner, benchDemoStopPlan, benchLatticeCase } = await import('./stop-planner.bench');
     for (const l of await benchStopPlanner()) print(l);
+    for (const l of await benchLatticeCase()) print(l);
     for (const l of await benchDemoStopPlan()) print(l);
   }
 } finally {

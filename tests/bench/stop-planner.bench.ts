@@ -157,3 +157,61 @@ export async function benchDemoStopPlan(): Promise<string[]> {
   }
   return lines;
 }
+
+/**
+ * Where the certificate's bound falls short, in a case small enough to solve exactly: one gauge
+ * disc whose ring lasts 32 m and ten face discs (rings lasting 88–296 m), uniform ground, every
+ * ring a compressed-air place, 800 m. The gauge disc forces a stop about every 31.5 m; the face
+ * discs must change at those stops, up to a stop spacing before they are due. The exact search
+ * proves the optimum; the plain bound and the decomposition with a copy for every position
+ * (decision 48), each run for 3,000 steps, are printed beside it (decision 50). Invented data.
+ */
+export function latticeCaseInput(horizonM = 800): StopPlanInput {
+  const faceLivesM = [88, 101, 118, 126, 150, 177, 197, 222, 254, 296];
+  const positions: PlannerPosition[] = [
+    { positionId: 'G', positionClass: 'gauge', limitMm: 15, wearNowMm: 0, wearStretches: [{ fromAheadM: 0, wearMmPerM: 15 / 32 }] },
+    ...faceLivesM.map((lifeM, k): PlannerPosition => ({
+      positionId: `F${k + 1}`,
+      positionClass: 'face',
+      limitMm: 25,
+      wearNowMm: ((k * 7) % 10) * 2.2,
+      wearStretches: [{ fromAheadM: 0, wearMmPerM: 25 / lifeM }],
+    })),
+  ];
+  return {
+    currentChainageM: 0,
+    direction: 'increasing',
+    horizonM,
+    positions,
+    stopPlaces: Array.from({ length: Math.floor(horizonM / RING_LENGTH_M) }, (_, j) => ({
+      chainageM: RING_LENGTH_M * (j + 1),
+      compressedAir: true,
+    })),
+    freeAirStopH: 6,
+    compressedAirStopH: 14,
+    changeHByClass: { centre: 1.5, face: 1, gauge: 1.25 },
+    wastedRingLifeHPerMm: 0.2,
+  };
+}
+
+/** The lattice case's figures: the proven optimum and how far under it the two bounds stay. */
+export async function benchLatticeCase(): Promise<string[]> {
+  const { prepare } = await import('../../shared/domain/stop-planner-steps/model');
+  const { lagrangianBound } = await import('../../shared/domain/stop-planner-steps/lagrangian');
+  const input = latticeCaseInput();
+  const t0 = performance.now();
+  const r = planStops(input);
+  const ms = performance.now() - t0;
+  if (!r.feasible) return ['lattice case: infeasible'];
+  const optH = r.optimised.cost.totalH;
+  const prep = prepare(input);
+  const plain = lagrangianBound(prep, { iterations: 3000, upperH: optH, targetGap: 0 });
+  const copies = new Uint8Array(input.positions.length).fill(1);
+  const split = lagrangianBound(prep, { iterations: 3000, upperH: optH, targetGap: 0, copies, startLambda: plain.lambda, stepScale: 0.1 });
+  const under = (h: number) => `${h.toFixed(1)} h (${((100 * (optH - h)) / h).toFixed(2)} % under)`;
+  return [
+    `lattice case (1 gauge disc of 32 m, 10 face discs, 800 m, compressed air): ${r.certificate.proven ? 'proven' : 'NOT proven'} optimum ` +
+      `${optH.toFixed(1)} h (${r.optimised.stops.length} stops, ${r.optimised.cost.wastedRingLifeH.toFixed(1)} h of ring life thrown away) in ${ms.toFixed(0)} ms; ` +
+      `plain bound ${under(plain.lowerH)}, decomposition with every position copied ${under(split.lowerH)}, 3,000 steps each`,
+  ];
+}
