@@ -163,14 +163,19 @@ export async function benchLoad(databaseUrl: string, smtpUrl: string): Promise<s
     let planning = true;
     let plans = 0;
     let planMs = 0;
+    // What the load costs the plans: their certificates, and how many the answer time cut short.
+    const gapsPercent: number[] = [];
+    let cut = 0;
     const planner$ = (async () => {
       while (planning) {
         const p = performance.now();
         const res = await fetch(`${api}/stops/plan`, { headers: auth });
-        await res.arrayBuffer();
+        const body = (await res.json()) as { certificate: { gapPercent: number; cutAfterS: number | null } | null };
         if (res.status !== 200) throw new Error(`stop plan answered ${res.status}`);
         planMs += performance.now() - p;
         plans++;
+        if (body.certificate) gapsPercent.push(body.certificate.gapPercent);
+        if (body.certificate?.cutAfterS != null) cut++;
       }
     })();
     const during = await load(`${api}/positions`, auth);
@@ -178,6 +183,7 @@ export async function benchLoad(databaseUrl: string, smtpUrl: string): Promise<s
     await planner$;
     out.push(
       `GET …/positions during stop plans (${plans} plans, ${(planMs / Math.max(1, plans)).toFixed(0)} ms each): ${fmt(during)} | p95 ${(during.p95 / positions.p95).toFixed(2)}× idle (target ≤ 2×)`,
+      `  those plans under load: certificates at most ${gapsPercent.map((g) => `${g.toFixed(1)} %`).join(', ')} above the cheapest; ${cut} of ${plans} cut short by the answer time`,
     );
 
     // The sign-in screen's JavaScript as a browser receives it (bytes on the wire, encoded).
