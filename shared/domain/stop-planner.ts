@@ -75,8 +75,10 @@
  * states whose cost plus the bound's rest is least, the exact search (pruned with the bound's
  * multipliers), then, when nothing proved the plan, the stronger decomposition bound for a time budget
  * (./stop-planner-steps/stop-path-copy.ts) and a local search over stop sets, each set priced
- * exactly (./stop-planner-steps/lagrangian.ts). With an answer time (`answerWithinMs`) every step
- * after the baseline plans is cut to fit, and the certificate says when that happened.
+ * exactly (./stop-planner-steps/lagrangian.ts). The stronger bound and the local search end by the
+ * answer time (`answerWithinMs`); the steps before them are cut only at the work limit
+ * (`workLimitMs`, reached by inputs far larger than the settings were sized for), and the
+ * certificate says when that happened.
  * Where the gap comes from (measured, DEVELOPERS.md decision 48): on the bench drive with wear × 3
  * the bound was the loose part (converged, it is within 1 % of the plan, and with it the search
  * proves the plan). On the demo drive the plain bound stays ≈ 19 % under the best plan even
@@ -119,7 +121,7 @@ const RANKED_PASS_STATES = 3;
 const PROBE_STATES = 300;
 /** Subgradient steps of the Lagrangian bound (about 1 s on an 80-position, 1,300-place drive; tests/bench). */
 const BOUND_ITERATIONS = 400;
-/** With an answer due (`answerWithinMs`), the bound may take this share of the time left before the local search; the exact search gets the rest. */
+/** Under a work limit (`workLimitMs`), the bound may take this share of the time left; the exact search gets the rest. */
 const BOUND_TIME_SHARE = 0.75;
 /** The bound stops improving once the plan is certified within this share. */
 const TARGET_GAP = 0.005;
@@ -205,8 +207,8 @@ export interface PlanCertificate {
   /** (plan hours − lower bound) / lower bound: the plan is at most this share above the cheapest; 0 when proven. */
   gap: number;
   /**
-   * True when the answer time (`answerWithinMs`) stopped the search or the bound before the work
-   * the other options allow: the plan and the bound still hold, but less was tried.
+   * True when the work limit (`workLimitMs`) stopped the search or the bound before the work the
+   * other options allow: the plan and the bound still hold, but less was tried.
    */
   cutForTime: boolean;
 }
@@ -255,14 +257,20 @@ export interface PlanStopsOptions {
   /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
   localSearchMs?: number;
   /**
-   * The answer is due this many milliseconds after the call. Every step after the baseline plans
-   * is cut to fit: the quick passes end with what they found, the bound may take three quarters
-   * of the time left when it starts (less the local search's), the exact search ends as past
-   * `maxStates` (not proven), and the stronger bound and the local search get what is left. Only
-   * the certificate and the plan's cost can suffer, never the plan's validity. Default: no limit
-   * (the work is fixed by the other options, so the answer does not depend on the machine's speed).
+   * The answer is due this many milliseconds after the call: the stronger bound and the local
+   * search (the steps that run for a time, not for a fixed amount of work) end by then. Default:
+   * no limit.
    */
   answerWithinMs?: number;
+  /**
+   * The fixed-work steps after the baseline plans are cut this many milliseconds after the call:
+   * the quick passes end with what they found, the bound takes at most three quarters of the time
+   * left when it starts, the exact search ends as past `maxStates` (not proven). Only inputs far
+   * larger than the other options were sized for reach it; only the certificate and the plan's
+   * cost can suffer, never the plan's validity. Default: no limit (the answer then does not depend
+   * on the machine's speed, apart from the timed steps above).
+   */
+  workLimitMs?: number;
   rules?: ComparisonRules;
 }
 
@@ -280,9 +288,11 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     localSearchMs = 0,
     strongBoundMs = 0,
     answerWithinMs = Infinity,
+    workLimitMs = Infinity,
     rules = DEFAULT_COMPARISON_RULES,
   } = options;
   const answerBy = performance.now() + answerWithinMs;
+  const workBy = performance.now() + workLimitMs;
   if (!(rules.changeShare > 0 && rules.changeShare <= 1)) throw new RangeError(`change share must be in (0, 1], got ${rules.changeShare}`);
   if (!(rules.intervalM > 0)) throw new RangeError(`interval must be > 0 m, got ${rules.intervalM}`);
   // Step 1: prepare.
@@ -305,7 +315,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   let cutForTime = false;
   const quickFirst = quickPassStates > 0 && boundIterations > 0 && best.cost.totalH > 0;
   if (quickFirst) {
-    const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH, deadline: answerBy });
+    const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH, deadline: workBy });
     quickStates = quick.statesExpanded;
     cutForTime ||= quick.timedOut;
     if (quick.plan !== null) {
@@ -322,7 +332,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
       quickPassStates: 0,
       maxStates: Math.min(maxStates, PROBE_STATES),
       boundH: best.cost.totalH,
-      deadline: answerBy,
+      deadline: workBy,
     });
     probeStates = probed.statesExpanded;
     cutForTime ||= probed.timedOut;
@@ -339,7 +349,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
           iterations: boundIterations,
           upperH: best.cost.totalH,
           targetGap,
-          deadline: performance.now() + BOUND_TIME_SHARE * Math.max(0, answerBy - localSearchMs - performance.now()),
+          deadline: performance.now() + BOUND_TIME_SHARE * Math.max(0, workBy - performance.now()),
         })
       : null;
   cutForTime ||= relaxed?.timedOut ?? false;
@@ -358,7 +368,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
             maxStates,
             boundH: best.cost.totalH,
             restBoundH,
-            deadline: answerBy - localSearchMs,
+            deadline: workBy,
           });
   cutForTime ||= searched0.timedOut;
   const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates + probeStates };

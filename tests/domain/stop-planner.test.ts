@@ -513,13 +513,13 @@ describe('search budget', () => {
     expect(capped.optimised.cost.totalH).toBeGreaterThanOrEqual(exact.optimised.cost.totalH - 1e-9);
   }, 120_000);
 
-  it('an answer already due stops every step after the baseline plans, with a bound still below the optimum', async () => {
+  it('a work limit already reached stops every step after the baseline plans, with a bound still below the optimum', async () => {
     // The drive-sized case that the full search proves (previous test): with no time left it must
     // not be searched to the end, and what it says must still hold.
     const { benchInputForTests } = await import('../bench/stop-planner.bench');
     const input = benchInputForTests(2);
     const exact = planStops(input);
-    const due = planStops(input, { strongBoundMs: 60_000, localSearchMs: 60_000, answerWithinMs: 0 });
+    const due = planStops(input, { strongBoundMs: 60_000, localSearchMs: 60_000, answerWithinMs: 0, workLimitMs: 0 });
     expect(exact.feasible && due.feasible).toBe(true);
     if (!exact.feasible || !due.feasible) return;
     expect(exact.provenOptimal).toBe(true);

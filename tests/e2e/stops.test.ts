@@ -140,13 +140,19 @@ it('the planner proposes, schedules and publishes the first stop of the plan; th
   await fitter.close();
 }, 180_000);
 
-it('a plan cut short by the answer time says so beside its certificate', async () => {
-  // 20 km, the longest horizon a request accepts: the search cannot run its course in the 4 s
-  // the planner is given (decision 50), and the page must not pass that over in silence.
+it('a plan cut short by the work limit says so beside its certificate', async () => {
+  // Only inputs far larger than the demo drive reach the planner's work limit (8 s, decision 50;
+  // the demo's whole known ground plans in about 5 s), so the real answer is changed on its way to
+  // the page to say it was cut: this checks the page, not the planner (tests/domain checks that).
   const planner = await signIn('planner@kerfwise.test');
-  await planner.goto(`${app.url}/projects/${projectId}/stops/plan?horizonM=20000`);
+  const planApi = (url: URL) => url.pathname.startsWith('/api/') && url.pathname.endsWith('/stops/plan');
+  await planner.route(planApi, async (route) => {
+    const res = await route.fetch();
+    const body = await res.json();
+    await route.fulfill({ response: res, json: { ...body, certificate: { ...body.certificate, cutAfterS: 8 } } });
+  });
+  await planner.goto(`${app.url}/projects/${projectId}/stops/plan`);
   await expect.poll(() => planner.getByRole('table', { name: 'Cost of the plans, in hours' }).count(), { timeout: 90_000 }).toBe(1);
-  expect(await planner.getByText(/At most [\d.]+ % above the cheapest possible plan/).count()).toBe(1);
-  expect(await planner.getByText(/The search was stopped after 4 s so that the plan comes in time/).count()).toBe(1);
+  expect(await planner.getByText(/The search was stopped after 8 s so that the plan comes in time/).count()).toBe(1);
   await planner.close();
 }, 150_000);
