@@ -1,35 +1,15 @@
 import { describe, expect, it } from 'vitest';
 import type { PositionClass } from '../../shared/domain/forecast';
-import { planStops, type StopPlan, type StopPlanInput, type WearStretch } from '../../shared/domain/stop-planner';
+import { planStops, type StopPlan, type StopPlanInput } from '../../shared/domain/stop-planner';
 import { chainSolver, decompositionBound, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
 import { prepare, pricePlan } from '../../shared/domain/stop-planner-steps/model';
 import { stopPathCopy } from '../../shared/domain/stop-planner-steps/stop-path-copy';
 import { mulberry32 } from '../support/random';
+import { aheadOf, placesAhead, randomInstance, tinyInstance, wearAddedMm } from '../support/stop-reference';
 
 // All data invented (no real project).
 
 const EPS = 1e-9;
-
-/** Wear added from here to `aheadM` (mm), summed stretch by stretch; written apart from the planner's own. */
-function wearAddedMm(stretches: WearStretch[], aheadM: number): number {
-  let mm = 0;
-  for (let k = 0; k < stretches.length; k++) {
-    const end = k + 1 < stretches.length ? Math.min(stretches[k + 1].fromAheadM, aheadM) : aheadM;
-    if (end > stretches[k].fromAheadM) mm += stretches[k].wearMmPerM * (end - stretches[k].fromAheadM);
-  }
-  return mm;
-}
-
-const aheadOf = (input: StopPlanInput, chainageM: number) =>
-  (chainageM - input.currentChainageM) * (input.direction === 'increasing' ? 1 : -1);
-
-/** Usable stop places as metres ahead, in order. */
-function placesAhead(input: StopPlanInput) {
-  return input.stopPlaces
-    .map((p) => ({ aheadM: aheadOf(input, p.chainageM), compressedAir: p.compressedAir }))
-    .filter((p) => p.aheadM >= 0 && p.aheadM <= input.horizonM)
-    .sort((a, b) => a.aheadM - b.aheadM);
-}
 
 /**
  * Least total hours by brute force, assuming none of the planner's rules: every subset S of the
@@ -346,52 +326,6 @@ describe('planStops: infeasible instances', () => {
     expect(() => planStops(base({ freeAirStopH: -1 }))).toThrow(RangeError);
   });
 });
-
-/** A small random instance: 2–5 positions, 10–30 places, ring lives from a fifth of the horizon to all of it. */
-function randomInstance(rng: () => number): StopPlanInput {
-  const horizonM = 100 + 100 * rng();
-  const direction = rng() < 0.5 ? 'increasing' : 'decreasing';
-  const sign = direction === 'increasing' ? 1 : -1;
-  const currentChainageM = 2000 + 3000 * rng();
-  const m = 10 + Math.floor(21 * rng());
-  const stopPlaces = Array.from({ length: m }, () => ({
-    chainageM: currentChainageM + sign * horizonM * rng(),
-    compressedAir: rng() < 0.3,
-  }));
-  stopPlaces.push({ chainageM: currentChainageM - sign * 5, compressedAir: false }); // behind the machine: not usable
-  const classes: PositionClass[] = ['centre', 'face', 'gauge'];
-  const positions = Array.from({ length: 2 + Math.floor(4 * rng()) }, (_, i) => {
-    const limitMm = 10 + 20 * rng();
-    const lifeM = horizonM * (0.2 + 0.8 * rng());
-    const cuts = Array.from({ length: Math.floor(3 * rng()) }, () => horizonM * rng()).sort((a, b) => a - b);
-    return {
-      positionId: `P${i + 1}`,
-      positionClass: classes[Math.floor(3 * rng())],
-      wearNowMm: limitMm * rng(),
-      limitMm,
-      wearStretches: [0, ...cuts].map((fromAheadM) => ({ fromAheadM, wearMmPerM: (limitMm / lifeM) * (0.5 + rng()) })),
-    };
-  });
-  const freeAirStopH = 2 + 6 * rng();
-  return {
-    currentChainageM,
-    direction,
-    horizonM,
-    positions,
-    stopPlaces,
-    freeAirStopH,
-    compressedAirStopH: freeAirStopH + 12 * rng(),
-    changeHByClass: { centre: 0.5 + 1.5 * rng(), face: 0.5 + rng(), gauge: 0.5 + 2 * rng() },
-    wastedRingLifeHPerMm: 0.3 * rng(),
-  };
-}
-
-/** A tiny random instance for the brute force: 1–3 positions, 2–7 places, ring lives from a fifth of the horizon to all of it. */
-function tinyInstance(rng: () => number): StopPlanInput {
-  const input = randomInstance(rng);
-  const places = input.stopPlaces.slice(0, 2 + Math.floor(6 * rng()));
-  return { ...input, positions: input.positions.slice(0, 1 + Math.floor(3 * rng())), stopPlaces: places };
-}
 
 describe('planStops: against an independent brute force', () => {
   it('proven plans cost the brute-force optimum, and the lower bound never exceeds it (300 seeded tiny instances)', () => {
