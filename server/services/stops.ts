@@ -16,7 +16,7 @@ import {
   stopPlaceAt,
   type DriveGeology,
 } from '../../shared/domain/stop-plan-input';
-import type { StopPlan } from '../../shared/domain/stop-planner';
+import type { StopPlan, StopPlanInput } from '../../shared/domain/stop-planner';
 import { planStopsInWorker } from '../workers/pool';
 import { partsKit } from '../../shared/domain/work-pack';
 import type { PlanView, StopPlanQuery, StopPlanSettings, StopPlanView, StopStatus } from '../../shared/schemas/stop';
@@ -112,6 +112,32 @@ function planSettings(project: { compressedAirAboveHeadM: number }, overrides: S
   };
 }
 
+/** What a stop plan is built from: the project, its settings with the request's overrides, the forecast and the geology. */
+async function planContext(tx: DbOrTx, projectId: string, now: Date, overrides: StopPlanQuery) {
+  const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
+  if (!project) throw new NotFoundError('That project');
+  const settings = planSettings(project, overrides);
+  const forecast = await computeForecast(tx, projectId, now);
+  const geology = await loadDriveGeology(tx, project);
+  return { project, settings, forecast, geology };
+}
+
+/**
+ * The planner's input exactly as planForProject builds it (before any shortening for an
+ * infeasible horizon), or null when there is nothing to plan: for the bench's relaxation figures.
+ */
+export async function stopPlanInputFor(
+  tx: DbOrTx,
+  projectId: string,
+  now: Date,
+  overrides: StopPlanQuery = {},
+): Promise<StopPlanInput | null> {
+  const { settings, forecast, geology } = await planContext(tx, projectId, now, overrides);
+  if (forecast.currentChainageM == null || forecast.positions.length === 0) return null;
+  if (knownGroundAheadM(geology, forecast.currentChainageM) <= 0) return null;
+  return buildStopPlanInput(forecast, geology, settings);
+}
+
 async function loadDriveGeology(tx: DbOrTx, project: typeof projects.$inferSelect): Promise<DriveGeology> {
   const sections = await tx
     .select()
@@ -127,11 +153,7 @@ async function loadDriveGeology(tx: DbOrTx, project: typeof projects.$inferSelec
  * expected (P90) wear, and the cautions.
  */
 export async function planForProject(tx: DbOrTx, projectId: string, now: Date, overrides: StopPlanQuery = {}): Promise<ProjectStopPlan> {
-  const [project] = await tx.select().from(projects).where(eq(projects.id, projectId));
-  if (!project) throw new NotFoundError('That project');
-  const settings = planSettings(project, overrides);
-  const forecast = await computeForecast(tx, projectId, now);
-  const geology = await loadDriveGeology(tx, project);
+  const { settings, forecast, geology } = await planContext(tx, projectId, now, overrides);
   const empty: ProjectStopPlan = {
     now,
     currentChainageM: forecast.currentChainageM,

@@ -1,13 +1,13 @@
 /**
  * `npm run bench`: speed figures of Kerfwise on this machine, printed (never asserted in tests).
  * Starts its own PostgreSQL cluster (.data/pg-bench-<port>, port 54500 or KERFWISE_BENCH_PG_PORT)
- * with a fresh database. KERFWISE_BENCH_ONLY=import,drive,load,planner runs only the named parts
+ * with a fresh database. KERFWISE_BENCH_ONLY=import,drive,load,planner,relaxation runs only the named parts
  * (comma-separated); unknown names are refused.
  */
 import { randomUUID } from 'node:crypto';
 import { bringUpLocalStack } from '../../server/devenv/local-stack';
 
-const PARTS = ['import', 'drive', 'load', 'planner'] as const;
+const PARTS = ['import', 'drive', 'load', 'planner', 'relaxation'] as const;
 const only = (process.env.KERFWISE_BENCH_ONLY ?? PARTS.join(','))
   .split(',')
   .map((p) => p.trim())
@@ -57,6 +57,10 @@ try {
     for (const l of await benchStopPlanner()) print(l);
     for (const l of await benchLatticeCase()) print(l);
     for (const l of await benchDemoStopPlan()) print(l);
+  }
+  if (runs('relaxation')) {
+    const { benchRelaxation } = await import('./relaxation.bench');
+    for (const l of await benchRelaxation()) print(l);
   }
 } finally {
   const { pool } = await import('../../server/db/client');
