@@ -73,7 +73,8 @@
  * short exact search without the bound (300 states: it proves easy drives at once, so the bound's
  * steps are skipped there), the bound, a second quick pass (3 states per place) that keeps the
  * states whose cost plus the bound's rest is least, the exact search (pruned with the bound's
- * multipliers), then, when nothing proved the plan, the stronger decomposition bound for a time budget
+ * multipliers; with an answer time, it goes on past its state cap while the plan is within 3 % of
+ * the bound), then, when nothing proved the plan, the stronger decomposition bound for a time budget
  * (./stop-planner-steps/stop-path-copy.ts) and a local search over stop sets, each set priced
  * exactly (./stop-planner-steps/lagrangian.ts). The stronger bound and the local search end by the
  * answer time (`answerWithinMs`); the steps before them are cut only at the work limit
@@ -92,7 +93,11 @@
  * last 33–35 m, held to the stops the 32 m rings set). Copies for the slower positions gain
  * nothing at the plain bound's multipliers and little after many steps; closing the gap to 2 %
  * would need every position's copy to agree with the others (branching on stops, or far more
- * steps than a request allows).
+ * steps than a request allows). The relaxation itself is the limit: its linear programme, solved
+ * exactly by HiGHS, is 1.4 % under the proven optimum on the demo drive cut to 450 m and 1.8 % at
+ * 600 m, and on a lattice case 2.6 % at 400 m and 5.8 % at 800 m; the gap grows with the horizon,
+ * so at 2 km no bound of this relaxation is likely to come within 2 % (decision 51,
+ * tests/bench/relaxation.bench.ts).
  *
  * Feasibility: changing every ring at its own latest place (the latest-change plan) is feasible
  * exactly when any plan is; an instance is infeasible exactly when some ring falls due before the
@@ -125,6 +130,19 @@ const BOUND_ITERATIONS = 400;
 const BOUND_TIME_SHARE = 0.75;
 /** The bound stops improving once the plan is certified within this share. */
 const TARGET_GAP = 0.005;
+/**
+ * When the capped exact search did not prove the plan and an answer time is set, the search goes
+ * on past its cap for at most this share of the time left before the answer (the rest to the
+ * stronger bound and the local search; decision 51).
+ */
+const SEARCH_ON_SHARE = 0.5;
+/**
+ * The search goes on past its cap only when the plan is then within this share of the bound
+ * (nearer, it may finish; farther, it rarely does): measured on the demo drive,
+ * cut to 600 m (2.2 %) the search proves the plan with about 6,000 more states; cut to 700 m (4.4 %)
+ * it does not in 20 s, and time taken from the stronger bound leaves a wider gap.
+ */
+const SEARCH_ON_GAP = 0.03;
 
 /** Cautious wear growth from `fromAheadM` (m ahead) until the next stretch starts; the last one runs on. */
 export interface WearStretch {
@@ -243,7 +261,11 @@ export const DEFAULT_COMPARISON_RULES: ComparisonRules = { changeShare: 0.8, int
 export interface PlanStopsOptions {
   /** States expanded per place by the quick first pass of the search (0 skips it); only the time changes. */
   quickPassStates?: number;
-  /** Cap on the exact search (a server must answer in time); past it the plan is the best found, with its certificate. */
+  /**
+   * Cap on the exact search (a server must answer in time); past it the plan is the best found,
+   * with its certificate. With `answerWithinMs`, a search stopped at the cap goes on for a share of
+   * the time left when the plan is within 3 % of the bound (SEARCH_ON_GAP).
+   */
   maxStates?: number;
   /** Steps of the Lagrangian bound (0 skips it; the certificate is then the search's only). */
   boundIterations?: number;
@@ -257,9 +279,9 @@ export interface PlanStopsOptions {
   /** Milliseconds of local search over stop sets after the exact search, when it did not prove the plan (0: none). Not a proof; only the plan can improve. */
   localSearchMs?: number;
   /**
-   * The answer is due this many milliseconds after the call: the stronger bound and the local
-   * search (the steps that run for a time, not for a fixed amount of work) end by then. Default:
-   * no limit.
+   * The answer is due this many milliseconds after the call: the exact search past its cap, the
+   * stronger bound and the local search (the steps that run for a time, not for a fixed amount of
+   * work) end by then. Default: no limit (and no search past the cap).
    */
   answerWithinMs?: number;
   /**
@@ -371,7 +393,36 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
             deadline: workBy,
           });
   cutForTime ||= searched0.timedOut;
-  const found = { ...searched0, statesExpanded: searched0.statesExpanded + quickStates + probeStates };
+  // Step 6b: past the cap, the search goes on for a share of the time before the answer (a timed
+  // step, like the stronger bound: its end is no cut of the fixed work). It starts again from the
+  // first place, bounded by the best plan so far, so "complete" still proves that plan cheapest.
+  let searchedOn: ReturnType<typeof exactSearch> | null = null;
+  if (!searched0.complete && !searched0.timedOut && answerWithinMs < Infinity) {
+    if (searched0.plan !== null) {
+      const searched = pricePlan(prep, searched0.plan);
+      if (searched.cost.totalH < best.cost.totalH) best = searched;
+    }
+    const lower0H = Math.max(0, relaxed?.lowerH ?? 0, searched0.lowerH, probed?.lowerH ?? 0);
+    const until = Math.min(workBy, performance.now() + SEARCH_ON_SHARE * Math.max(0, answerBy - localSearchMs - performance.now()));
+    if (best.cost.totalH - lower0H <= SEARCH_ON_GAP * lower0H && until > performance.now()) {
+      searchedOn = exactSearch(prep, bounds, {
+        quickPassStates: 0,
+        maxStates: Infinity,
+        boundH: best.cost.totalH,
+        restBoundH,
+        deadline: until,
+      });
+    }
+  }
+  const found = {
+    ...searched0,
+    statesExpanded: searched0.statesExpanded + quickStates + probeStates + (searchedOn?.statesExpanded ?? 0),
+    ...(searchedOn && {
+      plan: searchedOn.plan ?? searched0.plan,
+      complete: searchedOn.complete,
+      lowerH: Math.max(searched0.lowerH, searchedOn.lowerH),
+    }),
+  };
   if (found.plan !== null) {
     const searched = pricePlan(prep, found.plan);
     if (searched.cost.totalH < best.cost.totalH) best = searched;

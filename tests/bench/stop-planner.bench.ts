@@ -149,7 +149,7 @@ export async function benchDemoStopPlan(): Promise<string[]> {
   // The default horizon (2 km) as the target asks, then shorter ones (where the certificate
   // holds), then the longest a request accepts, where only a bounded time is a target (the plan
   // covers the ground known ahead).
-  for (const horizonM of [undefined, 450, 1000, 20_000]) {
+  for (const horizonM of [undefined, 450, 600, 1000, 20_000]) {
     const boundedMs = horizonM === undefined || horizonM <= HORIZON_M ? null : PLANNER_WORK_LIMIT_MS + 1000;
     const t0 = performance.now();
     const cpu0 = process.cpuUsage();

@@ -57,4 +57,30 @@ describe('stop planner against HiGHS (mixed-integer and linear programmes)', () 
     // Some instances have a relaxation below the optimum (else the check above says little).
     expect(strictlyBelowOptimum).toBeGreaterThanOrEqual(5);
   });
+
+  it('with an answer time, a search stopped at its cap goes on when the plan is within 3 % of the bound, and proves the HiGHS optimum', async () => {
+    const rng = mulberry32(20261203);
+    let searchedOn = 0;
+    let leftAlone = 0;
+    for (let k = 0; k < 60; k++) {
+      const input = randomInstance(rng);
+      const label = `instance ${k}`;
+      const capped = planStops(input, { maxStates: 0 });
+      if (!capped.feasible || capped.certificate.proven) continue;
+      // A minute is far more than these need: the outcome does not depend on the machine's speed.
+      const timed = planStops(input, { maxStates: 0, answerWithinMs: 60_000 });
+      if (!timed.feasible) throw new Error(label);
+      if (capped.certificate.gap <= 0.03) {
+        searchedOn++;
+        expect(timed.certificate.proven, label).toBe(true);
+        expect(timed.optimised.cost.totalH, label).toBeCloseTo((await highsMinH(input, { integer: true }))!, 6);
+      } else {
+        leftAlone++;
+        expect(timed.statesExpanded, label).toBe(capped.statesExpanded);
+        expect(timed.certificate.proven, label).toBe(false);
+      }
+    }
+    expect(searchedOn).toBeGreaterThanOrEqual(10);
+    expect(leftAlone).toBeGreaterThanOrEqual(1);
+  });
 });
