@@ -333,11 +333,14 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
   // Step 3: the quick pass of the search first, when the bound runs: its plan steers the bound's
   // step lengths (Polyak steps aim at the best plan's hours; a far target slows the ascent).
   const bounds = searchBounds(prep);
+  // A quick pass cut by the work limit finishes its best states by the site-practice rule.
+  const finish = (afterIdx: number, reach: Int32Array, budgetMm: Float64Array) =>
+    practicePlan(prep, rules.changeShare, { afterIdx, reach, budgetMm });
   let quickStates = 0;
   let cutForTime = false;
   const quickFirst = quickPassStates > 0 && boundIterations > 0 && best.cost.totalH > 0;
   if (quickFirst) {
-    const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH, deadline: workBy });
+    const quick = exactSearch(prep, bounds, { quickPassStates, maxStates: 0, boundH: best.cost.totalH, deadline: workBy, finish });
     quickStates = quick.statesExpanded;
     cutForTime ||= quick.timedOut;
     if (quick.plan !== null) {
@@ -391,6 +394,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
             boundH: best.cost.totalH,
             restBoundH,
             deadline: workBy,
+            finish,
           });
   cutForTime ||= searched0.timedOut;
   // Step 6b: past the cap, the search goes on for a share of the time before the answer (a timed

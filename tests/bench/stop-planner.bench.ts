@@ -65,7 +65,7 @@ function benchInput(wearFactor = 1, horizonM = HORIZON_M): StopPlanInput {
 }
 
 /** The bench instance with its wear rates scaled (×3 makes a hard case), for tests of the search budget. */
-export const benchInputForTests = (wearFactor: number) => benchInput(wearFactor);
+export const benchInputForTests = (wearFactor: number, horizonM = HORIZON_M) => benchInput(wearFactor, horizonM);
 
 /**
  * The targets a plan's figures are held to, and whether they are met: issue 15's (time and gap),

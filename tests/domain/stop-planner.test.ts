@@ -2,7 +2,10 @@ import { describe, expect, it } from 'vitest';
 import type { PositionClass } from '../../shared/domain/forecast';
 import { planStops, type StopPlan, type StopPlanInput } from '../../shared/domain/stop-planner';
 import { chainSolver, decompositionBound, improveStops, lagrangianBound } from '../../shared/domain/stop-planner-steps/lagrangian';
-import { prepare, pricePlan } from '../../shared/domain/stop-planner-steps/model';
+import { practicePlan } from '../../shared/domain/stop-planner-steps/baselines';
+import { searchBounds } from '../../shared/domain/stop-planner-steps/bounds';
+import { lastReachable, prepare, pricePlan } from '../../shared/domain/stop-planner-steps/model';
+import { exactSearch } from '../../shared/domain/stop-planner-steps/search';
 import { stopPathCopy } from '../../shared/domain/stop-planner-steps/stop-path-copy';
 import { mulberry32 } from '../support/random';
 import { aheadOf, placesAhead, randomInstance, tinyInstance, wearAddedMm } from '../support/stop-reference';
@@ -429,9 +432,53 @@ describe('comparison rules', () => {
     replay(input, r.fixedInterval!);
     expect(r.optimised.cost.totalH).toBeLessThanOrEqual(14.7 + 1e-9);
   });
+
+  it('the practice rule started from a state part-way reproduces the rest of its own plan (60 seeded instances)', () => {
+    const rng = mulberry32(20261204);
+    let checked = 0;
+    for (let k = 0; k < 60; k++) {
+      const input = randomInstance(rng);
+      const prep = prepare(input);
+      const whole = practicePlan(prep, 0.8);
+      if (whole === null || whole.length < 2) continue;
+      // The rings fitted after the first s stops of the plan, as the rule left them.
+      const s = 1 + Math.floor(rng() * (whole.length - 1));
+      const budgetMm = [...prep.startBudgetMm];
+      for (const stop of whole.slice(0, s)) for (const i of stop.changed) budgetMm[i] = prep.wearAt[i][stop.idx] + prep.limitMm[i];
+      const reach = budgetMm.map((b, i) => lastReachable(prep, i, b));
+      const rest = practicePlan(prep, 0.8, { afterIdx: whole[s - 1].idx, budgetMm, reach });
+      expect(rest, `instance ${k}`).toEqual(whole.slice(s));
+      checked++;
+    }
+    expect(checked).toBeGreaterThanOrEqual(20);
+  });
 });
 
 describe('search budget', () => {
+  it('a quick pass cut by its deadline finishes its most promising states by the practice rule: a whole, valid plan', async () => {
+    const { benchInputForTests } = await import('../bench/stop-planner.bench');
+    const input = benchInputForTests(3);
+    const prep = prepare(input);
+    const bounds = searchBounds(prep);
+    const practice = pricePlan(prep, practicePlan(prep, 0.8)!);
+    const finish = (afterIdx: number, reach: Int32Array, budgetMm: Float64Array) => practicePlan(prep, 0.8, { afterIdx, reach, budgetMm });
+    const boundH = practice.cost.totalH + 1;
+    // Cut at once and a little later: wherever the cut falls, the answer is a whole plan that
+    // keeps every ring within its limit (replayed on its own) and costs what the search says.
+    for (const ms of [0, 5, 50]) {
+      const r = exactSearch(prep, bounds, { quickPassStates: 2, maxStates: 0, boundH, deadline: performance.now() + ms, finish });
+      expect(r.timedOut, `${ms} ms`).toBe(true);
+      expect(r.plan, `${ms} ms`).not.toBeNull();
+      const priced = pricePlan(prep, r.plan!);
+      expect(replay(input, priced)).toBeCloseTo(r.bestH, 6);
+      expect(priced.cost.totalH).toBeLessThan(boundH);
+    }
+    // Without a rule a pass cut before the horizon has no whole plan to give.
+    const bare = exactSearch(prep, bounds, { quickPassStates: 2, maxStates: 0, boundH, deadline: performance.now() });
+    expect(bare.timedOut).toBe(true);
+    expect(bare.plan).toBeNull();
+  });
+
   it('past maxStates answers the best plan found, not proven, with a lower bound below the optimum', async () => {
     // An instance where the exact search expands many states: the benchmark's drive-sized case.
     const { benchInputForTests } = await import('../bench/stop-planner.bench');

@@ -56,6 +56,14 @@ export function latestChangePlan(chains: number[][]): IndexPlan {
   return [...byIdx.entries()].sort((a, b) => a[0] - b[0]).map(([idx, changed]) => ({ idx, changed }));
 }
 
+/** Where a rule starts when it finishes a partial plan: after place `afterIdx`, with these rings fitted. */
+export interface RuleStart {
+  afterIdx: number;
+  /** Per position: the fitted ring's budget (mm of W) and the last place it reaches (`done` if it lasts). */
+  budgetMm: ArrayLike<number>;
+  reach: ArrayLike<number>;
+}
+
 /**
  * A plan by a rule: walk the places in order; stop at the earlier of the next planned place
  * (`nextPlannedIdx`, `done` if none) and the last place before some ring would pass its limit;
@@ -68,12 +76,13 @@ function rulePlan(
   changeShare: number,
   nextPlannedIdx: (afterIdx: number) => number,
   keepUntilIdx: (stopIdx: number) => number,
+  from: RuleStart | null = null,
 ): IndexPlan | null {
   const n = prep.input.positions.length;
-  const budgetMm = [...prep.startBudgetMm];
-  const reach = budgetMm.map((b, i) => lastReachable(prep, i, b));
+  const budgetMm = from ? Array.from(from.budgetMm) : [...prep.startBudgetMm];
+  const reach = from ? Array.from(from.reach) : budgetMm.map((b, i) => lastReachable(prep, i, b));
   const plan: IndexPlan = [];
-  let last = -1;
+  let last = from ? from.afterIdx : -1;
   for (;;) {
     const q = Math.min(nextPlannedIdx(last), ...reach);
     if (q === prep.done) return plan;
@@ -97,14 +106,16 @@ function rulePlan(
 /**
  * The rule sites use (common practice, no source): stop at the last allowed place before the first
  * disc reaches its cautious limit; there change that disc and every disc worn to at least
- * `changeShare` (e.g. 0.8) of its limit.
+ * `changeShare` (e.g. 0.8) of its limit. With `from`, the rule finishes a partial plan from there
+ * (the stops it adds only).
  */
-export function practicePlan(prep: Prepared, changeShare: number): IndexPlan | null {
+export function practicePlan(prep: Prepared, changeShare: number, from: RuleStart | null = null): IndexPlan | null {
   return rulePlan(
     prep,
     changeShare,
     () => prep.done,
     (q) => q + 1,
+    from,
   );
 }
 

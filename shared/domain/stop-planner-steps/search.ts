@@ -4,7 +4,7 @@
  * only a few states per place finds a good plan to bound the exact pass.
  */
 import type { SearchBounds } from './bounds';
-import { budgetAfterChangeMm, changeCostH, lastReachable, type IndexPlan, type Prepared } from './model';
+import { budgetAfterChangeMm, changeCostH, lastReachable, pricePlan, type IndexPlan, type Prepared } from './model';
 
 /** A search state: at stop place `idx`, before its changes. */
 interface Label {
@@ -41,10 +41,20 @@ export interface SearchOptions {
   restBoundH?: (q: number, reach: Int32Array, budgetMm: Float64Array) => number;
   /**
    * performance.now() (ms) by which the search ends: the exact pass then stops as past `maxStates`
-   * (not proven, with the least bound over the states left), the quick pass with what it found.
+   * (not proven, with the least bound over the states left), the quick pass with what it found —
+   * and, with `finish`, with its most promising states finished by a rule.
    */
   deadline?: number;
+  /**
+   * A rule that finishes a partial plan from a state (the stops after `afterIdx`; null if it gets
+   * stuck): when the deadline cuts the quick pass before the horizon, its states with the least
+   * bound are finished with it, so a cut pass still answers a whole plan (decision 51).
+   */
+  finish?: (afterIdx: number, reach: Int32Array, budgetMm: Float64Array) => IndexPlan | null;
 }
+
+/** States of a quick pass cut by the deadline that are finished by the rule (the least bound first). */
+const FINISHED_STATES = 20;
 
 export interface SearchResult {
   /** The cheapest plan found below `boundH`, or null if none was found. */
@@ -62,7 +72,7 @@ export interface SearchResult {
 export function exactSearch(
   prep: Prepared,
   bounds: SearchBounds,
-  { quickPassStates, maxStates, boundH, restBoundH, deadline = Infinity }: SearchOptions,
+  { quickPassStates, maxStates, boundH, restBoundH, deadline = Infinity, finish }: SearchOptions,
 ): SearchResult {
   const n = prep.input.positions.length;
   const m = prep.aheadM.length;
@@ -108,6 +118,19 @@ export function exactSearch(
     }
     return { reach: l.reach, budgetMm: l.budgetMm };
   };
+
+  // The stops of the plan that ends at `last`'s place with the positions of reach ≤ changedUpTo changed there.
+  const planOf = (last: Label, changedUpTo: number): IndexPlan => {
+    const plan: IndexPlan = [];
+    for (let l: Label | null = last; l !== null; l = l.parent) {
+      const reach = fill(l).reach;
+      plan.unshift({ idx: l.idx, changed: [...reach.keys()].filter((i) => reach[i] !== done && reach[i] <= changedUpTo) });
+      changedUpTo = l.changedUpTo;
+    }
+    return plan;
+  };
+  /** A whole plan made by `finish` from a state of a cut quick pass, and its hours. */
+  let finished: { plan: IndexPlan; h: number } | null = null;
 
   let statesExpanded = 0;
   /** States the exact pass has expanded (the cap is on these; the quick pass's come on top). */
@@ -163,7 +186,24 @@ export function exactSearch(
     for (let q = 0; q < m; q++) {
       const late = performance.now() >= deadline;
       if (late) timedOut = true;
-      if (late && beamWidth !== Infinity) break;
+      if (late && beamWidth !== Infinity) {
+        // Finish the states left with the least bound by the rule, from just before their stop:
+        // their rings all reach that place, and the rule stops at the latest place it allows.
+        if (finish && best === null) {
+          const left: Label[] = [];
+          for (let r = q; r < m; r++) for (const held of buckets[r].values()) left.push(...held);
+          left.sort((x, y) => stateBoundH(x) - stateBoundH(y));
+          for (const l of left.slice(0, FINISHED_STATES)) {
+            const { reach, budgetMm } = fill(l);
+            const rest = finish(l.idx - 1, reach, budgetMm);
+            if (rest === null) continue;
+            const plan = [...(l.parent ? planOf(l.parent, l.changedUpTo) : []), ...rest];
+            const h = pricePlan(prep, plan).cost.totalH;
+            if (h < bestH - tolH && (finished === null || h < finished.h)) finished = { plan, h };
+          }
+        }
+        break;
+      }
       if (beamWidth === Infinity && (exactStates > maxStates || late)) {
         stoppedEarly = true;
         // Every plan cheaper than the best found passes through a state left here.
@@ -269,17 +309,13 @@ export function exactSearch(
   };
 
   const quick = pass(quickPassStates, boundH);
-  const exact = pass(Infinity, quick.bestH);
+  const quickFinished = finished as { plan: IndexPlan; h: number } | null;
+  const exact = pass(Infinity, quickFinished?.h ?? quick.bestH);
   const best = exact.best ?? quick.best;
-  const bestH = exact.best ? exact.bestH : quick.bestH;
+  const bestH = exact.best ? exact.bestH : (quickFinished?.h ?? quick.bestH);
   const lowerH = stoppedEarly ? Math.min(bestH, frontierH) : bestH;
-  if (best === null) return { plan: null, bestH, statesExpanded, complete: !stoppedEarly, lowerH, timedOut };
-  const plan: IndexPlan = [];
-  let changedUpTo = best.changedUpTo;
-  for (let l: Label | null = best.last; l !== null; l = l.parent) {
-    const reach = l.reach as Int32Array;
-    plan.unshift({ idx: l.idx, changed: [...reach.keys()].filter((i) => reach[i] !== done && reach[i] <= changedUpTo) });
-    changedUpTo = l.changedUpTo;
-  }
+  const plan = exact.best
+    ? planOf(exact.best.last, exact.best.changedUpTo)
+    : (quickFinished?.plan ?? (best ? planOf(best.last, best.changedUpTo) : null));
   return { plan, bestH, statesExpanded, complete: !stoppedEarly, lowerH, timedOut };
 }
