@@ -309,6 +309,7 @@ export function exactSearch(
   };
 
   const quick = pass(quickPassStates, boundH);
+  // `finished` is set inside `pass` (TypeScript's narrowing cannot see that, hence the cast).
   const quickFinished = finished as { plan: IndexPlan; h: number } | null;
   const exact = pass(Infinity, quickFinished?.h ?? quick.bestH);
   const best = exact.best ?? quick.best;
