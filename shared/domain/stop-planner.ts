@@ -422,7 +422,7 @@ export function planStops(input: StopPlanInput, options: PlanStopsOptions = {}):
     ...searched0,
     statesExpanded: searched0.statesExpanded + quickStates + probeStates + (searchedOn?.statesExpanded ?? 0),
     ...(searchedOn && {
-      plan: searchedOn.plan ?? searched0.plan,
+      plan: searchedOn.plan, // the capped search's plan is already in `best`
       complete: searchedOn.complete,
       lowerH: Math.max(searched0.lowerH, searchedOn.lowerH),
     }),

@@ -129,9 +129,6 @@ export function exactSearch(
     }
     return plan;
   };
-  /** A whole plan made by `finish` from a state of a cut quick pass, and its hours. */
-  let finished: { plan: IndexPlan; h: number } | null = null;
-
   let statesExpanded = 0;
   /** States the exact pass has expanded (the cap is on these; the quick pass's come on top). */
   let exactStates = 0;
@@ -153,6 +150,8 @@ export function exactSearch(
   const pass = (beamWidth: number, passBoundH: number) => {
     let bestH = passBoundH;
     let best: { last: Label; changedUpTo: number } | null = null;
+    /** A whole plan made by `finish` from a state of a cut quick pass, and its hours. */
+    let finished: { plan: IndexPlan; h: number } | null = null;
     const tolH = 1e-9 * (1 + passBoundH);
     const buckets: Map<number, Label[]>[] = Array.from({ length: m }, () => new Map());
     // Adds a state, merged with one of equal reach (keeping the lower folded cost).
@@ -305,12 +304,11 @@ export function exactSearch(
         }
       }
     }
-    return { best, bestH };
+    return { best, bestH, finished };
   };
 
   const quick = pass(quickPassStates, boundH);
-  // `finished` is set inside `pass` (TypeScript's narrowing cannot see that, hence the cast).
-  const quickFinished = finished as { plan: IndexPlan; h: number } | null;
+  const quickFinished = quick.finished;
   const exact = pass(Infinity, quickFinished?.h ?? quick.bestH);
   const best = exact.best ?? quick.best;
   const bestH = exact.best ? exact.bestH : (quickFinished?.h ?? quick.bestH);
